@@ -1,0 +1,206 @@
+// Sign-in and sessions, written the way the Lucia guide teaches (the `lucia` package itself is
+// deprecated): an opaque random token in the cookie, its SHA-256 as the session id in PostgreSQL,
+// a 30-day expiry renewed when less than half remains, and deletion on sign-out.
+import { hash, verify } from "@node-rs/argon2";
+import { sha256 } from "@oslojs/crypto/sha2";
+import { encodeBase32LowerCaseNoPadding, encodeHexLowerCase } from "@oslojs/encoding";
+import { and, eq, gt, sql } from "drizzle-orm";
+import { data } from "react-router";
+import { db } from "~/.server/db";
+import { memberships, sessions, signInFailures, users, type Role, type User } from "~/db/schema.server";
+
+// OWASP Password Storage Cheat Sheet, argon2id minimum: m = 19 MiB, t = 2, p = 1.
+export const ARGON2_OPTIONS = { algorithm: 2, memoryCost: 19456, timeCost: 2, parallelism: 1 } as const;
+
+export const hashPassword = (password: string) => hash(password, ARGON2_OPTIONS);
+export async function verifyPassword(passwordHash: string, password: string) {
+  try {
+    return await verify(passwordHash, password);
+  } catch {
+    return false;
+  }
+}
+
+export const SESSION_COOKIE = "nw_session";
+export const SESSION_DAYS = 30;
+const DAY = 24 * 60 * 60 * 1000;
+
+export function generateSessionToken(): string {
+  const bytes = new Uint8Array(20);
+  crypto.getRandomValues(bytes);
+  return encodeBase32LowerCaseNoPadding(bytes);
+}
+
+export const sessionIdFromToken = (token: string) =>
+  encodeHexLowerCase(sha256(new TextEncoder().encode(token)));
+
+export async function createSession(token: string, userId: number) {
+  const session = { id: sessionIdFromToken(token), userId, expiresAt: new Date(Date.now() + SESSION_DAYS * DAY) };
+  await db().insert(sessions).values(session);
+  return session;
+}
+
+export type SessionUser = Pick<User, "id" | "email" | "name" | "isAdmin" | "temperatureUnit">;
+export type ValidSession = { id: string; expiresAt: Date; user: SessionUser; renewed: boolean };
+
+export async function validateSessionToken(token: string): Promise<ValidSession | null> {
+  const id = sessionIdFromToken(token);
+  const [row] = await db()
+    .select({
+      id: sessions.id,
+      expiresAt: sessions.expiresAt,
+      user: { id: users.id, email: users.email, name: users.name, isAdmin: users.isAdmin, temperatureUnit: users.temperatureUnit },
+    })
+    .from(sessions)
+    .innerJoin(users, eq(users.id, sessions.userId))
+    .where(eq(sessions.id, id));
+  if (!row) return null;
+  const now = Date.now();
+  if (now >= row.expiresAt.getTime()) {
+    await db().delete(sessions).where(eq(sessions.id, id));
+    return null;
+  }
+  let renewed = false;
+  if (now >= row.expiresAt.getTime() - (SESSION_DAYS / 2) * DAY) {
+    row.expiresAt = new Date(now + SESSION_DAYS * DAY);
+    await db().update(sessions).set({ expiresAt: row.expiresAt }).where(eq(sessions.id, id));
+    renewed = true;
+  }
+  return { ...row, renewed };
+}
+
+export async function invalidateSession(sessionId: string) {
+  await db().delete(sessions).where(eq(sessions.id, sessionId));
+}
+
+export async function invalidateUserSessions(userId: number) {
+  await db().delete(sessions).where(eq(sessions.userId, userId));
+}
+
+const secureCookies = () => process.env.NODE_ENV === "production" && !process.env.NW_INSECURE_COOKIES;
+
+export function sessionCookie(token: string, expiresAt: Date): string {
+  const parts = [`${SESSION_COOKIE}=${token}`, "HttpOnly", "SameSite=Lax", "Path=/", `Expires=${expiresAt.toUTCString()}`];
+  if (secureCookies()) parts.push("Secure");
+  return parts.join("; ");
+}
+
+export function blankSessionCookie(): string {
+  const parts = [`${SESSION_COOKIE}=`, "HttpOnly", "SameSite=Lax", "Path=/", "Max-Age=0"];
+  if (secureCookies()) parts.push("Secure");
+  return parts.join("; ");
+}
+
+export function readSessionToken(cookieHeader: string | null | undefined): string | null {
+  if (!cookieHeader) return null;
+  for (const part of cookieHeader.split(";")) {
+    const [name, ...rest] = part.trim().split("=");
+    if (name === SESSION_COOKIE) return rest.join("=") || null;
+  }
+  return null;
+}
+
+export async function getSession(request: Request): Promise<ValidSession | null> {
+  const token = readSessionToken(request.headers.get("Cookie"));
+  return token ? validateSessionToken(token) : null;
+}
+
+export async function getUser(request: Request): Promise<SessionUser | null> {
+  return (await getSession(request))?.user ?? null;
+}
+
+function redirectToSignIn(request: Request): never {
+  const url = new URL(request.url);
+  const next = url.pathname + url.search;
+  throw new Response(null, { status: 302, headers: { Location: `/sign-in?next=${encodeURIComponent(next)}` } });
+}
+
+export async function requireUser(request: Request): Promise<SessionUser> {
+  const user = await getUser(request);
+  if (!user) redirectToSignIn(request);
+  return user;
+}
+
+export function notFound(): never {
+  throw data("Not found", { status: 404 });
+}
+
+export const ALL_ROLES: Role[] = ["owner", "carer", "mentor"];
+export const WRITERS: Role[] = ["owner", "carer"];
+
+// A non-member gets 404 for anything in a site, so that site ids reveal nothing; a member whose
+// role is not allowed gets 403.
+export async function requireSiteRole(request: Request, siteId: number | string | undefined, roles: Role[]) {
+  const user = await requireUser(request);
+  const id = Number(siteId);
+  if (!Number.isInteger(id) || id <= 0) notFound();
+  const [m] = await db()
+    .select({ role: memberships.role })
+    .from(memberships)
+    .where(and(eq(memberships.userId, user.id), eq(memberships.siteId, id)));
+  if (!m) notFound();
+  if (!roles.includes(m.role)) throw data("Your role in this site cannot do that", { status: 403 });
+  return { user, siteId: id, role: m.role };
+}
+
+export async function requireAdmin(request: Request) {
+  const user = await requireUser(request);
+  if (!user.isAdmin) notFound();
+  return user;
+}
+
+// Rate limit of failed sign-ins: per account and per address, counted over a sliding window.
+export const SIGN_IN_WINDOW_MINUTES = 15;
+export const MAX_FAILURES_PER_ACCOUNT = 5;
+export const MAX_FAILURES_PER_ADDRESS = 20;
+
+async function failuresFor(key: string) {
+  const [row] = await db()
+    .select({ n: sql<number>`count(*)::int` })
+    .from(signInFailures)
+    .where(and(eq(signInFailures.key, key), gt(signInFailures.at, sql`now() - make_interval(mins => ${SIGN_IN_WINDOW_MINUTES})`)));
+  return row?.n ?? 0;
+}
+
+export async function signInBlocked(email: string, address: string) {
+  const [acct, addr] = await Promise.all([failuresFor(`acct:${email}`), failuresFor(`addr:${address}`)]);
+  return acct >= MAX_FAILURES_PER_ACCOUNT || addr >= MAX_FAILURES_PER_ADDRESS;
+}
+
+export async function recordSignInFailure(email: string, address: string) {
+  await db().insert(signInFailures).values([{ key: `acct:${email}` }, { key: `addr:${address}` }]);
+  await db().execute(sql`delete from sign_in_failures where at < now() - interval '1 day'`);
+}
+
+export async function clearSignInFailures(email: string) {
+  await db().delete(signInFailures).where(eq(signInFailures.key, `acct:${email}`));
+}
+
+export type SignInResult =
+  | { ok: true; token: string; expiresAt: Date; user: User }
+  | { ok: false; error: string };
+
+export async function signIn(email: string, password: string, address: string): Promise<SignInResult> {
+  const normalised = email.trim().toLowerCase();
+  if (await signInBlocked(normalised, address)) {
+    return { ok: false, error: `Too many failed attempts. Wait ${SIGN_IN_WINDOW_MINUTES} minutes and try again.` };
+  }
+  const [user] = await db().select().from(users).where(eq(users.email, normalised));
+  // Verify against a real hash even for unknown e-mails, so timing does not reveal accounts.
+  const ok = await verifyPassword(user?.passwordHash ?? DUMMY_HASH, password);
+  if (!user || !ok) {
+    await recordSignInFailure(normalised, address);
+    return { ok: false, error: "That e-mail and password do not match an account." };
+  }
+  await clearSignInFailures(normalised);
+  const token = generateSessionToken();
+  const session = await createSession(token, user.id);
+  return { ok: true, token, expiresAt: session.expiresAt, user };
+}
+
+const DUMMY_HASH =
+  "$argon2id$v=19$m=19456,t=2,p=1$c29tZXNhbHRzb21lc2FsdA$Vf3s9w3U0ZxZrWm1h3Gm0n2FJc6k0m8s3b2Q7w1QhJY";
+
+export function clientAddress(request: Request): string {
+  return request.headers.get("X-Nichewise-Client") ?? "unknown";
+}

@@ -1,0 +1,38 @@
+// One pool per process, kept on globalThis: the server build and the process entry load their own
+// copies of this module, and the dev server reloads it, but they must share one pool.
+import { drizzle, type NodePgDatabase } from "drizzle-orm/node-postgres";
+import { migrate } from "drizzle-orm/node-postgres/migrator";
+import pg from "pg";
+import * as schema from "~/db/schema.server";
+
+export type Db = NodePgDatabase<typeof schema> & { $client: pg.Pool };
+
+type Holder = { pool?: pg.Pool; db?: Db };
+const holder: Holder = ((globalThis as Record<string, unknown>).__nichewiseDb ??= {}) as Holder;
+
+export function pool(): pg.Pool {
+  if (!holder.pool) {
+    const url = process.env.DATABASE_URL;
+    if (!url) throw new Error("DATABASE_URL is not set (the process entry sets it after starting PostgreSQL)");
+    holder.pool = new pg.Pool({ connectionString: url, max: 10 });
+    // A dropped connection must not crash the process; queries on it fail and are retried by callers.
+    holder.pool.on("error", (err) => console.error("[db] idle client error:", err.message));
+  }
+  return holder.pool;
+}
+
+export function db(): Db {
+  holder.db ??= drizzle(pool(), { schema, casing: "snake_case" }) as Db;
+  return holder.db;
+}
+
+export async function closeDb() {
+  const p = holder.pool;
+  holder.pool = undefined;
+  holder.db = undefined;
+  await p?.end();
+}
+
+export async function runMigrations(folder = "drizzle") {
+  await migrate(db(), { migrationsFolder: folder });
+}

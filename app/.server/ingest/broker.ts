@@ -1,0 +1,180 @@
+// The embedded MQTT broker. Sensors sign in with their id and secret and may publish only under
+// their own topic. A reading is written inside `authorizePublish`, before aedes sends the PUBACK,
+// so an acknowledged reading is a committed one; if the write fails the callback gets the error,
+// aedes closes the connection without acking and the sensor resends after reconnecting.
+import { Aedes, type AedesOptions, type Client } from "aedes";
+import { createServer, type Server } from "node:net";
+import http from "node:http";
+import { WebSocketServer, createWebSocketStream } from "ws";
+import { decodeMessage, parseTopic, TOPIC_PREFIX, validateReading } from "~/domain/ingest/payload";
+import { recordRejectionsSoon } from "~/.server/ingest/rejections";
+import { sensorInfo, verifySensorSecret } from "~/.server/ingest/sensors";
+import type { ReadingWriter } from "~/.server/ingest/writer";
+
+export type BrokerStats = { startedAt: Date; accepted: number; rejected: number; refusedConnections: number; writeFailures: number };
+
+export type RunningBroker = {
+  broker: Aedes;
+  stats: BrokerStats;
+  connectedSensors: () => number;
+  disconnectSensor: (sensorId: number) => void;
+  close: () => Promise<void>;
+  port: number;
+  wsPort: number | null;
+};
+
+type Holder = { running?: RunningBroker };
+const holder = ((globalThis as Record<string, unknown>).__nichewiseBroker ??= {}) as Holder;
+export const runningBroker = () => holder.running;
+
+function authError(message: string, code: 4 | 5) {
+  return Object.assign(new Error(message), { returnCode: code });
+}
+
+export async function startBroker(opts: {
+  host: string;
+  port: number;
+  wsPort?: number | null;
+  writer: ReadingWriter;
+  log?: (s: string) => void;
+}): Promise<RunningBroker> {
+  const log = opts.log ?? console.log;
+  const sensorOf = new WeakMap<Client, number>();
+  const clientsOf = new Map<number, Set<Client>>();
+  const stats: BrokerStats = { startedAt: new Date(), accepted: 0, rejected: 0, refusedConnections: 0, writeFailures: 0 };
+
+  const options: AedesOptions = {
+    // QoS 1 deliveries in flight across the broker; each waits for a group commit (a few ms).
+    concurrency: 1000,
+    authenticate(client, username, password, done) {
+      const id = Number(username);
+      if (!username || !Number.isInteger(id) || id <= 0 || !password) {
+        stats.refusedConnections++;
+        return done(authError("Bad user name or password", 4), false);
+      }
+      verifySensorSecret(id, password.toString("utf8")).then(
+        (info) => {
+          if (!info) {
+            stats.refusedConnections++;
+            return done(authError("Bad user name or password", 4), false);
+          }
+          sensorOf.set(client, id);
+          let set = clientsOf.get(id);
+          if (!set) clientsOf.set(id, (set = new Set()));
+          set.add(client);
+          done(null, true);
+        },
+        () => done(authError("Server unavailable", 5), false),
+      );
+    },
+    authorizeSubscribe(client, sub, done) {
+      const id = sensorOf.get(client);
+      if (id && (sub.topic === `${TOPIC_PREFIX}/${id}/#` || sub.topic.startsWith(`${TOPIC_PREFIX}/${id}/`)) && !sub.topic.includes("+")) {
+        return done(null, sub);
+      }
+      done(new Error("A sensor may subscribe only to its own topics"));
+    },
+    authorizePublish(client, packet, done) {
+      try {
+        const id = client ? sensorOf.get(client) : undefined;
+        const match = parseTopic(packet.topic);
+        if (!client) return done(null); // the broker's own messages
+        if (!id || !match || match.sensorId !== id) {
+          // Refusing closes the connection; publishing outside its topic is not a payload mistake.
+          stats.rejected++;
+          recordRejectionsSoon([{ sensorId: id ?? null, source: "mqtt", topic: packet.topic, reason: "topic not allowed for this sensor", payload: "" }]);
+          return done(new Error("topic not allowed"));
+        }
+        const decoded = decodeMessage(match.channel, packet.payload as Buffer);
+        const reject = (reason: string) => {
+          stats.rejected++;
+          recordRejectionsSoon([{ sensorId: id, source: "mqtt", topic: packet.topic, reason, payload: (packet.payload as Buffer).subarray(0, 500).toString("utf8") }]);
+          done(null); // ack it: a refused QoS 1 publish would be resent forever
+        };
+        if (!decoded.ok) return reject(decoded.reason);
+        verifyAndWrite(id, decoded.payload).then(
+          (result) => {
+            if (result === null) return done(null);
+            reject(result);
+          },
+          (err: Error) => {
+            stats.writeFailures++;
+            done(err);
+          },
+        );
+      } catch (err) {
+        // Nothing here should throw; if it does, refuse rather than crash the broker.
+        done(err instanceof Error ? err : new Error(String(err)));
+      }
+    },
+  };
+
+  async function verifyAndWrite(sensorId: number, payload: unknown): Promise<string | null> {
+    const info = await sensorInfo(sensorId);
+    if (!info) return "unknown sensor (deleted?)";
+    const parsed = validateReading(sensorId, payload as never, { now: new Date(), kind: info.kind });
+    if (!parsed.ok) return parsed.reason;
+    await opts.writer.write([parsed.reading]);
+    stats.accepted++;
+    return null;
+  }
+
+  const broker = await Aedes.createBroker(options);
+  broker.on("clientDisconnect", (client) => {
+    const id = sensorOf.get(client);
+    if (id) clientsOf.get(id)?.delete(client);
+  });
+  broker.on("clientError", () => {});
+  broker.on("connectionError", () => {});
+
+  const server: Server = createServer(broker.handle);
+  await new Promise<void>((resolve, reject) => {
+    server.once("error", reject);
+    server.listen(opts.port, opts.host, () => resolve());
+  });
+  const port = (server.address() as { port: number }).port;
+  log(`MQTT broker on mqtt://${opts.host}:${port}`);
+
+  let wsServer: http.Server | null = null;
+  let wss: WebSocketServer | null = null;
+  let wsPort: number | null = null;
+  if (opts.wsPort !== null && opts.wsPort !== undefined) {
+    wsServer = http.createServer((_req, res) => {
+      res.writeHead(426, { "Content-Type": "text/plain" }).end("MQTT over WebSocket: connect with a WebSocket MQTT client\n");
+    });
+    wss = new WebSocketServer({ server: wsServer });
+    wss.on("connection", (ws, req) => {
+      const stream = createWebSocketStream(ws);
+      stream.on("error", () => ws.terminate());
+      broker.handle(stream as never, req);
+    });
+    await new Promise<void>((resolve, reject) => {
+      wsServer!.once("error", reject);
+      wsServer!.listen(opts.wsPort!, opts.host, () => resolve());
+    });
+    wsPort = (wsServer.address() as { port: number }).port;
+    log(`MQTT over WebSocket on ws://${opts.host}:${wsPort}`);
+  }
+
+  const running: RunningBroker = {
+    broker,
+    stats,
+    port,
+    wsPort,
+    connectedSensors: () => [...clientsOf.values()].reduce((n, s) => n + s.size, 0),
+    disconnectSensor(sensorId) {
+      for (const c of clientsOf.get(sensorId) ?? []) c.close();
+      clientsOf.delete(sensorId);
+    },
+    close: () =>
+      new Promise<void>((resolve) => {
+        wss?.clients.forEach((c) => c.terminate());
+        wss?.close();
+        wsServer?.close();
+        server.close();
+        broker.close(() => resolve());
+      }),
+  };
+  holder.running = running;
+  return running;
+}

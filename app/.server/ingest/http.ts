@@ -1,0 +1,88 @@
+// HTTP ingest: one reading or a batch from a sensor that buffered while offline. Authenticated with
+// the sensor's secret as a bearer token; same validation and writer as MQTT; 2xx only after COMMIT.
+import { validateReading, type Reading } from "~/domain/ingest/payload";
+import { recordRejectionsSoon, type Rejected } from "~/.server/ingest/rejections";
+import { verifySensorSecret } from "~/.server/ingest/sensors";
+import { writer } from "~/.server/ingest/writer";
+
+export const MAX_HTTP_BATCH = 10_000;
+export const MAX_HTTP_BYTES = 4 * 1024 * 1024;
+
+const json = (body: unknown, status = 200) =>
+  Response.json(body, { status, headers: { "Cache-Control": "no-store" } });
+
+/** Reads at most `limit` bytes of the body, refusing more without buffering it. */
+export async function readLimited(request: Request, limit: number): Promise<string | null> {
+  const declared = Number(request.headers.get("Content-Length") ?? "0");
+  if (declared > limit) return null;
+  if (!request.body) return "";
+  const reader = request.body.getReader();
+  const chunks: Uint8Array[] = [];
+  let size = 0;
+  for (;;) {
+    const { done, value } = await reader.read();
+    if (done) break;
+    size += value.byteLength;
+    if (size > limit) {
+      await reader.cancel();
+      return null;
+    }
+    chunks.push(value);
+  }
+  return Buffer.concat(chunks).toString("utf8");
+}
+
+export async function handleHttpIngest(request: Request): Promise<Response> {
+  if (request.method !== "POST") return json({ error: "POST readings here" }, 405);
+  const auth = request.headers.get("Authorization") ?? "";
+  const m = /^Bearer (\d+)\.([A-Za-z0-9]+)$/.exec(auth.trim());
+  if (!m) return json({ error: "Send Authorization: Bearer <sensor id>.<secret>" }, 401);
+  const sensorId = Number(m[1]);
+  const info = await verifySensorSecret(sensorId, m[2]).catch(() => undefined);
+  if (info === undefined) return json({ error: "Storage unavailable, try again" }, 503);
+  if (!info) return json({ error: "Unknown sensor or wrong secret" }, 401);
+
+  const text = await readLimited(request, MAX_HTTP_BYTES);
+  if (text === null) return json({ error: `Body over ${MAX_HTTP_BYTES / 1024 / 1024} MB: send smaller batches` }, 413);
+  let body: unknown;
+  try {
+    body = JSON.parse(text.replace(/^\uFEFF/, ""));
+  } catch {
+    recordRejectionsSoon([{ sensorId, source: "http", reason: "payload is not JSON", payload: text.slice(0, 500) }]);
+    return json({ error: "Body is not JSON" }, 400);
+  }
+  const items: unknown[] =
+    body && typeof body === "object" && !Array.isArray(body) && Array.isArray((body as { readings?: unknown }).readings)
+      ? (body as { readings: unknown[] }).readings
+      : Array.isArray(body)
+        ? body
+        : [body];
+  if (items.length > MAX_HTTP_BATCH) return json({ error: `At most ${MAX_HTTP_BATCH} readings per request` }, 413);
+
+  const now = new Date();
+  const ok: Reading[] = [];
+  const rejected: { index: number; reason: string }[] = [];
+  const toRecord: Rejected[] = [];
+  items.forEach((item, index) => {
+    if (typeof item !== "object" || item === null || Array.isArray(item)) {
+      rejected.push({ index, reason: "not a JSON object" });
+      toRecord.push({ sensorId, source: "http", reason: "not a JSON object", payload: JSON.stringify(item)?.slice(0, 500) ?? "" });
+      return;
+    }
+    const r = validateReading(sensorId, item as never, { now, kind: info.kind });
+    if (r.ok) ok.push(r.reading);
+    else {
+      rejected.push({ index, reason: r.reason });
+      toRecord.push({ sensorId, source: "http", reason: r.reason, payload: JSON.stringify(item).slice(0, 500) });
+    }
+  });
+  recordRejectionsSoon(toRecord.slice(0, 100));
+  let stored = 0;
+  try {
+    stored = (await writer().write(ok)).inserted;
+  } catch {
+    return json({ error: "Storage unavailable: nothing was stored, send the same batch again" }, 503);
+  }
+  // `stored` counts rows new to the database; a resent batch stores nothing and that is fine.
+  return json({ received: items.length, accepted: ok.length, stored, duplicates: ok.length - stored, rejected });
+}

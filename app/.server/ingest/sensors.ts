@@ -1,0 +1,60 @@
+// What ingest needs to know about a sensor (site, where it is now, its secret's hash), cached for a
+// few seconds so that a busy sensor costs no query per message.
+import { verify } from "@node-rs/argon2";
+import { sha256 } from "@oslojs/crypto/sha2";
+import { encodeHexLowerCase } from "@oslojs/encoding";
+import { pool } from "~/.server/db";
+import type { SpotKindForLimits } from "~/domain/ingest/payload";
+
+export type SensorInfo = { id: number; siteId: number; secretHash: string; kind: SpotKindForLimits };
+
+type Entry = { info: SensorInfo | null; at: number };
+type Holder = { cache: Map<number, Entry>; verified: Map<string, number> };
+const holder = ((globalThis as Record<string, unknown>).__nichewiseSensors ??= {
+  cache: new Map(),
+  verified: new Map(),
+}) as Holder;
+
+const TTL_MS = 10_000;
+
+export async function sensorInfo(id: number): Promise<SensorInfo | null> {
+  const hit = holder.cache.get(id);
+  if (hit && Date.now() - hit.at < TTL_MS) return hit.info;
+  const res = await pool().query<{ id: number; site_id: number; secret_hash: string; indoor: boolean | null }>(
+    `SELECT s.id, s.site_id, s.secret_hash, sp.indoor FROM sensors s
+     LEFT JOIN placements p ON p.sensor_id = s.id AND p.to_at IS NULL
+     LEFT JOIN spots sp ON sp.id = p.spot_id WHERE s.id = $1`,
+    [id],
+  );
+  const row = res.rows[0];
+  const info: SensorInfo | null = row
+    ? { id: row.id, siteId: row.site_id, secretHash: row.secret_hash, kind: row.indoor == null ? "unplaced" : row.indoor ? "indoor" : "outdoor" }
+    : null;
+  holder.cache.set(id, { info, at: Date.now() });
+  return info;
+}
+
+export function invalidateSensorCache(id?: number) {
+  if (id === undefined) holder.cache.clear();
+  else holder.cache.delete(id);
+  for (const key of holder.verified.keys()) if (id === undefined || key.startsWith(`${id}:`)) holder.verified.delete(key);
+}
+
+/** Checks a sensor's secret against its argon2id hash; a success is remembered for a minute. */
+export async function verifySensorSecret(id: number, secret: string): Promise<SensorInfo | null> {
+  if (!secret || secret.length > 200) return null;
+  const info = await sensorInfo(id);
+  if (!info) return null;
+  const key = `${id}:${encodeHexLowerCase(sha256(new TextEncoder().encode(secret)))}:${info.secretHash}`;
+  const at = holder.verified.get(key);
+  if (at && Date.now() - at < 60_000) return info;
+  let ok = false;
+  try {
+    ok = await verify(info.secretHash, secret);
+  } catch {
+    ok = false;
+  }
+  if (!ok) return null;
+  holder.verified.set(key, Date.now());
+  return info;
+}

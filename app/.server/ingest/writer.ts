@@ -1,0 +1,225 @@
+// The one path every reading takes into PostgreSQL. Readings from all connections are grouped for
+// a few milliseconds and written in one transaction: raw rows deduplicated on (sensor, measured_at),
+// and the hourly rollups of the spot each sensor was placed in, counting only rows really inserted.
+// A caller's promise resolves only after COMMIT, which is what lets MQTT ack after commit.
+import type pg from "pg";
+import { pool } from "~/.server/db";
+import type { Reading } from "~/domain/ingest/payload";
+
+export type CommittedReading = { spotId: number; sensorId: number; measuredAt: Date; t: number | null; h: number | null; battery: number | null };
+export type BatchListener = (rows: CommittedReading[]) => void | Promise<void>;
+export type WriteResult = { inserted: number };
+
+// Aggregate of the rows a statement really inserted, upserted into the rollups; `$1..$6` are arrays.
+const WRITE_SQL = `
+WITH input AS (
+  SELECT * FROM unnest($1::int[], $2::timestamptz[], $3::real[], $4::real[], $5::real[], $6::real[])
+    AS u(sensor_id, measured_at, temperature, humidity, lux, battery)
+), ins AS (
+  INSERT INTO readings (sensor_id, measured_at, temperature, humidity, lux, battery)
+  SELECT * FROM input ON CONFLICT DO NOTHING
+  RETURNING sensor_id, measured_at, temperature, humidity, lux, battery
+), placed AS (
+  SELECT p.spot_id, ins.sensor_id, ins.measured_at, ins.battery, si.time_zone,
+    ins.temperature + coalesce((s.calibration->>'temperature')::real, 0) AS t,
+    least(100, greatest(0, ins.humidity + coalesce((s.calibration->>'humidity')::real, 0))) AS h,
+    greatest(0, ins.lux + coalesce((s.calibration->>'lux')::real, 0)) AS l
+  FROM ins
+  JOIN placements p ON p.sensor_id = ins.sensor_id AND p.from_at <= ins.measured_at
+    AND (p.to_at IS NULL OR ins.measured_at < p.to_at)
+  JOIN sensors s ON s.id = ins.sensor_id
+  JOIN spots sp ON sp.id = p.spot_id
+  JOIN sites si ON si.id = sp.site_id
+), agg AS (
+  SELECT spot_id, date_trunc('hour', measured_at AT TIME ZONE time_zone) AT TIME ZONE time_zone AS hour,
+    count(t)::int AS t_n, min(t) AS t_min, max(t) AS t_max, sum(t) AS t_sum,
+    count(h)::int AS h_n, min(h) AS h_min, max(h) AS h_max, sum(h) AS h_sum,
+    min(dew_point_margin(t, h)) AS dp_margin_min, count(l)::int AS lux_n, sum(l) AS lux_sum
+  FROM placed GROUP BY 1, 2
+), up AS (
+  INSERT INTO hourly_rollups AS r (spot_id, hour, t_n, t_min, t_max, t_sum, h_n, h_min, h_max, h_sum, dp_margin_min, lux_n, lux_sum)
+  SELECT * FROM agg
+  ON CONFLICT (spot_id, hour) DO UPDATE SET
+    t_n = r.t_n + excluded.t_n, t_min = least(r.t_min, excluded.t_min), t_max = greatest(r.t_max, excluded.t_max),
+    t_sum = CASE WHEN r.t_sum IS NULL THEN excluded.t_sum ELSE r.t_sum + coalesce(excluded.t_sum, 0) END,
+    h_n = r.h_n + excluded.h_n, h_min = least(r.h_min, excluded.h_min), h_max = greatest(r.h_max, excluded.h_max),
+    h_sum = CASE WHEN r.h_sum IS NULL THEN excluded.h_sum ELSE r.h_sum + coalesce(excluded.h_sum, 0) END,
+    dp_margin_min = least(r.dp_margin_min, excluded.dp_margin_min),
+    lux_n = r.lux_n + excluded.lux_n,
+    lux_sum = CASE WHEN r.lux_sum IS NULL THEN excluded.lux_sum ELSE r.lux_sum + coalesce(excluded.lux_sum, 0) END
+  RETURNING 1
+), seen AS (
+  UPDATE sensors s SET last_seen_at = greatest(s.last_seen_at, x.last_at),
+    battery = coalesce(x.battery, s.battery)
+  FROM (
+    SELECT sensor_id, max(measured_at) AS last_at,
+      (array_agg(battery ORDER BY measured_at DESC) FILTER (WHERE battery IS NOT NULL))[1] AS battery
+    FROM input GROUP BY sensor_id
+  ) x
+  WHERE s.id = x.sensor_id AND (s.last_seen_at IS NULL OR x.last_at >= s.last_seen_at)
+  RETURNING 1
+)
+SELECT (SELECT count(*)::int FROM ins) AS inserted, (SELECT count(*)::int FROM up) AS hours,
+  (SELECT count(*)::int FROM seen) AS seen,
+  coalesce((SELECT json_agg(json_build_array(spot_id, sensor_id, measured_at, t, h, battery) ORDER BY measured_at)
+    FROM placed), '[]'::json) AS placed`;
+
+// With several callers in one group commit, each needs to know which of its rows were new.
+const WRITE_SQL_KEYS = WRITE_SQL + `,
+  coalesce((SELECT json_agg(json_build_array(sensor_id, (extract(epoch FROM measured_at) * 1000)::bigint)) FROM ins), '[]'::json) AS keys`;
+
+type Pending = { readings: Reading[]; resolve: (r: WriteResult) => void; reject: (e: Error) => void };
+
+export type WriterStats = {
+  batches: number;
+  readings: number;
+  inserted: number;
+  failures: number;
+  lastCommitMs: number;
+  commitMs: number[]; // recent commit latencies, newest last
+};
+
+export class ReadingWriter {
+  private pending: Pending[] = [];
+  private pendingCount = 0;
+  private timer: NodeJS.Timeout | null = null;
+  private flushing: Promise<void> | null = null;
+  private listeners = new Set<BatchListener>();
+  readonly stats: WriterStats = { batches: 0, readings: 0, inserted: 0, failures: 0, lastCommitMs: 0, commitMs: [] };
+
+  constructor(
+    private readonly getPool: () => pg.Pool = pool,
+    readonly flushMs = 5,
+    readonly maxBatch = 2000,
+  ) {}
+
+  onBatch(listener: BatchListener) {
+    this.listeners.add(listener);
+    return () => this.listeners.delete(listener);
+  }
+
+  /** Resolves after the readings are committed (or were already stored); rejects if they were not. */
+  write(readings: Reading[]): Promise<WriteResult> {
+    if (readings.length === 0) return Promise.resolve({ inserted: 0 });
+    return new Promise((resolve, reject) => {
+      this.pending.push({ readings, resolve, reject });
+      this.pendingCount += readings.length;
+      if (this.pendingCount >= this.maxBatch) this.kick(0);
+      else this.kick(this.flushMs);
+    });
+  }
+
+  private kick(delay: number) {
+    if (this.flushing) return; // the running flush re-kicks when it ends
+    if (delay === 0) {
+      if (this.timer) clearTimeout(this.timer);
+      this.timer = null;
+      this.flushing = this.flush();
+      return;
+    }
+    this.timer ??= setTimeout(() => {
+      this.timer = null;
+      this.flushing = this.flush();
+    }, delay);
+  }
+
+  private async flush() {
+    try {
+      while (this.pending.length > 0) {
+        const batch: Pending[] = [];
+        let n = 0;
+        while (this.pending.length > 0 && (n === 0 || n + this.pending[0].readings.length <= this.maxBatch * 2)) {
+          const p = this.pending.shift()!;
+          batch.push(p);
+          n += p.readings.length;
+        }
+        this.pendingCount -= n;
+        await this.commit(batch, n);
+      }
+    } finally {
+      this.flushing = null;
+      if (this.pending.length > 0) this.kick(this.flushMs);
+    }
+  }
+
+  private async commit(batch: Pending[], n: number) {
+    const cols: [number[], Date[], (number | null)[], (number | null)[], (number | null)[], (number | null)[]] = [
+      new Array(n), new Array(n), new Array(n), new Array(n), new Array(n), new Array(n),
+    ];
+    let i = 0;
+    for (const p of batch) {
+      for (const r of p.readings) {
+        cols[0][i] = r.sensorId;
+        cols[1][i] = r.measuredAt;
+        cols[2][i] = r.temperature;
+        cols[3][i] = r.humidity;
+        cols[4][i] = r.lux;
+        cols[5][i] = r.battery;
+        i++;
+      }
+    }
+    const started = performance.now();
+    let client: pg.PoolClient | undefined;
+    try {
+      client = await this.getPool().connect();
+      // One statement is its own transaction; it commits before the result comes back.
+      const res = await client.query(batch.length > 1 ? WRITE_SQL_KEYS : WRITE_SQL, cols);
+      client.release();
+      client = undefined;
+      const row = res.rows[0] as {
+        inserted: number;
+        placed: [number, number, string, number | null, number | null, number | null][];
+        keys?: [number, number][];
+      };
+      const ms = performance.now() - started;
+      this.stats.batches++;
+      this.stats.readings += n;
+      this.stats.inserted += row.inserted;
+      this.stats.lastCommitMs = ms;
+      this.stats.commitMs.push(ms);
+      if (this.stats.commitMs.length > 500) this.stats.commitMs.splice(0, this.stats.commitMs.length - 500);
+      if (row.keys) {
+        const fresh = new Set(row.keys.map(([id, ms]) => `${id}:${ms}`));
+        for (const p of batch) {
+          let inserted = 0;
+          for (const r of p.readings) if (fresh.delete(`${r.sensorId}:${r.measuredAt.getTime()}`)) inserted++;
+          p.resolve({ inserted });
+        }
+      } else {
+        batch[0].resolve({ inserted: row.inserted });
+      }
+      if (this.listeners.size > 0 && row.placed.length > 0) {
+        const committed = row.placed.map(([spotId, sensorId, at, t, h, battery]) => ({
+          spotId, sensorId, measuredAt: new Date(at), t, h, battery,
+        }));
+        for (const l of this.listeners) {
+          Promise.resolve()
+            .then(() => l(committed))
+            .catch((err) => console.error("[writer] batch listener failed:", err));
+        }
+      }
+    } catch (err) {
+      client?.release(true);
+      this.stats.failures++;
+      const error = err instanceof Error ? err : new Error(String(err));
+      for (const p of batch) p.reject(error);
+    }
+  }
+
+  /** Waits for everything queued so far to be committed or refused. */
+  async drain() {
+    while (this.pending.length > 0 || this.flushing || this.timer) {
+      if (this.timer && !this.flushing) this.kick(0);
+      await (this.flushing ?? new Promise((r) => setTimeout(r, 1)));
+    }
+  }
+}
+
+type Holder = { writer?: ReadingWriter };
+const holder = ((globalThis as Record<string, unknown>).__nichewiseWriter ??= {}) as Holder;
+
+/** The process's writer: shared by the broker, the HTTP route and CSV import. */
+export function writer(): ReadingWriter {
+  holder.writer ??= new ReadingWriter();
+  return holder.writer;
+}

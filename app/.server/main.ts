@@ -1,0 +1,163 @@
+// The process entry: PostgreSQL (embedded unless DATABASE_URL is given), migrations, demo data,
+// the mail sink, the MQTT broker and writer, the web server and the simulator, with one shutdown
+// path. Nothing long-lived starts from a module the dev server reloads.
+import compression from "compression";
+import express from "express";
+import { existsSync } from "node:fs";
+import http from "node:http";
+import path from "node:path";
+import { createRequestListener } from "@react-router/node";
+import type { ServerBuild } from "react-router";
+import { env, publicUrl } from "~/.server/env";
+import { startEmbeddedPostgres, type EmbeddedPostgres } from "~/.server/postgres";
+
+const log = (s: string) => console.log(`[nichewise] ${s}`);
+
+export type Running = { stop: () => Promise<void>; url: string; mqttPort: number };
+
+export async function main(opts: { dev?: boolean } = {}): Promise<Running> {
+  const e = env();
+  const stops: (() => Promise<void>)[] = [];
+  const stopAll = async () => {
+    for (const s of stops.reverse()) await s().catch((err) => console.error(err));
+  };
+
+  let pg: EmbeddedPostgres | undefined;
+  if (!process.env.DATABASE_URL) {
+    pg = await startEmbeddedPostgres({ dataDir: e.NW_PG_DATA, port: e.NW_PG_PORT, database: "nichewise", log });
+    process.env.DATABASE_URL = pg.url;
+    stops.push(pg.stop);
+    log(`PostgreSQL on 127.0.0.1:${e.NW_PG_PORT} (data in ${e.NW_PG_DATA})`);
+  }
+  const { closeDb, runMigrations, pool } = await import("~/.server/db");
+  stops.push(closeDb);
+  await runMigrations(path.resolve("drizzle"));
+  await pool().query("SELECT ensure_reading_partitions(date_trunc('month', now()) - interval '1 month', 4)");
+
+  const { startMailSink, configureMailer } = await import("~/.server/mail");
+  if (!e.SMTP_URL) {
+    const sink = await startMailSink({ port: e.NW_SINK_PORT, log });
+    stops.push(sink.close);
+    configureMailer(`smtp://127.0.0.1:${sink.port}`);
+  } else {
+    configureMailer(e.SMTP_URL);
+  }
+
+  const { writer } = await import("~/.server/ingest/writer");
+
+  const { startBroker } = await import("~/.server/ingest/broker");
+  const broker = await startBroker({ host: e.MQTT_HOST, port: e.MQTT_PORT, wsPort: e.MQTT_WS_PORT, writer: writer(), log });
+  stops.push(async () => {
+    await broker.close();
+    await writer().drain();
+  });
+
+  const { pruneRejections } = await import("~/.server/ingest/rejections");
+  const housekeeping = setInterval(() => {
+    pruneRejections().catch(() => {});
+    pool()
+      .query("SELECT ensure_reading_partitions(date_trunc('month', now()), 3)")
+      .catch(() => {});
+  }, 60_000);
+  stops.push(async () => clearInterval(housekeeping));
+
+  if (e.NW_DEMO) {
+    const { seedDemo } = await import("~/.server/seed");
+    await seedDemo({ log, backfillDays: e.NW_BACKFILL_DAYS });
+  }
+
+  const app = express();
+  app.disable("x-powered-by");
+  app.use(compression());
+  // Who is asking, for the sign-in rate limit; a client cannot set this header itself.
+  app.use((req, _res, next) => {
+    req.headers["x-nichewise-client"] = req.socket.remoteAddress ?? "unknown";
+    next();
+  });
+  app.use(refuseCrossOrigin);
+
+  if (opts.dev) {
+    const vite = await import("vite");
+    const viteServer = await vite.createServer({ server: { middlewareMode: true } });
+    stops.push(() => viteServer.close());
+    app.use(viteServer.middlewares);
+    app.use(async (req, res, next) => {
+      try {
+        const build = (await viteServer.ssrLoadModule("virtual:react-router/server-build")) as ServerBuild;
+        return createRequestListener({ build, mode: "development" })(req, res);
+      } catch (err) {
+        next(err);
+      }
+    });
+  } else {
+    const buildDir = path.resolve("build");
+    if (!existsSync(path.join(buildDir, "server/index.js"))) throw new Error("No build found: run `npm run build` first");
+    app.use("/assets", express.static(path.join(buildDir, "client/assets"), { immutable: true, maxAge: "1y" }));
+    app.use(express.static(path.join(buildDir, "client"), { maxAge: "1h" }));
+    const build = (await import(path.join(buildDir, "server/index.js"))) as ServerBuild;
+    app.all("*", createRequestListener({ build, mode: "production" }));
+  }
+
+  const server = http.createServer(app);
+  await new Promise<void>((resolve, reject) => {
+    server.once("error", reject);
+    server.listen(e.PORT, e.HOST, () => resolve());
+  });
+  stops.push(
+    () =>
+      new Promise<void>((resolve) => {
+        server.close(() => resolve());
+        server.closeAllConnections();
+      }),
+  );
+  const url = publicUrl();
+  log(`Web app on ${url}`);
+
+  if (e.NW_DEMO && e.NW_SIMULATOR) {
+    const { startLiveSimulator } = await import("../../simulator/live");
+    const sim = await startLiveSimulator({ mqttUrl: `mqtt://127.0.0.1:${broker.port}`, speed: e.NW_SIM_SPEED, intervalS: e.NW_SIM_INTERVAL_S, log });
+    stops.splice(stops.length, 0, sim.stop);
+  }
+
+  return { stop: stopAll, url, mqttPort: broker.port };
+}
+
+// Actions refuse posts from other origins (CSRF). Sensors posting to the ingest API carry a bearer
+// token and no cookie, so they are not subject to this check.
+function refuseCrossOrigin(req: express.Request, res: express.Response, next: express.NextFunction) {
+  if (req.method === "GET" || req.method === "HEAD" || req.method === "OPTIONS") return next();
+  if (req.path === "/api/ingest") return next();
+  const origin = req.headers.origin;
+  const site = req.headers["sec-fetch-site"];
+  if (site === "cross-site" || (origin && origin !== "null" && new URL(origin).host !== req.headers.host)) {
+    res.status(403).type("text/plain").send("Cross-origin form posts are refused.");
+    return;
+  }
+  if (origin === "null") {
+    res.status(403).type("text/plain").send("Cross-origin form posts are refused.");
+    return;
+  }
+  next();
+}
+
+const isEntry = process.argv[1] && path.resolve(process.argv[1]) === path.resolve(import.meta.filename);
+if (isEntry) {
+  const dev = process.argv.includes("--dev");
+  main({ dev }).then(
+    (running) => {
+      let stopping = false;
+      const shutdown = (signal: string) => {
+        if (stopping) return;
+        stopping = true;
+        log(`${signal}: shutting down…`);
+        running.stop().then(() => process.exit(0));
+      };
+      process.on("SIGINT", () => shutdown("SIGINT"));
+      process.on("SIGTERM", () => shutdown("SIGTERM"));
+    },
+    (err) => {
+      console.error(`[nichewise] could not start: ${err instanceof Error ? err.message : err}`);
+      process.exit(1);
+    },
+  );
+}

@@ -1,0 +1,89 @@
+import { getInputProps, getSelectProps, getTextareaProps, type FieldMetadata } from "@conform-to/react";
+
+type Meta = FieldMetadata<any, any, string[]>;
+
+export function FieldError({ meta }: { meta: Meta }) {
+  return meta.errors?.length ? (
+    <p id={meta.errorId} className="error" role="alert">
+      {meta.errors.join(" ")}
+    </p>
+  ) : null;
+}
+
+export function TextField({
+  meta,
+  label,
+  hint,
+  type = "text",
+  ...rest
+}: {
+  meta: Meta;
+  label: string;
+  hint?: React.ReactNode;
+  type?: "text" | "email" | "password" | "number" | "datetime-local" | "date";
+} & Omit<React.InputHTMLAttributes<HTMLInputElement>, "type">) {
+  return (
+    <div>
+      <label htmlFor={meta.id} className="label">
+        {label}
+      </label>
+      <input className="field" {...getInputProps(meta, { type, ariaDescribedBy: hint ? `${meta.id}-hint` : undefined })} {...rest} />
+      {hint ? (
+        <p id={`${meta.id}-hint`} className="hint">
+          {hint}
+        </p>
+      ) : null}
+      <FieldError meta={meta} />
+    </div>
+  );
+}
+
+export function SelectField({
+  meta,
+  label,
+  hint,
+  options,
+}: {
+  meta: Meta;
+  label: string;
+  hint?: React.ReactNode;
+  options: { value: string; label: string }[];
+}) {
+  return (
+    <div>
+      <label htmlFor={meta.id} className="label">
+        {label}
+      </label>
+      <select className="field" {...getSelectProps(meta)}>
+        {options.map((o) => (
+          <option key={o.value} value={o.value}>
+            {o.label}
+          </option>
+        ))}
+      </select>
+      {hint ? <p className="hint">{hint}</p> : null}
+      <FieldError meta={meta} />
+    </div>
+  );
+}
+
+export function TextAreaField({ meta, label, hint }: { meta: Meta; label: string; hint?: React.ReactNode }) {
+  return (
+    <div>
+      <label htmlFor={meta.id} className="label">
+        {label}
+      </label>
+      <textarea className="field min-h-24" {...getTextareaProps(meta)} />
+      {hint ? <p className="hint">{hint}</p> : null}
+      <FieldError meta={meta} />
+    </div>
+  );
+}
+
+export function FormErrors({ errors }: { errors?: string[] }) {
+  return errors?.length ? (
+    <div role="alert" className="rounded-lg border border-poor/30 bg-poor/5 px-3 py-2 text-sm font-medium text-poor">
+      {errors.join(" ")}
+    </div>
+  ) : null;
+}

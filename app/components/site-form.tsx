@@ -1,0 +1,44 @@
+import { getFormProps, useForm, type SubmissionResult } from "@conform-to/react";
+import { parseWithZod } from "@conform-to/zod/v4";
+import { Form, useNavigation } from "react-router";
+import { FormErrors, SelectField, TextField } from "~/components/field";
+import { siteSchema } from "~/lib/forms";
+
+const zones = typeof Intl.supportedValuesOf === "function" ? Intl.supportedValuesOf("timeZone") : ["UTC"];
+
+export function SiteForm({
+  lastResult,
+  defaultValue,
+  submitLabel,
+}: {
+  lastResult?: SubmissionResult<string[]>;
+  defaultValue?: { name: string; latitude: number; longitude: number; timeZone: string };
+  submitLabel: string;
+}) {
+  const navigation = useNavigation();
+  const [form, fields] = useForm({
+    lastResult,
+    defaultValue: defaultValue ?? { timeZone: "Europe/London" },
+    onValidate: ({ formData }) => parseWithZod(formData, { schema: siteSchema }),
+    shouldValidate: "onBlur",
+  });
+  return (
+    <Form method="post" className="space-y-5" {...getFormProps(form)}>
+      <FormErrors errors={form.errors} />
+      <TextField meta={fields.name} label="Name" placeholder="Our flat" />
+      <div className="grid gap-4 sm:grid-cols-2">
+        <TextField meta={fields.latitude} label="Latitude (°, north positive)" type="text" inputMode="decimal" placeholder="51.70" />
+        <TextField meta={fields.longitude} label="Longitude (°, east positive)" type="text" inputMode="decimal" placeholder="-2.20" />
+      </div>
+      <p className="hint -mt-2">
+        Why we ask: sunrise and sunset at your place split each day from its night, so the day–night difference your plants
+        feel is measured at your own hours. The hemisphere follows from the latitude and sets which months are winter. Two
+        decimals (about a kilometre) are plenty.
+      </p>
+      <SelectField meta={fields.timeZone} label="Time zone" options={zones.map((z) => ({ value: z, label: z.replace(/_/g, " ") }))} />
+      <button className="btn" disabled={navigation.state !== "idle"}>
+        {submitLabel}
+      </button>
+    </Form>
+  );
+}

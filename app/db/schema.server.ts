@@ -1,0 +1,359 @@
+// The one schema file. camelCase here, snake_case in SQL (drizzle `casing: "snake_case"`).
+// `readings` is partitioned by month in SQL (see drizzle/0001_partition_readings.sql); Drizzle only
+// needs its columns to query it.
+import { sql } from "drizzle-orm";
+import {
+  bigserial,
+  boolean,
+  doublePrecision,
+  index,
+  integer,
+  jsonb,
+  pgEnum,
+  pgTable,
+  primaryKey,
+  real,
+  serial,
+  text,
+  timestamp,
+  uniqueIndex,
+} from "drizzle-orm/pg-core";
+
+const createdAt = () => timestamp({ withTimezone: true }).notNull().defaultNow();
+
+export const users = pgTable("users", {
+  id: serial().primaryKey(),
+  email: text().notNull().unique(),
+  name: text().notNull(),
+  passwordHash: text().notNull(),
+  isAdmin: boolean().notNull().default(false),
+  temperatureUnit: text({ enum: ["C", "F"] }).notNull().default("C"),
+  createdAt: createdAt(),
+});
+
+export const sessions = pgTable(
+  "sessions",
+  {
+    // sha-256 of the token in the cookie, hex; the token itself is never stored
+    id: text().primaryKey(),
+    userId: integer()
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    expiresAt: timestamp({ withTimezone: true }).notNull(),
+    createdAt: createdAt(),
+  },
+  (t) => [index().on(t.userId)],
+);
+
+// Failed sign-ins, per account and per address, for the rate limit.
+export const signInFailures = pgTable(
+  "sign_in_failures",
+  {
+    id: bigserial({ mode: "number" }).primaryKey(),
+    key: text().notNull(),
+    at: createdAt(),
+  },
+  (t) => [index().on(t.key, t.at)],
+);
+
+export const sites = pgTable("sites", {
+  id: serial().primaryKey(),
+  name: text().notNull(),
+  latitude: doublePrecision().notNull(),
+  longitude: doublePrecision().notNull(),
+  timeZone: text().notNull(),
+  createdAt: createdAt(),
+});
+
+export const roleEnum = pgEnum("site_role", ["owner", "carer", "mentor"]);
+
+export const memberships = pgTable(
+  "memberships",
+  {
+    userId: integer()
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    siteId: integer()
+      .notNull()
+      .references(() => sites.id, { onDelete: "cascade" }),
+    role: roleEnum().notNull(),
+    createdAt: createdAt(),
+  },
+  (t) => [primaryKey({ columns: [t.userId, t.siteId] }), index().on(t.siteId)],
+);
+
+export const facingEnum = pgEnum("window_facing", ["N", "NE", "E", "SE", "S", "SW", "W", "NW", "none"]);
+
+export const spots = pgTable(
+  "spots",
+  {
+    id: serial().primaryKey(),
+    siteId: integer()
+      .notNull()
+      .references(() => sites.id, { onDelete: "cascade" }),
+    name: text().notNull(),
+    indoor: boolean().notNull(),
+    facing: facingEnum().notNull().default("none"),
+    capacity: integer().notNull().default(0),
+    notes: text().notNull().default(""),
+    createdAt: createdAt(),
+  },
+  (t) => [index().on(t.siteId)],
+);
+
+export type Channel = "temperature" | "humidity" | "lux" | "battery";
+export type Calibration = Partial<Record<"temperature" | "humidity" | "lux", number>>;
+
+export const sensors = pgTable(
+  "sensors",
+  {
+    id: serial().primaryKey(),
+    siteId: integer()
+      .notNull()
+      .references(() => sites.id, { onDelete: "cascade" }),
+    name: text().notNull(),
+    // argon2id of the sensor's secret; the secret is shown once when the sensor is added
+    secretHash: text().notNull(),
+    channels: text().array().$type<Channel[]>().notNull().default(sql`'{temperature,humidity}'`),
+    calibration: jsonb().$type<Calibration>().notNull().default({}),
+    lastSeenAt: timestamp({ withTimezone: true }),
+    battery: real(),
+    rejectedCount: integer().notNull().default(0),
+    createdAt: createdAt(),
+  },
+  (t) => [index().on(t.siteId)],
+);
+
+export const placements = pgTable(
+  "placements",
+  {
+    id: serial().primaryKey(),
+    sensorId: integer()
+      .notNull()
+      .references(() => sensors.id, { onDelete: "cascade" }),
+    spotId: integer()
+      .notNull()
+      .references(() => spots.id, { onDelete: "cascade" }),
+    fromAt: timestamp({ withTimezone: true }).notNull(),
+    // null while the sensor is still there
+    toAt: timestamp({ withTimezone: true }),
+  },
+  (t) => [index().on(t.sensorId, t.fromAt), index().on(t.spotId)],
+);
+
+// Raw readings exactly as received (calibration is applied when rolled up and shown).
+export const readings = pgTable(
+  "readings",
+  {
+    sensorId: integer().notNull(),
+    measuredAt: timestamp({ withTimezone: true }).notNull(),
+    temperature: real(),
+    humidity: real(),
+    lux: real(),
+    battery: real(),
+    receivedAt: timestamp({ withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [primaryKey({ columns: [t.sensorId, t.measuredAt] })],
+);
+
+// Per spot and local hour (stored as the UTC instant the local hour starts), calibrated values.
+export const hourlyRollups = pgTable(
+  "hourly_rollups",
+  {
+    spotId: integer()
+      .notNull()
+      .references(() => spots.id, { onDelete: "cascade" }),
+    hour: timestamp({ withTimezone: true }).notNull(),
+    tN: integer().notNull().default(0),
+    tMin: real(),
+    tMax: real(),
+    tSum: doublePrecision(),
+    hN: integer().notNull().default(0),
+    hMin: real(),
+    hMax: real(),
+    hSum: doublePrecision(),
+    dpMarginMin: real(),
+    luxN: integer().notNull().default(0),
+    luxSum: doublePrecision(),
+  },
+  (t) => [primaryKey({ columns: [t.spotId, t.hour] })],
+);
+
+// Bounded (pruned to the newest rows) record of what ingest refused and why.
+export const rejectedMessages = pgTable(
+  "rejected_messages",
+  {
+    id: bigserial({ mode: "number" }).primaryKey(),
+    at: createdAt(),
+    sensorId: integer(),
+    source: text({ enum: ["mqtt", "http", "csv"] }).notNull(),
+    topic: text(),
+    reason: text().notNull(),
+    payload: text().notNull(),
+  },
+  (t) => [index().on(t.at), index().on(t.reason)],
+);
+
+// Site-specific plant profiles (the shipped library lives in app/domain/plants).
+export const customPlants = pgTable(
+  "custom_plants",
+  {
+    id: serial().primaryKey(),
+    siteId: integer()
+      .notNull()
+      .references(() => sites.id, { onDelete: "cascade" }),
+    key: text().notNull(),
+    basedOn: text(),
+    profile: jsonb().notNull(),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex().on(t.siteId, t.key)],
+);
+
+// Plants standing in a spot now (the inventory), by profile key.
+export const spotPlants = pgTable(
+  "spot_plants",
+  {
+    id: serial().primaryKey(),
+    spotId: integer()
+      .notNull()
+      .references(() => spots.id, { onDelete: "cascade" }),
+    plantKey: text().notNull(),
+    nickname: text().notNull().default(""),
+    pots: integer().notNull().default(1),
+    addedAt: createdAt(),
+  },
+  (t) => [index().on(t.spotId)],
+);
+
+export const wishlist = pgTable(
+  "wishlist",
+  {
+    id: serial().primaryKey(),
+    siteId: integer()
+      .notNull()
+      .references(() => sites.id, { onDelete: "cascade" }),
+    plantKey: text().notNull(),
+    mustHave: boolean().notNull().default(false),
+    pots: integer().notNull().default(1),
+    addedAt: createdAt(),
+  },
+  (t) => [uniqueIndex().on(t.siteId, t.plantKey)],
+);
+
+export const alertKindEnum = pgEnum("alert_kind", [
+  "cold",
+  "heat",
+  "dry",
+  "condensation",
+  "silent",
+  "battery",
+]);
+
+export const alertRules = pgTable(
+  "alert_rules",
+  {
+    id: serial().primaryKey(),
+    spotId: integer()
+      .notNull()
+      .references(() => spots.id, { onDelete: "cascade" }),
+    kind: alertKindEnum().notNull(),
+    threshold: real().notNull(),
+    // minutes the condition must hold before an event opens
+    durationMinutes: integer().notNull().default(15),
+    // how far back past the threshold the value must come before the all-clear
+    hysteresis: real().notNull().default(1),
+    clearMinutes: integer().notNull().default(30),
+    earlyWarning: boolean().notNull().default(false),
+    paused: boolean().notNull().default(false),
+    reason: text().notNull().default(""),
+    // streaming state: when the condition started holding (null when it does not)
+    pendingSince: timestamp({ withTimezone: true }),
+    clearingSince: timestamp({ withTimezone: true }),
+    warnedAt: timestamp({ withTimezone: true }),
+    createdAt: createdAt(),
+  },
+  (t) => [index().on(t.spotId)],
+);
+
+export const alertEvents = pgTable(
+  "alert_events",
+  {
+    id: serial().primaryKey(),
+    ruleId: integer()
+      .notNull()
+      .references(() => alertRules.id, { onDelete: "cascade" }),
+    spotId: integer()
+      .notNull()
+      .references(() => spots.id, { onDelete: "cascade" }),
+    kind: alertKindEnum().notNull(),
+    startedAt: timestamp({ withTimezone: true }).notNull(),
+    endedAt: timestamp({ withTimezone: true }),
+    peak: real(),
+    acknowledgedBy: integer().references(() => users.id, { onDelete: "set null" }),
+    acknowledgedAt: timestamp({ withTimezone: true }),
+    notifiedAt: timestamp({ withTimezone: true }),
+    clearNotifiedAt: timestamp({ withTimezone: true }),
+  },
+  (t) => [index().on(t.spotId, t.startedAt)],
+);
+
+export const waterChecks = pgTable(
+  "water_checks",
+  {
+    id: serial().primaryKey(),
+    siteId: integer()
+      .notNull()
+      .references(() => sites.id, { onDelete: "cascade" }),
+    source: text().notNull(),
+    checkedOn: timestamp({ withTimezone: true }).notNull(),
+    ppm: real(),
+    ph: real(),
+    ec: real(),
+    ecScale: real(),
+    byUserId: integer().references(() => users.id, { onDelete: "set null" }),
+    createdAt: createdAt(),
+  },
+  (t) => [index().on(t.siteId, t.checkedOn)],
+);
+
+export const notes = pgTable(
+  "notes",
+  {
+    id: serial().primaryKey(),
+    siteId: integer()
+      .notNull()
+      .references(() => sites.id, { onDelete: "cascade" }),
+    spotId: integer().references(() => spots.id, { onDelete: "cascade" }),
+    plantKey: text(),
+    authorId: integer().references(() => users.id, { onDelete: "set null" }),
+    body: text().notNull(),
+    resolvedAt: timestamp({ withTimezone: true }),
+    createdAt: createdAt(),
+  },
+  (t) => [index().on(t.siteId)],
+);
+
+export const auditLog = pgTable(
+  "audit_log",
+  {
+    id: bigserial({ mode: "number" }).primaryKey(),
+    siteId: integer().references(() => sites.id, { onDelete: "cascade" }),
+    actorId: integer().references(() => users.id, { onDelete: "set null" }),
+    action: text().notNull(),
+    detail: jsonb().notNull().default({}),
+    at: createdAt(),
+  },
+  (t) => [index().on(t.siteId, t.at)],
+);
+
+export type User = typeof users.$inferSelect;
+export type Site = typeof sites.$inferSelect;
+export type Spot = typeof spots.$inferSelect;
+export type Sensor = typeof sensors.$inferSelect;
+export type Placement = typeof placements.$inferSelect;
+export type Role = (typeof roleEnum.enumValues)[number];
+export type Facing = (typeof facingEnum.enumValues)[number];
+export type HourlyRollupRow = typeof hourlyRollups.$inferSelect;
+export type AlertRule = typeof alertRules.$inferSelect;
+export type AlertEvent = typeof alertEvents.$inferSelect;

@@ -1,0 +1,99 @@
+import { DEFAULT_FIT_THRESHOLDS, FIT_RULES, type FitThresholds, type RuleLevel, type RuleResult } from "~/domain/fit/rules";
+import type { PlantProfile } from "~/domain/plants/library";
+import { MONTH_NAMES, MIN_DAYS_FOR_MONTH } from "~/domain/season/profile";
+import type { SeasonProfile } from "~/domain/season/types";
+
+export type Verdict = "thrives here" | "possible with care" | "struggles here" | "not enough data yet";
+
+export type PlantFit = {
+  plantKey: string;
+  verdict: Verdict;
+  /** Every rule's result, the most serious first. */
+  reasons: RuleResult[];
+  /** Months of the year still short of data, in the order they will come round (names, e.g. "December"). */
+  missingMonths: string[];
+  /** What to do about the missing months, e.g. "Leave the sensor where it is through March." */
+  missingAdvice: string | null;
+};
+
+/** The verdict rule table, first match wins — exported so the page can explain it. */
+export const VERDICT_RULES: { verdict: Verdict; when: string }[] = [
+  {
+    verdict: "struggles here",
+    when: "Any rule is poor: what the sensor already measured rules the plant out, even with months still missing.",
+  },
+  {
+    verdict: "not enough data yet",
+    when: `No rule is poor, but some months of the year have fewer than ${MIN_DAYS_FOR_MONTH} days with readings.`,
+  },
+  { verdict: "possible with care", when: "A whole year is measured and at least one rule asks for care." },
+  { verdict: "thrives here", when: "A whole year is measured and every rule is fine." },
+];
+
+/** Best first; used to rank. */
+export const VERDICT_ORDER: Verdict[] = ["thrives here", "possible with care", "not enough data yet", "struggles here"];
+
+const LEVEL_ORDER: Record<RuleLevel, number> = { poor: 0, care: 1, ok: 2 };
+
+function missingMonthsOf(season: SeasonProfile): number[] {
+  const missing = new Set(season.year.filter((m) => !m.coverage.enough).map((m) => m.month));
+  // Start with the month the range ends in: that is "now" for a sensor still in place.
+  const start = season.months.at(-1)?.month ?? 1;
+  return Array.from({ length: 12 }, (_, i) => ((start - 1 + i) % 12) + 1).filter((m) => missing.has(m));
+}
+
+export function fitPlant(profile: PlantProfile, season: SeasonProfile, thresholds: FitThresholds = DEFAULT_FIT_THRESHOLDS): PlantFit {
+  const reasons = FIT_RULES.map((rule) => rule(profile, season, thresholds)).sort((a, b) => LEVEL_ORDER[a.level] - LEVEL_ORDER[b.level]);
+  const missing = missingMonthsOf(season);
+  const levels = new Set(reasons.map((r) => r.level));
+  const verdict: Verdict = levels.has("poor")
+    ? "struggles here"
+    : missing.length > 0
+      ? "not enough data yet"
+      : levels.has("care")
+        ? "possible with care"
+        : "thrives here";
+  const missingMonths = missing.map((m) => MONTH_NAMES[m - 1]);
+  return {
+    plantKey: profile.key,
+    verdict,
+    reasons,
+    missingMonths,
+    missingAdvice:
+      missingMonths.length === 0
+        ? null
+        : missingMonths.length === 12
+          ? "No month has enough readings yet: leave the sensor in this spot through a whole year."
+          : `Still missing ${missingMonths.length === 1 ? missingMonths[0] : `${missingMonths.slice(0, -1).join(", ")} and ${missingMonths.at(-1)}`}: leave the sensor where it is through ${missingMonths.at(-1)}.`,
+  };
+}
+
+function compareFits(a: PlantFit, b: PlantFit): number {
+  const count = (f: PlantFit, level: RuleLevel) => f.reasons.filter((r) => r.level === level).length;
+  return (
+    VERDICT_ORDER.indexOf(a.verdict) - VERDICT_ORDER.indexOf(b.verdict) ||
+    count(a, "poor") - count(b, "poor") ||
+    count(a, "care") - count(b, "care") ||
+    a.missingMonths.length - b.missingMonths.length
+  );
+}
+
+/** Plants for one spot, best fit first; ties by name. */
+export function rankPlantsForSpot(
+  plants: PlantProfile[],
+  season: SeasonProfile,
+  thresholds: FitThresholds = DEFAULT_FIT_THRESHOLDS,
+): { plant: PlantProfile; fit: PlantFit }[] {
+  return plants
+    .map((plant) => ({ plant, fit: fitPlant(plant, season, thresholds) }))
+    .sort((a, b) => compareFits(a.fit, b.fit) || a.plant.name.localeCompare(b.plant.name));
+}
+
+/** Spots for one plant, best fit first; ties keep the given order. */
+export function rankSpotsForPlant<S extends { season: SeasonProfile }>(
+  plant: PlantProfile,
+  spots: S[],
+  thresholds: FitThresholds = DEFAULT_FIT_THRESHOLDS,
+): { spot: S; fit: PlantFit }[] {
+  return spots.map((spot) => ({ spot, fit: fitPlant(plant, spot.season, thresholds) })).sort((a, b) => compareFits(a.fit, b.fit));
+}

@@ -1,0 +1,164 @@
+// What a sensor may send, and why a message is refused. Pure: shared by MQTT, HTTP and CSV ingest.
+import { z } from "zod";
+
+export const TOPIC_PREFIX = "nichewise/sensors";
+export const CHANNEL_TOPICS = ["temperature", "humidity", "lux", "battery"] as const;
+export type ChannelTopic = (typeof CHANNEL_TOPICS)[number];
+
+export type Reading = {
+  sensorId: number;
+  measuredAt: Date;
+  temperature: number | null;
+  humidity: number | null;
+  lux: number | null;
+  battery: number | null;
+};
+
+export type Rejection = { reason: string };
+export type ParseResult = { ok: true; reading: Reading } | { ok: false; reason: string };
+
+// How far ahead of the receiver's clock a timestamp may be (sensor clocks drift).
+export const MAX_FUTURE_MS = 5 * 60 * 1000;
+// Older than this is refused as a likely clock fault (a logger's backlog is accepted up to here).
+export const MAX_PAST_MS = 3 * 365 * 24 * 3600 * 1000;
+export const MAX_PAYLOAD_BYTES = 4096;
+
+// What a sensor's spot can physically see. Indoors, -80 °C or 70 °C means a broken probe.
+export const LIMITS = {
+  indoor: { tMin: -20, tMax: 55 },
+  outdoor: { tMin: -60, tMax: 65 },
+  unplaced: { tMin: -60, tMax: 65 },
+} as const;
+export type SpotKindForLimits = keyof typeof LIMITS;
+
+const finite = z.number().refine(Number.isFinite, "not a finite number");
+const num = z.union([finite, z.string().trim().regex(/^-?\d+(\.\d+)?$/, "not a number").transform(Number)]);
+
+const timeField = z.union([
+  z.number().refine(Number.isFinite, "not a finite number"),
+  z.string().trim().min(1).max(40),
+]);
+
+export const readingPayloadSchema = z
+  .object({
+    time: timeField.optional(),
+    temperature: num.nullish(),
+    humidity: num.nullish(),
+    lux: num.nullish(),
+    battery: num.nullish(),
+    unit: z.enum(["C", "F", "c", "f"]).optional(),
+  })
+  .strip();
+
+export type ReadingPayload = z.input<typeof readingPayloadSchema>;
+
+/** Epoch seconds, epoch milliseconds, or an ISO 8601 instant with a zone (Z or ±hh:mm). */
+export function parseInstant(value: number | string): Date | null {
+  if (typeof value === "number") {
+    const ms = value > 1e11 ? value : value * 1000;
+    const d = new Date(ms);
+    return Number.isNaN(d.getTime()) ? null : d;
+  }
+  if (/^\d+(\.\d+)?$/.test(value)) return parseInstant(Number(value));
+  if (!/^\d{4}-\d{2}-\d{2}[T ]\d{2}:\d{2}(:\d{2}(\.\d{1,9})?)?(Z|[+-]\d{2}:?\d{2})$/i.test(value)) return null;
+  const d = new Date(value.replace(" ", "T"));
+  return Number.isNaN(d.getTime()) ? null : d;
+}
+
+function firstIssue(error: z.ZodError) {
+  const i = error.issues[0];
+  const field = i.path.join(".") || "payload";
+  return `${field}: ${i.message}`;
+}
+
+export function validateReading(
+  sensorId: number,
+  payload: ReadingPayload,
+  opts: { now: Date; kind: SpotKindForLimits },
+): ParseResult {
+  const parsed = readingPayloadSchema.safeParse(payload);
+  if (!parsed.success) return { ok: false, reason: firstIssue(parsed.error) };
+  const p = parsed.data;
+  if (p.temperature == null && p.humidity == null && p.lux == null && p.battery == null) {
+    return { ok: false, reason: "no known field: send temperature, humidity, lux or battery" };
+  }
+  let measuredAt = opts.now;
+  if (p.time !== undefined) {
+    const d = parseInstant(p.time);
+    if (!d) return { ok: false, reason: "time: not an ISO 8601 instant with a zone, or epoch seconds/milliseconds" };
+    measuredAt = d;
+  }
+  if (measuredAt.getTime() > opts.now.getTime() + MAX_FUTURE_MS) {
+    return { ok: false, reason: "time: more than 5 minutes in the future (check the sensor's clock)" };
+  }
+  if (measuredAt.getTime() < opts.now.getTime() - MAX_PAST_MS) {
+    return { ok: false, reason: "time: more than 3 years in the past" };
+  }
+  let temperature = p.temperature ?? null;
+  if (temperature != null && (p.unit === "F" || p.unit === "f")) temperature = ((temperature - 32) * 5) / 9;
+  const lim = LIMITS[opts.kind];
+  if (temperature != null && (temperature < lim.tMin || temperature > lim.tMax)) {
+    return {
+      ok: false,
+      reason: `temperature: ${round1(temperature)} °C is outside what ${opts.kind === "indoor" ? "an indoor" : "this"} spot can see (${lim.tMin} to ${lim.tMax} °C)`,
+    };
+  }
+  const humidity = p.humidity ?? null;
+  if (humidity != null && (humidity < 0 || humidity > 100)) {
+    return { ok: false, reason: `humidity: ${round1(humidity)} % is outside 0–100 %` };
+  }
+  const lux = p.lux ?? null;
+  if (lux != null && (lux < 0 || lux > 200_000)) return { ok: false, reason: `lux: ${round1(lux)} is outside 0–200,000` };
+  const battery = p.battery ?? null;
+  if (battery != null && (battery < 0 || battery > 100)) return { ok: false, reason: `battery: ${round1(battery)} is outside 0–100 %` };
+  return {
+    ok: true,
+    reading: { sensorId, measuredAt: new Date(Math.floor(measuredAt.getTime() / 1000) * 1000), temperature, humidity, lux, battery },
+  };
+}
+
+const round1 = (n: number) => Math.round(n * 10) / 10;
+
+export type TopicMatch = { sensorId: number; channel: ChannelTopic | "reading" } | null;
+
+/** nichewise/sensors/<id>/reading (JSON) or nichewise/sensors/<id>/<channel> (a plain number). */
+export function parseTopic(topic: string): TopicMatch {
+  const parts = topic.split("/");
+  if (parts.length !== 4 || `${parts[0]}/${parts[1]}` !== TOPIC_PREFIX) return null;
+  const sensorId = Number(parts[2]);
+  if (!Number.isInteger(sensorId) || sensorId <= 0 || String(sensorId) !== parts[2]) return null;
+  const channel = parts[3];
+  if (channel === "reading" || (CHANNEL_TOPICS as readonly string[]).includes(channel)) {
+    return { sensorId, channel: channel as ChannelTopic | "reading" };
+  }
+  return null;
+}
+
+/** Turns the bytes of one MQTT message into a payload object, or the reason it can't be read. */
+export function decodeMessage(
+  channel: ChannelTopic | "reading",
+  bytes: Uint8Array,
+): { ok: true; payload: ReadingPayload } | { ok: false; reason: string } {
+  if (bytes.length === 0) return { ok: false, reason: "empty payload" };
+  if (bytes.length > MAX_PAYLOAD_BYTES) return { ok: false, reason: `payload over ${MAX_PAYLOAD_BYTES} bytes` };
+  let text: string;
+  try {
+    text = new TextDecoder("utf-8", { fatal: true }).decode(bytes).replace(/^\uFEFF/, "").trim();
+  } catch {
+    return { ok: false, reason: "payload is not UTF-8 text" };
+  }
+  if (channel !== "reading") {
+    if (!/^-?\d+(\.\d+)?([eE][-+]?\d+)?$/.test(text)) return { ok: false, reason: `${channel}: plain payload is not a number` };
+    return { ok: true, payload: { [channel]: Number(text) } };
+  }
+  let value: unknown;
+  try {
+    value = JSON.parse(text);
+  } catch {
+    return { ok: false, reason: "payload is not JSON" };
+  }
+  if (typeof value !== "object" || value === null || Array.isArray(value)) {
+    return { ok: false, reason: "payload is not a JSON object" };
+  }
+  return { ok: true, payload: value as ReadingPayload };
+}

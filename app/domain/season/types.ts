@@ -1,0 +1,111 @@
+/** One hourly rollup per spot-hour as stored (calibrated values). */
+export type HourlyRollup = {
+  hour: Date; // UTC instant of the start of the local hour
+  tN: number;
+  tMin: number | null;
+  tMax: number | null;
+  tSum: number | null; // temperature °C
+  hN: number;
+  hMin: number | null;
+  hMax: number | null;
+  hSum: number | null; // relative humidity %
+  dpMarginMin: number | null; // lowest (air temperature − dew point) in the hour, °C
+  luxN: number;
+  luxSum: number | null; // lux samples in the hour and their sum (mean = luxSum/luxN)
+};
+
+export type Site = { latitude: number; longitude: number; timeZone: string }; // IANA zone
+
+export type Hemisphere = "northern" | "southern";
+export type SeasonName = "winter" | "spring" | "summer" | "autumn";
+
+export type ThresholdCount = {
+  thresholdC: number;
+  /** Hours whose hourly mean temperature was below the threshold. */
+  hours: number;
+  /** Local days whose lowest temperature fell below the threshold. */
+  nights: number;
+};
+
+export type Coverage = {
+  hoursObserved: number;
+  /** Local days with at least MIN_HOURS_FOR_DAY hours of temperature. */
+  daysObserved: number;
+  /** Calendar days of the period's months (full months, whatever the requested range). */
+  daysInPeriod: number;
+  /** Calendar days of the period that fall inside the requested range. */
+  daysInRange: number;
+  enough: boolean;
+};
+
+export type PeriodStats = {
+  temperature: {
+    lowest: number | null;
+    highest: number | null;
+    /** Percentiles of hourly mean temperature (hour-weighted), not of raw samples. */
+    p05: number | null;
+    p95: number | null;
+    meanDailyLow: number | null;
+    meanDailyHigh: number | null;
+    meanDayNightDifference: number | null;
+    daysWithDayAndNight: number;
+  };
+  humidity: { lowest: number | null; highest: number | null; mean: number | null };
+  below: ThresholdCount[];
+  /** Hours whose lowest dew-point margin was under CONDENSATION_MARGIN_C. */
+  condensationHours: number;
+  light: { meanDli: number | null; daysWithLight: number };
+  coverage: Coverage;
+};
+
+export type MonthProfile = PeriodStats & {
+  key: string; // "2026-01"
+  year: number;
+  month: number; // 1–12
+};
+
+export type SeasonPeriodProfile = PeriodStats & {
+  key: string; // "2025-12/2026-02"
+  season: SeasonName;
+  label: string; // "winter 2025–26"
+  months: string[]; // month keys of the season inside the range
+};
+
+export type MonthOfYearProfile = PeriodStats & {
+  key: string; // "01"
+  month: number; // 1–12
+  name: string; // "January"
+  monthsIncluded: string[]; // month keys aggregated, e.g. ["2025-01", "2026-01"]
+};
+
+export type DaySummary = {
+  key: string; // "2026-01-05", local calendar day
+  monthKey: string;
+  month: number; // 1–12
+  /** Sequential local day number (days since 1970-01-01 in local time), for runs and windows. */
+  dayNumber: number;
+  hoursObserved: number;
+  /** Whether the day has enough hours to count as observed. */
+  complete: boolean;
+  low: number | null;
+  high: number | null;
+  dayHours: number;
+  nightHours: number;
+  dayNightDifference: number | null;
+  lightHours: number;
+  /** Only for days with at least MIN_LIGHT_HOURS_FOR_DLI hours of light samples. */
+  dli: number | null;
+};
+
+export type SeasonProfile = {
+  timeZone: string;
+  hemisphere: Hemisphere;
+  from: Date;
+  to: Date;
+  thresholds: number[];
+  months: MonthProfile[];
+  seasons: SeasonPeriodProfile[];
+  /** All Januaries together, all Februaries together, … — the profile a grower reads. */
+  year: MonthOfYearProfile[];
+  days: DaySummary[];
+};

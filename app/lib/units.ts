@@ -1,0 +1,15 @@
+// Display units. Values are stored in °C; the user's preference only changes what is shown.
+export type TempUnit = "C" | "F";
+
+export const toUnit = (c: number, unit: TempUnit) => (unit === "F" ? (c * 9) / 5 + 32 : c);
+export const deltaToUnit = (dc: number, unit: TempUnit) => (unit === "F" ? (dc * 9) / 5 : dc);
+
+export function formatTemp(c: number | null | undefined, unit: TempUnit, digits = 1) {
+  if (c == null || Number.isNaN(c)) return "–";
+  return `${toUnit(c, unit).toFixed(digits)} °${unit}`;
+}
+
+export function formatDelta(dc: number | null | undefined, unit: TempUnit, digits = 1) {
+  if (dc == null || Number.isNaN(dc)) return "–";
+  return `${deltaToUnit(dc, unit).toFixed(digits)} °${unit}`;
+}

@@ -1,0 +1,253 @@
+import { data, useFetcher } from "react-router";
+import { useState } from "react";
+import { requireSiteRole, WRITERS } from "~/.server/auth";
+import { readLimited } from "~/.server/ingest/http";
+import { convertRows, CsvLimitError, importCsv, parseCsv } from "~/.server/ingest/csv-import";
+import { getSensor, getSite, listSensors } from "~/.server/sites";
+import { CSV_MAX_BYTES, CSV_MAX_ROWS, DATE_FORMATS, guessMapping, type CsvMapping, type DateFormat } from "~/domain/ingest/csv";
+import { isTimeZone } from "~/lib/forms";
+import { formatInZone } from "~/lib/time";
+import type { Route } from "./+types/import";
+
+export const meta: Route.MetaFunction = () => [{ title: "Import CSV · Nichewise" }];
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const { siteId } = await requireSiteRole(request, params.siteId, WRITERS);
+  return { site: await getSite(siteId), sensors: await listSensors(siteId) };
+}
+
+type Preview = {
+  headers: string[];
+  mapping: Omit<CsvMapping, "timeZone" | "dateFormat">;
+  rows: { line: number; measuredAt: string; temperature: number | null; humidity: number | null; lux: number | null }[];
+  failed: { line: number; reason: string }[];
+  total: number;
+};
+
+export async function action({ request, params }: Route.ActionArgs) {
+  const { siteId } = await requireSiteRole(request, params.siteId, WRITERS);
+  const site = await getSite(siteId);
+  // The size limit is enforced on the stream, before anything is parsed (multipart overhead allowed).
+  const body = await readLimited(request.clone(), CSV_MAX_BYTES + 64 * 1024);
+  if (body === null) return data({ error: `The file is over ${CSV_MAX_BYTES / 1024 / 1024} MB; split it and import the parts.` }, { status: 413 });
+  const form = await request.formData();
+  const file = form.get("file");
+  if (!(file instanceof File) || file.size === 0) return data({ error: "Choose a CSV file." }, { status: 400 });
+  const sensor = await getSensor(siteId, String(form.get("sensorId") ?? ""));
+  const timeZone = String(form.get("timeZone") || site.timeZone);
+  if (!isTimeZone(timeZone)) return data({ error: "Choose a time zone from the list." }, { status: 400 });
+  const dateFormat = (DATE_FORMATS as readonly string[]).includes(String(form.get("dateFormat"))) ? (String(form.get("dateFormat")) as DateFormat) : "iso";
+  let parsed: ReturnType<typeof parseCsv>;
+  try {
+    parsed = parseCsv(new Uint8Array(await file.arrayBuffer()));
+  } catch (err) {
+    if (err instanceof CsvLimitError) return data({ error: err.message }, { status: 413 });
+    return data({ error: `The file could not be read as CSV: ${(err as Error).message}` }, { status: 400 });
+  }
+  if (parsed.rows.length === 0) return data({ error: "The file has no rows." }, { status: 400 });
+  const guess = guessMapping(parsed.headers);
+  const col = (name: string, fallback: number | null) => {
+    const v = form.get(name);
+    if (v === null) return fallback;
+    if (v === "") return null;
+    const n = Number(v);
+    return Number.isInteger(n) && n >= 0 && n < parsed.headers.length ? n : fallback;
+  };
+  const mapping: CsvMapping = {
+    timestamp: col("timestamp", guess.timestamp) ?? guess.timestamp,
+    temperature: col("temperature", guess.temperature),
+    humidity: col("humidity", guess.humidity),
+    lux: col("lux", guess.lux),
+    unit: form.get("unit") === "F" ? "F" : form.get("unit") === "C" ? "C" : guess.unit,
+    dateFormat,
+    timeZone,
+  };
+  if (form.get("intent") === "import") {
+    const result = await importCsv(parsed.rows, mapping, sensor.id);
+    return { imported: result };
+  }
+  const sample = await convertRows(parsed.rows, mapping, sensor.id, 200);
+  const preview: Preview = {
+    headers: parsed.headers,
+    mapping,
+    rows: sample.ok.slice(0, 10).map((r, i) => ({
+      line: i + 2,
+      measuredAt: formatInZone(r.measuredAt, site.timeZone, { second: "2-digit" }),
+      temperature: r.temperature,
+      humidity: r.humidity,
+      lux: r.lux,
+    })),
+    failed: sample.failed.slice(0, 10),
+    total: parsed.rows.length,
+  };
+  return { preview };
+}
+
+const zones = typeof Intl.supportedValuesOf === "function" ? Intl.supportedValuesOf("timeZone") : ["UTC"];
+
+export default function Import({ loaderData }: Route.ComponentProps) {
+  const { site, sensors } = loaderData;
+  const fetcher = useFetcher<typeof action>();
+  const [key, setKey] = useState(0);
+  const result = fetcher.data;
+  const preview = result && "preview" in result ? result.preview : undefined;
+  const imported = result && "imported" in result ? result.imported : undefined;
+  const busy = fetcher.state !== "idle";
+  const importing = busy && fetcher.formData?.get("intent") === "import";
+  return (
+    <div className="max-w-4xl space-y-6">
+      <p className="text-muted">
+        Many loggers export CSV. Up to {CSV_MAX_BYTES / 1024 / 1024} MB and {CSV_MAX_ROWS.toLocaleString("en")} rows per file; a file imported twice
+        adds nothing the second time.
+      </p>
+      <fetcher.Form method="post" encType="multipart/form-data" className="card space-y-5" key={key}>
+        <div>
+          <label className="label" htmlFor="file">
+            CSV file
+          </label>
+          <input id="file" name="file" type="file" accept=".csv,.txt,text/csv" className="field" required />
+        </div>
+        <div className="grid gap-4 sm:grid-cols-2">
+          <div>
+            <label className="label" htmlFor="sensorId">
+              Readings from sensor
+            </label>
+            <select id="sensorId" name="sensorId" className="field" required defaultValue={sensors[0]?.id}>
+              {sensors.map((s) => (
+                <option key={s.id} value={s.id}>
+                  {s.name}
+                  {s.spotName ? ` (in ${s.spotName})` : ""}
+                </option>
+              ))}
+            </select>
+            <p className="hint">Readings go to the spot the sensor was in at each timestamp.</p>
+          </div>
+          <div>
+            <label className="label" htmlFor="dateFormat">
+              Dates are written
+            </label>
+            <select id="dateFormat" name="dateFormat" className="field" defaultValue="iso">
+              <option value="iso">2026-03-01 18:30 (year first)</option>
+              <option value="dmy">01/03/2026 18:30 (day first)</option>
+              <option value="mdy">03/01/2026 6:30 PM (month first)</option>
+              <option value="epoch">Seconds since 1970</option>
+            </select>
+          </div>
+          <div>
+            <label className="label" htmlFor="timeZone">
+              Time zone of times without one
+            </label>
+            <select id="timeZone" name="timeZone" className="field" defaultValue={site.timeZone}>
+              {zones.map((z) => (
+                <option key={z} value={z}>
+                  {z.replace(/_/g, " ")}
+                </option>
+              ))}
+            </select>
+          </div>
+          <div>
+            <label className="label" htmlFor="unit">
+              Temperatures in
+            </label>
+            <select id="unit" name="unit" className="field" defaultValue={preview?.mapping.unit ?? "C"}>
+              <option value="C">°C</option>
+              <option value="F">°F</option>
+            </select>
+          </div>
+        </div>
+        {preview ? (
+          <fieldset className="grid gap-4 sm:grid-cols-4">
+            <legend className="label mb-2">Columns</legend>
+            {(["timestamp", "temperature", "humidity", "lux"] as const).map((c) => (
+              <div key={c}>
+                <label className="text-sm text-muted" htmlFor={`col-${c}`}>
+                  {c === "lux" ? "light (lux)" : c}
+                </label>
+                <select id={`col-${c}`} name={c} className="field" defaultValue={preview.mapping[c] ?? ""}>
+                  {c !== "timestamp" ? <option value="">none</option> : null}
+                  {preview.headers.map((h, i) => (
+                    <option key={i} value={i}>
+                      {h}
+                    </option>
+                  ))}
+                </select>
+              </div>
+            ))}
+          </fieldset>
+        ) : null}
+        {result && "error" in result ? (
+          <p className="error" role="alert">
+            {result.error}
+          </p>
+        ) : null}
+        <div className="flex flex-wrap gap-3">
+          <button className="btn-quiet" name="intent" value="preview" disabled={busy}>
+            {preview ? "Update preview" : "Preview"}
+          </button>
+          {preview ? (
+            <button className="btn" name="intent" value="import" disabled={busy}>
+              {importing ? `Importing ${preview.total.toLocaleString("en")} rows…` : `Import ${preview.total.toLocaleString("en")} rows`}
+            </button>
+          ) : null}
+        </div>
+        {importing ? <div className="h-1.5 w-full animate-pulse rounded bg-accent/40" role="progressbar" aria-label="Importing" /> : null}
+      </fetcher.Form>
+
+      {preview ? (
+        <section className="card" data-testid="csv-preview">
+          <h2 className="h2 mb-3">As they will be stored</h2>
+          <div className="overflow-x-auto">
+            <table className="table">
+              <thead>
+                <tr>
+                  <th>Row</th>
+                  <th>Time ({site.timeZone})</th>
+                  <th>°C</th>
+                  <th>% RH</th>
+                  <th>lux</th>
+                </tr>
+              </thead>
+              <tbody>
+                {preview.rows.map((r) => (
+                  <tr key={r.line}>
+                    <td>{r.line}</td>
+                    <td>{r.measuredAt}</td>
+                    <td>{r.temperature?.toFixed(2) ?? "–"}</td>
+                    <td>{r.humidity?.toFixed(1) ?? "–"}</td>
+                    <td>{r.lux ?? "–"}</td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+          </div>
+          {preview.failed.length > 0 ? (
+            <div className="mt-4">
+              <h3 className="font-semibold text-poor">Rows that will be skipped (of the first 200)</h3>
+              <ul className="mt-1 list-disc pl-5 text-sm" data-testid="csv-failures">
+                {preview.failed.map((f) => (
+                  <li key={f.line}>
+                    Row {f.line}: {f.reason}
+                  </li>
+                ))}
+              </ul>
+            </div>
+          ) : null}
+        </section>
+      ) : null}
+
+      {imported ? (
+        <section className="card" data-testid="csv-result" role="status">
+          <h2 className="h2">Imported</h2>
+          <p className="mt-2">
+            {imported.stored.toLocaleString("en")} new readings stored of {imported.rows.toLocaleString("en")} rows
+            {imported.duplicates > 0 ? `; ${imported.duplicates.toLocaleString("en")} were already stored` : ""}
+            {imported.failed > 0 ? `; ${imported.failed.toLocaleString("en")} rows skipped` : ""}.
+          </p>
+          <button type="button" className="btn-quiet mt-3" onClick={() => setKey((k) => k + 1)}>
+            Import another file
+          </button>
+        </section>
+      ) : null}
+    </div>
+  );
+}

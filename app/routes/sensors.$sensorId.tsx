@@ -1,0 +1,317 @@
+import { parseWithZod } from "@conform-to/zod/v4";
+import { eq } from "drizzle-orm";
+import { useEffect, useState } from "react";
+import { data, Form, redirect, useFetcher, useNavigation } from "react-router";
+import { ALL_ROLES, hashPassword, requireSiteRole, WRITERS } from "~/.server/auth";
+import { db } from "~/.server/db";
+import { env } from "~/.server/env";
+import { runningBroker } from "~/.server/ingest/broker";
+import { rebuildRollups, spotsOfSensor } from "~/.server/ingest/rollups";
+import { invalidateSensorCache } from "~/.server/ingest/sensors";
+import { PlacementError, placeSensor, removeSensorFromSpot } from "~/.server/placements";
+import { newSensorSecret } from "~/.server/secrets";
+import { getSensor, getSite, getSpot, listSpots, placementHistory } from "~/.server/sites";
+import { PlaceSensorForm, PlacementHistory, PlacingTips } from "~/components/placement";
+import { auditLog, sensors } from "~/db/schema.server";
+import { calibrationSchema, placeSchema } from "~/lib/forms";
+import { formatInZone, parseLocalDateTime, timeAgo } from "~/lib/time";
+import type { Route } from "./+types/sensors.$sensorId";
+
+export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.sensor.name ?? "Sensor"} · Nichewise` }];
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const { siteId, role } = await requireSiteRole(request, params.siteId, ALL_ROLES);
+  const sensor = await getSensor(siteId, params.sensorId);
+  const site = await getSite(siteId);
+  const e = env();
+  const origin = new URL(request.url).origin;
+  return {
+    role,
+    site,
+    sensor: { ...sensor, secretHash: undefined },
+    spots: await listSpots(siteId),
+    history: await placementHistory({ sensorId: sensor.id }),
+    connect: {
+      host: e.MQTT_PUBLIC_HOST ?? (e.MQTT_HOST === "0.0.0.0" ? new URL(request.url).hostname : e.MQTT_HOST),
+      port: runningBroker()?.port ?? e.MQTT_PORT,
+      wsPort: runningBroker()?.wsPort ?? e.MQTT_WS_PORT,
+      httpUrl: `${origin}/api/ingest`,
+    },
+  };
+}
+
+export async function action({ request, params }: Route.ActionArgs) {
+  const form = await request.formData();
+  const intent = String(form.get("intent") ?? "");
+  const owner = intent === "save" || intent === "rotate" || intent === "delete";
+  const { siteId, user } = await requireSiteRole(request, params.siteId, owner ? ["owner"] : WRITERS);
+  const sensor = await getSensor(siteId, params.sensorId);
+  const site = await getSite(siteId);
+
+  if (intent === "place") {
+    const submission = parseWithZod(form, { schema: placeSchema });
+    if (submission.status !== "success") return data({ placeError: "Choose a spot." }, { status: 400 });
+    await getSpot(siteId, submission.value.spotId);
+    let at = new Date();
+    if (submission.value.when === "earlier") {
+      const parsed = submission.value.at ? parseLocalDateTime(submission.value.at, site.timeZone) : null;
+      if (!parsed) return data({ placeError: "Enter the date and time it was moved." }, { status: 400 });
+      at = parsed;
+    }
+    try {
+      await placeSensor({ siteId, sensorId: sensor.id, spotId: submission.value.spotId, at, actorId: user.id });
+    } catch (err) {
+      if (err instanceof PlacementError) return data({ placeError: err.message }, { status: 400 });
+      throw err;
+    }
+    return { placed: true };
+  }
+  if (intent === "unplace") {
+    await removeSensorFromSpot({ siteId, sensorId: sensor.id, at: new Date(), actorId: user.id });
+    return { placed: false };
+  }
+  if (intent === "save") {
+    const submission = parseWithZod(form, { schema: calibrationSchema });
+    if (submission.status !== "success") return data({ result: submission.reply() }, { status: 400 });
+    const { name, ...offsets } = submission.value;
+    const calibration = Object.fromEntries(Object.entries(offsets).filter(([, v]) => v != null && v !== 0));
+    const changed = JSON.stringify(calibration) !== JSON.stringify(sensor.calibration);
+    await db().update(sensors).set({ name, calibration }).where(eq(sensors.id, sensor.id));
+    await db().insert(auditLog).values({ siteId, actorId: user.id, action: "sensor.update", detail: { sensorId: sensor.id, name, calibration } });
+    if (changed) {
+      invalidateSensorCache(sensor.id);
+      await rebuildRollups(await spotsOfSensor(sensor.id));
+    }
+    return { saved: true };
+  }
+  if (intent === "rotate") {
+    const secret = newSensorSecret();
+    await db().update(sensors).set({ secretHash: await hashPassword(secret) }).where(eq(sensors.id, sensor.id));
+    invalidateSensorCache(sensor.id);
+    runningBroker()?.disconnectSensor(sensor.id);
+    await db().insert(auditLog).values({ siteId, actorId: user.id, action: "sensor.rotate-secret", detail: { sensorId: sensor.id } });
+    return redirect(`/sites/${siteId}/sensors/${sensor.id}?new=1#secret=${secret}`);
+  }
+  if (intent === "delete") {
+    if (form.get("confirm") !== sensor.name) return data({ deleteError: `Type “${sensor.name}” to delete it.` }, { status: 400 });
+    const spotIds = await spotsOfSensor(sensor.id);
+    await db().delete(sensors).where(eq(sensors.id, sensor.id));
+    await db().execute(`DELETE FROM readings WHERE sensor_id = ${sensor.id}`);
+    invalidateSensorCache(sensor.id);
+    runningBroker()?.disconnectSensor(sensor.id);
+    await rebuildRollups(spotIds);
+    await db().insert(auditLog).values({ siteId, actorId: user.id, action: "sensor.delete", detail: { sensorId: sensor.id, name: sensor.name } });
+    return redirect(`/sites/${siteId}/sensors`);
+  }
+  throw data("Unknown action", { status: 400 });
+}
+
+function useSecretFromFragment() {
+  const [secret, setSecret] = useState<string | null>(null);
+  useEffect(() => {
+    const m = /secret=([a-z2-7]+)/.exec(window.location.hash);
+    if (m) {
+      setSecret(m[1]);
+      // Keep it out of the history and of anything copied from the address bar.
+      window.history.replaceState(window.history.state, "", window.location.pathname + window.location.search);
+    }
+  }, []);
+  return secret;
+}
+
+export default function SensorPage({ loaderData, actionData }: Route.ComponentProps) {
+  const { sensor, spots, history, site, role, connect } = loaderData;
+  const secret = useSecretFromFragment();
+  const navigation = useNavigation();
+  const current = history.find((p) => p.toAt === null);
+  const status = useFetcher<{ lastSeenAt: string | null; battery: number | null; latest: { measuredAt: string; temperature: number | null; humidity: number | null } | null }>();
+  const [firstSeenLive, setFirstSeenLive] = useState(false);
+  const lastSeenAt = status.data?.lastSeenAt ?? sensor.lastSeenAt;
+
+  useEffect(() => {
+    const poll = () => {
+      if (document.visibilityState === "visible") status.load(`/api/sites/${site.id}/sensors/${sensor.id}/status`);
+    };
+    const t = setInterval(poll, lastSeenAt ? 15000 : 3000);
+    return () => clearInterval(t);
+  }, [site.id, sensor.id, Boolean(lastSeenAt)]);
+
+  useEffect(() => {
+    if (!sensor.lastSeenAt && status.data?.lastSeenAt) setFirstSeenLive(true);
+  }, [sensor.lastSeenAt, status.data?.lastSeenAt]);
+
+  const shownSecret = secret ?? "YOUR-SENSOR-SECRET";
+  const topic = `nichewise/sensors/${sensor.id}/reading`;
+  const example = `{"time":"2026-12-01T21:00:00Z","temperature":18.4,"humidity":56}`;
+  const mosquitto = `mosquitto_pub -h ${connect.host} -p ${connect.port} -q 1 -u ${sensor.id} -P '${shownSecret}' -t ${topic} -m '{"temperature":18.4,"humidity":56}'`;
+  const curl = `curl -X POST ${connect.httpUrl} -H 'Authorization: Bearer ${sensor.id}.${shownSecret}' -H 'Content-Type: application/json' -d '{"readings":[${example}]}'`;
+
+  return (
+    <div className="grid gap-6 lg:grid-cols-[1fr_22rem]">
+      <div className="space-y-6">
+        <section className="card">
+          <div className="flex flex-wrap items-baseline justify-between gap-2">
+            <h2 className="h2">{sensor.name}</h2>
+            <p className="text-sm text-muted">Sensor id {sensor.id} · reports {sensor.channels.join(", ")}</p>
+          </div>
+          <div aria-live="polite" className="mt-4">
+            {firstSeenLive ? (
+              <p className="rounded-lg bg-good/10 px-3 py-2 font-medium text-good" data-testid="first-reading">
+                First reading received — the sensor is connected.
+                {status.data?.latest?.temperature != null ? ` ${status.data.latest.temperature.toFixed(1)} °C` : ""}
+                {status.data?.latest?.humidity != null ? `, ${Math.round(status.data.latest.humidity)} % RH` : ""}
+              </p>
+            ) : lastSeenAt ? (
+              <p className="text-sm">
+                Last heard {timeAgo(lastSeenAt)} ({formatInZone(lastSeenAt, site.timeZone)})
+                {(status.data?.battery ?? sensor.battery) != null ? ` · battery ${Math.round((status.data?.battery ?? sensor.battery)!)} %` : ""}
+              </p>
+            ) : (
+              <p className="rounded-lg bg-paper px-3 py-2 text-sm text-muted" data-testid="waiting">
+                Waiting for the first reading… this page notices it without a reload.
+              </p>
+            )}
+          </div>
+        </section>
+
+        {role === "owner" ? (
+          <section className="card space-y-4">
+            <h2 className="h2">Connect it</h2>
+            {secret ? (
+              <div className="rounded-lg border border-care/40 bg-care/10 p-3">
+                <p className="text-sm font-semibold">The sensor's secret — shown this once:</p>
+                <code className="mt-1 block text-base break-all" data-testid="secret">
+                  {secret}
+                </code>
+                <p className="mt-1 text-sm text-muted">Copy it into the sensor now. It is stored only as a hash; if you lose it, make a new one below.</p>
+              </div>
+            ) : (
+              <p className="text-sm text-muted">The secret was shown when the sensor was added. Lost it? Make a new one at the bottom of this page.</p>
+            )}
+            <dl className="grid grid-cols-[8rem_1fr] gap-x-3 gap-y-1 text-sm">
+              <dt className="text-muted">MQTT broker</dt>
+              <dd>
+                {connect.host}:{connect.port} (WebSocket {connect.wsPort})
+              </dd>
+              <dt className="text-muted">User name</dt>
+              <dd>
+                <code>{sensor.id}</code>
+              </dd>
+              <dt className="text-muted">Password</dt>
+              <dd>the secret</dd>
+              <dt className="text-muted">Topic</dt>
+              <dd>
+                <code className="break-all">{topic}</code>
+              </dd>
+              <dt className="text-muted">QoS</dt>
+              <dd>1 (the broker acknowledges only once the reading is stored)</dd>
+            </dl>
+            <p className="text-sm">
+              Payload: a JSON object with any of <code>temperature</code> (°C, or °F with <code>"unit":"F"</code>), <code>humidity</code> (%),{" "}
+              <code>lux</code>, <code>battery</code> (%) and an optional <code>time</code> (ISO 8601 with a zone, or epoch seconds). Firmwares that
+              publish plain numbers can use <code>nichewise/sensors/{sensor.id}/temperature</code> (or <code>/humidity</code>, <code>/lux</code>,{" "}
+              <code>/battery</code>).
+            </p>
+            <CopyBlock label="Try it from a computer (mosquitto_pub)" text={mosquitto} testId="mosquitto" />
+            <CopyBlock label="Or over HTTP" text={curl} testId="curl" />
+          </section>
+        ) : null}
+
+        {role !== "mentor" ? (
+          <section className="card space-y-4">
+            <h2 className="h2">{current ? "Move it" : "Place it"}</h2>
+            <PlacingTips />
+            <PlaceSensorForm
+              spots={spots.filter((s) => s.id !== current?.spotId).map((s) => ({ id: s.id, name: s.name }))}
+              timeZone={site.timeZone}
+              error={actionData && "placeError" in actionData ? actionData.placeError : undefined}
+              busy={navigation.state !== "idle"}
+            />
+            {current ? (
+              <Form method="post">
+                <input type="hidden" name="intent" value="unplace" />
+                <button className="btn-quiet">Take it out of {current.spotName}</button>
+              </Form>
+            ) : null}
+          </section>
+        ) : null}
+      </div>
+
+      <aside className="space-y-6">
+        <section className="card">
+          <h2 className="h2 mb-3">Where it has been</h2>
+          <PlacementHistory rows={history} timeZone={site.timeZone} show="spot" />
+        </section>
+        {role === "owner" ? (
+          <>
+            <section className="card">
+              <h2 className="h2 mb-3">Name and calibration</h2>
+              <Form method="post" className="space-y-3">
+                <input type="hidden" name="intent" value="save" />
+                <div>
+                  <label className="label" htmlFor="name">
+                    Name
+                  </label>
+                  <input id="name" name="name" className="field" defaultValue={sensor.name} required />
+                </div>
+                <p className="hint">
+                  Offsets are added to what the sensor reports (raw readings stay as received). Check humidity against a salt test: a
+                  sealed bag with damp table salt reads about 75 % RH.
+                </p>
+                {(["temperature", "humidity", "lux"] as const).map((c) => (
+                  <div key={c}>
+                    <label className="label" htmlFor={`cal-${c}`}>
+                      {c === "temperature" ? "Temperature offset (°C)" : c === "humidity" ? "Humidity offset (% RH)" : "Light offset (lux)"}
+                    </label>
+                    <input id={`cal-${c}`} name={c} className="field" inputMode="decimal" defaultValue={sensor.calibration[c] ?? ""} />
+                  </div>
+                ))}
+                {actionData && "result" in actionData && actionData.result?.error ? (
+                  <p className="error">{Object.values(actionData.result.error).flat().join(" ")}</p>
+                ) : null}
+                <button className="btn-quiet">Save</button>
+              </Form>
+            </section>
+            <section className="card space-y-4">
+              <Form method="post">
+                <input type="hidden" name="intent" value="rotate" />
+                <button className="btn-quiet w-full">Make a new secret</button>
+                <p className="hint">The old secret stops working at once and its connection is closed.</p>
+              </Form>
+              <Form method="post" className="space-y-2">
+                <input type="hidden" name="intent" value="delete" />
+                <label className="label" htmlFor="confirm">
+                  Type “{sensor.name}” to delete it and its readings
+                </label>
+                <input id="confirm" name="confirm" className="field" autoComplete="off" />
+                {actionData && "deleteError" in actionData ? <p className="error">{actionData.deleteError}</p> : null}
+                <button className="btn-danger w-full">Delete sensor</button>
+              </Form>
+            </section>
+          </>
+        ) : null}
+      </aside>
+    </div>
+  );
+}
+
+function CopyBlock({ label, text, testId }: { label: string; text: string; testId: string }) {
+  const [copied, setCopied] = useState(false);
+  return (
+    <div>
+      <div className="mb-1 flex items-center justify-between">
+        <p className="text-sm font-medium">{label}</p>
+        <button
+          type="button"
+          className="text-sm text-accent"
+          onClick={() => navigator.clipboard?.writeText(text).then(() => setCopied(true))}
+        >
+          {copied ? "Copied" : "Copy"}
+        </button>
+      </div>
+      <pre className="overflow-x-auto rounded-lg bg-ink p-3 text-xs leading-relaxed text-paper" data-testid={testId}>
+        {text}
+      </pre>
+    </div>
+  );
+}

@@ -1,0 +1,53 @@
+import { getFormProps, useForm } from "@conform-to/react";
+import { parseWithZod } from "@conform-to/zod/v4";
+import { Form, Link, redirect, useNavigation } from "react-router";
+import { clientAddress, getUser, sessionCookie, signIn } from "~/.server/auth";
+import { AuthFrame } from "~/components/auth-frame";
+import { FormErrors, TextField } from "~/components/field";
+import { safeNext, signInSchema } from "~/lib/forms";
+import type { Route } from "./+types/sign-in";
+
+export const meta: Route.MetaFunction = () => [{ title: "Sign in · Nichewise" }];
+
+export async function loader({ request }: Route.LoaderArgs) {
+  if (await getUser(request)) throw redirect("/");
+  return { next: new URL(request.url).searchParams.get("next") ?? "" };
+}
+
+export async function action({ request }: Route.ActionArgs) {
+  const submission = parseWithZod(await request.formData(), { schema: signInSchema });
+  if (submission.status !== "success") return { result: submission.reply({ hideFields: ["password"] }) };
+  const { email, password, next } = submission.value;
+  const result = await signIn(email, password, clientAddress(request));
+  if (!result.ok) return { result: submission.reply({ formErrors: [result.error], hideFields: ["password"] }) };
+  return redirect(safeNext(next), { headers: { "Set-Cookie": sessionCookie(result.token, result.expiresAt) } });
+}
+
+export default function SignIn({ loaderData, actionData }: Route.ComponentProps) {
+  const navigation = useNavigation();
+  const [form, fields] = useForm({
+    lastResult: actionData?.result,
+    defaultValue: { next: loaderData.next },
+    onValidate: ({ formData }) => parseWithZod(formData, { schema: signInSchema }),
+    shouldValidate: "onBlur",
+  });
+  return (
+    <AuthFrame title="Sign in" lead="Read back what your spots have been through, and what will grow there.">
+      <Form method="post" className="space-y-4" {...getFormProps(form)}>
+        <FormErrors errors={form.errors} />
+        <TextField meta={fields.email} label="E-mail" type="email" autoComplete="email" />
+        <TextField meta={fields.password} label="Password" type="password" autoComplete="current-password" />
+        <input type="hidden" name="next" value={loaderData.next} />
+        <button className="btn w-full" disabled={navigation.state !== "idle"}>
+          Sign in
+        </button>
+      </Form>
+      <p className="mt-6 text-sm text-muted">
+        New here?{" "}
+        <Link className="link" to={`/sign-up${loaderData.next ? `?next=${encodeURIComponent(loaderData.next)}` : ""}`}>
+          Create an account
+        </Link>
+      </p>
+    </AuthFrame>
+  );
+}

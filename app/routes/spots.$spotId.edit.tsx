@@ -1,0 +1,79 @@
+import { parseWithZod } from "@conform-to/zod/v4";
+import { eq } from "drizzle-orm";
+import { Form, redirect } from "react-router";
+import { requireSiteRole } from "~/.server/auth";
+import { db } from "~/.server/db";
+import { getSpot } from "~/.server/sites";
+import { SpotForm } from "~/components/spot-form";
+import { auditLog, spots } from "~/db/schema.server";
+import { spotSchema } from "~/lib/forms";
+import type { Route } from "./+types/spots.$spotId.edit";
+
+export const meta: Route.MetaFunction = () => [{ title: "Edit spot · Nichewise" }];
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const { siteId } = await requireSiteRole(request, params.siteId, ["owner"]);
+  return { spot: await getSpot(siteId, params.spotId) };
+}
+
+export async function action({ request, params }: Route.ActionArgs) {
+  const { siteId, user } = await requireSiteRole(request, params.siteId, ["owner"]);
+  const spot = await getSpot(siteId, params.spotId);
+  const formData = await request.formData();
+  if (formData.get("intent") === "delete") {
+    if (formData.get("confirm") !== spot.name) {
+      return { deleteError: `Type the spot's name, “${spot.name}”, to delete it.` };
+    }
+    await db().delete(spots).where(eq(spots.id, spot.id));
+    await db().insert(auditLog).values({ siteId, actorId: user.id, action: "spot.delete", detail: { spotId: spot.id, name: spot.name } });
+    return redirect(`/sites/${siteId}`);
+  }
+  const submission = parseWithZod(formData, { schema: spotSchema });
+  if (submission.status !== "success") return { result: submission.reply() };
+  const { indoor, notes, ...rest } = submission.value;
+  await db()
+    .update(spots)
+    .set({ ...rest, indoor: indoor === "indoor", notes: notes ?? "" })
+    .where(eq(spots.id, spot.id));
+  await db().insert(auditLog).values({ siteId, actorId: user.id, action: "spot.update", detail: { spotId: spot.id, ...rest } });
+  return redirect(`/sites/${siteId}/spots/${spot.id}`);
+}
+
+export default function EditSpot({ loaderData, actionData }: Route.ComponentProps) {
+  const { spot } = loaderData;
+  return (
+    <div className="max-w-xl space-y-8">
+      <div>
+        <h2 className="h2 mb-4">Edit {spot.name}</h2>
+        <div className="card">
+          <SpotForm
+            lastResult={actionData && "result" in actionData ? actionData.result : undefined}
+            defaultValue={{
+              name: spot.name,
+              indoor: spot.indoor ? "indoor" : "outdoor",
+              facing: spot.facing,
+              capacity: spot.capacity,
+              notes: spot.notes,
+            }}
+            submitLabel="Save"
+          />
+        </div>
+      </div>
+      <div className="card border-poor/30">
+        <h3 className="font-semibold text-poor">Delete this spot</h3>
+        <p className="mt-1 text-sm text-muted">
+          Its hourly history, plants list and alert rules go with it. Raw readings stay with their sensors.
+        </p>
+        <Form method="post" className="mt-4 space-y-3">
+          <input type="hidden" name="intent" value="delete" />
+          <label className="label" htmlFor="confirm">
+            Type “{spot.name}” to confirm
+          </label>
+          <input id="confirm" name="confirm" className="field" autoComplete="off" />
+          {actionData && "deleteError" in actionData ? <p className="error">{actionData.deleteError}</p> : null}
+          <button className="btn-danger">Delete spot</button>
+        </Form>
+      </div>
+    </div>
+  );
+}

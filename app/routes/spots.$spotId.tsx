@@ -1,0 +1,139 @@
+import { parseWithZod } from "@conform-to/zod/v4";
+import { useEffect, useMemo } from "react";
+import { data, Link, useFetcher, useNavigation } from "react-router";
+import { z } from "zod";
+import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
+import { latestReading } from "~/.server/series";
+import { getSensor, getSite, getSpot, listSensors, placementHistory } from "~/.server/sites";
+import { PlacementError, placeSensor } from "~/.server/placements";
+import { Chart, useSeries, type ChartSpec } from "~/components/chart";
+import { PlaceSensorForm, PlacementHistory, PlacingTips } from "~/components/placement";
+import { parseLocalDateTime, timeAgo } from "~/lib/time";
+import { formatTemp, toUnit } from "~/lib/units";
+import type { Route } from "./+types/spots.$spotId";
+
+export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.spot.name ?? "Spot"} · Nichewise` }];
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const { siteId, role, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
+  const spot = await getSpot(siteId, params.spotId);
+  const site = await getSite(siteId);
+  const [history, latest, sensors] = await Promise.all([placementHistory({ spotId: spot.id }), latestReading(spot.id), listSensors(siteId)]);
+  return { role, unit: user.temperatureUnit, site, spot, history, latest, sensors: sensors.filter((s) => s.spotId !== spot.id) };
+}
+
+const placeHere = z.object({ sensorId: z.number().int().positive(), when: z.enum(["now", "earlier"]).default("now"), at: z.string().optional() });
+
+export async function action({ request, params }: Route.ActionArgs) {
+  const { siteId, user } = await requireSiteRole(request, params.siteId, WRITERS);
+  const spot = await getSpot(siteId, params.spotId);
+  const site = await getSite(siteId);
+  const form = await request.formData();
+  if (form.get("intent") === "place") {
+    const submission = parseWithZod(form, { schema: placeHere });
+    if (submission.status !== "success") return data({ placeError: "Choose a sensor." }, { status: 400 });
+    const sensor = await getSensor(siteId, submission.value.sensorId);
+    let at = new Date();
+    if (submission.value.when === "earlier") {
+      const parsed = submission.value.at ? parseLocalDateTime(submission.value.at, site.timeZone) : null;
+      if (!parsed) return data({ placeError: "Enter the date and time it was moved." }, { status: 400 });
+      at = parsed;
+    }
+    try {
+      await placeSensor({ siteId, sensorId: sensor.id, spotId: spot.id, at, actorId: user.id });
+    } catch (err) {
+      if (err instanceof PlacementError) return data({ placeError: err.message }, { status: 400 });
+      throw err;
+    }
+    return { placed: true };
+  }
+  throw data("Unknown action", { status: 400 });
+}
+
+const hoursChart = (unit: "C" | "F"): ChartSpec => ({
+  title: "Last 48 hours",
+  unit,
+  build: (d, u) => ({
+    data: [d.t as number[], d.temp.map((v) => (v == null ? null : toUnit(v, u))), d.rh] as never,
+    series: [
+      { label: `Temperature °${u}`, stroke: "#c4472f", width: 2, value: (_s, v) => (v == null ? "–" : `${v.toFixed(1)} °${u}`) },
+      { label: "Humidity %", stroke: "#3b6ea8", width: 1.5, scale: "rh", value: (_s, v) => (v == null ? "–" : `${Math.round(v)} %`) },
+    ],
+    axes: [
+      { stroke: "#6f675c", grid: { stroke: "#e4dccd" } },
+      { stroke: "#6f675c", grid: { stroke: "#e4dccd" }, label: `°${u}`, size: 50 },
+      { stroke: "#3b6ea8", side: 1, scale: "rh", grid: { show: false }, label: "% RH", size: 50 },
+    ],
+  }),
+});
+
+export default function SpotPage({ loaderData, actionData }: Route.ComponentProps) {
+  const { spot, site, role, unit, history, sensors } = loaderData;
+  const navigation = useNavigation();
+  const live = useFetcher<{ latest: typeof loaderData.latest }>();
+  useEffect(() => {
+    const t = setInterval(() => {
+      if (document.visibilityState === "visible") live.load(`/api/sites/${site.id}/spots/${spot.id}/latest`);
+    }, 20_000);
+    return () => clearInterval(t);
+  }, [site.id, spot.id]);
+  const latest = live.data?.latest ?? loaderData.latest;
+  const series48 = useSeries(`/api/sites/${site.id}/spots/${spot.id}/series?range=48h`);
+  const spec48 = useMemo(() => hoursChart(unit), [unit]);
+
+  return (
+    <div className="space-y-6">
+      <div className="flex flex-wrap items-end justify-between gap-3">
+        <div>
+          <h2 className="text-xl font-semibold">{spot.name}</h2>
+          <p className="text-sm text-muted">
+            {spot.indoor ? "Indoors" : "Outdoors"}
+            {spot.facing !== "none" ? ` · window faces ${spot.facing}` : ""}
+            {spot.capacity ? ` · room for ${spot.capacity} pots` : ""}
+          </p>
+        </div>
+        {role === "owner" ? (
+          <Link to="edit" className="btn-quiet">
+            Edit spot
+          </Link>
+        ) : null}
+      </div>
+
+      <section className="card" aria-live="polite" data-testid="live-tile">
+        {latest ? (
+          <div className="flex flex-wrap items-baseline gap-x-6 gap-y-1">
+            <p className="text-4xl font-semibold tabular-nums">{formatTemp(latest.temp, unit)}</p>
+            <p className="text-xl tabular-nums text-muted">{latest.rh != null ? `${Math.round(latest.rh)} % RH` : ""}</p>
+            <p className="text-sm text-muted">measured {timeAgo(latest.measured_at)}</p>
+          </div>
+        ) : (
+          <p className="text-muted">No readings here yet. Place a sensor in this spot and its readings will show up here.</p>
+        )}
+      </section>
+
+      <section className="card">
+        <Chart spec={spec48} data={series48.data} testId="chart-48h" />
+        {series48.error ? <p className="error">Could not load the chart: {series48.error}</p> : null}
+      </section>
+
+      <div className="grid gap-6 lg:grid-cols-2">
+        <section className="card">
+          <h3 className="h2 mb-3">Sensors here over time</h3>
+          <PlacementHistory rows={history} timeZone={site.timeZone} show="sensor" />
+        </section>
+        {role !== "mentor" ? (
+          <section className="card space-y-3">
+            <h3 className="h2">Place a sensor here</h3>
+            <PlacingTips />
+            <PlaceSensorForm
+              sensors={sensors.map((s) => ({ id: s.id, name: s.spotName ? `${s.name} (now in ${s.spotName})` : s.name }))}
+              timeZone={site.timeZone}
+              error={actionData && "placeError" in actionData ? actionData.placeError : undefined}
+              busy={navigation.state !== "idle"}
+            />
+          </section>
+        ) : null}
+      </div>
+    </div>
+  );
+}

@@ -1,0 +1,40 @@
+import { parseWithZod } from "@conform-to/zod/v4";
+import { redirect } from "react-router";
+import { requireSiteRole } from "~/.server/auth";
+import { db } from "~/.server/db";
+import { SpotForm } from "~/components/spot-form";
+import { auditLog, spots } from "~/db/schema.server";
+import { spotSchema } from "~/lib/forms";
+import type { Route } from "./+types/spots.new";
+
+export const meta: Route.MetaFunction = () => [{ title: "Add a spot · Nichewise" }];
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  await requireSiteRole(request, params.siteId, ["owner"]);
+  return null;
+}
+
+export async function action({ request, params }: Route.ActionArgs) {
+  const { siteId, user } = await requireSiteRole(request, params.siteId, ["owner"]);
+  const submission = parseWithZod(await request.formData(), { schema: spotSchema });
+  if (submission.status !== "success") return { result: submission.reply() };
+  const { indoor, notes, ...rest } = submission.value;
+  const [spot] = await db()
+    .insert(spots)
+    .values({ siteId, ...rest, indoor: indoor === "indoor", notes: notes ?? "" })
+    .returning({ id: spots.id });
+  await db().insert(auditLog).values({ siteId, actorId: user.id, action: "spot.create", detail: { spotId: spot.id, name: rest.name } });
+  return redirect(`/sites/${siteId}/spots/${spot.id}`);
+}
+
+export default function NewSpot({ actionData }: Route.ComponentProps) {
+  return (
+    <div className="max-w-xl">
+      <h2 className="h2 mb-1">Add a spot</h2>
+      <p className="mb-4 text-muted">A candidate place for plants: one windowsill, one shelf, one bench.</p>
+      <div className="card">
+        <SpotForm lastResult={actionData?.result} submitLabel="Add spot" />
+      </div>
+    </div>
+  );
+}
