@@ -21,6 +21,7 @@ export default defineConfig({
           name: "integration",
           include: ["tests/integration/**/*.test.ts"],
           globalSetup: ["tests/integration/global-setup.ts"],
+          setupFiles: ["tests/integration/setup.ts"],
           testTimeout: 60_000,
           hookTimeout: 120_000,
           fileParallelism: false,

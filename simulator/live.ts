@@ -7,7 +7,7 @@ import mqtt, { type MqttClient } from "mqtt";
 import { coldFrontScenario, generate, type Scenario, type SimSpot } from "./model";
 import { DEMO_HOUSEHOLD, type DemoSensorCredentials } from "./demo";
 
-export const CREDENTIALS_FILE = ".data/demo-sensors.json";
+export const CREDENTIALS_FILE = process.env.NW_DEMO_CREDENTIALS ?? ".data/demo-sensors.json";
 
 export type LiveSensor = { sensorId: number; secret: string; spot: SimSpot; seed: number; scenario?: Scenario; timeScale?: { origin: number; speed: number } };
 

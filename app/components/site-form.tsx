@@ -1,8 +1,6 @@
 import { getFormProps, useForm, type SubmissionResult } from "@conform-to/react";
-import { parseWithZod } from "@conform-to/zod/v4";
 import { Form, useNavigation } from "react-router";
 import { FormErrors, SelectField, TextField } from "~/components/field";
-import { siteSchema } from "~/lib/forms";
 
 const zones = typeof Intl.supportedValuesOf === "function" ? Intl.supportedValuesOf("timeZone") : ["UTC"];
 
@@ -19,8 +17,8 @@ export function SiteForm({
   const [form, fields] = useForm({
     lastResult,
     defaultValue: defaultValue ?? { timeZone: "Europe/London" },
-    onValidate: ({ formData }) => parseWithZod(formData, { schema: siteSchema }),
-    shouldValidate: "onBlur",
+    // Validated by the action (the same zod schema); number fields round-trip more reliably that way.
+    shouldValidate: "onSubmit",
   });
   return (
     <Form method="post" className="space-y-5" {...getFormProps(form)}>

@@ -1,8 +1,7 @@
 import { getFormProps, useForm, type SubmissionResult } from "@conform-to/react";
-import { parseWithZod } from "@conform-to/zod/v4";
 import { Form, useNavigation } from "react-router";
 import { FormErrors, SelectField, TextAreaField, TextField } from "~/components/field";
-import { FACINGS, spotSchema } from "~/lib/forms";
+import { FACINGS } from "~/lib/forms";
 
 const facingLabel: Record<(typeof FACINGS)[number], string> = {
   N: "North",
@@ -29,8 +28,8 @@ export function SpotForm({
   const [form, fields] = useForm({
     lastResult,
     defaultValue: defaultValue ?? { indoor: "indoor", facing: "none", capacity: 0 },
-    onValidate: ({ formData }) => parseWithZod(formData, { schema: spotSchema }),
-    shouldValidate: "onBlur",
+    // Validated by the action (the same zod schema); number fields round-trip more reliably that way.
+    shouldValidate: "onSubmit",
   });
   return (
     <Form method="post" className="space-y-5" {...getFormProps(form)}>

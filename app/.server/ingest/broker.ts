@@ -27,7 +27,7 @@ type Holder = { running?: RunningBroker };
 const holder = ((globalThis as Record<string, unknown>).__nichewiseBroker ??= {}) as Holder;
 export const runningBroker = () => holder.running;
 
-function authError(message: string, code: 4 | 5) {
+function authError(message: string, code: 3 | 4 | 5) {
   return Object.assign(new Error(message), { returnCode: code });
 }
 
@@ -64,7 +64,8 @@ export async function startBroker(opts: {
           set.add(client);
           done(null, true);
         },
-        () => done(authError("Server unavailable", 5), false),
+        // MQTT 3.1.1 §3.2.2.3: 3 is "Server unavailable"; 5 ("not authorized") would read as a bad secret.
+        () => done(authError("Server unavailable", 3), false),
       );
     },
     authorizeSubscribe(client, sub, done) {

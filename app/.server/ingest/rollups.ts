@@ -2,6 +2,7 @@
 // placement edited or a calibration changed. The table lock waits for writer batches in flight
 // and holds new ones back until the rebuild commits, so no reading is counted twice or lost.
 import { pool } from "~/.server/db";
+import { LOCAL_HOUR_START } from "~/.server/ingest/writer";
 
 export const REBUILD_SQL = `
 INSERT INTO hourly_rollups (spot_id, hour, t_n, t_min, t_max, t_sum, h_n, h_min, h_max, h_sum, dp_margin_min, lux_n, lux_sum)
@@ -9,7 +10,7 @@ SELECT spot_id, hour, count(t)::int, min(t), max(t), sum(t), count(h)::int, min(
   min(dew_point_margin(t, h)), count(l)::int, sum(l)
 FROM (
   SELECT p.spot_id,
-    date_trunc('hour', r.measured_at AT TIME ZONE si.time_zone) AT TIME ZONE si.time_zone AS hour,
+    ${LOCAL_HOUR_START("r.measured_at", "si.time_zone")} AS hour,
     r.temperature + coalesce((s.calibration->>'temperature')::real, 0) AS t,
     least(100, greatest(0, r.humidity + coalesce((s.calibration->>'humidity')::real, 0))) AS h,
     greatest(0, r.lux + coalesce((s.calibration->>'lux')::real, 0)) AS l

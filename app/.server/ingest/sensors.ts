@@ -20,12 +20,20 @@ const TTL_MS = 10_000;
 export async function sensorInfo(id: number): Promise<SensorInfo | null> {
   const hit = holder.cache.get(id);
   if (hit && Date.now() - hit.at < TTL_MS) return hit.info;
-  const res = await pool().query<{ id: number; site_id: number; secret_hash: string; indoor: boolean | null }>(
-    `SELECT s.id, s.site_id, s.secret_hash, sp.indoor FROM sensors s
-     LEFT JOIN placements p ON p.sensor_id = s.id AND p.to_at IS NULL
-     LEFT JOIN spots sp ON sp.id = p.spot_id WHERE s.id = $1`,
-    [id],
-  );
+  let res;
+  try {
+    res = await pool().query<{ id: number; site_id: number; secret_hash: string; indoor: boolean | null }>(
+      `SELECT s.id, s.site_id, s.secret_hash, sp.indoor FROM sensors s
+       LEFT JOIN placements p ON p.sensor_id = s.id AND p.to_at IS NULL
+       LEFT JOIN spots sp ON sp.id = p.spot_id WHERE s.id = $1`,
+      [id],
+    );
+  } catch (err) {
+    // While the database is away a known sensor may still sign in (its writes are refused, so it
+    // keeps retrying); refusing the CONNECT would stop clients that give up on a refused CONNACK.
+    if (hit?.info) return hit.info;
+    throw err;
+  }
   const row = res.rows[0];
   const info: SensorInfo | null = row
     ? { id: row.id, siteId: row.site_id, secretHash: row.secret_hash, kind: row.indoor == null ? "unplaced" : row.indoor ? "indoor" : "outdoor" }

@@ -10,6 +10,15 @@ export type CommittedReading = { spotId: number; sensorId: number; measuredAt: D
 export type BatchListener = (rows: CommittedReading[]) => void | Promise<void>;
 export type WriteResult = { inserted: number };
 
+/**
+ * SQL for the instant the local hour containing `at` began: `at` minus the minutes and seconds past
+ * the local hour. Rounding the local wall time and converting it back would be ambiguous in the hour
+ * clocks go back (PostgreSQL reads the repeated wall time as the later instant, filing a reading
+ * under an hour that starts after it).
+ */
+export const LOCAL_HOUR_START = (at: string, timeZone: string) =>
+  `(${at} - ((${at} AT TIME ZONE ${timeZone}) - date_trunc('hour', ${at} AT TIME ZONE ${timeZone})))`;
+
 // Aggregate of the rows a statement really inserted, upserted into the rollups; `$1..$6` are arrays.
 const WRITE_SQL = `
 WITH input AS (
@@ -23,7 +32,8 @@ WITH input AS (
   SELECT p.spot_id, ins.sensor_id, ins.measured_at, ins.battery, si.time_zone,
     ins.temperature + coalesce((s.calibration->>'temperature')::real, 0) AS t,
     least(100, greatest(0, ins.humidity + coalesce((s.calibration->>'humidity')::real, 0))) AS h,
-    greatest(0, ins.lux + coalesce((s.calibration->>'lux')::real, 0)) AS l
+    greatest(0, ins.lux + coalesce((s.calibration->>'lux')::real, 0)) AS l,
+    ${LOCAL_HOUR_START("ins.measured_at", "si.time_zone")} AS hour
   FROM ins
   JOIN placements p ON p.sensor_id = ins.sensor_id AND p.from_at <= ins.measured_at
     AND (p.to_at IS NULL OR ins.measured_at < p.to_at)
@@ -31,11 +41,11 @@ WITH input AS (
   JOIN spots sp ON sp.id = p.spot_id
   JOIN sites si ON si.id = sp.site_id
 ), agg AS (
-  SELECT spot_id, date_trunc('hour', measured_at AT TIME ZONE time_zone) AT TIME ZONE time_zone AS hour,
+  SELECT spot_id, hour,
     count(t)::int AS t_n, min(t) AS t_min, max(t) AS t_max, sum(t) AS t_sum,
     count(h)::int AS h_n, min(h) AS h_min, max(h) AS h_max, sum(h) AS h_sum,
     min(dew_point_margin(t, h)) AS dp_margin_min, count(l)::int AS lux_n, sum(l) AS lux_sum
-  FROM placed GROUP BY 1, 2
+  FROM placed GROUP BY spot_id, hour
 ), up AS (
   INSERT INTO hourly_rollups AS r (spot_id, hour, t_n, t_min, t_max, t_sum, h_n, h_min, h_max, h_sum, dp_margin_min, lux_n, lux_sum)
   SELECT * FROM agg

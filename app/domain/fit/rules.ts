@@ -61,7 +61,8 @@ export function formatNumber(x: number): string {
   return (Object.is(r, -0) ? 0 : r).toFixed(1).replace(/\.0$/, "");
 }
 const c = (x: number) => `${formatNumber(x)} °C`;
-const plural = (n: number, one: string, many = `${one}s`) => `${n} ${n === 1 ? one : many}`;
+const counts = new Intl.NumberFormat("en-GB");
+const plural = (n: number, one: string, many = `${one}s`) => `${counts.format(n)} ${n === 1 ? one : many}`;
 
 /** The genus or group as a grower says it: "Phalaenopsis (moth orchid)" → "Phalaenopsis". */
 export function shortName(profile: PlantProfile): string {
@@ -86,15 +87,30 @@ export function cyclicOrder(months: number[]): number[] {
   return [...sorted.slice(start), ...sorted.slice(0, start)];
 }
 
-/** "in July", "in July and August", "between November and February", "in January, March and June". */
+/** Contiguous runs of months in reading order: [11, 12, 1, 3] → [[11, 12, 1], [3]]. */
+function monthRuns(months: number[]): number[][] {
+  const runs: number[][] = [];
+  for (const m of cyclicOrder(months)) {
+    const last = runs.at(-1);
+    if (last && m === (last.at(-1)! % 12) + 1) last.push(m);
+    else runs.push([m]);
+  }
+  return runs;
+}
+
+const joinAnd = (parts: string[]) => (parts.length <= 1 ? parts.join("") : `${parts.slice(0, -1).join(", ")} and ${parts.at(-1)}`);
+
+/**
+ * "in July", "in July and August", "between November and February",
+ * "in January, March and June", "in January–June and September".
+ */
 export function describeMonths(months: number[]): string {
-  const ordered = cyclicOrder(months);
-  const names = ordered.map((m) => MONTH_NAMES[m - 1]);
-  if (names.length === 0) return "";
-  if (names.length === 1) return `in ${names[0]}`;
-  const contiguous = ordered.every((m, i) => i === 0 || m === (ordered[i - 1] % 12) + 1);
-  if (contiguous && names.length >= 3) return `between ${names[0]} and ${names.at(-1)}`;
-  return `in ${names.slice(0, -1).join(", ")} and ${names.at(-1)}`;
+  const runs = monthRuns(months);
+  const name = (m: number) => MONTH_NAMES[m - 1];
+  if (runs.length === 0) return "";
+  if (runs.length === 1 && runs[0].length >= 3) return `between ${name(runs[0][0])} and ${name(runs[0].at(-1)!)}`;
+  const parts = runs.flatMap((r) => (r.length >= 3 ? [`${name(r[0])}–${name(r.at(-1)!)}`] : r.map(name)));
+  return `in ${joinAnd(parts)}`;
 }
 
 const monthsOf = (days: DaySummary[]) => cyclicOrder(days.map((d) => d.month));
@@ -160,6 +176,7 @@ export const hotDays: FitRule = (profile, season, t) => {
 
 const withHumidity = (season: SeasonProfile) => season.year.filter((m) => m.humidity.mean !== null);
 const pct = (x: number) => `${Math.round(x)} %`;
+const range = (lo: number, hi: number) => (Math.round(lo) === Math.round(hi) ? pct(lo) : `${Math.round(lo)}–${pct(hi)}`);
 
 /** Monthly mean humidity against the group's band. Dry air is fixable, so never worse than care. */
 export const humidityBand: FitRule = (profile, season) => {
@@ -173,7 +190,7 @@ export const humidityBand: FitRule = (profile, season) => {
     return {
       rule: "humidity",
       level: "ok",
-      message: `Humidity averaged ${pct(Math.min(...means))}–${pct(Math.max(...means))} month by month, inside this group's ${band}.`,
+      message: `Humidity averaged ${range(Math.min(...means), Math.max(...means))} month by month, inside this group's ${band}.`,
     };
   }
   const parts: string[] = [];
@@ -260,7 +277,7 @@ function coolSpell(profile: PlantProfile, season: SeasonProfile, t: FitThreshold
   }
   const needed = Math.ceil(window * t.coolSpellShare);
   const bestDays = days.filter((d) => d.dayNumber > first + bestEnd - width && d.dayNumber <= first + bestEnd && qualifies(d));
-  const season_ = cp.months ? ` (${cp.months})` : "";
+  const during = cp.months ? ` (${cp.months})` : "";
   if (best >= needed) {
     return {
       level: "ok",
@@ -272,13 +289,13 @@ function coolSpell(profile: PlantProfile, season: SeasonProfile, t: FitThreshold
     return {
       level: "care",
       months: [],
-      message: `It never had ${condition}; ${name} needs about ${plural(cp.weeks, "week")} of them${season_} to flower — it may grow here but not flower.`,
+      message: `It never had ${condition}; ${name} needs about ${plural(cp.weeks, "week")} of them${during} to flower — it may grow here but not flower.`,
     };
   }
   return {
     level: "care",
     months: cyclicOrder(bestDays.map((d) => d.month)),
-    message: `At best ${best} of any ${window} days had ${condition}; ${name} needs about ${plural(cp.weeks, "week")} of them${season_} to flower — it may grow here but not flower.`,
+    message: `At best ${best} of any ${window} days had ${condition}; ${name} needs about ${plural(cp.weeks, "week")} of them${during} to flower — it may grow here but not flower.`,
   };
 }
 

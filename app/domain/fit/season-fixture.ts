@@ -21,6 +21,8 @@ export type SpotYearSpec = {
   /** Months (1–12) with readings; the rest are left empty. */
   observed?: number[];
   patches?: HourPatch[];
+  /** Keep only some days of the observed months. */
+  keepDay?: (month: number, dayOfMonth: number) => boolean;
 };
 
 export const steadyRoom: (month: number) => MonthSpec = () => ({ night: 18, day: 24, rh: 60, dpMargin: 8 });
@@ -48,7 +50,7 @@ export function spotYear(spec: SpotYearSpec = {}): SeasonProfile {
   for (let ms = from; ms < to; ms += HOUR) {
     const d = new Date(ms);
     const month = d.getUTCMonth() + 1;
-    if (!observed.has(month)) continue;
+    if (!observed.has(month) || (spec.keepDay && !spec.keepDay(month, d.getUTCDate()))) continue;
     const m = monthSpec(month);
     const [rise, set] = sunFor(ms - (ms % (24 * HOUR)));
     const up = ms + HOUR / 2 >= rise && ms + HOUR / 2 < set;

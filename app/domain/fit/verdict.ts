@@ -37,8 +37,8 @@ const LEVEL_ORDER: Record<RuleLevel, number> = { poor: 0, care: 1, ok: 2 };
 
 function missingMonthsOf(season: SeasonProfile): number[] {
   const missing = new Set(season.year.filter((m) => !m.coverage.enough).map((m) => m.month));
-  // Start with the month the range ends in: that is "now" for a sensor still in place.
-  const start = season.months.at(-1)?.month ?? 1;
+  // Count from the month of the last reading (for a sensor still in place, this month) onwards.
+  const start = season.days.at(-1)?.month ?? season.months.at(-1)?.month ?? 1;
   return Array.from({ length: 12 }, (_, i) => ((start - 1 + i) % 12) + 1).filter((m) => missing.has(m));
 }
 

@@ -78,6 +78,7 @@ export function hemisphereOf(latitude: number): Hemisphere {
 const isValidDate = (d: Date | null | undefined): d is Date => d instanceof Date && !Number.isNaN(d.getTime());
 
 const sunWindows = new Map<string, { sunUp: number; sunDown: number }>();
+const SUN_CACHE_LIMIT = 100_000; // about 270 site-years; cleared rather than grown without bound
 
 /** Sunrise and sunset of one local day (suncalc), remembered: they don't change between calls. */
 function sunWindow(noonMs: number, dayNumber: number, site: Site): { sunUp: number; sunDown: number } {
@@ -92,6 +93,7 @@ function sunWindow(noonMs: number, dayNumber: number, site: Site): { sunUp: numb
     sunUp: rise ?? (up ? -Infinity : Infinity),
     sunDown: set ?? (up || rise !== null ? Infinity : -Infinity),
   };
+  if (sunWindows.size >= SUN_CACHE_LIMIT) sunWindows.clear();
   sunWindows.set(key, win);
   return win;
 }

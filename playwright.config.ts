@@ -1,0 +1,41 @@
+import { defineConfig } from "@playwright/test";
+
+// The end-to-end run starts the built app with demo data on ports and a data folder of its own.
+export const E2E = { port: 3100, pgPort: 55433, mqttPort: 18830, wsPort: 18831, sinkPort: 25250 };
+
+export default defineConfig({
+  testDir: "tests/e2e",
+  timeout: 60_000,
+  expect: { timeout: 10_000 },
+  fullyParallel: false,
+  workers: 1,
+  reporter: [["list"]],
+  outputDir: ".data/test-results",
+  use: {
+    baseURL: `http://127.0.0.1:${E2E.port}`,
+    launchOptions: {
+      executablePath: process.env.CHROMIUM_PATH ?? "/usr/bin/chromium",
+      args: ["--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run", "--disable-background-networking", "--disable-component-update", "--disable-sync"],
+    },
+    trace: "off",
+  },
+  webServer: {
+    command: "rm -rf .data/e2e && tsx app/.server/main.ts",
+    url: `http://127.0.0.1:${E2E.port}/sign-in`,
+    timeout: 180_000,
+    reuseExistingServer: false,
+    stdout: "ignore",
+    stderr: "pipe",
+    env: {
+      PORT: String(E2E.port),
+      NW_PG_PORT: String(E2E.pgPort),
+      NW_PG_DATA: ".data/e2e/postgres",
+      MQTT_PORT: String(E2E.mqttPort),
+      MQTT_WS_PORT: String(E2E.wsPort),
+      NW_SINK_PORT: String(E2E.sinkPort),
+      NW_BACKFILL_DAYS: "120",
+      NW_SIMULATOR: "0",
+      NW_DEMO_CREDENTIALS: ".data/e2e/demo-sensors.json",
+    },
+  },
+});
