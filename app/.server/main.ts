@@ -16,11 +16,21 @@ const log = (s: string) => console.log(`[nichewise] ${s}`);
 export type Running = { stop: () => Promise<void>; url: string; mqttPort: number };
 
 export async function main(opts: { dev?: boolean } = {}): Promise<Running> {
-  const e = env();
   const stops: (() => Promise<void>)[] = [];
   const stopAll = async () => {
     for (const s of stops.reverse()) await s().catch((err) => console.error(err));
   };
+  try {
+    return await startAll(opts, stops, stopAll);
+  } catch (err) {
+    // Leave nothing running (PostgreSQL above all) when start-up fails half-way.
+    await stopAll();
+    throw err;
+  }
+}
+
+async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[], stopAll: () => Promise<void>): Promise<Running> {
+  const e = env();
 
   let pg: EmbeddedPostgres | undefined;
   if (!process.env.DATABASE_URL) {

@@ -59,7 +59,7 @@ export async function seedDemo(opts: { log?: (s: string) => void; backfillDays?:
 
   if (days > 0) {
     const started = performance.now();
-    await db().execute(sql`select ensure_reading_partitions(${from.toISOString()}::timestamptz, ${days / 30 + 2}::int)`);
+    await db().execute(sql`select ensure_reading_partitions(${from.toISOString()}::timestamptz, ${Math.ceil(days / 30) + 2}::int)`);
     const { written } = await backfill({
       site: h.site,
       scenario: h.scenario,

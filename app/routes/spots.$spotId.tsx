@@ -8,6 +8,11 @@ import { getSensor, getSite, getSpot, listSensors, placementHistory } from "~/.s
 import { PlacementError, placeSensor } from "~/.server/placements";
 import { Chart, useSeries, type ChartSpec } from "~/components/chart";
 import { PlaceSensorForm, PlacementHistory, PlacingTips } from "~/components/placement";
+import { FitList, SeasonTable } from "~/components/season";
+import { YearStrip } from "~/components/year-strip";
+import { fitsFor, slimProfile, spotProfiles } from "~/.server/profiles";
+import { PLANT_LIBRARY } from "~/domain/plants/library";
+import { VERDICT_RULES } from "~/domain/fit/verdict";
 import { parseLocalDateTime, timeAgo } from "~/lib/time";
 import { formatTemp, toUnit } from "~/lib/units";
 import type { Route } from "./+types/spots.$spotId";
@@ -18,8 +23,30 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const { siteId, role, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
   const spot = await getSpot(siteId, params.spotId);
   const site = await getSite(siteId);
-  const [history, latest, sensors] = await Promise.all([placementHistory({ spotId: spot.id }), latestReading(spot.id), listSensors(siteId)]);
-  return { role, unit: user.temperatureUnit, site, spot, history, latest, sensors: sensors.filter((s) => s.spotId !== spot.id) };
+  const [history, latest, sensors, profiles] = await Promise.all([
+    placementHistory({ spotId: spot.id }),
+    latestReading(spot.id),
+    listSensors(siteId),
+    spotProfiles(site, [spot.id]),
+  ]);
+  const season = profiles.get(spot.id)!;
+  const fits = fitsFor(season);
+  const plantKey = new URL(request.url).searchParams.get("plant") ?? fits[0]?.key;
+  const plant = PLANT_LIBRARY.find((p) => p.key === plantKey) ?? null;
+  return {
+    role,
+    unit: user.temperatureUnit,
+    site,
+    spot,
+    history,
+    latest,
+    sensors: sensors.filter((s) => s.spotId !== spot.id),
+    profile: slimProfile(season),
+    fits,
+    plant: plant ? { key: plant.key, name: plant.name, minNightC: plant.minNightC, maxDayC: plant.maxDayC } : null,
+    plants: PLANT_LIBRARY.map((p) => ({ key: p.key, name: p.name })),
+    verdictRules: VERDICT_RULES,
+  };
 }
 
 const placeHere = z.object({ sensorId: z.number().int().positive(), when: z.enum(["now", "earlier"]).default("now"), at: z.string().optional() });
@@ -109,6 +136,49 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
         ) : (
           <p className="text-muted">No readings here yet. Place a sensor in this spot and its readings will show up here.</p>
         )}
+      </section>
+
+      <section className="card space-y-3">
+        <YearStrip
+          months={loaderData.profile.year}
+          unit={unit}
+          title="The last twelve months, month by month"
+          band={loaderData.plant ? { low: loaderData.plant.minNightC, high: loaderData.plant.maxDayC, label: `${loaderData.plant.name}'s comfortable range` } : null}
+        />
+        <form method="get" className="flex flex-wrap items-center gap-2 text-sm">
+          <label htmlFor="plant">Lay a plant's range over it:</label>
+          <select id="plant" name="plant" className="field w-auto" defaultValue={loaderData.plant?.key} onChange={(e) => e.currentTarget.form?.requestSubmit()}>
+            {loaderData.plants.map((p) => (
+              <option key={p.key} value={p.key}>
+                {p.name}
+              </option>
+            ))}
+          </select>
+          <noscript>
+            <button className="btn-quiet">Show</button>
+          </noscript>
+        </form>
+      </section>
+
+      <section className="card">
+        <h3 className="h2 mb-1">What would grow here</h3>
+        <p className="mb-4 text-sm text-muted">Plant groups from the library, best fit first, judged on this spot's last twelve months.</p>
+        <FitList fits={loaderData.fits} unit={unit} siteId={site.id} />
+        <details className="mt-4 text-sm">
+          <summary className="cursor-pointer font-medium">How the verdict is decided</summary>
+          <ol className="mt-2 list-decimal space-y-1 pl-5 text-muted">
+            {loaderData.verdictRules.map((r) => (
+              <li key={r.verdict}>
+                <span className="font-medium text-ink">{r.verdict}</span>: {r.when}
+              </li>
+            ))}
+          </ol>
+        </details>
+      </section>
+
+      <section className="card">
+        <h3 className="h2 mb-3">Season profile</h3>
+        <SeasonTable months={loaderData.profile.year} seasons={loaderData.profile.seasons} unit={unit} />
       </section>
 
       <section className="card">

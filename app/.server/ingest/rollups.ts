@@ -12,8 +12,8 @@ FROM (
   SELECT p.spot_id,
     ${LOCAL_HOUR_START("r.measured_at", "si.time_zone")} AS hour,
     r.temperature + coalesce((s.calibration->>'temperature')::real, 0) AS t,
-    least(100, greatest(0, r.humidity + coalesce((s.calibration->>'humidity')::real, 0))) AS h,
-    greatest(0, r.lux + coalesce((s.calibration->>'lux')::real, 0)) AS l
+    CASE WHEN r.humidity IS NOT NULL THEN least(100, greatest(0, r.humidity + coalesce((s.calibration->>'humidity')::real, 0))) END AS h,
+    CASE WHEN r.lux IS NOT NULL THEN greatest(0, r.lux + coalesce((s.calibration->>'lux')::real, 0)) END AS l
   FROM placements p
   JOIN readings r ON r.sensor_id = p.sensor_id AND r.measured_at >= p.from_at
     AND (p.to_at IS NULL OR r.measured_at < p.to_at)

@@ -20,6 +20,7 @@ export const LOCAL_HOUR_START = (at: string, timeZone: string) =>
   `(${at} - ((${at} AT TIME ZONE ${timeZone}) - date_trunc('hour', ${at} AT TIME ZONE ${timeZone})))`;
 
 // Aggregate of the rows a statement really inserted, upserted into the rollups; `$1..$6` are arrays.
+// The CASEs keep a missing channel NULL: least/greatest ignore NULLs and would turn it into 0.
 const WRITE_SQL = `
 WITH input AS (
   SELECT * FROM unnest($1::int[], $2::timestamptz[], $3::real[], $4::real[], $5::real[], $6::real[])
@@ -31,8 +32,8 @@ WITH input AS (
 ), placed AS (
   SELECT p.spot_id, ins.sensor_id, ins.measured_at, ins.battery, si.time_zone,
     ins.temperature + coalesce((s.calibration->>'temperature')::real, 0) AS t,
-    least(100, greatest(0, ins.humidity + coalesce((s.calibration->>'humidity')::real, 0))) AS h,
-    greatest(0, ins.lux + coalesce((s.calibration->>'lux')::real, 0)) AS l,
+    CASE WHEN ins.humidity IS NOT NULL THEN least(100, greatest(0, ins.humidity + coalesce((s.calibration->>'humidity')::real, 0))) END AS h,
+    CASE WHEN ins.lux IS NOT NULL THEN greatest(0, ins.lux + coalesce((s.calibration->>'lux')::real, 0)) END AS l,
     ${LOCAL_HOUR_START("ins.measured_at", "si.time_zone")} AS hour
   FROM ins
   JOIN placements p ON p.sensor_id = ins.sensor_id AND p.from_at <= ins.measured_at

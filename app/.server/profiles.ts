@@ -1,0 +1,72 @@
+// Season profiles and fits for spots, computed from the hourly rollups on each page load (a year of
+// rollups is ~8,760 rows per spot; the raw readings are never read here).
+import { pool } from "~/.server/db";
+import { rankPlantsForSpot } from "~/domain/fit/verdict";
+import { PLANT_LIBRARY } from "~/domain/plants/library";
+import { seasonProfile } from "~/domain/season/profile";
+import type { HourlyRollup } from "~/domain/season/types";
+import type { Site } from "~/db/schema.server";
+
+export async function loadRollups(spotIds: number[], from: Date, to: Date): Promise<Map<number, HourlyRollup[]>> {
+  const res = await pool().query<{
+    spot_id: number; hour: Date; t_n: number; t_min: number | null; t_max: number | null; t_sum: number | null;
+    h_n: number; h_min: number | null; h_max: number | null; h_sum: number | null; dp_margin_min: number | null; lux_n: number; lux_sum: number | null;
+  }>(
+    `SELECT spot_id, hour, t_n, t_min, t_max, t_sum, h_n, h_min, h_max, h_sum, dp_margin_min, lux_n, lux_sum
+     FROM hourly_rollups WHERE spot_id = ANY($1::int[]) AND hour >= $2 AND hour < $3 ORDER BY spot_id, hour`,
+    [spotIds, from, to],
+  );
+  const out = new Map<number, HourlyRollup[]>(spotIds.map((id) => [id, []]));
+  for (const r of res.rows) {
+    out.get(r.spot_id)!.push({
+      hour: r.hour, tN: r.t_n, tMin: r.t_min, tMax: r.t_max, tSum: r.t_sum, hN: r.h_n, hMin: r.h_min, hMax: r.h_max,
+      hSum: r.h_sum, dpMarginMin: r.dp_margin_min, luxN: r.lux_n, luxSum: r.lux_sum,
+    });
+  }
+  return out;
+}
+
+const plantThresholds = [...new Set(PLANT_LIBRARY.map((p) => p.minNightC))];
+
+/** The last twelve months of a spot (ending now), the window a grower's year strip shows. */
+export async function spotProfiles(site: Site, spotIds: number[], now = new Date()) {
+  const to = now;
+  const from = new Date(now.getTime() - 365 * 86_400_000);
+  const rollups = await loadRollups(spotIds, from, to);
+  const siteInfo = { latitude: site.latitude, longitude: site.longitude, timeZone: site.timeZone };
+  return new Map(
+    spotIds.map((id) => {
+      const season = seasonProfile(rollups.get(id)!, siteInfo, { from, to, thresholds: plantThresholds });
+      return [id, season] as const;
+    }),
+  );
+}
+
+export function fitsFor(season: ReturnType<typeof seasonProfile>) {
+  return rankPlantsForSpot(PLANT_LIBRARY, season).map(({ plant, fit }) => ({
+    key: plant.key,
+    name: plant.name,
+    category: plant.category,
+    minNightC: plant.minNightC,
+    maxDayC: plant.maxDayC,
+    verdict: fit.verdict,
+    reasons: fit.reasons.filter((r) => r.level !== "ok" || r.noData).map((r) => ({ rule: r.rule, level: r.level, message: r.message })),
+    okReasons: fit.reasons.filter((r) => r.level === "ok" && !r.noData).map((r) => r.message),
+    missingMonths: fit.missingMonths,
+    missingAdvice: fit.missingAdvice,
+  }));
+}
+
+/** The figures a page needs from a season profile, without the per-day detail. */
+export function slimProfile(season: ReturnType<typeof seasonProfile>) {
+  return {
+    hemisphere: season.hemisphere,
+    year: season.year.map(({ key, month, name, temperature, humidity, below, condensationHours, light, coverage }) => ({
+      key, month, name, temperature, humidity, below, condensationHours, light, coverage,
+    })),
+    seasons: season.seasons.map(({ key, label, season: name, temperature, humidity, below, condensationHours, light, coverage }) => ({
+      key, label, season: name, temperature, humidity, below, condensationHours, light, coverage,
+    })),
+  };
+}
+export type SlimProfile = ReturnType<typeof slimProfile>;

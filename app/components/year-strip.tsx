@@ -1,0 +1,100 @@
+// The year strip: twelve months side by side, each a bar from the month's lowest to highest with the
+// 5–95 % band and the mean daily low and high marked, and a plant's comfortable band laid over it.
+import { toUnit, type TempUnit } from "~/lib/units";
+
+export type StripMonth = {
+  key: string;
+  name: string;
+  temperature: { lowest: number | null; highest: number | null; p05: number | null; p95: number | null; meanDailyLow: number | null; meanDailyHigh: number | null };
+  coverage: { enough: boolean; daysObserved: number };
+};
+
+// The same cool-to-warm scale as every chart (see --color-t-* in app.css).
+export function tempColour(c: number) {
+  if (c < 5) return "#3b6ea8";
+  if (c < 12) return "#6aa3c8";
+  if (c < 20) return "#9bb88a";
+  if (c < 27) return "#e0a04a";
+  return "#c4472f";
+}
+
+export function YearStrip({
+  months,
+  band,
+  unit,
+  title,
+}: {
+  months: StripMonth[];
+  band?: { low: number; high: number; label: string } | null;
+  unit: TempUnit;
+  title: string;
+}) {
+  const values = months.flatMap((m) => [m.temperature.lowest, m.temperature.highest]).filter((v): v is number => v != null);
+  const lo = Math.floor(Math.min(band?.low ?? 99, ...values, 5) / 5) * 5 - 2;
+  const hi = Math.ceil(Math.max(band?.high ?? -99, ...values, 25) / 5) * 5 + 2;
+  const W = 720;
+  const H = 260;
+  const left = 44;
+  const top = 12;
+  const bottom = 36;
+  const colW = (W - left - 8) / 12;
+  const y = (c: number) => top + ((hi - c) / (hi - lo)) * (H - top - bottom);
+  const ticks: number[] = [];
+  for (let t = Math.ceil(lo / 5) * 5; t <= hi; t += 5) ticks.push(t);
+  return (
+    <figure>
+      <figcaption className="mb-2 text-sm font-medium">{title}</figcaption>
+      <svg viewBox={`0 0 ${W} ${H}`} className="h-auto w-full" role="img" aria-label={title} data-testid="year-strip">
+        {ticks.map((t) => (
+          <g key={t}>
+            <line x1={left} x2={W - 8} y1={y(t)} y2={y(t)} stroke="#e4dccd" />
+            <text x={left - 6} y={y(t) + 4} textAnchor="end" fontSize="11" fill="#6f675c">
+              {Math.round(toUnit(t, unit))}°
+            </text>
+          </g>
+        ))}
+        {band ? (
+          <g>
+            <rect x={left} width={W - 8 - left} y={y(band.high)} height={Math.max(1, y(band.low) - y(band.high))} fill="#3f7a4a" opacity="0.13" />
+            <line x1={left} x2={W - 8} y1={y(band.low)} y2={y(band.low)} stroke="#3f7a4a" strokeDasharray="4 3" />
+            <line x1={left} x2={W - 8} y1={y(band.high)} y2={y(band.high)} stroke="#3f7a4a" strokeDasharray="4 3" />
+          </g>
+        ) : null}
+        {months.map((m, i) => {
+          const cx = left + colW * i + colW / 2;
+          const t = m.temperature;
+          const faint = !m.coverage.enough;
+          return (
+            <g key={m.key} opacity={faint ? 0.45 : 1}>
+              {t.lowest != null && t.highest != null ? (
+                <>
+                  <line x1={cx} x2={cx} y1={y(t.highest)} y2={y(t.lowest)} stroke="#6f675c" strokeWidth="2" />
+                  {t.p05 != null && t.p95 != null ? (
+                    <rect x={cx - colW * 0.22} width={colW * 0.44} y={y(t.p95)} height={Math.max(2, y(t.p05) - y(t.p95))} rx="4" fill={tempColour((t.p05 + t.p95) / 2)} />
+                  ) : null}
+                  {t.meanDailyLow != null ? <line x1={cx - colW * 0.32} x2={cx + colW * 0.32} y1={y(t.meanDailyLow)} y2={y(t.meanDailyLow)} stroke="#2b2722" strokeWidth="2" /> : null}
+                  {t.meanDailyHigh != null ? <line x1={cx - colW * 0.32} x2={cx + colW * 0.32} y1={y(t.meanDailyHigh)} y2={y(t.meanDailyHigh)} stroke="#2b2722" strokeWidth="2" /> : null}
+                  {band && (t.lowest < band.low || t.highest > band.high) ? (
+                    <circle cx={cx} cy={t.lowest < band.low ? y(t.lowest) : y(t.highest)} r="4" fill="#a53a2c" />
+                  ) : null}
+                </>
+              ) : null}
+              <text x={cx} y={H - bottom + 16} textAnchor="middle" fontSize="11" fill="#2b2722">
+                {m.name.slice(0, 3)}
+              </text>
+              {faint ? (
+                <text x={cx} y={H - bottom + 29} textAnchor="middle" fontSize="9" fill="#6f675c">
+                  {m.coverage.daysObserved}d
+                </text>
+              ) : null}
+            </g>
+          );
+        })}
+      </svg>
+      <p className="mt-1 text-xs text-muted">
+        Line: the month's lowest to highest. Coloured bar: 5–95 % of hours. Black ticks: mean daily low and high.
+        {band ? ` Green strip: ${band.label}. Red dot: the month leaves it.` : ""} Faded months have too few days of readings (days shown).
+      </p>
+    </figure>
+  );
+}
