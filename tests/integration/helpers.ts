@@ -52,7 +52,7 @@ export async function makeSensor(site: { id: number }, spot?: { id: number }, pl
 /** Hourly aggregation straight from raw readings, independent of the writer's incremental upserts. */
 export async function freshRollups(spotId: number) {
   const res = await db().execute<{ hour: string; n: number; tmin: number; tmax: number; tsum: number; hn: number; hsum: number }>(sql`
-    select date_trunc('hour', r.measured_at at time zone si.time_zone) at time zone si.time_zone as hour,
+    select r.measured_at - ((r.measured_at at time zone si.time_zone) - date_trunc('hour', r.measured_at at time zone si.time_zone)) as hour,
       count(r.temperature)::int as n, min(r.temperature + coalesce((s.calibration->>'temperature')::real, 0)) as tmin,
       max(r.temperature + coalesce((s.calibration->>'temperature')::real, 0)) as tmax,
       sum(r.temperature + coalesce((s.calibration->>'temperature')::real, 0)) as tsum,

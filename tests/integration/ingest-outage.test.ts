@@ -157,7 +157,6 @@ it("keeps a sensor able to sign in through an outage longer than the broker's se
   });
   const refusals: number[] = [];
   c.on("error", (e: Error & { code?: number }) => {
-    console.log("[dbg] error", e.message, e.code);
     if (typeof e.code === "number") refusals.push(e.code);
   });
   try {
