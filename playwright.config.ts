@@ -19,8 +19,10 @@ export default defineConfig({
     },
     trace: "off",
   },
+  globalTeardown: "./tests/e2e/teardown.ts",
   webServer: {
-    command: "rm -rf .data/e2e && tsx app/.server/main.ts",
+    command: "tsx app/.server/postgres.ts stop .data/e2e/postgres; rm -rf .data/e2e && tsx app/.server/main.ts",
+    gracefulShutdown: { signal: "SIGTERM", timeout: 15_000 },
     url: `http://127.0.0.1:${E2E.port}/sign-in`,
     timeout: 180_000,
     reuseExistingServer: false,

@@ -117,3 +117,20 @@ export function embeddedPid(dataDir: string): number | undefined {
   if (!existsSync(file)) return undefined;
   return Number(readFileSync(file, "utf8").split("\n")[0]);
 }
+
+/** Stops the cluster in `dataDir` if one is running (a leftover from a killed run). */
+export function stopEmbeddedPostgres(dataDir: string) {
+  const bin = findBinDir();
+  const clusterDir = path.join(path.resolve(dataDir), "cluster");
+  if (!bin || !existsSync(path.join(clusterDir, "postmaster.pid"))) return false;
+  const args = ["stop", "-w", "-m", "fast", "-D", clusterDir];
+  const res = isRoot()
+    ? spawnSync("runuser", ["-u", "postgres", "--", path.join(bin, "pg_ctl"), ...args])
+    : spawnSync(path.join(bin, "pg_ctl"), args);
+  return res.status === 0;
+}
+
+const isEntry = process.argv[1] && path.resolve(process.argv[1]) === path.resolve(import.meta.filename);
+if (isEntry && process.argv[2] === "stop" && process.argv[3]) {
+  stopEmbeddedPostgres(process.argv[3]);
+}

@@ -147,7 +147,7 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
         />
         <form method="get" className="flex flex-wrap items-center gap-2 text-sm">
           <label htmlFor="plant">Lay a plant's range over it:</label>
-          <select id="plant" name="plant" className="field w-auto" defaultValue={loaderData.plant?.key} onChange={(e) => e.currentTarget.form?.requestSubmit()}>
+          <select id="plant" name="plant" className="field w-auto max-w-full" defaultValue={loaderData.plant?.key} onChange={(e) => e.currentTarget.form?.requestSubmit()}>
             {loaderData.plants.map((p) => (
               <option key={p.key} value={p.key}>
                 {p.name}

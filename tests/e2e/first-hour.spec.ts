@@ -72,4 +72,9 @@ test("the demo owner sees the five spots and a spot's chart", async ({ page }) =
   await page.getByText("Bench under the pear tree", { exact: true }).click();
   await expect(page.getByTestId("chart-48h").locator("canvas")).toBeVisible();
   await expect(page.getByTestId("chart-48h")).toContainText("°C");
+  await expect(page.getByTestId("year-strip")).toBeVisible();
+  await expect(page.getByTestId("season-table")).toContainText("January");
+  // Outdoors in an English winter, warm growers are ruled out.
+  const phal = page.getByTestId("fit-list").locator("li", { hasText: "Phalaenopsis" }).first();
+  await expect(phal).toContainText("struggles here");
 });

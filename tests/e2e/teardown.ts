@@ -1,0 +1,7 @@
+import { stopEmbeddedPostgres } from "../../app/.server/postgres";
+
+// The app stops its PostgreSQL on SIGTERM; this catches the case where it was killed harder.
+export default async function teardown() {
+  await new Promise((r) => setTimeout(r, 1000));
+  stopEmbeddedPostgres(".data/e2e/postgres");
+}
