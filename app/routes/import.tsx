@@ -149,7 +149,8 @@ export default function Import({ loaderData }: Route.ComponentProps) {
             <label className="label" htmlFor="unit">
               Temperatures in
             </label>
-            <select id="unit" name="unit" className="field" defaultValue={preview?.mapping.unit ?? "C"}>
+            <select id="unit" name="unit" className="field" defaultValue={preview?.mapping.unit ?? ""}>
+              <option value="">Read it from the column name</option>
               <option value="C">°C</option>
               <option value="F">°F</option>
             </select>

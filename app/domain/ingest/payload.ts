@@ -32,7 +32,7 @@ export const LIMITS = {
 export type SpotKindForLimits = keyof typeof LIMITS;
 
 const finite = z.number().refine(Number.isFinite, "not a finite number");
-const num = z.union([finite, z.string().trim().regex(/^-?\d+(\.\d+)?$/, "not a number").transform(Number)]);
+const num = z.union([finite, z.string().trim().regex(/^-?\d+(\.\d+)?$/).transform(Number)], { error: "not a number" });
 
 const timeField = z.union([
   z.number().refine(Number.isFinite, "not a finite number"),
