@@ -12,6 +12,7 @@ import { PlacementError, placeSensor, removeSensorFromSpot } from "~/.server/pla
 import { newSensorSecret } from "~/.server/secrets";
 import { getSensor, getSite, getSpot, listSpots, placementHistory } from "~/.server/sites";
 import { PlaceSensorForm, PlacementHistory, PlacingTips } from "~/components/placement";
+import { useNow } from "~/components/use-now";
 import { auditLog, sensors } from "~/db/schema.server";
 import { calibrationSchema, placeSchema } from "~/lib/forms";
 import { formatInZone, parseLocalDateTime, timeAgo } from "~/lib/time";
@@ -26,6 +27,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const e = env();
   const origin = new URL(request.url).origin;
   return {
+    now: Date.now(),
     role,
     site,
     sensor: { ...sensor, secretHash: undefined },
@@ -122,6 +124,7 @@ function useSecretFromFragment() {
 export default function SensorPage({ loaderData, actionData }: Route.ComponentProps) {
   const { sensor, spots, history, site, role, connect } = loaderData;
   const secret = useSecretFromFragment();
+  const now = useNow(loaderData.now);
   const navigation = useNavigation();
   const current = history.find((p) => p.toAt === null);
   const status = useFetcher<{ lastSeenAt: string | null; battery: number | null; latest: { measuredAt: string; temperature: number | null; humidity: number | null } | null }>();
@@ -163,7 +166,7 @@ export default function SensorPage({ loaderData, actionData }: Route.ComponentPr
               </p>
             ) : lastSeenAt ? (
               <p className="text-sm">
-                Last heard {timeAgo(lastSeenAt)} ({formatInZone(lastSeenAt, site.timeZone)})
+                Last heard {timeAgo(lastSeenAt, now)} ({formatInZone(lastSeenAt, site.timeZone)})
                 {(status.data?.battery ?? sensor.battery) != null ? ` · battery ${Math.round((status.data?.battery ?? sensor.battery)!)} %` : ""}
               </p>
             ) : (

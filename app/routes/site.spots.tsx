@@ -3,6 +3,7 @@ import { Link } from "react-router";
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
 import { db } from "~/.server/db";
 import { listSpots } from "~/.server/sites";
+import { useNow } from "~/components/use-now";
 import { formatTemp } from "~/lib/units";
 import { timeAgo } from "~/lib/time";
 import type { Route } from "./+types/site.spots";
@@ -17,6 +18,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     order by spot_id, hour desc`);
   const bySpot = new Map(latest.rows.map((r) => [r.spot_id, r]));
   return {
+    now: Date.now(),
     role,
     unit: user.temperatureUnit,
     spots: spots.map((s) => ({ ...s, latest: bySpot.get(s.id) ?? null })),
@@ -25,6 +27,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 export default function SiteSpots({ loaderData, params }: Route.ComponentProps) {
   const { spots, role, unit } = loaderData;
+  const now = useNow(loaderData.now);
   return (
     <section>
       <div className="mb-4 flex items-center justify-between gap-4">
@@ -58,7 +61,7 @@ export default function SiteSpots({ loaderData, params }: Route.ComponentProps) 
               )}
               <p className="mt-2 text-sm text-muted">
                 {s.capacity > 0 ? `Room for ${s.capacity} pots` : "Capacity not set"}
-                {s.latest ? ` · hour of ${timeAgo(s.latest.hour)}` : ""}
+                {s.latest ? ` · hour of ${timeAgo(s.latest.hour, now)}` : ""}
               </p>
             </Link>
           </li>

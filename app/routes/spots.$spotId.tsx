@@ -9,6 +9,7 @@ import { PlacementError, placeSensor } from "~/.server/placements";
 import { Chart, useSeries, type ChartSpec } from "~/components/chart";
 import { PlaceSensorForm, PlacementHistory, PlacingTips } from "~/components/placement";
 import { FitList, SeasonTable } from "~/components/season";
+import { useNow } from "~/components/use-now";
 import { YearStrip } from "~/components/year-strip";
 import { fitsFor, slimProfile, spotProfiles } from "~/.server/profiles";
 import { PLANT_LIBRARY } from "~/domain/plants/library";
@@ -34,6 +35,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const plantKey = new URL(request.url).searchParams.get("plant") ?? fits[0]?.key;
   const plant = PLANT_LIBRARY.find((p) => p.key === plantKey) ?? null;
   return {
+    now: Date.now(),
     role,
     unit: user.temperatureUnit,
     site,
@@ -97,6 +99,7 @@ const hoursChart = (unit: "C" | "F"): ChartSpec => ({
 export default function SpotPage({ loaderData, actionData }: Route.ComponentProps) {
   const { spot, site, role, unit, history, sensors } = loaderData;
   const navigation = useNavigation();
+  const now = useNow(loaderData.now);
   const live = useFetcher<{ latest: typeof loaderData.latest }>();
   useEffect(() => {
     const t = setInterval(() => {
@@ -131,7 +134,7 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
           <div className="flex flex-wrap items-baseline gap-x-6 gap-y-1">
             <p className="text-4xl font-semibold tabular-nums">{formatTemp(latest.temp, unit)}</p>
             <p className="text-xl tabular-nums text-muted">{latest.rh != null ? `${Math.round(latest.rh)} % RH` : ""}</p>
-            <p className="text-sm text-muted">measured {timeAgo(latest.measured_at)}</p>
+            <p className="text-sm text-muted">measured {timeAgo(latest.measured_at, now)}</p>
           </div>
         ) : (
           <p className="text-muted">No readings here yet. Place a sensor in this spot and its readings will show up here.</p>
