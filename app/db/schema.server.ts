@@ -357,3 +357,58 @@ export type Facing = (typeof facingEnum.enumValues)[number];
 export type HourlyRollupRow = typeof hourlyRollups.$inferSelect;
 export type AlertRule = typeof alertRules.$inferSelect;
 export type AlertEvent = typeof alertEvents.$inferSelect;
+
+// Which alerts a member wants by e-mail, per site. Cold-snap alerts ignore quiet hours.
+export const alertPreferences = pgTable(
+  "alert_preferences",
+  {
+    userId: integer()
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    siteId: integer()
+      .notNull()
+      .references(() => sites.id, { onDelete: "cascade" }),
+    email: boolean().notNull().default(true),
+    kinds: text().array().notNull().default(sql`'{cold,heat,dry,condensation,silent,battery}'`),
+    quietFrom: integer(), // minute of the local day, null = no quiet hours
+    quietTo: integer(),
+  },
+  (t) => [primaryKey({ columns: [t.userId, t.siteId] })],
+);
+
+// Sent e-mails of alerts, one per event, member and kind of message, so a restart never sends twice.
+export const alertDeliveries = pgTable(
+  "alert_deliveries",
+  {
+    eventId: integer()
+      .notNull()
+      .references(() => alertEvents.id, { onDelete: "cascade" }),
+    userId: integer()
+      .notNull()
+      .references(() => users.id, { onDelete: "cascade" }),
+    message: text({ enum: ["open", "clear", "early"] }).notNull(),
+    sentAt: createdAt(),
+  },
+  (t) => [primaryKey({ columns: [t.eventId, t.userId, t.message] })],
+);
+
+export const invitations = pgTable(
+  "invitations",
+  {
+    id: serial().primaryKey(),
+    siteId: integer()
+      .notNull()
+      .references(() => sites.id, { onDelete: "cascade" }),
+    email: text().notNull(),
+    role: roleEnum().notNull(),
+    // sha-256 of the random token in the link; the link itself is only in the e-mail
+    tokenHash: text().notNull().unique(),
+    invitedBy: integer().references(() => users.id, { onDelete: "set null" }),
+    expiresAt: timestamp({ withTimezone: true }).notNull(),
+    acceptedAt: timestamp({ withTimezone: true }),
+    acceptedBy: integer().references(() => users.id, { onDelete: "set null" }),
+    revokedAt: timestamp({ withTimezone: true }),
+    createdAt: createdAt(),
+  },
+  (t) => [index().on(t.siteId)],
+);
