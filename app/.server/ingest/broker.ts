@@ -93,7 +93,7 @@ export async function startBroker(opts: {
           done(null); // ack it: a refused QoS 1 publish would be resent forever
         };
         if (!decoded.ok) return reject(decoded.reason);
-        verifyAndWrite(id, decoded.payload).then(
+        verifyAndWrite(id, decoded.payload, match.channel !== "reading").then(
           (result) => {
             if (result === null) return done(null);
             reject(result);
@@ -110,12 +110,12 @@ export async function startBroker(opts: {
     },
   };
 
-  async function verifyAndWrite(sensorId: number, payload: unknown): Promise<string | null> {
+  async function verifyAndWrite(sensorId: number, payload: unknown, partial: boolean): Promise<string | null> {
     const info = await sensorInfo(sensorId);
     if (!info) return "unknown sensor (deleted?)";
     const parsed = validateReading(sensorId, payload as never, { now: new Date(), kind: info.kind });
     if (!parsed.ok) return parsed.reason;
-    await opts.writer.write([parsed.reading]);
+    await opts.writer.write([partial ? { ...parsed.reading, partial } : parsed.reading]);
     stats.accepted++;
     return null;
   }

@@ -21,31 +21,74 @@ export const LOCAL_HOUR_START = (at: string, timeZone: string) =>
 
 // Aggregate of the rows a statement really inserted, upserted into the rollups; `$1..$6` are arrays.
 // The CASEs keep a missing channel NULL: least/greatest ignore NULLs and would turn it into 0.
-const WRITE_SQL = `
-WITH input AS (
+//
+// The merging variant is used when a batch holds single-channel readings (plain-number topics): a
+// temperature and a humidity sent in the same second belong to one row, so a second channel fills
+// the row's empty column instead of being dropped as a duplicate, and only newly filled channels
+// are added to the rollup. `old` reads the rows as they were before the statement; that is sound
+// because this process runs one flush at a time.
+function buildWriteSql(merge: boolean) {
+  const input = merge
+    ? `raw_input AS (
   SELECT * FROM unnest($1::int[], $2::timestamptz[], $3::real[], $4::real[], $5::real[], $6::real[])
     AS u(sensor_id, measured_at, temperature, humidity, lux, battery)
-), ins AS (
+), input AS (
+  SELECT sensor_id, measured_at, max(temperature) AS temperature, max(humidity) AS humidity,
+    max(lux) AS lux, max(battery) AS battery
+  FROM raw_input GROUP BY sensor_id, measured_at
+), old AS (
+  SELECT r.sensor_id, r.measured_at, r.temperature, r.humidity, r.lux
+  FROM readings r JOIN input i ON i.sensor_id = r.sensor_id AND i.measured_at = r.measured_at
+)`
+    : `input AS (
+  SELECT * FROM unnest($1::int[], $2::timestamptz[], $3::real[], $4::real[], $5::real[], $6::real[])
+    AS u(sensor_id, measured_at, temperature, humidity, lux, battery)
+)`;
+  const conflict = merge
+    ? `ON CONFLICT (sensor_id, measured_at) DO UPDATE SET
+    temperature = coalesce(readings.temperature, excluded.temperature),
+    humidity = coalesce(readings.humidity, excluded.humidity),
+    lux = coalesce(readings.lux, excluded.lux),
+    battery = coalesce(readings.battery, excluded.battery)
+  WHERE (readings.temperature IS NULL AND excluded.temperature IS NOT NULL)
+    OR (readings.humidity IS NULL AND excluded.humidity IS NOT NULL)
+    OR (readings.lux IS NULL AND excluded.lux IS NOT NULL)`
+    : "ON CONFLICT DO NOTHING";
+  // `fresh`: the channels this statement added (all of them for a new row).
+  const fresh = merge
+    ? `fresh AS (
+  SELECT ins.sensor_id, ins.measured_at, ins.battery,
+    CASE WHEN o.temperature IS NULL THEN ins.temperature END AS temperature,
+    CASE WHEN o.humidity IS NULL THEN ins.humidity END AS humidity,
+    CASE WHEN o.lux IS NULL THEN ins.lux END AS lux,
+    ins.temperature AS t_row, ins.humidity AS h_row
+  FROM ins LEFT JOIN old o ON o.sensor_id = ins.sensor_id AND o.measured_at = ins.measured_at
+)`
+    : `fresh AS (SELECT ins.*, ins.temperature AS t_row, ins.humidity AS h_row FROM ins)`;
+  return `
+WITH ${input}, ins AS (
   INSERT INTO readings (sensor_id, measured_at, temperature, humidity, lux, battery)
-  SELECT * FROM input ON CONFLICT DO NOTHING
+  SELECT * FROM input ${conflict}
   RETURNING sensor_id, measured_at, temperature, humidity, lux, battery
-), placed AS (
-  SELECT p.spot_id, ins.sensor_id, ins.measured_at, ins.battery, si.time_zone,
-    ins.temperature + coalesce((s.calibration->>'temperature')::real, 0) AS t,
-    CASE WHEN ins.humidity IS NOT NULL THEN least(100, greatest(0, ins.humidity + coalesce((s.calibration->>'humidity')::real, 0))) END AS h,
-    CASE WHEN ins.lux IS NOT NULL THEN greatest(0, ins.lux + coalesce((s.calibration->>'lux')::real, 0)) END AS l,
-    ${LOCAL_HOUR_START("ins.measured_at", "si.time_zone")} AS hour
-  FROM ins
-  JOIN placements p ON p.sensor_id = ins.sensor_id AND p.from_at <= ins.measured_at
-    AND (p.to_at IS NULL OR ins.measured_at < p.to_at)
-  JOIN sensors s ON s.id = ins.sensor_id
+), ${fresh}, placed AS (
+  SELECT p.spot_id, f.sensor_id, f.measured_at, f.battery, si.time_zone,
+    f.temperature + coalesce((s.calibration->>'temperature')::real, 0) AS t,
+    CASE WHEN f.humidity IS NOT NULL THEN least(100, greatest(0, f.humidity + coalesce((s.calibration->>'humidity')::real, 0))) END AS h,
+    CASE WHEN f.lux IS NOT NULL THEN greatest(0, f.lux + coalesce((s.calibration->>'lux')::real, 0)) END AS l,
+    dew_point_margin(f.t_row + coalesce((s.calibration->>'temperature')::real, 0),
+      CASE WHEN f.h_row IS NOT NULL THEN least(100, greatest(0, f.h_row + coalesce((s.calibration->>'humidity')::real, 0))) END) AS dp,
+    ${LOCAL_HOUR_START("f.measured_at", "si.time_zone")} AS hour
+  FROM fresh f
+  JOIN placements p ON p.sensor_id = f.sensor_id AND p.from_at <= f.measured_at
+    AND (p.to_at IS NULL OR f.measured_at < p.to_at)
+  JOIN sensors s ON s.id = f.sensor_id
   JOIN spots sp ON sp.id = p.spot_id
   JOIN sites si ON si.id = sp.site_id
 ), agg AS (
   SELECT spot_id, hour,
     count(t)::int AS t_n, min(t) AS t_min, max(t) AS t_max, sum(t) AS t_sum,
     count(h)::int AS h_n, min(h) AS h_min, max(h) AS h_max, sum(h) AS h_sum,
-    min(dew_point_margin(t, h)) AS dp_margin_min, count(l)::int AS lux_n, sum(l) AS lux_sum
+    min(dp) AS dp_margin_min, count(l)::int AS lux_n, sum(l) AS lux_sum
   FROM placed GROUP BY spot_id, hour
 ), up AS (
   INSERT INTO hourly_rollups AS r (spot_id, hour, t_n, t_min, t_max, t_sum, h_n, h_min, h_max, h_sum, dp_margin_min, lux_n, lux_sum)
@@ -74,9 +117,13 @@ SELECT (SELECT count(*)::int FROM ins) AS inserted, (SELECT count(*)::int FROM u
   (SELECT count(*)::int FROM seen) AS seen,
   coalesce((SELECT json_agg(json_build_array(spot_id, sensor_id, measured_at, t, h, battery) ORDER BY measured_at)
     FROM placed), '[]'::json) AS placed`;
+}
+
+const WRITE_SQL = buildWriteSql(false);
+const MERGE_SQL = buildWriteSql(true);
 
 // With several callers in one group commit, each needs to know which of its rows were new.
-const WRITE_SQL_KEYS = WRITE_SQL + `,
+const KEYS = `,
   coalesce((SELECT json_agg(json_build_array(sensor_id, (extract(epoch FROM measured_at) * 1000)::bigint)) FROM ins), '[]'::json) AS keys`;
 
 type Pending = { readings: Reading[]; resolve: (r: WriteResult) => void; reject: (e: Error) => void };
@@ -174,7 +221,9 @@ export class ReadingWriter {
     try {
       client = await this.getPool().connect();
       // One statement is its own transaction; it commits before the result comes back.
-      const res = await client.query(batch.length > 1 ? WRITE_SQL_KEYS : WRITE_SQL, cols);
+      const merge = batch.some((p) => p.readings.some((r) => r.partial));
+      const text = (merge ? MERGE_SQL : WRITE_SQL) + (batch.length > 1 ? KEYS : "");
+      const res = await client.query(text, cols);
       client.release();
       client = undefined;
       const row = res.rows[0] as {

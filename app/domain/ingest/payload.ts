@@ -12,6 +12,8 @@ export type Reading = {
   humidity: number | null;
   lux: number | null;
   battery: number | null;
+  /** From a single-channel topic: may be merged with another channel sent at the same second. */
+  partial?: boolean;
 };
 
 export type Rejection = { reason: string };
