@@ -27,7 +27,7 @@ export const LOCAL_HOUR_START = (at: string, timeZone: string) =>
 // the row's empty column instead of being dropped as a duplicate, and only newly filled channels
 // are added to the rollup. `old` reads the rows as they were before the statement; that is sound
 // because this process runs one flush at a time.
-function buildWriteSql(merge: boolean) {
+function buildWriteSql(merge: boolean, withRows: boolean) {
   const input = merge
     ? `raw_input AS (
   SELECT * FROM unnest($1::int[], $2::timestamptz[], $3::real[], $4::real[], $5::real[], $6::real[])
@@ -92,7 +92,7 @@ WITH ${input}, ins AS (
   FROM placed GROUP BY spot_id, hour
 ), up AS (
   INSERT INTO hourly_rollups AS r (spot_id, hour, t_n, t_min, t_max, t_sum, h_n, h_min, h_max, h_sum, dp_margin_min, lux_n, lux_sum)
-  SELECT * FROM agg
+  SELECT * FROM agg ORDER BY spot_id, hour -- one lock order for every writer, so no deadlocks
   ON CONFLICT (spot_id, hour) DO UPDATE SET
     t_n = r.t_n + excluded.t_n, t_min = least(r.t_min, excluded.t_min), t_max = greatest(r.t_max, excluded.t_max),
     t_sum = CASE WHEN r.t_sum IS NULL THEN excluded.t_sum ELSE r.t_sum + coalesce(excluded.t_sum, 0) END,
@@ -115,12 +115,17 @@ WITH ${input}, ins AS (
 )
 SELECT (SELECT count(*)::int FROM ins) AS inserted, (SELECT count(*)::int FROM up) AS hours,
   (SELECT count(*)::int FROM seen) AS seen,
-  coalesce((SELECT json_agg(json_build_array(spot_id, sensor_id, measured_at, t, h, battery) ORDER BY measured_at)
-    FROM placed), '[]'::json) AS placed`;
+  ${withRows ? `coalesce((SELECT json_agg(json_build_array(spot_id, sensor_id, measured_at, t, h, battery) ORDER BY measured_at)
+    FROM placed), '[]'::json)` : `'[]'::json`} AS placed`;
 }
 
-const WRITE_SQL = buildWriteSql(false);
-const MERGE_SQL = buildWriteSql(true);
+// The committed rows go back to the process only when someone listens (the alert engine).
+const SQL = {
+  plain: buildWriteSql(false, false),
+  plainRows: buildWriteSql(false, true),
+  merge: buildWriteSql(true, false),
+  mergeRows: buildWriteSql(true, true),
+};
 
 // With several callers in one group commit, each needs to know which of its rows were new.
 const KEYS = `,
@@ -222,7 +227,8 @@ export class ReadingWriter {
       client = await this.getPool().connect();
       // One statement is its own transaction; it commits before the result comes back.
       const merge = batch.some((p) => p.readings.some((r) => r.partial));
-      const text = (merge ? MERGE_SQL : WRITE_SQL) + (batch.length > 1 ? KEYS : "");
+      const rows = this.listeners.size > 0;
+      const text = SQL[merge ? (rows ? "mergeRows" : "merge") : rows ? "plainRows" : "plain"] + (batch.length > 1 ? KEYS : "");
       const res = await client.query(text, cols);
       client.release();
       client = undefined;
