@@ -4,12 +4,14 @@ export default [
   route("sign-in", "routes/sign-in.tsx"),
   route("sign-up", "routes/sign-up.tsx"),
   route("sign-out", "routes/sign-out.tsx"),
+  route("invite/:token", "routes/invite.tsx"),
 
   layout("routes/shell.tsx", [
     index("routes/home.tsx"),
     route("sites/new", "routes/sites.new.tsx"),
     route("settings", "routes/settings.tsx"),
     route("admin", "routes/admin.tsx"),
+    route("help/api", "routes/api-docs.tsx"),
     route("sites/:siteId", "routes/site.tsx", [
       index("routes/site.spots.tsx"),
       route("edit", "routes/site.edit.tsx"),
@@ -21,6 +23,14 @@ export default [
       route("sensors/:sensorId", "routes/sensors.$sensorId.tsx"),
       route("import", "routes/import.tsx"),
       route("members", "routes/members.tsx"),
+      route("alerts", "routes/site.alerts.tsx"),
+      route("spots/:spotId/alerts", "routes/spots.$spotId.alerts.tsx"),
+      route("water", "routes/water.tsx"),
+      route("compare", "routes/compare.tsx"),
+      route("plants", "routes/plants.tsx"),
+      route("plants/new", "routes/plants.new.tsx"),
+      route("plants/:plantKey", "routes/plants.$plantKey.tsx"),
+      route("wishlist", "routes/wishlist.tsx"),
     ]),
   ]),
 
@@ -28,4 +38,8 @@ export default [
   route("api/sites/:siteId/spots/:spotId/series", "routes/api.series.ts"),
   route("api/sites/:siteId/spots/:spotId/latest", "routes/api.latest.ts"),
   route("api/sites/:siteId/sensors/:sensorId/status", "routes/api.sensor-status.ts"),
+  route("api/sites/:siteId/alerts", "routes/api.alerts.ts"),
+  route("api/sites/:siteId/notes", "routes/api.notes.ts"),
+  route("api/sites/:siteId/spots/:spotId/export", "routes/api.export.ts"),
+  route("api/admin/mail", "routes/api.admin.mail.ts"),
 ] satisfies RouteConfig;

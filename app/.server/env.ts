@@ -26,6 +26,8 @@ const schema = z.object({
   NW_SIM_SPEED: z.coerce.number().positive().max(3600).default(1),
   NW_SIM_INTERVAL_S: z.coerce.number().int().min(1).max(3600).default(60),
   NW_BACKFILL_DAYS: z.coerce.number().int().min(0).max(800).default(365),
+  // The demo's compressed cold front on the outdoor bench, starting ~30 s after start (alert timings 60× faster).
+  NW_COLD_FRONT: flag.default(false),
 });
 
 export type Env = z.infer<typeof schema>;

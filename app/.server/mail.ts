@@ -59,15 +59,20 @@ export async function startMailSink(opts: { port: number; host?: string; log?: (
   return { port, close: () => new Promise<void>((resolve) => server.close(() => resolve())) };
 }
 
-// RFC 2047 encoded words, as nodemailer writes non-ASCII subjects.
+// RFC 2047 encoded words, as nodemailer writes non-ASCII subjects: the space between adjacent words
+// is not part of the text, and a character may be split across two words, so runs decode together.
 function decodeHeader(value: string) {
   return value
     .replace(/\r?\n[ \t]/g, " ")
-    .replace(/=\?utf-8\?([bq])\?([^?]*)\?=/gi, (_m, enc: string, text: string) =>
-      enc.toLowerCase() === "b"
-        ? Buffer.from(text, "base64").toString("utf8")
-        : Buffer.from(text.replace(/_/g, " ").replace(/=([0-9A-F]{2})/gi, (_x, h: string) => String.fromCharCode(parseInt(h, 16))), "latin1").toString("utf8"),
+    .replace(/(\?=)\s+(?==\?)/g, "$1")
+    .replace(/(?:=\?utf-8\?[bq]\?[^?]*\?=)+/gi, (run) =>
+      Buffer.concat(
+        [...run.matchAll(/=\?utf-8\?([bq])\?([^?]*)\?=/gi)].map(([, enc, text]) =>
+          enc.toLowerCase() === "b"
+            ? Buffer.from(text, "base64")
+            : Buffer.from(text.replace(/_/g, " ").replace(/=([0-9A-F]{2})/gi, (_x, h: string) => String.fromCharCode(parseInt(h, 16))), "latin1"),
+        ),
+      ).toString("utf8"),
     )
-    .replace(/\?=\s+=\?/g, "")
     .trim();
 }

@@ -54,6 +54,9 @@ async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[],
   }
 
   const { writer } = await import("~/.server/ingest/writer");
+  const { startAlerts } = await import("~/.server/alerts/engine");
+  // With the compressed demo front a rule minute lasts a second, matching the simulator's 60×.
+  stops.push(await startAlerts(writer(), { minuteMs: e.NW_COLD_FRONT ? 1000 : 60_000, log }));
 
   const { startBroker } = await import("~/.server/ingest/broker");
   const broker = await startBroker({ host: e.MQTT_HOST, port: e.MQTT_PORT, wsPort: e.MQTT_WS_PORT, writer: writer(), log });
@@ -125,7 +128,9 @@ async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[],
 
   if (e.NW_DEMO && e.NW_SIMULATOR) {
     const { startLiveSimulator } = await import("../../simulator/live");
-    const sim = await startLiveSimulator({ mqttUrl: `mqtt://127.0.0.1:${broker.port}`, speed: e.NW_SIM_SPEED, intervalS: e.NW_SIM_INTERVAL_S, log });
+    const coldFrontAt = e.NW_COLD_FRONT ? new Date(Date.now() + 30_000) : null;
+    const sim = await startLiveSimulator({ mqttUrl: `mqtt://127.0.0.1:${broker.port}`, speed: e.NW_SIM_SPEED, intervalS: e.NW_SIM_INTERVAL_S, coldFrontAt, log });
+    if (coldFrontAt) log("Cold front: the outdoor bench starts falling in about a minute; watch the site page and the admin page's mail");
     stops.splice(stops.length, 0, sim.stop);
   }
 

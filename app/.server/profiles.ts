@@ -2,7 +2,8 @@
 // rollups is ~8,760 rows per spot; the raw readings are never read here).
 import { pool } from "~/.server/db";
 import { rankPlantsForSpot } from "~/domain/fit/verdict";
-import { PLANT_LIBRARY } from "~/domain/plants/library";
+import type { SpotWindow } from "~/domain/fit/window-light";
+import { PLANT_LIBRARY, type PlantProfile } from "~/domain/plants/library";
 import { seasonProfile } from "~/domain/season/profile";
 import type { HourlyRollup } from "~/domain/season/types";
 import type { Site } from "~/db/schema.server";
@@ -28,22 +29,28 @@ export async function loadRollups(spotIds: number[], from: Date, to: Date): Prom
 
 const plantThresholds = [...new Set(PLANT_LIBRARY.map((p) => p.minNightC))];
 
-/** The last twelve months of a spot (ending now), the window a grower's year strip shows. */
-export async function spotProfiles(site: Site, spotIds: number[], now = new Date()) {
-  const to = now;
-  const from = new Date(now.getTime() - 365 * 86_400_000);
+/**
+ * By default the last twelve months of a spot (ending now), the window a grower's year strip shows;
+ * `range` picks another period (the compare page). `plants` adds the site's own profiles' nights to
+ * the hour counts.
+ */
+export async function spotProfiles(site: Site, spotIds: number[], now = new Date(), opts: { range?: { from: Date; to: Date }; plants?: PlantProfile[] } = {}) {
+  const to = opts.range?.to ?? now;
+  const from = opts.range?.from ?? new Date(now.getTime() - 365 * 86_400_000);
   const rollups = await loadRollups(spotIds, from, to);
   const siteInfo = { latitude: site.latitude, longitude: site.longitude, timeZone: site.timeZone };
+  const thresholds = opts.plants ? [...new Set([...plantThresholds, ...opts.plants.map((p) => p.minNightC)])] : plantThresholds;
   return new Map(
     spotIds.map((id) => {
-      const season = seasonProfile(rollups.get(id)!, siteInfo, { from, to, thresholds: plantThresholds });
+      const season = seasonProfile(rollups.get(id)!, siteInfo, { from, to, thresholds });
       return [id, season] as const;
     }),
   );
 }
 
-export function fitsFor(season: ReturnType<typeof seasonProfile>) {
-  return rankPlantsForSpot(PLANT_LIBRARY, season).map(({ plant, fit }) => ({
+/** Fits for one spot, best first; pass the site's plants (library plus own profiles). */
+export function fitsFor(season: ReturnType<typeof seasonProfile>, plants: PlantProfile[] = PLANT_LIBRARY, window?: SpotWindow) {
+  return rankPlantsForSpot(plants, season, undefined, window).map(({ plant, fit }) => ({
     key: plant.key,
     name: plant.name,
     category: plant.category,
@@ -56,6 +63,9 @@ export function fitsFor(season: ReturnType<typeof seasonProfile>) {
     missingAdvice: fit.missingAdvice,
   }));
 }
+
+/** How a spot's window is described to the fit rules (used for light when it has no light sensor). */
+export const windowOf = (site: Site, spot: { facing: SpotWindow["facing"]; indoor: boolean }): SpotWindow => ({ latitude: site.latitude, facing: spot.facing, indoor: spot.indoor });
 
 /** The figures a page needs from a season profile, without the per-day detail. */
 export function slimProfile(season: ReturnType<typeof seasonProfile>) {
@@ -70,3 +80,10 @@ export function slimProfile(season: ReturnType<typeof seasonProfile>) {
   };
 }
 export type SlimProfile = ReturnType<typeof slimProfile>;
+
+/** Calendar months of the period (for a period shorter or longer than a year), same figures as the year. */
+export function slimMonths(season: ReturnType<typeof seasonProfile>) {
+  return season.months.map(({ key, year, month, temperature, humidity, below, condensationHours, light, coverage }) => ({
+    key, year, month, temperature, humidity, below, condensationHours, light, coverage,
+  }));
+}

@@ -8,6 +8,9 @@ import { db } from "~/.server/db";
 import { writer } from "~/.server/ingest/writer";
 import { memberships, placements, sensors, sites, spots, users } from "~/db/schema.server";
 import { newSensorSecret } from "~/.server/secrets";
+import { seedSharing } from "~/.server/seed-sharing";
+import { seedPlants } from "~/.server/seed-plants";
+import { seedAlerts } from "~/.server/seed-alerts";
 import { backfill } from "../../simulator/backfill";
 import { DEMO_HOUSEHOLD, type DemoSensorCredentials } from "../../simulator/demo";
 import { CREDENTIALS_FILE } from "../../simulator/live";
@@ -73,6 +76,9 @@ export async function seedDemo(opts: { log?: (s: string) => void; backfillDays?:
     const s = (performance.now() - started) / 1000;
     log(`Backfilled ${written.toLocaleString("en")} readings over ${days} days in ${s.toFixed(1)} s (${Math.round(written / s).toLocaleString("en")}/s)`);
   }
+  await seedSharing({ siteId: site.id, ownerId: people.owner, carerId: people.carer, mentorId: people.mentor });
+  await seedPlants({ siteId: site.id });
+  await seedAlerts(site.id, log);
   await db().execute(sql`analyze`);
   return true;
 }

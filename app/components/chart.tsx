@@ -9,7 +9,12 @@ export type ChartSpec = {
   title: string;
   height?: number;
   unit: "C" | "F";
-  build: (data: Record<string, (number | null)[]>, unit: "C" | "F") => { data: uPlot.AlignedData; series: uPlot.Series[]; axes?: uPlot.Axis[]; bands?: uPlot.Band[] };
+  /** Hide uPlot's own legend when the page draws a labelled key instead. */
+  legend?: boolean;
+  build: (
+    data: Record<string, (number | null)[]>,
+    unit: "C" | "F",
+  ) => { data: uPlot.AlignedData; series: uPlot.Series[]; axes?: uPlot.Axis[]; bands?: uPlot.Band[]; scales?: uPlot.Scales };
 };
 
 export function useSeries(url: string) {
@@ -45,11 +50,12 @@ export function Chart({ spec, data, testId }: { spec: ChartSpec; data?: Record<s
           height: spec.height ?? 240,
           series: [{}, ...built.series],
           bands: built.bands,
+          scales: built.scales,
           axes: built.axes ?? [
             { stroke: "#6f675c", grid: { stroke: "#e4dccd" }, ticks: { stroke: "#e4dccd" } },
             { stroke: "#6f675c", grid: { stroke: "#e4dccd" }, ticks: { stroke: "#e4dccd" }, label: `°${spec.unit}`, size: 50 },
           ],
-          legend: { show: true },
+          legend: { show: spec.legend ?? true },
           cursor: { drag: { x: false, y: false } },
         },
         built.data,

@@ -1,14 +1,89 @@
+import { useEffect, useRef } from "react";
+import { data, Form, redirect, useNavigation } from "react-router";
+import { z } from "zod";
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
+import {
+  changeRole,
+  INVITABLE_ROLES,
+  inviteMember,
+  listInvitations,
+  MembershipError,
+  recentChanges,
+  removeMember,
+  revokeInvitation,
+} from "~/.server/members";
 import { listMembers } from "~/.server/sites";
+import { useNow } from "~/components/use-now";
+import { describeChange, type ChangeDetail } from "~/domain/sharing/changes";
+import { formatInZone, timeAgo } from "~/lib/time";
 import type { Route } from "./+types/members";
 
 export const meta: Route.MetaFunction = () => [{ title: "People · Nichewise" }];
 
 export async function loader({ request, params }: Route.LoaderArgs) {
-  const { siteId, role } = await requireSiteRole(request, params.siteId, ALL_ROLES);
+  const { siteId, role, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
   const members = await listMembers(siteId);
-  // Only owners see e-mail addresses of the other members.
-  return { role, members: members.map((m) => ({ ...m, email: role === "owner" ? m.email : null })) };
+  const owner = role === "owner";
+  return {
+    now: Date.now(),
+    role,
+    me: user.id,
+    // Only owners see e-mail addresses of the other members.
+    members: members.map((m) => ({ ...m, email: owner || m.userId === user.id ? m.email : null })),
+    invitations: owner ? (await listInvitations(siteId)).filter((i) => i.state === "open" || Date.now() - i.createdAt.getTime() < 30 * 86_400_000) : [],
+    changes: owner
+      ? (await recentChanges(siteId)).map((c) => ({ id: c.id, at: c.at, who: c.actorName ?? "Someone", what: describeChange(c.action, c.detail as ChangeDetail) }))
+      : [],
+  };
+}
+
+const inviteSchema = z.object({
+  email: z.string().trim().toLowerCase().pipe(z.email()),
+  role: z.enum(INVITABLE_ROLES),
+});
+
+export async function action({ request, params }: Route.ActionArgs) {
+  const form = await request.formData();
+  const intent = String(form.get("intent") ?? "");
+  const { siteId, user } = await requireSiteRole(request, params.siteId, intent === "leave" ? ALL_ROLES : ["owner"]);
+  try {
+    if (intent === "invite") {
+      const email = String(form.get("email") ?? "");
+      const parsed = inviteSchema.safeParse({ email, role: form.get("role") });
+      if (!parsed.success) {
+        return data({ intent, error: "Enter an e-mail address and choose carer or mentor.", email, role: String(form.get("role") ?? "") }, { status: 400 });
+      }
+      await inviteMember({ siteId, actor: user, email: parsed.data.email, role: parsed.data.role });
+      return { intent, invited: parsed.data.email };
+    }
+    if (intent === "revoke") {
+      await revokeInvitation({ siteId, actorId: user.id, invitationId: Number(form.get("invitationId")) });
+      return { intent, ok: true };
+    }
+    if (intent === "role") {
+      const parsed = z.object({ userId: z.coerce.number().int().positive(), role: z.enum(["owner", "carer", "mentor"]) }).safeParse(Object.fromEntries(form));
+      if (!parsed.success) return data({ intent, error: "Choose a role." }, { status: 400 });
+      await changeRole({ siteId, actorId: user.id, ...parsed.data });
+      return { intent, ok: true, userId: parsed.data.userId };
+    }
+    if (intent === "remove") {
+      const userId = Number(form.get("userId"));
+      if (!Number.isInteger(userId)) return data({ intent, error: "Choose a member." }, { status: 400 });
+      await removeMember({ siteId, actorId: user.id, userId });
+      if (userId === user.id) throw redirect("/");
+      return { intent, ok: true, userId };
+    }
+    if (intent === "leave") {
+      await removeMember({ siteId, actorId: user.id, userId: user.id });
+      throw redirect("/");
+    }
+  } catch (err) {
+    if (err instanceof MembershipError) {
+      return data({ intent, error: err.message, userId: Number(form.get("userId")) || null, email: String(form.get("email") ?? ""), role: String(form.get("role") ?? "") }, { status: 400 });
+    }
+    throw err;
+  }
+  throw data("Unknown action", { status: 400 });
 }
 
 const roleWords = {
@@ -17,19 +92,209 @@ const roleWords = {
   mentor: "Mentor — reads everything and leaves notes",
 };
 
-export default function Members({ loaderData }: Route.ComponentProps) {
+const stateWords = { open: "waiting", accepted: "accepted", revoked: "withdrawn", expired: "expired" } as const;
+
+export default function Members({ loaderData, actionData }: Route.ComponentProps) {
+  const { role, me, members, invitations, changes } = loaderData;
+  const now = useNow(loaderData.now);
+  const navigation = useNavigation();
+  const busy = navigation.state !== "idle";
+  const owner = role === "owner";
+  const soleOwner = members.filter((m) => m.role === "owner").length === 1;
+  const lastOwnerNote = "The only owner: make someone else an owner before stepping down or leaving.";
+  const ad = actionData as { intent?: string; error?: string; invited?: string; userId?: number | null; email?: string; role?: string } | undefined;
+  const inviteForm = useRef<HTMLFormElement>(null);
+  useEffect(() => {
+    if (ad?.invited) inviteForm.current?.reset();
+  }, [ad]);
+
   return (
-    <section className="max-w-2xl">
-      <p className="mb-4 text-muted">Who shares this site, and what each can do.</p>
-      <ul className="divide-y divide-line rounded-2xl border border-line bg-card">
-        {loaderData.members.map((m) => (
-          <li key={m.userId} className="p-4">
-            <p className="font-semibold">{m.name}</p>
-            {m.email ? <p className="text-sm text-muted">{m.email}</p> : null}
-            <p className="mt-1 text-sm">{roleWords[m.role]}</p>
-          </li>
-        ))}
-      </ul>
-    </section>
+    <div className="grid gap-6 lg:grid-cols-[minmax(0,1fr)_minmax(0,22rem)]">
+      <div className="space-y-6">
+        <section>
+          <p className="mb-4 text-muted">Who shares this site, and what each can do.</p>
+          <ul className="divide-y divide-line rounded-2xl border border-line bg-card" data-testid="members">
+            {members.map((m) => (
+              <li key={m.userId} className="flex flex-wrap items-start justify-between gap-3 p-4">
+                <div className="min-w-0">
+                  <p className="font-semibold">
+                    {m.name}
+                    {m.userId === me ? <span className="font-normal text-muted"> (you)</span> : null}
+                  </p>
+                  {m.email ? <p className="text-sm break-all text-muted">{m.email}</p> : null}
+                  <p className="mt-1 text-sm">{roleWords[m.role]}</p>
+                  {owner && soleOwner && m.role === "owner" ? (
+                    <p id={`last-owner-${m.userId}`} className="hint">
+                      {lastOwnerNote}
+                    </p>
+                  ) : null}
+                  {ad?.error && ad.userId === m.userId && (ad.intent === "role" || ad.intent === "remove") ? (
+                    <p className="error" role="alert">
+                      {ad.error}
+                    </p>
+                  ) : null}
+                </div>
+                {owner ? (
+                  <div className="flex flex-wrap items-center gap-2">
+                    <Form method="post" className="flex items-center gap-2">
+                      <input type="hidden" name="intent" value="role" />
+                      <input type="hidden" name="userId" value={m.userId} />
+                      <label className="sr-only" htmlFor={`role-${m.userId}`}>
+                        Role of {m.name}
+                      </label>
+                      <select
+                        id={`role-${m.userId}`}
+                        name="role"
+                        defaultValue={m.role}
+                        className="field w-auto py-1.5 text-sm"
+                        disabled={soleOwner && m.role === "owner"}
+                        aria-describedby={soleOwner && m.role === "owner" ? `last-owner-${m.userId}` : undefined}
+                      >
+                        <option value="owner">Owner</option>
+                        <option value="carer">Carer</option>
+                        <option value="mentor">Mentor</option>
+                      </select>
+                      <button className="btn-quiet px-3 py-1.5" disabled={busy || (soleOwner && m.role === "owner")}>
+                        Change role
+                      </button>
+                    </Form>
+                    {m.userId !== me ? (
+                      <Form
+                        method="post"
+                        onSubmit={(e) => {
+                          if (!confirm(`Remove ${m.name} from this site?`)) e.preventDefault();
+                        }}
+                      >
+                        <input type="hidden" name="intent" value="remove" />
+                        <input type="hidden" name="userId" value={m.userId} />
+                        <button className="btn-danger px-3 py-1.5" disabled={busy}>
+                          Remove
+                        </button>
+                      </Form>
+                    ) : null}
+                  </div>
+                ) : null}
+              </li>
+            ))}
+          </ul>
+          <Form
+            method="post"
+            className="mt-3"
+            onSubmit={(e) => {
+              if (!confirm("Leave this site? You will need a new invitation to come back.")) e.preventDefault();
+            }}
+          >
+            <input type="hidden" name="intent" value="leave" />
+            <button className="btn-quiet" disabled={busy || (owner && soleOwner)}>
+              Leave this site
+            </button>
+            {owner && soleOwner ? <p className="hint">You are the only owner, so you cannot leave yet: make someone else an owner first.</p> : null}
+            {ad?.error && ad.intent === "leave" ? (
+              <p className="error" role="alert">
+                {ad.error}
+              </p>
+            ) : null}
+          </Form>
+        </section>
+
+        {owner ? (
+          <section className="card">
+            <h2 className="h2 mb-1">What changed</h2>
+            <p className="mb-3 text-sm text-muted">Every change in this site, newest first, with who made it.</p>
+            {changes.length === 0 ? (
+              <p className="text-muted">Nothing yet.</p>
+            ) : (
+              <ol className="divide-y divide-line text-sm" data-testid="changes">
+                {changes.map((c) => (
+                  <li key={c.id} className="flex flex-wrap justify-between gap-x-4 py-2">
+                    <span>
+                      <span className="font-medium">{c.who}</span> {c.what}
+                    </span>
+                    <time className="text-muted" dateTime={new Date(c.at).toISOString()} title={formatInZone(c.at, "UTC")}>
+                      {timeAgo(c.at, now)}
+                    </time>
+                  </li>
+                ))}
+              </ol>
+            )}
+          </section>
+        ) : null}
+      </div>
+
+      {owner ? (
+        <aside className="space-y-6">
+          <section className="card">
+            <h2 className="h2 mb-1">Invite someone</h2>
+            <p className="mb-3 text-sm text-muted">
+              They get an e-mail with a link that works once, for 7 days. Opening it lets them sign in or create an account, then join.
+            </p>
+            <Form method="post" className="space-y-3" ref={inviteForm}>
+              <input type="hidden" name="intent" value="invite" />
+              <div>
+                <label className="label" htmlFor="invite-email">
+                  E-mail
+                </label>
+                <input id="invite-email" name="email" type="email" required autoComplete="off" className="field" defaultValue={ad?.intent === "invite" && !ad.invited ? ad.email : ""} />
+              </div>
+              <fieldset>
+                <legend className="label">Role</legend>
+                <label className="flex items-start gap-2 text-sm">
+                  <input type="radio" name="role" value="carer" defaultChecked={ad?.role !== "mentor"} className="mt-1" />
+                  <span>
+                    <span className="font-medium">Carer</span> — waters while you are away, logs water checks, moves sensors and plants
+                  </span>
+                </label>
+                <label className="mt-2 flex items-start gap-2 text-sm">
+                  <input type="radio" name="role" value="mentor" defaultChecked={ad?.role === "mentor"} className="mt-1" />
+                  <span>
+                    <span className="font-medium">Mentor</span> — reads everything and leaves notes; changes nothing else
+                  </span>
+                </label>
+              </fieldset>
+              {ad?.intent === "invite" && ad.error ? (
+                <p className="error" role="alert">
+                  {ad.error}
+                </p>
+              ) : null}
+              {ad?.invited ? (
+                <p className="text-sm text-good" role="status">
+                  ✓ Invitation sent to {ad.invited}.
+                </p>
+              ) : null}
+              <button className="btn w-full" disabled={busy}>
+                Send invitation
+              </button>
+            </Form>
+          </section>
+
+          <section className="card">
+            <h2 className="h2 mb-3">Invitations</h2>
+            {invitations.length === 0 ? <p className="text-sm text-muted">None sent recently.</p> : null}
+            <ul className="space-y-3 text-sm" data-testid="invitations">
+              {invitations.map((i) => (
+                <li key={i.id} className="flex flex-wrap items-center justify-between gap-2">
+                  <span className="min-w-0">
+                    <span className="block font-medium break-all">{i.email}</span>
+                    <span className="text-muted">
+                      {i.role} · {stateWords[i.state]}
+                      {i.state === "open" ? ` · until ${formatInZone(i.expiresAt, "UTC", { hour: undefined, minute: undefined })}` : ""}
+                    </span>
+                  </span>
+                  {i.state === "open" ? (
+                    <Form method="post">
+                      <input type="hidden" name="intent" value="revoke" />
+                      <input type="hidden" name="invitationId" value={i.id} />
+                      <button className="btn-quiet px-3 py-1.5" disabled={busy}>
+                        Withdraw
+                      </button>
+                    </Form>
+                  ) : null}
+                </li>
+              ))}
+            </ul>
+          </section>
+        </aside>
+      ) : null}
+    </div>
   );
 }

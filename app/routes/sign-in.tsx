@@ -10,8 +10,10 @@ import type { Route } from "./+types/sign-in";
 export const meta: Route.MetaFunction = () => [{ title: "Sign in · Nichewise" }];
 
 export async function loader({ request }: Route.LoaderArgs) {
-  if (await getUser(request)) throw redirect("/");
-  return { next: new URL(request.url).searchParams.get("next") ?? "" };
+  const params = new URL(request.url).searchParams;
+  const next = params.get("next") ?? "";
+  if (await getUser(request)) throw redirect(safeNext(next));
+  return { next, email: params.get("email") ?? "" };
 }
 
 export async function action({ request }: Route.ActionArgs) {
@@ -27,7 +29,7 @@ export default function SignIn({ loaderData, actionData }: Route.ComponentProps)
   const navigation = useNavigation();
   const [form, fields] = useForm({
     lastResult: actionData?.result,
-    defaultValue: { next: loaderData.next },
+    defaultValue: { next: loaderData.next, email: loaderData.email },
     onValidate: ({ formData }) => parseWithZod(formData, { schema: signInSchema }),
     shouldValidate: "onBlur",
   });

@@ -13,8 +13,10 @@ import type { Route } from "./+types/sign-up";
 export const meta: Route.MetaFunction = () => [{ title: "Create an account · Nichewise" }];
 
 export async function loader({ request }: Route.LoaderArgs) {
-  if (await getUser(request)) throw redirect("/");
-  return { next: new URL(request.url).searchParams.get("next") ?? "" };
+  const params = new URL(request.url).searchParams;
+  const next = params.get("next") ?? "";
+  if (await getUser(request)) throw redirect(safeNext(next));
+  return { next, email: params.get("email") ?? "" };
 }
 
 export async function action({ request }: Route.ActionArgs) {
@@ -40,6 +42,7 @@ export default function SignUp({ loaderData, actionData }: Route.ComponentProps)
   const navigation = useNavigation();
   const [form, fields] = useForm({
     lastResult: actionData?.result,
+    defaultValue: { next: loaderData.next, email: loaderData.email },
     onValidate: ({ formData }) => parseWithZod(formData, { schema: signUpSchema }),
     shouldValidate: "onBlur",
   });
@@ -57,7 +60,7 @@ export default function SignUp({ loaderData, actionData }: Route.ComponentProps)
       </Form>
       <p className="mt-6 text-sm text-muted">
         Have an account?{" "}
-        <Link className="link" to="/sign-in">
+        <Link className="link" to={`/sign-in${loaderData.next ? `?next=${encodeURIComponent(loaderData.next)}` : ""}`}>
           Sign in
         </Link>
       </p>

@@ -1,13 +1,15 @@
 import { NavLink, Outlet } from "react-router";
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
 import { getSite } from "~/.server/sites";
+import { alertBanner } from "~/.server/alerts/queries";
+import { AlertBanner } from "~/components/alert-banner";
 import type { Route } from "./+types/site";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.site.name ?? "Site"} · Nichewise` }];
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { siteId, role, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
-  return { site: await getSite(siteId), role, unit: user.temperatureUnit };
+  return { site: await getSite(siteId), role, unit: user.temperatureUnit, alerts: await alertBanner(siteId) };
 }
 
 const roleNote = {
@@ -22,7 +24,12 @@ export default function SiteLayout({ loaderData }: Route.ComponentProps) {
   const tabs = [
     { to: base, label: "Spots", end: true },
     { to: `${base}/sensors`, label: "Sensors" },
+    { to: `${base}/compare`, label: "Compare" },
+    { to: `${base}/plants`, label: "Plants" },
+    { to: `${base}/wishlist`, label: "Wishlist" },
     ...(role !== "mentor" ? [{ to: `${base}/import`, label: "Import CSV" }] : []),
+    { to: `${base}/water`, label: "Water" },
+    { to: `${base}/alerts`, label: "Alerts" },
     { to: `${base}/members`, label: "People" },
     ...(role === "owner" ? [{ to: `${base}/edit`, label: "Site details" }] : []),
   ];
@@ -44,6 +51,7 @@ export default function SiteLayout({ loaderData }: Route.ComponentProps) {
           </NavLink>
         ))}
       </nav>
+      <AlertBanner siteId={site.id} initial={loaderData.alerts} unit={loaderData.unit} />
       <Outlet />
     </main>
   );

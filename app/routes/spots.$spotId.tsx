@@ -11,8 +11,15 @@ import { PlaceSensorForm, PlacementHistory, PlacingTips } from "~/components/pla
 import { FitList, SeasonTable } from "~/components/season";
 import { useNow } from "~/components/use-now";
 import { YearStrip } from "~/components/year-strip";
-import { fitsFor, slimProfile, spotProfiles } from "~/.server/profiles";
-import { PLANT_LIBRARY } from "~/domain/plants/library";
+import { NotesPanel } from "~/components/notes-panel";
+import { SpotExports } from "~/components/spot-exports";
+import { listNotes } from "~/.server/notes";
+import { DirectSun } from "~/components/direct-sun";
+import { Inventory } from "~/components/inventory";
+import { EnvelopeChart, YearCharts } from "~/components/spot-charts";
+import { inventoryAction, sitePlants } from "~/.server/plants";
+import { spotGrowing } from "~/.server/spot-growing";
+import { fitsFor, slimProfile, spotProfiles, windowOf } from "~/.server/profiles";
 import { VERDICT_RULES } from "~/domain/fit/verdict";
 import { parseLocalDateTime, timeAgo } from "~/lib/time";
 import { formatTemp, toUnit } from "~/lib/units";
@@ -31,9 +38,10 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     spotProfiles(site, [spot.id]),
   ]);
   const season = profiles.get(spot.id)!;
-  const fits = fitsFor(season);
+  const allPlants = await sitePlants(siteId);
+  const fits = fitsFor(season, allPlants, windowOf(site, spot));
   const plantKey = new URL(request.url).searchParams.get("plant") ?? fits[0]?.key;
-  const plant = PLANT_LIBRARY.find((p) => p.key === plantKey) ?? null;
+  const plant = allPlants.find((p) => p.key === plantKey) ?? null;
   return {
     now: Date.now(),
     role,
@@ -46,8 +54,10 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     profile: slimProfile(season),
     fits,
     plant: plant ? { key: plant.key, name: plant.name, minNightC: plant.minNightC, maxDayC: plant.maxDayC } : null,
-    plants: PLANT_LIBRARY.map((p) => ({ key: p.key, name: p.name })),
+    plants: allPlants.map((p) => ({ key: p.key, name: p.name })),
     verdictRules: VERDICT_RULES,
+    notes: await listNotes(siteId, { spotId: spot.id }),
+    growing: await spotGrowing(site, spot, allPlants, fits),
   };
 }
 
@@ -76,6 +86,8 @@ export async function action({ request, params }: Route.ActionArgs) {
     }
     return { placed: true };
   }
+  const planted = await inventoryAction(form, { siteId, spotId: spot.id, actorId: user.id });
+  if (planted) return data({ plantError: planted.error }, { status: planted.status });
   throw data("Unknown action", { status: 400 });
 }
 
@@ -141,6 +153,18 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
         )}
       </section>
 
+      <Inventory
+        standing={loaderData.growing.standing}
+        plants={loaderData.plants}
+        otherSpots={loaderData.growing.otherSpots}
+        tender={loaderData.growing.tender}
+        canEdit={role !== "mentor"}
+        unit={unit}
+        capacity={spot.capacity}
+        error={actionData && "plantError" in actionData ? (actionData.plantError ?? undefined) : undefined}
+        busy={navigation.state !== "idle"}
+      />
+
       <section className="card space-y-3">
         <YearStrip
           months={loaderData.profile.year}
@@ -188,6 +212,15 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
         <Chart spec={spec48} data={series48.data} testId="chart-48h" />
         {series48.error ? <p className="error">Could not load the chart: {series48.error}</p> : null}
       </section>
+
+      <YearCharts url={`/api/sites/${site.id}/spots/${spot.id}/series?range=year`} unit={unit} timeZone={site.timeZone} />
+      <EnvelopeChart months={loaderData.profile.year} unit={unit} />
+      <DirectSun estimate={loaderData.growing.directSun} hasLightSensor={loaderData.growing.hasLightSensor} />
+
+      <div className="grid gap-6 lg:grid-cols-2">
+        <NotesPanel siteId={site.id} target={{ spotId: spot.id }} notes={loaderData.notes} role={role} timeZone={site.timeZone} about="this spot" />
+        <SpotExports siteId={site.id} spotId={spot.id} />
+      </div>
 
       <div className="grid gap-6 lg:grid-cols-2">
         <section className="card">

@@ -38,7 +38,21 @@ const EXPECT: Record<string, Expect> = {
   "/sites/:siteId/sensors/new": { get: ownerOnly, post: refuse(["owner"]) },
   "/sites/:siteId/sensors/:sensorId": { get: member, post: refuse(["owner", "carer"]) },
   "/sites/:siteId/import": { get: writers, post: refuse(["owner", "carer"]) },
-  "/sites/:siteId/members": { get: member },
+  "/sites/:siteId/members": { get: member, post: refuse(["owner"]) },
+  "/sites/:siteId/water": { get: member, post: refuse(["owner", "carer"]) },
+  "/invite/:token": { get: all(404), post: { anon: 302, stranger: 404, mentor: 404, carer: 404, owner: 404 } },
+  "/help/api": { get: signedIn },
+  "/api/sites/:siteId/notes": { get: member, post: refuse(["owner", "mentor"]) },
+  "/api/sites/:siteId/spots/:spotId/export": { get: member },
+  "/api/admin/mail": { get: { anon: 302, stranger: 404, mentor: 404, carer: 404, owner: 404 } },
+  "/sites/:siteId/compare": { get: member },
+  "/sites/:siteId/plants": { get: member },
+  "/sites/:siteId/plants/new": { get: ownerOnly, post: refuse(["owner"]) },
+  "/sites/:siteId/plants/:plantKey": { get: member, post: refuse(["owner", "carer"]) },
+  "/sites/:siteId/wishlist": { get: member, post: refuse(["owner", "carer"]) },
+  "/sites/:siteId/alerts": { get: member, post: refuse(["owner", "carer", "mentor"]) },
+  "/sites/:siteId/spots/:spotId/alerts": { get: member, post: refuse(["owner"]) },
+  "/api/sites/:siteId/alerts": { get: member },
   "/api/ingest": { get: all(405), post: all(401) },
   "/api/sites/:siteId/spots/:spotId/series": { get: member },
   "/api/sites/:siteId/spots/:spotId/latest": { get: member },
@@ -57,7 +71,7 @@ function flatten(entries: RouteConfigEntry[], prefix = ""): string[] {
 }
 
 const ROUTES = flatten(routes as RouteConfigEntry[]);
-const fill = (p: string) => p.replace(":siteId", "1").replace(":spotId", "1").replace(":sensorId", "1");
+const fill = (p: string) => p.replace(":siteId", "1").replace(":spotId", "1").replace(":sensorId", "1").replace(":plantKey", "phalaenopsis");
 
 async function contextFor(baseURL: string, who: Who): Promise<APIRequestContext> {
   const ctx = await playwrightRequest.newContext({ baseURL, maxRedirects: 0 });
@@ -109,7 +123,7 @@ for (const who of ["anon", "stranger", "mentor", "carer", "owner"] as Who[]) {
     }
     // Another site's data, by id: the demo owner asking for the stranger's site and its API.
     if (who === "owner") {
-      for (const url of ["/sites/2", "/api/sites/2/spots/1/series", "/sites/1/spots/999999", "/sites/1/sensors/999999"]) {
+      for (const url of ["/sites/2", "/api/sites/2/spots/1/series", "/sites/1/spots/999999", "/sites/1/sensors/999999", "/sites/2/compare?spots=1&spots=2", "/sites/2/wishlist", "/sites/1/plants/no-such-plant"]) {
         const res = await ctx.get(url);
         if (res.status() !== 404) failures.push(`GET ${url}: ${res.status()} (want 404)`);
       }

@@ -8,6 +8,15 @@ import { writer } from "~/.server/ingest/writer";
 export const MAX_HTTP_BATCH = 10_000;
 export const MAX_HTTP_BYTES = 4 * 1024 * 1024;
 
+// JSON.stringify recurses: an item nested a million levels deep would throw RangeError.
+const preview = (item: unknown) => {
+  try {
+    return JSON.stringify(item)?.slice(0, 500) ?? "";
+  } catch {
+    return "(too deeply nested to show)";
+  }
+};
+
 const json = (body: unknown, status = 200) =>
   Response.json(body, { status, headers: { "Cache-Control": "no-store" } });
 
@@ -66,14 +75,14 @@ export async function handleHttpIngest(request: Request): Promise<Response> {
   items.forEach((item, index) => {
     if (typeof item !== "object" || item === null || Array.isArray(item)) {
       rejected.push({ index, reason: "not a JSON object" });
-      toRecord.push({ sensorId, source: "http", reason: "not a JSON object", payload: JSON.stringify(item)?.slice(0, 500) ?? "" });
+      toRecord.push({ sensorId, source: "http", reason: "not a JSON object", payload: preview(item) });
       return;
     }
     const r = validateReading(sensorId, item as never, { now, kind: info.kind });
     if (r.ok) ok.push(r.reading);
     else {
       rejected.push({ index, reason: r.reason });
-      toRecord.push({ sensorId, source: "http", reason: r.reason, payload: JSON.stringify(item).slice(0, 500) });
+      toRecord.push({ sensorId, source: "http", reason: r.reason, payload: preview(item) });
     }
   });
   recordRejectionsSoon(toRecord.slice(0, 100));

@@ -68,6 +68,13 @@ describe("coldNights", () => {
     expect(coldNights(phal, withPatches(coldSnaps(1, T.nightPoorCount + 1, 15)), T).level).toBe("poor");
   });
 
+  it(`counts only nights more than ${T.nightCountMarginC} °C under towards poor (sensor accuracy)`, () => {
+    const near = coldNights(phal, withPatches(coldSnaps(1, T.nightPoorCount + 5, 16 - T.nightCountMarginC)), T);
+    expect(near.level).toBe("care");
+    expect(near.message).toMatch(/^Nights ran a touch under 16 °C on 15 nights in January \(lowest 15.5 °C\), never more than 0.5 °C under/);
+    expect(coldNights(phal, withPatches(coldSnaps(1, T.nightPoorCount + 1, 15.4)), T).level).toBe("poor");
+  });
+
   it("says how many nights, when, and how cold", () => {
     const season = withPatches([...coldSnaps(11, 10, 12), ...coldSnaps(12, 11, 9), ...coldSnaps(1, 12, 7), ...coldSnaps(2, 8, 11)]);
     const r = coldNights(phal, season, T);

@@ -19,8 +19,14 @@ export type RuleResult = {
 export type FitThresholds = {
   /** Poor when the lowest night is more than this far under the group's safe night… */
   nightPoorMarginC: number;
-  /** …or when more than this many nights fall under it. */
+  /** …or when more than this many nights fall more than nightCountMarginC under it. */
   nightPoorCount: number;
+  /**
+   * Nights within this of the safe night count for care but not towards poor: a cheap sensor reads
+   * to about ±0.5 °C (DHT22 and SHT3x data sheets), and the safe night is a comfortable minimum,
+   * not a damage line — a heated room's 15.6 °C nights don't rule out a 16 °C group.
+   */
+  nightCountMarginC: number;
   /** Poor when the highest day is more than this far over the comfortable day… */
   dayPoorMarginC: number;
   /** …or when more than this many days go over it. */
@@ -40,6 +46,7 @@ export type FitThresholds = {
 export const DEFAULT_FIT_THRESHOLDS: FitThresholds = {
   nightPoorMarginC: 2,
   nightPoorCount: 10,
+  nightCountMarginC: 0.5,
   dayPoorMarginC: 4,
   dayPoorCount: 20,
   lightLowPoorFactor: 0.5,
@@ -138,7 +145,8 @@ export const coldNights: FitRule = (profile, season, t) => {
     return { rule: "cold-nights", level: "ok", message: `Nights stayed at ${c(profile.minNightC)} or above (lowest ${c(lowest)}); ${wants}.` };
   }
   const months = monthsOf(cold);
-  const poor = profile.minNightC - lowest > t.nightPoorMarginC || cold.length > t.nightPoorCount;
+  const clearlyCold = cold.filter((d) => d.low! < profile.minNightC - t.nightCountMarginC);
+  const poor = profile.minNightC - lowest > t.nightPoorMarginC || clearlyCold.length > t.nightPoorCount;
   const when = `${plural(cold.length, "night")} ${describeMonths(months)} (lowest ${c(lowest)})`;
   return {
     rule: "cold-nights",
@@ -146,7 +154,9 @@ export const coldNights: FitRule = (profile, season, t) => {
     months: monthKeys(months),
     message: poor
       ? `Nights fell below ${c(profile.minNightC)} on ${when}; ${wants}. Cold tolerance: ${profile.coldTolerance}.`
-      : `Nights dipped just under ${c(profile.minNightC)} on ${when}; ${wants}. Moving it back from the glass or bringing it in on the coldest nights may be enough.`,
+      : cold.length > t.nightPoorCount
+        ? `Nights ran a touch under ${c(profile.minNightC)} on ${when}, never more than ${c(t.nightCountMarginC)} under — about what a cheap sensor can tell apart; ${wants}. Fine for most plants of the group; watch the tender ones.`
+        : `Nights dipped just under ${c(profile.minNightC)} on ${when}; ${wants}. Moving it back from the glass or bringing it in on the coldest nights may be enough.`,
   };
 };
 

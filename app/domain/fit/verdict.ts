@@ -2,6 +2,7 @@ import { DEFAULT_FIT_THRESHOLDS, FIT_RULES, type FitThresholds, type RuleLevel, 
 import type { PlantProfile } from "~/domain/plants/library";
 import { MONTH_NAMES, MIN_DAYS_FOR_MONTH } from "~/domain/season/profile";
 import type { SeasonProfile } from "~/domain/season/types";
+import { windowLight, type SpotWindow } from "~/domain/fit/window-light";
 
 export type Verdict = "thrives here" | "possible with care" | "struggles here" | "not enough data yet";
 
@@ -34,6 +35,12 @@ export const VERDICT_RULES: { verdict: Verdict; when: string }[] = [
 export const VERDICT_ORDER: Verdict[] = ["thrives here", "possible with care", "not enough data yet", "struggles here"];
 
 const LEVEL_ORDER: Record<RuleLevel, number> = { poor: 0, care: 1, ok: 2 };
+/** Within a level, what a grower needs to hear first: what harms, then what stops flowering, then what a tray or a blind fixes. */
+const RULE_ORDER = ["cold-nights", "hot-days", "flowering", "light", "humidity", "condensation"];
+const ruleRank = (r: RuleResult) => {
+  const i = RULE_ORDER.indexOf(r.rule);
+  return i < 0 ? RULE_ORDER.length : i;
+};
 
 function missingMonthsOf(season: SeasonProfile): number[] {
   const missing = new Set(season.year.filter((m) => !m.coverage.enough).map((m) => m.month));
@@ -42,8 +49,14 @@ function missingMonthsOf(season: SeasonProfile): number[] {
   return Array.from({ length: 12 }, (_, i) => ((start - 1 + i) % 12) + 1).filter((m) => missing.has(m));
 }
 
-export function fitPlant(profile: PlantProfile, season: SeasonProfile, thresholds: FitThresholds = DEFAULT_FIT_THRESHOLDS): PlantFit {
-  const reasons = FIT_RULES.map((rule) => rule(profile, season, thresholds)).sort((a, b) => LEVEL_ORDER[a.level] - LEVEL_ORDER[b.level]);
+/**
+ * `window`, when given, lets a spot without a light sensor be judged on light from its window
+ * facing (windowLight) instead of leaving light unjudged.
+ */
+export function fitPlant(profile: PlantProfile, season: SeasonProfile, thresholds: FitThresholds = DEFAULT_FIT_THRESHOLDS, window?: SpotWindow): PlantFit {
+  const reasons = FIT_RULES.map((rule) => rule(profile, season, thresholds))
+    .map((r) => (r.rule === "light" && r.noData && window ? (windowLight(profile, window) ?? r) : r))
+    .sort((a, b) => LEVEL_ORDER[a.level] - LEVEL_ORDER[b.level] || ruleRank(a) - ruleRank(b));
   const missing = missingMonthsOf(season);
   const levels = new Set(reasons.map((r) => r.level));
   const verdict: Verdict = levels.has("poor")
@@ -83,17 +96,18 @@ export function rankPlantsForSpot(
   plants: PlantProfile[],
   season: SeasonProfile,
   thresholds: FitThresholds = DEFAULT_FIT_THRESHOLDS,
+  window?: SpotWindow,
 ): { plant: PlantProfile; fit: PlantFit }[] {
   return plants
-    .map((plant) => ({ plant, fit: fitPlant(plant, season, thresholds) }))
+    .map((plant) => ({ plant, fit: fitPlant(plant, season, thresholds, window) }))
     .sort((a, b) => compareFits(a.fit, b.fit) || a.plant.name.localeCompare(b.plant.name));
 }
 
 /** Spots for one plant, best fit first; ties keep the given order. */
-export function rankSpotsForPlant<S extends { season: SeasonProfile }>(
+export function rankSpotsForPlant<S extends { season: SeasonProfile; window?: SpotWindow }>(
   plant: PlantProfile,
   spots: S[],
   thresholds: FitThresholds = DEFAULT_FIT_THRESHOLDS,
 ): { spot: S; fit: PlantFit }[] {
-  return spots.map((spot) => ({ spot, fit: fitPlant(plant, spot.season, thresholds) })).sort((a, b) => compareFits(a.fit, b.fit));
+  return spots.map((spot) => ({ spot, fit: fitPlant(plant, spot.season, thresholds, spot.window) })).sort((a, b) => compareFits(a.fit, b.fit));
 }

@@ -62,7 +62,11 @@ export function parseInstant(value: number | string): Date | null {
     return Number.isNaN(d.getTime()) ? null : d;
   }
   if (/^\d+(\.\d+)?$/.test(value)) return parseInstant(Number(value));
-  if (!/^\d{4}-\d{2}-\d{2}[T ]\d{2}:\d{2}(:\d{2}(\.\d{1,9})?)?(Z|[+-]\d{2}:?\d{2})$/i.test(value)) return null;
+  const m = /^(\d{4})-(\d{2})-(\d{2})[T ]\d{2}:\d{2}(:\d{2}(\.\d{1,9})?)?(Z|[+-]\d{2}:?\d{2})$/i.exec(value);
+  if (!m) return null;
+  // V8 rolls an impossible day over (30 February becomes 1 March); a sensor sending one has a bad clock.
+  const [year, month, day] = [Number(m[1]), Number(m[2]), Number(m[3])];
+  if (new Date(Date.UTC(year, month - 1, day)).getUTCDate() !== day) return null;
   const d = new Date(value.replace(" ", "T"));
   return Number.isNaN(d.getTime()) ? null : d;
 }
@@ -115,11 +119,22 @@ export function validateReading(
   if (battery != null && (battery < 0 || battery > 100)) return { ok: false, reason: `battery: ${round1(battery)} is outside 0–100 %` };
   return {
     ok: true,
-    reading: { sensorId, measuredAt: new Date(Math.floor(measuredAt.getTime() / 1000) * 1000), temperature, humidity, lux, battery },
+    reading: {
+      sensorId,
+      measuredAt: new Date(Math.floor(measuredAt.getTime() / 1000) * 1000),
+      temperature: tidy(temperature),
+      humidity: tidy(humidity),
+      lux: tidy(lux),
+      battery: tidy(battery),
+    },
   };
 }
 
 const round1 = (n: number) => Math.round(n * 10) / 10;
+// PostgreSQL's real refuses a value that underflows (e.g. 5e-324: "out of range for type real"),
+// which would fail the whole group commit and make the sensor resend it forever. No sensor
+// resolves a millionth of a unit, so values are kept to six decimals.
+const tidy = (n: number | null) => (n === null ? null : Math.round(n * 1e6) / 1e6 || 0);
 
 export type TopicMatch = { sensorId: number; channel: ChannelTopic | "reading" } | null;
 

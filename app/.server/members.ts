@@ -1,0 +1,237 @@
+// People in a site: invitations by e-mail, role changes, removal and leaving. Every change is
+// written to audit_log in the same transaction. The last owner can neither leave nor be demoted or
+// removed: the owner rows of the site are locked first, so two owners demoting each other at once
+// cannot both succeed.
+import { sha256 } from "@oslojs/crypto/sha2";
+import { encodeBase32LowerCaseNoPadding, encodeHexLowerCase } from "@oslojs/encoding";
+import { and, desc, eq, gt, isNull, sql } from "drizzle-orm";
+import { db, type Db } from "~/.server/db";
+import { publicUrl } from "~/.server/env";
+import { sendMail } from "~/.server/mail";
+import { auditLog, invitations, memberships, sites, users, type Role } from "~/db/schema.server";
+
+export const INVITATION_DAYS = 7;
+export const INVITABLE_ROLES = ["carer", "mentor"] as const satisfies readonly Role[];
+export type InvitableRole = (typeof INVITABLE_ROLES)[number];
+
+export class MembershipError extends Error {}
+
+type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
+
+export const invitationTokenHash = (token: string) => encodeHexLowerCase(sha256(new TextEncoder().encode(token)));
+
+function newInvitationToken() {
+  const bytes = new Uint8Array(20);
+  crypto.getRandomValues(bytes);
+  return encodeBase32LowerCaseNoPadding(bytes);
+}
+
+export const invitationUrl = (token: string) => `${publicUrl()}/invite/${token}`;
+
+const roleLine: Record<Role, string> = {
+  owner: "an owner: manages spots, sensors, people and alerts",
+  carer: "a carer: you can log water checks, move sensors and plants, and acknowledge alerts",
+  mentor: "a mentor: you can read everything in the site and leave notes on spots and plants",
+};
+
+/** Creates the invitation and e-mails its link; the token itself is only in the e-mail. */
+export async function inviteMember(opts: { siteId: number; actor: { id: number; name: string }; email: string; role: InvitableRole; now?: Date }) {
+  const email = opts.email.trim().toLowerCase();
+  const now = opts.now ?? new Date();
+  const [existing] = await db()
+    .select({ userId: users.id })
+    .from(memberships)
+    .innerJoin(users, eq(users.id, memberships.userId))
+    .where(and(eq(memberships.siteId, opts.siteId), eq(users.email, email)));
+  if (existing) throw new MembershipError(`${email} is already a member of this site.`);
+  const token = newInvitationToken();
+  const expiresAt = new Date(now.getTime() + INVITATION_DAYS * 86_400_000);
+  const [site] = await db().select({ name: sites.name }).from(sites).where(eq(sites.id, opts.siteId));
+  const invitation = await db().transaction(async (tx) => {
+    // A new invitation to the same address replaces any still open, so only the newest link works.
+    await tx
+      .update(invitations)
+      .set({ revokedAt: now })
+      .where(and(eq(invitations.siteId, opts.siteId), eq(invitations.email, email), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)));
+    const [row] = await tx
+      .insert(invitations)
+      .values({ siteId: opts.siteId, email, role: opts.role, tokenHash: invitationTokenHash(token), invitedBy: opts.actor.id, expiresAt })
+      .returning();
+    await tx.insert(auditLog).values({ siteId: opts.siteId, actorId: opts.actor.id, action: "member.invite", detail: { email, role: opts.role } });
+    return row;
+  });
+  const url = invitationUrl(token);
+  const until = expiresAt.toLocaleDateString("en-GB", { day: "numeric", month: "long", year: "numeric", timeZone: "UTC" });
+  await sendMail({
+    to: email,
+    subject: `${opts.actor.name} invites you to ${site.name} on Nichewise`,
+    text:
+      `${opts.actor.name} has invited you to share "${site.name}" on Nichewise as ${roleLine[opts.role]}.\n\n` +
+      `Open this link to accept (it works once, until ${until}):\n${url}\n\n` +
+      `If you were not expecting this, ignore this e-mail; nothing happens unless the link is opened.\n`,
+    html:
+      `<p>${escapeHtml(opts.actor.name)} has invited you to share <strong>${escapeHtml(site.name)}</strong> on Nichewise as ${escapeHtml(roleLine[opts.role])}.</p>` +
+      `<p><a href="${url}">Accept the invitation</a> — the link works once, until ${until}.</p>` +
+      `<p>If you were not expecting this, ignore this e-mail; nothing happens unless the link is opened.</p>`,
+  });
+  return { invitation, url };
+}
+
+function escapeHtml(s: string) {
+  return s.replace(/[&<>"']/g, (c) => ({ "&": "&amp;", "<": "&lt;", ">": "&gt;", '"': "&quot;", "'": "&#39;" })[c]!);
+}
+
+export type InvitationState = "open" | "accepted" | "revoked" | "expired";
+
+export function invitationState(inv: { acceptedAt: Date | null; revokedAt: Date | null; expiresAt: Date }, now = new Date()): InvitationState {
+  if (inv.acceptedAt) return "accepted";
+  if (inv.revokedAt) return "revoked";
+  if (inv.expiresAt.getTime() <= now.getTime()) return "expired";
+  return "open";
+}
+
+/** The invitation behind a link, with its site and who sent it; null when the token is unknown. */
+export async function findInvitation(token: string) {
+  if (!/^[a-z2-7]{16,64}$/.test(token)) return null;
+  const [row] = await db()
+    .select({
+      id: invitations.id,
+      siteId: invitations.siteId,
+      siteName: sites.name,
+      email: invitations.email,
+      role: invitations.role,
+      expiresAt: invitations.expiresAt,
+      acceptedAt: invitations.acceptedAt,
+      revokedAt: invitations.revokedAt,
+      inviterName: users.name,
+    })
+    .from(invitations)
+    .innerJoin(sites, eq(sites.id, invitations.siteId))
+    .leftJoin(users, eq(users.id, invitations.invitedBy))
+    .where(eq(invitations.tokenHash, invitationTokenHash(token)));
+  return row ?? null;
+}
+
+/**
+ * Joins the signed-in user to the site. Single use: the row is claimed with a conditional update,
+ * so two tabs opening the same link cannot both join. Someone who is already a member keeps their
+ * role (an owner following an old link must not be demoted by it).
+ */
+export async function acceptInvitation(token: string, user: { id: number }, now = new Date()) {
+  return db().transaction(async (tx) => {
+    const [inv] = await tx
+      .update(invitations)
+      .set({ acceptedAt: now, acceptedBy: user.id })
+      .where(
+        and(
+          eq(invitations.tokenHash, invitationTokenHash(token)),
+          isNull(invitations.acceptedAt),
+          isNull(invitations.revokedAt),
+          gt(invitations.expiresAt, now),
+        ),
+      )
+      .returning();
+    if (!inv) throw new MembershipError("This invitation has been used, withdrawn or has expired. Ask the owner for a new one.");
+    const [already] = await tx
+      .select({ role: memberships.role })
+      .from(memberships)
+      .where(and(eq(memberships.siteId, inv.siteId), eq(memberships.userId, user.id)));
+    if (!already) await tx.insert(memberships).values({ siteId: inv.siteId, userId: user.id, role: inv.role });
+    await tx.insert(auditLog).values({
+      siteId: inv.siteId,
+      actorId: user.id,
+      action: "member.join",
+      detail: { email: inv.email, role: already?.role ?? inv.role, invitationId: inv.id },
+    });
+    return { siteId: inv.siteId, role: already?.role ?? inv.role };
+  });
+}
+
+export async function revokeInvitation(opts: { siteId: number; actorId: number; invitationId: number; now?: Date }) {
+  await db().transaction(async (tx) => {
+    const [inv] = await tx
+      .update(invitations)
+      .set({ revokedAt: opts.now ?? new Date() })
+      .where(and(eq(invitations.id, opts.invitationId), eq(invitations.siteId, opts.siteId), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)))
+      .returning();
+    if (!inv) throw new MembershipError("That invitation is no longer open.");
+    await tx.insert(auditLog).values({ siteId: opts.siteId, actorId: opts.actorId, action: "member.invite-revoke", detail: { email: inv.email, role: inv.role } });
+  });
+}
+
+/** Locks the site's memberships and returns them, so the last-owner check holds until commit. */
+async function lockMembers(tx: Tx, siteId: number) {
+  const res = await tx.execute<{ user_id: number; role: Role; name: string; email: string }>(
+    sql`select m.user_id, m.role, u.name, u.email from memberships m join users u on u.id = m.user_id where m.site_id = ${siteId} for update of m`,
+  );
+  return res.rows;
+}
+
+const LAST_OWNER = "A site needs at least one owner. Make someone else an owner first.";
+
+export async function changeRole(opts: { siteId: number; actorId: number; userId: number; role: Role }) {
+  await db().transaction(async (tx) => {
+    const members = await lockMembers(tx, opts.siteId);
+    const target = members.find((m) => m.user_id === opts.userId);
+    if (!target) throw new MembershipError("That person is not a member of this site.");
+    if (target.role === opts.role) return;
+    const owners = members.filter((m) => m.role === "owner").length;
+    if (target.role === "owner" && owners <= 1) throw new MembershipError(LAST_OWNER);
+    await tx.update(memberships).set({ role: opts.role }).where(and(eq(memberships.siteId, opts.siteId), eq(memberships.userId, opts.userId)));
+    await tx.insert(auditLog).values({
+      siteId: opts.siteId,
+      actorId: opts.actorId,
+      action: "member.role",
+      detail: { userId: target.user_id, name: target.name, from: target.role, to: opts.role },
+    });
+  });
+}
+
+/** Removes a member (an owner removing someone) or the actor themself (leaving). */
+export async function removeMember(opts: { siteId: number; actorId: number; userId: number }) {
+  await db().transaction(async (tx) => {
+    const members = await lockMembers(tx, opts.siteId);
+    const target = members.find((m) => m.user_id === opts.userId);
+    if (!target) throw new MembershipError("That person is not a member of this site.");
+    const owners = members.filter((m) => m.role === "owner").length;
+    if (target.role === "owner" && owners <= 1) {
+      throw new MembershipError(opts.actorId === opts.userId ? `You are the only owner, so you cannot leave. ${LAST_OWNER}` : LAST_OWNER);
+    }
+    await tx.delete(memberships).where(and(eq(memberships.siteId, opts.siteId), eq(memberships.userId, opts.userId)));
+    await tx.insert(auditLog).values({
+      siteId: opts.siteId,
+      actorId: opts.actorId,
+      action: opts.actorId === opts.userId ? "member.leave" : "member.remove",
+      detail: { userId: target.user_id, name: target.name, role: target.role },
+    });
+  });
+}
+
+export async function listInvitations(siteId: number, now = new Date()) {
+  const rows = await db()
+    .select({
+      id: invitations.id,
+      email: invitations.email,
+      role: invitations.role,
+      expiresAt: invitations.expiresAt,
+      acceptedAt: invitations.acceptedAt,
+      revokedAt: invitations.revokedAt,
+      createdAt: invitations.createdAt,
+    })
+    .from(invitations)
+    .where(eq(invitations.siteId, siteId))
+    .orderBy(desc(invitations.createdAt))
+    .limit(30);
+  return rows.map((r) => ({ ...r, state: invitationState(r, now) }));
+}
+
+/** The newest changes in the site, with who made them, for the owners' "what changed" list. */
+export async function recentChanges(siteId: number, limit = 50) {
+  return db()
+    .select({ id: auditLog.id, at: auditLog.at, action: auditLog.action, detail: auditLog.detail, actorName: users.name })
+    .from(auditLog)
+    .leftJoin(users, eq(users.id, auditLog.actorId))
+    .where(eq(auditLog.siteId, siteId))
+    .orderBy(desc(auditLog.at), desc(auditLog.id))
+    .limit(limit);
+}

@@ -1,0 +1,50 @@
+// Water checks per site: logged by carers and owners, read by everyone in the site.
+import { and, asc, eq } from "drizzle-orm";
+import { db } from "~/.server/db";
+import { checkPpm } from "~/domain/water/checks";
+import { waterVerdict } from "~/domain/water/water";
+import { auditLog, users, waterChecks } from "~/db/schema.server";
+
+export async function listWaterChecks(siteId: number) {
+  const rows = await db()
+    .select({
+      id: waterChecks.id,
+      source: waterChecks.source,
+      checkedOn: waterChecks.checkedOn,
+      ppm: waterChecks.ppm,
+      ec: waterChecks.ec,
+      ecScale: waterChecks.ecScale,
+      ph: waterChecks.ph,
+      byName: users.name,
+    })
+    .from(waterChecks)
+    .leftJoin(users, eq(users.id, waterChecks.byUserId))
+    .where(eq(waterChecks.siteId, siteId))
+    .orderBy(asc(waterChecks.checkedOn), asc(waterChecks.id));
+  return rows.map((r) => {
+    const tds = checkPpm(r);
+    return { ...r, tds, ...waterVerdict({ ppm: tds, ph: r.ph }) };
+  });
+}
+
+export type NewWaterCheck = { source: string; checkedOn: Date; ppm: number | null; ec: number | null; ecScale: 0.5 | 0.7 | null; ph: number | null };
+
+export async function addWaterCheck(siteId: number, actorId: number, check: NewWaterCheck) {
+  return db().transaction(async (tx) => {
+    const [row] = await tx.insert(waterChecks).values({ siteId, byUserId: actorId, ...check }).returning();
+    await tx.insert(auditLog).values({
+      siteId,
+      actorId,
+      action: "water.add",
+      detail: { checkId: row.id, source: check.source, ppm: checkPpm(check), ph: check.ph },
+    });
+    return row;
+  });
+}
+
+export async function deleteWaterCheck(siteId: number, actorId: number, checkId: number) {
+  await db().transaction(async (tx) => {
+    const [row] = await tx.delete(waterChecks).where(and(eq(waterChecks.id, checkId), eq(waterChecks.siteId, siteId))).returning();
+    if (row) await tx.insert(auditLog).values({ siteId, actorId, action: "water.delete", detail: { checkId, source: row.source } });
+  });
+}

@@ -1,0 +1,39 @@
+// The site's open alerts and early warnings above every site page, refreshed every 15 s.
+import { useEffect } from "react";
+import { Link, useFetcher } from "react-router";
+import type { AlertBannerData } from "~/.server/alerts/queries";
+import { formatValue } from "~/domain/alerts/messages";
+import { KINDS } from "~/domain/alerts/rules";
+
+export function AlertBanner({ siteId, initial, unit }: { siteId: number; initial: AlertBannerData; unit: "C" | "F" }) {
+  const live = useFetcher<AlertBannerData>();
+  useEffect(() => {
+    const t = setInterval(() => {
+      if (document.visibilityState === "visible") live.load(`/api/sites/${siteId}/alerts`);
+    }, 15_000);
+    return () => clearInterval(t);
+  }, [siteId]);
+  const { open, warnings } = live.data ?? initial;
+  if (open.length === 0 && warnings.length === 0) return null;
+  return (
+    <div role="alert" aria-label="Site alerts" className="mb-6 space-y-1 rounded-md border border-poor/40 bg-poor/10 px-4 py-3 text-sm">
+      {open.map((e) => (
+        <p key={`e${e.id}`}>
+          <strong className="text-poor">⚠ {KINDS[e.kind].label}</strong> at{" "}
+          <Link className="link" to={`/sites/${siteId}/spots/${e.spotId}`}>{e.spotName}</Link>
+          {e.kind === "silent"
+            ? " — no readings are arriving; you cannot see a cold night coming."
+            : ` — ${KINDS[e.kind].direction === "below" ? "lowest" : "highest"} ${e.peak != null ? formatValue(e.kind, e.peak, unit) : "–"}, line ${formatValue(e.kind, e.threshold, unit)}.`}{" "}
+          {e.acknowledgedBy ? <span className="text-muted">Acknowledged by {e.acknowledgedBy}.</span> : null}{" "}
+          <Link className="link font-medium" to={`/sites/${siteId}/alerts`}>See alerts</Link>
+        </p>
+      ))}
+      {warnings.map((w) => (
+        <p key={`w${w.ruleId}`}>
+          <strong className="text-care">↘ Early warning</strong> at <Link className="link" to={`/sites/${siteId}/spots/${w.spotId}`}>{w.spotName}</Link>: at the
+          last hour's rate it reaches {formatValue(w.kind, w.threshold, unit)} within the hour.
+        </p>
+      ))}
+    </div>
+  );
+}

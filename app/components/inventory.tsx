@@ -1,0 +1,127 @@
+// The plants standing in a spot now: add, move to another spot, remove (owner and carer).
+import { Form } from "react-router";
+import { VerdictBadge } from "~/components/season";
+import { formatTemp, type TempUnit } from "~/lib/units";
+
+export type StandingPlant = { id: number; plantKey: string; plantName: string; nickname: string; pots: number; verdict: string | null };
+
+export function Inventory({
+  standing,
+  plants,
+  otherSpots,
+  tender,
+  canEdit,
+  unit,
+  capacity,
+  error,
+  busy,
+}: {
+  standing: StandingPlant[];
+  plants: { key: string; name: string }[];
+  otherSpots: { id: number; name: string }[];
+  tender: { name: string; minNightC: number } | null;
+  canEdit: boolean;
+  unit: TempUnit;
+  capacity: number;
+  error?: string;
+  busy: boolean;
+}) {
+  const pots = standing.reduce((s, p) => s + p.pots, 0);
+  return (
+    <section className="card space-y-4" data-testid="inventory">
+      <div>
+        <h3 className="h2">Plants here now</h3>
+        <p className="text-sm text-muted">
+          {standing.length === 0 ? "Nothing recorded in this spot yet." : `${pots} ${pots === 1 ? "pot" : "pots"}${capacity ? ` of room for ${capacity}` : ""}.`}
+          {tender ? ` Most tender: ${tender.name}, which wants nights of ${formatTemp(tender.minNightC, unit, 0)} or more — cold alerts for this spot start from it.` : ""}
+        </p>
+      </div>
+      {standing.length > 0 ? (
+        <ul className="divide-y divide-line">
+          {standing.map((p) => (
+            <li key={p.id} className="flex flex-wrap items-center gap-x-3 gap-y-2 py-2">
+              <div className="min-w-0 flex-1">
+                <p className="font-medium">{p.nickname || p.plantName}</p>
+                <p className="text-sm text-muted">
+                  {p.nickname ? `${p.plantName} · ` : ""}
+                  {p.pots} {p.pots === 1 ? "pot" : "pots"}
+                </p>
+              </div>
+              {p.verdict ? <VerdictBadge verdict={p.verdict} /> : null}
+              {canEdit ? (
+                <div className="flex flex-wrap items-center gap-2">
+                  {otherSpots.length > 0 ? (
+                    <Form method="post" className="flex items-center gap-1">
+                      <input type="hidden" name="intent" value="plant-move" />
+                      <input type="hidden" name="id" value={p.id} />
+                      <label className="sr-only" htmlFor={`move-${p.id}`}>
+                        Move {p.nickname || p.plantName} to
+                      </label>
+                      <select id={`move-${p.id}`} name="toSpotId" className="field w-auto py-1 text-sm" defaultValue="">
+                        <option value="" disabled>
+                          Move to…
+                        </option>
+                        {otherSpots.map((s) => (
+                          <option key={s.id} value={s.id}>
+                            {s.name}
+                          </option>
+                        ))}
+                      </select>
+                      <button className="btn-quiet py-1 text-sm" disabled={busy}>
+                        Move
+                      </button>
+                    </Form>
+                  ) : null}
+                  <Form method="post">
+                    <input type="hidden" name="intent" value="plant-remove" />
+                    <input type="hidden" name="id" value={p.id} />
+                    <button className="btn-quiet py-1 text-sm" disabled={busy} aria-label={`Remove ${p.nickname || p.plantName} from this spot`}>
+                      Remove
+                    </button>
+                  </Form>
+                </div>
+              ) : null}
+            </li>
+          ))}
+        </ul>
+      ) : null}
+      {canEdit ? (
+        <Form method="post" className="grid gap-3 sm:grid-cols-[2fr_2fr_1fr_auto] sm:items-end">
+          <input type="hidden" name="intent" value="plant-add" />
+          <div>
+            <label className="label" htmlFor="add-plantKey">
+              Plant
+            </label>
+            <select id="add-plantKey" name="plantKey" className="field" required>
+              {plants.map((p) => (
+                <option key={p.key} value={p.key}>
+                  {p.name}
+                </option>
+              ))}
+            </select>
+          </div>
+          <div>
+            <label className="label" htmlFor="add-nickname">
+              Its name (optional)
+            </label>
+            <input id="add-nickname" name="nickname" className="field" maxLength={60} placeholder="e.g. the pink one from the fair" />
+          </div>
+          <div>
+            <label className="label" htmlFor="add-pots">
+              Pots
+            </label>
+            <input id="add-pots" name="pots" type="number" min={1} max={100} defaultValue={1} className="field" />
+          </div>
+          <button className="btn" disabled={busy}>
+            Add here
+          </button>
+          {error ? (
+            <p className="error sm:col-span-4" role="alert">
+              {error}
+            </p>
+          ) : null}
+        </Form>
+      ) : null}
+    </section>
+  );
+}

@@ -1,0 +1,261 @@
+// The spot page's year charts: daily lows and highs as a band, the dew-point margin, and the monthly
+// envelope. Each has a readable table behind a details/summary for screen readers and for checking
+// a number exactly. Values arrive in °C and are shown in the grower's unit.
+import { useMemo } from "react";
+import type uPlot from "uplot";
+import { Chart, TEMP_COLOURS, useSeries, type ChartSpec } from "~/components/chart";
+import { deltaToUnit, formatDelta, formatTemp, toUnit, type TempUnit } from "~/lib/units";
+
+const AXIS = { stroke: "#6f675c", grid: { stroke: "#e4dccd" }, ticks: { stroke: "#e4dccd" } };
+export const MONTHS_SHORT = ["Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"];
+/** Dew-point margin under which glass and leaves are taken to be wet (the brief; same as the season profile). */
+const WET_MARGIN_C = 2;
+
+type Cols = Record<string, (number | null)[]>;
+const conv = (xs: (number | null)[] | undefined, u: TempUnit) => (xs ?? []).map((v) => (v == null ? null : toUnit(v, u)));
+const fmt = (u: TempUnit) => (_s: uPlot, v: number | null) => (v == null ? "–" : `${v.toFixed(1)} °${u}`);
+
+function yearBandSpec(unit: TempUnit): ChartSpec {
+  return {
+    title: "The last year, day by day: each day's low and high",
+    unit,
+    build: (d, u) => ({
+      data: [d.t as number[], conv(d.high, u), conv(d.low, u)] as never,
+      series: [
+        { label: `Daily high °${u}`, stroke: TEMP_COLOURS.hot, width: 1.5, value: fmt(u) },
+        { label: `Daily low °${u}`, stroke: TEMP_COLOURS.cold, width: 1.5, value: fmt(u) },
+      ],
+      bands: [{ series: [1, 2], fill: "rgba(224, 160, 74, 0.22)" }],
+      axes: [AXIS, { ...AXIS, label: `°${u}`, size: 50 }],
+    }),
+  };
+}
+
+function marginSpec(unit: TempUnit): ChartSpec {
+  return {
+    title: "Dew-point margin: how close the air came to wetting glass and leaves (each day's smallest gap)",
+    unit,
+    build: (d, u) => ({
+      data: [d.t as number[], (d.margin ?? []).map((v) => (v == null ? null : deltaToUnit(v, u))), (d.t as number[]).map(() => deltaToUnit(WET_MARGIN_C, u))] as never,
+      series: [
+        { label: `Smallest margin °${u}`, stroke: "#3b6ea8", width: 1.5, value: fmt(u) },
+        { label: `Wet below ${formatDelta(WET_MARGIN_C, u, 0)}`, stroke: "#a53a2c", width: 1, dash: [5, 4], value: fmt(u) },
+      ],
+      axes: [AXIS, { ...AXIS, label: `°${u} above dew point`, size: 56 }],
+    }),
+  };
+}
+
+/** Seven-day blocks from the first day of the year series, for the fallback tables. */
+function weekly(d: Cols) {
+  const t = d.t as number[];
+  const out: { from: number; low: number | null; high: number | null; margin: number | null; wetDays: number }[] = [];
+  for (let i = 0; i < t.length; i += 7) {
+    const pick = (k: string) => (d[k] ?? []).slice(i, i + 7).filter((v): v is number => v != null);
+    const lows = pick("low");
+    const highs = pick("high");
+    const margins = pick("margin");
+    out.push({
+      from: t[i],
+      low: lows.length ? Math.min(...lows) : null,
+      high: highs.length ? Math.max(...highs) : null,
+      margin: margins.length ? Math.min(...margins) : null,
+      wetDays: margins.filter((m) => m < WET_MARGIN_C).length,
+    });
+  }
+  return out;
+}
+
+const dayLabel = (epochS: number, timeZone: string) =>
+  new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", year: "numeric", timeZone }).format(new Date(epochS * 1000));
+
+export function YearCharts({ url, unit, timeZone }: { url: string; unit: TempUnit; timeZone: string }) {
+  const series = useSeries(url);
+  const bandSpec = useMemo(() => yearBandSpec(unit), [unit]);
+  const mSpec = useMemo(() => marginSpec(unit), [unit]);
+  const weeks = useMemo(() => (series.data ? weekly(series.data) : []), [series.data]);
+  const wetDays = useMemo(() => (series.data?.margin ?? []).filter((m) => m != null && m < WET_MARGIN_C).length, [series.data]);
+  return (
+    <>
+      <section className="card space-y-3">
+        <Chart spec={bandSpec} data={series.data} testId="chart-year" />
+        <p className="text-xs text-muted">The shaded band runs from each day's lowest to its highest reading (local days).</p>
+        {series.error ? <p className="error">Could not load the year: {series.error}</p> : null}
+        <details className="text-sm">
+          <summary className="cursor-pointer font-medium">The year as a table (week by week)</summary>
+          <div className="mt-2 max-h-96 overflow-auto">
+            <table className="table" data-testid="year-table">
+              <thead>
+                <tr>
+                  <th>Week from</th>
+                  <th>Lowest</th>
+                  <th>Highest</th>
+                </tr>
+              </thead>
+              <tbody>
+                {weeks.map((w) => (
+                  <tr key={w.from}>
+                    <td>{dayLabel(w.from, timeZone)}</td>
+                    <td>{formatTemp(w.low, unit)}</td>
+                    <td>{formatTemp(w.high, unit)}</td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+          </div>
+        </details>
+      </section>
+      <section className="card space-y-3">
+        <Chart spec={mSpec} data={series.data} testId="chart-margin" />
+        <p className="text-sm text-muted">
+          The margin is the air temperature minus its dew point. Under {formatDelta(WET_MARGIN_C, unit, 0)} cold glass and leaves can
+          turn wet, which invites fungal spots and rot; {wetDays === 0 ? "that never happened here in the last year." : `that happened on ${wetDays} ${wetDays === 1 ? "day" : "days"} here in the last year.`}
+        </p>
+        <details className="text-sm">
+          <summary className="cursor-pointer font-medium">The dew-point margin as a table (week by week)</summary>
+          <div className="mt-2 max-h-96 overflow-auto">
+            <table className="table" data-testid="margin-table">
+              <thead>
+                <tr>
+                  <th>Week from</th>
+                  <th>Smallest margin</th>
+                  <th>Days under {formatDelta(WET_MARGIN_C, unit, 0)}</th>
+                </tr>
+              </thead>
+              <tbody>
+                {weeks.map((w) => (
+                  <tr key={w.from}>
+                    <td>{dayLabel(w.from, timeZone)}</td>
+                    <td>{formatDelta(w.margin, unit)}</td>
+                    <td>{w.wetDays}</td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+          </div>
+        </details>
+      </section>
+    </>
+  );
+}
+
+export type EnvelopeMonth = {
+  key: string;
+  name: string;
+  temperature: { lowest: number | null; highest: number | null; p05: number | null; p95: number | null };
+  coverage: { enough: boolean; daysObserved: number };
+};
+
+const monthAxis = (labels: string[]): uPlot.Axis => ({
+  ...AXIS,
+  splits: () => labels.map((_, i) => i),
+  values: (_u, splits) => splits.map((v) => labels[v] ?? ""),
+});
+
+function envelopeSpec(months: EnvelopeMonth[], unit: TempUnit): ChartSpec {
+  return {
+    title: "Monthly envelope: lowest to highest, with the middle 90 % of hours",
+    unit,
+    build: (d, u) => ({
+      data: [d.x as number[], conv(d.highest, u), conv(d.p95, u), conv(d.p05, u), conv(d.lowest, u)] as never,
+      series: [
+        { label: "Highest", stroke: TEMP_COLOURS.hot, width: 2, value: fmt(u) },
+        { label: "95 %", stroke: TEMP_COLOURS.warm, width: 1, value: fmt(u) },
+        { label: "5 %", stroke: TEMP_COLOURS.cool, width: 1, value: fmt(u) },
+        { label: "Lowest", stroke: TEMP_COLOURS.cold, width: 2, value: fmt(u) },
+      ],
+      bands: [
+        { series: [1, 4], fill: "rgba(155, 184, 138, 0.16)" },
+        { series: [2, 3], fill: "rgba(224, 160, 74, 0.30)" },
+      ],
+      scales: { x: { time: false, range: [-0.4, months.length - 0.6] } },
+      axes: [monthAxis(months.map((m) => m.name.slice(0, 3))), { ...AXIS, label: `°${u}`, size: 50 }],
+    }),
+  };
+}
+
+export function EnvelopeChart({ months, unit }: { months: EnvelopeMonth[]; unit: TempUnit }) {
+  const spec = useMemo(() => envelopeSpec(months, unit), [months, unit]);
+  const data = useMemo(
+    () => ({
+      x: months.map((_, i) => i),
+      highest: months.map((m) => m.temperature.highest),
+      p95: months.map((m) => m.temperature.p95),
+      p05: months.map((m) => m.temperature.p05),
+      lowest: months.map((m) => m.temperature.lowest),
+    }),
+    [months],
+  );
+  return (
+    <section className="card space-y-3">
+      <Chart spec={spec} data={data} testId="chart-envelope" />
+      <p className="text-xs text-muted">
+        Light band: the month's lowest to highest. Darker band: 5–95 % of hourly mean temperatures, the range a plant lives in most of the time.
+      </p>
+      <details className="text-sm">
+        <summary className="cursor-pointer font-medium">The envelope as a table</summary>
+        <table className="table mt-2" data-testid="envelope-table">
+          <thead>
+            <tr>
+              <th>Month</th>
+              <th>Lowest</th>
+              <th>5 %</th>
+              <th>95 %</th>
+              <th>Highest</th>
+            </tr>
+          </thead>
+          <tbody>
+            {months.map((m) => (
+              <tr key={m.key} className={m.coverage.enough ? "" : "text-muted"}>
+                <td>
+                  {m.name}
+                  {m.coverage.enough ? "" : ` (only ${m.coverage.daysObserved} days)`}
+                </td>
+                <td>{formatTemp(m.temperature.lowest, unit)}</td>
+                <td>{formatTemp(m.temperature.p05, unit)}</td>
+                <td>{formatTemp(m.temperature.p95, unit)}</td>
+                <td>{formatTemp(m.temperature.highest, unit)}</td>
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </details>
+    </section>
+  );
+}
+
+/** One colour per spot for overlays, chosen away from the cool-to-warm temperature scale. */
+export const SPOT_COLOURS = ["#6b4c9a", "#b0357a", "#2c6e63", "#4a4540"];
+export const SPOT_DASH: (number[] | undefined)[] = [undefined, [6, 3], [2, 3], [10, 3, 2, 3]];
+
+export function compareSpec(labels: string[], spots: { name: string }[], unit: TempUnit): ChartSpec {
+  return {
+    title: "Monthly envelopes side by side",
+    unit,
+    legend: false,
+    build: (d, u) => {
+      const cols: (number | null)[][] = [];
+      const series: uPlot.Series[] = [];
+      const bands: uPlot.Band[] = [];
+      spots.forEach((s, i) => {
+        const colour = SPOT_COLOURS[i];
+        const base = cols.length + 1;
+        cols.push(conv(d[`highest${i}`], u), conv(d[`p95${i}`], u), conv(d[`p05${i}`], u), conv(d[`lowest${i}`], u));
+        series.push(
+          { label: `${s.name}: highest`, stroke: colour, width: 2, dash: SPOT_DASH[i], value: fmt(u) },
+          { label: `${s.name}: 95 %`, stroke: "transparent", width: 0, value: fmt(u) },
+          { label: `${s.name}: 5 %`, stroke: "transparent", width: 0, value: fmt(u) },
+          { label: `${s.name}: lowest`, stroke: colour, width: 2, dash: SPOT_DASH[i], value: fmt(u) },
+        );
+        bands.push({ series: [base + 1, base + 2], fill: `${colour}2e` });
+      });
+      return {
+        data: [d.x as number[], ...cols] as never,
+        series,
+        bands,
+        scales: { x: { time: false, range: [-0.4, labels.length - 0.6] } },
+        axes: [monthAxis(labels), { ...AXIS, label: `°${u}`, size: 50 }],
+      };
+    },
+  };
+}

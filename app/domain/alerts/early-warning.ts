@@ -1,0 +1,72 @@
+// Early warning: a straight-line fit over the last hour of a falling (or rising) temperature, and
+// when the line reaches the threshold within the horizon, how long until it does. The fit must be
+// good (r²) and the rate real, so sensor noise around a steady value never projects a crossing.
+// The first half hour of a front is diluted in an hour-long fit, so a half-hour fit is tried too,
+// with stricter rate and fit limits.
+import { linearRegression, linearRegressionLine, rSquared } from "simple-statistics";
+import type { AlertKind, Point } from "~/domain/alerts/rules";
+
+export type Projection = { minutes: number; ratePerHour: number; fittedNow: number };
+
+export type FitWindow = {
+  windowMinutes: number;
+  /** At least this many readings, spread over at least `minSpanShare` of the window. */
+  minPoints: number;
+  minSpanShare: number;
+  /** A fall slower than this is the ordinary evening drift, not a front (common practice). */
+  minRatePerHour: number;
+  minRSquared: number;
+};
+
+export const EARLY_WARNING: { horizonMinutes: number; windows: FitWindow[] } = {
+  horizonMinutes: 60,
+  windows: [
+    { windowMinutes: 60, minPoints: 6, minSpanShare: 0.5, minRatePerHour: 1, minRSquared: 0.7 },
+    { windowMinutes: 30, minPoints: 5, minSpanShare: 0.6, minRatePerHour: 2, minRSquared: 0.85 },
+  ],
+};
+
+/**
+ * Minutes until the fitted line crosses `threshold`, or null when it will not within the horizon,
+ * the spot is already past it, or the fit is not trustworthy. `points` sorted by time; `minuteMs`
+ * scales the window, horizon and rate for the compressed demo front.
+ */
+export function projectCrossing(kind: AlertKind, threshold: number, points: Point[], minuteMs = 60_000, cfg = EARLY_WARNING): Projection | null {
+  if (kind !== "cold" && kind !== "heat") return null;
+  if (points.length === 0) return null;
+  for (const w of cfg.windows) {
+    const p = fitWindow(kind, threshold, points, minuteMs, w, cfg.horizonMinutes);
+    if (p) return p;
+  }
+  return null;
+}
+
+function fitWindow(kind: AlertKind, threshold: number, points: Point[], minuteMs: number, cfg: FitWindow, horizonMinutes: number): Projection | null {
+  const last = points[points.length - 1].at.getTime();
+  const windowMs = cfg.windowMinutes * minuteMs;
+  const recent = points.filter((p) => p.at.getTime() > last - windowMs && Number.isFinite(p.value));
+  if (recent.length < cfg.minPoints) return null;
+  if (last - recent[0].at.getTime() < windowMs * cfg.minSpanShare) return null;
+  // x in rule minutes before the last reading keeps the numbers small and well conditioned.
+  const xy = recent.map((p) => [(p.at.getTime() - last) / minuteMs, p.value]);
+  const fit = linearRegression(xy);
+  const line = linearRegressionLine(fit);
+  const r2 = rSquared(xy, line);
+  const ratePerHour = fit.m * 60;
+  const falling = kind === "cold";
+  if (falling ? ratePerHour > -cfg.minRatePerHour : ratePerHour < cfg.minRatePerHour) return null;
+  if (!(r2 >= cfg.minRSquared)) return null;
+  const fittedNow = line(0);
+  const latest = recent[recent.length - 1].value;
+  if (falling ? latest < threshold || fittedNow < threshold : latest > threshold || fittedNow > threshold) return null;
+  const minutes = (threshold - fittedNow) / fit.m;
+  if (!(minutes >= 0) || minutes > horizonMinutes) return null;
+  return { minutes, ratePerHour, fittedNow };
+}
+
+/** "about 40 minutes": to the nearest 5 minutes past a quarter of an hour, never "0". */
+export function roundMinutes(minutes: number): string {
+  if (minutes < 7.5) return "a few minutes";
+  const m = minutes < 15 ? Math.round(minutes) : Math.round(minutes / 5) * 5;
+  return `about ${m} minutes`;
+}

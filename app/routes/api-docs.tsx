@@ -1,0 +1,143 @@
+// The API, documented with examples filled in for the reader's own first site and spot.
+import { requireUser } from "~/.server/auth";
+import { env } from "~/.server/env";
+import { listSpots, mySites } from "~/.server/sites";
+import type { Route } from "./+types/api-docs";
+
+export const meta: Route.MetaFunction = () => [{ title: "API · Nichewise" }];
+
+export async function loader({ request }: Route.LoaderArgs) {
+  const user = await requireUser(request);
+  const sites = await mySites(user.id);
+  const site = sites[0];
+  const spot = site ? (await listSpots(site.id))[0] : undefined;
+  const e = env();
+  return {
+    origin: new URL(request.url).origin,
+    mqttHost: e.MQTT_PUBLIC_HOST ?? (e.MQTT_HOST === "0.0.0.0" ? new URL(request.url).hostname : e.MQTT_HOST),
+    mqttPort: e.MQTT_PORT,
+    siteId: site?.id ?? 1,
+    spotId: spot?.id ?? 1,
+    spotName: spot?.name ?? null,
+    email: user.email,
+  };
+}
+
+function Code({ children }: { children: string }) {
+  return <pre className="overflow-x-auto rounded-lg bg-ink p-3 text-xs leading-relaxed text-paper">{children}</pre>;
+}
+
+function Endpoint({ method, path, who, children }: { method: string; path: string; who: string; children: React.ReactNode }) {
+  return (
+    <div className="space-y-2 border-t border-line pt-4 first:border-t-0 first:pt-0">
+      <p className="font-mono text-sm break-all">
+        <span className="mr-2 rounded bg-accent-soft px-1.5 py-0.5 font-semibold text-accent-dark">{method}</span>
+        {path}
+      </p>
+      <p className="text-sm text-muted">{who}</p>
+      {children}
+    </div>
+  );
+}
+
+export default function ApiDocs({ loaderData: d }: Route.ComponentProps) {
+  const spot = `${d.origin}/api/sites/${d.siteId}/spots/${d.spotId}`;
+  return (
+    <main className="mx-auto max-w-4xl space-y-6 px-4 pt-6 pb-16 sm:px-6">
+      <div>
+        <h1 className="h1">The Nichewise API</h1>
+        <p className="mt-2 text-muted">
+          Sensors send readings in; you take series, season profiles and exports out. Examples below use your own first site
+          {d.spotName ? ` and the spot "${d.spotName}"` : ""} (site {d.siteId}, spot {d.spotId}).
+        </p>
+      </div>
+
+      <section className="card space-y-3">
+        <h2 className="h2">Signing in from a script</h2>
+        <p className="text-sm">
+          Sensors authenticate with their own id and secret (below). Everything else answers to your signed-in session, the same as the
+          pages: sign in once with curl and keep the cookie. You see exactly what your role in the site lets you see; another site's ids
+          answer 404.
+        </p>
+        <Code>{`curl -c cookies.txt -d 'email=${d.email}' --data-urlencode 'password=YOUR PASSWORD' ${d.origin}/sign-in`}</Code>
+      </section>
+
+      <section className="card space-y-4">
+        <h2 className="h2">Ingest: readings in</h2>
+        <Endpoint method="MQTT" path={`nichewise/sensors/<id>/reading`} who="A sensor, with user name = its id and password = its secret (shown once when it is added), QoS 1.">
+          <p className="text-sm">
+            A JSON object with any of <code>temperature</code> (°C, or °F with <code>"unit":"F"</code>), <code>humidity</code> (%),{" "}
+            <code>lux</code>, <code>battery</code> (%), and an optional <code>time</code> (ISO 8601 with a zone, or epoch seconds or
+            milliseconds). Plain numbers go to <code>…/temperature</code>, <code>…/humidity</code>, <code>…/lux</code> or{" "}
+            <code>…/battery</code>. A payload that cannot be read is acknowledged and recorded with its reason (the admin's ingest health page
+            lists them).
+          </p>
+          <Code>{`mosquitto_pub -h ${d.mqttHost} -p ${d.mqttPort} -q 1 -u 7 -P 'SECRET' -t nichewise/sensors/7/reading \\
+  -m '{"temperature":18.4,"humidity":56}'`}</Code>
+        </Endpoint>
+        <Endpoint method="POST" path="/api/ingest" who="A sensor, with Authorization: Bearer <id>.<secret>.">
+          <p className="text-sm">
+            One reading, an array, or <code>{`{"readings":[…]}`}</code> with up to 10,000 buffered readings (4 MB). The answer comes after the
+            commit and lists each rejected reading with its reason.
+          </p>
+          <Code>{`curl -X POST ${d.origin}/api/ingest -H 'Authorization: Bearer 7.SECRET' \\
+  -H 'Content-Type: application/json' \\
+  -d '{"readings":[{"time":"2026-12-01T21:00:00Z","temperature":18.4,"humidity":56}]}'`}</Code>
+          <Code>{`{"received":1,"accepted":1,"stored":1,"duplicates":0,"rejected":[]}`}</Code>
+        </Endpoint>
+      </section>
+
+      <section className="card space-y-4">
+        <h2 className="h2">Series: chart data</h2>
+        <Endpoint method="GET" path="/api/sites/:siteId/spots/:spotId/series?range=48h|30d|year" who="Any member of the site.">
+          <p className="text-sm">
+            Columnar JSON (one array per column, times in epoch seconds), calibrated. <code>48h</code> gives raw readings (<code>temp</code>,{" "}
+            <code>rh</code>, <code>margin</code> = air temperature minus dew point); <code>30d</code> hourly means with <code>t_min</code>/
+            <code>t_max</code>; <code>year</code> daily <code>low</code>/<code>high</code> in the site's time zone.
+          </p>
+          <Code>{`curl -b cookies.txt '${spot}/series?range=30d'
+{"resolution":"hour","t":[1764547200,…],"temp":[17.2,…],"rh":[61.5,…],"t_min":[…],"t_max":[…],"margin":[…]}`}</Code>
+        </Endpoint>
+        <Endpoint method="GET" path="/api/sites/:siteId/spots/:spotId/latest" who="Any member of the site.">
+          <Code>{`curl -b cookies.txt '${spot}/latest'`}</Code>
+        </Endpoint>
+      </section>
+
+      <section className="card space-y-4">
+        <h2 className="h2">Exports and season profiles</h2>
+        <Endpoint
+          method="GET"
+          path="/api/sites/:siteId/spots/:spotId/export?what=raw|hourly|profile&format=csv|json&from=YYYY-MM-DD&to=YYYY-MM-DD"
+          who="Any member of the site. from and to are the site's local dates (to included); without them, the last twelve months."
+        >
+          <ul className="list-disc space-y-1 pl-5 text-sm">
+            <li>
+              <code>what=raw</code>: every reading, columns <code>time</code> (UTC), <code>sensor_id</code>, <code>temperature_c</code>,{" "}
+              <code>humidity_pct</code>, <code>lux</code>, <code>battery_pct</code>, with the sensor's calibration applied. Streamed from
+              the database, so a year of one-minute readings (about 525,600 rows) downloads without waiting for the whole file.
+            </li>
+            <li>
+              <code>what=hourly</code>: the hourly rollups: sample counts, mean, lowest and highest temperature and humidity, the smallest
+              dew-point margin and mean light of each local hour.
+            </li>
+            <li>
+              <code>what=profile</code>: the season profile of the period, one row per calendar month and per season: lowest, highest, 5th and
+              95th percentile of hourly temperature, mean daily low and high, day–night difference, humidity, hours near condensation, mean
+              daily light integral.
+            </li>
+          </ul>
+          <p className="text-sm">
+            JSON answers are <code>{`{"meta":{…},"columns":[…],"rows":[[…],…]}`}</code> (profile: <code>{`{"meta","months","seasons"}`}</code>
+            ); CSV has a header line. Bad parameters answer 400 with <code>{`{"error":"…"}`}</code>.
+          </p>
+          <Code>{`curl -b cookies.txt -OJ '${spot}/export?what=raw&format=csv&from=2025-01-01&to=2025-12-31'
+time,sensor_id,temperature_c,humidity_pct,lux,battery_pct
+2025-01-01T00:00:00.000Z,7,14.2,63.5,,88
+
+curl -b cookies.txt '${spot}/export?what=profile&format=json'
+{"meta":{"spot":"…","hemisphere":"northern",…},"months":[{"key":"2025-01","temperature":{"lowest":9.8,…},…}],"seasons":[…]}`}</Code>
+        </Endpoint>
+      </section>
+    </main>
+  );
+}

@@ -1,0 +1,47 @@
+// Note actions for the NotesPanel on spot and plant pages: GET lists the notes of a spot or plant,
+// POST adds (mentors and owners), resolves or reopens (owners).
+import { data } from "react-router";
+import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
+import { addNote, listNotes, NoteError, setNoteResolved, type NoteTarget } from "~/.server/notes";
+import type { Route } from "./+types/api.notes";
+
+function targetFrom(get: (k: string) => string | null): NoteTarget | null {
+  const spotId = Number(get("spotId"));
+  if (Number.isInteger(spotId) && spotId > 0) return { spotId };
+  const plantKey = get("plantKey")?.trim();
+  if (plantKey) return { plantKey };
+  return null;
+}
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const { siteId } = await requireSiteRole(request, params.siteId, ALL_ROLES);
+  const q = new URL(request.url).searchParams;
+  const target = targetFrom((k) => q.get(k)) ?? undefined;
+  return Response.json({ notes: await listNotes(siteId, target) });
+}
+
+export async function action({ request, params }: Route.ActionArgs) {
+  const form = await request.formData();
+  const intent = String(form.get("intent") ?? "");
+  const { siteId, user } = await requireSiteRole(request, params.siteId, intent === "resolve" || intent === "reopen" ? ["owner"] : ["owner", "mentor"]);
+  try {
+    if (intent === "add") {
+      const target = targetFrom((k) => (form.get(k) as string | null) ?? null);
+      if (!target) return data({ intent, error: "Say which spot or plant the note is on." }, { status: 400 });
+      const body = String(form.get("body") ?? "");
+      await addNote({ siteId, authorId: user.id, target, body }).catch((err) => {
+        if (err instanceof NoteError) throw Object.assign(err, { body });
+        throw err;
+      });
+      return { intent, ok: true };
+    }
+    if (intent === "resolve" || intent === "reopen") {
+      await setNoteResolved({ siteId, actorId: user.id, noteId: Number(form.get("noteId")), resolved: intent === "resolve" });
+      return { intent, ok: true };
+    }
+  } catch (err) {
+    if (err instanceof NoteError) return data({ intent, error: err.message, body: (err as NoteError & { body?: string }).body ?? "" }, { status: 400 });
+    throw err;
+  }
+  return data({ intent, error: "Unknown action" }, { status: 400 });
+}

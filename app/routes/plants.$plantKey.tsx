@@ -1,0 +1,227 @@
+import { data, Form, Link, redirect, useNavigation } from "react-router";
+import { z } from "zod";
+import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
+import { deleteCustomProfile, saveWish, siteInventory, sitePlant, sitePlants, siteWishlist } from "~/.server/plants";
+import { fitsFor, spotProfiles, windowOf } from "~/.server/profiles";
+import { getSite, listSpots } from "~/.server/sites";
+import { VerdictBadge } from "~/components/season";
+import { NotesPanel } from "~/components/notes-panel";
+import { listNotes } from "~/.server/notes";
+import { rankSpotsForPlant } from "~/domain/fit/verdict";
+import { PLANT_LIBRARY, type PlantProfile } from "~/domain/plants/library";
+import { deltaToUnit, formatTemp, type TempUnit } from "~/lib/units";
+import type { Route } from "./+types/plants.$plantKey";
+
+export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.plant.name ?? "Plant"} · Nichewise` }];
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const { siteId, role, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
+  const plant = await sitePlant(siteId, params.plantKey);
+  const [site, spots, wishes, inventory, plants] = await Promise.all([getSite(siteId), listSpots(siteId), siteWishlist(siteId), siteInventory(siteId), sitePlants(siteId)]);
+  const profiles = await spotProfiles(site, spots.map((s) => s.id), new Date(), { plants });
+  const ranked = rankSpotsForPlant(plant, spots.map((s) => ({ spot: s, season: profiles.get(s.id)!, window: windowOf(site, s) })));
+  const reasonsBySpot = new Map(spots.map((s) => [s.id, fitsFor(profiles.get(s.id)!, [plant], windowOf(site, s))[0]]));
+  const wish = wishes.find((w) => w.plantKey === plant.key) ?? null;
+  return {
+    role,
+    siteId,
+    unit: user.temperatureUnit,
+    plant,
+    notes: { rows: await listNotes(siteId, { plantKey: plant.key }), timeZone: site.timeZone },
+    basedOnName: plant.basedOn ? (PLANT_LIBRARY.find((p) => p.key === plant.basedOn)?.name ?? plant.basedOn) : null,
+    wish: wish ? { mustHave: wish.mustHave, pots: wish.pots } : null,
+    standing: inventory.filter((i) => i.plantKey === plant.key).map((i) => ({ ...i, spotName: spots.find((s) => s.id === i.spotId)?.name ?? "" })),
+    spots: ranked.map(({ spot: { spot } }) => {
+      const f = reasonsBySpot.get(spot.id)!;
+      return { id: spot.id, name: spot.name, verdict: f.verdict, reasons: f.reasons, okReasons: f.okReasons, missingAdvice: f.missingAdvice };
+    }),
+  };
+}
+
+const wishSchema = z.object({
+  mustHave: z.literal("on").optional(),
+  pots: z.coerce.number().int("Whole pots only").min(1, "At least one pot").max(100, "Up to 100 pots"),
+});
+
+export async function action({ request, params }: Route.ActionArgs) {
+  const { siteId, role, user } = await requireSiteRole(request, params.siteId, WRITERS);
+  const plant = await sitePlant(siteId, params.plantKey);
+  const form = await request.formData();
+  const intent = form.get("intent");
+  if (intent === "wish") {
+    const parsed = wishSchema.safeParse({ mustHave: form.get("mustHave") ?? undefined, pots: form.get("pots") || 1 });
+    if (!parsed.success) return data({ error: parsed.error.issues[0]?.message ?? "Check the pots." }, { status: 400 });
+    await saveWish(siteId, user.id, { plantKey: plant.key, mustHave: parsed.data.mustHave === "on", pots: parsed.data.pots });
+    return { saved: true };
+  }
+  if (intent === "delete") {
+    if (role !== "owner") throw data("Only the owner can delete a profile", { status: 403 });
+    if (!plant.own) return data({ error: "Library profiles can't be deleted; copy one to change it." }, { status: 400 });
+    await deleteCustomProfile(siteId, user.id, plant.key);
+    return redirect(`/sites/${siteId}/plants`);
+  }
+  throw data("Unknown action", { status: 400 });
+}
+
+type Need = { label: string; value: string; fields: string[] };
+
+function needsOf(p: PlantProfile, unit: TempUnit): Need[] {
+  const f = p.flowering;
+  const cue = [
+    f.difC != null ? `days about ${deltaToUnit(f.difC, unit).toFixed(0)} °${unit} warmer than nights` : null,
+    f.coolPeriod
+      ? `${f.coolPeriod.weeks} weeks of nights at or below ${formatTemp(f.coolPeriod.maxNightC, unit, 0)}${f.coolPeriod.maxDayC != null ? ` and days at or below ${formatTemp(f.coolPeriod.maxDayC, unit, 0)}` : ""}${f.coolPeriod.months ? ` (${f.coolPeriod.months})` : ""}`
+      : null,
+  ].filter(Boolean);
+  return [
+    { label: "Temperature group", value: `${p.category} growing`, fields: ["category"] },
+    { label: "Lowest safe night", value: formatTemp(p.minNightC, unit, 0), fields: ["minNightC"] },
+    { label: "Highest comfortable day", value: formatTemp(p.maxDayC, unit, 0), fields: ["maxDayC"] },
+    { label: "Humidity", value: `${p.humidityMin}–${p.humidityMax} %`, fields: ["humidityMin/humidityMax"] },
+    { label: "Light", value: p.light, fields: ["light"] },
+    { label: "Daily light integral", value: `${p.dliMin}–${p.dliMax} mol m⁻² d⁻¹`, fields: ["dliMin/dliMax"] },
+    { label: "To flower", value: `${cue.length ? `${cue.join("; ")}. ` : ""}${f.note}`, fields: ["flowering"] },
+    { label: "Cold tolerance", value: p.coldTolerance, fields: ["coldTolerance"] },
+  ];
+}
+
+const sourcesFor = (p: PlantProfile, fields: string[]) => p.sources.filter((s) => fields.some((f) => s.field === f || s.field.startsWith(`${f}.`)));
+
+export default function PlantPage({ loaderData, actionData }: Route.ComponentProps) {
+  const { plant, unit, role, spots, wish, standing } = loaderData;
+  const navigation = useNavigation();
+  const canWrite = role !== "mentor";
+  return (
+    <div className="space-y-6">
+      <p className="text-sm">
+        <Link to={`/sites/${loaderData.siteId}/plants`} className="link">
+          ← All plants
+        </Link>
+      </p>
+      <div className="flex flex-wrap items-end justify-between gap-3">
+        <div>
+          <h2 className="text-xl font-semibold">{plant.name}</h2>
+          <p className="text-sm text-muted">
+            {plant.own ? `This site's own profile${loaderData.basedOnName ? `, copied from ${loaderData.basedOnName}` : ""}. ` : ""}
+            {plant.summary}
+          </p>
+        </div>
+        {role === "owner" ? (
+          <Link to={`/sites/${loaderData.siteId}/plants/new?from=${encodeURIComponent(plant.key)}`} className="btn-quiet">
+            {plant.own ? "Edit" : "Copy to adjust"}
+          </Link>
+        ) : null}
+      </div>
+
+      <section className="card">
+        <h3 className="h2 mb-1">What it needs</h3>
+        <p className="mb-3 text-sm text-muted">Every value with where it comes from. “From memory” marks a value recalled from grower practice without a checked publication.</p>
+        <dl className="divide-y divide-line" data-testid="plant-needs">
+          {needsOf(plant, unit).map((n) => (
+            <div key={n.label} className="grid gap-1 py-2.5 sm:grid-cols-[12rem_1fr]">
+              <dt className="font-medium">{n.label}</dt>
+              <dd>
+                <p>{n.value}</p>
+                <ul className="mt-0.5 space-y-0.5 text-sm text-muted" data-testid="plant-sources">
+                  {sourcesFor(plant, n.fields).map((s) => (
+                    <li key={s.field + s.source}>
+                      Source: {s.source}
+                      {s.memory ? <span className="ml-1 rounded bg-accent-soft px-1.5 text-xs font-medium text-ink">from memory</span> : null}
+                    </li>
+                  ))}
+                  {sourcesFor(plant, n.fields).length === 0 ? <li>No source recorded.</li> : null}
+                </ul>
+              </dd>
+            </div>
+          ))}
+        </dl>
+      </section>
+
+      <section className="card">
+        <h3 className="h2 mb-1">Where could it live?</h3>
+        <p className="mb-3 text-sm text-muted">This site's spots, best fit first, judged on each spot's last twelve months.</p>
+        {spots.length === 0 ? (
+          <p className="text-muted">No spots yet.</p>
+        ) : (
+          <ol className="divide-y divide-line" data-testid="plant-spots">
+            {spots.map((s) => (
+              <li key={s.id} className="py-3">
+                <div className="flex flex-wrap items-center gap-x-3 gap-y-1">
+                  <Link to={`/sites/${loaderData.siteId}/spots/${s.id}?plant=${encodeURIComponent(plant.key)}`} className="link font-semibold">
+                    {s.name}
+                  </Link>
+                  <span className="ml-auto">
+                    <VerdictBadge verdict={s.verdict} />
+                  </span>
+                </div>
+                {s.reasons[0] ? <p className="mt-1.5 text-sm">{s.reasons[0].message}</p> : null}
+                {s.missingAdvice ? <p className="mt-1 text-sm text-muted">{s.missingAdvice}</p> : null}
+                {s.reasons.length > 1 ? (
+                  <details className="mt-1 text-sm">
+                    <summary className="cursor-pointer text-muted">{s.reasons.length - 1} more</summary>
+                    <ul className="mt-1 list-disc space-y-0.5 pl-5">
+                      {s.reasons.slice(1).map((r) => (
+                        <li key={r.rule}>{r.message}</li>
+                      ))}
+                    </ul>
+                  </details>
+                ) : null}
+              </li>
+            ))}
+          </ol>
+        )}
+        {standing.length > 0 ? (
+          <p className="mt-3 text-sm text-muted">
+            Standing now: {standing.map((s) => `${s.nickname || "one"} in ${s.spotName}${s.pots > 1 ? ` (${s.pots} pots)` : ""}`).join("; ")}.
+          </p>
+        ) : null}
+      </section>
+
+      <section className="card space-y-3" data-testid="plant-wish">
+        <h3 className="h2">Wishlist</h3>
+        {wish ? (
+          <p className="text-sm">
+            On the wishlist{wish.mustHave ? " as a must-have" : ""}, {wish.pots} {wish.pots === 1 ? "pot" : "pots"}.{" "}
+            <Link to={`/sites/${loaderData.siteId}/wishlist`} className="link">
+              See the wishlist
+            </Link>
+          </p>
+        ) : (
+          <p className="text-sm text-muted">Not on the wishlist.</p>
+        )}
+        {canWrite ? (
+          <Form method="post" className="flex flex-wrap items-end gap-3">
+            <input type="hidden" name="intent" value="wish" />
+            <div>
+              <label className="label" htmlFor="pots">
+                Pots
+              </label>
+              <input id="pots" name="pots" type="number" min={1} max={100} defaultValue={wish?.pots ?? 1} className="field w-24" />
+            </div>
+            <label className="inline-flex items-center gap-2 pb-2 text-sm">
+              <input type="checkbox" name="mustHave" defaultChecked={wish?.mustHave ?? false} /> Must-have
+            </label>
+            <button className="btn" disabled={navigation.state !== "idle"}>
+              {wish ? "Update the wishlist" : "Add to the wishlist"}
+            </button>
+            {actionData && "error" in actionData ? (
+              <p className="error w-full" role="alert">
+                {actionData.error}
+              </p>
+            ) : null}
+          </Form>
+        ) : null}
+      </section>
+
+      <NotesPanel siteId={loaderData.siteId} target={{ plantKey: plant.key }} notes={loaderData.notes.rows} role={role} timeZone={loaderData.notes.timeZone} about={plant.name} />
+
+      {role === "owner" && plant.own ? (
+        <Form method="post" className="card border-poor/30">
+          <input type="hidden" name="intent" value="delete" />
+          <p className="text-sm text-muted">Deleting this profile leaves plants recorded with it in their spots, shown as a removed profile.</p>
+          <button className="btn-danger mt-2">Delete this profile</button>
+        </Form>
+      ) : null}
+    </div>
+  );
+}

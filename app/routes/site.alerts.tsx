@@ -1,0 +1,172 @@
+import { data, Form, Link, useFetcher } from "react-router";
+import { useEffect } from "react";
+import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
+import { acknowledge, getPreferences, savePreferences, siteEvents } from "~/.server/alerts/queries";
+import { getSite, listSpots } from "~/.server/sites";
+import { db } from "~/.server/db";
+import { alertRules } from "~/db/schema.server";
+import { inArray } from "drizzle-orm";
+import { useNow } from "~/components/use-now";
+import { formatDuration, formatValue } from "~/domain/alerts/messages";
+import { clockToMinute, minuteToClock } from "~/domain/alerts/quiet";
+import { ALERT_KINDS, KINDS, type AlertKind } from "~/domain/alerts/rules";
+import { formatInZone, timeAgo } from "~/lib/time";
+import type { Route } from "./+types/site.alerts";
+
+export const meta: Route.MetaFunction = () => [{ title: "Alerts · Nichewise" }];
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const { siteId, role, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
+  const [site, events, prefs, spotList] = await Promise.all([getSite(siteId), siteEvents(siteId, { limit: 50 }), getPreferences(user.id, siteId), listSpots(siteId)]);
+  const rules = spotList.length
+    ? await db().select({ spotId: alertRules.spotId, kind: alertRules.kind, paused: alertRules.paused }).from(alertRules).where(inArray(alertRules.spotId, spotList.map((s) => s.id)))
+    : [];
+  const watches = spotList.map((s) => ({ id: s.id, name: s.name, indoor: s.indoor, rules: rules.filter((r) => r.spotId === s.id) }));
+  return { now: Date.now(), site, role, watches, unit: user.temperatureUnit, events, prefs: { ...prefs, quietFrom: minuteToClock(prefs.quietFrom), quietTo: minuteToClock(prefs.quietTo) } };
+}
+
+export async function action({ request, params }: Route.ActionArgs) {
+  const form = await request.formData();
+  const intent = form.get("intent");
+  if (intent === "acknowledge") {
+    const { siteId, user } = await requireSiteRole(request, params.siteId, WRITERS);
+    await acknowledge(siteId, form.get("eventId"), user.id);
+    return { acknowledged: true };
+  }
+  if (intent === "preferences") {
+    // Every member chooses their own e-mails, mentors included.
+    const { siteId, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
+    const kinds = form.getAll("kinds").map(String).filter((k): k is AlertKind => ALERT_KINDS.includes(k as AlertKind));
+    const fromText = String(form.get("quietFrom") ?? "").trim();
+    const toText = String(form.get("quietTo") ?? "").trim();
+    const quietFrom = fromText ? clockToMinute(fromText) : null;
+    const quietTo = toText ? clockToMinute(toText) : null;
+    const values = { email: form.get("email") === "on", kinds, quietFrom: fromText, quietTo: toText };
+    if ((fromText && quietFrom == null) || (toText && quietTo == null)) return data({ error: "Enter quiet hours as times like 22:30.", values }, { status: 400 });
+    if ((quietFrom == null) !== (quietTo == null)) return data({ error: "Give both ends of the quiet hours, or neither.", values }, { status: 400 });
+    await savePreferences({ userId: user.id, siteId, email: values.email, kinds, quietFrom, quietTo });
+    return { savedPrefs: true };
+  }
+  await requireSiteRole(request, params.siteId, ALL_ROLES);
+  throw data("Unknown action", { status: 400 });
+}
+
+export default function SiteAlerts({ loaderData, actionData }: Route.ComponentProps) {
+  const { site, role, unit, events, prefs } = loaderData;
+  const now = useNow(loaderData.now);
+  const live = useFetcher<typeof loader>();
+  // The list refreshes itself like the banner, so a new event shows up without a reload.
+  useEffect(() => {
+    const t = setInterval(() => {
+      if (document.visibilityState === "visible") live.load(`/sites/${site.id}/alerts`);
+    }, 15_000);
+    return () => clearInterval(t);
+  }, [site.id]);
+  const list = live.data?.events ?? events;
+  const open = list.filter((e) => !e.endedAt);
+  const recent = list.filter((e) => e.endedAt);
+  const err = actionData && "error" in actionData ? actionData : null;
+  const p = err ? { ...prefs, ...err.values } : prefs;
+  const worst = (k: AlertKind) => (KINDS[k].direction === "below" ? "lowest" : "highest");
+
+  const row = (e: (typeof list)[number]) => (
+    <li key={e.id} className="card space-y-1" aria-label={`${KINDS[e.kind].label} at ${e.spotName}`}>
+      <div className="flex flex-wrap items-baseline justify-between gap-2">
+        <p className="font-semibold">
+          {e.endedAt ? "Over: " : <span className="text-poor">Now: </span>}
+          {KINDS[e.kind].label} at <Link className="link" to={`/sites/${site.id}/spots/${e.spotId}`}>{e.spotName}</Link>
+        </p>
+        <p className="text-sm text-muted">
+          since {formatInZone(e.startedAt, site.timeZone)}
+          {e.endedAt ? ` · ended ${formatInZone(e.endedAt, site.timeZone)} · lasted ${formatDuration((new Date(e.endedAt).getTime() - new Date(e.startedAt).getTime()) / 60_000)}` : ` · ${timeAgo(e.startedAt, now)}`}
+        </p>
+      </div>
+      <p className="text-sm">
+        {e.kind === "silent"
+          ? `No readings for ${e.peak != null ? formatDuration(e.peak) : "a while"}.`
+          : `Line: ${formatValue(e.kind, e.threshold, unit)}; ${worst(e.kind)} ${e.peak != null ? formatValue(e.kind, e.peak, unit) : "–"}.`}{" "}
+        {e.notifiedAt ? "E-mailed." : "Not e-mailed yet."}
+      </p>
+      {e.acknowledgedAt ? (
+        <p className="text-sm text-good">✓ Acknowledged by {e.acknowledgedBy ?? "a former member"} · {formatInZone(e.acknowledgedAt, site.timeZone)}</p>
+      ) : role !== "mentor" ? (
+        <Form method="post">
+          <input type="hidden" name="eventId" value={e.id} />
+          <button className="btn-quiet" name="intent" value="acknowledge">I'm on it — acknowledge</button>
+        </Form>
+      ) : (
+        <p className="text-sm text-muted">Not acknowledged yet.</p>
+      )}
+    </li>
+  );
+
+  return (
+    <div className="space-y-8">
+      <section className="space-y-3">
+        <h2 className="text-xl font-semibold">Open alerts</h2>
+        {open.length === 0 ? <p className="text-muted">Nothing open. Watches are set per spot, on each spot's page under “Alert watches”.</p> : <ul className="space-y-3">{open.map(row)}</ul>}
+      </section>
+      <section className="space-y-3">
+        <h2 className="h2">Recent</h2>
+        {recent.length === 0 ? <p className="text-muted">No alerts have ended yet.</p> : <ul className="space-y-3">{recent.map(row)}</ul>}
+      </section>
+
+      <section className="space-y-3">
+        <h2 className="h2">Watches per spot</h2>
+        <ul className="card divide-y divide-line p-0">
+          {loaderData.watches.map((w) => (
+            <li key={w.id} className="flex flex-wrap items-baseline justify-between gap-2 px-4 py-2.5">
+              <span>
+                <Link className="link font-medium" to={`/sites/${site.id}/spots/${w.id}/alerts`}>{w.name}</Link>{" "}
+                <span className="text-sm text-muted">{w.indoor ? "indoors" : "outdoors"}</span>
+              </span>
+              <span className="text-sm text-muted">
+                {w.rules.length === 0
+                  ? "no watches"
+                  : w.rules.map((r) => `${KINDS[r.kind].label.toLowerCase()}${r.paused ? " (paused)" : ""}`).join(", ")}
+              </span>
+            </li>
+          ))}
+        </ul>
+      </section>
+
+      <section className="card space-y-3">
+        <h2 className="h2">Your e-mail alerts for {site.name}</h2>
+        <Form method="post" className="space-y-3">
+          <label className="inline-flex items-center gap-2">
+            <input type="checkbox" name="email" defaultChecked={p.email} /> Send me alerts by e-mail
+          </label>
+          <fieldset>
+            <legend className="label">Which kinds</legend>
+            <div className="flex flex-wrap gap-x-5 gap-y-2">
+              {ALERT_KINDS.map((k) => (
+                <label key={k} className="inline-flex items-center gap-2 text-sm">
+                  <input type="checkbox" name="kinds" value={k} defaultChecked={p.kinds.includes(k)} /> {KINDS[k].label}
+                </label>
+              ))}
+            </div>
+          </fieldset>
+          <div className="flex flex-wrap items-end gap-3">
+            <div>
+              <label className="label" htmlFor="quietFrom">Quiet hours from</label>
+              <input className="field w-28" id="quietFrom" name="quietFrom" placeholder="22:30" defaultValue={p.quietFrom} />
+            </div>
+            <div>
+              <label className="label" htmlFor="quietTo">to</label>
+              <input className="field w-28" id="quietTo" name="quietTo" placeholder="07:00" defaultValue={p.quietTo} />
+            </div>
+          </div>
+          <p className="hint">
+            Times are the site's ({site.timeZone}). During quiet hours, heat, dry-air, condensation and battery alerts are not e-mailed (they still show
+            here). <strong>Cold-snap and silent-sensor alerts are always sent, quiet hours or not</strong> — they are the ones that cannot wait until morning.
+          </p>
+          {err ? <p className="error" role="alert">{err.error}</p> : null}
+          <div className="flex items-center gap-3">
+            <button className="btn" name="intent" value="preferences">Save my alert e-mails</button>
+            {actionData && "savedPrefs" in actionData ? <span className="text-sm text-good">Saved</span> : null}
+          </div>
+        </Form>
+      </section>
+    </div>
+  );
+}

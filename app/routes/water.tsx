@@ -1,0 +1,323 @@
+import { useMemo, useRef, useEffect } from "react";
+import { data, Form, useNavigation } from "react-router";
+import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
+import { getSite } from "~/.server/sites";
+import { addWaterCheck, deleteWaterCheck, listWaterChecks } from "~/.server/water";
+import { Chart, type ChartSpec } from "~/components/chart";
+import { parseSource, ppmLabel, sourceName, STANDARD_SOURCES } from "~/domain/water/checks";
+import { PH_MAX, PH_MIN, ROUTINE_WATERING_MAX_PPM, type WaterVerdict } from "~/domain/water/water";
+import { formatInZone, toLocalInputValue, zonedToUtc } from "~/lib/time";
+import type { Route } from "./+types/water";
+
+export const meta: Route.MetaFunction = () => [{ title: "Water checks · Nichewise" }];
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const { siteId, role } = await requireSiteRole(request, params.siteId, ALL_ROLES);
+  const site = await getSite(siteId);
+  const checks = await listWaterChecks(siteId);
+  return { role, timeZone: site.timeZone, today: toLocalInputValue(new Date(), site.timeZone).slice(0, 10), checks };
+}
+
+const num = (v: FormDataEntryValue | null) => {
+  const s = String(v ?? "").trim().replace(",", ".");
+  if (s === "") return null;
+  const n = Number(s);
+  return Number.isFinite(n) ? n : Number.NaN;
+};
+
+export async function action({ request, params }: Route.ActionArgs) {
+  const { siteId, user } = await requireSiteRole(request, params.siteId, WRITERS);
+  const form = await request.formData();
+  const intent = String(form.get("intent") ?? "");
+  if (intent === "delete") {
+    await deleteWaterCheck(siteId, user.id, Number(form.get("checkId")));
+    return { intent, ok: true };
+  }
+  if (intent !== "log") throw data("Unknown action", { status: 400 });
+  const site = await getSite(siteId);
+  const typed = Object.fromEntries([...form.entries()].map(([k, v]) => [k, String(v)]));
+  const fail = (error: string) => data({ intent, error, typed }, { status: 400 });
+
+  const source = parseSource(typed.source ?? "", typed.ownSource ?? "");
+  if (!source) return fail("Name the water source (up to 40 characters), or choose tap, rain or filtered.");
+  const m = /^(\d{4})-(\d{2})-(\d{2})$/.exec(typed.checkedOn ?? "");
+  if (!m) return fail("Enter the date of the check.");
+  // Noon local time, so the date reads the same in every time zone of the site's members.
+  const checkedOn = zonedToUtc({ year: +m[1], month: +m[2], day: +m[3], hour: 12 }, site.timeZone);
+  if (Number.isNaN(checkedOn.getTime()) || checkedOn.getTime() > Date.now() + 36 * 3_600_000) return fail("The date cannot be in the future.");
+  const value = num(form.get("value"));
+  const ph = num(form.get("ph"));
+  const measure = typed.measure === "ec" ? "ec" : "ppm";
+  const scaleValue = Number(typed.scale);
+  const scale = scaleValue === 0.5 || scaleValue === 0.7 ? scaleValue : null;
+  if (value != null && !(value >= 0 && value <= (measure === "ec" ? 20000 : 10000))) {
+    return fail(measure === "ec" ? "EC is a number of µS/cm, 0 to 20,000." : "TDS is a number of ppm, 0 to 10,000.");
+  }
+  if (measure === "ec" && value != null && !scale) return fail("Choose the meter's scale (0.5 or 0.7); its manual says which.");
+  if (ph != null && !(ph >= 0 && ph <= 14)) return fail("pH is between 0 and 14.");
+  if (value == null && ph == null) return fail("Enter a TDS/EC reading, a pH, or both.");
+  await addWaterCheck(siteId, user.id, {
+    source,
+    checkedOn,
+    ppm: measure === "ppm" ? value : null,
+    ec: measure === "ec" ? value : null,
+    ecScale: measure === "ec" && value != null ? scale : null,
+    ph,
+  });
+  return { intent, ok: true, source };
+}
+
+const VERDICT: Record<WaterVerdict, { word: string; icon: string; cls: string }> = {
+  good: { word: "Good for routine watering", icon: "✓", cls: "text-good" },
+  adjust: { word: "Needs attention", icon: "!", cls: "text-care" },
+  avoid: { word: "Not for routine watering", icon: "✕", cls: "text-poor" },
+};
+
+const SOURCE_COLOURS = ["#3b6ea8", "#a9502b", "#3f7a4a", "#a87514", "#6f4fa0", "#2f8a8a"];
+
+export default function Water({ loaderData, actionData }: Route.ComponentProps) {
+  const { role, checks, timeZone, today } = loaderData;
+  const canLog = role !== "mentor";
+  const navigation = useNavigation();
+  const busy = navigation.state !== "idle";
+  const ad = actionData as { intent?: string; error?: string; typed?: Record<string, string>; ok?: boolean } | undefined;
+  const typed = ad?.error ? (ad.typed ?? {}) : {};
+  const formRef = useRef<HTMLFormElement>(null);
+  useEffect(() => {
+    if (ad?.ok && ad.intent === "log") formRef.current?.reset();
+  }, [ad]);
+
+  const sources = useMemo(() => [...new Set(checks.map((c) => c.source))], [checks]);
+  const latest = sources.map((s) => checks.filter((c) => c.source === s).at(-1)!);
+  const ownSources = sources.filter((s) => !(STANDARD_SOURCES as readonly string[]).includes(s));
+  const day = (d: Date | string) => formatInZone(d, timeZone, { hour: undefined, minute: undefined });
+
+  const chartData = useMemo(() => {
+    const withTds = checks.filter((c) => c.tds != null);
+    const t = [...new Set(withTds.map((c) => Math.floor(new Date(c.checkedOn).getTime() / 1000)))].sort((a, b) => a - b);
+    const cols: Record<string, (number | null)[]> = { t };
+    sources.forEach((s, i) => {
+      const col: (number | null)[] = t.map(() => null);
+      for (const c of withTds.filter((c) => c.source === s)) col[t.indexOf(Math.floor(new Date(c.checkedOn).getTime() / 1000))] = Math.round(c.tds! * 10) / 10;
+      cols[`s${i}`] = col;
+    });
+    cols.limit = t.map(() => ROUTINE_WATERING_MAX_PPM);
+    return t.length ? cols : undefined;
+  }, [checks, sources]);
+  const spec = useMemo<ChartSpec>(
+    () => ({
+      title: "Dissolved solids over time (ppm)",
+      unit: "C",
+      height: 220,
+      build: (d) => ({
+        data: [d.t, ...sources.map((_s, i) => d[`s${i}`]), d.limit] as never,
+        series: [
+          ...sources.map((s, i) => ({
+            label: sourceName(s),
+            stroke: SOURCE_COLOURS[i % SOURCE_COLOURS.length],
+            width: 2,
+            spanGaps: true,
+            points: { show: true, size: 6 },
+            value: (_u: unknown, v: number | null) => (v == null ? "–" : `${v} ppm`),
+          })),
+          { label: `${ROUTINE_WATERING_MAX_PPM} ppm rule of thumb`, stroke: "#6f675c", dash: [6, 4], width: 1, points: { show: false } },
+        ],
+        axes: [
+          { stroke: "#6f675c", grid: { stroke: "#e4dccd" } },
+          { stroke: "#6f675c", grid: { stroke: "#e4dccd" }, label: "ppm", size: 50 },
+        ],
+      }),
+    }),
+    [sources],
+  );
+
+  return (
+    <div className="space-y-6">
+      <div>
+        <h2 className="text-xl font-semibold">Water checks</h2>
+        <p className="max-w-3xl text-sm text-muted">
+          Check each water source before it goes on the plants: dissolved solids (a TDS meter in ppm, or an EC meter in µS/cm) and pH.
+          The rules of thumb: over {ROUTINE_WATERING_MAX_PPM} ppm is not for routine watering, and pH outside {PH_MIN}–{PH_MAX} needs attention.
+        </p>
+      </div>
+
+      <p className="rounded-xl border border-care/40 bg-care/5 p-3 text-sm" role="note">
+        <span className="font-semibold">These are hobby rules of thumb</span> (common practice among orchid growers), not a laboratory test or a
+        drinking-water standard. Cheap meters drift: calibrate yours as its manual says, and ask your mentor or club when a result surprises you.
+      </p>
+
+      {latest.length ? (
+        <div className="grid gap-4 sm:grid-cols-2 lg:grid-cols-3" data-testid="water-sources">
+          {latest.map((c) => {
+            const v = VERDICT[c.verdict];
+            return (
+              <section key={c.source} className="card">
+                <h3 className="h2">{sourceName(c.source)}</h3>
+                <p className="text-sm text-muted">Last checked {day(c.checkedOn)}</p>
+                <p className={`mt-2 font-semibold ${v.cls}`}>
+                  <span aria-hidden="true">{v.icon} </span>
+                  {v.word}
+                </p>
+                <ul className="mt-2 list-disc space-y-1 pl-5 text-sm">
+                  {c.reasons.map((r) => (
+                    <li key={r}>{r}</li>
+                  ))}
+                </ul>
+                <p className="mt-2 text-xs text-muted">{ppmLabel(c)}</p>
+              </section>
+            );
+          })}
+        </div>
+      ) : (
+        <p className="card text-muted">No water checks yet.{canLog ? " Log the first one below." : ""}</p>
+      )}
+
+      {chartData ? (
+        <section className="card">
+          <Chart spec={spec} data={chartData} testId="water-chart" />
+        </section>
+      ) : null}
+
+      <div className="grid gap-6 lg:grid-cols-[minmax(0,1fr)_minmax(0,22rem)]">
+        <section className="card overflow-x-auto">
+          <h3 className="h2 mb-3">All checks</h3>
+          {checks.length === 0 ? (
+            <p className="text-sm text-muted">None yet.</p>
+          ) : (
+            <table className="table" data-testid="water-checks">
+              <thead>
+                <tr>
+                  <th>Date</th>
+                  <th>Source</th>
+                  <th>Dissolved solids</th>
+                  <th>pH</th>
+                  <th>Verdict</th>
+                  <th className="hidden sm:table-cell">By</th>
+                  {canLog ? <th><span className="sr-only">Remove</span></th> : null}
+                </tr>
+              </thead>
+              <tbody>
+                {[...checks].reverse().map((c) => (
+                  <tr key={c.id}>
+                    <td className="whitespace-nowrap">{day(c.checkedOn)}</td>
+                    <td>{sourceName(c.source)}</td>
+                    <td>{ppmLabel(c)}</td>
+                    <td>{c.ph ?? "–"}</td>
+                    <td className={VERDICT[c.verdict].cls}>
+                      <span aria-hidden="true">{VERDICT[c.verdict].icon} </span>
+                      {c.verdict === "good" ? "good" : c.verdict === "adjust" ? "needs attention" : "not for routine use"}
+                    </td>
+                    <td className="hidden sm:table-cell">{c.byName ?? "–"}</td>
+                    {canLog ? (
+                      <td>
+                        <Form
+                          method="post"
+                          onSubmit={(e) => {
+                            if (!confirm("Remove this water check?")) e.preventDefault();
+                          }}
+                        >
+                          <input type="hidden" name="intent" value="delete" />
+                          <input type="hidden" name="checkId" value={c.id} />
+                          <button className="text-xs text-muted underline hover:text-poor" disabled={busy}>
+                            Remove
+                          </button>
+                        </Form>
+                      </td>
+                    ) : null}
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+          )}
+        </section>
+
+        {canLog ? (
+          <section className="card">
+            <h3 className="h2 mb-3">Log a check</h3>
+            <Form method="post" className="space-y-3" ref={formRef}>
+              <input type="hidden" name="intent" value="log" />
+              <div>
+                <label className="label" htmlFor="source">
+                  Source
+                </label>
+                <select id="source" name="source" className="field" defaultValue={typed.source ?? "tap"}>
+                  {STANDARD_SOURCES.map((s) => (
+                    <option key={s} value={s}>
+                      {sourceName(s)}
+                    </option>
+                  ))}
+                  <option value="other">Another source (name it)</option>
+                </select>
+              </div>
+              <div>
+                <label className="label" htmlFor="ownSource">
+                  Its name, for another source
+                </label>
+                <input id="ownSource" name="ownSource" className="field" list="own-sources" maxLength={40} defaultValue={typed.ownSource} placeholder="e.g. Water butt, RO unit" />
+                <datalist id="own-sources">
+                  {ownSources.map((s) => (
+                    <option key={s} value={s} />
+                  ))}
+                </datalist>
+              </div>
+              <div>
+                <label className="label" htmlFor="checkedOn">
+                  Date
+                </label>
+                <input id="checkedOn" name="checkedOn" type="date" className="field" max={today} defaultValue={typed.checkedOn ?? today} required />
+              </div>
+              <fieldset>
+                <legend className="label">The meter reads</legend>
+                <div className="flex flex-wrap gap-4 text-sm">
+                  <label className="flex items-center gap-2">
+                    <input type="radio" name="measure" value="ppm" defaultChecked={typed.measure !== "ec"} /> TDS in ppm
+                  </label>
+                  <label className="flex items-center gap-2">
+                    <input type="radio" name="measure" value="ec" defaultChecked={typed.measure === "ec"} /> EC in µS/cm
+                  </label>
+                </div>
+              </fieldset>
+              <div>
+                <label className="label" htmlFor="value">
+                  Reading
+                </label>
+                <input id="value" name="value" inputMode="decimal" className="field" defaultValue={typed.value} placeholder="e.g. 280" />
+              </div>
+              <div>
+                <label className="label" htmlFor="scale">
+                  EC meter's scale
+                </label>
+                <select id="scale" name="scale" className="field" defaultValue={typed.scale ?? "0.5"}>
+                  <option value="0.5">0.5 — NaCl scale (ppm = µS/cm × 0.5)</option>
+                  <option value="0.7">0.7 — 442 scale (ppm = µS/cm × 0.7)</option>
+                </select>
+                <p className="hint">Only for EC readings; the meter's manual says which scale it uses.</p>
+              </div>
+              <div>
+                <label className="label" htmlFor="ph">
+                  pH
+                </label>
+                <input id="ph" name="ph" inputMode="decimal" className="field" defaultValue={typed.ph} placeholder="e.g. 6.2" />
+              </div>
+              {ad?.error ? (
+                <p className="error" role="alert">
+                  {ad.error}
+                </p>
+              ) : null}
+              {ad?.ok && ad.intent === "log" ? (
+                <p className="text-sm text-good" role="status">
+                  ✓ Check saved.
+                </p>
+              ) : null}
+              <button className="btn w-full" disabled={busy}>
+                Save check
+              </button>
+            </Form>
+          </section>
+        ) : (
+          <p className="text-sm text-muted">Mentors read the water checks; the owner and carers log them.</p>
+        )}
+      </div>
+    </div>
+  );
+}

@@ -1,0 +1,234 @@
+import { data, Form, Link, useNavigation } from "react-router";
+import { z } from "zod";
+import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
+import { removeWish, saveWish, siteInventory, sitePlants, siteWishlist } from "~/.server/plants";
+import { spotProfiles, windowOf } from "~/.server/profiles";
+import { getSite, listSpots } from "~/.server/sites";
+import { VerdictBadge } from "~/components/season";
+import { rankSpotsForPlant, VERDICT_ORDER } from "~/domain/fit/verdict";
+import { planWishlist } from "~/domain/fit/wishlist";
+import type { Route } from "./+types/wishlist";
+
+export const meta: Route.MetaFunction = () => [{ title: "Wishlist · Nichewise" }];
+
+export async function loader({ request, params }: Route.LoaderArgs) {
+  const { siteId, role } = await requireSiteRole(request, params.siteId, ALL_ROLES);
+  const [site, spots, plants, wishes, inventory] = await Promise.all([getSite(siteId), listSpots(siteId), sitePlants(siteId), siteWishlist(siteId), siteInventory(siteId)]);
+  const byKey = new Map(plants.map((p) => [p.key, p]));
+  const wanted = wishes.filter((w) => byKey.has(w.plantKey));
+  const profiles = wanted.length ? await spotProfiles(site, spots.map((s) => s.id), new Date(), { plants }) : new Map();
+  const withSeason = spots.map((s) => ({ spot: s, season: profiles.get(s.id)!, window: windowOf(site, s) }));
+  const ranked = wanted.map((w) => ({ wish: w, fits: rankSpotsForPlant(byKey.get(w.plantKey)!, withSeason).map((r) => ({ spotId: r.spot.spot.id, verdict: r.fit.verdict, reason: r.fit.reasons[0]?.message ?? null })) }));
+  const plan = planWishlist(
+    spots.map((s) => ({ id: s.id, name: s.name, capacity: s.capacity, standingPots: inventory.filter((i) => i.spotId === s.id).reduce((n, i) => n + i.pots, 0) })),
+    ranked.map((r) => ({ plantKey: r.wish.plantKey, mustHave: r.wish.mustHave, pots: r.wish.pots, fits: r.fits })),
+  );
+  const spotName = new Map(spots.map((s) => [s.id, s.name]));
+  const rows = ranked
+    .map((r, i) => {
+      const p = plan.wishes[i];
+      const bestFit = r.fits[0];
+      return {
+        plantKey: r.wish.plantKey,
+        name: byKey.get(r.wish.plantKey)!.name,
+        mustHave: r.wish.mustHave,
+        pots: r.wish.pots,
+        best: p.best ? { spot: spotName.get(p.best.spotId)!, verdict: p.best.verdict, reason: bestFit?.reason ?? null } : null,
+        placed: p.placed ? spotName.get(p.placed.spotId)! : null,
+        note: p.note,
+      };
+    })
+    .sort((a, b) => VERDICT_ORDER.indexOf(a.best?.verdict ?? "struggles here") - VERDICT_ORDER.indexOf(b.best?.verdict ?? "struggles here") || Number(b.mustHave) - Number(a.mustHave));
+  return {
+    siteId,
+    canEdit: role !== "mentor",
+    rows,
+    spots: plan.spots.filter((s) => s.capacity > 0 || s.mustHavePots + s.otherPots > 0),
+    choices: plants.filter((p) => !wishes.some((w) => w.plantKey === p.key)).map((p) => ({ key: p.key, name: p.name })),
+  };
+}
+
+const wishSchema = z.object({
+  plantKey: z.string().min(1, "Choose a plant"),
+  mustHave: z.literal("on").optional(),
+  pots: z.coerce.number().int("Whole pots only").min(1, "At least one pot").max(100, "Up to 100 pots"),
+});
+
+export async function action({ request, params }: Route.ActionArgs) {
+  const { siteId, user } = await requireSiteRole(request, params.siteId, WRITERS);
+  const form = await request.formData();
+  const intent = form.get("intent");
+  const plants = await sitePlants(siteId);
+  if (intent === "save") {
+    const parsed = wishSchema.safeParse({ plantKey: form.get("plantKey") ?? "", mustHave: form.get("mustHave") ?? undefined, pots: form.get("pots") || 1 });
+    if (!parsed.success) return data({ error: parsed.error.issues[0]?.message ?? "Check the plant and pots." }, { status: 400 });
+    if (!plants.some((p) => p.key === parsed.data.plantKey)) return data({ error: "Choose a plant from the list." }, { status: 400 });
+    await saveWish(siteId, user.id, { plantKey: parsed.data.plantKey, mustHave: parsed.data.mustHave === "on", pots: parsed.data.pots });
+    return { error: null };
+  }
+  if (intent === "remove") {
+    await removeWish(siteId, user.id, String(form.get("plantKey") ?? ""));
+    return { error: null };
+  }
+  throw data("Unknown action", { status: 400 });
+}
+
+export default function Wishlist({ loaderData, actionData }: Route.ComponentProps) {
+  const { rows, spots, canEdit, choices, siteId } = loaderData;
+  const busy = useNavigation().state !== "idle";
+  const full = spots.filter((s) => s.filledByMustHaves);
+  return (
+    <div className="space-y-6">
+      <div>
+        <h2 className="h2">Wishlist</h2>
+        <p className="text-sm text-muted">Plants you want, best fit first. Must-haves claim room in their best spot before the rest.</p>
+      </div>
+
+      {full.length > 0 ? (
+        <p className="card border-care/40 text-sm" role="status" data-testid="wishlist-full">
+          <span className="font-semibold text-care">Full with must-haves: </span>
+          {full.map((s) => `${s.name} (${s.standingPots} standing + ${s.mustHavePots} must-have of ${s.capacity} pots)`).join("; ")}. Anything else
+          wanted there needs another spot.
+        </p>
+      ) : null}
+
+      <section className="card">
+        {rows.length === 0 ? (
+          <p className="text-muted">
+            Nothing on the wishlist yet. Add a plant below or from its page in{" "}
+            <Link to={`/sites/${siteId}/plants`} className="link">
+              Plants
+            </Link>
+            .
+          </p>
+        ) : (
+          <ul className="divide-y divide-line" data-testid="wishlist">
+            {rows.map((r) => (
+              <li key={r.plantKey} className="space-y-1.5 py-3">
+                <div className="flex flex-wrap items-center gap-x-3 gap-y-1">
+                  <Link to={`/sites/${siteId}/plants/${r.plantKey}`} className="link font-semibold">
+                    {r.name}
+                  </Link>
+                  {r.mustHave ? <span className="rounded-full bg-accent-soft px-2 text-xs font-semibold">must-have</span> : null}
+                  <span className="text-sm text-muted">
+                    {r.pots} {r.pots === 1 ? "pot" : "pots"}
+                  </span>
+                  {r.best ? (
+                    <span className="ml-auto">
+                      <VerdictBadge verdict={r.best.verdict} />
+                    </span>
+                  ) : null}
+                </div>
+                {r.best ? (
+                  <p className="text-sm">
+                    Best spot: <span className="font-medium">{r.best.spot}</span>
+                    {r.placed && r.placed !== r.best.spot ? (
+                      <>
+                        {" "}
+                        · planned for <span className="font-medium">{r.placed}</span>
+                      </>
+                    ) : null}
+                    {r.best.reason ? <span className="text-muted"> — {r.best.reason}</span> : null}
+                  </p>
+                ) : null}
+                {r.note ? <p className="text-sm text-care">{r.note}</p> : null}
+                {canEdit ? (
+                  <div className="flex flex-wrap items-center gap-2">
+                    <Form method="post" className="flex flex-wrap items-center gap-2">
+                      <input type="hidden" name="intent" value="save" />
+                      <input type="hidden" name="plantKey" value={r.plantKey} />
+                      <label className="inline-flex items-center gap-1.5 text-sm">
+                        <input type="checkbox" name="mustHave" defaultChecked={r.mustHave} /> Must-have
+                      </label>
+                      <label className="sr-only" htmlFor={`pots-${r.plantKey}`}>
+                        Pots of {r.name}
+                      </label>
+                      <input id={`pots-${r.plantKey}`} name="pots" type="number" min={1} max={100} defaultValue={r.pots} className="field w-20 py-1 text-sm" />
+                      <button className="btn-quiet py-1 text-sm" disabled={busy}>
+                        Save
+                      </button>
+                    </Form>
+                    <Form method="post">
+                      <input type="hidden" name="intent" value="remove" />
+                      <input type="hidden" name="plantKey" value={r.plantKey} />
+                      <button className="btn-quiet py-1 text-sm" disabled={busy} aria-label={`Remove ${r.name} from the wishlist`}>
+                        Remove
+                      </button>
+                    </Form>
+                  </div>
+                ) : null}
+              </li>
+            ))}
+          </ul>
+        )}
+      </section>
+
+      {spots.length > 0 ? (
+        <section className="card">
+          <h3 className="h2 mb-3">Room in each spot</h3>
+          <div className="-mx-5 overflow-x-auto px-5">
+            <table className="table" data-testid="wishlist-room">
+              <thead>
+                <tr>
+                  <th>Spot</th>
+                  <th>Room for</th>
+                  <th>Standing now</th>
+                  <th>Must-haves planned</th>
+                  <th>Others planned</th>
+                  <th>Left</th>
+                </tr>
+              </thead>
+              <tbody>
+                {spots.map((s) => (
+                  <tr key={s.id}>
+                    <td className="font-medium">{s.name}</td>
+                    <td>{s.capacity || "not set"}</td>
+                    <td>{s.standingPots}</td>
+                    <td>{s.mustHavePots}</td>
+                    <td>{s.otherPots}</td>
+                    <td className={s.free != null && s.free <= 0 ? "font-semibold text-care" : ""}>{s.free == null ? "–" : s.free <= 0 ? `none (${s.free})` : s.free}</td>
+                  </tr>
+                ))}
+              </tbody>
+            </table>
+          </div>
+        </section>
+      ) : null}
+
+      {canEdit ? (
+        <Form method="post" className="card grid gap-3 sm:grid-cols-[3fr_1fr_auto_auto] sm:items-end" aria-label="Add to the wishlist">
+          <input type="hidden" name="intent" value="save" />
+          <div>
+            <label className="label" htmlFor="wish-plant">
+              Plant
+            </label>
+            <select id="wish-plant" name="plantKey" className="field">
+              {choices.map((p) => (
+                <option key={p.key} value={p.key}>
+                  {p.name}
+                </option>
+              ))}
+            </select>
+          </div>
+          <div>
+            <label className="label" htmlFor="wish-pots">
+              Pots
+            </label>
+            <input id="wish-pots" name="pots" type="number" min={1} max={100} defaultValue={1} className="field" />
+          </div>
+          <label className="inline-flex items-center gap-2 pb-2 text-sm">
+            <input type="checkbox" name="mustHave" /> Must-have
+          </label>
+          <button className="btn" disabled={busy}>
+            Add to the wishlist
+          </button>
+          {actionData?.error ? (
+            <p className="error sm:col-span-4" role="alert">
+              {actionData.error}
+            </p>
+          ) : null}
+        </Form>
+      ) : null}
+    </div>
+  );
+}
