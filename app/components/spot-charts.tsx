@@ -146,10 +146,15 @@ export type EnvelopeMonth = {
   coverage: { enough: boolean; daysObserved: number };
 };
 
+// On a narrow chart, label every second or third month so the labels don't run into each other.
 const monthAxis = (labels: string[]): uPlot.Axis => ({
   ...AXIS,
   splits: () => labels.map((_, i) => i),
-  values: (_u, splits) => splits.map((v) => labels[v] ?? ""),
+  values: (u, splits) => {
+    const widest = Math.max(...labels.map((l) => l.length)) * 7 + 10;
+    const every = Math.max(1, Math.ceil((labels.length * widest) / Math.max(1, u.width - 60)));
+    return splits.map((v) => (v % every === 0 ? (labels[v] ?? "") : ""));
+  },
 });
 
 function envelopeSpec(months: EnvelopeMonth[], unit: TempUnit): ChartSpec {
@@ -159,10 +164,10 @@ function envelopeSpec(months: EnvelopeMonth[], unit: TempUnit): ChartSpec {
     build: (d, u) => ({
       data: [d.x as number[], conv(d.highest, u), conv(d.p95, u), conv(d.p05, u), conv(d.lowest, u)] as never,
       series: [
-        { label: "Highest", stroke: TEMP_COLOURS.hot, width: 2, value: fmt(u) },
-        { label: "95 %", stroke: TEMP_COLOURS.warm, width: 1, value: fmt(u) },
-        { label: "5 %", stroke: TEMP_COLOURS.cool, width: 1, value: fmt(u) },
-        { label: "Lowest", stroke: TEMP_COLOURS.cold, width: 2, value: fmt(u) },
+        { label: `Highest °${u}`, stroke: TEMP_COLOURS.hot, width: 2, value: fmt(u) },
+        { label: `95 % °${u}`, stroke: TEMP_COLOURS.warm, width: 1, value: fmt(u) },
+        { label: `5 % °${u}`, stroke: TEMP_COLOURS.cool, width: 1, value: fmt(u) },
+        { label: `Lowest °${u}`, stroke: TEMP_COLOURS.cold, width: 2, value: fmt(u) },
       ],
       bands: [
         { series: [1, 4], fill: "rgba(155, 184, 138, 0.16)" },
