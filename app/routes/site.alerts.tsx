@@ -89,7 +89,7 @@ export default function SiteAlerts({ loaderData, actionData }: Route.ComponentPr
       </p>
       {e.acknowledgedAt ? (
         <p className="text-sm text-good">✓ Acknowledged by {e.acknowledgedBy ?? "a former member"} · {formatInZone(e.acknowledgedAt, site.timeZone)}</p>
-      ) : role !== "mentor" ? (
+      ) : e.endedAt ? null : role !== "mentor" ? (
         <Form method="post">
           <input type="hidden" name="eventId" value={e.id} />
           <button className="btn-quiet" name="intent" value="acknowledge">I'm on it — acknowledge</button>
