@@ -86,7 +86,9 @@ export function Inventory({
         </ul>
       ) : null}
       {canEdit ? (
-        <Form method="post" className="grid gap-3 sm:grid-cols-[2fr_2fr_1fr_auto] sm:items-end">
+        <details open={Boolean(error)} className="group">
+        <summary className="btn-quiet cursor-pointer list-none">Add a plant here</summary>
+        <Form method="post" className="mt-3 grid gap-3 sm:grid-cols-[2fr_2fr_1fr_auto] sm:items-end">
           <input type="hidden" name="intent" value="plant-add" />
           <div>
             <label className="label" htmlFor="add-plantKey">
@@ -121,6 +123,7 @@ export function Inventory({
             </p>
           ) : null}
         </Form>
+        </details>
       ) : null}
     </section>
   );

@@ -271,6 +271,8 @@ export const alertRules = pgTable(
     pendingSince: timestamp({ withTimezone: true }),
     clearingSince: timestamp({ withTimezone: true }),
     warnedAt: timestamp({ withTimezone: true }),
+    // the newest reading instant evaluated: older readings arriving later cannot move the state
+    evaluatedTo: timestamp({ withTimezone: true }),
     createdAt: createdAt(),
   },
   (t) => [index().on(t.spotId)],

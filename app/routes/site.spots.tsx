@@ -61,7 +61,11 @@ export default function SiteSpots({ loaderData, params }: Route.ComponentProps) 
               )}
               <p className="mt-2 text-sm text-muted">
                 {s.capacity > 0 ? `Room for ${s.capacity} pots` : "Capacity not set"}
-                {s.latest ? ` · hour of ${timeAgo(s.latest.hour, now)}` : ""}
+                {s.latest
+                  ? now - new Date(s.latest.hour).getTime() < 3_600_000
+                    ? " · average so far this hour"
+                    : ` · nothing heard for ${timeAgo(new Date(new Date(s.latest.hour).getTime() + 3_600_000), now).replace(" ago", "")}`
+                  : ""}
               </p>
             </Link>
           </li>

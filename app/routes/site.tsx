@@ -1,4 +1,5 @@
-import { NavLink, Outlet } from "react-router";
+import { useEffect, useRef } from "react";
+import { NavLink, Outlet, useLocation } from "react-router";
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
 import { getSite } from "~/.server/sites";
 import { alertBanner } from "~/.server/alerts/queries";
@@ -19,6 +20,12 @@ const roleNote = {
 };
 
 export default function SiteLayout({ loaderData }: Route.ComponentProps) {
+  // On a phone the tabs scroll sideways: keep the current one in view.
+  const navRef = useRef<HTMLElement>(null);
+  const location = useLocation();
+  useEffect(() => {
+    navRef.current?.querySelector<HTMLElement>("[aria-current=page]")?.scrollIntoView({ block: "nearest", inline: "center" });
+  }, [location.pathname]);
   const { site, role } = loaderData;
   const base = `/sites/${site.id}`;
   const tabs = [
@@ -39,7 +46,7 @@ export default function SiteLayout({ loaderData }: Route.ComponentProps) {
         <h1 className="h1">{site.name}</h1>
         <p className="text-sm text-muted">{roleNote[role]}</p>
       </div>
-      <nav aria-label="Site" className="-mx-4 mt-4 mb-6 flex gap-1 overflow-x-auto border-b border-line px-4 sm:mx-0 sm:px-0">
+      <nav ref={navRef} aria-label="Site" className="-mx-4 mt-4 mb-6 flex gap-1 overflow-x-auto border-b border-line px-4 sm:mx-0 sm:px-0">
         {tabs.map((t) => (
           <NavLink
             key={t.to}

@@ -134,11 +134,16 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
             {spot.capacity ? ` · room for ${spot.capacity} pots` : ""}
           </p>
         </div>
-        {role === "owner" ? (
-          <Link to="edit" className="btn-quiet">
-            Edit spot
+        <div className="flex flex-wrap gap-2">
+          <Link to="alerts" className="btn-quiet">
+            Alert watches
           </Link>
-        ) : null}
+          {role === "owner" ? (
+            <Link to="edit" className="btn-quiet">
+              Edit spot
+            </Link>
+          ) : null}
+        </div>
       </div>
 
       <section className="card" aria-live="polite" data-testid="live-tile">
@@ -153,17 +158,6 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
         )}
       </section>
 
-      <Inventory
-        standing={loaderData.growing.standing}
-        plants={loaderData.plants}
-        otherSpots={loaderData.growing.otherSpots}
-        tender={loaderData.growing.tender}
-        canEdit={role !== "mentor"}
-        unit={unit}
-        capacity={spot.capacity}
-        error={actionData && "plantError" in actionData ? (actionData.plantError ?? undefined) : undefined}
-        busy={navigation.state !== "idle"}
-      />
 
       <section className="card space-y-3">
         <YearStrip
@@ -203,6 +197,17 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
         </details>
       </section>
 
+      <Inventory
+        standing={loaderData.growing.standing}
+        plants={loaderData.plants}
+        otherSpots={loaderData.growing.otherSpots}
+        tender={loaderData.growing.tender}
+        canEdit={role !== "mentor"}
+        unit={unit}
+        capacity={spot.capacity}
+        error={actionData && "plantError" in actionData ? (actionData.plantError ?? undefined) : undefined}
+        busy={navigation.state !== "idle"}
+      />
       <section className="card">
         <h3 className="h2 mb-3">Season profile</h3>
         <SeasonTable months={loaderData.profile.year} seasons={loaderData.profile.seasons} unit={unit} />

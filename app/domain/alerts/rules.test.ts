@@ -64,6 +64,65 @@ describe("evaluate", () => {
     );
   });
 
+  it("a late reading cannot reopen a cleared event or start one inside it", () => {
+    const opened = evaluate(cold, empty, series([...Array(12).fill(8), ...Array(31).fill(12)]));
+    expect(opened.transitions.map((t) => t.type)).toEqual(["open", "clear"]);
+    // A second sensor's readings from the middle of that event turn up after the all-clear.
+    const late = evaluate(cold, opened.state, series(Array(15).fill(7), 1, T0 + 5 * MIN));
+    expect(late.transitions).toEqual([]);
+    expect(late.state).toEqual(opened.state);
+  });
+
+  it("a late reading inside an open event can still lower its peak, and advances nothing", () => {
+    const opened = evaluate(cold, empty, series(Array(12).fill(8)));
+    const late = evaluate(cold, opened.state, [
+      { at: new Date(T0 + 5 * MIN), value: 6.5 },
+      { at: new Date(T0 - 5 * MIN), value: 2 }, // before the event began: not part of it
+    ]);
+    expect(late.state.open?.peak).toBe(6.5);
+    expect(late.state.cursor).toEqual(opened.state.cursor);
+    expect(late.transitions).toEqual([]);
+  });
+
+  it("property: in any arrival order and batching, one rule's events never overlap", () => {
+    fc.assert(
+      fc.property(
+        fc.array(fc.double({ min: 5, max: 15, noNaN: true }), { minLength: 1, maxLength: 200 }),
+        fc.array(fc.integer({ min: 0, max: 199 })),
+        fc.integer({ min: 1, max: 20 }),
+        (values, swaps, batch) => {
+          const pts = series(values);
+          for (let i = 0; i + 1 < swaps.length; i += 2) {
+            const a = swaps[i] % pts.length;
+            const b = swaps[i + 1] % pts.length;
+            [pts[a], pts[b]] = [pts[b], pts[a]];
+          }
+          let state = empty;
+          const transitions = [];
+          for (let i = 0; i < pts.length; i += batch) {
+            const r = evaluate(cold, state, pts.slice(i, i + batch));
+            state = r.state;
+            transitions.push(...r.transitions);
+          }
+          const spans: [number, number][] = [];
+          let start: number | null = null;
+          for (const t of transitions) {
+            if (t.type === "open") {
+              expect(start).toBeNull();
+              start = t.startedAt.getTime();
+            } else {
+              expect(start).not.toBeNull();
+              spans.push([start!, t.at.getTime()]);
+              start = null;
+            }
+          }
+          if (start != null) spans.push([start, Infinity]);
+          for (let i = 1; i < spans.length; i++) expect(spans[i][0]).toBeGreaterThanOrEqual(spans[i - 1][1]);
+        },
+      ),
+    );
+  });
+
   it("heat opens above the threshold", () => {
     const heat: RuleSettings = { kind: "heat", threshold: 30, durationMinutes: 5, hysteresis: 1, clearMinutes: 10 };
     const { transitions } = evaluate(heat, empty, series([29, 31, 32, 33, 32, 31, 31]));

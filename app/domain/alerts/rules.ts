@@ -83,7 +83,13 @@ export type RuleSettings = {
 };
 
 export type OpenEvent = { startedAt: Date; peak: number };
-export type RuleState = { pendingSince: Date | null; clearingSince: Date | null; open: OpenEvent | null };
+export type RuleState = {
+  pendingSince: Date | null;
+  clearingSince: Date | null;
+  open: OpenEvent | null;
+  /** The instant of the newest point evaluated so far; older points arriving later are late. */
+  cursor?: Date | null;
+};
 export type Point = { at: Date; value: number };
 export type Transition = { type: "open"; startedAt: Date; at: Date; peak: number } | { type: "clear"; at: Date; peak: number };
 
@@ -118,18 +124,33 @@ export const isBack = (kind: AlertKind, threshold: number, hysteresis: number, v
 export const worse = (kind: AlertKind, a: number, b: number) => (KINDS[kind].direction === "below" ? Math.min(a, b) : Math.max(a, b));
 
 /**
- * Feeds points (sorted by time) through the rule. `minuteMs` is the length of a rule minute; only the
- * compressed demo front changes it. Points older than the state's own marks cannot move it backwards.
+ * Feeds points through the rule in time order. `minuteMs` is the length of a rule minute; only the
+ * compressed demo front changes it.
+ *
+ * Order-safe: points older than the state's cursor (the newest instant already evaluated) arrive
+ * late — another sensor of the spot, a resend after a reconnect, a swapped send. They cannot reopen
+ * or advance the state, since that could start an event inside one already reported; they only
+ * count towards an open event's peak when they fall inside it. Points at the cursor's instant
+ * (another sensor's reading of the same minute) are evaluated.
  */
 export function evaluate(rule: RuleSettings, state: RuleState, points: Point[], minuteMs = 60_000): { state: RuleState; transitions: Transition[] } {
   let { pendingSince, clearingSince, open } = state;
+  let cursor = state.cursor ?? null;
   open = open ? { ...open } : null;
   const transitions: Transition[] = [];
   let pendingPeak: number | null = null;
   const need = rule.durationMinutes * minuteMs;
   const clearNeed = rule.clearMinutes * minuteMs;
-  for (const p of points) {
+  const sorted = points.every((p, i) => i === 0 || points[i - 1].at.getTime() <= p.at.getTime())
+    ? points
+    : points.slice().sort((a, b) => a.at.getTime() - b.at.getTime());
+  for (const p of sorted) {
     if (!Number.isFinite(p.value)) continue;
+    if (cursor && p.at.getTime() < cursor.getTime()) {
+      if (open && p.at.getTime() >= open.startedAt.getTime()) open.peak = worse(rule.kind, open.peak, p.value);
+      continue;
+    }
+    cursor = p.at;
     const past = isPast(rule.kind, rule.threshold, p.value);
     const back = isBack(rule.kind, rule.threshold, rule.hysteresis, p.value);
     if (!open) {
@@ -164,5 +185,5 @@ export function evaluate(rule: RuleSettings, state: RuleState, points: Point[], 
       pendingSince = null;
     }
   }
-  return { state: { pendingSince, clearingSince, open }, transitions };
+  return { state: { pendingSince, clearingSince, open, cursor }, transitions };
 }

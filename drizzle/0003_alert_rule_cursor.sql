@@ -1,0 +1,1 @@
+ALTER TABLE "alert_rules" ADD COLUMN "evaluated_to" timestamp with time zone;
