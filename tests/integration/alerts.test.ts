@@ -204,6 +204,55 @@ describe("cold snap from the simulated front", () => {
     expect(mailsFor(spot.name)).toEqual([]);
   });
 
+  it("a second sensor's late readings from inside a cleared event neither reopen it nor start an overlapping one", async () => {
+    const { owner, carer, site, spot, sensor } = await household();
+    const late = await makeSensor(site, spot);
+    const ruleId = await coldWatch(spot.id, { early: false });
+    const from = Date.now() - 8 * HOUR;
+    // 8 °C for an hour, then back to 12 °C long enough for the all-clear.
+    await feed(sensor.id, series(from, [12, ...Array(12).fill(8), ...Array(10).fill(12)]));
+    const firstRound = mailsFor(spot.name);
+    expect(firstRound.filter((m) => m.subject.startsWith("Cold snap"))).toHaveLength(2);
+    expect(firstRound.filter((m) => m.subject.startsWith("All clear"))).toHaveLength(2);
+    // The other sensor's cold readings of that hour come in after a reconnect, out of order.
+    await feed(late.id, series(from + 10 * MIN, Array(10).fill(7)).reverse(), 4);
+    const events = await pool().query<{ started_at: Date; ended_at: Date | null }>(`SELECT started_at, ended_at FROM alert_events WHERE rule_id = $1`, [ruleId]);
+    expect(events.rows).toHaveLength(1);
+    expect(events.rows[0].ended_at).not.toBeNull();
+    const clear = mailsFor(spot.name).filter((m) => m.subject.startsWith("All clear"));
+    expect(clear.map((m) => m.to[0]).sort()).toEqual([owner.email, carer.email].sort());
+    expect(mailsFor(spot.name)).toHaveLength(4);
+  });
+
+  it("readings let go of under pressure are re-read from the database from the rule's cursor", async () => {
+    await alerts();
+    alerts = await startAlerts(writer, { maxLagMs: Number.POSITIVE_INFINITY, checkEveryMs: 3_600_000, maxPending: 0 });
+    try {
+      const { owner, carer, spot, sensor } = await household();
+      await coldWatch(spot.id, { early: false });
+      await feed(sensor.id, series(Date.now() - 8 * HOUR, [12, 12, 8, 8, 8, 8, 8, 12, 12, 12, 12, 12, 12, 12, 12]));
+      const subjects = mailsFor(spot.name).map((m) => `${m.subject.split(" ")[0]} ${m.to[0]}`).sort();
+      expect(subjects).toEqual([`All ${carer.email}`, `All ${owner.email}`, `Cold ${carer.email}`, `Cold ${owner.email}`].sort());
+    } finally {
+      await alerts();
+      alerts = await start();
+    }
+  });
+
+  it("readings committed while no engine listened are evaluated when it starts again", async () => {
+    const { spot, sensor } = await household();
+    const ruleId = await coldWatch(spot.id, { early: false });
+    const from = Date.now() - 8 * HOUR;
+    await feed(sensor.id, series(from, [12, 12]));
+    await alerts();
+    await writer.write(series(from + 10 * MIN, Array(6).fill(8)).map((r) => ({ sensorId: sensor.id, measuredAt: r.measuredAt, temperature: r.temperature, humidity: r.humidity, lux: null, battery: 80 })));
+    alerts = await start();
+    await alerts.engine.idle();
+    expect(mailsFor(spot.name).filter((m) => m.subject.startsWith("Cold snap"))).toHaveLength(2);
+    const rule = await pool().query<{ evaluated_to: Date }>(`SELECT evaluated_to FROM alert_rules WHERE id = $1`, [ruleId]);
+    expect(rule.rows[0].evaluated_to.getTime()).toBe(from + 35 * MIN);
+  });
+
   it("history older than the engine's horizon (a CSV of last winter) raises nothing", async () => {
     const { spot, sensor } = await household();
     await coldWatch(spot.id);

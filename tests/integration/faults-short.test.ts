@@ -3,7 +3,7 @@
 // after each fault and at the end: nothing acknowledged is lost, nothing is counted twice, and
 // rollups equal a fresh aggregation of the raw readings. MQTT 3.1.1 §4.3.2: QoS 1 is at least once.
 import { expect, inject, it } from "vitest";
-import { formatReport, runSoak } from "../faults/soak-core";
+import { alertProblems, formatReport, runSoak } from "../faults/soak-core";
 
 it("20,000 readings through a PostgreSQL kill, a broker restart, cut connections and a held lock: 0 lost, 0 double-counted", { timeout: 150_000 }, async () => {
   const report = await runSoak({
@@ -37,5 +37,7 @@ it("20,000 readings through a PostgreSQL kill, a broker restart, cut connections
   if (report.alerts) {
     expect(report.alerts.repeated, "an alert open twice for one rule").toBe(0);
     expect(report.alerts.lostOpen, "an open alert event gone after a fault").toBe(0);
+    expect(report.alerts.overlapping, "events of one rule overlapping in time").toBe(0);
+    expect(alertProblems(report.alerts)).toEqual([]);
   }
 });

@@ -20,6 +20,10 @@ export type AlertEngineOptions = {
   /** Readings older than this (behind the clock) are history, e.g. a CSV import: no alerts for them. */
   maxLagMs?: number;
   checkEveryMs?: number;
+  /** How long stopping waits for pending evaluation (the database may be down). */
+  stopWaitMs?: number;
+  /** Readings held for evaluation before a spot is re-read from the database instead. */
+  maxPending?: number;
   log?: (s: string) => void;
 };
 
@@ -37,6 +41,7 @@ type RuleRow = {
   pending_since: Date | null;
   clearing_since: Date | null;
   warned_at: Date | null;
+  evaluated_to: Date | null;
   spot_name: string;
   site_id: number;
   site_name: string;
@@ -48,15 +53,31 @@ const RULE_SELECT = `SELECT r.*, sp.name AS spot_name, sp.site_id, si.name AS si
 
 type Notice = { eventId: number; message: "open" | "clear" };
 
+/** Readings held for evaluation across all spots; beyond this a spot is re-read from the database. */
+const MAX_PENDING = 50_000;
+const RETRY_FIRST_MS = 250;
+const RETRY_MAX_MS = 5_000;
+
 export class AlertEngine {
   private chain: Promise<unknown> = Promise.resolve();
   readonly minuteMs: number;
   readonly maxLagMs: number;
+  private readonly maxPending: number;
   private readonly log: (s: string) => void;
+  /** Committed readings not yet evaluated, per spot. Kept until evaluated, so a failed call loses nothing. */
+  private readonly pending = new Map<number, CommittedReading[]>();
+  private pendingCount = 0;
+  /** Spots whose readings are re-read from the database from each rule's cursor (after an overflow or a restart); the value is the earliest reading let go. */
+  private readonly rederive = new Map<number, Date | null>();
+  private catchUpAll = false;
+  private retryTimer: NodeJS.Timeout | null = null;
+  private retryDelay = RETRY_FIRST_MS;
+  private settled: (() => void)[] = [];
 
   constructor(opts: AlertEngineOptions = {}) {
     this.minuteMs = opts.minuteMs ?? 60_000;
     this.maxLagMs = opts.maxLagMs ?? 6 * 3_600_000;
+    this.maxPending = opts.maxPending ?? MAX_PENDING;
     this.log = opts.log ?? (() => {});
   }
 
@@ -70,14 +91,137 @@ export class AlertEngine {
     return next;
   }
 
-  /** Resolves once every batch handed over so far (including ones still in the writer's microtasks) is done. */
+  /** Takes a committed batch. Its readings join the spot's pending ones and are evaluated merged, in time order. */
+  accept(rows: CommittedReading[]) {
+    for (const r of rows) {
+      const list = this.pending.get(r.spotId) ?? [];
+      list.push(r);
+      this.pending.set(r.spotId, list);
+      this.pendingCount++;
+    }
+    while (this.pendingCount > this.maxPending) this.overflow();
+    return this.enqueue(() => this.flush());
+  }
+
+  /** Lets go of the largest spot's held readings: they are stored, so that spot is re-read from the database instead. */
+  private overflow() {
+    let spot: number | null = null;
+    for (const [id, list] of this.pending) if (spot === null || list.length > this.pending.get(spot)!.length) spot = id;
+    if (spot === null) return;
+    const list = this.pending.get(spot)!;
+    const earliest = list.reduce((m, r) => Math.min(m, r.measuredAt.getTime()), Infinity);
+    this.pending.delete(spot);
+    this.pendingCount -= list.length;
+    this.rederive.set(spot, new Date(earliest));
+    console.error(`[alerts] ${list.length} readings of spot ${spot} held too long; re-reading them from the database`);
+  }
+
+  /** Re-reads every rule's spot from its cursor: readings committed while no engine was listening. */
+  catchUp() {
+    this.catchUpAll = true;
+    return this.enqueue(() => this.flush());
+  }
+
+  /**
+   * Evaluates what is pending, spot by spot. When a database call fails the spot's readings stay
+   * pending (ahead of any that came meanwhile, and merged with them by time) and the whole flush is
+   * tried again after a short, growing delay: evaluation stays in order per spot.
+   */
+  private async flush(now = new Date()) {
+    if (this.retryTimer) return; // a retry is scheduled; it takes everything pending
+    try {
+      if (this.catchUpAll) {
+        const spots = await pool().query<{ spot_id: number }>(`SELECT DISTINCT spot_id FROM alert_rules WHERE NOT paused AND kind <> 'silent' AND evaluated_to IS NOT NULL`);
+        for (const { spot_id } of spots.rows) this.markRederive(spot_id, null);
+        this.catchUpAll = false;
+      }
+      for (const [spotId, earliest] of [...this.rederive]) {
+        await this.rederiveSpot(spotId, earliest, now);
+        if (this.rederive.get(spotId) === earliest) this.rederive.delete(spotId);
+      }
+      for (const spotId of [...this.pending.keys()]) {
+        const rows = this.pending.get(spotId);
+        if (!rows) continue;
+        this.pending.delete(spotId);
+        this.pendingCount -= rows.length;
+        rows.sort((a, b) => a.measuredAt.getTime() - b.measuredAt.getTime());
+        try {
+          await this.handleBatch(rows, now);
+        } catch (err) {
+          // Back in front of what came meanwhile; the next try sorts them together.
+          const newer = this.pending.get(spotId) ?? [];
+          this.pending.set(spotId, rows.concat(newer));
+          this.pendingCount += rows.length;
+          throw err;
+        }
+      }
+      this.retryDelay = RETRY_FIRST_MS;
+      const waiting = this.settled;
+      this.settled = [];
+      waiting.forEach((f) => f());
+    } catch (err) {
+      console.error(`[alerts] evaluation failed, ${this.pendingCount} readings kept; retrying in ${this.retryDelay} ms:`, err instanceof Error ? err.message : err);
+      this.retryTimer = setTimeout(() => {
+        this.retryTimer = null;
+        void this.enqueue(() => this.flush());
+      }, this.retryDelay);
+      this.retryDelay = Math.min(RETRY_MAX_MS, this.retryDelay * 2);
+    }
+  }
+
+  private markRederive(spotId: number, earliest: Date | null) {
+    const dropped = this.pending.get(spotId);
+    if (dropped) {
+      this.pendingCount -= dropped.length;
+      this.pending.delete(spotId);
+      for (const r of dropped) if (!earliest || r.measuredAt < earliest) earliest = r.measuredAt;
+    }
+    const had = this.rederive.get(spotId);
+    this.rederive.set(spotId, had && (!earliest || had < earliest) ? had : earliest);
+  }
+
+  /** Each rule of the spot from the stored readings after its cursor (or from `earliest` for one never evaluated). */
+  private async rederiveSpot(spotId: number, earliest: Date | null, now: Date) {
+    const rules = (await pool().query<RuleRow>(`${RULE_SELECT} WHERE r.spot_id = $1 AND NOT r.paused AND r.kind <> 'silent' ORDER BY r.id`, [spotId])).rows;
+    const cutoff = now.getTime() - this.maxLagMs;
+    for (const rule of rules) {
+      let from = rule.evaluated_to?.getTime() ?? (earliest ? earliest.getTime() - 1 : null);
+      if (from === null) continue;
+      if (Number.isFinite(cutoff)) from = Math.max(from, cutoff - 1);
+      const points: Point[] = [];
+      // A day ahead: a sensor's clock may run a little fast, and its readings are stored as sent.
+      for (const p of await spotPoints(spotId, new Date(from), new Date(now.getTime() + 86_400_000))) {
+        const v = valueFor(rule.kind, p);
+        if (v != null) points.push({ at: p.at, value: v });
+      }
+      if (points.length > 0) await this.applyRule(rule.id, points);
+    }
+  }
+
+  /** Resolves once every batch handed over so far (including ones still in the writer's microtasks) is evaluated. */
   async idle() {
     for (;;) {
       await new Promise((r) => setImmediate(r));
       const c = this.chain;
       await c;
+      if (this.retryTimer || this.pendingCount > 0 || this.rederive.size > 0 || this.catchUpAll) {
+        await new Promise<void>((r) => this.settled.push(r));
+        continue;
+      }
       if (c === this.chain) return;
     }
+  }
+
+  /** Gives up waiting after `ms` (the database may stay down): what is still pending is stored, and the next start catches up from the cursors. */
+  async idleFor(ms: number) {
+    let timer: NodeJS.Timeout | undefined;
+    const gaveUp = await Promise.race([
+      this.idle().then(() => false),
+      new Promise<boolean>((r) => (timer = setTimeout(() => r(true), ms))),
+    ]);
+    clearTimeout(timer);
+    if (gaveUp) console.error(`[alerts] stopped with ${this.pendingCount} readings unevaluated; the next start re-reads them`);
+    if (this.retryTimer) clearTimeout(this.retryTimer);
   }
 
   async handleBatch(rows: CommittedReading[], now = new Date()) {
@@ -110,6 +254,7 @@ export class AlertEngine {
     const notices: Notice[] = [];
     let rule: RuleRow | undefined;
     let stillOpen = false;
+    let fresh: Point[] = [];
     await this.transaction(async (c) => {
       rule = (await c.query<RuleRow>(`${RULE_SELECT} WHERE r.id = $1 FOR UPDATE OF r`, [ruleId])).rows[0];
       if (!rule || rule.paused) return;
@@ -121,7 +266,10 @@ export class AlertEngine {
         pendingSince: rule.pending_since,
         clearingSince: rule.clearing_since,
         open: open ? { startedAt: open.started_at, peak: open.peak ?? points[0].value } : null,
+        cursor: rule.evaluated_to,
       };
+      const cursor = rule.evaluated_to?.getTime() ?? -Infinity;
+      fresh = points.filter((p) => p.at.getTime() >= cursor);
       const settings = { kind: rule.kind, threshold: rule.threshold, durationMinutes: rule.duration_minutes, hysteresis: rule.hysteresis, clearMinutes: rule.clear_minutes };
       const { state: next, transitions } = evaluate(settings, state, points, this.minuteMs);
       let openId: number | null = open?.id ?? null;
@@ -146,14 +294,20 @@ export class AlertEngine {
       if (next.open && openId != null) await c.query(`UPDATE alert_events SET peak = $2 WHERE id = $1`, [openId, next.open.peak]);
       stillOpen = next.open != null;
       await c.query(
-        `UPDATE alert_rules SET pending_since = $2, clearing_since = $3, warned_at = CASE WHEN $4 THEN NULL ELSE warned_at END WHERE id = $1`,
-        [rule.id, next.pendingSince, next.clearingSince, cleared],
+        `UPDATE alert_rules SET pending_since = $2, clearing_since = $3, evaluated_to = $5, warned_at = CASE WHEN $4 THEN NULL ELSE warned_at END WHERE id = $1`,
+        [rule.id, next.pendingSince, next.clearingSince, cleared, next.cursor ?? null],
       );
       if (cleared) rule.warned_at = null;
     });
     if (!rule || rule.paused) return;
-    for (const n of notices) await this.deliver(n.eventId, n.message);
-    if (!stillOpen) await this.earlyWarning(rule, points);
+    // The state is committed: a failed send or a database hiccup from here on is for the timer's
+    // retry of undelivered events, not a reason to evaluate the batch again.
+    try {
+      for (const n of notices) await this.deliver(n.eventId, n.message);
+      if (!stillOpen && fresh.length > 0) await this.earlyWarning(rule, fresh);
+    } catch (err) {
+      console.error("[alerts] notice not sent (the timer retries it):", err instanceof Error ? err.message : err);
+    }
   }
 
   /** The worst value since the condition began: the pending stretch may span earlier batches. */
@@ -356,7 +510,8 @@ export type RunningAlerts = (() => Promise<void>) & { engine: AlertEngine };
 /** Registers the engine on the writer, starts its timer and returns the function that stops both. */
 export async function startAlerts(w: ReadingWriter, opts: AlertEngineOptions = {}): Promise<RunningAlerts> {
   const engine = new AlertEngine(opts);
-  const off = w.onBatch((rows) => engine.enqueue(() => engine.handleBatch(rows)).then(() => {}));
+  const off = w.onBatch((rows) => engine.accept(rows).then(() => {}));
+  void engine.catchUp();
   const check = () =>
     engine.enqueue(async () => {
       await engine.checkSilence();
@@ -368,7 +523,7 @@ export async function startAlerts(w: ReadingWriter, opts: AlertEngineOptions = {
   const stop = async () => {
     off();
     clearInterval(timer);
-    await engine.idle();
+    await engine.idleFor(opts.stopWaitMs ?? 30_000);
   };
   return Object.assign(stop, { engine });
 }
