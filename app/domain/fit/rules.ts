@@ -123,8 +123,15 @@ export function describeMonths(months: number[]): string {
 const monthsOf = (days: DaySummary[]) => cyclicOrder(days.map((d) => d.month));
 const monthKeys = (months: number[]) => cyclicOrder(months).map(monthKeyOf);
 
+// A fit table asks the same season for its measured days once per plant and rule; keep the answer.
+const measuredCache = new WeakMap<SeasonProfile, DaySummary[]>();
 function measuredDays(season: SeasonProfile): DaySummary[] {
-  return season.days.filter((d) => d.low !== null && d.high !== null);
+  let days = measuredCache.get(season);
+  if (!days) {
+    days = season.days.filter((d) => d.low !== null && d.high !== null);
+    measuredCache.set(season, days);
+  }
+  return days;
 }
 
 const noReadings = (rule: string, what: string): RuleResult => ({
