@@ -16,7 +16,7 @@ export async function backfill(opts: {
   batchSize?: number;
   progress?: (done: number, total: number) => void;
 }) {
-  const batchSize = opts.batchSize ?? 5000;
+  const batchSize = opts.batchSize ?? 10_000;
   const perSensor = Math.ceil((opts.to.getTime() - opts.from.getTime()) / opts.intervalMs);
   const total = perSensor * opts.targets.length;
   let done = 0;

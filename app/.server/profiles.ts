@@ -9,22 +9,28 @@ import type { HourlyRollup } from "~/domain/season/types";
 import type { Site } from "~/db/schema.server";
 
 export async function loadRollups(spotIds: number[], from: Date, to: Date): Promise<Map<number, HourlyRollup[]>> {
-  // Arrays of numbers instead of row objects with parsed timestamps: a year is ~8,760 rows per spot.
-  const res = await pool().query<(number | null)[]>({
-    text: `SELECT spot_id, extract(epoch FROM hour) * 1000, t_n, t_min, t_max, t_sum, h_n, h_min, h_max, h_sum, dp_margin_min, lux_n, lux_sum
-     FROM hourly_rollups WHERE spot_id = ANY($1::int[]) AND hour >= $2 AND hour < $3 ORDER BY spot_id, hour`,
-    values: [spotIds, from, to],
-    rowMode: "array",
-  });
+  // One JSON document of columns per spot instead of ~8,760 rows each: parsing rows of text values
+  // costs more than PostgreSQL's scan, and JSON.parse of columns is the cheapest way in.
+  const res = await pool().query<{ spot_id: number; c: (number | null)[][] }>(
+    `SELECT spot_id, json_build_array(array_agg((extract(epoch FROM hour) * 1000)::float8 ORDER BY hour),
+        array_agg(t_n ORDER BY hour), array_agg(t_min ORDER BY hour), array_agg(t_max ORDER BY hour), array_agg(t_sum ORDER BY hour),
+        array_agg(h_n ORDER BY hour), array_agg(h_min ORDER BY hour), array_agg(h_max ORDER BY hour), array_agg(h_sum ORDER BY hour),
+        array_agg(dp_margin_min ORDER BY hour), array_agg(lux_n ORDER BY hour), array_agg(lux_sum ORDER BY hour)) AS c
+     FROM hourly_rollups WHERE spot_id = ANY($1::int[]) AND hour >= $2 AND hour < $3 GROUP BY spot_id`,
+    [spotIds, from, to],
+  );
   const out = new Map<number, HourlyRollup[]>(spotIds.map((id) => [id, []]));
-  const num = (v: unknown) => (v == null ? null : Number(v));
-  for (const r of res.rows) {
-    out.get(r[0] as number)!.push({
-      hour: new Date(Number(r[1])),
-      tN: r[2] as number, tMin: num(r[3]), tMax: num(r[4]), tSum: num(r[5]),
-      hN: r[6] as number, hMin: num(r[7]), hMax: num(r[8]), hSum: num(r[9]),
-      dpMarginMin: num(r[10]), luxN: r[11] as number, luxSum: num(r[12]),
-    });
+  for (const { spot_id, c } of res.rows) {
+    const [hour, tN, tMin, tMax, tSum, hN, hMin, hMax, hSum, dp, luxN, luxSum] = c;
+    const list = out.get(spot_id)!;
+    for (let i = 0; i < hour.length; i++) {
+      list.push({
+        hour: new Date(hour[i]!),
+        tN: tN[i] ?? 0, tMin: tMin[i], tMax: tMax[i], tSum: tSum[i],
+        hN: hN[i] ?? 0, hMin: hMin[i], hMax: hMax[i], hSum: hSum[i],
+        dpMarginMin: dp[i], luxN: luxN[i] ?? 0, luxSum: luxSum[i],
+      });
+    }
   }
   return out;
 }

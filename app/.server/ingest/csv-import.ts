@@ -59,8 +59,8 @@ export async function convertRows(rows: string[][], mapping: CsvMapping, sensorI
 export async function importCsv(rows: string[][], mapping: CsvMapping, sensorId: number) {
   const { ok, failed } = await convertRows(rows, mapping, sensorId);
   let stored = 0;
-  for (let i = 0; i < ok.length; i += 5000) {
-    stored += (await writer().write(ok.slice(i, i + 5000))).inserted;
+  for (let i = 0; i < ok.length; i += 10_000) {
+    stored += (await writer().write(ok.slice(i, i + 10_000))).inserted;
   }
   recordRejectionsSoon(
     failed.slice(0, 50).map((f) => ({ sensorId, source: "csv" as const, reason: f.reason, payload: f.row.join(",").slice(0, 300) })),
