@@ -285,7 +285,21 @@ function explain(lat: number, facing: WindowFacing, months: DirectSunMonth[]): s
  * direct sun: the sun's azimuth within 90° of the window's outward normal and its altitude above
  * 5°. Assumed: clear sky, unobstructed horizon, no overhang, upright glass.
  */
+// The estimate samples the sun's path over a year; a fit table asks for the same few facings often.
+const directSunCache = new Map<string, DirectSunEstimate>();
+
 export function directSunMonths(lat: number, facing: SpotFacing, year: number = DEFAULT_YEAR): DirectSunEstimate {
+  const key = `${lat.toFixed(2)}:${facing}:${year}`;
+  let hit = directSunCache.get(key);
+  if (!hit) {
+    hit = computeDirectSunMonths(lat, facing, year);
+    if (directSunCache.size > 500) directSunCache.clear();
+    directSunCache.set(key, hit);
+  }
+  return hit;
+}
+
+function computeDirectSunMonths(lat: number, facing: SpotFacing, year: number): DirectSunEstimate {
   if (facing === "none") {
     return {
       facing,

@@ -124,11 +124,20 @@ const monthsOf = (days: DaySummary[]) => cyclicOrder(days.map((d) => d.month));
 const monthKeys = (months: number[]) => cyclicOrder(months).map(monthKeyOf);
 
 // A fit table asks the same season for its measured days once per plant and rule; keep the answer.
-const measuredCache = new WeakMap<SeasonProfile, DaySummary[]>();
-function measuredDays(season: SeasonProfile): DaySummary[] {
+type Measured = DaySummary[] & { lowest?: number; highest?: number };
+const measuredCache = new WeakMap<SeasonProfile, Measured>();
+function measuredDays(season: SeasonProfile): Measured {
   let days = measuredCache.get(season);
   if (!days) {
-    days = season.days.filter((d) => d.low !== null && d.high !== null);
+    days = season.days.filter((d) => d.low !== null && d.high !== null) as Measured;
+    let lo = Infinity;
+    let hi = -Infinity;
+    for (const d of days) {
+      if (d.low! < lo) lo = d.low!;
+      if (d.high! > hi) hi = d.high!;
+    }
+    days.lowest = lo;
+    days.highest = hi;
     measuredCache.set(season, days);
   }
   return days;
@@ -145,7 +154,7 @@ const noReadings = (rule: string, what: string): RuleResult => ({
 export const coldNights: FitRule = (profile, season, t) => {
   const days = measuredDays(season);
   if (days.length === 0) return noReadings("cold-nights", "temperature");
-  const lowest = Math.min(...days.map((d) => d.low!));
+  const lowest = days.lowest!;
   const cold = days.filter((d) => d.low! < profile.minNightC);
   const wants = `this group wants ${c(profile.minNightC)} or more`;
   if (cold.length === 0) {
@@ -171,7 +180,7 @@ export const coldNights: FitRule = (profile, season, t) => {
 export const hotDays: FitRule = (profile, season, t) => {
   const days = measuredDays(season);
   if (days.length === 0) return noReadings("hot-days", "temperature");
-  const highest = Math.max(...days.map((d) => d.high!));
+  const highest = days.highest!;
   const hot = days.filter((d) => d.high! > profile.maxDayC);
   if (hot.length === 0) {
     return { rule: "hot-days", level: "ok", message: `Days stayed at ${c(profile.maxDayC)} or below (highest ${c(highest)}).` };
