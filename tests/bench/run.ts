@@ -227,7 +227,7 @@ async function bench() {
     return stored;
   });
   const httpRate = httpStored / (httpMs / 1000);
-  for (const [name, rate] of [["Backfill (simulator → writer, 5,000-row batches)", bfRate], ["CSV import (parse + validate + write)", csvRate], ["HTTP batches of 10,000 (handler in process)", httpRate]] as const) {
+  for (const [name, rate] of [["Backfill (simulator → writer, 10,000-row batches)", bfRate], ["CSV import (parse + validate + write)", csvRate], ["HTTP batches of 10,000 (handler in process)", httpRate]] as const) {
     rows.push({ figure: `${name} (readings/s, deduplicated with rollups)`, ours: fmt(rate), baseline: `${fmt(copyRate)} (bare COPY)`, ratio: `${fmt((rate / copyRate) * 100)} %`, target: "≥ 100,000/s" });
   }
   log(`bulk: backfill ${fmt(bfRate)}/s, CSV ${fmt(csvRate)}/s, HTTP ${fmt(httpRate)}/s`);
