@@ -8,7 +8,8 @@ import { seasonProfile } from "~/domain/season/profile";
 import type { HourlyRollup } from "~/domain/season/types";
 import type { Site } from "~/db/schema.server";
 
-export async function loadRollups(spotIds: number[], from: Date, to: Date): Promise<Map<number, HourlyRollup[]>> {
+/** Straight from PostgreSQL, no cache. */
+export async function fetchRollups(spotIds: number[], from: Date, to: Date): Promise<Map<number, HourlyRollup[]>> {
   // One JSON document of columns per spot instead of ~8,760 rows each: parsing rows of text values
   // costs more than PostgreSQL's scan, and JSON.parse of columns is the cheapest way in.
   const res = await pool().query<{ spot_id: number; c: (number | null)[][] }>(
@@ -33,6 +34,41 @@ export async function loadRollups(spotIds: number[], from: Date, to: Date): Prom
     }
   }
   return out;
+}
+
+// Past hours rarely change, so each spot's rollups up to two hours ago are kept in memory and
+// checked on every use with one cheap aggregate (count and sums over the same range): a late
+// reading, a moved sensor or a new calibration changes it and the spot is read again. The last two
+// hours are always read fresh.
+type CachedRollups = { from: number; edge: number; check: string; rows: HourlyRollup[] };
+type CacheHolder = { rollups: Map<number, CachedRollups> };
+const cacheHolder = ((globalThis as Record<string, unknown>).__nichewiseRollupCache ??= { rollups: new Map() }) as CacheHolder;
+const MAX_CACHED_SPOTS = 500;
+
+export async function loadRollups(spotIds: number[], fromAsked: Date, to: Date): Promise<Map<number, HourlyRollup[]>> {
+  // Local hours start on a quarter hour in every zone, so rounding `from` up to one selects the
+  // same rows and lets requests within the same quarter share the cache.
+  const from = new Date(Math.ceil(fromAsked.getTime() / 900_000) * 900_000);
+  const edge = Math.min(to.getTime(), Math.floor(Date.now() / 3_600_000) * 3_600_000 - 2 * 3_600_000);
+  if (edge <= from.getTime()) return fetchRollups(spotIds, from, to);
+  const checks = await pool().query<{ spot_id: number; check: string }>(
+    `SELECT s AS spot_id, (SELECT count(*) || ':' || coalesce(sum(t_n + h_n + lux_n), 0) || ':' || coalesce(sum(t_sum), 0) || ':' ||
+        coalesce(sum(h_sum), 0) || ':' || coalesce(sum(lux_sum), 0) || ':' || coalesce(min(t_min), 0) || ':' || coalesce(max(t_max), 0)
+      FROM hourly_rollups WHERE spot_id = s AND hour >= $2 AND hour < $3) AS check
+     FROM unnest($1::int[]) s`,
+    [spotIds, from, new Date(edge)],
+  );
+  const stale = checks.rows.filter((c) => {
+    const hit = cacheHolder.rollups.get(c.spot_id);
+    return !hit || hit.from !== from.getTime() || hit.edge !== edge || hit.check !== c.check;
+  });
+  if (stale.length > 0) {
+    const fresh = await fetchRollups(stale.map((c) => c.spot_id), from, new Date(edge));
+    if (cacheHolder.rollups.size > MAX_CACHED_SPOTS) cacheHolder.rollups.clear();
+    for (const c of stale) cacheHolder.rollups.set(c.spot_id, { from: from.getTime(), edge, check: c.check, rows: fresh.get(c.spot_id)! });
+  }
+  const recent = edge < to.getTime() ? await fetchRollups(spotIds, new Date(edge), to) : new Map<number, HourlyRollup[]>();
+  return new Map(spotIds.map((id) => [id, [...cacheHolder.rollups.get(id)!.rows, ...(recent.get(id) ?? [])]]));
 }
 
 const plantThresholds = [...new Set(PLANT_LIBRARY.map((p) => p.minNightC))];
