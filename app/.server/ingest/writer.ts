@@ -153,11 +153,14 @@ export type WriterStats = {
   commitMs: number[]; // recent commit latencies, newest last
 };
 
+// Readings are split by sensor over a few independent queues ("shards"), each with one statement
+// in flight at a time: two statements can commit at once (one parses while the other waits on
+// disk), and no two statements in flight ever hold readings of the same sensor, which keeps the
+// merging statement's before-image sound and the per-sensor order of commits.
+type Shard = { pending: Pending[]; count: number; timer: NodeJS.Timeout | null; flushing: Promise<void> | null };
+
 export class ReadingWriter {
-  private pending: Pending[] = [];
-  private pendingCount = 0;
-  private timer: NodeJS.Timeout | null = null;
-  private flushing: Promise<void> | null = null;
+  private shards: Shard[];
   private listeners = new Set<BatchListener>();
   readonly stats: WriterStats = { batches: 0, readings: 0, inserted: 0, failures: 0, lastCommitMs: 0, commitMs: [] };
 
@@ -165,7 +168,10 @@ export class ReadingWriter {
     private readonly getPool: () => pg.Pool = pool,
     readonly flushMs = 5,
     readonly maxBatch = 2000,
-  ) {}
+    shardCount = 2,
+  ) {
+    this.shards = Array.from({ length: Math.max(1, shardCount) }, () => ({ pending: [], count: 0, timer: null, flushing: null }));
+  }
 
   onBatch(listener: BatchListener) {
     this.listeners.add(listener);
@@ -175,44 +181,54 @@ export class ReadingWriter {
   /** Resolves after the readings are committed (or were already stored); rejects if they were not. */
   write(readings: Reading[]): Promise<WriteResult> {
     if (readings.length === 0) return Promise.resolve({ inserted: 0 });
+    const k = this.shards.length;
+    const first = readings[0].sensorId % k;
+    if (k === 1 || readings.every((r) => r.sensorId % k === first)) return this.enqueue(this.shards[first], readings);
+    const parts: Reading[][] = this.shards.map(() => []);
+    for (const r of readings) parts[r.sensorId % k].push(r);
+    return Promise.all(parts.map((part, i) => (part.length > 0 ? this.enqueue(this.shards[i], part) : { inserted: 0 }))).then((rs) => ({
+      inserted: rs.reduce((n, r) => n + r.inserted, 0),
+    }));
+  }
+
+  private enqueue(shard: Shard, readings: Reading[]): Promise<WriteResult> {
     return new Promise((resolve, reject) => {
-      this.pending.push({ readings, resolve, reject });
-      this.pendingCount += readings.length;
-      if (this.pendingCount >= this.maxBatch) this.kick(0);
-      else this.kick(this.flushMs);
+      shard.pending.push({ readings, resolve, reject });
+      shard.count += readings.length;
+      this.kick(shard, shard.count >= this.maxBatch ? 0 : this.flushMs);
     });
   }
 
-  private kick(delay: number) {
-    if (this.flushing) return; // the running flush re-kicks when it ends
+  private kick(shard: Shard, delay: number) {
+    if (shard.flushing) return; // the running flush takes what is queued when it is done
     if (delay === 0) {
-      if (this.timer) clearTimeout(this.timer);
-      this.timer = null;
-      this.flushing = this.flush();
+      if (shard.timer) clearTimeout(shard.timer);
+      shard.timer = null;
+      shard.flushing = this.flush(shard);
       return;
     }
-    this.timer ??= setTimeout(() => {
-      this.timer = null;
-      this.flushing = this.flush();
+    shard.timer ??= setTimeout(() => {
+      shard.timer = null;
+      shard.flushing = this.flush(shard);
     }, delay);
   }
 
-  private async flush() {
+  private async flush(shard: Shard) {
     try {
-      while (this.pending.length > 0) {
+      while (shard.pending.length > 0) {
         const batch: Pending[] = [];
         let n = 0;
-        while (this.pending.length > 0 && (n === 0 || n + this.pending[0].readings.length <= this.maxBatch * 2)) {
-          const p = this.pending.shift()!;
+        while (shard.pending.length > 0 && (n === 0 || n + shard.pending[0].readings.length <= this.maxBatch * 2)) {
+          const p = shard.pending.shift()!;
           batch.push(p);
           n += p.readings.length;
         }
-        this.pendingCount -= n;
+        shard.count -= n;
         await this.commit(batch, n);
       }
     } finally {
-      this.flushing = null;
-      if (this.pending.length > 0) this.kick(this.flushMs);
+      shard.flushing = null;
+      if (shard.pending.length > 0) this.kick(shard, 0);
     }
   }
 
@@ -291,11 +307,14 @@ export class ReadingWriter {
 
   /** Waits for everything queued so far to be committed or refused. */
   async drain() {
-    while (this.pending.length > 0 || this.flushing || this.timer) {
-      if (this.timer && !this.flushing) this.kick(0);
-      await (this.flushing ?? new Promise((r) => setTimeout(r, 1)));
+    for (;;) {
+      const busy = this.shards.filter((s) => s.pending.length > 0 || s.flushing || s.timer);
+      if (busy.length === 0) return;
+      for (const s of busy) if (s.timer && !s.flushing) this.kick(s, 0);
+      await Promise.all(busy.map((s) => s.flushing ?? new Promise((r) => setTimeout(r, 1))));
     }
   }
+
 }
 
 type Holder = { writer?: ReadingWriter };
