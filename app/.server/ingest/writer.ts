@@ -153,11 +153,10 @@ export type WriterStats = {
   commitMs: number[]; // recent commit latencies, newest last
 };
 
-// Readings are split over a few independent queues ("shards") by sensor and UTC hour, each with one
-// statement in flight at a time: two statements can commit at once (one parses while the other
-// waits on disk), a large single-sensor batch (CSV, HTTP, backfill) is written in parallel halves,
-// and no two statements in flight ever hold the same (sensor, time) key, which keeps the merging
-// statement's before-image sound. Rollup rows both may touch are upserted in one lock order.
+// Readings are split by sensor over a few independent queues ("shards"), each with one statement
+// in flight at a time: two statements can commit at once (one parses while the other waits on
+// disk), and no two statements in flight ever hold readings of the same sensor, which keeps the
+// merging statement's before-image sound and the per-sensor order of commits.
 type Shard = { pending: Pending[]; count: number; timer: NodeJS.Timeout | null; flushing: Promise<void> | null };
 
 export class ReadingWriter {
@@ -183,11 +182,10 @@ export class ReadingWriter {
   write(readings: Reading[]): Promise<WriteResult> {
     if (readings.length === 0) return Promise.resolve({ inserted: 0 });
     const k = this.shards.length;
-    const shardOf = (r: Reading) => (((r.sensorId + Math.floor(r.measuredAt.getTime() / 3_600_000)) % k) + k) % k;
-    const first = shardOf(readings[0]);
-    if (k === 1 || readings.every((r) => shardOf(r) === first)) return this.enqueue(this.shards[first], readings);
+    const first = readings[0].sensorId % k;
+    if (k === 1 || readings.every((r) => r.sensorId % k === first)) return this.enqueue(this.shards[first], readings);
     const parts: Reading[][] = this.shards.map(() => []);
-    for (const r of readings) parts[shardOf(r)].push(r);
+    for (const r of readings) parts[r.sensorId % k].push(r);
     return Promise.all(parts.map((part, i) => (part.length > 0 ? this.enqueue(this.shards[i], part) : { inserted: 0 }))).then((rs) => ({
       inserted: rs.reduce((n, r) => n + r.inserted, 0),
     }));
