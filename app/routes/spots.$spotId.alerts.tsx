@@ -1,4 +1,5 @@
 import { data, Form, Link, useNavigation } from "react-router";
+import * as units from "~/lib/units";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
 import { db } from "~/.server/db";
 import { getRule, listRules, setPaused, suggestedColdWatch } from "~/.server/alerts/queries";
@@ -22,11 +23,11 @@ type Values = Record<string, string>;
 const isTemp = (k: AlertKind) => KINDS[k].unit === "temperature" || KINDS[k].unit === "kelvin";
 // Form values are in the member's unit; stored values are °C (and kelvin for margins).
 const fromUnit = (k: AlertKind, v: number, unit: "C" | "F") =>
-  unit === "F" && isTemp(k) ? (KINDS[k].unit === "temperature" ? ((v - 32) * 5) / 9 : (v * 5) / 9) : v;
+  !isTemp(k) ? v : KINDS[k].unit === "temperature" ? units.fromUnit(v, unit) : units.deltaFromUnit(v, unit);
 const toUnitValue = (k: AlertKind, v: number, unit: "C" | "F") =>
-  unit === "F" && isTemp(k) ? (KINDS[k].unit === "temperature" ? (v * 9) / 5 + 32 : (v * 9) / 5) : v;
-const deltaFromUnit = (k: AlertKind, v: number, unit: "C" | "F") => (unit === "F" && isTemp(k) ? (v * 5) / 9 : v);
-const deltaToUnit = (k: AlertKind, v: number, unit: "C" | "F") => (unit === "F" && isTemp(k) ? (v * 9) / 5 : v);
+  !isTemp(k) ? v : KINDS[k].unit === "temperature" ? units.toUnit(v, unit) : units.deltaToUnit(v, unit);
+const deltaFromUnit = (k: AlertKind, v: number, unit: "C" | "F") => (isTemp(k) ? units.deltaFromUnit(v, unit) : v);
+const deltaToUnit = (k: AlertKind, v: number, unit: "C" | "F") => (isTemp(k) ? units.deltaToUnit(v, unit) : v);
 const round1 = (v: number) => Math.round(v * 10) / 10;
 
 function parseRule(form: FormData, kind: AlertKind, unit: "C" | "F") {

@@ -1,6 +1,7 @@
 // The words of alert e-mails, in the reader's temperature unit and the site's time zone. Plain text
 // and HTML carry the same facts: where, the numbers, what to do, and the link straight to the spot.
 import { KINDS, type AlertKind } from "~/domain/alerts/rules";
+import { formatDelta, formatTemp } from "~/lib/units";
 
 export type Unit = "C" | "F";
 export type MessageContext = {
@@ -25,9 +26,9 @@ const CAUTION =
 export function formatValue(kind: AlertKind, v: number, unit: Unit): string {
   switch (KINDS[kind].unit) {
     case "temperature":
-      return unit === "F" ? `${((v * 9) / 5 + 32).toFixed(1)} °F` : `${v.toFixed(1)} °C`;
+      return formatTemp(v, unit);
     case "kelvin":
-      return unit === "F" ? `${((v * 9) / 5).toFixed(1)} °F` : `${v.toFixed(1)} °C`;
+      return formatDelta(v, unit);
     case "percent":
       return `${Math.round(v)} %`;
     case "minutes":
