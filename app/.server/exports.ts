@@ -1,6 +1,7 @@
 // Exports of a spot's readings (raw or hourly) and its season profile, as CSV or JSON. Rows are read
 // in keyset-paginated batches and written into a ReadableStream as the client takes them (pull), so a
 // year of one-minute readings (~525,600 rows) never sits in memory at once.
+import { calibratedSql } from "~/.server/ingest/calibrated";
 import { pool } from "~/.server/db";
 import { zonedToUtc } from "~/lib/time";
 import { loadRollups } from "~/.server/profiles";
@@ -23,9 +24,9 @@ type Batch = { rows: Cell[][]; done: boolean };
 const WINDOW_MS = 2 * 86_400_000;
 const RAW_PAGE = `
 SELECT to_char(r.measured_at AT TIME ZONE 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"') AS time, r.sensor_id,
-  r.temperature + coalesce((s.calibration->>'temperature')::real, 0) AS temperature,
-  CASE WHEN r.humidity IS NULL THEN NULL ELSE least(100, greatest(0, r.humidity + coalesce((s.calibration->>'humidity')::real, 0))) END AS humidity,
-  r.lux + coalesce((s.calibration->>'lux')::real, 0) AS lux, r.battery, r.measured_at::text AS k
+  ${calibratedSql("temperature", "r.temperature")} AS temperature,
+  ${calibratedSql("humidity", "r.humidity")} AS humidity,
+  ${calibratedSql("lux", "r.lux")} AS lux, r.battery, r.measured_at::text AS k
 FROM placements p
 JOIN readings r ON r.sensor_id = p.sensor_id AND r.measured_at >= greatest(p.from_at, $2) AND r.measured_at < least(coalesce(p.to_at, 'infinity'), $3)
 JOIN sensors s ON s.id = p.sensor_id

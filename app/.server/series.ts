@@ -1,15 +1,15 @@
 // Chart data for a spot, columnar (uPlot's own shape) and sized for the range asked:
 // raw readings for two days, hourly rollups for weeks, daily lows and highs for a year.
+import { calibratedSql } from "~/.server/ingest/calibrated";
 import { pool } from "~/.server/db";
 
 export type Series = { resolution: "raw" | "hour" | "day"; t: number[]; [column: string]: (number | null)[] | string };
 
 const RAW_SQL = `
 SELECT extract(epoch FROM r.measured_at)::bigint AS t,
-  r.temperature + coalesce((s.calibration->>'temperature')::real, 0) AS temp,
-  least(100, greatest(0, r.humidity + coalesce((s.calibration->>'humidity')::real, 0))) AS rh,
-  dew_point_margin(r.temperature + coalesce((s.calibration->>'temperature')::real, 0),
-    least(100, greatest(0, r.humidity + coalesce((s.calibration->>'humidity')::real, 0)))) AS margin
+  ${calibratedSql("temperature", "r.temperature")} AS temp,
+  ${calibratedSql("humidity", "r.humidity")} AS rh,
+  dew_point_margin(${calibratedSql("temperature", "r.temperature")}, ${calibratedSql("humidity", "r.humidity")}) AS margin
 FROM placements p
 JOIN readings r ON r.sensor_id = p.sensor_id AND r.measured_at >= greatest(p.from_at, $2) AND r.measured_at < least(coalesce(p.to_at, 'infinity'), $3)
 JOIN sensors s ON s.id = p.sensor_id
@@ -59,8 +59,8 @@ export async function spotSeries(spotId: number, timeZone: string, range: "48h" 
 
 export async function latestReading(spotId: number) {
   const res = await pool().query<{ measured_at: string; temp: number | null; rh: number | null; lux: number | null; battery: number | null }>(
-    `SELECT r.measured_at, r.temperature + coalesce((s.calibration->>'temperature')::real, 0) AS temp,
-       least(100, greatest(0, r.humidity + coalesce((s.calibration->>'humidity')::real, 0))) AS rh, r.lux, r.battery
+    `SELECT r.measured_at, ${calibratedSql("temperature", "r.temperature")} AS temp,
+       ${calibratedSql("humidity", "r.humidity")} AS rh, r.lux, r.battery
      FROM placements p JOIN sensors s ON s.id = p.sensor_id
      CROSS JOIN LATERAL (SELECT * FROM readings r WHERE r.sensor_id = p.sensor_id AND r.measured_at >= p.from_at
        ORDER BY r.measured_at DESC LIMIT 1) r

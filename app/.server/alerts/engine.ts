@@ -3,6 +3,7 @@
 // PostgreSQL (changed under a row lock), so a restart neither loses an open event nor repeats one.
 // E-mails are claimed in alert_deliveries before they are sent: at most one per event, member and
 // message, even across restarts. A timer checks for silent sensors and retries failed sends.
+import { calibratedSql } from "~/.server/ingest/calibrated";
 import type pg from "pg";
 import { pool } from "~/.server/db";
 import { publicUrl } from "~/.server/env";
@@ -455,8 +456,8 @@ export class AlertEngine {
 
   private async latest(rule: RuleRow): Promise<{ at: Date | null; value: number | null; t: number | null }> {
     const res = await pool().query<{ at: Date; t: number | null; h: number | null; battery: number | null }>(
-      `SELECT r.measured_at AS at, r.temperature + coalesce((s.calibration->>'temperature')::real, 0) AS t,
-         least(100, greatest(0, r.humidity + coalesce((s.calibration->>'humidity')::real, 0))) AS h, r.battery
+      `SELECT r.measured_at AS at, ${calibratedSql("temperature", "r.temperature")} AS t,
+         ${calibratedSql("humidity", "r.humidity")} AS h, r.battery
        FROM placements p JOIN sensors s ON s.id = p.sensor_id
        CROSS JOIN LATERAL (SELECT * FROM readings r WHERE r.sensor_id = p.sensor_id AND r.measured_at >= p.from_at ORDER BY r.measured_at DESC LIMIT 1) r
        WHERE p.spot_id = $1 AND p.to_at IS NULL ORDER BY r.measured_at DESC LIMIT 1`,

@@ -1,4 +1,5 @@
 // SQL the alert engine and pages share: calibrated points of a spot, who gets alerts for a site.
+import { calibratedSql } from "~/.server/ingest/calibrated";
 import type pg from "pg";
 import { pool } from "~/.server/db";
 
@@ -8,8 +9,8 @@ type Queryable = Pick<pg.Pool, "query"> | pg.PoolClient;
 /** Calibrated readings of the sensors placed in the spot at the time, from < at ≤ to, oldest first. */
 export async function spotPoints(spotId: number, from: Date, to: Date, q: Queryable = pool()): Promise<SpotPoint[]> {
   const res = await q.query<{ at: Date; t: number | null; h: number | null; battery: number | null }>(
-    `SELECT r.measured_at AS at, r.temperature + coalesce((s.calibration->>'temperature')::real, 0) AS t,
-       CASE WHEN r.humidity IS NOT NULL THEN least(100, greatest(0, r.humidity + coalesce((s.calibration->>'humidity')::real, 0))) END AS h,
+    `SELECT r.measured_at AS at, ${calibratedSql("temperature", "r.temperature")} AS t,
+       ${calibratedSql("humidity", "r.humidity")} AS h,
        r.battery
      FROM placements p JOIN sensors s ON s.id = p.sensor_id
      JOIN readings r ON r.sensor_id = p.sensor_id AND r.measured_at >= p.from_at AND (p.to_at IS NULL OR r.measured_at < p.to_at)

@@ -1,6 +1,7 @@
 // Rebuilds the hourly rollups of whole spots from raw readings: after a sensor is moved, a
 // placement edited or a calibration changed. The table lock waits for writer batches in flight
 // and holds new ones back until the rebuild commits, so no reading is counted twice or lost.
+import { calibratedSql } from "~/.server/ingest/calibrated";
 import { pool } from "~/.server/db";
 import { LOCAL_HOUR_START } from "~/.server/ingest/writer";
 
@@ -11,9 +12,9 @@ SELECT spot_id, hour, count(t)::int, min(t), max(t), sum(t), count(h)::int, min(
 FROM (
   SELECT p.spot_id,
     ${LOCAL_HOUR_START("r.measured_at", "si.time_zone")} AS hour,
-    r.temperature + coalesce((s.calibration->>'temperature')::real, 0) AS t,
-    CASE WHEN r.humidity IS NOT NULL THEN least(100, greatest(0, r.humidity + coalesce((s.calibration->>'humidity')::real, 0))) END AS h,
-    CASE WHEN r.lux IS NOT NULL THEN greatest(0, r.lux + coalesce((s.calibration->>'lux')::real, 0)) END AS l
+    ${calibratedSql("temperature", "r.temperature")} AS t,
+    ${calibratedSql("humidity", "r.humidity")} AS h,
+    ${calibratedSql("lux", "r.lux")} AS l
   FROM placements p
   JOIN readings r ON r.sensor_id = p.sensor_id AND r.measured_at >= p.from_at
     AND (p.to_at IS NULL OR r.measured_at < p.to_at)

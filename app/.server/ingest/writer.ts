@@ -2,6 +2,7 @@
 // a few milliseconds and written in one transaction: raw rows deduplicated on (sensor, measured_at),
 // and the hourly rollups of the spot each sensor was placed in, counting only rows really inserted.
 // A caller's promise resolves only after COMMIT, which is what lets MQTT ack after commit.
+import { calibratedSql } from "~/.server/ingest/calibrated";
 import type pg from "pg";
 import { pool } from "~/.server/db";
 import type { Reading } from "~/domain/ingest/payload";
@@ -72,11 +73,10 @@ WITH ${input}, ins AS (
   RETURNING sensor_id, measured_at, temperature, humidity, lux, battery
 ), ${fresh}, placed AS (
   SELECT p.spot_id, f.sensor_id, f.measured_at, f.battery, si.time_zone,
-    f.temperature + coalesce((s.calibration->>'temperature')::real, 0) AS t,
-    CASE WHEN f.humidity IS NOT NULL THEN least(100, greatest(0, f.humidity + coalesce((s.calibration->>'humidity')::real, 0))) END AS h,
-    CASE WHEN f.lux IS NOT NULL THEN greatest(0, f.lux + coalesce((s.calibration->>'lux')::real, 0)) END AS l,
-    dew_point_margin(f.t_row + coalesce((s.calibration->>'temperature')::real, 0),
-      CASE WHEN f.h_row IS NOT NULL THEN least(100, greatest(0, f.h_row + coalesce((s.calibration->>'humidity')::real, 0))) END) AS dp,
+    ${calibratedSql("temperature", "f.temperature")} AS t,
+    ${calibratedSql("humidity", "f.humidity")} AS h,
+    ${calibratedSql("lux", "f.lux")} AS l,
+    dew_point_margin(${calibratedSql("temperature", "f.t_row")}, ${calibratedSql("humidity", "f.h_row")}) AS dp,
     ${LOCAL_HOUR_START("f.measured_at", "si.time_zone")} AS hour
   FROM fresh f
   JOIN placements p ON p.sensor_id = f.sensor_id AND p.from_at <= f.measured_at
