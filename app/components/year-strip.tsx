@@ -32,9 +32,46 @@ export function YearStrip({
   const values = months.flatMap((m) => [m.temperature.lowest, m.temperature.highest]).filter((v): v is number => v != null);
   const lo = Math.floor(Math.min(band?.low ?? 99, ...values, 5) / 5) * 5 - 2;
   const hi = Math.ceil(Math.max(band?.high ?? -99, ...values, 25) / 5) * 5 + 2;
-  const W = 720;
-  const H = 260;
-  const left = 44;
+  // A wide strip for desktops and a taller one with larger type for a phone held next to the spot.
+  return (
+    <figure>
+      <figcaption className="mb-2 text-sm font-medium">{title}</figcaption>
+      <Strip {...{ months, band, unit, title, lo, hi }} W={720} H={260} font={11} className="hidden h-auto w-full sm:block" testId="year-strip" />
+      <Strip {...{ months, band, unit, title, lo, hi }} W={360} H={300} font={12} className="h-auto w-full sm:hidden" testId="year-strip-compact" />
+      <p className="mt-1 text-xs text-muted">
+        Line: the month's lowest to highest. Coloured bar: 5–95 % of hours. Black ticks: mean daily low and high.
+        {band ? ` Green strip: ${band.label}. Red dot: the month leaves it.` : ""} Faded months have too few days of readings (days shown).
+      </p>
+    </figure>
+  );
+}
+
+function Strip({
+  months,
+  band,
+  unit,
+  title,
+  lo,
+  hi,
+  W,
+  H,
+  font,
+  className,
+  testId,
+}: {
+  months: StripMonth[];
+  band?: { low: number; high: number; label: string } | null;
+  unit: TempUnit;
+  title: string;
+  lo: number;
+  hi: number;
+  W: number;
+  H: number;
+  font: number;
+  className: string;
+  testId: string;
+}) {
+  const left = font * 3.5;
   const top = 12;
   const bottom = 36;
   const colW = (W - left - 8) / 12;
@@ -42,13 +79,11 @@ export function YearStrip({
   const ticks: number[] = [];
   for (let t = Math.ceil(lo / 5) * 5; t <= hi; t += 5) ticks.push(t);
   return (
-    <figure>
-      <figcaption className="mb-2 text-sm font-medium">{title}</figcaption>
-      <svg viewBox={`0 0 ${W} ${H}`} className="h-auto w-full" role="img" aria-label={title} data-testid="year-strip">
+    <svg viewBox={`0 0 ${W} ${H}`} className={className} role="img" aria-label={title} data-testid={testId}>
         {ticks.map((t) => (
           <g key={t}>
             <line x1={left} x2={W - 8} y1={y(t)} y2={y(t)} stroke="#e4dccd" />
-            <text x={left - 6} y={y(t) + 4} textAnchor="end" fontSize="11" fill="#6f675c">
+            <text x={left - 6} y={y(t) + 4} textAnchor="end" fontSize={font} fill="#6f675c">
               {Math.round(toUnit(t, unit))}°
             </text>
           </g>
@@ -79,22 +114,17 @@ export function YearStrip({
                   ) : null}
                 </>
               ) : null}
-              <text x={cx} y={H - bottom + 16} textAnchor="middle" fontSize="11" fill="#2b2722">
+              <text x={cx} y={H - bottom + 16} textAnchor="middle" fontSize={font} fill="#2b2722">
                 {m.name.slice(0, 3)}
               </text>
               {faint ? (
-                <text x={cx} y={H - bottom + 29} textAnchor="middle" fontSize="9" fill="#6f675c">
+                <text x={cx} y={H - bottom + 29} textAnchor="middle" fontSize={font - 2} fill="#6f675c">
                   {m.coverage.daysObserved}d
                 </text>
               ) : null}
             </g>
           );
         })}
-      </svg>
-      <p className="mt-1 text-xs text-muted">
-        Line: the month's lowest to highest. Coloured bar: 5–95 % of hours. Black ticks: mean daily low and high.
-        {band ? ` Green strip: ${band.label}. Red dot: the month leaves it.` : ""} Faded months have too few days of readings (days shown).
-      </p>
-    </figure>
+    </svg>
   );
 }
