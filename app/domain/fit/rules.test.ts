@@ -7,12 +7,14 @@ import {
   describeMonths,
   floweringNeeds,
   formatNumber,
+  FIT_RULES,
   hotDays,
   humidityBand,
+  judgeAll,
   lightBand,
 } from "~/domain/fit/rules";
 import { coldSnaps, hotAfternoons, spotYear, steadyRoom, type HourPatch } from "~/domain/fit/season-fixture";
-import { plantByKey } from "~/domain/plants/library";
+import { PLANT_LIBRARY, plantByKey, type PlantProfile } from "~/domain/plants/library";
 import type { SeasonProfile } from "~/domain/season/types";
 
 // Thresholds here are the product's own (DEFAULT_FIT_THRESHOLDS), common practice unless noted.
@@ -242,6 +244,36 @@ describe("rules without readings", () => {
   it("judge nothing and say so", () => {
     for (const rule of [coldNights, hotDays, humidityBand, lightBand, floweringNeeds, condensation]) {
       expect(rule(cymbidium, empty, T)).toMatchObject({ level: "ok", noData: true });
+    }
+  });
+});
+
+describe("shared rule results (judgeAll)", () => {
+  // A fit table judges each distinct (season, rule inputs) case once. If a rule read a profile field
+  // its sharing key leaves out, a plant differing only in that field would get another plant's
+  // result: change each field in turn, after the original filled the cache, and compare with the
+  // rule called directly.
+  const seasons = [
+    room,
+    spotYear({ month: (m) => ({ night: 6 + Math.abs(m - 7) * -0.5 + 8, day: 20 + (m > 4 && m < 10 ? 12 : 0), rh: 40 + m * 3, lux: 9000 + m * 800, dpMargin: m === 1 ? 1 : 5 }) }),
+    spotYear({ observed: [1, 2, 3, 10, 11, 12], patches: [...coldSnaps(1, 12, 4), ...hotAfternoons(2, 3, 35)] }),
+  ];
+  const variants = (p: PlantProfile): PlantProfile[] => [
+    { ...p, key: `${p.key}-a`, minNightC: p.minNightC - 3 },
+    { ...p, key: `${p.key}-b`, maxDayC: p.maxDayC + 3 },
+    { ...p, key: `${p.key}-c`, humidityMin: p.humidityMin + 15, humidityMax: p.humidityMax - 5 },
+    { ...p, key: `${p.key}-d`, dliMin: p.dliMin * 3, dliMax: p.dliMax * 3 },
+    { ...p, key: `${p.key}-e`, name: `Other${p.name}`, coldTolerance: `${p.coldTolerance}!` },
+    { ...p, key: `${p.key}-f`, flowering: { ...p.flowering, difC: (p.flowering.difC ?? 4) + 3, note: `${p.flowering.note}.` } },
+    { ...p, key: `${p.key}-g`, flowering: { ...p.flowering, coolPeriod: { weeks: 3, maxNightC: 12, maxDayC: 22, months: "in autumn" } } },
+  ];
+  it("gives every plant exactly what the rules give it on their own", () => {
+    for (const season of seasons) {
+      for (const plant of PLANT_LIBRARY) {
+        for (const p of [plant, ...variants(plant)]) {
+          expect(judgeAll(p, season, T)).toEqual(FIT_RULES.map((rule) => rule(p, season, T)));
+        }
+      }
     }
   });
 });

@@ -120,27 +120,46 @@ export function describeMonths(months: number[]): string {
   return `in ${joinAnd(parts)}`;
 }
 
-const monthsOf = (days: DaySummary[]) => cyclicOrder(days.map((d) => d.month));
 const monthKeys = (months: number[]) => cyclicOrder(months).map(monthKeyOf);
 
-// A fit table asks the same season for its measured days once per plant and rule; keep the answer.
-type Measured = DaySummary[] & { lowest?: number; highest?: number };
+/** Months 1–12 whose bit is set in a 13-bit mask (bit m for month m). */
+function maskMonths(mask: number): number[] {
+  const out: number[] = [];
+  for (let m = 1; m <= 12; m++) if (mask & (1 << m)) out.push(m);
+  return out;
+}
+
+// A fit table asks the same season about its measured days once per plant and rule (50 spots × 40
+// plants is 2,000 asks), so each season's days are laid out once as typed columns and the rules
+// count over them without building arrays of days.
+type Measured = {
+  n: number;
+  lows: Float64Array;
+  highs: Float64Array;
+  months: Uint8Array;
+  dayNumbers: Int32Array;
+  lowest: number;
+  highest: number;
+};
 const measuredCache = new WeakMap<SeasonProfile, Measured>();
 function measuredDays(season: SeasonProfile): Measured {
-  let days = measuredCache.get(season);
-  if (!days) {
-    days = season.days.filter((d) => d.low !== null && d.high !== null) as Measured;
-    let lo = Infinity;
-    let hi = -Infinity;
-    for (const d of days) {
-      if (d.low! < lo) lo = d.low!;
-      if (d.high! > hi) hi = d.high!;
+  let m = measuredCache.get(season);
+  if (!m) {
+    const days = season.days.filter((d) => d.low !== null && d.high !== null);
+    const n = days.length;
+    m = { n, lows: new Float64Array(n), highs: new Float64Array(n), months: new Uint8Array(n), dayNumbers: new Int32Array(n), lowest: Infinity, highest: -Infinity };
+    for (let i = 0; i < n; i++) {
+      const d = days[i];
+      m.lows[i] = d.low!;
+      m.highs[i] = d.high!;
+      m.months[i] = d.month;
+      m.dayNumbers[i] = d.dayNumber;
+      if (d.low! < m.lowest) m.lowest = d.low!;
+      if (d.high! > m.highest) m.highest = d.high!;
     }
-    days.lowest = lo;
-    days.highest = hi;
-    measuredCache.set(season, days);
+    measuredCache.set(season, m);
   }
-  return days;
+  return m;
 }
 
 const noReadings = (rule: string, what: string): RuleResult => ({
@@ -153,24 +172,32 @@ const noReadings = (rule: string, what: string): RuleResult => ({
 /** Nights against the group's lowest safe night: the rule that decides most fits. */
 export const coldNights: FitRule = (profile, season, t) => {
   const days = measuredDays(season);
-  if (days.length === 0) return noReadings("cold-nights", "temperature");
-  const lowest = days.lowest!;
-  const cold = days.filter((d) => d.low! < profile.minNightC);
+  if (days.n === 0) return noReadings("cold-nights", "temperature");
+  const lowest = days.lowest;
+  const clearlyUnder = profile.minNightC - t.nightCountMarginC;
+  let cold = 0, clearlyCold = 0, mask = 0;
+  for (let i = 0; i < days.n; i++) {
+    const low = days.lows[i];
+    if (low < profile.minNightC) {
+      cold++;
+      mask |= 1 << days.months[i];
+      if (low < clearlyUnder) clearlyCold++;
+    }
+  }
   const wants = `this group wants ${c(profile.minNightC)} or more`;
-  if (cold.length === 0) {
+  if (cold === 0) {
     return { rule: "cold-nights", level: "ok", message: `Nights stayed at ${c(profile.minNightC)} or above (lowest ${c(lowest)}); ${wants}.` };
   }
-  const months = monthsOf(cold);
-  const clearlyCold = cold.filter((d) => d.low! < profile.minNightC - t.nightCountMarginC);
-  const poor = profile.minNightC - lowest > t.nightPoorMarginC || clearlyCold.length > t.nightPoorCount;
-  const when = `${plural(cold.length, "night")} ${describeMonths(months)} (lowest ${c(lowest)})`;
+  const months = cyclicOrder(maskMonths(mask));
+  const poor = profile.minNightC - lowest > t.nightPoorMarginC || clearlyCold > t.nightPoorCount;
+  const when = `${plural(cold, "night")} ${describeMonths(months)} (lowest ${c(lowest)})`;
   return {
     rule: "cold-nights",
     level: poor ? "poor" : "care",
     months: monthKeys(months),
     message: poor
       ? `Nights fell below ${c(profile.minNightC)} on ${when}; ${wants}. Cold tolerance: ${profile.coldTolerance}.`
-      : cold.length > t.nightPoorCount
+      : cold > t.nightPoorCount
         ? `Nights ran a touch under ${c(profile.minNightC)} on ${when}, never more than ${c(t.nightCountMarginC)} under — about what a cheap sensor can tell apart; ${wants}. Fine for most plants of the group; watch the tender ones.`
         : `Nights dipped just under ${c(profile.minNightC)} on ${when}; ${wants}. Moving it back from the glass or bringing it in on the coldest nights may be enough.`,
   };
@@ -179,14 +206,20 @@ export const coldNights: FitRule = (profile, season, t) => {
 /** Days against the group's highest comfortable day. */
 export const hotDays: FitRule = (profile, season, t) => {
   const days = measuredDays(season);
-  if (days.length === 0) return noReadings("hot-days", "temperature");
-  const highest = days.highest!;
-  const hot = days.filter((d) => d.high! > profile.maxDayC);
-  if (hot.length === 0) {
+  if (days.n === 0) return noReadings("hot-days", "temperature");
+  const highest = days.highest;
+  let hot = 0, mask = 0;
+  for (let i = 0; i < days.n; i++) {
+    if (days.highs[i] > profile.maxDayC) {
+      hot++;
+      mask |= 1 << days.months[i];
+    }
+  }
+  if (hot === 0) {
     return { rule: "hot-days", level: "ok", message: `Days stayed at ${c(profile.maxDayC)} or below (highest ${c(highest)}).` };
   }
-  const months = monthsOf(hot);
-  const poor = highest - profile.maxDayC > t.dayPoorMarginC || hot.length > t.dayPoorCount;
+  const months = cyclicOrder(maskMonths(mask));
+  const poor = highest - profile.maxDayC > t.dayPoorMarginC || hot > t.dayPoorCount;
   // Groups cued to flower by cool days (Phalaenopsis) lose flowers to heat before they lose health.
   const flowerCost = profile.flowering.coolPeriod?.maxDayC !== undefined ? ` — ${shortName(profile)} may not spike` : "";
   return {
@@ -194,7 +227,7 @@ export const hotDays: FitRule = (profile, season, t) => {
     level: poor ? "poor" : "care",
     months: monthKeys(months),
     message:
-      `Days went above ${c(profile.maxDayC)} on ${plural(hot.length, "day")} ${describeMonths(months)} (highest ${c(highest)})${flowerCost}; ` +
+      `Days went above ${c(profile.maxDayC)} on ${plural(hot, "day")} ${describeMonths(months)} (highest ${c(highest)})${flowerCost}; ` +
       `this group is comfortable up to ${c(profile.maxDayC)}.` +
       (poor ? "" : " Shade at midday and moving air help."),
   };
@@ -276,22 +309,17 @@ export const lightBand: FitRule = (profile, season, t) => {
 
 type Part = { level: RuleLevel; message: string; months: number[]; noData?: boolean };
 
-/** Best stretch of `weeks` weeks in which enough days meet the cool-period condition. */
-function coolSpell(profile: PlantProfile, season: SeasonProfile, t: FitThresholds): Part {
-  const cp = profile.flowering.coolPeriod!;
-  const name = shortName(profile);
-  const days = measuredDays(season);
-  const condition =
-    cp.maxDayC === undefined
-      ? `nights at or below ${c(cp.maxNightC)}`
-      : `days at or below ${c(cp.maxDayC)} with nights at or below ${c(cp.maxNightC)}`;
-  const qualifies = (d: DaySummary) => d.low! <= cp.maxNightC && (cp.maxDayC === undefined || d.high! <= cp.maxDayC);
-  if (days.length === 0) return { level: "ok", noData: true, months: [], message: `No readings yet to tell whether it gets ${condition}.` };
-
-  const window = cp.weeks * 7;
-  const first = days[0].dayNumber;
-  const flags = new Array<number>(days.at(-1)!.dayNumber - first + 1).fill(0);
-  for (const d of days) if (qualifies(d)) flags[d.dayNumber - first] = 1;
+/**
+ * The most days meeting the cool-period condition in any run of `window` consecutive calendar days
+ * (days without readings count as not meeting it), and the months of those days. The first such
+ * window wins a tie.
+ */
+function bestCoolSpell(days: Measured, maxNightC: number, maxDayC: number | undefined, window: number): { best: number; bestMonths: number[] } {
+  const first = days.dayNumbers[0];
+  const flags = new Uint8Array(days.dayNumbers[days.n - 1] - first + 1);
+  for (let i = 0; i < days.n; i++) {
+    if (days.lows[i] <= maxNightC && (maxDayC === undefined || days.highs[i] <= maxDayC)) flags[days.dayNumbers[i] - first] = 1;
+  }
   const width = Math.min(window, flags.length);
   let count = 0, best = 0, bestEnd = width - 1;
   for (let i = 0; i < flags.length; i++) {
@@ -301,14 +329,33 @@ function coolSpell(profile: PlantProfile, season: SeasonProfile, t: FitThreshold
       bestEnd = i;
     }
   }
+  let mask = 0;
+  for (let i = 0; i < days.n; i++) {
+    const at = days.dayNumbers[i] - first;
+    if (flags[at] && at > bestEnd - width && at <= bestEnd) mask |= 1 << days.months[i];
+  }
+  return { best, bestMonths: maskMonths(mask) };
+}
+
+/** Best stretch of `weeks` weeks in which enough days meet the cool-period condition. */
+function coolSpell(profile: PlantProfile, season: SeasonProfile, t: FitThresholds): Part {
+  const cp = profile.flowering.coolPeriod!;
+  const name = shortName(profile);
+  const days = measuredDays(season);
+  const condition =
+    cp.maxDayC === undefined
+      ? `nights at or below ${c(cp.maxNightC)}`
+      : `days at or below ${c(cp.maxDayC)} with nights at or below ${c(cp.maxNightC)}`;
+  if (days.n === 0) return { level: "ok", noData: true, months: [], message: `No readings yet to tell whether it gets ${condition}.` };
+  const window = cp.weeks * 7;
+  const { best, bestMonths } = bestCoolSpell(days, cp.maxNightC, cp.maxDayC, window);
   const needed = Math.ceil(window * t.coolSpellShare);
-  const bestDays = days.filter((d) => d.dayNumber > first + bestEnd - width && d.dayNumber <= first + bestEnd && qualifies(d));
   const during = cp.months ? ` (${cp.months})` : "";
   if (best >= needed) {
     return {
       level: "ok",
-      months: cyclicOrder(bestDays.map((d) => d.month)),
-      message: `It gets its cool spell: ${condition} on ${best} of ${window} days ${describeMonths(bestDays.map((d) => d.month))}, enough for ${name} to flower.`,
+      months: cyclicOrder(bestMonths),
+      message: `It gets its cool spell: ${condition} on ${best} of ${window} days ${describeMonths(bestMonths)}, enough for ${name} to flower.`,
     };
   }
   if (best === 0) {
@@ -320,7 +367,7 @@ function coolSpell(profile: PlantProfile, season: SeasonProfile, t: FitThreshold
   }
   return {
     level: "care",
-    months: cyclicOrder(bestDays.map((d) => d.month)),
+    months: cyclicOrder(bestMonths),
     message: `At best ${best} of any ${window} days had ${condition}; ${name} needs about ${plural(cp.weeks, "week")} of them${during} to flower — it may grow here but not flower.`,
   };
 }
@@ -397,3 +444,35 @@ export const condensation: FitRule = (_profile, season, t) => {
 };
 
 export const FIT_RULES: FitRule[] = [coldNights, hotDays, humidityBand, lightBand, floweringNeeds, condensation];
+
+/**
+ * What each rule reads of a plant profile. Plants alike in these get the same result in the same
+ * season, so a fit table (many spots × a library whose groups share their limits, plus the site's
+ * copies of them) judges each distinct case once. A rule added without an entry is never shared.
+ */
+const RULE_INPUTS = new Map<FitRule, (p: PlantProfile) => string>([
+  [coldNights, (p) => `${p.minNightC}|${p.coldTolerance}`],
+  [hotDays, (p) => `${p.maxDayC}|${p.flowering.coolPeriod?.maxDayC !== undefined}|${shortName(p)}`],
+  [humidityBand, (p) => `${p.humidityMin}|${p.humidityMax}`],
+  [lightBand, (p) => `${p.dliMin}|${p.dliMax}`],
+  [floweringNeeds, (p) => `${JSON.stringify(p.flowering)}|${shortName(p)}`],
+  [condensation, () => ""],
+]);
+
+const judged = new WeakMap<SeasonProfile, WeakMap<FitThresholds, Map<string, RuleResult>>>();
+
+/** Every rule's result for a plant in a season, in FIT_RULES order. Results are shared: don't mutate them. */
+export function judgeAll(profile: PlantProfile, season: SeasonProfile, t: FitThresholds): RuleResult[] {
+  let byThresholds = judged.get(season);
+  if (!byThresholds) judged.set(season, (byThresholds = new WeakMap()));
+  let known = byThresholds.get(t);
+  if (!known) byThresholds.set(t, (known = new Map()));
+  return FIT_RULES.map((rule, i) => {
+    const inputs = RULE_INPUTS.get(rule);
+    if (!inputs) return rule(profile, season, t);
+    const key = `${i}|${inputs(profile)}`;
+    let result = known.get(key);
+    if (!result) known.set(key, (result = rule(profile, season, t)));
+    return result;
+  });
+}

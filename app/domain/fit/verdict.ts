@@ -1,4 +1,4 @@
-import { DEFAULT_FIT_THRESHOLDS, FIT_RULES, type FitThresholds, type RuleLevel, type RuleResult } from "~/domain/fit/rules";
+import { DEFAULT_FIT_THRESHOLDS, judgeAll, type FitThresholds, type RuleLevel, type RuleResult } from "~/domain/fit/rules";
 import type { PlantProfile } from "~/domain/plants/library";
 import { MONTH_NAMES, MIN_DAYS_FOR_MONTH } from "~/domain/season/profile";
 import type { SeasonProfile } from "~/domain/season/types";
@@ -42,11 +42,16 @@ const ruleRank = (r: RuleResult) => {
   return i < 0 ? RULE_ORDER.length : i;
 };
 
+const missingCache = new WeakMap<SeasonProfile, number[]>();
 function missingMonthsOf(season: SeasonProfile): number[] {
+  const known = missingCache.get(season);
+  if (known) return known;
   const missing = new Set(season.year.filter((m) => !m.coverage.enough).map((m) => m.month));
   // Count from the month of the last reading (for a sensor still in place, this month) onwards.
   const start = season.days.at(-1)?.month ?? season.months.at(-1)?.month ?? 1;
-  return Array.from({ length: 12 }, (_, i) => ((start - 1 + i) % 12) + 1).filter((m) => missing.has(m));
+  const months = Array.from({ length: 12 }, (_, i) => ((start - 1 + i) % 12) + 1).filter((m) => missing.has(m));
+  missingCache.set(season, months);
+  return months;
 }
 
 /**
@@ -54,7 +59,7 @@ function missingMonthsOf(season: SeasonProfile): number[] {
  * facing (windowLight) instead of leaving light unjudged.
  */
 export function fitPlant(profile: PlantProfile, season: SeasonProfile, thresholds: FitThresholds = DEFAULT_FIT_THRESHOLDS, window?: SpotWindow): PlantFit {
-  const reasons = FIT_RULES.map((rule) => rule(profile, season, thresholds))
+  const reasons = judgeAll(profile, season, thresholds)
     .map((r) => (r.rule === "light" && r.noData && window ? (windowLight(profile, window) ?? r) : r))
     .sort((a, b) => LEVEL_ORDER[a.level] - LEVEL_ORDER[b.level] || ruleRank(a) - ruleRank(b));
   const missing = missingMonthsOf(season);
@@ -81,15 +86,16 @@ export function fitPlant(profile: PlantProfile, season: SeasonProfile, threshold
   };
 }
 
-function compareFits(a: PlantFit, b: PlantFit): number {
-  const count = (f: PlantFit, level: RuleLevel) => f.reasons.filter((r) => r.level === level).length;
-  return (
-    VERDICT_ORDER.indexOf(a.verdict) - VERDICT_ORDER.indexOf(b.verdict) ||
-    count(a, "poor") - count(b, "poor") ||
-    count(a, "care") - count(b, "care") ||
-    a.missingMonths.length - b.missingMonths.length
-  );
+/** Verdict, then poor and care reasons, then missing months: one number per fit, smaller is better. */
+function fitRank(f: PlantFit): number {
+  let poor = 0, care = 0;
+  for (const r of f.reasons) {
+    if (r.level === "poor") poor++;
+    else if (r.level === "care") care++;
+  }
+  return ((VERDICT_ORDER.indexOf(f.verdict) * 16 + poor) * 16 + care) * 16 + f.missingMonths.length;
 }
+const byName = new Intl.Collator("en").compare;
 
 /** Plants for one spot, best fit first; ties by name. */
 export function rankPlantsForSpot(
@@ -99,8 +105,12 @@ export function rankPlantsForSpot(
   window?: SpotWindow,
 ): { plant: PlantProfile; fit: PlantFit }[] {
   return plants
-    .map((plant) => ({ plant, fit: fitPlant(plant, season, thresholds, window) }))
-    .sort((a, b) => compareFits(a.fit, b.fit) || a.plant.name.localeCompare(b.plant.name));
+    .map((plant) => {
+      const fit = fitPlant(plant, season, thresholds, window);
+      return { plant, fit, rank: fitRank(fit) };
+    })
+    .sort((a, b) => a.rank - b.rank || byName(a.plant.name, b.plant.name))
+    .map(({ plant, fit }) => ({ plant, fit }));
 }
 
 /** Spots for one plant, best fit first; ties keep the given order. */
@@ -109,5 +119,11 @@ export function rankSpotsForPlant<S extends { season: SeasonProfile; window?: Sp
   spots: S[],
   thresholds: FitThresholds = DEFAULT_FIT_THRESHOLDS,
 ): { spot: S; fit: PlantFit }[] {
-  return spots.map((spot) => ({ spot, fit: fitPlant(plant, spot.season, thresholds, spot.window) })).sort((a, b) => compareFits(a.fit, b.fit));
+  return spots
+    .map((spot) => {
+      const fit = fitPlant(plant, spot.season, thresholds, spot.window);
+      return { spot, fit, rank: fitRank(fit) };
+    })
+    .sort((a, b) => a.rank - b.rank)
+    .map(({ spot, fit }) => ({ spot, fit }));
 }

@@ -168,8 +168,8 @@ function dayDli(d: DayAgg): number | null {
 
 type Stats = Omit<PeriodStats, "coverage"> & { hoursObserved: number; daysObserved: number };
 
-/** Hourly means of all days, sorted; typed arrays sort numerically and fast. */
-function sortedHourlyMeans(days: DayAgg[]): number[] {
+/** Hourly means of the days, sorted; typed arrays sort numerically and fast. */
+function sortedHourlyMeans(days: DayAgg[]): Float64Array {
   let n = 0;
   for (const d of days) n += d.tempMeans.length;
   const out = new Float64Array(n);
@@ -178,14 +178,27 @@ function sortedHourlyMeans(days: DayAgg[]): number[] {
     out.set(d.tempMeans, i);
     i += d.tempMeans.length;
   }
-  // quantileSorted only indexes and reads length, which a Float64Array provides.
-  return out.sort() as unknown as number[];
+  return out.sort();
 }
 
-function aggregate(days: DayAgg[], thresholds: number[]): Stats {
-  const withTemp = days.filter((d) => d.hours > 0);
-  const complete = withTemp.filter((d) => d.hours >= MIN_HOURS_FOR_DAY);
-  const hourly = sortedHourlyMeans(withTemp);
+/** One sorted array from several sorted ones (a season from its months), without sorting again. */
+function mergeSorted(parts: Float64Array[]): Float64Array {
+  if (parts.length === 1) return parts[0];
+  let merged: Float64Array = new Float64Array(0);
+  for (const part of parts) {
+    const out = new Float64Array(merged.length + part.length);
+    let i = 0, j = 0, k = 0;
+    while (i < merged.length && j < part.length) out[k++] = merged[i] <= part[j] ? merged[i++] : part[j++];
+    while (i < merged.length) out[k++] = merged[i++];
+    while (j < part.length) out[k++] = part[j++];
+    merged = out;
+  }
+  return merged;
+}
+
+/** `hourly`: the days' hourly mean temperatures, sorted (the caller may have them already). */
+function aggregate(days: DayAgg[], thresholds: number[], hourly: Float64Array = sortedHourlyMeans(days)): Stats {
+  const complete = days.filter((d) => d.hours >= MIN_HOURS_FOR_DAY);
   const difs: number[] = [];
   const dlis: number[] = [];
   let lowest = Infinity, highest = -Infinity, rhLow = Infinity, rhHigh = -Infinity;
@@ -215,8 +228,9 @@ function aggregate(days: DayAgg[], thresholds: number[]): Stats {
       highest: finiteOrNull(highest),
       // Percentiles of hourly mean temperature, so hour-weighted: a sample burst can't skew them.
       // simple-statistics quantileSorted interpolates linearly (Hyndman & Fan type 7).
-      p05: hourly.length > 0 ? quantileSorted(hourly, 0.05) : null,
-      p95: hourly.length > 0 ? quantileSorted(hourly, 0.95) : null,
+      // (quantileSorted only indexes and reads length, which a Float64Array provides.)
+      p05: hourly.length > 0 ? quantileSorted(hourly as unknown as number[], 0.05) : null,
+      p95: hourly.length > 0 ? quantileSorted(hourly as unknown as number[], 0.95) : null,
       meanDailyLow: meanOrNull(complete.map((d) => d.low)),
       meanDailyHigh: meanOrNull(complete.map((d) => d.high)),
       meanDayNightDifference: meanOrNull(difs),
@@ -291,6 +305,10 @@ export function seasonProfile(rollups: HourlyRollup[], site: Site, opts: SeasonP
 
   const months: MonthProfile[] = [];
   const monthDays = new Map<string, DayAgg[]>();
+  // Each month's hourly means are sorted once; seasons and months of the year merge them, and a
+  // month of the year seen in one calendar month only (the usual year) reuses that month's figures.
+  const monthHourly = new Map<string, Float64Array>();
+  const monthStats = new Map<string, Stats>();
   if (toMs > fromMs) {
     const firstDay = clock.localDayNumber(fromMs);
     const lastDay = clock.localDayNumber(toMs - 1);
@@ -303,7 +321,10 @@ export function seasonProfile(rollups: HourlyRollup[], site: Site, opts: SeasonP
       const inRange = Math.min(start + dim - 1, lastDay) - Math.max(start, firstDay) + 1;
       const list = daysByMonth.get(key) ?? [];
       monthDays.set(key, list);
-      const stats = aggregate(list, thresholds);
+      const hourly = sortedHourlyMeans(list);
+      monthHourly.set(key, hourly);
+      const stats = aggregate(list, thresholds, hourly);
+      monthStats.set(key, stats);
       months.push({
         key,
         year: ym.year,
@@ -330,7 +351,7 @@ export function seasonProfile(rollups: HourlyRollup[], site: Site, opts: SeasonP
       const ym = addMonths(start.year, start.month, i);
       return n + daysInMonth(ym.year, ym.month);
     }, 0);
-    const stats = aggregate(ms.flatMap((m) => monthDays.get(m.key) ?? []), thresholds);
+    const stats = aggregate(ms.flatMap((m) => monthDays.get(m.key)!), thresholds, mergeSorted(ms.map((m) => monthHourly.get(m.key)!)));
     const enough = ms.length === 3 && ms.every((m) => m.coverage.enough);
     return {
       key: `${monthKey(start.year, start.month)}/${monthKey(end.year, end.month)}`,
@@ -344,7 +365,10 @@ export function seasonProfile(rollups: HourlyRollup[], site: Site, opts: SeasonP
   const year: MonthOfYearProfile[] = MONTH_NAMES.map((name, i) => {
     const month = i + 1;
     const included = months.filter((m) => m.month === month);
-    const stats = aggregate(included.flatMap((m) => monthDays.get(m.key) ?? []), thresholds);
+    const stats =
+      included.length === 1
+        ? monthStats.get(included[0].key)!
+        : aggregate(included.flatMap((m) => monthDays.get(m.key)!), thresholds, mergeSorted(included.map((m) => monthHourly.get(m.key)!)));
     return {
       key: String(month).padStart(2, "0"),
       month,
