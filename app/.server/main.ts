@@ -66,8 +66,10 @@ async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[],
   });
 
   const { pruneRejections } = await import("~/.server/ingest/rejections");
+  const { pruneRollupChanges } = await import("~/.server/profiles");
   const housekeeping = setInterval(() => {
     pruneRejections().catch(() => {});
+    pruneRollupChanges().catch(() => {});
     pool()
       .query("SELECT ensure_reading_partitions(date_trunc('month', now()), 3)")
       .catch(() => {});

@@ -36,39 +36,79 @@ export async function fetchRollups(spotIds: number[], from: Date, to: Date): Pro
   return out;
 }
 
-// Past hours rarely change, so each spot's rollups up to two hours ago are kept in memory and
-// checked on every use with one cheap aggregate (count and sums over the same range): a late
-// reading, a moved sensor or a new calibration changes it and the spot is read again. The last two
-// hours are always read fresh.
+// Past hours rarely change, so each spot's rollups up to two hours ago are kept in memory. Every
+// statement that changes a past hour's rollup logs the spot in rollup_changes (a trigger, see
+// drizzle/0004), and each use compares the spot's log with the one seen when the rows were read:
+// a late reading, a moved sensor or a new calibration makes it read the spot again. The log is
+// compared by count and lowest and highest id, so a change committed out of id order, or the
+// oldest entries pruned, still shows. The last two hours are always read fresh, and as the clock
+// moves on only the newly past hours are read and appended.
 type CachedRollups = { from: number; edge: number; check: string; rows: HourlyRollup[] };
 type CacheHolder = { rollups: Map<number, CachedRollups> };
 const cacheHolder = ((globalThis as Record<string, unknown>).__nichewiseRollupCache ??= { rollups: new Map() }) as CacheHolder;
-const MAX_CACHED_SPOTS = 500;
+/** About 1.5 MB per spot-year; least recently used spots go first. */
+const MAX_CACHED_SPOTS = 64;
+
+/** Forget week-old entries of the change log; the cache's check notices the pruning as a change. */
+export async function pruneRollupChanges() {
+  await pool().query("DELETE FROM rollup_changes WHERE changed_at < now() - interval '7 days'");
+}
+
+/** Index of the first row at or after `ms` (rows in hour order). */
+function firstAtOrAfter(rows: HourlyRollup[], ms: number): number {
+  let lo = 0, hi = rows.length;
+  while (lo < hi) {
+    const mid = (lo + hi) >> 1;
+    if (rows[mid].hour.getTime() < ms) lo = mid + 1;
+    else hi = mid;
+  }
+  return lo;
+}
 
 export async function loadRollups(spotIds: number[], fromAsked: Date, to: Date): Promise<Map<number, HourlyRollup[]>> {
   // Local hours start on a quarter hour in every zone, so rounding `from` up to one selects the
-  // same rows and lets requests within the same quarter share the cache.
-  const from = new Date(Math.ceil(fromAsked.getTime() / 900_000) * 900_000);
+  // same rows.
+  const from = Math.ceil(fromAsked.getTime() / 900_000) * 900_000;
   const edge = Math.min(to.getTime(), Math.floor(Date.now() / 3_600_000) * 3_600_000 - 2 * 3_600_000);
-  if (edge <= from.getTime()) return fetchRollups(spotIds, from, to);
+  if (edge <= from) return fetchRollups(spotIds, new Date(from), to);
   const checks = await pool().query<{ spot_id: number; check: string }>(
-    `SELECT s AS spot_id, (SELECT count(*) || ':' || coalesce(sum(t_n + h_n + lux_n), 0) || ':' || coalesce(sum(t_sum), 0) || ':' ||
-        coalesce(sum(h_sum), 0) || ':' || coalesce(sum(lux_sum), 0) || ':' || coalesce(min(t_min), 0) || ':' || coalesce(max(t_max), 0)
-      FROM hourly_rollups WHERE spot_id = s AND hour >= $2 AND hour < $3) AS check
+    `SELECT s AS spot_id, (SELECT count(*) || ':' || coalesce(min(id), 0) || ':' || coalesce(max(id), 0)
+      FROM rollup_changes WHERE spot_id = s) AS check
      FROM unnest($1::int[]) s`,
-    [spotIds, from, new Date(edge)],
+    [spotIds],
   );
-  const stale = checks.rows.filter((c) => {
-    const hit = cacheHolder.rollups.get(c.spot_id);
-    return !hit || hit.from !== from.getTime() || hit.edge !== edge || hit.check !== c.check;
-  });
+  const cache = cacheHolder.rollups;
+  const stale: { spotId: number; check: string }[] = [];
+  const behind = new Map<number, { spotId: number; hit: CachedRollups }[]>(); // by the edge they were read to
+  for (const { spot_id: spotId, check } of checks.rows) {
+    const hit = cache.get(spotId);
+    if (!hit || hit.check !== check || hit.from > from || hit.edge <= from) stale.push({ spotId, check });
+    else if (hit.edge < edge) behind.set(hit.edge, [...(behind.get(hit.edge) ?? []), { spotId, hit }]);
+  }
+  const used = new Map<number, CachedRollups>();
+  const remember = (spotId: number, entry: CachedRollups) => {
+    used.set(spotId, entry);
+    cache.delete(spotId); // re-inserted last: the Map's order is the order of use
+    cache.set(spotId, entry);
+    while (cache.size > MAX_CACHED_SPOTS) cache.delete(cache.keys().next().value!);
+  };
+  for (const id of spotIds) if (!stale.some((c) => c.spotId === id)) remember(id, cache.get(id)!);
   if (stale.length > 0) {
-    const fresh = await fetchRollups(stale.map((c) => c.spot_id), from, new Date(edge));
-    if (cacheHolder.rollups.size > MAX_CACHED_SPOTS) cacheHolder.rollups.clear();
-    for (const c of stale) cacheHolder.rollups.set(c.spot_id, { from: from.getTime(), edge, check: c.check, rows: fresh.get(c.spot_id)! });
+    const fresh = await fetchRollups(stale.map((c) => c.spotId), new Date(from), new Date(edge));
+    for (const c of stale) remember(c.spotId, { from, edge, check: c.check, rows: fresh.get(c.spotId)! });
+  }
+  for (const [readTo, list] of behind) {
+    const more = await fetchRollups(list.map((l) => l.spotId), new Date(readTo), new Date(edge));
+    for (const { spotId, hit } of list) remember(spotId, { ...hit, edge, rows: [...hit.rows, ...more.get(spotId)!] });
   }
   const recent = edge < to.getTime() ? await fetchRollups(spotIds, new Date(edge), to) : new Map<number, HourlyRollup[]>();
-  return new Map(spotIds.map((id) => [id, [...cacheHolder.rollups.get(id)!.rows, ...(recent.get(id) ?? [])]]));
+  return new Map(
+    spotIds.map((id) => {
+      const { rows } = used.get(id)!;
+      const past = rows.slice(firstAtOrAfter(rows, from), firstAtOrAfter(rows, edge));
+      return [id, [...past, ...(recent.get(id) ?? [])]];
+    }),
+  );
 }
 
 const plantThresholds = [...new Set(PLANT_LIBRARY.map((p) => p.minNightC))];

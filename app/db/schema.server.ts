@@ -179,6 +179,20 @@ export const hourlyRollups = pgTable(
   (t) => [primaryKey({ columns: [t.spotId, t.hour] })],
 );
 
+// Spots whose past hours' rollups changed (late readings, a rebuild after a move or a calibration,
+// deletions). Rows are written by statement triggers on hourly_rollups (drizzle/0004), so no path
+// can forget; the rollup cache in app/.server/profiles.ts compares a spot's rows here to know when
+// it must read the spot again. No foreign key: a deleted spot's rollups still log their deletion.
+export const rollupChanges = pgTable(
+  "rollup_changes",
+  {
+    id: bigserial({ mode: "number" }).primaryKey(),
+    spotId: integer().notNull(),
+    changedAt: createdAt(),
+  },
+  (t) => [index().on(t.spotId, t.id)],
+);
+
 // Bounded (pruned to the newest rows) record of what ingest refused and why.
 export const rejectedMessages = pgTable(
   "rejected_messages",

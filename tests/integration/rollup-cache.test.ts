@@ -1,5 +1,5 @@
 // The in-memory rollup cache behind season profiles must never serve stale hours.
-import { describe, expect, it } from "vitest";
+import { describe, expect, it, vi } from "vitest";
 import { ReadingWriter } from "~/.server/ingest/writer";
 import { rebuildRollups } from "~/.server/ingest/rollups";
 import { fetchRollups, loadRollups } from "~/.server/profiles";
@@ -33,5 +33,39 @@ describe("rollup cache", () => {
     await pool().query(`UPDATE sensors SET calibration = '{"temperature": 0.5}' WHERE id = $1`, [sensor.id]);
     await rebuildRollups([spot.id]);
     await same();
+    // Narrower periods are cut from the cached rows: a later start, a period ending in the past.
+    const sameFor = async (f: Date, t: Date) => expect((await loadRollups([spot.id], f, t)).get(spot.id)).toEqual((await fetchRollups([spot.id], f, t)).get(spot.id));
+    await sameFor(new Date(from.getTime() + 30 * HOUR + 7 * 60_000), to);
+    await sameFor(from, new Date(now - 30 * HOUR));
+    await sameFor(new Date(start + 5 * HOUR), new Date(start + 9 * HOUR));
+    // Three hours on, the hours that became past are read and appended to the cached ones.
+    const later = now + 3 * HOUR;
+    vi.useFakeTimers({ toFake: ["Date"], now: later });
+    try {
+      await w.write([{ sensorId: sensor.id, measuredAt: new Date(now - 10 * 60_000), temperature: 30, humidity: 40, lux: null, battery: null }]);
+      await sameFor(from, new Date(later));
+      await sameFor(new Date(from.getTime() + 3 * HOUR), new Date(later));
+    } finally {
+      vi.useRealTimers();
+    }
+    // A deleted hour (readings removed and the spot rebuilt) is gone from the cache as well.
+    await pool().query("DELETE FROM readings WHERE sensor_id = $1 AND measured_at < $2", [sensor.id, new Date(start + 24 * HOUR)]);
+    await rebuildRollups([spot.id]);
+    await same();
+  });
+
+  it("logs only changes to hours more than an hour old", async () => {
+    const user = await makeUser();
+    const site = await makeSite(user);
+    const spot = await makeSpot(site);
+    const sensor = await makeSensor(site, spot);
+    const w = new ReadingWriter();
+    const logged = async () => Number((await pool().query("SELECT count(*) FROM rollup_changes WHERE spot_id = $1", [spot.id])).rows[0].count);
+    await w.write([{ sensorId: sensor.id, measuredAt: new Date(Date.now() - 60_000), temperature: 20, humidity: 50, lux: null, battery: null }]);
+    expect(await logged()).toBe(0);
+    await w.write([{ sensorId: sensor.id, measuredAt: new Date(Date.now() - 3 * HOUR), temperature: 20, humidity: 50, lux: null, battery: null }]);
+    expect(await logged()).toBe(1);
+    await w.write([{ sensorId: sensor.id, measuredAt: new Date(Date.now() - 3 * HOUR + 1000), temperature: 21, humidity: 50, lux: null, battery: null }]);
+    expect(await logged()).toBe(2); // the upsert's update
   });
 });

@@ -6,6 +6,7 @@ import { calibratedSql } from "~/.server/ingest/calibrated";
 import type pg from "pg";
 import { pool } from "~/.server/db";
 import type { Reading } from "~/domain/ingest/payload";
+import { zoneClock } from "~/domain/season/local-time";
 
 export type CommittedReading = { spotId: number; sensorId: number; measuredAt: Date; t: number | null; h: number | null; battery: number | null };
 export type BatchListener = (rows: CommittedReading[]) => void | Promise<void>;
@@ -27,8 +28,10 @@ export const LOCAL_HOUR_START = (at: string, timeZone: string) =>
 // temperature and a humidity sent in the same second belong to one row, so a second channel fills
 // the row's empty column instead of being dropped as a duplicate, and only newly filled channels
 // are added to the rollup. `old` reads the rows as they were before the statement; that is sound
-// because this process runs one flush at a time.
-function buildWriteSql(merge: boolean, withRows: boolean) {
+// because no two statements in flight hold readings of the same instant of a sensor. It is
+// MATERIALIZED: inlined into the join below, PostgreSQL re-read it for every inserted row
+// (10 s for 10,000 readings), and the bounds let it skip the months the batch doesn't touch.
+function buildWriteSql(merge: boolean, withRows: boolean, withSeen: boolean) {
   const input = merge
     ? `raw_input AS (
   SELECT sensor_id, to_timestamp(ms / 1000) AS measured_at, temperature, humidity, lux, battery FROM unnest($1::int[], $2::float8[], $3::real[], $4::real[], $5::real[], $6::real[])
@@ -37,9 +40,10 @@ function buildWriteSql(merge: boolean, withRows: boolean) {
   SELECT sensor_id, measured_at, max(temperature) AS temperature, max(humidity) AS humidity,
     max(lux) AS lux, max(battery) AS battery
   FROM raw_input GROUP BY sensor_id, measured_at
-), old AS (
+), old AS MATERIALIZED (
   SELECT r.sensor_id, r.measured_at, r.temperature, r.humidity, r.lux
   FROM readings r JOIN input i ON i.sensor_id = r.sensor_id AND i.measured_at = r.measured_at
+  WHERE r.measured_at >= (SELECT min(measured_at) FROM input) AND r.measured_at <= (SELECT max(measured_at) FROM input)
 )`
     : `input AS (
   SELECT sensor_id, to_timestamp(ms / 1000) AS measured_at, temperature, humidity, lux, battery FROM unnest($1::int[], $2::float8[], $3::real[], $4::real[], $5::real[], $6::real[])
@@ -102,7 +106,7 @@ WITH ${input}, ins AS (
     lux_n = r.lux_n + excluded.lux_n,
     lux_sum = CASE WHEN r.lux_sum IS NULL THEN excluded.lux_sum ELSE r.lux_sum + coalesce(excluded.lux_sum, 0) END
   RETURNING 1
-), seen AS (
+), seen AS (${withSeen ? `
   UPDATE sensors s SET last_seen_at = greatest(s.last_seen_at, x.last_at),
     battery = coalesce(x.battery, s.battery)
   FROM (
@@ -111,7 +115,7 @@ WITH ${input}, ins AS (
     FROM input GROUP BY sensor_id
   ) x
   WHERE s.id = x.sensor_id AND (s.last_seen_at IS NULL OR x.last_at >= s.last_seen_at)
-  RETURNING 1
+  RETURNING 1` : "SELECT 1 WHERE false"}
 )
 SELECT (SELECT count(*)::int FROM ins) AS inserted, (SELECT count(*)::int FROM up) AS hours,
   (SELECT count(*)::int FROM seen) AS seen,
@@ -119,12 +123,15 @@ SELECT (SELECT count(*)::int FROM ins) AS inserted, (SELECT count(*)::int FROM u
     FROM placed), '[]'::json)` : `'[]'::json`} AS placed`;
 }
 
-// The committed rows go back to the process only when someone listens (the alert engine).
-const SQL = {
-  plain: buildWriteSql(false, false),
-  plainRows: buildWriteSql(false, true),
-  merge: buildWriteSql(true, false),
-  mergeRows: buildWriteSql(true, true),
+// The committed rows go back to the process only when someone listens (the alert engine). The
+// sensor's last-seen time and battery are left out of the halves of a split batch (see
+// splitStatements), which set them in a statement of their own.
+const SQL = new Map<string, string>();
+const baseSql = (merge: boolean, withRows: boolean, withSeen: boolean) => {
+  const key = `${merge}:${withRows}:${withSeen}`;
+  let text = SQL.get(key);
+  if (!text) SQL.set(key, (text = buildWriteSql(merge, withRows, withSeen)));
+  return text;
 };
 
 // With several callers in one group commit, each needs to know which of its rows were new.
@@ -144,6 +151,72 @@ function literal(values: (number | null)[]): string {
 
 type Pending = { readings: Reading[]; resolve: (r: WriteResult) => void; reject: (e: Error) => void };
 
+type StatementRow = {
+  inserted: number;
+  placed: [number, number, string, number | null, number | null, number | null][];
+  keys?: [number, number][];
+};
+
+const sqlFor = (merge: boolean, withRows: boolean, withKeys: boolean, withSeen = true) => baseSql(merge, withRows, withSeen) + (withKeys ? KEYS : "");
+
+// The seen update of a split batch, run by the later half after the earlier half committed.
+const SEEN_SQL = `UPDATE sensors SET last_seen_at = greatest(last_seen_at, to_timestamp($2::float8 / 1000)), battery = coalesce($3::real, battery)
+  WHERE id = $1 AND (last_seen_at IS NULL OR to_timestamp($2::float8 / 1000) >= last_seen_at)`;
+
+const asError = (err: unknown) => (err instanceof Error ? err : new Error(String(err)));
+
+/**
+ * The statement's array parameters, built here as literals: node-pg's generic array and Date
+ * serialisation cost more per row than the insert itself. Times travel as epoch milliseconds.
+ */
+function columns(rows: Reading[]): string[] {
+  const n = rows.length;
+  const ids: number[] = new Array(n);
+  const ms: number[] = new Array(n);
+  const t: (number | null)[] = new Array(n);
+  const h: (number | null)[] = new Array(n);
+  const l: (number | null)[] = new Array(n);
+  const b: (number | null)[] = new Array(n);
+  for (let i = 0; i < n; i++) {
+    const r = rows[i];
+    ids[i] = r.sensorId;
+    ms[i] = r.measuredAt.getTime();
+    t[i] = r.temperature;
+    h[i] = r.humidity;
+    l[i] = r.lux;
+    b[i] = r.battery;
+  }
+  return [literal(ids), literal(ms), literal(t), literal(h), literal(l), literal(b)];
+}
+
+/** Batches of at least this many readings of one sensor are written as two halves at once. */
+const SPLIT_MIN_ROWS = 4000;
+const SPLIT_LOCK_TIMEOUT_MS = 5_000;
+const HOUR_MS = 3_600_000;
+
+/**
+ * A batch of one sensor's readings cut in two by time so that no local hour of the sensor's site
+ * (the rollups' key) has readings in both halves, or null when it can't be (several sensors, one
+ * hour). The halves then share no row: two statements inserting the same new rollup would wait on
+ * each other.
+ */
+function splitOneSensor(rows: Reading[], timeZone: string): [Reading[], Reading[]] | null {
+  const ordered = [...rows].sort((a, b) => a.measuredAt.getTime() - b.measuredAt.getTime());
+  const clock = zoneClock(timeZone);
+  const hourOf = (r: Reading) => {
+    const ms = r.measuredAt.getTime();
+    return ms - ((((ms + clock.offsetAt(ms)) % HOUR_MS) + HOUR_MS) % HOUR_MS);
+  };
+  const middle = ordered.length >> 1;
+  for (let step = 0; step < middle; step++) {
+    for (const cut of [middle + step, middle - step]) {
+      if (cut > 0 && cut < ordered.length && hourOf(ordered[cut]) !== hourOf(ordered[cut - 1])) return [ordered.slice(0, cut), ordered.slice(cut)];
+    }
+  }
+  return null;
+}
+
+
 export type WriterStats = {
   batches: number;
   readings: number;
@@ -151,6 +224,8 @@ export type WriterStats = {
   failures: number;
   lastCommitMs: number;
   commitMs: number[]; // recent commit latencies, newest last
+  /** Large one-sensor batches written as two halves at once. */
+  splitBatches: number;
 };
 
 // Readings are split by sensor over a few independent queues ("shards"), each with one statement
@@ -162,7 +237,7 @@ type Shard = { pending: Pending[]; count: number; timer: NodeJS.Timeout | null; 
 export class ReadingWriter {
   private shards: Shard[];
   private listeners = new Set<BatchListener>();
-  readonly stats: WriterStats = { batches: 0, readings: 0, inserted: 0, failures: 0, lastCommitMs: 0, commitMs: [] };
+  readonly stats: WriterStats = { batches: 0, readings: 0, inserted: 0, failures: 0, lastCommitMs: 0, commitMs: [], splitBatches: 0 };
 
   constructor(
     private readonly getPool: () => pg.Pool = pool,
@@ -233,76 +308,136 @@ export class ReadingWriter {
   }
 
   private async commit(batch: Pending[], n: number) {
-    // Array literals built here: node-pg's generic array and Date serialisation cost more per row
-    // than the insert itself. Times travel as epoch milliseconds.
-    const ids: number[] = new Array(n);
-    const ms: number[] = new Array(n);
-    const t: (number | null)[] = new Array(n);
-    const h: (number | null)[] = new Array(n);
-    const l: (number | null)[] = new Array(n);
-    const b: (number | null)[] = new Array(n);
-    let i = 0;
-    for (const p of batch) {
-      for (const r of p.readings) {
-        ids[i] = r.sensorId;
-        ms[i] = r.measuredAt.getTime();
-        t[i] = r.temperature;
-        h[i] = r.humidity;
-        l[i] = r.lux;
-        b[i] = r.battery;
-        i++;
+    const rows: Reading[] = batch.length === 1 ? batch[0].readings : batch.flatMap((p) => p.readings);
+    const merge = rows.some((r) => r.partial);
+    const withRows = this.listeners.size > 0;
+    const started = performance.now();
+    const halves = n >= SPLIT_MIN_ROWS ? await this.halves(rows) : null;
+    let results: StatementRow[] = [];
+    let failure: Error | null = null;
+    if (halves) {
+      ({ results, failure } = await this.splitStatements(halves, merge, withRows, batch.length > 1));
+      // Nothing committed (a lock wait timed out, say): the batch gets one plain try.
+      if (results.length === 0) failure = null;
+      else this.stats.splitBatches++;
+    }
+    if (results.length === 0 && !failure) {
+      try {
+        results = [await this.statement(columns(rows), merge, withRows, batch.length > 1)];
+      } catch (err) {
+        failure = asError(err);
       }
     }
-    const cols = [literal(ids), literal(ms), literal(t), literal(h), literal(l), literal(b)];
-    const started = performance.now();
-    let client: pg.PoolClient | undefined;
-    try {
-      client = await this.getPool().connect();
-      // One statement is its own transaction; it commits before the result comes back.
-      const merge = batch.some((p) => p.readings.some((r) => r.partial));
-      const rows = this.listeners.size > 0;
-      const text = SQL[merge ? (rows ? "mergeRows" : "merge") : rows ? "plainRows" : "plain"] + (batch.length > 1 ? KEYS : "");
-      const res = await client.query(text, cols);
-      client.release();
-      client = undefined;
-      const row = res.rows[0] as {
-        inserted: number;
-        placed: [number, number, string, number | null, number | null, number | null][];
-        keys?: [number, number][];
-      };
-      const ms = performance.now() - started;
+    const ms = performance.now() - started;
+    if (results.length > 0) {
       this.stats.batches++;
       this.stats.readings += n;
-      this.stats.inserted += row.inserted;
       this.stats.lastCommitMs = ms;
       this.stats.commitMs.push(ms);
       if (this.stats.commitMs.length > 500) this.stats.commitMs.splice(0, this.stats.commitMs.length - 500);
-      if (row.keys) {
-        const fresh = new Set(row.keys.map(([id, ms]) => `${id}:${ms}`));
-        for (const p of batch) {
-          let inserted = 0;
-          for (const r of p.readings) if (fresh.delete(`${r.sensorId}:${r.measuredAt.getTime()}`)) inserted++;
-          p.resolve({ inserted });
-        }
-      } else {
-        batch[0].resolve({ inserted: row.inserted });
-      }
-      if (this.listeners.size > 0 && row.placed.length > 0) {
-        const committed = row.placed.map(([spotId, sensorId, at, t, h, battery]) => ({
-          spotId, sensorId, measuredAt: new Date(at), t, h, battery,
-        }));
-        for (const l of this.listeners) {
-          Promise.resolve()
-            .then(() => l(committed))
-            .catch((err) => console.error("[writer] batch listener failed:", err));
-        }
-      }
-    } catch (err) {
-      client?.release(true);
-      this.stats.failures++;
-      const error = err instanceof Error ? err : new Error(String(err));
-      for (const p of batch) p.reject(error);
     }
+    for (const r of results) this.stats.inserted += r.inserted;
+    // Committed rows reach the listeners even when a later half failed: they are stored, and the
+    // retry that follows finds them already there.
+    const placed = results.length === 1 ? results[0].placed : results.flatMap((r) => r.placed);
+    if (this.listeners.size > 0 && placed.length > 0) {
+      const committed = placed.map(([spotId, sensorId, at, t, h, battery]) => ({
+        spotId, sensorId, measuredAt: new Date(at), t, h, battery,
+      }));
+      for (const l of this.listeners) {
+        Promise.resolve()
+          .then(() => l(committed))
+          .catch((err) => console.error("[writer] batch listener failed:", err));
+      }
+    }
+    if (failure) {
+      this.stats.failures++;
+      for (const p of batch) p.reject(failure);
+      return;
+    }
+    if (batch.length === 1) {
+      batch[0].resolve({ inserted: results.reduce((k, r) => k + r.inserted, 0) });
+      return;
+    }
+    const fresh = new Set(results.flatMap((r) => r.keys ?? []).map(([id, ms]) => `${id}:${ms}`));
+    for (const p of batch) {
+      let inserted = 0;
+      for (const r of p.readings) if (fresh.delete(`${r.sensorId}:${r.measuredAt.getTime()}`)) inserted++;
+      p.resolve({ inserted });
+    }
+  }
+
+  /** A large one-sensor batch in two halves by local hour, or null to write it whole. */
+  private async halves(rows: Reading[]): Promise<[Reading[], Reading[]] | null> {
+    const sensorId = rows[0].sensorId;
+    if (rows.some((r) => r.sensorId !== sensorId)) return null;
+    try {
+      const res = await this.getPool().query<{ time_zone: string }>(
+        "SELECT si.time_zone FROM sensors s JOIN sites si ON si.id = s.site_id WHERE s.id = $1",
+        [sensorId],
+      );
+      return res.rows[0] ? splitOneSensor(rows, res.rows[0].time_zone) : null;
+    } catch {
+      return null; // the whole statement will report what is wrong
+    }
+  }
+
+  /** One statement, its own transaction: it has committed when the result comes back. */
+  private async statement(cols: string[], merge: boolean, withRows: boolean, withKeys: boolean): Promise<StatementRow> {
+    const client = await this.getPool().connect();
+    try {
+      const res = await client.query(sqlFor(merge, withRows, withKeys), cols);
+      client.release();
+      return res.rows[0] as StatementRow;
+    } catch (err) {
+      client.release(true);
+      throw err;
+    }
+  }
+
+  /**
+   * A large batch of one sensor (backfill, CSV, HTTP) as two statements running at once on two
+   * connections, so PostgreSQL works on both cores. The earlier half commits on its own; the later
+   * half waits in its transaction and commits only after the earlier one has, so the sensor's
+   * readings still commit in time order (the alert engine needs that) and a failed earlier half
+   * takes the later one with it. The halves share at most the rollup of the hour they are split
+   * in and the sensor's row: the later half waits for those locks, never the other way round. A
+   * lock timeout breaks a wait that a third writer could otherwise close into a cycle.
+   */
+  private async splitStatements(halves: [Reading[], Reading[]], merge: boolean, withRows: boolean, withKeys: boolean): Promise<{ results: StatementRow[]; failure: Error | null }> {
+    const text = sqlFor(merge, withRows, withKeys, false);
+    // What the whole batch says about the sensor, set once the earlier half has committed.
+    const all = [...halves[0], ...halves[1]];
+    const lastMs = all[all.length - 1].measuredAt.getTime();
+    const battery = all.findLast((r) => r.battery !== null && r.battery !== undefined)?.battery ?? null;
+    const run = async (rows: Reading[], waitFor: Promise<unknown> | null) => {
+      const client = await this.getPool().connect();
+      let res: pg.QueryResult;
+      try {
+        await client.query(`BEGIN; SET LOCAL lock_timeout = '${SPLIT_LOCK_TIMEOUT_MS}ms'`);
+        res = await client.query(text, columns(rows));
+      } catch (err) {
+        client.release(true);
+        throw err;
+      }
+      const earlierFailed = waitFor ? await waitFor.then(() => null, asError) : null;
+      try {
+        if (waitFor && !earlierFailed) await client.query(SEEN_SQL, [rows[0].sensorId, lastMs, battery]);
+        await client.query(earlierFailed ? "ROLLBACK" : "COMMIT");
+      } catch (err) {
+        client.release(true);
+        throw err;
+      }
+      client.release();
+      if (earlierFailed) throw earlierFailed;
+      return res.rows[0] as StatementRow;
+    };
+    const earlier = run(halves[0], null);
+    const later = run(halves[1], earlier);
+    const [a, b] = await Promise.allSettled([earlier, later]);
+    if (a.status === "rejected") return { results: [], failure: asError(a.reason) };
+    if (b.status === "rejected") return { results: [a.value], failure: asError(b.reason) };
+    return { results: [a.value, b.value], failure: null };
   }
 
   /** Waits for everything queued so far to be committed or refused. */
