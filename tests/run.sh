@@ -25,6 +25,6 @@ npm run --silent typecheck
 echo "== unit and integration tests (Vitest)"
 npx vitest run
 echo "== build"
-npx react-router build >/dev/null
+npm run --silent build >/dev/null
 echo "== end-to-end tests (Playwright, Chromium)"
 npx playwright test

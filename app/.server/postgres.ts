@@ -130,7 +130,9 @@ export function stopEmbeddedPostgres(dataDir: string) {
   return res.status === 0;
 }
 
-const isEntry = process.argv[1] && path.resolve(process.argv[1]) === path.resolve(import.meta.filename);
+// `tsx app/.server/postgres.ts stop <dir>`; the file name check keeps this out of the bundled
+// server (build/nichewise-server.mjs), where this module's import.meta is the bundle's.
+const isEntry = process.argv[1] && import.meta.filename.endsWith("postgres.ts") && path.resolve(process.argv[1]) === path.resolve(import.meta.filename);
 if (isEntry && process.argv[2] === "stop" && process.argv[3]) {
   stopEmbeddedPostgres(process.argv[3]);
 }

@@ -6,6 +6,7 @@ import { mkdirSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { promisify } from "node:util";
+import { build as esbuild } from "esbuild";
 import { from as copyFrom } from "pg-copy-streams";
 import { chromium } from "playwright-core";
 import { closeDb, pool, runMigrations } from "../../app/.server/db";
@@ -102,6 +103,13 @@ async function copyRows(table: string, readings: Reading[]) {
   }
 }
 
+/** tests/bench/<name>.ts bundled the way `npm run build:server` bundles the product's entry. */
+async function bundle(name: string): Promise<string> {
+  const outfile = path.resolve(`${DIR}/${name}.mjs`);
+  await esbuild({ entryPoints: [`tests/bench/${name}.ts`], bundle: true, platform: "node", format: "esm", packages: "external", outfile, logLevel: "warning" });
+  return outfile;
+}
+
 async function directWrite(w: ReadingWriter, readings: Reading[], batch = 1000) {
   for (let i = 0; i < readings.length; i += batch) await w.write(readings.slice(i, i + batch));
 }
@@ -153,7 +161,10 @@ async function bench() {
   rows.push({ figure: "Direct writer, 1,000-row batches, one connection (readings/s)", ours: fmt(directRate), baseline: `${fmt(copyRate)} (bare COPY)`, ratio: `${fmt((directRate / copyRate) * 100)} %`, target: "—" });
 
   // The broker and writer run in their own process, the load generator in another.
-  const ingest = spawn(process.execPath, ["--import", "tsx", "tests/bench/broker-proc.ts"], { stdio: ["ignore", "inherit", "inherit", "ipc"], env: process.env });
+  // Both processes run bundled, as `npm start` runs the product (build/nichewise-server.mjs): tsx's
+  // loader and transpile cache alone add about 60 MB to a process.
+  const [brokerJs, loadgenJs] = await Promise.all(["broker-proc", "loadgen"].map(bundle));
+  const ingest = spawn(process.execPath, [brokerJs], { stdio: ["ignore", "inherit", "inherit", "ipc"], env: process.env });
   const ask = <T,>(cmd: string) =>
     new Promise<T>((resolve) => {
       ingest.once("message", (m) => resolve(m as T));
@@ -168,7 +179,7 @@ async function bench() {
     const cpu0 = (await ask<{ cpuMs: number }>("stats")).cpuMs;
     const t = performance.now();
     const out = await new Promise<string>((resolve, reject) => {
-      const child = spawn(process.execPath, ["--import", "tsx", "tests/bench/loadgen.ts", JSON.stringify({ url, sensors: creds, ...opts })], { stdio: ["ignore", "pipe", "inherit"] });
+      const child = spawn(process.execPath, [loadgenJs, JSON.stringify({ url, sensors: creds, ...opts })], { stdio: ["ignore", "pipe", "inherit"] });
       let s = "";
       child.stdout.on("data", (d) => (s += d));
       child.on("exit", (code) => (code === 0 ? resolve(s) : reject(new Error(`loadgen exited ${code}`))));
