@@ -27,21 +27,6 @@ type Holder = { running?: RunningBroker };
 const holder = ((globalThis as Record<string, unknown>).__nichewiseBroker ??= {}) as Holder;
 export const runningBroker = () => holder.running;
 
-// One commit acks many publishes of each client at once. Holding the client's socket corked until
-// the event loop's next turn sends those PUBACKs in one write instead of one system call each
-// (which was a sixth of the broker's CPU with 200 clients).
-const corked = new WeakSet<object>();
-function corkForThisTurn(client: Client) {
-  const conn = (client as unknown as { conn?: { cork?: () => void; uncork?: () => void } }).conn;
-  if (!conn?.cork || !conn.uncork || corked.has(conn)) return;
-  corked.add(conn);
-  conn.cork();
-  setImmediate(() => {
-    corked.delete(conn);
-    conn.uncork!();
-  });
-}
-
 function authError(message: string, code: 3 | 4 | 5) {
   return Object.assign(new Error(message), { returnCode: code });
 }
@@ -110,7 +95,6 @@ export async function startBroker(opts: {
         if (!decoded.ok) return reject(decoded.reason);
         verifyAndWrite(id, decoded.payload, match.channel !== "reading").then(
           (result) => {
-            corkForThisTurn(client);
             if (result === null) return done(null);
             reject(result);
           },

@@ -31,7 +31,7 @@ export const LOCAL_HOUR_START = (at: string, timeZone: string) =>
 // because no two statements in flight hold readings of the same instant of a sensor. It is
 // MATERIALIZED: inlined into the join below, PostgreSQL re-read it for every inserted row
 // (10 s for 10,000 readings), and the bounds let it skip the months the batch doesn't touch.
-function buildWriteSql(merge: boolean, withRows: boolean, withSeen: boolean) {
+function buildWriteSql({ merge, withRows, withSeen, optimistic }: Variant) {
   const input = merge
     ? `raw_input AS (
   SELECT sensor_id, to_timestamp(ms / 1000) AS measured_at, temperature, humidity, lux, battery FROM unnest($1::int[], $2::float8[], $3::real[], $4::real[], $5::real[], $6::real[])
@@ -58,7 +58,9 @@ function buildWriteSql(merge: boolean, withRows: boolean, withSeen: boolean) {
   WHERE (readings.temperature IS NULL AND excluded.temperature IS NOT NULL)
     OR (readings.humidity IS NULL AND excluded.humidity IS NOT NULL)
     OR (readings.lux IS NULL AND excluded.lux IS NOT NULL)`
-    : "ON CONFLICT DO NOTHING";
+    : optimistic
+      ? "" // a duplicate fails the statement (unique violation) and the batch is written again with the clause below
+      : "ON CONFLICT DO NOTHING";
   // `fresh`: the channels this statement added (all of them for a new row).
   const fresh = merge
     ? `fresh AS (
@@ -127,12 +129,20 @@ SELECT (SELECT count(*)::int FROM ins) AS inserted, (SELECT count(*)::int FROM u
 // sensor's last-seen time and battery are left out of the halves of a split batch (see
 // splitStatements), which set them in a statement of their own.
 const SQL = new Map<string, string>();
-const baseSql = (merge: boolean, withRows: boolean, withSeen: boolean) => {
-  const key = `${merge}:${withRows}:${withSeen}`;
-  let text = SQL.get(key);
-  if (!text) SQL.set(key, (text = buildWriteSql(merge, withRows, withSeen)));
-  return text;
-};
+// `optimistic`: a plain INSERT, about half the cost of INSERT … ON CONFLICT DO NOTHING per row
+// (no speculative insertion), tried first for batches without single-channel readings. The
+// primary key still refuses any duplicate; the batch is then written with ON CONFLICT.
+type Variant = { merge: boolean; withRows: boolean; withKeys: boolean; withSeen: boolean; optimistic: boolean };
+/** The statement text of a variant, and a name to prepare it under. */
+function sqlFor(v: Variant): { text: string; name: string } {
+  const optimistic = v.optimistic && !v.merge;
+  const name = `nw-write-${v.merge ? "m" : "p"}${v.withRows ? "r" : ""}${v.withKeys ? "k" : ""}${v.withSeen ? "s" : ""}${optimistic ? "o" : ""}`;
+  let text = SQL.get(name);
+  if (!text) SQL.set(name, (text = buildWriteSql({ ...v, optimistic }) + (v.withKeys ? KEYS : "")));
+  return { text, name };
+}
+const UNIQUE_VIOLATION = "23505";
+const isDuplicate = (err: unknown) => (err as { code?: string }).code === UNIQUE_VIOLATION;
 
 // With several callers in one group commit, each needs to know which of its rows were new.
 const KEYS = `,
@@ -157,7 +167,6 @@ type StatementRow = {
   keys?: [number, number][];
 };
 
-const sqlFor = (merge: boolean, withRows: boolean, withKeys: boolean, withSeen = true) => baseSql(merge, withRows, withSeen) + (withKeys ? KEYS : "");
 
 // The seen update of a split batch, run by the later half after the earlier half committed.
 const SEEN_SQL = `UPDATE sensors SET last_seen_at = greatest(last_seen_at, to_timestamp($2::float8 / 1000)), battery = coalesce($3::real, battery)
@@ -387,14 +396,21 @@ export class ReadingWriter {
   /** One statement, its own transaction: it has committed when the result comes back. */
   private async statement(cols: string[], rows: number, merge: boolean, withRows: boolean, withKeys: boolean): Promise<StatementRow> {
     const client = await this.getPool().connect();
+    // Live batches (a few hundred readings, many a second) use prepared statements: parsing and
+    // planning this statement costs about a millisecond, a tenth of a small batch's commit. Bulk
+    // batches keep a plan made for their size.
+    const run = (optimistic: boolean) => {
+      const { text, name } = sqlFor({ merge, withRows, withKeys, withSeen: true, optimistic });
+      return client.query(rows <= PREPARED_MAX_ROWS ? { name, text, values: cols } : { text, values: cols });
+    };
     try {
-      // Live batches (a few hundred readings, many a second) use a prepared statement per variant:
-      // parsing and planning this statement costs about a millisecond, a tenth of a small batch's
-      // commit. Bulk batches keep a plan made for their size.
-      const text = sqlFor(merge, withRows, withKeys);
-      const res = await client.query(
-        rows <= PREPARED_MAX_ROWS ? { name: `nw-write-${merge ? "m" : "p"}${withRows ? "r" : ""}${withKeys ? "k" : ""}`, text, values: cols } : { text, values: cols },
-      );
+      let res: pg.QueryResult;
+      try {
+        res = await run(true);
+      } catch (err) {
+        if (merge || !isDuplicate(err)) throw err;
+        res = await run(false);
+      }
       client.release();
       return res.rows[0] as StatementRow;
     } catch (err) {
@@ -413,7 +429,7 @@ export class ReadingWriter {
    * lock timeout breaks a wait that a third writer could otherwise close into a cycle.
    */
   private async splitStatements(halves: [Reading[], Reading[]], merge: boolean, withRows: boolean, withKeys: boolean): Promise<{ results: StatementRow[]; failure: Error | null }> {
-    const text = sqlFor(merge, withRows, withKeys, false);
+    const variant = { merge, withRows, withKeys, withSeen: false };
     // What the whole batch says about the sensor, set once the earlier half has committed.
     const all = [...halves[0], ...halves[1]];
     const lastMs = all[all.length - 1].measuredAt.getTime();
@@ -422,8 +438,15 @@ export class ReadingWriter {
       const client = await this.getPool().connect();
       let res: pg.QueryResult;
       try {
-        await client.query(`BEGIN; SET LOCAL lock_timeout = '${SPLIT_LOCK_TIMEOUT_MS}ms'`);
-        res = await client.query(text, columns(rows));
+        await client.query(`BEGIN; SET LOCAL lock_timeout = '${SPLIT_LOCK_TIMEOUT_MS}ms'; SAVEPOINT optimistic`);
+        const cols = columns(rows);
+        try {
+          res = await client.query(sqlFor({ ...variant, optimistic: true }).text, cols);
+        } catch (err) {
+          if (merge || !isDuplicate(err)) throw err;
+          await client.query("ROLLBACK TO SAVEPOINT optimistic");
+          res = await client.query(sqlFor({ ...variant, optimistic: false }).text, cols);
+        }
       } catch (err) {
         client.release(true);
         throw err;
