@@ -4,7 +4,7 @@ import { startBroker } from "../../app/.server/ingest/broker";
 import { ReadingWriter } from "../../app/.server/ingest/writer";
 import { closeDb, pool } from "../../app/.server/db";
 
-const writer = new ReadingWriter(pool, 5, 2000, Number(process.env.SHARDS ?? 2));
+const writer = new ReadingWriter(pool, 5, 2000);
 let peakRss = 0;
 // memoryUsage.rss() reads one number; memoryUsage() walks the heap spaces and cost ~2 % of this process's CPU at 50 Hz.
 setInterval(() => (peakRss = Math.max(peakRss, process.memoryUsage.rss())), 20).unref();
