@@ -162,10 +162,9 @@ async function bench() {
 
   // The broker and writer run in their own process, the load generator in another.
   // Both processes run bundled, as `npm start` runs the product (build/nichewise-server.mjs): tsx's
-  // loader and transpile cache alone add about 60 MB to a process. The ingest process gets the
-  // product's young-generation limit too (see package.json "start").
+  // loader and transpile cache alone add about 60 MB to a process.
   const [brokerJs, loadgenJs] = await Promise.all(["broker-proc", "loadgen"].map(bundle));
-  const ingest = spawn(process.execPath, ["--max-semi-space-size=4", brokerJs], { stdio: ["ignore", "inherit", "inherit", "ipc"], env: process.env });
+  const ingest = spawn(process.execPath, [brokerJs], { stdio: ["ignore", "inherit", "inherit", "ipc"], env: process.env });
   const ask = <T,>(cmd: string) =>
     new Promise<T>((resolve) => {
       ingest.once("message", (m) => resolve(m as T));
