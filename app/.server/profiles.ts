@@ -71,16 +71,12 @@ export async function loadRollups(spotIds: number[], fromAsked: Date, to: Date):
   const from = Math.ceil(fromAsked.getTime() / 900_000) * 900_000;
   const edge = Math.min(to.getTime(), Math.floor(Date.now() / 3_600_000) * 3_600_000 - 2 * 3_600_000);
   if (edge <= from) return fetchRollups(spotIds, new Date(from), to);
-  // The change log and the last two hours are read at once, on two connections.
-  const [checks, recent] = await Promise.all([
-    pool().query<{ spot_id: number; check: string }>(
-      `SELECT s AS spot_id, (SELECT count(*) || ':' || coalesce(min(id), 0) || ':' || coalesce(max(id), 0)
-        FROM rollup_changes WHERE spot_id = s) AS check
-       FROM unnest($1::int[]) s`,
-      [spotIds],
-    ),
-    edge < to.getTime() ? fetchRollups(spotIds, new Date(edge), to) : new Map<number, HourlyRollup[]>(),
-  ]);
+  const checks = await pool().query<{ spot_id: number; check: string }>(
+    `SELECT s AS spot_id, (SELECT count(*) || ':' || coalesce(min(id), 0) || ':' || coalesce(max(id), 0)
+      FROM rollup_changes WHERE spot_id = s) AS check
+     FROM unnest($1::int[]) s`,
+    [spotIds],
+  );
   const cache = cacheHolder.rollups;
   const stale: { spotId: number; check: string }[] = [];
   const behind = new Map<number, { spotId: number; hit: CachedRollups }[]>(); // by the edge they were read to
@@ -105,6 +101,7 @@ export async function loadRollups(spotIds: number[], fromAsked: Date, to: Date):
     const more = await fetchRollups(list.map((l) => l.spotId), new Date(readTo), new Date(edge));
     for (const { spotId, hit } of list) remember(spotId, { ...hit, edge, rows: [...hit.rows, ...more.get(spotId)!] });
   }
+  const recent = edge < to.getTime() ? await fetchRollups(spotIds, new Date(edge), to) : new Map<number, HourlyRollup[]>();
   return new Map(
     spotIds.map((id) => {
       const { rows } = used.get(id)!;
