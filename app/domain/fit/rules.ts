@@ -13,6 +13,8 @@ export type RuleResult = {
   months?: string[];
   /** Set when the rule had nothing to judge (no sensor for it, or no readings yet). */
   noData?: boolean;
+  /** How far the worst night or day went past the group's limit, °C (cold nights, hot days). */
+  shortfallC?: number;
 };
 
 /** Where each rule turns from ok to care to poor. Our own choices unless noted; kept as data so a page can show them. */
@@ -194,6 +196,7 @@ export const coldNights: FitRule = (profile, season, t) => {
   return {
     rule: "cold-nights",
     level: poor ? "poor" : "care",
+    shortfallC: profile.minNightC - lowest,
     months: monthKeys(months),
     message: poor
       ? `Nights fell below ${c(profile.minNightC)} on ${when}; ${wants}. Cold tolerance: ${profile.coldTolerance}.`
@@ -225,6 +228,7 @@ export const hotDays: FitRule = (profile, season, t) => {
   return {
     rule: "hot-days",
     level: poor ? "poor" : "care",
+    shortfallC: highest - profile.maxDayC,
     months: monthKeys(months),
     message:
       `Days went above ${c(profile.maxDayC)} on ${plural(hot, "day")} ${describeMonths(months)} (highest ${c(highest)})${flowerCost}; ` +

@@ -81,6 +81,18 @@ describe("ranking", () => {
     expect(ranked[0].fit.verdict).toBe("thrives here");
   });
 
+  it("on a frosty spot where every group struggles, puts the hardiest first and the warm growers last", () => {
+    // Winter nights of −4 °C and summer days of 24 °C: every group's safe night is above −2 °C.
+    const frosty = spotYear({ month: (m) => ({ ...steadyRoom(m), night: m <= 2 || m === 12 ? -4 : 10, day: 24 }) });
+    const ranked = rankPlantsForSpot(PLANT_LIBRARY, frosty).filter((r) => r.fit.verdict === "struggles here");
+    expect(ranked.length).toBeGreaterThan(10);
+    const cold = (r: (typeof ranked)[number]) => r.fit.reasons.find((x) => x.rule === "cold-nights")!;
+    const onePoor = ranked.filter((r) => r.fit.reasons.filter((x) => x.level === "poor").length === 1 && cold(r).level === "poor");
+    const nights = onePoor.map((r) => r.plant.minNightC);
+    expect([...nights].sort((a, b) => a - b)).toEqual(nights); // hardier (lower safe night) first
+    expect(ranked[0].plant.minNightC).toBe(Math.min(...ranked.map((r) => r.plant.minNightC)));
+  });
+
   it("ranks spots for a plant best first, keeping the caller's spot objects", () => {
     const spots = [
       { id: "porch", season: porch },

@@ -86,15 +86,23 @@ export function fitPlant(profile: PlantProfile, season: SeasonProfile, threshold
   };
 }
 
-/** Verdict, then poor and care reasons, then missing months: one number per fit, smaller is better. */
-function fitRank(f: PlantFit): number {
-  let poor = 0, care = 0;
+/**
+ * Best first: the verdict; then fewer poor reasons; then, among those, the plant the spot misses by
+ * the fewest degrees (on a frosty bench every tropical group struggles, and the hardiest should
+ * head the list); then fewer care reasons and fewer missing months.
+ */
+type Rank = { head: number; shortfall: number; tail: number };
+function fitRank(f: PlantFit): Rank {
+  let poor = 0, care = 0, shortfall = 0;
   for (const r of f.reasons) {
-    if (r.level === "poor") poor++;
-    else if (r.level === "care") care++;
+    if (r.level === "poor") {
+      poor++;
+      shortfall += Math.max(0, r.shortfallC ?? 0);
+    } else if (r.level === "care") care++;
   }
-  return ((VERDICT_ORDER.indexOf(f.verdict) * 16 + poor) * 16 + care) * 16 + f.missingMonths.length;
+  return { head: VERDICT_ORDER.indexOf(f.verdict) * 16 + poor, shortfall, tail: care * 16 + f.missingMonths.length };
 }
+const compareRanks = (a: Rank, b: Rank) => a.head - b.head || a.shortfall - b.shortfall || a.tail - b.tail;
 const byName = new Intl.Collator("en").compare;
 
 /** Plants for one spot, best fit first; ties by name. */
@@ -109,7 +117,7 @@ export function rankPlantsForSpot(
       const fit = fitPlant(plant, season, thresholds, window);
       return { plant, fit, rank: fitRank(fit) };
     })
-    .sort((a, b) => a.rank - b.rank || byName(a.plant.name, b.plant.name))
+    .sort((a, b) => compareRanks(a.rank, b.rank) || byName(a.plant.name, b.plant.name))
     .map(({ plant, fit }) => ({ plant, fit }));
 }
 
@@ -124,6 +132,6 @@ export function rankSpotsForPlant<S extends { season: SeasonProfile; window?: Sp
       const fit = fitPlant(plant, spot.season, thresholds, spot.window);
       return { spot, fit, rank: fitRank(fit) };
     })
-    .sort((a, b) => a.rank - b.rank)
+    .sort((a, b) => compareRanks(a.rank, b.rank))
     .map(({ spot, fit }) => ({ spot, fit }));
 }
