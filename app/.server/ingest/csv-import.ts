@@ -2,7 +2,7 @@
 // line count before the parser sees the file; a file imported twice adds nothing the second time.
 import { parse } from "csv-parse/sync";
 import { CSV_MAX_BYTES, CSV_MAX_ROWS, guessDelimiter, rowToReading, type CsvMapping } from "~/domain/ingest/csv";
-import type { Reading, SpotKindForLimits } from "~/domain/ingest/payload";
+import type { Reading } from "~/domain/ingest/payload";
 import { recordRejectionsSoon } from "~/.server/ingest/rejections";
 import { sensorInfo } from "~/.server/ingest/sensors";
 import { writer } from "~/.server/ingest/writer";
@@ -41,42 +41,29 @@ export function parseCsv(bytes: Uint8Array): { headers: string[]; rows: string[]
     : { headers: records[0].map((_c, i) => `Column ${i + 1}`), rows: records };
 }
 
-type Failed = { line: number; reason: string; row: string[] };
-
-function convertRange(rows: string[][], from: number, to: number, mapping: CsvMapping, sensorId: number, ctx: { now: Date; kind: SpotKindForLimits }, failed: Failed[]) {
+export async function convertRows(rows: string[][], mapping: CsvMapping, sensorId: number, limit = Infinity) {
+  const info = await sensorInfo(sensorId);
+  const kind = info?.kind ?? "unplaced";
+  const now = new Date();
   const ok: Reading[] = [];
-  for (let i = from; i < to; i++) {
-    const r = rowToReading(rows[i], mapping, sensorId, ctx);
+  const failed: { line: number; reason: string; row: string[] }[] = [];
+  const n = Math.min(rows.length, limit);
+  for (let i = 0; i < n; i++) {
+    const r = rowToReading(rows[i], mapping, sensorId, { now, kind });
     if (r.ok) ok.push(r.reading);
     else failed.push({ line: i + 2, reason: r.reason, row: rows[i] });
   }
-  return ok;
-}
-
-export async function convertRows(rows: string[][], mapping: CsvMapping, sensorId: number, limit = Infinity) {
-  const info = await sensorInfo(sensorId);
-  const failed: Failed[] = [];
-  const ok = convertRange(rows, 0, Math.min(rows.length, limit), mapping, sensorId, { now: new Date(), kind: info?.kind ?? "unplaced" }, failed);
   return { ok, failed };
 }
 
-/** Rows are converted 10,000 at a time, each chunk while the one before it is being written. */
 export async function importCsv(rows: string[][], mapping: CsvMapping, sensorId: number) {
-  const info = await sensorInfo(sensorId);
-  const ctx = { now: new Date(), kind: info?.kind ?? ("unplaced" as SpotKindForLimits) };
-  const failed: Failed[] = [];
-  let valid = 0;
+  const { ok, failed } = await convertRows(rows, mapping, sensorId);
   let stored = 0;
-  let writing: Promise<{ inserted: number }> | null = null;
-  for (let i = 0; i < rows.length; i += 10_000) {
-    const ok = convertRange(rows, i, Math.min(rows.length, i + 10_000), mapping, sensorId, ctx, failed);
-    valid += ok.length;
-    if (writing) stored += (await writing).inserted;
-    writing = ok.length > 0 ? writer().write(ok) : null;
+  for (let i = 0; i < ok.length; i += 10_000) {
+    stored += (await writer().write(ok.slice(i, i + 10_000))).inserted;
   }
-  if (writing) stored += (await writing).inserted;
   recordRejectionsSoon(
     failed.slice(0, 50).map((f) => ({ sensorId, source: "csv" as const, reason: f.reason, payload: f.row.join(",").slice(0, 300) })),
   );
-  return { rows: rows.length, valid, stored, duplicates: valid - stored, failed: failed.length, firstFailures: failed.slice(0, 20) };
+  return { rows: rows.length, valid: ok.length, stored, duplicates: ok.length - stored, failed: failed.length, firstFailures: failed.slice(0, 20) };
 }
