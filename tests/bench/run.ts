@@ -40,6 +40,11 @@ const fmt = (n: number, d = 0) => n.toLocaleString("en", { maximumFractionDigits
 const log = (s: string) => console.log(`[bench] ${s}`);
 const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
 
+/** A full collection before a measured section (npm run bench runs Node with --expose-gc), so garbage left by the setup is not paid for inside a timing. */
+function settle() {
+  (globalThis as { gc?: () => void }).gc?.();
+}
+
 async function timed<T>(fn: () => Promise<T>): Promise<[T, number]> {
   const t0 = performance.now();
   const v = await fn();
@@ -254,10 +259,10 @@ async function bench() {
   await p.query("INSERT INTO placements (sensor_id, spot_id, from_at) VALUES ($1, $2, now() - interval '3 years')", [targetSensor, target]);
   const now = Date.now();
   const months16 = N(16 * 30, 4 * 30) * DAY;
-  const profileRows = synthetic([targetSensor], Math.floor(months16 / MINUTE), now - months16, MINUTE);
-  const others = synthetic(sensorIds.slice(100, 149), Math.floor(N(365, 60) * DAY / (10 * MINUTE)), now - N(365, 60) * DAY, 10 * MINUTE);
-  await copyRows("readings", profileRows);
-  await copyRows("readings", others);
+  // Generated, copied and let go: millions of objects left in this process's heap would put the
+  // garbage collector's pauses into the page-load timings below.
+  await copyRows("readings", synthetic([targetSensor], Math.floor(months16 / MINUTE), now - months16, MINUTE));
+  await copyRows("readings", synthetic(sensorIds.slice(100, 149), Math.floor(N(365, 60) * DAY / (10 * MINUTE)), now - N(365, 60) * DAY, 10 * MINUTE));
   await p.query("DELETE FROM hourly_rollups");
   await p.query(REBUILD_SQL, [[target, ...spotIds]]);
   await p.query("ANALYZE");
@@ -290,6 +295,7 @@ async function bench() {
   const year = { from: new Date(now - 365 * DAY), to: new Date(now) };
   const profileTimes: number[] = [];
   let viaRollups = await fromRollups(year.from, year.to);
+  settle();
   for (let i = 0; i < 7; i++) profileTimes.push((await timed(() => fromRollups(year.from, year.to)))[1]);
   const rawTimes: number[] = [];
   let viaRaw = await fromRawNamed(year.from, year.to);
@@ -317,6 +323,7 @@ async function bench() {
   rows.push({ figure: "Season profile as above, rollups read without the cache (first load) (ms)", ours: fmt(cold, 1), baseline: `${fmt(rw, 1)} (from raw readings)`, ratio: `${fmt(rw / cold)}× faster`, target: "—" });
 
   // ---------- Fit table: 50 spots × 40 profiles ----------
+  settle();
   const seasons = await (async () => {
     const r = await loadRollups(spotIds, year.from, year.to);
     return spotIds.map((id) => seasonProfile(r.get(id)!, siteInfo, year));
@@ -331,6 +338,7 @@ async function bench() {
   rows.push({ figure: `Fit table, 50 spots × ${profiles.length} plant profiles (ms)`, ours: fmt(median(fitTimes), 1), baseline: `${fmt(seasonsMs, 0)} (loading the 50 season profiles it needs)`, ratio: "—", target: "≤ 100 ms" });
 
   // ---------- Chart data: a year of daily data for one spot, and uPlot's draw in Chromium ----------
+  settle();
   const seriesTimes: number[] = [];
   let payload = "";
   for (let i = 0; i < 7; i++) {
@@ -348,6 +356,7 @@ async function bench() {
   rows.push({ figure: `uPlot draw of a year of hourly data (${fmt(hourly.rowCount ?? 0)} points) in Chromium (ms)`, ours: fmt(drawMs, 1), baseline: "—", ratio: "—", target: "≤ 50 ms draw" });
 
   // ---------- Growth: profile time at 1×, 4×, 16× the period; writer rate as the table grows ----------
+  settle();
   for (const months of QUICK ? [1, 4] : [1, 4, 16]) {
     const from = new Date(now - months * 30 * DAY);
     await fromRollups(from, year.to);
