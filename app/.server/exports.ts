@@ -4,9 +4,7 @@
 import { calibratedSql } from "~/.server/ingest/calibrated";
 import { pool } from "~/.server/db";
 import { zonedToUtc } from "~/lib/time";
-import { loadRollups } from "~/.server/profiles";
-import { seasonProfile } from "~/domain/season/profile";
-import { PLANT_LIBRARY } from "~/domain/plants/library";
+import { spotProfiles } from "~/.server/profiles";
 import type { Site, Spot } from "~/db/schema.server";
 
 export const EXPORT_BATCH = 5000;
@@ -195,9 +193,7 @@ export const PROFILE_COLUMNS = [
 
 /** The season profile of the period: per calendar month and per season, from the hourly rollups. */
 export async function exportProfile(opts: { spot: Spot; site: Site; format: ExportFormat; from: Date; to: Date }) {
-  const rollups = (await loadRollups([opts.spot.id], opts.from, opts.to)).get(opts.spot.id)!;
-  const thresholds = [...new Set(PLANT_LIBRARY.map((p) => p.minNightC))];
-  const profile = seasonProfile(rollups, opts.site, { from: opts.from, to: opts.to, thresholds });
+  const profile = (await spotProfiles(opts.site, [opts.spot.id], opts.to, { range: { from: opts.from, to: opts.to } })).get(opts.spot.id)!;
   const r2 = (v: number | null) => (v == null ? null : Math.round(v * 100) / 100);
   const line = (key: string, p: (typeof profile.months)[number] | (typeof profile.seasons)[number]): Cell[] => [
     key,

@@ -1,7 +1,7 @@
 // Season profiles and fits for spots, computed from the hourly rollups on each page load (a year of
 // rollups is ~8,760 rows per spot; the raw readings are never read here).
 import { pool } from "~/.server/db";
-import { rankPlantsForSpot } from "~/domain/fit/verdict";
+import { rankPlantsForSpot, type PlantFit } from "~/domain/fit/verdict";
 import type { SpotWindow } from "~/domain/fit/window-light";
 import { PLANT_LIBRARY, type PlantProfile } from "~/domain/plants/library";
 import { seasonProfile } from "~/domain/season/profile";
@@ -134,7 +134,12 @@ export async function spotProfiles(site: Site, spotIds: number[], now = new Date
 
 /** Fits for one spot, best first; pass the site's plants (library plus own profiles). */
 export function fitsFor(season: ReturnType<typeof seasonProfile>, plants: PlantProfile[] = PLANT_LIBRARY, window?: SpotWindow) {
-  return rankPlantsForSpot(plants, season, undefined, window).map(({ plant, fit }) => ({
+  return rankPlantsForSpot(plants, season, undefined, window).map(({ plant, fit }) => fitSummary(plant, fit));
+}
+
+/** What a page shows of one plant's fit: the verdict, reasons that ask for something, and what suits it. */
+export function fitSummary(plant: PlantProfile, fit: PlantFit) {
+  return {
     key: plant.key,
     name: plant.name,
     category: plant.category,
@@ -145,7 +150,7 @@ export function fitsFor(season: ReturnType<typeof seasonProfile>, plants: PlantP
     okReasons: fit.reasons.filter((r) => r.level === "ok" && !r.noData).map((r) => r.message),
     missingMonths: fit.missingMonths,
     missingAdvice: fit.missingAdvice,
-  }));
+  };
 }
 
 /** How a spot's window is described to the fit rules (used for light when it has no light sensor). */

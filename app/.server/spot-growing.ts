@@ -1,13 +1,14 @@
 // What the spot page shows about growing there, beyond the season: the plants standing in it now
 // (with the most tender one, for alerts), the other spots they could move to, and the direct-sun
 // estimate for its window.
-import { listSensors, listSpots } from "~/.server/sites";
+import { listSpots, type listSensors } from "~/.server/sites";
 import { mostTender, spotInventory, type SitePlant } from "~/.server/plants";
 import { directSunMonths } from "~/domain/climate/sun";
 import type { Site, Spot } from "~/db/schema.server";
 
-export async function spotGrowing(site: Site, spot: Spot, plants: SitePlant[], fits: { key: string; verdict: string }[]) {
-  const [standing, spots, sensors] = await Promise.all([spotInventory([spot.id]), listSpots(site.id), listSensors(site.id)]);
+/** `sensors`: the site's sensors, as the spot page has already read them. */
+export async function spotGrowing(site: Site, spot: Spot, plants: SitePlant[], fits: { key: string; verdict: string }[], sensors: Awaited<ReturnType<typeof listSensors>>) {
+  const [standing, spots] = await Promise.all([spotInventory([spot.id]), listSpots(site.id)]);
   const byKey = new Map(plants.map((p) => [p.key, p]));
   const verdicts = new Map(fits.map((f) => [f.key, f.verdict]));
   const tender = mostTender(standing, plants);

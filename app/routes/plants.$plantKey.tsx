@@ -1,8 +1,8 @@
 import { data, Form, Link, redirect, useNavigation } from "react-router";
 import { z } from "zod";
-import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
+import { ALL_ROLES, notFound, requireSiteRole, WRITERS } from "~/.server/auth";
 import { deleteCustomProfile, saveWish, siteInventory, sitePlant, sitePlants, siteWishlist } from "~/.server/plants";
-import { fitsFor, spotProfiles, windowOf } from "~/.server/profiles";
+import { fitSummary, spotProfiles, windowOf } from "~/.server/profiles";
 import { getSite, listSpots } from "~/.server/sites";
 import { VerdictBadge } from "~/components/season";
 import { NotesPanel } from "~/components/notes-panel";
@@ -16,11 +16,11 @@ export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.plant.n
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { siteId, role, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
-  const plant = await sitePlant(siteId, params.plantKey);
   const [site, spots, wishes, inventory, plants] = await Promise.all([getSite(siteId), listSpots(siteId), siteWishlist(siteId), siteInventory(siteId), sitePlants(siteId)]);
+  const plant = plants.find((p) => p.key === params.plantKey);
+  if (!plant) notFound();
   const profiles = await spotProfiles(site, spots.map((s) => s.id), new Date(), { plants });
   const ranked = rankSpotsForPlant(plant, spots.map((s) => ({ spot: s, season: profiles.get(s.id)!, window: windowOf(site, s) })));
-  const reasonsBySpot = new Map(spots.map((s) => [s.id, fitsFor(profiles.get(s.id)!, [plant], windowOf(site, s))[0]]));
   const wish = wishes.find((w) => w.plantKey === plant.key) ?? null;
   return {
     role,
@@ -31,8 +31,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     basedOnName: plant.basedOn ? (PLANT_LIBRARY.find((p) => p.key === plant.basedOn)?.name ?? plant.basedOn) : null,
     wish: wish ? { mustHave: wish.mustHave, pots: wish.pots } : null,
     standing: inventory.filter((i) => i.plantKey === plant.key).map((i) => ({ ...i, spotName: spots.find((s) => s.id === i.spotId)?.name ?? "" })),
-    spots: ranked.map(({ spot: { spot } }) => {
-      const f = reasonsBySpot.get(spot.id)!;
+    spots: ranked.map(({ spot: { spot }, fit }) => {
+      const f = fitSummary(plant, fit);
       return { id: spot.id, name: spot.name, verdict: f.verdict, reasons: f.reasons, okReasons: f.okReasons, missingAdvice: f.missingAdvice };
     }),
   };

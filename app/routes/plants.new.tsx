@@ -4,7 +4,7 @@ import { requireSiteRole } from "~/.server/auth";
 import { freeOwnKey, saveCustomProfile, sitePlants } from "~/.server/plants";
 import { PLANT_LIBRARY } from "~/domain/plants/library";
 import { plantFormSchema, profileFromForm, slugOf } from "~/lib/plant-form";
-import { deltaToUnit, toUnit, type TempUnit } from "~/lib/units";
+import { deltaFromUnit, deltaToUnit, fromUnit, toUnit } from "~/lib/units";
 import type { Route } from "./+types/plants.new";
 
 export const meta: Route.MetaFunction = () => [{ title: "Your own plant profile · Nichewise" }];
@@ -17,7 +17,6 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 }
 
 const TEMP_FIELDS = ["minNightC", "maxDayC", "coolNightC"];
-const fromUnit = (x: number, unit: TempUnit) => (unit === "F" ? ((x - 32) * 5) / 9 : x);
 
 export async function action({ request, params }: Route.ActionArgs) {
   const { siteId, user } = await requireSiteRole(request, params.siteId, ["owner"]);
@@ -28,7 +27,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   for (const [k, v] of raw) {
     const n = typeof v === "string" && v.trim() !== "" ? Number(v) : NaN;
     if (unit === "F" && Number.isFinite(n) && TEMP_FIELDS.includes(k)) form.set(k, String(Math.round(fromUnit(n, unit) * 10) / 10));
-    else if (unit === "F" && Number.isFinite(n) && k === "difC") form.set(k, String(Math.round(((n * 5) / 9) * 10) / 10));
+    else if (unit === "F" && Number.isFinite(n) && k === "difC") form.set(k, String(Math.round(deltaFromUnit(n, unit) * 10) / 10));
     else form.set(k, v);
   }
   const submission = parseWithZod(form, { schema: plantFormSchema });

@@ -31,14 +31,15 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const { siteId, role, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
   const spot = await getSpot(siteId, params.spotId);
   const site = await getSite(siteId);
-  const [history, latest, sensors, profiles] = await Promise.all([
+  const [history, latest, sensors, profiles, allPlants, notes] = await Promise.all([
     placementHistory({ spotId: spot.id }),
     latestReading(spot.id),
     listSensors(siteId),
     spotProfiles(site, [spot.id]),
+    sitePlants(siteId),
+    listNotes(siteId, { spotId: spot.id }),
   ]);
   const season = profiles.get(spot.id)!;
-  const allPlants = await sitePlants(siteId);
   const fits = fitsFor(season, allPlants, windowOf(site, spot));
   const plantKey = new URL(request.url).searchParams.get("plant") ?? fits[0]?.key;
   const plant = allPlants.find((p) => p.key === plantKey) ?? null;
@@ -56,8 +57,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     plant: plant ? { key: plant.key, name: plant.name, minNightC: plant.minNightC, maxDayC: plant.maxDayC } : null,
     plants: allPlants.map((p) => ({ key: p.key, name: p.name })),
     verdictRules: VERDICT_RULES,
-    notes: await listNotes(siteId, { spotId: spot.id }),
-    growing: await spotGrowing(site, spot, allPlants, fits),
+    notes,
+    growing: await spotGrowing(site, spot, allPlants, fits, sensors),
   };
 }
 

@@ -34,7 +34,6 @@ afterAll(async () => {
   await broker?.close();
 });
 
-type Sensor = Awaited<ReturnType<typeof makeSensor>>;
 
 async function setup(opts: { timeZone?: string; indoor?: boolean } = {}) {
   const user = await makeUser();

@@ -3,13 +3,13 @@
 // PostgreSQL (changed under a row lock), so a restart neither loses an open event nor repeats one.
 // E-mails are claimed in alert_deliveries before they are sent: at most one per event, member and
 // message, even across restarts. A timer checks for silent sensors and retries failed sends.
-import { calibratedSql } from "~/.server/ingest/calibrated";
 import type pg from "pg";
 import { pool } from "~/.server/db";
 import { publicUrl } from "~/.server/env";
 import type { CommittedReading, ReadingWriter } from "~/.server/ingest/writer";
 import { sendMail } from "~/.server/mail";
 import { siteRecipients, spotPoints, type Recipient } from "~/.server/alerts/store";
+import { latestReading } from "~/.server/series";
 import { projectCrossing, roundMinutes } from "~/domain/alerts/early-warning";
 import { clearMessage, earlyMessage, openMessage, type Composed, type MessageContext } from "~/domain/alerts/messages";
 import { inQuietHours } from "~/domain/alerts/quiet";
@@ -388,15 +388,14 @@ export class AlertEngine {
     }
   }
 
+  /** Closes the rule's open silence, if any: one statement, since a talking sensor usually has none. */
   private async endSilence(rule: RuleRow, now: Date) {
-    let closed: number | null = null;
-    await this.transaction(async (c) => {
-      const open = (await c.query<{ id: number; started_at: Date }>(`SELECT id, started_at FROM alert_events WHERE rule_id = $1 AND ended_at IS NULL FOR UPDATE`, [rule.id])).rows[0];
-      if (!open) return;
-      await c.query(`UPDATE alert_events SET ended_at = $2, peak = greatest(peak, $3) WHERE id = $1`, [open.id, now, (now.getTime() - open.started_at.getTime()) / 60_000]);
-      closed = open.id;
-    });
-    if (closed != null) await this.deliver(closed, "clear");
+    const closed = await pool().query<{ id: number }>(
+      `UPDATE alert_events SET ended_at = $2, peak = greatest(peak, extract(epoch FROM $2::timestamptz - started_at) / 60)
+       WHERE rule_id = $1 AND ended_at IS NULL RETURNING id`,
+      [rule.id, now],
+    );
+    for (const { id } of closed.rows) await this.deliver(id, "clear");
   }
 
   /** Sends what a crash or a mail-server hiccup left unsent. */
@@ -419,14 +418,17 @@ export class AlertEngine {
     if (!ev || (message === "open" ? ev.notified_at : ev.clear_notified_at)) return;
     const rule = (await pool().query<RuleRow>(`${RULE_SELECT} WHERE r.id = $1`, [ev.rule_id])).rows[0];
     if (!rule) return;
-    const latest = await this.latest(rule);
+    const latest = message === "open" ? await this.latest(rule) : null;
+    // The all-clear goes to those who heard about the event, nobody else.
+    const heard =
+      message === "clear"
+        ? new Set((await pool().query<{ user_id: number }>(`SELECT user_id FROM alert_deliveries WHERE event_id = $1 AND message = 'open'`, [ev.id])).rows.map((d) => d.user_id))
+        : null;
     let failed = false;
     for (const r of await siteRecipients(rule.site_id)) {
       if (!wants(r, rule.kind)) continue;
-      if (message === "clear") {
-        // The all-clear goes to those who heard about the event, nobody else.
-        const heard = await pool().query(`SELECT 1 FROM alert_deliveries WHERE event_id = $1 AND user_id = $2 AND message = 'open'`, [ev.id, r.userId]);
-        if (heard.rowCount === 0) continue;
+      if (heard) {
+        if (!heard.has(r.userId)) continue;
       } else if (!KINDS[rule.kind].urgent && inQuietHours(new Date(), rule.time_zone, r.quietFrom, r.quietTo)) {
         continue;
       }
@@ -437,7 +439,7 @@ export class AlertEngine {
       if (claim.rowCount === 0) continue;
       const ctx = this.context(rule, r);
       const mail =
-        message === "open"
+        latest
           ? openMessage(ctx, { startedAt: ev.started_at, peak: ev.peak ?? latest.value ?? rule.threshold, latest: latest.value, lastSeenAt: latest.at, lastTemperature: latest.t })
           : clearMessage(ctx, { startedAt: ev.started_at, endedAt: ev.ended_at ?? new Date(), peak: ev.peak ?? rule.threshold });
       try {
@@ -455,18 +457,11 @@ export class AlertEngine {
   }
 
   private async latest(rule: RuleRow): Promise<{ at: Date | null; value: number | null; t: number | null }> {
-    const res = await pool().query<{ at: Date; t: number | null; h: number | null; battery: number | null }>(
-      `SELECT r.measured_at AS at, ${calibratedSql("temperature", "r.temperature")} AS t,
-         ${calibratedSql("humidity", "r.humidity")} AS h, r.battery
-       FROM placements p JOIN sensors s ON s.id = p.sensor_id
-       CROSS JOIN LATERAL (SELECT * FROM readings r WHERE r.sensor_id = p.sensor_id AND r.measured_at >= p.from_at ORDER BY r.measured_at DESC LIMIT 1) r
-       WHERE p.spot_id = $1 AND p.to_at IS NULL ORDER BY r.measured_at DESC LIMIT 1`,
-      [rule.spot_id],
-    );
-    const row = res.rows[0];
+    const row = await latestReading(rule.spot_id);
     if (!row) return { at: null, value: null, t: null };
-    return { at: row.at, value: valueFor(rule.kind, row), t: row.t };
+    return { at: new Date(row.measured_at), value: valueFor(rule.kind, { t: row.temp, h: row.rh, battery: row.battery }), t: row.temp };
   }
+
 
   private context(rule: RuleRow, r: Recipient): MessageContext {
     const base = publicUrl();

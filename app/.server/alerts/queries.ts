@@ -4,9 +4,8 @@ import { notFound } from "~/.server/auth";
 import { db } from "~/.server/db";
 import { alertEvents, alertPreferences, alertRules, customPlants, spotPlants, spots, users, type AlertRule } from "~/db/schema.server";
 import { defaultColdWatch } from "~/domain/alerts/default-watch";
-import { KINDS, type AlertKind } from "~/domain/alerts/rules";
+import { ALERT_KINDS, KINDS, type AlertKind } from "~/domain/alerts/rules";
 import { PLANT_LIBRARY } from "~/domain/plants/library";
-import { ALL_KINDS_DEFAULT } from "~/.server/alerts/store";
 
 export async function listRules(spotId: number) {
   return db().select().from(alertRules).where(eq(alertRules.spotId, spotId)).orderBy(alertRules.kind, alertRules.id);
@@ -122,7 +121,7 @@ export type AlertBannerData = Awaited<ReturnType<typeof alertBanner>>;
 
 export async function getPreferences(userId: number, siteId: number) {
   const [p] = await db().select().from(alertPreferences).where(and(eq(alertPreferences.userId, userId), eq(alertPreferences.siteId, siteId)));
-  return p ?? { userId, siteId, email: true, kinds: ALL_KINDS_DEFAULT, quietFrom: null, quietTo: null };
+  return p ?? { userId, siteId, email: true, kinds: ALERT_KINDS, quietFrom: null, quietTo: null };
 }
 
 export async function savePreferences(p: { userId: number; siteId: number; email: boolean; kinds: string[]; quietFrom: number | null; quietTo: number | null }) {

@@ -2,6 +2,7 @@
 import { calibratedSql } from "~/.server/ingest/calibrated";
 import type pg from "pg";
 import { pool } from "~/.server/db";
+import { ALERT_KINDS } from "~/domain/alerts/rules";
 
 export type SpotPoint = { at: Date; t: number | null; h: number | null; battery: number | null };
 type Queryable = Pick<pg.Pool, "query"> | pg.PoolClient;
@@ -31,7 +32,6 @@ export type Recipient = {
   quietTo: number | null;
 };
 
-export const ALL_KINDS_DEFAULT = ["cold", "heat", "dry", "condensation", "silent", "battery"];
 
 /** Every member of the site with their alert preferences (defaults when they never saved any). */
 export async function siteRecipients(siteId: number, q: Queryable = pool()): Promise<Recipient[]> {
@@ -47,7 +47,7 @@ export async function siteRecipients(siteId: number, q: Queryable = pool()): Pro
     email: r.email,
     unit: r.unit,
     wantsEmail: r.wants ?? true,
-    kinds: r.kinds ?? ALL_KINDS_DEFAULT,
+    kinds: r.kinds ?? ALERT_KINDS,
     quietFrom: r.quiet_from,
     quietTo: r.quiet_to,
   }));

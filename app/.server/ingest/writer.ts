@@ -71,7 +71,7 @@ function buildWriteSql({ merge, withRows, withSeen, optimistic }: Variant) {
     ins.temperature AS t_row, ins.humidity AS h_row
   FROM ins LEFT JOIN old o ON o.sensor_id = ins.sensor_id AND o.measured_at = ins.measured_at
 )`
-    : `fresh AS (SELECT ins.*, ins.temperature AS t_row, ins.humidity AS h_row FROM ins)`;
+    : `fresh AS (SELECT * FROM ins)`;
   return `
 WITH ${input}, ins AS (
   INSERT INTO readings (sensor_id, measured_at, temperature, humidity, lux, battery)
@@ -81,8 +81,11 @@ WITH ${input}, ins AS (
   SELECT p.spot_id, f.sensor_id, f.measured_at, f.battery, si.time_zone,
     ${calibratedSql("temperature", "f.temperature")} AS t,
     ${calibratedSql("humidity", "f.humidity")} AS h,
-    ${calibratedSql("lux", "f.lux")} AS l,
-    dew_point_margin(${calibratedSql("temperature", "f.t_row")}, ${calibratedSql("humidity", "f.h_row")}) AS dp,
+    ${calibratedSql("lux", "f.lux")} AS l,${
+      // A merged row's dew point is of the whole row, not only of the channels this statement added.
+      merge ? `
+    dew_point_margin(${calibratedSql("temperature", "f.t_row")}, ${calibratedSql("humidity", "f.h_row")}) AS dp,` : ""
+    }
     ${LOCAL_HOUR_START("f.measured_at", "si.time_zone")} AS hour
   FROM fresh f
   JOIN placements p ON p.sensor_id = f.sensor_id AND p.from_at <= f.measured_at
@@ -94,7 +97,7 @@ WITH ${input}, ins AS (
   SELECT spot_id, hour,
     count(t)::int AS t_n, min(t) AS t_min, max(t) AS t_max, sum(t) AS t_sum,
     count(h)::int AS h_n, min(h) AS h_min, max(h) AS h_max, sum(h) AS h_sum,
-    min(dp) AS dp_margin_min, count(l)::int AS lux_n, sum(l) AS lux_sum
+    min(${merge ? "dp" : "dew_point_margin(t, h)"}) AS dp_margin_min, count(l)::int AS lux_n, sum(l) AS lux_sum
   FROM placed GROUP BY spot_id, hour
 ), up AS (
   INSERT INTO hourly_rollups AS r (spot_id, hour, t_n, t_min, t_max, t_sum, h_n, h_min, h_max, h_sum, dp_margin_min, lux_n, lux_sum)
@@ -143,6 +146,28 @@ function sqlFor(v: Variant): { text: string; name: string } {
 }
 const UNIQUE_VIOLATION = "23505";
 const isDuplicate = (err: unknown) => (err as { code?: string }).code === UNIQUE_VIOLATION;
+
+/**
+ * The write statement: first as a plain INSERT, and on a duplicate again with ON CONFLICT (inside
+ * a transaction, after rolling back to a savepoint). Live batches (a few hundred readings, many a
+ * second) run prepared: parsing and planning this statement costs about a millisecond, a tenth of
+ * a small batch's commit; bulk batches keep a plan made for their size.
+ */
+async function writeStatement(client: pg.PoolClient, v: Omit<Variant, "optimistic">, cols: string[], opts: { prepared: boolean; inTransaction?: boolean }): Promise<StatementRow> {
+  const run = (optimistic: boolean) => {
+    const { text, name } = sqlFor({ ...v, optimistic });
+    return client.query(opts.prepared ? { name, text, values: cols } : { text, values: cols });
+  };
+  if (v.merge) return (await run(false)).rows[0] as StatementRow;
+  if (opts.inTransaction) await client.query("SAVEPOINT optimistic");
+  try {
+    return (await run(true)).rows[0] as StatementRow;
+  } catch (err) {
+    if (!isDuplicate(err)) throw err;
+    if (opts.inTransaction) await client.query("ROLLBACK TO SAVEPOINT optimistic");
+    return (await run(false)).rows[0] as StatementRow;
+  }
+}
 
 // With several callers in one group commit, each needs to know which of its rows were new.
 const KEYS = `,
@@ -396,23 +421,10 @@ export class ReadingWriter {
   /** One statement, its own transaction: it has committed when the result comes back. */
   private async statement(cols: string[], rows: number, merge: boolean, withRows: boolean, withKeys: boolean): Promise<StatementRow> {
     const client = await this.getPool().connect();
-    // Live batches (a few hundred readings, many a second) use prepared statements: parsing and
-    // planning this statement costs about a millisecond, a tenth of a small batch's commit. Bulk
-    // batches keep a plan made for their size.
-    const run = (optimistic: boolean) => {
-      const { text, name } = sqlFor({ merge, withRows, withKeys, withSeen: true, optimistic });
-      return client.query(rows <= PREPARED_MAX_ROWS ? { name, text, values: cols } : { text, values: cols });
-    };
     try {
-      let res: pg.QueryResult;
-      try {
-        res = await run(true);
-      } catch (err) {
-        if (merge || !isDuplicate(err)) throw err;
-        res = await run(false);
-      }
+      const row = await writeStatement(client, { merge, withRows, withKeys, withSeen: true }, cols, { prepared: rows <= PREPARED_MAX_ROWS });
       client.release();
-      return res.rows[0] as StatementRow;
+      return row;
     } catch (err) {
       client.release(true);
       throw err;
@@ -424,29 +436,23 @@ export class ReadingWriter {
    * connections, so PostgreSQL works on both cores. The earlier half commits on its own; the later
    * half waits in its transaction and commits only after the earlier one has, so the sensor's
    * readings still commit in time order (the alert engine needs that) and a failed earlier half
-   * takes the later one with it. The halves share at most the rollup of the hour they are split
-   * in and the sensor's row: the later half waits for those locks, never the other way round. A
-   * lock timeout breaks a wait that a third writer could otherwise close into a cycle.
+   * takes the later one with it. The halves share no row (see splitOneSensor; the sensor's row is
+   * updated by the later half after the earlier committed). A lock timeout breaks a wait that a
+   * third writer, sharing a spot's rollups with both halves, could otherwise close into a cycle.
    */
   private async splitStatements(halves: [Reading[], Reading[]], merge: boolean, withRows: boolean, withKeys: boolean): Promise<{ results: StatementRow[]; failure: Error | null }> {
     const variant = { merge, withRows, withKeys, withSeen: false };
     // What the whole batch says about the sensor, set once the earlier half has committed.
-    const all = [...halves[0], ...halves[1]];
-    const lastMs = all[all.length - 1].measuredAt.getTime();
-    const battery = all.findLast((r) => r.battery !== null && r.battery !== undefined)?.battery ?? null;
+    const [earlierRows, laterRows] = halves;
+    const lastMs = laterRows[laterRows.length - 1].measuredAt.getTime();
+    const hasBattery = (r: Reading) => r.battery !== null && r.battery !== undefined;
+    const battery = (laterRows.findLast(hasBattery) ?? earlierRows.findLast(hasBattery))?.battery ?? null;
     const run = async (rows: Reading[], waitFor: Promise<unknown> | null) => {
       const client = await this.getPool().connect();
-      let res: pg.QueryResult;
+      let row: StatementRow;
       try {
-        await client.query(`BEGIN; SET LOCAL lock_timeout = '${SPLIT_LOCK_TIMEOUT_MS}ms'; SAVEPOINT optimistic`);
-        const cols = columns(rows);
-        try {
-          res = await client.query(sqlFor({ ...variant, optimistic: true }).text, cols);
-        } catch (err) {
-          if (merge || !isDuplicate(err)) throw err;
-          await client.query("ROLLBACK TO SAVEPOINT optimistic");
-          res = await client.query(sqlFor({ ...variant, optimistic: false }).text, cols);
-        }
+        await client.query(`BEGIN; SET LOCAL lock_timeout = '${SPLIT_LOCK_TIMEOUT_MS}ms'`);
+        row = await writeStatement(client, variant, columns(rows), { prepared: false, inTransaction: true });
       } catch (err) {
         client.release(true);
         throw err;
@@ -461,7 +467,7 @@ export class ReadingWriter {
       }
       client.release();
       if (earlierFailed) throw earlierFailed;
-      return res.rows[0] as StatementRow;
+      return row;
     };
     const earlier = run(halves[0], null);
     const later = run(halves[1], earlier);

@@ -1,7 +1,7 @@
 import { mean } from "simple-statistics";
 import type { PlantProfile } from "~/domain/plants/library";
 import { CONDENSATION_MARGIN_C, MONTH_NAMES } from "~/domain/season/profile";
-import type { DaySummary, MonthOfYearProfile, SeasonProfile } from "~/domain/season/types";
+import type { MonthOfYearProfile, SeasonProfile } from "~/domain/season/types";
 
 export type RuleLevel = "ok" | "care" | "poor";
 
