@@ -1,7 +1,6 @@
 import { data, Form, Link, redirect, useNavigation } from "react-router";
-import { z } from "zod";
 import { ALL_ROLES, notFound, requireSiteRole, WRITERS } from "~/.server/auth";
-import { deleteCustomProfile, saveWish, siteInventory, sitePlant, sitePlants, siteWishlist } from "~/.server/plants";
+import { deleteCustomProfile, parseWish, saveWish, siteInventory, sitePlant, sitePlants, siteWishlist } from "~/.server/plants";
 import { fitSummary, spotProfiles, windowOf } from "~/.server/profiles";
 import { getSite, listSpots } from "~/.server/sites";
 import { VerdictBadge } from "~/components/season";
@@ -38,18 +37,13 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   };
 }
 
-const wishSchema = z.object({
-  mustHave: z.literal("on").optional(),
-  pots: z.coerce.number().int("Whole pots only").min(1, "At least one pot").max(100, "Up to 100 pots"),
-});
-
 export async function action({ request, params }: Route.ActionArgs) {
   const { siteId, role, user } = await requireSiteRole(request, params.siteId, WRITERS);
   const plant = await sitePlant(siteId, params.plantKey);
   const form = await request.formData();
   const intent = form.get("intent");
   if (intent === "wish") {
-    const parsed = wishSchema.safeParse({ mustHave: form.get("mustHave") ?? undefined, pots: form.get("pots") || 1 });
+    const parsed = parseWish(form, plant.key);
     if (!parsed.success) return data({ error: parsed.error.issues[0]?.message ?? "Check the pots." }, { status: 400 });
     await saveWish(siteId, user.id, { plantKey: plant.key, mustHave: parsed.data.mustHave === "on", pots: parsed.data.pots });
     return { saved: true };

@@ -1,7 +1,6 @@
 import { data, Form, Link, useNavigation } from "react-router";
-import { z } from "zod";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
-import { removeWish, saveWish, siteInventory, sitePlants, siteWishlist } from "~/.server/plants";
+import { parseWish, removeWish, saveWish, siteInventory, sitePlants, siteWishlist } from "~/.server/plants";
 import { spotProfiles, windowOf } from "~/.server/profiles";
 import { getSite, listSpots } from "~/.server/sites";
 import { VerdictBadge } from "~/components/season";
@@ -48,19 +47,13 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   };
 }
 
-const wishSchema = z.object({
-  plantKey: z.string().min(1, "Choose a plant"),
-  mustHave: z.literal("on").optional(),
-  pots: z.coerce.number().int("Whole pots only").min(1, "At least one pot").max(100, "Up to 100 pots"),
-});
-
 export async function action({ request, params }: Route.ActionArgs) {
   const { siteId, user } = await requireSiteRole(request, params.siteId, WRITERS);
   const form = await request.formData();
   const intent = form.get("intent");
   const plants = await sitePlants(siteId);
   if (intent === "save") {
-    const parsed = wishSchema.safeParse({ plantKey: form.get("plantKey") ?? "", mustHave: form.get("mustHave") ?? undefined, pots: form.get("pots") || 1 });
+    const parsed = parseWish(form, String(form.get("plantKey") ?? ""));
     if (!parsed.success) return data({ error: parsed.error.issues[0]?.message ?? "Check the plant and pots." }, { status: 400 });
     if (!plants.some((p) => p.key === parsed.data.plantKey)) return data({ error: "Choose a plant from the list." }, { status: 400 });
     await saveWish(siteId, user.id, { plantKey: parsed.data.plantKey, mustHave: parsed.data.mustHave === "on", pots: parsed.data.pots });

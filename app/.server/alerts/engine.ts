@@ -185,13 +185,21 @@ export class AlertEngine {
   private async rederiveSpot(spotId: number, earliest: Date | null, now: Date) {
     const rules = (await pool().query<RuleRow>(`${RULE_SELECT} WHERE r.spot_id = $1 AND NOT r.paused AND r.kind <> 'silent' ORDER BY r.id`, [spotId])).rows;
     const cutoff = now.getTime() - this.maxLagMs;
-    for (const rule of rules) {
-      let from = rule.evaluated_to?.getTime() ?? (earliest ? earliest.getTime() - 1 : null);
+    const froms = rules.map((rule) => {
+      const from = rule.evaluated_to?.getTime() ?? (earliest ? earliest.getTime() - 1 : null);
+      return from === null ? null : Number.isFinite(cutoff) ? Math.max(from, cutoff - 1) : from;
+    });
+    const known = froms.filter((f): f is number => f !== null);
+    if (known.length === 0) return;
+    // One read for all the spot's rules, from the earliest cursor; a day ahead: a sensor's clock
+    // may run a little fast, and its readings are stored as sent.
+    const stored = await spotPoints(spotId, new Date(Math.min(...known)), new Date(now.getTime() + 86_400_000));
+    for (const [i, rule] of rules.entries()) {
+      const from = froms[i];
       if (from === null) continue;
-      if (Number.isFinite(cutoff)) from = Math.max(from, cutoff - 1);
       const points: Point[] = [];
-      // A day ahead: a sensor's clock may run a little fast, and its readings are stored as sent.
-      for (const p of await spotPoints(spotId, new Date(from), new Date(now.getTime() + 86_400_000))) {
+      for (const p of stored) {
+        if (p.at.getTime() <= from) continue; // spotPoints reads after `from`, as it would for this rule alone
         const v = valueFor(rule.kind, p);
         if (v != null) points.push({ at: p.at, value: v });
       }
