@@ -63,14 +63,22 @@ async function main() {
           new Promise<void>((resolve) => {
             let outstanding = 0;
             let issued = 0;
+            let scheduled = false;
+            // The acks of one socket read free several places at once; refilling them together
+            // sends the new publishes in one socket write (mqtt-packet corks the stream for the
+            // rest of the tick), as a busy gateway would, instead of one write per publish.
             const pump = () => {
+              scheduled = false;
               while (outstanding < cfg.inflight && issued < perClient) {
                 outstanding++;
                 issued++;
                 publish(ci, () => {
                   outstanding--;
                   if (issued >= perClient && outstanding === 0) resolve();
-                  else pump();
+                  else if (!scheduled) {
+                    scheduled = true;
+                    setImmediate(pump);
+                  }
                 });
               }
             };

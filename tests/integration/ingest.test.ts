@@ -443,6 +443,31 @@ describe("moving a sensor", () => {
   });
 });
 
+describe("one group commit shared by several callers", () => {
+  it("tells each write() how many of its own readings were new, also beside store() callers that skip the count", async () => {
+    const { spot, sensor } = await setup();
+    const w = new ReadingWriter(undefined, 50); // a 50 ms window, so all five calls share one commit
+    const at = (k: number) => ({ sensorId: sensor.id, measuredAt: minutesAgo(300 - k), temperature: 20, humidity: 50, lux: null, battery: null });
+    await w.write([at(0), at(1)]);
+    const batches = w.stats.batches;
+    const [a, , b, , c] = await Promise.all([
+      w.write([at(0), at(2)]), // one already stored
+      w.store([at(3)]),
+      w.write([at(4), at(5), at(1)]),
+      w.store([at(6), at(0)]),
+      w.write([at(0), at(1)]), // nothing new
+    ]);
+    expect(w.stats.batches - batches).toBe(1);
+    expect([a.inserted, b.inserted, c.inserted]).toEqual([1, 2, 0]);
+    expect(await readingsOf(sensor.id)).toHaveLength(7);
+    expect(sumN(await storedRollups(spot.id))).toBe(7);
+    // Only store() callers: the commit lists no inserted keys and still stores each reading once.
+    await Promise.all([w.store([at(7), at(8)]), w.store([at(8), at(9)])]);
+    expect(await readingsOf(sensor.id)).toHaveLength(10);
+    expect(sumN(await storedRollups(spot.id))).toBe(10);
+  });
+});
+
 describe("a large batch of one sensor, written as two halves at once", () => {
   // Europe/London leaves summer time on 2025-10-26 at 01:00 UTC (Summer Time Order 2002); India
   // Standard Time is UTC+05:30 all year, so its local hours start at :30 UTC (IANA tz database).

@@ -8,7 +8,7 @@ import http from "node:http";
 import { WebSocketServer, createWebSocketStream } from "ws";
 import { decodeMessage, parseTopic, TOPIC_PREFIX, validateReading } from "~/domain/ingest/payload";
 import { recordRejectionsSoon } from "~/.server/ingest/rejections";
-import { sensorInfo, verifySensorSecret } from "~/.server/ingest/sensors";
+import { cachedSensorInfo, sensorInfo, verifySensorSecret, type SensorInfo } from "~/.server/ingest/sensors";
 import type { ReadingWriter } from "~/.server/ingest/writer";
 
 export type BrokerStats = { startedAt: Date; accepted: number; rejected: number; refusedConnections: number; writeFailures: number };
@@ -93,7 +93,14 @@ export async function startBroker(opts: {
           done(null); // ack it: a refused QoS 1 publish would be resent forever
         };
         if (!decoded.ok) return reject(decoded.reason);
-        verifyAndWrite(id, decoded.payload, match.channel !== "reading").then(
+        const partial = match.channel !== "reading";
+        const info = cachedSensorInfo(id);
+        const written =
+          info === undefined
+            ? sensorInfo(id).then((fetched) => validateAndWrite(id, fetched, decoded.payload, partial))
+            : validateAndWrite(id, info, decoded.payload, partial);
+        if (typeof written === "string") return reject(written);
+        written.then(
           (result) => {
             if (result === null) return done(null);
             reject(result);
@@ -110,14 +117,15 @@ export async function startBroker(opts: {
     },
   };
 
-  async function verifyAndWrite(sensorId: number, payload: unknown, partial: boolean): Promise<string | null> {
-    const info = await sensorInfo(sensorId);
+  /** The reason a message is refused, or a promise that settles when its reading is committed. */
+  function validateAndWrite(sensorId: number, info: SensorInfo | null, payload: unknown, partial: boolean): string | Promise<null> {
     if (!info) return "unknown sensor (deleted?)";
     const parsed = validateReading(sensorId, payload as never, { now: new Date(), kind: info.kind });
     if (!parsed.ok) return parsed.reason;
-    await opts.writer.write([partial ? { ...parsed.reading, partial } : parsed.reading]);
-    stats.accepted++;
-    return null;
+    return opts.writer.store([partial ? { ...parsed.reading, partial } : parsed.reading]).then(() => {
+      stats.accepted++;
+      return null;
+    });
   }
 
   const broker = await Aedes.createBroker(options);

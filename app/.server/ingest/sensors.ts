@@ -17,6 +17,12 @@ const holder = ((globalThis as Record<string, unknown>).__nichewiseSensors ??= {
 
 const TTL_MS = 10_000;
 
+/** The cached entry while it is fresh, or undefined: lets a busy sensor's message skip a promise. */
+export function cachedSensorInfo(id: number): SensorInfo | null | undefined {
+  const hit = holder.cache.get(id);
+  return hit && Date.now() - hit.at < TTL_MS ? hit.info : undefined;
+}
+
 export async function sensorInfo(id: number): Promise<SensorInfo | null> {
   const hit = holder.cache.get(id);
   if (hit && Date.now() - hit.at < TTL_MS) return hit.info;

@@ -184,7 +184,8 @@ function literal(values: (number | null)[]): string {
   return out + "}";
 }
 
-type Pending = { readings: Reading[]; resolve: (r: WriteResult) => void; reject: (e: Error) => void };
+// `counted`: the caller wants to know how many of its readings were new (see KEYS).
+type Pending = { readings: Reading[]; counted: boolean; resolve: (r: WriteResult) => void; reject: (e: Error) => void };
 
 type StatementRow = {
   inserted: number;
@@ -289,22 +290,34 @@ export class ReadingWriter {
     return () => this.listeners.delete(listener);
   }
 
-  /** Resolves after the readings are committed (or were already stored); rejects if they were not. */
+  /** Resolves after the readings are committed (or were already stored) with how many were new; rejects if they were not. */
   write(readings: Reading[]): Promise<WriteResult> {
+    return this.route(readings, true);
+  }
+
+  /**
+   * As `write`, for callers that need only the commit (the broker acks it): a group commit of
+   * such callers alone skips listing the rows it inserted.
+   */
+  store(readings: Reading[]): Promise<void> {
+    return this.route(readings, false).then(() => undefined);
+  }
+
+  private route(readings: Reading[], counted: boolean): Promise<WriteResult> {
     if (readings.length === 0) return Promise.resolve({ inserted: 0 });
     const k = this.shards.length;
     const first = readings[0].sensorId % k;
-    if (k === 1 || readings.every((r) => r.sensorId % k === first)) return this.enqueue(this.shards[first], readings);
+    if (k === 1 || readings.every((r) => r.sensorId % k === first)) return this.enqueue(this.shards[first], readings, counted);
     const parts: Reading[][] = this.shards.map(() => []);
     for (const r of readings) parts[r.sensorId % k].push(r);
-    return Promise.all(parts.map((part, i) => (part.length > 0 ? this.enqueue(this.shards[i], part) : { inserted: 0 }))).then((rs) => ({
+    return Promise.all(parts.map((part, i) => (part.length > 0 ? this.enqueue(this.shards[i], part, counted) : { inserted: 0 }))).then((rs) => ({
       inserted: rs.reduce((n, r) => n + r.inserted, 0),
     }));
   }
 
-  private enqueue(shard: Shard, readings: Reading[]): Promise<WriteResult> {
+  private enqueue(shard: Shard, readings: Reading[], counted: boolean): Promise<WriteResult> {
     return new Promise((resolve, reject) => {
-      shard.pending.push({ readings, resolve, reject });
+      shard.pending.push({ readings, counted, resolve, reject });
       shard.count += readings.length;
       this.kick(shard, shard.count >= this.maxBatch ? 0 : this.flushMs);
     });
@@ -347,19 +360,21 @@ export class ReadingWriter {
     const rows: Reading[] = batch.length === 1 ? batch[0].readings : batch.flatMap((p) => p.readings);
     const merge = rows.some((r) => r.partial);
     const withRows = this.listeners.size > 0;
+    // One caller is told the statement's own count; several need the inserted keys to share it out.
+    const withKeys = batch.length > 1 && batch.some((p) => p.counted);
     const started = performance.now();
     const halves = n >= SPLIT_MIN_ROWS ? await this.halves(rows) : null;
     let results: StatementRow[] = [];
     let failure: Error | null = null;
     if (halves) {
-      ({ results, failure } = await this.splitStatements(halves, merge, withRows, batch.length > 1));
+      ({ results, failure } = await this.splitStatements(halves, merge, withRows, withKeys));
       // Nothing committed (a lock wait timed out, say): the batch gets one plain try.
       if (results.length === 0) failure = null;
       else this.stats.splitBatches++;
     }
     if (results.length === 0 && !failure) {
       try {
-        results = [await this.statement(columns(rows), n, merge, withRows, batch.length > 1)];
+        results = [await this.statement(columns(rows), n, merge, withRows, withKeys)];
       } catch (err) {
         failure = asError(err);
       }
@@ -393,6 +408,10 @@ export class ReadingWriter {
     }
     if (batch.length === 1) {
       batch[0].resolve({ inserted: results.reduce((k, r) => k + r.inserted, 0) });
+      return;
+    }
+    if (!withKeys) {
+      for (const p of batch) p.resolve({ inserted: 0 }); // store(): nobody reads the count
       return;
     }
     const fresh = new Set(results.flatMap((r) => r.keys ?? []).map(([id, ms]) => `${id}:${ms}`));

@@ -151,6 +151,9 @@ export function parseTopic(topic: string): TopicMatch {
   return null;
 }
 
+// One decoder for every message: decode() without { stream: true } keeps no state between calls.
+const utf8 = new TextDecoder("utf-8", { fatal: true });
+
 /** Turns the bytes of one MQTT message into a payload object, or the reason it can't be read. */
 export function decodeMessage(
   channel: ChannelTopic | "reading",
@@ -160,7 +163,7 @@ export function decodeMessage(
   if (bytes.length > MAX_PAYLOAD_BYTES) return { ok: false, reason: `payload over ${MAX_PAYLOAD_BYTES} bytes` };
   let text: string;
   try {
-    text = new TextDecoder("utf-8", { fatal: true }).decode(bytes).replace(/^\uFEFF/, "").trim();
+    text = utf8.decode(bytes).replace(/^\uFEFF/, "").trim();
   } catch {
     return { ok: false, reason: "payload is not UTF-8 text" };
   }
