@@ -51,20 +51,31 @@ async function timed<T>(fn: () => Promise<T>): Promise<[T, number]> {
   return [v, performance.now() - t0];
 }
 
-// CPU seconds used so far by every PostgreSQL process of the bench cluster (/proc, clock ticks).
-async function postgresCpuMs(): Promise<number> {
+// CPU time of each PostgreSQL process of the bench cluster (/proc, clock ticks), by pid.
+async function postgresTicks(): Promise<Map<string, number>> {
   const { stdout } = await run("ps", ["-eo", "pid=,args="]);
-  let ticks = 0;
+  const ticks = new Map<string, number>();
   for (const line of stdout.split("\n")) {
     if (!line.includes("postgres") || (!line.includes(DIR) && !line.includes("postgres:"))) continue;
     const pid = line.trim().split(/\s+/)[0];
     try {
       const f = readFileSync(`/proc/${pid}/stat`, "utf8").split(") ")[1].split(" ");
-      ticks += Number(f[11]) + Number(f[12]);
+      ticks.set(pid, Number(f[11]) + Number(f[12]));
     } catch {
       // the process ended between ps and the read
     }
   }
+  return ticks;
+}
+
+/**
+ * PostgreSQL CPU milliseconds since `before`, process by process: a backend that exits in between
+ * (an idle pool connection closing) takes its whole count with it, and a difference of sums would
+ * subtract it from the others.
+ */
+async function postgresCpuMsSince(before: Map<string, number>): Promise<number> {
+  let ticks = 0;
+  for (const [pid, now] of await postgresTicks()) ticks += now - (before.get(pid) ?? 0);
   return ticks * 10;
 }
 
@@ -183,7 +194,7 @@ async function bench() {
   const creds = sensorIds.map((id) => ({ id, secret }));
 
   async function mqttRun(label: string, opts: { clients: number; inflight: number; total: number; rate?: number; startMs: number }) {
-    const pg0 = await postgresCpuMs();
+    const pg0 = await postgresTicks();
     const cpu0 = (await ask<{ cpuMs: number }>("stats")).cpuMs;
     const t = performance.now();
     const out = await new Promise<string>((resolve, reject) => {
@@ -196,7 +207,7 @@ async function bench() {
     const wall = performance.now() - t;
     const r = JSON.parse(out.trim().split("\n").pop()!) as { ms: number; acked: number; failed: number; p50: number; p99: number; cpuMs: number };
     const brokerCpu = after.cpuMs - cpu0;
-    const pgCpu = (await postgresCpuMs()) - pg0;
+    const pgCpu = await postgresCpuMsSince(pg0);
     const rate = r.acked / (r.ms / 1000);
     log(`${label}: ${fmt(rate)}/s acked ${r.acked} failed ${r.failed} p50 ${r.p50?.toFixed(1)} ms p99 ${r.p99?.toFixed(1)} ms; CPU s: loadgen ${fmt(r.cpuMs / 1000, 1)}, broker+writer ${fmt(brokerCpu / 1000, 1)}, PostgreSQL ${fmt(pgCpu / 1000, 1)} over ${fmt(wall / 1000, 1)} s`);
     return { ...r, rate, cpu: `CPU s — load generator ${fmt(r.cpuMs / 1000, 1)}, broker + writer ${fmt(brokerCpu / 1000, 1)}, PostgreSQL ${fmt(pgCpu / 1000, 1)} (wall ${fmt(wall / 1000, 1)} s)` };
