@@ -136,7 +136,9 @@ export async function startBroker(opts: {
   broker.on("clientError", () => {});
   broker.on("connectionError", () => {});
 
-  const server: Server = createServer(broker.handle);
+  // No Nagle delay on PUBACKs: a sensor publishing every few ms would otherwise wait for the TCP
+  // ack of the previous PUBACK (up to a delayed-ack timeout) before hearing about the next one.
+  const server: Server = createServer({ noDelay: true }, broker.handle);
   await new Promise<void>((resolve, reject) => {
     server.once("error", reject);
     server.listen(opts.port, opts.host, () => resolve());
