@@ -87,29 +87,13 @@ export async function startBroker(opts: {
           return done(new Error("topic not allowed"));
         }
         const decoded = decodeMessage(match.channel, packet.payload as Buffer);
-        const reject = (reason: string) => {
-          stats.rejected++;
-          recordRejectionsSoon([{ sensorId: id, source: "mqtt", topic: packet.topic, reason, payload: (packet.payload as Buffer).subarray(0, 500).toString("utf8") }]);
-          done(null); // ack it: a refused QoS 1 publish would be resent forever
-        };
-        if (!decoded.ok) return reject(decoded.reason);
+        if (!decoded.ok) return refuse(id, packet, decoded.reason, done);
         const partial = match.channel !== "reading";
         const info = cachedSensorInfo(id);
-        const written =
-          info === undefined
-            ? sensorInfo(id).then((fetched) => validateAndWrite(id, fetched, decoded.payload, partial))
-            : validateAndWrite(id, info, decoded.payload, partial);
-        if (typeof written === "string") return reject(written);
-        written.then(
-          (result) => {
-            if (result === null) return done(null);
-            reject(result);
-          },
-          (err: Error) => {
-            stats.writeFailures++;
-            done(err);
-          },
-        );
+        if (info !== undefined) return writeOrRefuse(id, info, packet, decoded.payload, partial, done);
+        sensorInfo(id)
+          .then((fetched) => writeOrRefuse(id, fetched, packet, decoded.payload, partial, done))
+          .catch((err: Error) => failed(err, done));
       } catch (err) {
         // Nothing here should throw; if it does, refuse rather than crash the broker.
         done(err instanceof Error ? err : new Error(String(err)));
@@ -117,15 +101,33 @@ export async function startBroker(opts: {
     },
   };
 
-  /** The reason a message is refused, or a promise that settles when its reading is committed. */
-  function validateAndWrite(sensorId: number, info: SensorInfo | null, payload: unknown, partial: boolean): string | Promise<null> {
-    if (!info) return "unknown sensor (deleted?)";
+  type Done = (err?: Error | null) => void;
+  type Publish = { topic: string; payload: Buffer | string };
+
+  /** Acks a message that can't be stored (a refused QoS 1 publish would be resent forever) and records why. */
+  function refuse(sensorId: number, packet: Publish, reason: string, done: Done) {
+    stats.rejected++;
+    recordRejectionsSoon([{ sensorId, source: "mqtt", topic: packet.topic, reason, payload: (packet.payload as Buffer).subarray(0, 500).toString("utf8") }]);
+    done(null);
+  }
+
+  function failed(err: Error, done: Done) {
+    stats.writeFailures++;
+    done(err);
+  }
+
+  /** Validates and stores one message; `done` (the PUBACK) comes after the commit. */
+  function writeOrRefuse(sensorId: number, info: SensorInfo | null, packet: Publish, payload: unknown, partial: boolean, done: Done) {
+    if (!info) return refuse(sensorId, packet, "unknown sensor (deleted?)", done);
     const parsed = validateReading(sensorId, payload as never, { now: new Date(), kind: info.kind });
-    if (!parsed.ok) return parsed.reason;
-    return opts.writer.store([partial ? { ...parsed.reading, partial } : parsed.reading]).then(() => {
-      stats.accepted++;
-      return null;
-    });
+    if (!parsed.ok) return refuse(sensorId, packet, parsed.reason, done);
+    opts.writer.store([partial ? { ...parsed.reading, partial } : parsed.reading]).then(
+      () => {
+        stats.accepted++;
+        done(null);
+      },
+      (err: Error) => failed(err, done),
+    );
   }
 
   const broker = await Aedes.createBroker(options);

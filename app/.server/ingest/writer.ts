@@ -299,8 +299,8 @@ export class ReadingWriter {
    * As `write`, for callers that need only the commit (the broker acks it): a group commit of
    * such callers alone skips listing the rows it inserted.
    */
-  store(readings: Reading[]): Promise<void> {
-    return this.route(readings, false).then(() => undefined);
+  store(readings: Reading[]): Promise<unknown> {
+    return this.route(readings, false);
   }
 
   private route(readings: Reading[], counted: boolean): Promise<WriteResult> {
