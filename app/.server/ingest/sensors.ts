@@ -6,7 +6,7 @@ import { encodeHexLowerCase } from "@oslojs/encoding";
 import { pool } from "~/.server/db";
 import type { SpotKindForLimits } from "~/domain/ingest/payload";
 
-export type SensorInfo = { id: number; siteId: number; secretHash: string; kind: SpotKindForLimits };
+export type SensorInfo = { id: number; siteId: number; timeZone: string; secretHash: string; kind: SpotKindForLimits };
 
 type Entry = { info: SensorInfo | null; at: number };
 type Holder = {
@@ -59,8 +59,9 @@ function fetchSensorInfo(id: number): Promise<SensorInfo | null> {
   if (pending) return pending;
   const generation = holder.generation;
   pending = pool()
-    .query<{ id: number; site_id: number; secret_hash: string; indoor: boolean | null }>(
-      `SELECT s.id, s.site_id, s.secret_hash, sp.indoor FROM sensors s
+    .query<{ id: number; site_id: number; time_zone: string; secret_hash: string; indoor: boolean | null }>(
+      `SELECT s.id, s.site_id, si.time_zone, s.secret_hash, sp.indoor FROM sensors s
+       JOIN sites si ON si.id = s.site_id
        LEFT JOIN placements p ON p.sensor_id = s.id AND p.to_at IS NULL
        LEFT JOIN spots sp ON sp.id = p.spot_id WHERE s.id = $1`,
       [id],
@@ -68,7 +69,7 @@ function fetchSensorInfo(id: number): Promise<SensorInfo | null> {
     .then((res) => {
       const row = res.rows[0];
       const info: SensorInfo | null = row
-        ? { id: row.id, siteId: row.site_id, secretHash: row.secret_hash, kind: row.indoor == null ? "unplaced" : row.indoor ? "indoor" : "outdoor" }
+        ? { id: row.id, siteId: row.site_id, timeZone: row.time_zone, secretHash: row.secret_hash, kind: row.indoor == null ? "unplaced" : row.indoor ? "indoor" : "outdoor" }
         : null;
       if (holder.generation === generation) holder.cache.set(id, { info, at: Date.now() });
       return info;

@@ -3,6 +3,7 @@
 // and the hourly rollups of the spot each sensor was placed in, counting only rows really inserted.
 // A caller's promise resolves only after COMMIT, which is what lets MQTT ack after commit.
 import { calibratedSql } from "~/.server/ingest/calibrated";
+import { sensorInfo } from "~/.server/ingest/sensors";
 import type pg from "pg";
 import { pool } from "~/.server/db";
 import type { Reading } from "~/domain/ingest/payload";
@@ -427,11 +428,8 @@ export class ReadingWriter {
     const sensorId = rows[0].sensorId;
     if (rows.some((r) => r.sensorId !== sensorId)) return null;
     try {
-      const res = await this.getPool().query<{ time_zone: string }>(
-        "SELECT si.time_zone FROM sensors s JOIN sites si ON si.id = s.site_id WHERE s.id = $1",
-        [sensorId],
-      );
-      return res.rows[0] ? splitOneSensor(rows, res.rows[0].time_zone) : null;
+      const info = await sensorInfo(sensorId);
+      return info ? splitOneSensor(rows, info.timeZone) : null;
     } catch {
       return null; // the whole statement will report what is wrong
     }
