@@ -69,12 +69,15 @@ async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[],
   const { pruneRollupChanges } = await import("~/.server/profiles");
   const housekeeping = setInterval(() => {
     pruneRejections().catch(() => {});
-    pruneRollupChanges().catch(() => {});
     pool()
       .query("SELECT ensure_reading_partitions(date_trunc('month', now()), 3)")
       .catch(() => {});
   }, 60_000);
   stops.push(async () => clearInterval(housekeeping));
+  // Daily, not with the rest: each prune reads the whole change log, and a spot whose old entries
+  // go makes the rollup cache read it again.
+  const daily = setInterval(() => pruneRollupChanges().catch(() => {}), 86_400_000);
+  stops.push(async () => clearInterval(daily));
 
   if (e.NW_DEMO) {
     const { seedDemo } = await import("~/.server/seed");

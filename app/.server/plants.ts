@@ -25,7 +25,12 @@ export async function sitePlants(siteId: number): Promise<SitePlant[]> {
 }
 
 export async function sitePlant(siteId: number, key: string | undefined): Promise<SitePlant> {
-  const plant = (await sitePlants(siteId)).find((p) => p.key === key);
+  return findSitePlant(await sitePlants(siteId), key);
+}
+
+/** The plant with this key among a site's plants already loaded, or a 404. */
+export function findSitePlant(plants: SitePlant[], key: string | undefined): SitePlant {
+  const plant = plants.find((p) => p.key === key);
   if (!plant) notFound();
   return plant;
 }
@@ -132,10 +137,10 @@ export async function removeWish(siteId: number, actorId: number, plantKey: stri
 const potsSchema = z.coerce.number().int("Whole pots only").min(1, "At least one pot").max(100, "Up to 100 pots");
 
 /** A wish as the wishlist and plant pages post it: must-have and pots; the plant from the form or the page. */
+const wishSchema = z.object({ plantKey: z.string().min(1, "Choose a plant"), mustHave: z.literal("on").optional(), pots: potsSchema });
+
 export function parseWish(form: FormData, plantKey: string) {
-  return z
-    .object({ plantKey: z.string().min(1, "Choose a plant"), mustHave: z.literal("on").optional(), pots: potsSchema })
-    .safeParse({ plantKey, mustHave: form.get("mustHave") ?? undefined, pots: form.get("pots") || 1 });
+  return wishSchema.safeParse({ plantKey, mustHave: form.get("mustHave") ?? undefined, pots: form.get("pots") || 1 });
 }
 
 const addSchema = z.object({

@@ -44,10 +44,13 @@ export async function fetchRollups(spotIds: number[], from: Date, to: Date): Pro
 // oldest entries pruned, still shows. The last two hours are always read fresh, and as the clock
 // moves on only the newly past hours are read and appended.
 type CachedRollups = { from: number; edge: number; check: string; rows: HourlyRollup[] };
-type CacheHolder = { rollups: Map<number, CachedRollups> };
+type CacheHolder = { rollups: Map<number, CachedRollups>; rowCount?: number };
 const cacheHolder = ((globalThis as Record<string, unknown>).__nichewiseRollupCache ??= { rollups: new Map() }) as CacheHolder;
-/** About 1.5 MB per spot-year; least recently used spots go first. */
-const MAX_CACHED_SPOTS = 64;
+/**
+ * Bounded by rows, not spots: a spot-year is 8,760 rows, about 1.5 MB, so this holds 64 spot-years
+ * (about 100 MB) and more spots with less history. Least recently used spots go first.
+ */
+const MAX_CACHED_ROWS = 64 * 8760;
 
 /** Forget week-old entries of the change log; the cache's check notices the pruning as a change. */
 export async function pruneRollupChanges() {
@@ -88,9 +91,17 @@ export async function loadRollups(spotIds: number[], fromAsked: Date, to: Date):
   const used = new Map<number, CachedRollups>();
   const remember = (spotId: number, entry: CachedRollups) => {
     used.set(spotId, entry);
+    const before = cache.get(spotId);
     cache.delete(spotId); // re-inserted last: the Map's order is the order of use
     cache.set(spotId, entry);
-    while (cache.size > MAX_CACHED_SPOTS) cache.delete(cache.keys().next().value!);
+    let rowCount = (cacheHolder.rowCount ?? 0) - (before?.rows.length ?? 0) + entry.rows.length;
+    // The spot just used stays even when it alone is over the bound: this request reads it.
+    while (rowCount > MAX_CACHED_ROWS && cache.size > 1) {
+      const [oldest, evicted] = cache.entries().next().value!;
+      cache.delete(oldest);
+      rowCount -= evicted.rows.length;
+    }
+    cacheHolder.rowCount = rowCount;
   };
   for (const id of spotIds) if (!stale.some((c) => c.spotId === id)) remember(id, cache.get(id)!);
   if (stale.length > 0) {
@@ -99,7 +110,9 @@ export async function loadRollups(spotIds: number[], fromAsked: Date, to: Date):
   }
   for (const [readTo, list] of behind) {
     const more = await fetchRollups(list.map((l) => l.spotId), new Date(readTo), new Date(edge));
-    for (const { spotId, hit } of list) remember(spotId, { ...hit, edge, rows: [...hit.rows, ...more.get(spotId)!] });
+    // Appending newly past hours also drops those before this period: a rolling window would
+    // otherwise keep every hour since the server started.
+    for (const { spotId, hit } of list) remember(spotId, { ...hit, from, edge, rows: [...hit.rows.slice(firstAtOrAfter(hit.rows, from)), ...more.get(spotId)!] });
   }
   const recent = edge < to.getTime() ? await fetchRollups(spotIds, new Date(edge), to) : new Map<number, HourlyRollup[]>();
   return new Map(

@@ -1,6 +1,6 @@
 import { data, Form, Link, redirect, useNavigation } from "react-router";
-import { ALL_ROLES, notFound, requireSiteRole, WRITERS } from "~/.server/auth";
-import { deleteCustomProfile, parseWish, saveWish, siteInventory, sitePlant, sitePlants, siteWishlist } from "~/.server/plants";
+import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
+import { deleteCustomProfile, findSitePlant, parseWish, saveWish, siteInventory, sitePlant, sitePlants, siteWishlist } from "~/.server/plants";
 import { fitSummary, spotProfiles, windowOf } from "~/.server/profiles";
 import { getSite, listSpots } from "~/.server/sites";
 import { VerdictBadge } from "~/components/season";
@@ -15,9 +15,10 @@ export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.plant.n
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { siteId, role, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
-  const [site, spots, wishes, inventory, plants] = await Promise.all([getSite(siteId), listSpots(siteId), siteWishlist(siteId), siteInventory(siteId), sitePlants(siteId)]);
-  const plant = plants.find((p) => p.key === params.plantKey);
-  if (!plant) notFound();
+  const [site, spots, wishes, inventory, plants, notes] = await Promise.all([
+    getSite(siteId), listSpots(siteId), siteWishlist(siteId), siteInventory(siteId), sitePlants(siteId), listNotes(siteId, { plantKey: params.plantKey }),
+  ]);
+  const plant = findSitePlant(plants, params.plantKey);
   const profiles = await spotProfiles(site, spots.map((s) => s.id), new Date(), { plants });
   const ranked = rankSpotsForPlant(plant, spots.map((s) => ({ spot: s, season: profiles.get(s.id)!, window: windowOf(site, s) })));
   const wish = wishes.find((w) => w.plantKey === plant.key) ?? null;
@@ -26,7 +27,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     siteId,
     unit: user.temperatureUnit,
     plant,
-    notes: { rows: await listNotes(siteId, { plantKey: plant.key }), timeZone: site.timeZone },
+    notes: { rows: notes, timeZone: site.timeZone },
     basedOnName: plant.basedOn ? (PLANT_LIBRARY.find((p) => p.key === plant.basedOn)?.name ?? plant.basedOn) : null,
     wish: wish ? { mustHave: wish.mustHave, pots: wish.pots } : null,
     standing: inventory.filter((i) => i.plantKey === plant.key).map((i) => ({ ...i, spotName: spots.find((s) => s.id === i.spotId)?.name ?? "" })),
