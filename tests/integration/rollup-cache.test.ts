@@ -48,6 +48,19 @@ describe("rollup cache", () => {
     } finally {
       vi.useRealTimers();
     }
+    // A rolling window six hours on: the appending read also drops the hours before its period,
+    // so the cached rows don't grow with the server's uptime; an earlier period is read again.
+    const rolled = now + 6 * HOUR;
+    vi.useFakeTimers({ toFake: ["Date"], now: rolled });
+    try {
+      const rolledFrom = new Date(from.getTime() + 6 * HOUR);
+      await sameFor(rolledFrom, new Date(rolled));
+      const cached = (globalThis as { __nichewiseRollupCache?: { rollups: Map<number, { rows: { hour: Date }[] }> } }).__nichewiseRollupCache!.rollups.get(spot.id)!;
+      expect(cached.rows[0].hour.getTime()).toBeGreaterThanOrEqual(rolledFrom.getTime());
+      await sameFor(from, new Date(rolled));
+    } finally {
+      vi.useRealTimers();
+    }
     // A deleted hour (readings removed and the spot rebuilt) is gone from the cache as well.
     await pool().query("DELETE FROM readings WHERE sensor_id = $1 AND measured_at < $2", [sensor.id, new Date(start + 24 * HOUR)]);
     await rebuildRollups([spot.id]);
