@@ -53,7 +53,7 @@ describe("rollup cache", () => {
     const rolled = now + 6 * HOUR;
     vi.useFakeTimers({ toFake: ["Date"], now: rolled });
     try {
-      const rolledFrom = new Date(from.getTime() + 6 * HOUR);
+      const rolledFrom = new Date(start + 6 * HOUR);
       await sameFor(rolledFrom, new Date(rolled));
       const cached = (globalThis as { __nichewiseRollupCache?: { rollups: Map<number, { rows: { hour: Date }[] }> } }).__nichewiseRollupCache!.rollups.get(spot.id)!;
       expect(cached.rows[0].hour.getTime()).toBeGreaterThanOrEqual(rolledFrom.getTime());
