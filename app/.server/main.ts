@@ -167,9 +167,18 @@ if (isEntry) {
     (running) => {
       let stopping = false;
       const shutdown = (signal: string) => {
-        if (stopping) return;
+        // A second signal, or a stop still waiting after 20 s (PostgreSQL already gone, say), ends
+        // the process: anything unacknowledged is resent by the sensors.
+        if (stopping) {
+          log(`${signal} again: exiting now`);
+          process.exit(1);
+        }
         stopping = true;
         log(`${signal}: shutting down…`);
+        setTimeout(() => {
+          log("shutdown still waiting after 20 s: exiting");
+          process.exit(1);
+        }, 20_000).unref();
         running.stop().then(() => process.exit(0));
       };
       process.on("SIGINT", () => shutdown("SIGINT"));
