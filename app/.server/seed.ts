@@ -7,7 +7,7 @@ import { hashPassword } from "~/.server/auth";
 import { db } from "~/.server/db";
 import { writer } from "~/.server/ingest/writer";
 import { memberships, placements, sensors, sites, spots, users } from "~/db/schema.server";
-import { newSensorSecret } from "~/.server/secrets";
+import { hashSensorSecret, newSensorSecret } from "~/.server/secrets";
 import { seedSharing } from "~/.server/seed-sharing";
 import { seedPlants } from "~/.server/seed-plants";
 import { seedAlerts } from "~/.server/seed-alerts";
@@ -51,7 +51,7 @@ export async function seedDemo(opts: { log?: (s: string) => void; backfillDays?:
     const secret = newSensorSecret();
     const [sensor] = await db()
       .insert(sensors)
-      .values({ siteId: site.id, name: s.sensor.name, secretHash: await hashPassword(secret), channels: s.sensor.channels })
+      .values({ siteId: site.id, name: s.sensor.name, secretHash: hashSensorSecret(secret), channels: s.sensor.channels })
       .returning({ id: sensors.id });
     await db().insert(placements).values({ sensorId: sensor.id, spotId: spot.id, fromAt: new Date(from.getTime() - 3_600_000) });
     creds.push({ sensorId: sensor.id, secret, spotIndex: i });

@@ -2,14 +2,14 @@ import { parseWithZod } from "@conform-to/zod/v4";
 import { eq } from "drizzle-orm";
 import { useEffect, useState } from "react";
 import { data, Form, redirect, useFetcher, useNavigation } from "react-router";
-import { ALL_ROLES, hashPassword, requireSiteRole, WRITERS } from "~/.server/auth";
+import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
 import { db } from "~/.server/db";
 import { env } from "~/.server/env";
 import { runningBroker } from "~/.server/ingest/broker";
 import { rebuildRollups, spotsOfSensor } from "~/.server/ingest/rollups";
 import { invalidateSensorCache } from "~/.server/ingest/sensors";
 import { PlacementError, placeSensor, removeSensorFromSpot } from "~/.server/placements";
-import { newSensorSecret } from "~/.server/secrets";
+import { hashSensorSecret, newSensorSecret } from "~/.server/secrets";
 import { getSensor, getSite, getSpot, listSpots, placementHistory } from "~/.server/sites";
 import { PlaceSensorForm, PlacementHistory, PlacingTips } from "~/components/placement";
 import { useNow } from "~/components/use-now";
@@ -88,7 +88,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   }
   if (intent === "rotate") {
     const secret = newSensorSecret();
-    await db().update(sensors).set({ secretHash: await hashPassword(secret) }).where(eq(sensors.id, sensor.id));
+    await db().update(sensors).set({ secretHash: hashSensorSecret(secret) }).where(eq(sensors.id, sensor.id));
     invalidateSensorCache(sensor.id);
     runningBroker()?.disconnectSensor(sensor.id);
     await db().insert(auditLog).values({ siteId, actorId: user.id, action: "sensor.rotate-secret", detail: { sensorId: sensor.id } });

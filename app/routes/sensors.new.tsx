@@ -1,10 +1,10 @@
 import { getFormProps, useForm } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
 import { Form, redirect, useNavigation } from "react-router";
-import { hashPassword, requireSiteRole } from "~/.server/auth";
+import { requireSiteRole } from "~/.server/auth";
 import { db } from "~/.server/db";
 import { placeSensor } from "~/.server/placements";
-import { newSensorSecret } from "~/.server/secrets";
+import { hashSensorSecret, newSensorSecret } from "~/.server/secrets";
 import { getSpot, listSpots } from "~/.server/sites";
 import { FormErrors, SelectField, TextField } from "~/components/field";
 import { auditLog, sensors } from "~/db/schema.server";
@@ -27,7 +27,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   const secret = newSensorSecret();
   const [sensor] = await db()
     .insert(sensors)
-    .values({ siteId, name, channels, secretHash: await hashPassword(secret) })
+    .values({ siteId, name, channels, secretHash: hashSensorSecret(secret) })
     .returning({ id: sensors.id });
   await db().insert(auditLog).values({ siteId, actorId: user.id, action: "sensor.create", detail: { sensorId: sensor.id, name } });
   if (spotId) await placeSensor({ siteId, sensorId: sensor.id, spotId, at: new Date(), actorId: user.id });

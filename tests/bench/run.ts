@@ -10,7 +10,7 @@ import { build as esbuild } from "esbuild";
 import { from as copyFrom } from "pg-copy-streams";
 import { chromium } from "playwright-core";
 import { closeDb, pool, runMigrations } from "../../app/.server/db";
-import { hashPassword } from "../../app/.server/auth";
+import { hashSensorSecret } from "../../app/.server/secrets";
 import { importCsv, parseCsv } from "../../app/.server/ingest/csv-import";
 import { handleHttpIngest } from "../../app/.server/ingest/http";
 import { REBUILD_SQL } from "../../app/.server/ingest/rollups";
@@ -170,7 +170,7 @@ async function bench() {
   await p.query("INSERT INTO memberships (user_id, site_id, role) VALUES ($1, $2, 'owner')", [u.rows[0].id, site.id]);
   const spotIds = (await p.query("INSERT INTO spots (site_id, name, indoor) SELECT $1, 'Spot ' || g, true FROM generate_series(1, 50) g RETURNING id", [site.id])).rows.map((r) => r.id as number);
   const secret = "benchsecretbenchsecretbenchsecret";
-  const hash = await hashPassword(secret);
+  const hash = hashSensorSecret(secret);
   const sensorIds = (await p.query("INSERT INTO sensors (site_id, name, secret_hash) SELECT $1, 'Sensor ' || g, $2 FROM generate_series(1, 200) g RETURNING id", [site.id, hash])).rows.map((r) => r.id as number);
   await p.query(
     "INSERT INTO placements (sensor_id, spot_id, from_at) SELECT unnest($1::int[]), unnest($2::int[]), now() - interval '5 years'",

@@ -2,7 +2,7 @@
 import { sql } from "drizzle-orm";
 import { hashPassword } from "~/.server/auth";
 import { db } from "~/.server/db";
-import { newSensorSecret } from "~/.server/secrets";
+import { hashSensorSecret, newSensorSecret } from "~/.server/secrets";
 import { memberships, placements, sensors, sites, spots, users, type Role } from "~/db/schema.server";
 
 let counter = 0;
@@ -43,7 +43,7 @@ export async function makeSensor(site: { id: number }, spot?: { id: number }, pl
   const secret = newSensorSecret();
   const [sensor] = await db()
     .insert(sensors)
-    .values({ siteId: site.id, name: `Sensor ${uniq()}`, secretHash: await hashPassword(secret) })
+    .values({ siteId: site.id, name: `Sensor ${uniq()}`, secretHash: hashSensorSecret(secret) })
     .returning();
   if (spot) await db().insert(placements).values({ sensorId: sensor.id, spotId: spot.id, fromAt: placedFrom });
   return { ...sensor, secret };

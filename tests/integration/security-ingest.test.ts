@@ -2,11 +2,14 @@
 // MQTT connections and refuses the old secret (MQTT 3.1.1 §3.2.2.3: CONNACK return code 4, bad
 // user name or password); changing a password signs out the user's other sessions (OWASP Session
 // Management Cheat Sheet, "Renew the Session ID After Any Privilege Level Change" and password change).
+import { createHash } from "node:crypto";
 import { connectAsync, type MqttClient } from "mqtt";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { createSession, generateSessionToken, validateSessionToken } from "~/.server/auth";
+import { createSession, generateSessionToken, hashPassword, validateSessionToken } from "~/.server/auth";
 import { pool } from "~/.server/db";
 import { startBroker, type RunningBroker } from "~/.server/ingest/broker";
+import { invalidateSensorCache } from "~/.server/ingest/sensors";
+import { hashSensorSecret } from "~/.server/secrets";
 import { ReadingWriter } from "~/.server/ingest/writer";
 import { action as sensorAction } from "~/routes/sensors.$sensorId";
 import { action as settingsAction } from "~/routes/settings";
@@ -106,6 +109,33 @@ describe("revoking a sensor", () => {
     // Refused although the old secret was verified (and remembered) moments ago.
     expect(await connectCode(sensor.id, sensor.secret)).toBe(4);
     expect(await connectCode(sensor.id, fresh!)).toBe(0);
+  });
+});
+
+describe("sensor secrets", () => {
+  it("stores only the secret's SHA-256, refuses a wrong or near-miss secret, and accepts the right one", async () => {
+    const { sensor } = await setup();
+    const { rows } = await pool().query<{ secret_hash: string }>("SELECT secret_hash FROM sensors WHERE id = $1", [sensor.id]);
+    // FIPS 180-4 SHA-256 (checked against node:crypto, an independent implementation).
+    expect(rows[0].secret_hash).toBe(`sha256:${createHash("sha256").update(sensor.secret).digest("hex")}`);
+    expect(await connectCode(sensor.id, `${sensor.secret}x`)).toBe(4);
+    expect(await connectCode(sensor.id, sensor.secret.slice(0, -1))).toBe(4);
+    expect(await connectCode(sensor.id, "")).toBe(4);
+    expect(await connectCode(sensor.id, sensor.secret)).toBe(0);
+  });
+
+  it("accepts a sensor made before the change (argon2id hash) and stores the new form after its first connect", async () => {
+    const { sensor } = await setup();
+    await pool().query("UPDATE sensors SET secret_hash = $1 WHERE id = $2", [await hashPassword(sensor.secret), sensor.id]);
+    invalidateSensorCache(sensor.id);
+    expect(await connectCode(sensor.id, "wrong")).toBe(4);
+    const before = await pool().query<{ secret_hash: string }>("SELECT secret_hash FROM sensors WHERE id = $1", [sensor.id]);
+    expect(before.rows[0].secret_hash).toMatch(/^\$argon2id\$/);
+    expect(await connectCode(sensor.id, sensor.secret)).toBe(0);
+    const after = await pool().query<{ secret_hash: string }>("SELECT secret_hash FROM sensors WHERE id = $1", [sensor.id]);
+    expect(after.rows[0].secret_hash).toBe(hashSensorSecret(sensor.secret));
+    expect(await connectCode(sensor.id, sensor.secret)).toBe(0);
+    expect(await connectCode(sensor.id, "wrong")).toBe(4);
   });
 });
 

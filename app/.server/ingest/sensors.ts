@@ -1,9 +1,7 @@
 // What ingest needs to know about a sensor (site, where it is now, its secret's hash), cached for a
 // few seconds so that a busy sensor costs no query per message.
-import { verify } from "@node-rs/argon2";
-import { sha256 } from "@oslojs/crypto/sha2";
-import { encodeHexLowerCase } from "@oslojs/encoding";
 import { pool } from "~/.server/db";
+import { checkSensorSecret, hashSensorSecret } from "~/.server/secrets";
 import type { SpotKindForLimits } from "~/domain/ingest/payload";
 
 export type SensorInfo = { id: number; siteId: number; timeZone: string; secretHash: string; kind: SpotKindForLimits };
@@ -11,7 +9,6 @@ export type SensorInfo = { id: number; siteId: number; timeZone: string; secretH
 type Entry = { info: SensorInfo | null; at: number };
 type Holder = {
   cache: Map<number, Entry>;
-  verified: Map<string, number>;
   /** One query in flight per sensor, however many of its messages arrive meanwhile. */
   fetching: Map<number, Promise<SensorInfo | null>>;
   /** Bumped by invalidation, so a query that started before it cannot store what it read. */
@@ -19,7 +16,6 @@ type Holder = {
 };
 const holder = ((globalThis as Record<string, unknown>).__nichewiseSensors ??= {
   cache: new Map(),
-  verified: new Map(),
   fetching: new Map(),
   generation: 0,
 }) as Holder;
@@ -90,24 +86,21 @@ export function invalidateSensorCache(id?: number) {
     holder.cache.delete(id);
     holder.fetching.delete(id);
   }
-  for (const key of holder.verified.keys()) if (id === undefined || key.startsWith(`${id}:`)) holder.verified.delete(key);
 }
 
-/** Checks a sensor's secret against its argon2id hash; a success is remembered for a minute. */
+/** Checks a sensor's secret against its stored hash. */
 export async function verifySensorSecret(id: number, secret: string): Promise<SensorInfo | null> {
   if (!secret || secret.length > 200) return null;
   const info = await sensorInfo(id);
   if (!info) return null;
-  const key = `${id}:${encodeHexLowerCase(sha256(new TextEncoder().encode(secret)))}:${info.secretHash}`;
-  const at = holder.verified.get(key);
-  if (at && Date.now() - at < 60_000) return info;
-  let ok = false;
-  try {
-    ok = await verify(info.secretHash, secret);
-  } catch {
-    ok = false;
-  }
+  const { ok, legacy } = await checkSensorSecret(info.secretHash, secret);
   if (!ok) return null;
-  holder.verified.set(key, Date.now());
+  if (legacy) {
+    // Only if the hash is still the one just checked (a rotation in between wins).
+    await pool()
+      .query("UPDATE sensors SET secret_hash = $1 WHERE id = $2 AND secret_hash = $3", [hashSensorSecret(secret), id, info.secretHash])
+      .then(() => invalidateSensorCache(id))
+      .catch(() => {}); // the next connect checks the old hash again
+  }
   return info;
 }
