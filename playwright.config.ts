@@ -23,7 +23,7 @@ export default defineConfig({
   },
   globalTeardown: "./tests/e2e/teardown.ts",
   webServer: {
-    command: `tsx app/.server/postgres.ts stop ${E2E.dir}/postgres; rm -rf ${E2E.dir} && node build/nichewise-server.mjs`,
+    command: `tsx app/.server/postgres.ts stop ${E2E.dir}/postgres; rm -rf ${E2E.dir} && node --max-semi-space-size=32 build/nichewise-server.mjs`,
     gracefulShutdown: { signal: "SIGTERM", timeout: 15_000 },
     url: `http://127.0.0.1:${E2E.port}/sign-in`,
     timeout: 180_000,

@@ -135,6 +135,14 @@ async function copyRows(table: string, readings: Reading[]) {
   }
 }
 
+/** The Node flags `npm start` runs the server with (package.json), for the ingest process. */
+function serverNodeFlags(): string[] {
+  const start = (JSON.parse(readFileSync("package.json", "utf8")) as { scripts: { start: string } }).scripts.start;
+  const m = /\bnode ((?:--\S+ )*)build\/nichewise-server\.mjs/.exec(start);
+  if (!m) throw new Error(`package.json's start script does not run build/nichewise-server.mjs: ${start}`);
+  return m[1].split(" ").filter(Boolean);
+}
+
 /** tests/bench/<name>.ts bundled the way `npm run build:server` bundles the product's entry. */
 async function bundle(name: string): Promise<string> {
   const outfile = path.resolve(`${DIR}/${name}.mjs`);
@@ -162,6 +170,7 @@ async function main() {
 async function bench() {
   const p = pool();
   const started = new Date();
+  log(`ingest process flags: ${serverNodeFlags().join(" ") || "none"}`);
   log(`machine: ${os.cpus().length} × ${os.cpus()[0]?.model ?? "cpu"}, ${Math.round(os.totalmem() / 2 ** 30)} GiB, node ${process.version}`);
 
   // One site, 50 spots, 200 sensors (four per spot: 200 MQTT clients each sign in as their own sensor).
@@ -199,7 +208,7 @@ async function bench() {
   // Both processes run bundled, as `npm start` runs the product (build/nichewise-server.mjs): tsx's
   // loader and transpile cache alone add about 60 MB to a process.
   const [brokerJs, loadgenJs] = await Promise.all(["broker-proc", "loadgen"].map(bundle));
-  const ingest = spawn(process.execPath, [brokerJs], { stdio: ["ignore", "inherit", "inherit", "ipc"], env: process.env });
+  const ingest = spawn(process.execPath, [...serverNodeFlags(), brokerJs], { stdio: ["ignore", "inherit", "inherit", "ipc"], env: process.env });
   const ask = <T,>(cmd: string) =>
     new Promise<T>((resolve) => {
       ingest.once("message", (m) => resolve(m as T));
