@@ -16,7 +16,7 @@ const digest = (secret: string) => sha256(new TextEncoder().encode(secret));
 /**
  * What the database keeps of a sensor's secret: its SHA-256, as the Lucia guide keeps a session
  * token's. A slow hash (argon2id, as for passwords) protects secrets people choose and can guess;
- * 160 random bits cannot be guessed either way, and a slow hash cost every sensor ~25 ms of CPU and
+ * 160 random bits cannot be guessed either way, and a slow hash cost every sensor ~15 ms of CPU and
  * 19 MiB at each connect: 200 sensors reconnecting after a restart held ~45 MB at once.
  */
 export const hashSensorSecret = (secret: string) => PREFIX + encodeHexLowerCase(digest(secret));
