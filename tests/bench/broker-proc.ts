@@ -15,7 +15,7 @@ process.on("message", async (msg: { cmd: string }) => {
   if (msg.cmd === "stats") {
     await writer.drain();
     const cpu = process.cpuUsage();
-    process.send!({ cpuMs: (cpu.user + cpu.system) / 1000, peakRss });
+    process.send!({ cpuMs: (cpu.user + cpu.system) / 1000, peakRss, inserted: writer.stats.inserted });
   } else if (msg.cmd === "stop") {
     await broker.close();
     await writer.drain();
