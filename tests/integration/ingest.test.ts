@@ -244,6 +244,23 @@ describe("MQTT access control", () => {
     ]);
     expect(outcome).not.toBe("granted");
   });
+
+  it("stores and acks a reading without echoing it to the sensor's own subscription; the server's own messages still arrive", async () => {
+    const a = await setup();
+    const c = await mqttClient(a.sensor);
+    await c.subscribeAsync(`nichewise/sensors/${a.sensor.id}/#`, { qos: 1 });
+    const received: string[] = [];
+    c.on("message", (t) => received.push(t));
+    const at = new Date(Math.floor((Date.now() - 60_000) / 1000) * 1000);
+    await c.publishAsync(topic(a.sensor), JSON.stringify({ time: at.toISOString(), temperature: 21.5 }), { qos: 1 });
+    expect(await readingsOf(a.sensor.id)).toMatchObject([{ measured_at: at, temperature: 21.5 }]);
+    // A message the server publishes (no client) is delivered to the subscription as usual.
+    await new Promise<void>((resolve, reject) =>
+      broker.broker.publish({ cmd: "publish", topic: `nichewise/sensors/${a.sensor.id}/note`, payload: Buffer.from("hello"), qos: 0, retain: false, dup: false }, (err) => (err ? reject(err) : resolve())),
+    );
+    await new Promise((r) => setTimeout(r, 200));
+    expect(received).toEqual([`nichewise/sensors/${a.sensor.id}/note`]);
+  });
 });
 
 describe("bad payloads", () => {

@@ -131,6 +131,15 @@ export async function startBroker(opts: {
   }
 
   const broker = await Aedes.createBroker(options);
+  // A sensor's reading has no one to go to: the server takes it in authorizePublish, and a sensor
+  // may subscribe only to its own topics. After the PUBACK aedes would still match every reading
+  // against offline and live subscriptions (two topic-tree lookups, a promise and a few objects per
+  // message); the messages the server publishes itself (no client) are delivered as before.
+  const deliver = broker.publish.bind(broker) as unknown as (packet: unknown, client: Client | null, done?: (err?: Error | null) => void) => void;
+  (broker as unknown as { publish: typeof deliver }).publish = (packet, client, done) => {
+    if (client && typeof client === "object") return done?.(null);
+    deliver(packet, client, done);
+  };
   broker.on("clientDisconnect", (client) => {
     const id = sensorOf.get(client);
     if (id) clientsOf.get(id)?.delete(client);
