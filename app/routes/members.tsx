@@ -109,7 +109,7 @@ export default function Members({ loaderData, actionData }: Route.ComponentProps
   }, [ad]);
 
   return (
-    <div className="grid gap-6 lg:grid-cols-[minmax(0,1fr)_minmax(0,22rem)]">
+    <div className="grid grid-cols-1 gap-6 lg:grid-cols-[minmax(0,1fr)_minmax(0,22rem)]">
       <div className="space-y-6">
         <section>
           <p className="mb-4 text-muted">Who shares this site, and what each can do.</p>

@@ -150,7 +150,7 @@ export default function SensorPage({ loaderData, actionData }: Route.ComponentPr
   const curl = `curl -X POST ${connect.httpUrl} -H 'Authorization: Bearer ${sensor.id}.${shownSecret}' -H 'Content-Type: application/json' -d '{"readings":[${example}]}'`;
 
   return (
-    <div className="grid gap-6 lg:grid-cols-[1fr_22rem]">
+    <div className="grid grid-cols-1 gap-6 lg:grid-cols-[minmax(0,1fr)_22rem]">
       <div className="space-y-6">
         <section className="card">
           <div className="flex flex-wrap items-baseline justify-between gap-2">

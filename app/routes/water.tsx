@@ -178,8 +178,8 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
         </section>
       ) : null}
 
-      <div className="grid gap-6 lg:grid-cols-[minmax(0,1fr)_minmax(0,22rem)]">
-        <section className="card overflow-x-auto">
+      <div className="grid grid-cols-1 gap-6 lg:grid-cols-[minmax(0,1fr)_minmax(0,22rem)]">
+        <section className="card relative overflow-x-auto">
           <h3 className="h2 mb-3">All checks</h3>
           {checks.length === 0 ? (
             <p className="text-sm text-muted">None yet.</p>
