@@ -2,11 +2,11 @@
 // deprecated): an opaque random token in the cookie, its SHA-256 as the session id in PostgreSQL,
 // a 30-day expiry renewed when less than half remains, and deletion on sign-out.
 import { hash, verify } from "@node-rs/argon2";
-import { sha256 } from "@oslojs/crypto/sha2";
-import { encodeBase32LowerCaseNoPadding, encodeHexLowerCase } from "@oslojs/encoding";
+import { encodeBase32LowerCaseNoPadding } from "@oslojs/encoding";
 import { and, eq, gt, sql } from "drizzle-orm";
 import { data } from "react-router";
 import { db } from "~/.server/db";
+import { sha256Hex } from "~/.server/secrets";
 import { memberships, sessions, signInFailures, users, type Role, type User } from "~/db/schema.server";
 
 // OWASP Password Storage Cheat Sheet, argon2id minimum: m = 19 MiB, t = 2, p = 1.
@@ -31,8 +31,7 @@ export function generateSessionToken(): string {
   return encodeBase32LowerCaseNoPadding(bytes);
 }
 
-export const sessionIdFromToken = (token: string) =>
-  encodeHexLowerCase(sha256(new TextEncoder().encode(token)));
+export const sessionIdFromToken = sha256Hex;
 
 export async function createSession(token: string, userId: number) {
   const session = { id: sessionIdFromToken(token), userId, expiresAt: new Date(Date.now() + SESSION_DAYS * DAY) };
