@@ -5,7 +5,7 @@ import { CSV_MAX_BYTES, CSV_MAX_ROWS, guessDelimiter, rowToReading, type CsvMapp
 import type { Reading } from "~/domain/ingest/payload";
 import { recordRejectionsSoon } from "~/.server/ingest/rejections";
 import { sensorInfo } from "~/.server/ingest/sensors";
-import { writer } from "~/.server/ingest/writer";
+import { writer, type WriteResult } from "~/.server/ingest/writer";
 
 export class CsvLimitError extends Error {}
 
@@ -41,29 +41,57 @@ export function parseCsv(bytes: Uint8Array): { headers: string[]; rows: string[]
     : { headers: records[0].map((_c, i) => `Column ${i + 1}`), rows: records };
 }
 
-export async function convertRows(rows: string[][], mapping: CsvMapping, sensorId: number, limit = Infinity) {
+type Failure = { line: number; reason: string; row: string[] };
+type Conversion = { now: Date; kind: Parameters<typeof rowToReading>[3]["kind"] };
+
+async function conversion(sensorId: number): Promise<Conversion> {
   const info = await sensorInfo(sensorId);
-  const kind = info?.kind ?? "unplaced";
-  const now = new Date();
+  return { now: new Date(), kind: info?.kind ?? "unplaced" };
+}
+
+/** Rows `from`..`to` as readings; a failure's line counts the header as line 1. */
+function convertRange(rows: string[][], from: number, to: number, mapping: CsvMapping, sensorId: number, ctx: Conversion, onFailure: (f: Failure) => void) {
   const ok: Reading[] = [];
-  const failed: { line: number; reason: string; row: string[] }[] = [];
-  const n = Math.min(rows.length, limit);
-  for (let i = 0; i < n; i++) {
-    const r = rowToReading(rows[i], mapping, sensorId, { now, kind });
+  for (let i = from; i < to; i++) {
+    const r = rowToReading(rows[i], mapping, sensorId, ctx);
     if (r.ok) ok.push(r.reading);
-    else failed.push({ line: i + 2, reason: r.reason, row: rows[i] });
+    else onFailure({ line: i + 2, reason: r.reason, row: rows[i] });
   }
+  return ok;
+}
+
+export async function convertRows(rows: string[][], mapping: CsvMapping, sensorId: number, limit = Infinity) {
+  const failed: Failure[] = [];
+  const ok = convertRange(rows, 0, Math.min(rows.length, limit), mapping, sensorId, await conversion(sensorId), (f) => failed.push(f));
   return { ok, failed };
 }
 
+const IMPORT_BATCH = 10_000;
+
+/**
+ * Writes the valid rows in batches of 10,000, each converted while the one before it is being
+ * written: converting is this process's work and writing is PostgreSQL's, so the two overlap. A
+ * batch that fails stops the import there; the batches before it stay stored (importing the file
+ * again adds only what is missing).
+ */
 export async function importCsv(rows: string[][], mapping: CsvMapping, sensorId: number) {
-  const { ok, failed } = await convertRows(rows, mapping, sensorId);
+  const ctx = await conversion(sensorId);
+  const firstFailures: Failure[] = [];
+  let failed = 0;
+  let valid = 0;
   let stored = 0;
-  for (let i = 0; i < ok.length; i += 10_000) {
-    stored += (await writer().write(ok.slice(i, i + 10_000))).inserted;
+  let writing: Promise<WriteResult> | null = null;
+  for (let i = 0; i < rows.length; i += IMPORT_BATCH) {
+    const ok = convertRange(rows, i, Math.min(rows.length, i + IMPORT_BATCH), mapping, sensorId, ctx, (f) => {
+      if (failed++ < 50) firstFailures.push(f);
+    });
+    valid += ok.length;
+    if (writing) stored += (await writing).inserted;
+    writing = ok.length > 0 ? writer().write(ok) : null;
   }
+  if (writing) stored += (await writing).inserted;
   recordRejectionsSoon(
-    failed.slice(0, 50).map((f) => ({ sensorId, source: "csv" as const, reason: f.reason, payload: f.row.join(",").slice(0, 300) })),
+    firstFailures.map((f) => ({ sensorId, source: "csv" as const, reason: f.reason, payload: f.row.join(",").slice(0, 300) })),
   );
-  return { rows: rows.length, valid: ok.length, stored, duplicates: ok.length - stored, failed: failed.length, firstFailures: failed.slice(0, 20) };
+  return { rows: rows.length, valid, stored, duplicates: valid - stored, failed, firstFailures: firstFailures.slice(0, 20) };
 }
