@@ -653,4 +653,21 @@ describe("CSV import", () => {
     ]);
     expectRollupsMatch(roll, await freshRollups(spot.id));
   });
+
+  it("imports a file of several 10,000-row batches with bad rows on both sides of a batch's edge, and reports their lines", async () => {
+    const { spot, sensor } = await setup();
+    const start = Date.UTC(2025, 2, 1);
+    // 25,000 data rows (file lines 2–25,001). Rows 10,000 and 10,001 straddle the first batch's
+    // edge (file lines 10,001 and 10,002); row 24,999 is the file's last line.
+    const bad = new Set([0, 9_999, 10_000, 20_500, 24_999]);
+    const rows = Array.from({ length: 25_000 }, (_, k) => [bad.has(k) ? "not a time" : new Date(start + k * 60_000).toISOString(), "21.5", "55"]);
+    const mapping = { timestamp: 0, temperature: 1, humidity: 2, lux: null, unit: "C" as const, dateFormat: "iso" as const, timeZone: "UTC" };
+    const first = await importCsv(rows, mapping, sensor.id);
+    expect(first).toMatchObject({ rows: 25_000, valid: 24_995, stored: 24_995, duplicates: 0, failed: 5 });
+    expect(first.firstFailures.map((f) => f.line)).toEqual([2, 10_001, 10_002, 20_502, 25_001]);
+    const again = await importCsv(rows, mapping, sensor.id);
+    expect(again).toMatchObject({ valid: 24_995, stored: 0, duplicates: 24_995, failed: 5 });
+    expect((await readingsOf(sensor.id)).length).toBe(24_995);
+    expectRollupsMatch(await storedRollups(spot.id), await freshRollups(spot.id));
+  });
 });
