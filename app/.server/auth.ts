@@ -2,11 +2,10 @@
 // deprecated): an opaque random token in the cookie, its SHA-256 as the session id in PostgreSQL,
 // a 30-day expiry renewed when less than half remains, and deletion on sign-out.
 import { hash, verify } from "@node-rs/argon2";
-import { encodeBase32LowerCaseNoPadding } from "@oslojs/encoding";
 import { and, eq, gt, sql } from "drizzle-orm";
 import { data } from "react-router";
 import { db } from "~/.server/db";
-import { sha256Hex } from "~/.server/secrets";
+import { randomToken, sha256Hex } from "~/.server/secrets";
 import { memberships, sessions, signInFailures, users, type Role, type User } from "~/db/schema.server";
 
 // OWASP Password Storage Cheat Sheet, argon2id minimum: m = 19 MiB, t = 2, p = 1.
@@ -25,11 +24,7 @@ export const SESSION_COOKIE = "nw_session";
 export const SESSION_DAYS = 30;
 const DAY = 24 * 60 * 60 * 1000;
 
-export function generateSessionToken(): string {
-  const bytes = new Uint8Array(20);
-  crypto.getRandomValues(bytes);
-  return encodeBase32LowerCaseNoPadding(bytes);
-}
+export const generateSessionToken = randomToken;
 
 export const sessionIdFromToken = sha256Hex;
 

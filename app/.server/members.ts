@@ -2,12 +2,11 @@
 // written to audit_log in the same transaction. The last owner can neither leave nor be demoted or
 // removed: the owner rows of the site are locked first, so two owners demoting each other at once
 // cannot both succeed.
-import { encodeBase32LowerCaseNoPadding } from "@oslojs/encoding";
 import { and, desc, eq, gt, isNull, sql } from "drizzle-orm";
 import { db, type Db } from "~/.server/db";
 import { publicUrl } from "~/.server/env";
 import { sendMail } from "~/.server/mail";
-import { sha256Hex } from "~/.server/secrets";
+import { randomToken, sha256Hex } from "~/.server/secrets";
 import { auditLog, invitations, memberships, sites, users, type Role } from "~/db/schema.server";
 
 export const INVITATION_DAYS = 7;
@@ -20,11 +19,7 @@ type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
 
 export const invitationTokenHash = sha256Hex;
 
-function newInvitationToken() {
-  const bytes = new Uint8Array(20);
-  crypto.getRandomValues(bytes);
-  return encodeBase32LowerCaseNoPadding(bytes);
-}
+const newInvitationToken = randomToken;
 
 export const invitationUrl = (token: string) => `${publicUrl()}/invite/${token}`;
 

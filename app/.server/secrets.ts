@@ -3,12 +3,18 @@ import { sha256 } from "@oslojs/crypto/sha2";
 import { constantTimeEqual } from "@oslojs/crypto/subtle";
 import { encodeBase32LowerCaseNoPadding, encodeHexLowerCase } from "@oslojs/encoding";
 
-/** A sensor's secret: 160 random bits, base32 so that it types on a phone and fits firmware forms. */
-export function newSensorSecret() {
+/**
+ * 160 random bits in lower-case base32, as the Lucia guide makes session tokens: sessions,
+ * invitations and sensor secrets (which then type on a phone and fit firmware forms).
+ */
+export function randomToken() {
   const bytes = new Uint8Array(20);
   crypto.getRandomValues(bytes);
   return encodeBase32LowerCaseNoPadding(bytes);
 }
+
+/** A sensor's secret. */
+export const newSensorSecret = randomToken;
 
 /** The hex SHA-256 of a random token: what is stored of session tokens, invitations and sensor secrets. */
 export const sha256Hex = (token: string) => encodeHexLowerCase(sha256(new TextEncoder().encode(token)));
