@@ -4,8 +4,8 @@
 // product: the bulk paths, profiles and fit table are timed in this process, and under tsx (its
 // helper that names every closure) converting the CSV import's rows took 2.7 times as long.
 // No figure here is asserted anywhere: the targets are printed beside the numbers.
-import { execFile, spawn } from "node:child_process";
-import { mkdirSync, readFileSync, rmSync, writeFileSync } from "node:fs";
+import { execFile, execFileSync, spawn } from "node:child_process";
+import { existsSync, mkdirSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
 import { promisify } from "node:util";
@@ -41,6 +41,7 @@ type Row = { figure: string; ours: string; baseline: string; ratio: string; targ
 const rows: Row[] = [];
 const fmt = (n: number, d = 0) => n.toLocaleString("en", { maximumFractionDigits: d, minimumFractionDigits: d });
 const log = (s: string) => console.log(`[bench] ${s}`);
+const CHROMIUM = process.env.CHROMIUM_PATH ?? "/usr/bin/chromium";
 const median = (xs: number[]) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
 
 /** A full collection before a measured section (npm run bench runs Node with --expose-gc), so garbage left by the setup is not paid for inside a timing. */
@@ -157,7 +158,22 @@ async function directWrite(w: ReadingWriter, readings: Reading[], batch = 1000) 
   for (let i = 0; i < readings.length; i += batch) await w.write(readings.slice(i, i + batch));
 }
 
+/**
+ * The uPlot figure draws in Debian's Chromium: installed here when missing and running as root (as
+ * `npm test` does), otherwise a clear message before any of the run's minutes are spent.
+ */
+function ensureChromium() {
+  if (existsSync(CHROMIUM)) return;
+  if (process.getuid?.() !== 0 || process.env.CHROMIUM_PATH) {
+    throw new Error(`Chromium not found at ${CHROMIUM}. Install Debian's package (sudo apt-get install -y chromium) or set CHROMIUM_PATH.`);
+  }
+  log("installing Debian's chromium package (first run only)…");
+  execFileSync("apt-get", ["update", "-qq"], { stdio: "inherit" });
+  execFileSync("apt-get", ["install", "-y", "-qq", "chromium"], { stdio: "inherit", env: { ...process.env, DEBIAN_FRONTEND: "noninteractive" } });
+}
+
 async function main() {
+  ensureChromium();
   rmSync(DIR, { recursive: true, force: true });
   const pg = await startEmbeddedPostgres({ dataDir: `${DIR}/postgres`, port: PG_PORT, database: "bench", log: () => {} });
   process.env.DATABASE_URL = pg.url;
@@ -459,7 +475,7 @@ async function bench() {
 
 async function uplotDraw(payload: string): Promise<number> {
   const browser = await chromium.launch({
-    executablePath: process.env.CHROMIUM_PATH ?? "/usr/bin/chromium",
+    executablePath: CHROMIUM,
     args: ["--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run", "--disable-background-networking", "--disable-component-update", "--disable-sync"],
   });
   try {
