@@ -6,6 +6,7 @@ import { getSite, listSpots } from "~/.server/sites";
 import { Chart } from "~/components/chart";
 import { compareSpec, MONTHS_SHORT, SPOT_COLOURS, SPOT_DASH } from "~/components/spot-charts";
 import { compareHeadlines, seasonsOfYear, type SeasonFigures } from "~/domain/season/compare";
+import { zonedToUtc } from "~/lib/time";
 import { formatDelta, formatTemp, type TempUnit } from "~/lib/units";
 import type { Route } from "./+types/compare";
 
@@ -16,7 +17,12 @@ const monthStart = (ym: string) => {
   const [, y, m] = MONTH_RE.exec(ym)!;
   return { y: Number(y), m: Number(m) };
 };
-const ymOf = (d: Date) => `${d.getUTCFullYear()}-${String(d.getUTCMonth() + 1).padStart(2, "0")}`;
+const ym = (y: number, m: number) => {
+  const d = new Date(Date.UTC(y, m - 1, 1)); // carries a month of 0 or 13 into the year
+  return `${d.getUTCFullYear()}-${String(d.getUTCMonth() + 1).padStart(2, "0")}`;
+};
+/** The instant the site's local month `m` (1–12, or beyond: carried into the year) of `y` begins. */
+const localMonthStart = (y: number, m: number, timeZone: string) => zonedToUtc({ year: y, month: m, day: 1 }, timeZone);
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { siteId, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
@@ -24,9 +30,10 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const spots = await listSpots(siteId);
   const q = new URL(request.url).searchParams;
   const now = new Date();
-  // The twelve whole months before this one, so every season has all its months.
-  const defaultTo = ymOf(new Date(Date.UTC(now.getUTCFullYear(), now.getUTCMonth() - 1, 1)));
-  const defaultFrom = ymOf(new Date(Date.UTC(now.getUTCFullYear(), now.getUTCMonth() - 12, 1)));
+  // The twelve whole months before this one at the site, so every season has all its months.
+  const here = monthStart(new Intl.DateTimeFormat("en-CA", { timeZone: site.timeZone, year: "numeric", month: "2-digit" }).format(now));
+  const defaultTo = ym(here.y, here.m - 1);
+  const defaultFrom = ym(here.y, here.m - 12);
   let from = q.get("from") ?? defaultFrom;
   let to = q.get("to") ?? defaultTo;
   const problems: string[] = [];
@@ -41,15 +48,15 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const f = monthStart(from);
   const t = monthStart(to);
   if ((t.y - f.y) * 12 + (t.m - f.m) > 35) problems.push("Compare at most three years at a time; showing the last three years of the period.");
-  const toDate = new Date(Math.min(now.getTime(), Date.UTC(t.y, t.m, 1)));
-  const fromDate = new Date(Math.max(Date.UTC(f.y, f.m - 1, 1), Date.UTC(t.y - 3, t.m, 1)));
+  // Months are the site's: a spot's rollups are kept by local hour.
+  const toDate = new Date(Math.min(now.getTime(), localMonthStart(t.y, t.m + 1, site.timeZone).getTime()));
+  const fromDate = new Date(Math.max(localMonthStart(f.y, f.m, site.timeZone).getTime(), localMonthStart(t.y - 3, t.m + 1, site.timeZone).getTime()));
 
   const asked = q.getAll("spots").map(Number).filter((id) => spots.some((s) => s.id === id));
   const chosen = q.has("spots") ? [...new Set(asked)] : spots.slice(0, 2).map((s) => s.id);
   if (q.has("spots") && chosen.length < 2) problems.push("Choose at least two spots to compare.");
   if (chosen.length > 4) problems.push("Compare up to four spots at a time; showing the first four chosen.");
   const ids = chosen.slice(0, 4);
-  // Local-month boundaries would be more exact; the site's offset from UTC moves at most a few hours of the first and last day.
   const profiles = ids.length >= 2 ? await spotProfiles(site, ids, now, { range: { from: fromDate, to: toDate } }) : new Map();
   const compared = ids.map((id) => {
     const spot = spots.find((s) => s.id === id)!;
