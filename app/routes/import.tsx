@@ -64,7 +64,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   };
   if (form.get("intent") === "import") {
     const result = await importCsv(parsed.rows, mapping, sensor.id);
-    return { imported: result };
+    return data({ imported: result }, { status: result.stopped ? 503 : 200 });
   }
   const sample = await convertRows(parsed.rows, mapping, sensor.id, 200);
   const preview: Preview = {
@@ -238,12 +238,19 @@ export default function Import({ loaderData }: Route.ComponentProps) {
 
       {imported ? (
         <section className="card" data-testid="csv-result" role="status">
-          <h2 className="h2">Imported</h2>
+          <h2 className="h2">{imported.stopped ? "Import stopped part-way" : "Imported"}</h2>
           <p className="mt-2">
             {imported.stored.toLocaleString("en")} new readings stored of {imported.rows.toLocaleString("en")} rows
             {imported.duplicates > 0 ? `; ${imported.duplicates.toLocaleString("en")} were already stored` : ""}
             {imported.failed > 0 ? `; ${imported.failed.toLocaleString("en")} rows skipped` : ""}.
           </p>
+          {imported.stopped ? (
+            <p className="error mt-2" role="alert" data-testid="csv-stopped">
+              The rows from line {imported.stopped.line.toLocaleString("en")} on could not be stored ({imported.stopped.reason}). Everything
+              before that line is kept. Import the same file again when the server is back: rows already stored are skipped, so
+              only the rest is added.
+            </p>
+          ) : null}
           <button type="button" className="btn-quiet mt-3" onClick={() => setKey((k) => k + 1)}>
             Import another file
           </button>

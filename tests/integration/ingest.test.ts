@@ -670,4 +670,36 @@ describe("CSV import", () => {
     expect((await readingsOf(sensor.id)).length).toBe(24_995);
     expectRollupsMatch(await storedRollups(spot.id), await freshRollups(spot.id));
   });
+
+  it("stops at a batch the database refuses, says at which line, keeps what came before, and a second import adds the rest", async () => {
+    const { spot, sensor } = await setup();
+    const start = Date.UTC(2025, 4, 1);
+    const rows = Array.from({ length: 25_000 }, (_, k) => [new Date(start + k * 60_000).toISOString(), "20.5", "60"]);
+    const mapping = { timestamp: 0, temperature: 1, humidity: 2, lux: null, unit: "C" as const, dateFormat: "iso" as const, timeZone: "UTC" };
+    // A real refusal from PostgreSQL, for this sensor's rows of the second batch (rows 10,000–19,999) only.
+    const cut = new Date(start + 12_000 * 60_000).toISOString();
+    await pool().query(`CREATE FUNCTION refuse_csv_test_${sensor.id}() RETURNS trigger LANGUAGE plpgsql AS $$
+      BEGIN
+        IF NEW.sensor_id = ${sensor.id} AND NEW.measured_at >= '${cut}' THEN RAISE EXCEPTION 'disk full (test)'; END IF;
+        RETURN NEW;
+      END $$`);
+    await pool().query(`CREATE TRIGGER refuse_csv_test_${sensor.id} BEFORE INSERT ON readings FOR EACH ROW EXECUTE FUNCTION refuse_csv_test_${sensor.id}()`);
+    let first;
+    try {
+      first = await importCsv(rows, mapping, sensor.id);
+    } finally {
+      await pool().query(`DROP TRIGGER refuse_csv_test_${sensor.id} ON readings`);
+      await pool().query(`DROP FUNCTION refuse_csv_test_${sensor.id}()`);
+    }
+    expect(first).toMatchObject({ rows: 25_000, stored: 10_000, duplicates: 0, failed: 0 });
+    expect(first.stopped).toMatchObject({ line: 10_002 });
+    expect(first.stopped!.reason).toContain("disk full (test)");
+    expect((await readingsOf(sensor.id)).length).toBe(10_000);
+    expectRollupsMatch(await storedRollups(spot.id), await freshRollups(spot.id));
+
+    const again = await importCsv(rows, mapping, sensor.id);
+    expect(again).toMatchObject({ valid: 25_000, stored: 15_000, duplicates: 10_000, stopped: null });
+    expect((await readingsOf(sensor.id)).length).toBe(25_000);
+    expectRollupsMatch(await storedRollups(spot.id), await freshRollups(spot.id));
+  });
 });

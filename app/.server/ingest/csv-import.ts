@@ -71,27 +71,42 @@ const IMPORT_BATCH = 10_000;
 /**
  * Writes the valid rows in batches of 10,000, each converted while the one before it is being
  * written: converting is this process's work and writing is PostgreSQL's, so the two overlap. A
- * batch that fails stops the import there; the batches before it stay stored (importing the file
- * again adds only what is missing).
+ * batch that cannot be written (the database gone, say) stops the import there, and the result
+ * says at which line: the batches before it stay stored, and importing the file again adds only
+ * what is missing.
  */
 export async function importCsv(rows: string[][], mapping: CsvMapping, sensorId: number) {
   const ctx = await conversion(sensorId);
   const firstFailures: Failure[] = [];
   let failed = 0;
   let valid = 0;
+  let written = 0; // valid rows in batches that committed
   let stored = 0;
-  let writing: Promise<WriteResult> | null = null;
-  for (let i = 0; i < rows.length; i += IMPORT_BATCH) {
+  let stopped = null as { line: number; reason: string } | null;
+  let writing: { result: Promise<WriteResult>; rows: number; line: number } | null = null;
+  const settle = async () => {
+    if (!writing) return;
+    const w = writing;
+    writing = null;
+    try {
+      stored += (await w.result).inserted;
+      written += w.rows;
+    } catch (err) {
+      console.error(`[csv] import for sensor ${sensorId} stopped at line ${w.line}:`, err);
+      stopped = { line: w.line, reason: err instanceof Error ? err.message : String(err) };
+    }
+  };
+  for (let i = 0; i < rows.length && !stopped; i += IMPORT_BATCH) {
     const ok = convertRange(rows, i, Math.min(rows.length, i + IMPORT_BATCH), mapping, sensorId, ctx, (f) => {
       if (failed++ < 50) firstFailures.push(f);
     });
     valid += ok.length;
-    if (writing) stored += (await writing).inserted;
-    writing = ok.length > 0 ? writer().write(ok) : null;
+    await settle();
+    if (!stopped && ok.length > 0) writing = { result: writer().write(ok), rows: ok.length, line: i + 2 };
   }
-  if (writing) stored += (await writing).inserted;
+  await settle();
   recordRejectionsSoon(
     firstFailures.map((f) => ({ sensorId, source: "csv" as const, reason: f.reason, payload: f.row.join(",").slice(0, 300) })),
   );
-  return { rows: rows.length, valid, stored, duplicates: valid - stored, failed, firstFailures: firstFailures.slice(0, 20) };
+  return { rows: rows.length, valid, stored, duplicates: written - stored, failed, firstFailures: firstFailures.slice(0, 20), stopped };
 }
