@@ -19,7 +19,6 @@ type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
 
 export const invitationTokenHash = sha256Hex;
 
-const newInvitationToken = randomToken;
 
 export const invitationUrl = (token: string) => `${publicUrl()}/invite/${token}`;
 
@@ -39,7 +38,7 @@ export async function inviteMember(opts: { siteId: number; actor: { id: number; 
     .innerJoin(users, eq(users.id, memberships.userId))
     .where(and(eq(memberships.siteId, opts.siteId), eq(users.email, email)));
   if (existing) throw new MembershipError(`${email} is already a member of this site.`);
-  const token = newInvitationToken();
+  const token = randomToken();
   const expiresAt = new Date(now.getTime() + INVITATION_DAYS * 86_400_000);
   const [site] = await db().select({ name: sites.name }).from(sites).where(eq(sites.id, opts.siteId));
   const invitation = await db().transaction(async (tx) => {

@@ -1,11 +1,12 @@
 // Embedded PostgreSQL: Debian's server binaries, a cluster in a git-ignored folder of the project,
 // listening on 127.0.0.1 only. PostgreSQL refuses to run as root, so as root the cluster belongs to
 // Debian's `postgres` system user and every server command runs through `runuser`.
-import { execFileSync, spawnSync } from "node:child_process";
+import { spawnSync } from "node:child_process";
 import { randomBytes } from "node:crypto";
 import { chmodSync, chownSync, existsSync, mkdirSync, readdirSync, readFileSync, writeFileSync } from "node:fs";
 import path from "node:path";
 import pg from "pg";
+import { aptInstall, isRoot } from "./debian";
 
 export type EmbeddedPostgres = { url: string; stop: () => Promise<void> };
 
@@ -18,8 +19,6 @@ function findBinDir(): string | undefined {
   return versions[0] ? path.join(root, versions[0], "bin") : undefined;
 }
 
-const isRoot = () => process.getuid?.() === 0;
-
 export function ensurePostgresInstalled(log: (s: string) => void = console.log): string {
   let bin = findBinDir();
   if (bin) return bin;
@@ -29,12 +28,7 @@ export function ensurePostgresInstalled(log: (s: string) => void = console.log):
         "Install Debian's server package (sudo apt-get install -y postgresql), or set DATABASE_URL to a server of your own.",
     );
   }
-  log("Installing Debian's postgresql package (first run only)…");
-  execFileSync("apt-get", ["update", "-qq"], { stdio: "inherit" });
-  execFileSync("apt-get", ["install", "-y", "-qq", "postgresql"], {
-    stdio: "inherit",
-    env: { ...process.env, DEBIAN_FRONTEND: "noninteractive" },
-  });
+  aptInstall("postgresql", log);
   bin = findBinDir();
   if (!bin) throw new Error("apt-get installed postgresql but no server binaries were found");
   return bin;

@@ -6,7 +6,8 @@ import { getSite, listSpots } from "~/.server/sites";
 import { Chart } from "~/components/chart";
 import { compareSpec, MONTHS_SHORT, SPOT_COLOURS, SPOT_DASH } from "~/components/spot-charts";
 import { compareHeadlines, seasonsOfYear, type SeasonFigures } from "~/domain/season/compare";
-import { zonedToUtc } from "~/lib/time";
+import { monthKey } from "~/domain/season/local-time";
+import { toLocalInputValue, zonedToUtc } from "~/lib/time";
 import { formatDelta, formatTemp, type TempUnit } from "~/lib/units";
 import type { Route } from "./+types/compare";
 
@@ -19,7 +20,7 @@ const monthStart = (ym: string) => {
 };
 const ym = (y: number, m: number) => {
   const d = new Date(Date.UTC(y, m - 1, 1)); // carries a month of 0 or 13 into the year
-  return `${d.getUTCFullYear()}-${String(d.getUTCMonth() + 1).padStart(2, "0")}`;
+  return monthKey(d.getUTCFullYear(), d.getUTCMonth() + 1);
 };
 /** The instant the site's local month `m` (1–12, or beyond: carried into the year) of `y` begins. */
 const localMonthStart = (y: number, m: number, timeZone: string) => zonedToUtc({ year: y, month: m, day: 1 }, timeZone);
@@ -31,7 +32,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const q = new URL(request.url).searchParams;
   const now = new Date();
   // The twelve whole months before this one at the site, so every season has all its months.
-  const here = monthStart(new Intl.DateTimeFormat("en-CA", { timeZone: site.timeZone, year: "numeric", month: "2-digit" }).format(now));
+  const here = monthStart(toLocalInputValue(now, site.timeZone).slice(0, 7));
   const defaultTo = ym(here.y, here.m - 1);
   const defaultFrom = ym(here.y, here.m - 12);
   let from = q.get("from") ?? defaultFrom;

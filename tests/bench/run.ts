@@ -4,7 +4,7 @@
 // product: the bulk paths, profiles and fit table are timed in this process, and under tsx (its
 // helper that names every closure) converting the CSV import's rows took 2.7 times as long.
 // No figure here is asserted anywhere: the targets are printed beside the numbers.
-import { execFile, execFileSync, spawn } from "node:child_process";
+import { execFile, spawn } from "node:child_process";
 import { existsSync, mkdirSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
@@ -13,6 +13,7 @@ import { build as esbuild } from "esbuild";
 import { from as copyFrom } from "pg-copy-streams";
 import { chromium } from "playwright-core";
 import { closeDb, pool, runMigrations } from "../../app/.server/db";
+import { aptInstall, isRoot } from "../../app/.server/debian";
 import { hashSensorSecret } from "../../app/.server/secrets";
 import { importCsv, parseCsv } from "../../app/.server/ingest/csv-import";
 import { handleHttpIngest } from "../../app/.server/ingest/http";
@@ -164,12 +165,10 @@ async function directWrite(w: ReadingWriter, readings: Reading[], batch = 1000) 
  */
 function ensureChromium() {
   if (existsSync(CHROMIUM)) return;
-  if (process.getuid?.() !== 0 || process.env.CHROMIUM_PATH) {
+  if (!isRoot() || process.env.CHROMIUM_PATH) {
     throw new Error(`Chromium not found at ${CHROMIUM}. Install Debian's package (sudo apt-get install -y chromium) or set CHROMIUM_PATH.`);
   }
-  log("installing Debian's chromium package (first run only)…");
-  execFileSync("apt-get", ["update", "-qq"], { stdio: "inherit" });
-  execFileSync("apt-get", ["install", "-y", "-qq", "chromium"], { stdio: "inherit", env: { ...process.env, DEBIAN_FRONTEND: "noninteractive" } });
+  aptInstall("chromium", log);
 }
 
 async function main() {

@@ -2,7 +2,7 @@
 // line count before the parser sees the file; a file imported twice adds nothing the second time.
 import { parse } from "csv-parse/sync";
 import { CSV_MAX_BYTES, CSV_MAX_ROWS, guessDelimiter, rowToReading, type CsvMapping } from "~/domain/ingest/csv";
-import type { Reading } from "~/domain/ingest/payload";
+import type { Reading, SpotKindForLimits } from "~/domain/ingest/payload";
 import { recordRejectionsSoon } from "~/.server/ingest/rejections";
 import { sensorInfo } from "~/.server/ingest/sensors";
 import { writer, type WriteResult } from "~/.server/ingest/writer";
@@ -42,7 +42,7 @@ export function parseCsv(bytes: Uint8Array): { headers: string[]; rows: string[]
 }
 
 type Failure = { line: number; reason: string; row: string[] };
-type Conversion = { now: Date; kind: Parameters<typeof rowToReading>[3]["kind"] };
+type Conversion = { now: Date; kind: SpotKindForLimits };
 
 async function conversion(sensorId: number): Promise<Conversion> {
   const info = await sensorInfo(sensorId);
