@@ -74,7 +74,9 @@ describe("rollup cache", () => {
     const sensor = await makeSensor(site, spot);
     const w = new ReadingWriter();
     const logged = async () => Number((await pool().query("SELECT count(*) FROM rollup_changes WHERE spot_id = $1", [spot.id])).rows[0].count);
-    await w.write([{ sensorId: sensor.id, measuredAt: new Date(Date.now() - 60_000), temperature: 20, humidity: 50, lux: null, battery: null }]);
+    // A reading of the current hour (London's hours start on UTC's): "a minute ago" was
+    // in the hour before during the first minute of each hour, and that hour is over an hour old.
+    await w.write([{ sensorId: sensor.id, measuredAt: new Date(Math.floor(Date.now() / HOUR) * HOUR), temperature: 20, humidity: 50, lux: null, battery: null }]);
     expect(await logged()).toBe(0);
     await w.write([{ sensorId: sensor.id, measuredAt: new Date(Date.now() - 3 * HOUR), temperature: 20, humidity: 50, lux: null, battery: null }]);
     expect(await logged()).toBe(1);
