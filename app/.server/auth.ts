@@ -5,6 +5,7 @@ import { hash, verify } from "@node-rs/argon2";
 import { and, eq, gt, sql } from "drizzle-orm";
 import { data } from "react-router";
 import { db } from "~/.server/db";
+import { paramId } from "~/.server/ids";
 import { randomToken, sha256Hex } from "~/.server/secrets";
 import { memberships, sessions, signInFailures, users, type Role, type User } from "~/db/schema.server";
 
@@ -126,8 +127,7 @@ export const WRITERS: Role[] = ["owner", "carer"];
 // role is not allowed gets 403.
 export async function requireSiteRole(request: Request, siteId: number | string | undefined, roles: Role[]) {
   const user = await requireUser(request);
-  const id = Number(siteId);
-  if (!Number.isInteger(id) || id <= 0) notFound();
+  const id = paramId(siteId);
   const [m] = await db()
     .select({ role: memberships.role })
     .from(memberships)

@@ -3,6 +3,8 @@
 import { and, asc, eq, inArray, sql } from "drizzle-orm";
 import { notFound } from "~/.server/auth";
 import { db } from "~/.server/db";
+import { cleanText, toId } from "~/.server/ids";
+import { ensureColdWatch } from "~/.server/watches";
 import { auditLog, customPlants, spotPlants, spots, wishlist } from "~/db/schema.server";
 import { PLANT_LIBRARY, type PlantProfile } from "~/domain/plants/library";
 import { z } from "zod";
@@ -91,6 +93,7 @@ export function mostTender<T extends { plantKey: string }>(standing: T[], plants
 export async function addToSpot(siteId: number, actorId: number, spotId: number, v: { plantKey: string; nickname: string; pots: number }) {
   await db().insert(spotPlants).values({ spotId, ...v });
   await db().insert(auditLog).values({ siteId, actorId, action: "plant.place", detail: { spotId, ...v } });
+  await ensureColdWatch({ siteId, spotId, actorId });
 }
 
 async function inventoryRow(siteId: number, id: number) {
@@ -107,6 +110,7 @@ export async function moveToSpot(siteId: number, actorId: number, id: number, to
   const row = await inventoryRow(siteId, id);
   await db().update(spotPlants).set({ spotId: toSpotId, addedAt: sql`now()` }).where(eq(spotPlants.id, row.id));
   await db().insert(auditLog).values({ siteId, actorId, action: "plant.move", detail: { id, from: row.spotId, to: toSpotId } });
+  await ensureColdWatch({ siteId, spotId: toSpotId, actorId });
 }
 
 export async function removeFromSpot(siteId: number, actorId: number, id: number) {
@@ -144,8 +148,8 @@ export function parseWish(form: FormData, plantKey: string) {
 }
 
 const addSchema = z.object({
-  plantKey: z.string().min(1),
-  nickname: z.string().trim().max(60, "Keep the name under 60 characters").default(""),
+  plantKey: z.string().min(1).max(120),
+  nickname: z.string().transform(cleanText).pipe(z.string().trim().max(60, "Keep the name under 60 characters")).default(""),
   pots: potsSchema.default(1),
 });
 
@@ -164,14 +168,14 @@ export async function inventoryAction(form: FormData, ctx: { siteId: number; spo
     return { status: 200 as const, error: null };
   }
   if (intent === "plant-move" || intent === "plant-remove") {
-    const id = Number(form.get("id"));
-    if (!Number.isInteger(id)) return { status: 400 as const, error: "Choose a plant." };
+    const id = toId(form.get("id"));
+    if (id === null) return { status: 400 as const, error: "Choose a plant." };
     if (intent === "plant-remove") {
       await removeFromSpot(ctx.siteId, ctx.actorId, id);
       return { status: 200 as const, error: null };
     }
-    const to = Number(form.get("toSpotId"));
-    const [target] = Number.isInteger(to) ? await db().select({ id: spots.id }).from(spots).where(and(eq(spots.id, to), eq(spots.siteId, ctx.siteId))) : [];
+    const to = toId(form.get("toSpotId"));
+    const [target] = to !== null ? await db().select({ id: spots.id }).from(spots).where(and(eq(spots.id, to), eq(spots.siteId, ctx.siteId))) : [];
     if (!target) return { status: 400 as const, error: "Choose the spot to move it to." };
     await moveToSpot(ctx.siteId, ctx.actorId, id, target.id);
     return { status: 200 as const, error: null };

@@ -3,6 +3,7 @@
 import { and, asc, desc, eq, isNull, sql } from "drizzle-orm";
 import { notFound } from "~/.server/auth";
 import { db } from "~/.server/db";
+import { paramId } from "~/.server/ids";
 import { memberships, placements, sensors, sites, spots, users } from "~/db/schema.server";
 
 export async function mySites(userId: number) {
@@ -31,8 +32,7 @@ export async function listSpots(siteId: number) {
 }
 
 export async function getSpot(siteId: number, spotId: number | string | undefined) {
-  const id = Number(spotId);
-  if (!Number.isInteger(id)) notFound();
+  const id = paramId(spotId);
   const [spot] = await db().select().from(spots).where(and(eq(spots.id, id), eq(spots.siteId, siteId)));
   if (!spot) notFound();
   return spot;
@@ -58,8 +58,7 @@ export async function listSensors(siteId: number) {
 }
 
 export async function getSensor(siteId: number, sensorId: number | string | undefined) {
-  const id = Number(sensorId);
-  if (!Number.isInteger(id)) notFound();
+  const id = paramId(sensorId);
   const [sensor] = await db().select().from(sensors).where(and(eq(sensors.id, id), eq(sensors.siteId, siteId)));
   if (!sensor) notFound();
   return sensor;

@@ -2,6 +2,7 @@ import { data, Form, Link, useFetcher } from "react-router";
 import { useEffect } from "react";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
 import { acknowledge, getPreferences, savePreferences, siteEvents } from "~/.server/alerts/queries";
+import { cleanText } from "~/.server/ids";
 import { getSite, listSpots } from "~/.server/sites";
 import { db } from "~/.server/db";
 import { alertRules } from "~/db/schema.server";
@@ -17,7 +18,7 @@ export const meta: Route.MetaFunction = () => [{ title: "Alerts · Nichewise" }]
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { siteId, role, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
-  const [site, events, prefs, spotList] = await Promise.all([getSite(siteId), siteEvents(siteId, { limit: 50 }), getPreferences(user.id, siteId), listSpots(siteId)]);
+  const [site, events, prefs, spotList] = await Promise.all([getSite(siteId), siteEvents(siteId, { limit: 50 }), getPreferences(user.id, siteId, role), listSpots(siteId)]);
   const rules = spotList.length
     ? await db().select({ spotId: alertRules.spotId, kind: alertRules.kind, paused: alertRules.paused }).from(alertRules).where(inArray(alertRules.spotId, spotList.map((s) => s.id)))
     : [];
@@ -37,8 +38,8 @@ export async function action({ request, params }: Route.ActionArgs) {
     // Every member chooses their own e-mails, mentors included.
     const { siteId, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
     const kinds = form.getAll("kinds").map(String).filter((k): k is AlertKind => ALERT_KINDS.includes(k as AlertKind));
-    const fromText = String(form.get("quietFrom") ?? "").trim();
-    const toText = String(form.get("quietTo") ?? "").trim();
+    const fromText = cleanText(String(form.get("quietFrom") ?? "")).trim().slice(0, 10);
+    const toText = cleanText(String(form.get("quietTo") ?? "")).trim().slice(0, 10);
     const quietFrom = fromText ? clockToMinute(fromText) : null;
     const quietTo = toText ? clockToMinute(toText) : null;
     const values = { email: form.get("email") === "on", kinds, quietFrom: fromText, quietTo: toText };
@@ -138,6 +139,11 @@ export default function SiteAlerts({ loaderData, actionData }: Route.ComponentPr
           </label>
           <fieldset>
             <legend className="label">Which kinds</legend>
+            {role === "mentor" ? (
+              <p className="hint mb-2" data-testid="mentor-cold-opt-in">
+                As a mentor you get cold-snap and silent-sensor e-mails only if you tick them here: the owner and carers are the ones who act on a cold night.
+              </p>
+            ) : null}
             <div className="flex flex-wrap gap-x-5 gap-y-2">
               {ALERT_KINDS.map((k) => (
                 <label key={k} className="inline-flex items-center gap-2 text-sm">

@@ -1,13 +1,12 @@
 import { data, Form, Link, useNavigation } from "react-router";
 import * as units from "~/lib/units";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
-import { db } from "~/.server/db";
-import { getRule, listRules, setPaused, suggestedColdWatch } from "~/.server/alerts/queries";
+import { getRule, listRules } from "~/.server/alerts/queries";
 import { getSpot } from "~/.server/sites";
-import { alertRules, type AlertRule } from "~/db/schema.server";
+import { addWatch, deleteWatch, setWatchPaused, suggestedColdWatch, updateWatch } from "~/.server/watches";
+import type { AlertRule } from "~/db/schema.server";
 import { describeCondition, formatDuration } from "~/domain/alerts/messages";
 import { ALERT_KINDS, KINDS, type AlertKind } from "~/domain/alerts/rules";
-import { eq } from "drizzle-orm";
 import type { Route } from "./+types/spots.$spotId.alerts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Alerts for ${data?.spot.name ?? "spot"} · Nichewise` }];
@@ -64,32 +63,30 @@ export async function action({ request, params }: Route.ActionArgs) {
   const unit = user.temperatureUnit;
   if (intent === "pause" || intent === "resume") {
     const rule = await getRule(spot.id, form.get("ruleId"));
-    await setPaused(rule, intent === "pause");
-    return { saved: rule.id };
+    const done = await setWatchPaused({ siteId, spot, actor: user, rule, paused: intent === "pause" });
+    return { saved: rule.id, notified: done.notified.length };
   }
   if (intent === "add") {
     const kind = String(form.get("kind")) as AlertKind;
     if (!ALERT_KINDS.includes(kind)) return data({ error: "Choose what to watch for.", ruleId: "new", values: {} as Values }, { status: 400 });
     const parsed = parseRule(form, kind, unit);
     if (!parsed.ok) return data({ error: parsed.error, ruleId: "new", values: { ...parsed.values, kind } }, { status: 400 });
-    const reason = kind === "cold" && form.get("useSuggestion") === "1" ? (await suggestedColdWatch(spot.id, siteId)).reason : "";
-    const [rule] = await db().insert(alertRules).values({ spotId: spot.id, kind, ...parsed.ok, reason }).returning({ id: alertRules.id });
+    const suggestion = kind === "cold" && form.get("useSuggestion") === "1" ? await suggestedColdWatch(spot.id, siteId) : null;
+    // The suggestion's reason stays only while its line is the one saved.
+    const reason = suggestion && Math.abs(suggestion.threshold - parsed.ok.threshold) < 0.1 ? suggestion.reason : "";
+    const rule = await addWatch({ siteId, spot, actorId: user.id, kind, settings: parsed.ok, reason });
     return { saved: rule.id };
   }
   if (intent === "update") {
     const rule = await getRule(spot.id, form.get("ruleId"));
     const parsed = parseRule(form, rule.kind, unit);
     if (!parsed.ok) return data({ error: parsed.error, ruleId: String(rule.id), values: parsed.values }, { status: 400 });
-    const changedThreshold = parsed.ok.threshold !== rule.threshold;
-    await db()
-      .update(alertRules)
-      .set({ ...parsed.ok, reason: changedThreshold ? "" : rule.reason, pendingSince: null, clearingSince: null })
-      .where(eq(alertRules.id, rule.id));
+    await updateWatch({ siteId, spot, actorId: user.id, rule, settings: parsed.ok });
     return { saved: rule.id };
   }
   if (intent === "delete") {
     const rule = await getRule(spot.id, form.get("ruleId"));
-    await db().delete(alertRules).where(eq(alertRules.id, rule.id));
+    await deleteWatch({ siteId, spot, actorId: user.id, rule });
     return { deleted: true };
   }
   throw data("Unknown action", { status: 400 });
@@ -196,7 +193,12 @@ export default function SpotAlerts({ loaderData, actionData }: Route.ComponentPr
                   <button className="btn-quiet" name="intent" value={r.paused ? "resume" : "pause"} disabled={busy}>
                     {r.paused ? "Resume watching" : "Pause (e.g. plants brought in)"}
                   </button>
-                  {r.paused ? null : <span className="hint ml-2">Pausing ends an open alert without an all-clear.</span>}
+                  {r.paused ? null : (
+                    <span className="hint ml-2">
+                      Pausing ends an open alert without an all-clear
+                      {r.kind === "cold" || r.kind === "silent" ? ", and the site's owners are e-mailed that you paused it" : ""}.
+                    </span>
+                  )}
                 </Form>
               ) : null}
             </li>
@@ -207,7 +209,13 @@ export default function SpotAlerts({ loaderData, actionData }: Route.ComponentPr
       {role === "owner" ? (
         <section className="card space-y-3">
           <h3 className="h2">Add a watch</h3>
-          {!hasCold ? (
+          {!hasCold && !suggestion ? (
+            <p className="text-sm text-muted" data-testid="no-cold-suggestion">
+              No plants are placed here, so there is no cold-snap watch to suggest: its line follows the most cold-tender plant in the spot.
+              {spot.indoor ? "" : " Placing a plant here adds one by itself (its lowest safe night plus 2 °C)."} You can still add one below.
+            </p>
+          ) : null}
+          {!hasCold && suggestion ? (
             <Form method="post" className="space-y-2 rounded border border-line p-3">
               <input type="hidden" name="intent" value="add" />
               <input type="hidden" name="kind" value="cold" />
@@ -222,7 +230,7 @@ export default function SpotAlerts({ loaderData, actionData }: Route.ComponentPr
           <details>
             <summary className="cursor-pointer text-sm font-medium">Another kind of watch</summary>
             <div className="mt-3 space-y-4">
-              {ALERT_KINDS.filter((k) => k !== "cold" || hasCold).map((k) => (
+              {ALERT_KINDS.filter((k) => k !== "cold" || hasCold || !suggestion).map((k) => (
                 <Form key={k} method="post" className="space-y-2 rounded border border-line p-3">
                   <input type="hidden" name="intent" value="add" />
                   <input type="hidden" name="kind" value={k} />

@@ -1,11 +1,9 @@
 import { parseWithZod } from "@conform-to/zod/v4";
-import { eq } from "drizzle-orm";
 import { Form, redirect } from "react-router";
 import { requireSiteRole } from "~/.server/auth";
-import { db } from "~/.server/db";
 import { getSpot } from "~/.server/sites";
+import { deleteSpot, updateSpot } from "~/.server/spots";
 import { SpotForm } from "~/components/spot-form";
-import { auditLog, spots } from "~/db/schema.server";
 import { spotSchema } from "~/lib/forms";
 import type { Route } from "./+types/spots.$spotId.edit";
 
@@ -24,18 +22,13 @@ export async function action({ request, params }: Route.ActionArgs) {
     if (formData.get("confirm") !== spot.name) {
       return { deleteError: `Type the spot's name, “${spot.name}”, to delete it.` };
     }
-    await db().delete(spots).where(eq(spots.id, spot.id));
-    await db().insert(auditLog).values({ siteId, actorId: user.id, action: "spot.delete", detail: { spotId: spot.id, name: spot.name } });
+    await deleteSpot({ siteId, actorId: user.id, spot });
     return redirect(`/sites/${siteId}`);
   }
   const submission = parseWithZod(formData, { schema: spotSchema });
   if (submission.status !== "success") return { result: submission.reply() };
   const { indoor, notes, ...rest } = submission.value;
-  await db()
-    .update(spots)
-    .set({ ...rest, indoor: indoor === "indoor", notes: notes ?? "" })
-    .where(eq(spots.id, spot.id));
-  await db().insert(auditLog).values({ siteId, actorId: user.id, action: "spot.update", detail: { spotId: spot.id, ...rest } });
+  await updateSpot({ siteId, actorId: user.id, spot, values: { ...rest, indoor: indoor === "indoor", notes: notes ?? "" } });
   return redirect(`/sites/${siteId}/spots/${spot.id}`);
 }
 

@@ -1,9 +1,8 @@
 import { parseWithZod } from "@conform-to/zod/v4";
 import { redirect } from "react-router";
 import { requireSiteRole } from "~/.server/auth";
-import { db } from "~/.server/db";
+import { createSpot } from "~/.server/spots";
 import { SpotForm } from "~/components/spot-form";
-import { auditLog, spots } from "~/db/schema.server";
 import { spotSchema } from "~/lib/forms";
 import type { Route } from "./+types/spots.new";
 
@@ -19,11 +18,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   const submission = parseWithZod(await request.formData(), { schema: spotSchema });
   if (submission.status !== "success") return { result: submission.reply() };
   const { indoor, notes, ...rest } = submission.value;
-  const [spot] = await db()
-    .insert(spots)
-    .values({ siteId, ...rest, indoor: indoor === "indoor", notes: notes ?? "" })
-    .returning({ id: spots.id });
-  await db().insert(auditLog).values({ siteId, actorId: user.id, action: "spot.create", detail: { spotId: spot.id, name: rest.name } });
+  const spot = await createSpot({ siteId, actorId: user.id, values: { ...rest, indoor: indoor === "indoor", notes: notes ?? "" } });
   return redirect(`/sites/${siteId}/spots/${spot.id}`);
 }
 

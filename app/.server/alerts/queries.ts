@@ -1,65 +1,23 @@
 // What the alert pages read and change: rules of a spot, events of a site, the banner, preferences.
 import { and, desc, eq, isNull, sql } from "drizzle-orm";
+import { data } from "react-router";
 import { notFound } from "~/.server/auth";
+import { defaultKinds } from "~/.server/alerts/store";
 import { db } from "~/.server/db";
-import { alertEvents, alertPreferences, alertRules, customPlants, spotPlants, spots, users, type AlertRule } from "~/db/schema.server";
-import { defaultColdWatch } from "~/domain/alerts/default-watch";
-import { ALERT_KINDS, KINDS, type AlertKind } from "~/domain/alerts/rules";
-import { PLANT_LIBRARY } from "~/domain/plants/library";
+import { toId } from "~/.server/ids";
+import { alertEvents, alertPreferences, alertRules, spots, users, type Role } from "~/db/schema.server";
 
 export async function listRules(spotId: number) {
   return db().select().from(alertRules).where(eq(alertRules.spotId, spotId)).orderBy(alertRules.kind, alertRules.id);
 }
 
+/** The watch named by a form's ruleId: 400 when the field is malformed, 404 when not this spot's. */
 export async function getRule(spotId: number, ruleId: unknown) {
-  const id = Number(ruleId);
-  if (!Number.isInteger(id)) notFound();
+  const id = toId(ruleId);
+  if (id === null) throw data("Choose a watch; reload the page and try again.", { status: 400 });
   const [rule] = await db().select().from(alertRules).where(and(eq(alertRules.id, id), eq(alertRules.spotId, spotId)));
   if (!rule) notFound();
   return rule;
-}
-
-/** The cold watch this spot would get by default, from the plants standing in it. */
-export async function suggestedColdWatch(spotId: number, siteId: number) {
-  const placed = await db().select({ plantKey: spotPlants.plantKey, nickname: spotPlants.nickname }).from(spotPlants).where(eq(spotPlants.spotId, spotId));
-  const custom = await db().select({ key: customPlants.key, profile: customPlants.profile }).from(customPlants).where(eq(customPlants.siteId, siteId));
-  const library = [
-    ...PLANT_LIBRARY,
-    ...custom
-      .map((c) => ({ key: c.key, ...(c.profile as { name?: string; minNightC?: number }) }))
-      .filter((c): c is { key: string; name: string; minNightC: number } => typeof c.minNightC === "number" && typeof c.name === "string"),
-  ];
-  return defaultColdWatch(placed, library);
-}
-
-/** Adds the default cold watch (and a silent-sensor watch) to an outdoor spot that has none. */
-export async function ensureDefaultWatch(spotId: number, siteId: number) {
-  const existing = await listRules(spotId);
-  const added: AlertKind[] = [];
-  if (!existing.some((r) => r.kind === "cold")) {
-    const w = await suggestedColdWatch(spotId, siteId);
-    const d = KINDS.cold.defaults;
-    await db().insert(alertRules).values({ spotId, kind: "cold", threshold: w.threshold, durationMinutes: d.durationMinutes, hysteresis: d.hysteresis, clearMinutes: d.clearMinutes, earlyWarning: true, reason: w.reason });
-    added.push("cold");
-  }
-  if (!existing.some((r) => r.kind === "silent")) {
-    await db().insert(alertRules).values({ spotId, kind: "silent", threshold: KINDS.silent.defaults.threshold, durationMinutes: 0, hysteresis: 0, clearMinutes: 0, reason: "A sensor that stops sending hides a cold night." });
-    added.push("silent");
-  }
-  return added;
-}
-
-/** Pausing ends an open event quietly (no all-clear: nobody is watching it any more) and resets the state. */
-export async function setPaused(rule: AlertRule, paused: boolean) {
-  await db().transaction(async (tx) => {
-    await tx.update(alertRules).set({ paused, pendingSince: null, clearingSince: null, warnedAt: null }).where(eq(alertRules.id, rule.id));
-    if (paused) {
-      await tx
-        .update(alertEvents)
-        .set({ endedAt: new Date(), clearNotifiedAt: new Date() })
-        .where(and(eq(alertEvents.ruleId, rule.id), isNull(alertEvents.endedAt)));
-    }
-  });
 }
 
 export type EventRow = Awaited<ReturnType<typeof siteEvents>>[number];
@@ -89,8 +47,8 @@ export async function siteEvents(siteId: number, opts: { openOnly?: boolean; lim
 }
 
 export async function acknowledge(siteId: number, eventId: unknown, userId: number) {
-  const id = Number(eventId);
-  if (!Number.isInteger(id)) notFound();
+  const id = toId(eventId);
+  if (id === null) throw data("Choose an alert; reload the page and try again.", { status: 400 });
   const [ev] = await db()
     .select({ id: alertEvents.id, acknowledgedAt: alertEvents.acknowledgedAt })
     .from(alertEvents)
@@ -119,9 +77,10 @@ export async function alertBanner(siteId: number) {
 }
 export type AlertBannerData = Awaited<ReturnType<typeof alertBanner>>;
 
-export async function getPreferences(userId: number, siteId: number) {
+/** The member's alert e-mails for the site; defaults (defaultKinds) when they never saved any. */
+export async function getPreferences(userId: number, siteId: number, role: Role) {
   const [p] = await db().select().from(alertPreferences).where(and(eq(alertPreferences.userId, userId), eq(alertPreferences.siteId, siteId)));
-  return p ?? { userId, siteId, email: true, kinds: ALERT_KINDS, quietFrom: null, quietTo: null };
+  return p ?? { userId, siteId, email: true, kinds: defaultKinds(role), quietFrom: null, quietTo: null };
 }
 
 export async function savePreferences(p: { userId: number; siteId: number; email: boolean; kinds: string[]; quietFrom: number | null; quietTo: number | null }) {

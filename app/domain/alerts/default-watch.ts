@@ -1,14 +1,15 @@
-// The cold watch an outdoor spot gets before anyone sets one: the lowest safe night of the most
+// The cold watch an outdoor spot gets when a plant is placed in it: the lowest safe night of the most
 // cold-tender plant placed there plus a margin, so the warning comes while there is still time to act.
+// An empty spot gets none: a fixed line for "most tropical plants" e-mailed everyone most nights of
+// the year about a bench with nothing on it.
 import type { PlantProfile } from "~/domain/plants/library";
 
 /** Degrees above the plant's lowest safe night (common practice: act before the limit, not at it). */
 export const DEFAULT_MARGIN_C = 2;
-export const NO_PLANTS_THRESHOLD_C = 10;
 
 export type DefaultWatch = { threshold: number; reason: string };
 
-export function defaultColdWatch(placed: { plantKey: string; nickname?: string }[], library: Pick<PlantProfile, "key" | "name" | "minNightC">[]): DefaultWatch {
+export function defaultColdWatch(placed: { plantKey: string; nickname?: string }[], library: Pick<PlantProfile, "key" | "name" | "minNightC">[]): DefaultWatch | null {
   let tender: { name: string; minNightC: number } | null = null;
   for (const p of placed) {
     const profile = library.find((l) => l.key === p.plantKey);
@@ -17,12 +18,7 @@ export function defaultColdWatch(placed: { plantKey: string; nickname?: string }
       tender = { name: p.nickname ? `${p.nickname} (${profile.name})` : profile.name, minNightC: profile.minNightC };
     }
   }
-  if (!tender) {
-    return {
-      threshold: NO_PLANTS_THRESHOLD_C,
-      reason: `No plants are placed here yet, so the watch uses ${NO_PLANTS_THRESHOLD_C} °C, a safe line for most tropical plants left outdoors. Place plants in this spot to have it follow the most tender one.`,
-    };
-  }
+  if (!tender) return null;
   const threshold = tender.minNightC + DEFAULT_MARGIN_C;
   return {
     threshold,

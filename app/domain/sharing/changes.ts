@@ -53,10 +53,23 @@ export function describeChange(action: string, detail: ChangeDetail): string {
       return `moved a sensor`;
     case "sensor.unplace":
       return `took a sensor out of its spot`;
+    case "watch.add":
+      return `${detail.automatic ? "placed a plant that added" : "added"} a ${watchWord(detail.kind)} watch on ${str(detail.spot, "a spot")}`;
+    case "watch.update":
+      return `changed the ${watchWord(detail.kind)} watch on ${str(detail.spot, "a spot")}${detail.automatic ? " (it follows the most tender plant)" : ""}`;
+    case "watch.delete":
+      return `removed the ${watchWord(detail.kind)} watch on ${str(detail.spot, "a spot")}`;
+    case "watch.pause":
+      return `paused the ${watchWord(detail.kind)} watch on ${str(detail.spot, "a spot")}`;
+    case "watch.resume":
+      return `resumed the ${watchWord(detail.kind)} watch on ${str(detail.spot, "a spot")}`;
     default:
       return action.replace(/[._-]/g, " ");
   }
 }
+
+const WATCH_WORD: Record<string, string> = { cold: "cold-snap", heat: "too-hot", dry: "dry-air", condensation: "condensation", silent: "silent-sensor", battery: "battery" };
+const watchWord = (k: unknown) => WATCH_WORD[String(k)] ?? "alert";
 
 /** Member changes first-class: the owners' list can be narrowed to them. */
 export const isMemberChange = (action: string) => action.startsWith("member.");

@@ -1,0 +1,48 @@
+// Ids and free text from URLs and forms, parsed before they reach a query. An id is a positive
+// PostgreSQL integer (int4): anything else in a path is a 404 (nothing by that id can exist), and
+// in a form field a 400 with a clear message. PostgreSQL refuses NUL in text, so free text loses it
+// (and the other C0 control characters a keyboard cannot type) before it is stored.
+import { data } from "react-router";
+import { z } from "zod";
+
+export const INT4_MAX = 2_147_483_647;
+
+const idSchema = z
+  .string()
+  .trim()
+  .regex(/^[1-9][0-9]{0,9}$/)
+  .transform(Number)
+  .pipe(z.number().int().positive().max(INT4_MAX));
+
+/** The id as a number, or null when it is not a positive int4 written in plain digits. */
+export function toId(value: unknown): number | null {
+  if (typeof value === "number") return Number.isInteger(value) && value > 0 && value <= INT4_MAX ? value : null;
+  const r = idSchema.safeParse(value);
+  return r.success ? r.data : null;
+}
+
+/** A route parameter naming a row: 404 when it cannot name one. */
+export function paramId(value: unknown): number {
+  const id = toId(value);
+  if (id === null) throw data("Not found", { status: 404 });
+  return id;
+}
+
+/** A form field naming a row: 400 with `message` when it is missing or malformed. */
+export function formId(form: FormData | URLSearchParams, name: string, message = "That choice is not valid; reload the page and try again."): number {
+  const id = toId(form.get(name));
+  if (id === null) throw data(message, { status: 400 });
+  return id;
+}
+
+// NUL and the C0 controls other than tab, line feed and carriage return; DEL too.
+const CONTROL = /[\u0000-\u0008\u000B\u000C\u000E-\u001F\u007F]/g;
+
+/** Free text (notes, names) without the control characters nobody types, NUL above all. */
+export const cleanText = (s: string) => s.replace(CONTROL, "");
+
+/** One line of text for a mail header or a subject: no line breaks or controls, at most `max` characters. */
+export function oneLine(s: string, max = 60) {
+  const flat = s.replace(/[\u0000-\u001F\u007F\u2028\u2029]+/g, " ").replace(/\s+/g, " ").trim();
+  return flat.length > max ? `${flat.slice(0, max - 1).trimEnd()}…` : flat;
+}

@@ -1,0 +1,72 @@
+// Spots: adding, changing and deleting one. Each change is one transaction with its audit row; the
+// sensor cache (which knows whether a sensor's spot is indoor or outdoor, for ingest's plausibility
+// limits) forgets the spot's sensors once the change is committed, and a spot that becomes outdoor
+// gets the cold watch its plants call for, in the same transaction.
+import { and, eq, isNull } from "drizzle-orm";
+import { db } from "~/.server/db";
+import { cleanText } from "~/.server/ids";
+import { invalidateSensorCache } from "~/.server/ingest/sensors";
+import { ensureColdWatch } from "~/.server/watches";
+import { auditLog, placements, spots, type Spot } from "~/db/schema.server";
+import type { FACINGS } from "~/lib/forms";
+
+export type SpotValues = { name: string; indoor: boolean; facing: (typeof FACINGS)[number]; capacity: number; notes: string };
+
+const FIELDS = ["name", "indoor", "facing", "capacity", "notes"] as const;
+
+// PostgreSQL refuses NUL in text: free text loses the control characters nobody types.
+const clean = (v: SpotValues): SpotValues => ({ ...v, name: cleanText(v.name).trim() || "Unnamed spot", notes: cleanText(v.notes) });
+
+export async function createSpot(opts: { siteId: number; actorId: number; values: SpotValues }) {
+  return db().transaction(async (tx) => {
+    const [spot] = await tx
+      .insert(spots)
+      .values({ siteId: opts.siteId, ...clean(opts.values) })
+      .returning();
+    await tx.insert(auditLog).values({ siteId: opts.siteId, actorId: opts.actorId, action: "spot.create", detail: { spotId: spot.id, name: spot.name } });
+    return spot;
+  });
+}
+
+export async function updateSpot(opts: { siteId: number; actorId: number; spot: Spot; values: SpotValues }) {
+  const { spot } = opts;
+  const values = clean(opts.values);
+  const changes: Record<string, [unknown, unknown]> = {};
+  for (const k of FIELDS) if (spot[k] !== values[k]) changes[k] = [k === "notes" ? spot[k].length : spot[k], k === "notes" ? values[k].length : values[k]];
+  const sensorIds = await db().transaction(async (tx) => {
+    const [updated] = await tx
+      .update(spots)
+      .set(values)
+      .where(and(eq(spots.id, spot.id), eq(spots.siteId, opts.siteId)))
+      .returning({ id: spots.id });
+    if (!updated) return null;
+    await tx.insert(auditLog).values({ siteId: opts.siteId, actorId: opts.actorId, action: "spot.update", detail: { spotId: spot.id, name: values.name, changes } });
+    if (spot.indoor && !values.indoor) await ensureColdWatch({ siteId: opts.siteId, spotId: spot.id, actorId: opts.actorId }, tx);
+    return "indoor" in changes ? await placedSensors(tx, spot.id) : [];
+  });
+  for (const id of sensorIds ?? []) invalidateSensorCache(id);
+  return { updated: sensorIds !== null, changes };
+}
+
+export async function deleteSpot(opts: { siteId: number; actorId: number; spot: Spot }) {
+  const sensorIds = await db().transaction(async (tx) => {
+    const sensorIds = await placedSensors(tx, opts.spot.id);
+    const [gone] = await tx
+      .delete(spots)
+      .where(and(eq(spots.id, opts.spot.id), eq(spots.siteId, opts.siteId)))
+      .returning({ id: spots.id });
+    if (!gone) return null;
+    await tx.insert(auditLog).values({ siteId: opts.siteId, actorId: opts.actorId, action: "spot.delete", detail: { spotId: opts.spot.id, name: opts.spot.name } });
+    return sensorIds;
+  });
+  // Their placements went with the spot: ingest must stop treating them as placed there.
+  for (const id of sensorIds ?? []) invalidateSensorCache(id);
+  return sensorIds !== null;
+}
+
+type Tx = Parameters<Parameters<ReturnType<typeof db>["transaction"]>[0]>[0];
+
+async function placedSensors(tx: Tx, spotId: number) {
+  const rows = await tx.select({ id: placements.sensorId }).from(placements).where(and(eq(placements.spotId, spotId), isNull(placements.toAt)));
+  return rows.map((r) => r.id);
+}
