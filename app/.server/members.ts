@@ -6,6 +6,7 @@ import { and, desc, eq, gt, isNull, sql } from "drizzle-orm";
 import { db, type Db } from "~/.server/db";
 import { publicUrl } from "~/.server/env";
 import { sendMail } from "~/.server/mail";
+import { oneLine } from "~/.server/ids";
 import { randomToken, sha256Hex } from "~/.server/secrets";
 import { auditLog, invitations, memberships, sites, users, type Role } from "~/db/schema.server";
 
@@ -14,6 +15,22 @@ export const INVITABLE_ROLES = ["carer", "mentor"] as const satisfies readonly R
 export type InvitableRole = (typeof INVITABLE_ROLES)[number];
 
 export class MembershipError extends Error {}
+/** Too many invitations in the window; `retryAt` is when the oldest counted one leaves it. */
+export class InvitationLimitError extends MembershipError {
+  constructor(message: string, readonly retryAt: Date) {
+    super(message);
+  }
+}
+/** The signed-in account is not the address the invitation was sent to. */
+export class WrongAccountError extends MembershipError {}
+
+// Invitations cost the sender nothing and put our mail in strangers' inboxes, so they are limited:
+// per site an hour and per sender a day (common practice for invite and contact forms: a few an
+// hour is plenty for a household, and a fresh account cannot spray hundreds of addresses).
+export const INVITES_PER_SITE_PER_HOUR = 10;
+export const INVITES_PER_USER_PER_DAY = 30;
+/** Longest name (of a person or a site) put into an invitation e-mail. */
+export const MAIL_NAME_MAX = 60;
 
 type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
 
@@ -42,6 +59,10 @@ export async function inviteMember(opts: { siteId: number; actor: { id: number; 
   const expiresAt = new Date(now.getTime() + INVITATION_DAYS * 86_400_000);
   const [site] = await db().select({ name: sites.name }).from(sites).where(eq(sites.id, opts.siteId));
   const invitation = await db().transaction(async (tx) => {
+    // The sender's and the site's rows are locked, so invitations sent at once are counted in turn.
+    await tx.execute(sql`select 1 from users where id = ${opts.actor.id} for update`);
+    await tx.execute(sql`select 1 from sites where id = ${opts.siteId} for update`);
+    await checkInvitationLimits(tx, { siteId: opts.siteId, userId: opts.actor.id, now });
     // A new invitation to the same address replaces any still open, so only the newest link works.
     await tx
       .update(invitations)
@@ -49,26 +70,62 @@ export async function inviteMember(opts: { siteId: number; actor: { id: number; 
       .where(and(eq(invitations.siteId, opts.siteId), eq(invitations.email, email), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)));
     const [row] = await tx
       .insert(invitations)
-      .values({ siteId: opts.siteId, email, role: opts.role, tokenHash: invitationTokenHash(token), invitedBy: opts.actor.id, expiresAt })
+      .values({ siteId: opts.siteId, email, role: opts.role, tokenHash: invitationTokenHash(token), invitedBy: opts.actor.id, expiresAt, createdAt: now })
       .returning();
     await tx.insert(auditLog).values({ siteId: opts.siteId, actorId: opts.actor.id, action: "member.invite", detail: { email, role: opts.role } });
     return row;
   });
   const url = invitationUrl(token);
   const until = expiresAt.toLocaleDateString("en-GB", { day: "numeric", month: "long", year: "numeric", timeZone: "UTC" });
+  // Names are the sender's own words: one line, bounded, quoted, so they cannot pose as our text.
+  const who = `"${oneLine(opts.actor.name, MAIL_NAME_MAX) || "A Nichewise member"}"`;
+  const where = `"${oneLine(site.name, MAIL_NAME_MAX) || "a site"}"`;
   await sendMail({
     to: email,
-    subject: `${opts.actor.name} invites you to ${site.name} on Nichewise`,
+    subject: `${who} invites you to ${where} on Nichewise`,
     text:
-      `${opts.actor.name} has invited you to share "${site.name}" on Nichewise as ${roleLine[opts.role]}.\n\n` +
+      `${who} has invited you to share ${where} on Nichewise as ${roleLine[opts.role]}.\n\n` +
       `Open this link to accept (it works once, until ${until}):\n${url}\n\n` +
       `If you were not expecting this, ignore this e-mail; nothing happens unless the link is opened.\n`,
     html:
-      `<p>${escapeHtml(opts.actor.name)} has invited you to share <strong>${escapeHtml(site.name)}</strong> on Nichewise as ${escapeHtml(roleLine[opts.role])}.</p>` +
+      `<p>${escapeHtml(who)} has invited you to share <strong>${escapeHtml(where)}</strong> on Nichewise as ${escapeHtml(roleLine[opts.role])}.</p>` +
       `<p><a href="${url}">Accept the invitation</a> — the link works once, until ${until}.</p>` +
       `<p>If you were not expecting this, ignore this e-mail; nothing happens unless the link is opened.</p>`,
   });
   return { invitation, url };
+}
+
+async function checkInvitationLimits(tx: Tx, opts: { siteId: number; userId: number; now: Date }) {
+  const hourAgo = new Date(opts.now.getTime() - 3_600_000);
+  const dayAgo = new Date(opts.now.getTime() - 86_400_000);
+  const [site] = await tx
+    .select({ n: sql<number>`count(*)::int`, oldest: sql<Date | null>`min(${invitations.createdAt})` })
+    .from(invitations)
+    .where(and(eq(invitations.siteId, opts.siteId), gt(invitations.createdAt, hourAgo)));
+  if (site.n >= INVITES_PER_SITE_PER_HOUR) {
+    const retryAt = new Date(new Date(site.oldest!).getTime() + 3_600_000);
+    throw new InvitationLimitError(
+      `This site has sent ${INVITES_PER_SITE_PER_HOUR} invitations in the last hour, the most we send. Try again in ${minutesUntil(retryAt, opts.now)}.`,
+      retryAt,
+    );
+  }
+  const [mine] = await tx
+    .select({ n: sql<number>`count(*)::int`, oldest: sql<Date | null>`min(${invitations.createdAt})` })
+    .from(invitations)
+    .where(and(eq(invitations.invitedBy, opts.userId), gt(invitations.createdAt, dayAgo)));
+  if (mine.n >= INVITES_PER_USER_PER_DAY) {
+    const retryAt = new Date(new Date(mine.oldest!).getTime() + 86_400_000);
+    throw new InvitationLimitError(
+      `You have sent ${INVITES_PER_USER_PER_DAY} invitations in the last 24 hours, the most we send for one person. Try again in ${minutesUntil(retryAt, opts.now)}.`,
+      retryAt,
+    );
+  }
+}
+
+function minutesUntil(at: Date, now: Date) {
+  const min = Math.max(1, Math.ceil((at.getTime() - now.getTime()) / 60_000));
+  if (min < 90) return `${min} minute${min === 1 ? "" : "s"}`;
+  return `about ${Math.round(min / 60)} hours`;
 }
 
 function escapeHtml(s: string) {
@@ -111,8 +168,15 @@ export async function findInvitation(token: string) {
  * so two tabs opening the same link cannot both join. Someone who is already a member keeps their
  * role (an owner following an old link must not be demoted by it).
  */
-export async function acceptInvitation(token: string, user: { id: number }, now = new Date()) {
+export async function acceptInvitation(token: string, user: { id: number; email: string }, now = new Date()) {
   return db().transaction(async (tx) => {
+    // Only the invited address may use the link: a forwarded or leaked link is no way in.
+    const [sent] = await tx.select({ email: invitations.email }).from(invitations).where(eq(invitations.tokenHash, invitationTokenHash(token)));
+    if (sent && !sameAddress(sent.email, user.email)) {
+      throw new WrongAccountError(
+        `This invitation was sent to ${sent.email}, and you are signed in as ${user.email}. Sign out and sign in (or create an account) as ${sent.email}, or ask the owner to invite ${user.email}.`,
+      );
+    }
     const [inv] = await tx
       .update(invitations)
       .set({ acceptedAt: now, acceptedBy: user.id })
@@ -140,6 +204,8 @@ export async function acceptInvitation(token: string, user: { id: number }, now 
     return { siteId: inv.siteId, role: already?.role ?? inv.role };
   });
 }
+
+export const sameAddress = (a: string, b: string) => a.trim().toLowerCase() === b.trim().toLowerCase();
 
 export async function revokeInvitation(opts: { siteId: number; actorId: number; invitationId: number; now?: Date }) {
   await db().transaction(async (tx) => {

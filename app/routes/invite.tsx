@@ -1,8 +1,10 @@
 // The page an invitation link opens. Signed out, it offers to create an account or sign in and
-// comes back here (?next=); signed in, one button joins the site. The link is single-use.
+// comes back here (?next=); signed in as the invited address, one button joins the site. Signed in
+// as anyone else, the page says whose the invitation is and offers to sign out, or to ask the owner
+// to invite this address instead. The link is single-use.
 import { data, Form, Link, redirect, useNavigation } from "react-router";
 import { getUser, requireUser } from "~/.server/auth";
-import { acceptInvitation, findInvitation, invitationState, MembershipError } from "~/.server/members";
+import { acceptInvitation, findInvitation, invitationState, MembershipError, sameAddress, WrongAccountError } from "~/.server/members";
 import { AuthFrame } from "~/components/auth-frame";
 import type { Route } from "./+types/invite";
 
@@ -30,6 +32,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
       inviterName: inv.inviterName ?? "The owner",
       expiresAt: inv.expiresAt,
       user: user ? { name: user.name, email: user.email } : null,
+      wrongAccount: !!user && !sameAddress(user.email, inv.email),
       next: here,
     },
     { status: state === "open" || state === "accepted" ? 200 : 410 },
@@ -44,6 +47,7 @@ export async function action({ request, params }: Route.ActionArgs) {
     const joined = await acceptInvitation(params.token, user);
     throw redirect(`/sites/${joined.siteId}`);
   } catch (err) {
+    if (err instanceof WrongAccountError) return data({ error: err.message }, { status: 403 });
     if (err instanceof MembershipError) return data({ error: err.message }, { status: 410 });
     throw err;
   }
@@ -80,14 +84,28 @@ export default function Invite({ loaderData, actionData }: Route.ComponentProps)
           {actionData.error}
         </p>
       ) : null}
-      {d.user ? (
+      {d.user && d.wrongAccount ? (
+        <div className="space-y-3" data-testid="wrong-account">
+          <p className="error" role="alert">
+            This invitation is for {d.email}, and you are signed in as {d.user.email}. Only the invited address can accept it.
+          </p>
+          <Form method="post" action={`/sign-out`}>
+            <button className="btn w-full" disabled={navigation.state !== "idle"}>
+              Sign out, then sign in as {d.email}
+            </button>
+          </Form>
+          <p className="text-sm text-muted">
+            After signing out, open this link again and sign in (or create an account) with {d.email}. To join with {d.user.email} instead, ask{" "}
+            {d.inviterName} to send an invitation to that address.
+          </p>
+        </div>
+      ) : d.user ? (
         <Form method="post" className="space-y-3">
           <button className="btn w-full" disabled={navigation.state !== "idle"}>
             Join {d.siteName}
           </button>
           <p className="text-sm text-muted">
             Signed in as {d.user.name} ({d.user.email}).
-            {d.user.email !== d.email ? " That is not the address the invitation was sent to; you can still join with this account." : ""}
           </p>
         </Form>
       ) : (

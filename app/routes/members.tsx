@@ -5,6 +5,8 @@ import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
 import {
   changeRole,
   INVITABLE_ROLES,
+  InvitationLimitError,
+  INVITES_PER_SITE_PER_HOUR,
   inviteMember,
   listInvitations,
   MembershipError,
@@ -12,6 +14,7 @@ import {
   removeMember,
   revokeInvitation,
 } from "~/.server/members";
+import { cleanText, formId, toId } from "~/.server/ids";
 import { listMembers } from "~/.server/sites";
 import { useNow } from "~/components/use-now";
 import { describeChange, type ChangeDetail } from "~/domain/sharing/changes";
@@ -26,6 +29,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const owner = role === "owner";
   return {
     now: Date.now(),
+    invitesPerHour: INVITES_PER_SITE_PER_HOUR,
     role,
     me: user.id,
     // Only owners see e-mail addresses of the other members.
@@ -48,27 +52,28 @@ export async function action({ request, params }: Route.ActionArgs) {
   const { siteId, user } = await requireSiteRole(request, params.siteId, intent === "leave" ? ALL_ROLES : ["owner"]);
   try {
     if (intent === "invite") {
-      const email = String(form.get("email") ?? "");
+      const email = cleanText(String(form.get("email") ?? "")).slice(0, 320);
       const parsed = inviteSchema.safeParse({ email, role: form.get("role") });
       if (!parsed.success) {
-        return data({ intent, error: "Enter an e-mail address and choose carer or mentor.", email, role: String(form.get("role") ?? "") }, { status: 400 });
+        return data({ intent, error: "Enter an e-mail address and choose carer or mentor.", email, role: String(form.get("role") ?? "").slice(0, 20) }, { status: 400 });
       }
       await inviteMember({ siteId, actor: user, email: parsed.data.email, role: parsed.data.role });
       return { intent, invited: parsed.data.email };
     }
     if (intent === "revoke") {
-      await revokeInvitation({ siteId, actorId: user.id, invitationId: Number(form.get("invitationId")) });
+      await revokeInvitation({ siteId, actorId: user.id, invitationId: formId(form, "invitationId", "Choose an invitation; reload the page and try again.") });
       return { intent, ok: true };
     }
     if (intent === "role") {
-      const parsed = z.object({ userId: z.coerce.number().int().positive(), role: z.enum(["owner", "carer", "mentor"]) }).safeParse(Object.fromEntries(form));
-      if (!parsed.success) return data({ intent, error: "Choose a role." }, { status: 400 });
-      await changeRole({ siteId, actorId: user.id, ...parsed.data });
-      return { intent, ok: true, userId: parsed.data.userId };
+      const parsed = z.object({ role: z.enum(["owner", "carer", "mentor"]) }).safeParse({ role: form.get("role") });
+      const userId = toId(form.get("userId"));
+      if (!parsed.success || userId === null) return data({ intent, error: "Choose a role." }, { status: 400 });
+      await changeRole({ siteId, actorId: user.id, userId, role: parsed.data.role });
+      return { intent, ok: true, userId };
     }
     if (intent === "remove") {
-      const userId = Number(form.get("userId"));
-      if (!Number.isInteger(userId)) return data({ intent, error: "Choose a member." }, { status: 400 });
+      const userId = toId(form.get("userId"));
+      if (userId === null) return data({ intent, error: "Choose a member." }, { status: 400 });
       await removeMember({ siteId, actorId: user.id, userId });
       if (userId === user.id) throw redirect("/");
       return { intent, ok: true, userId };
@@ -79,7 +84,11 @@ export async function action({ request, params }: Route.ActionArgs) {
     }
   } catch (err) {
     if (err instanceof MembershipError) {
-      return data({ intent, error: err.message, userId: Number(form.get("userId")) || null, email: String(form.get("email") ?? ""), role: String(form.get("role") ?? "") }, { status: 400 });
+      const status = err instanceof InvitationLimitError ? 429 : 400;
+      return data(
+        { intent, error: err.message, userId: toId(form.get("userId")), email: cleanText(String(form.get("email") ?? "")).slice(0, 320), role: String(form.get("role") ?? "").slice(0, 20) },
+        { status, headers: err instanceof InvitationLimitError ? { "Retry-After": String(Math.max(1, Math.ceil((err.retryAt.getTime() - Date.now()) / 1000))) } : undefined },
+      );
     }
     throw err;
   }
@@ -226,7 +235,8 @@ export default function Members({ loaderData, actionData }: Route.ComponentProps
           <section className="card">
             <h2 className="h2 mb-1">Invite someone</h2>
             <p className="mb-3 text-sm text-muted">
-              They get an e-mail with a link that works once, for 7 days. Opening it lets them sign in or create an account, then join.
+              They get an e-mail with a link that works once, for 7 days, and only for that address. Opening it lets them sign in or create an account
+              with it, then join. At most {loaderData.invitesPerHour} invitations an hour for a site.
             </p>
             <Form method="post" className="space-y-3" ref={inviteForm}>
               <input type="hidden" name="intent" value="invite" />

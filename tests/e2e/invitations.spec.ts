@@ -15,7 +15,7 @@ async function linkFromSink(baseURL: string, to: string) {
       links = body.mail[0]?.links ?? [];
       return body.mail[0]?.subject ?? "";
     })
-    .toMatch(/invites you to Hollins Lane/);
+    .toMatch(/invites you to "Hollins Lane"/);
   await admin.dispose();
   return links.find((l) => l.includes("/invite/"))!;
 }
