@@ -2,6 +2,7 @@
 // them. Every change goes to audit_log.
 import { and, desc, eq, isNull, sql } from "drizzle-orm";
 import { db } from "~/.server/db";
+import { cleanText } from "~/.server/ids";
 import { getSpot } from "~/.server/sites";
 import { PLANT_LIBRARY } from "~/domain/plants/library";
 import { auditLog, customPlants, notes, users } from "~/db/schema.server";
@@ -14,6 +15,8 @@ export class NoteError extends Error {}
 
 /** The notes on one spot or plant, or all of the site's when no target is given. */
 export async function listNotes(siteId: number, target?: NoteTarget) {
+  // A key PostgreSQL could not even compare (a NUL in a URL) names no plant.
+  if (target && "plantKey" in target && cleanText(target.plantKey) !== target.plantKey) return [];
   const where = !target
     ? eq(notes.siteId, siteId)
     : "spotId" in target
@@ -45,7 +48,8 @@ async function targetLabel(siteId: number, target: NoteTarget) {
 }
 
 export async function addNote(opts: { siteId: number; authorId: number; target: NoteTarget; body: string }) {
-  const body = opts.body.trim();
+  // PostgreSQL refuses NUL in text; it and the other control characters nobody types are dropped.
+  const body = cleanText(opts.body).trim();
   if (!body) throw new NoteError("Write the note first.");
   if (body.length > NOTE_MAX) throw new NoteError(`Keep a note under ${NOTE_MAX.toLocaleString("en")} characters.`);
   const on = await targetLabel(opts.siteId, opts.target);

@@ -2,22 +2,29 @@
 // POST adds (mentors and owners), resolves or reopens (owners).
 import { data } from "react-router";
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
+import { cleanText, toId } from "~/.server/ids";
 import { addNote, listNotes, NoteError, setNoteResolved, type NoteTarget } from "~/.server/notes";
 import type { Route } from "./+types/api.notes";
 
+// A spot by its id, or a plant by its key (at most 120 characters, no control characters).
 function targetFrom(get: (k: string) => string | null): NoteTarget | null {
-  const spotId = Number(get("spotId"));
-  if (Number.isInteger(spotId) && spotId > 0) return { spotId };
+  const rawSpot = get("spotId");
+  if (rawSpot) {
+    const spotId = toId(rawSpot);
+    return spotId === null ? null : { spotId };
+  }
   const plantKey = get("plantKey")?.trim();
-  if (plantKey) return { plantKey };
+  if (plantKey && plantKey.length <= 120 && cleanText(plantKey) === plantKey) return { plantKey };
   return null;
 }
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { siteId } = await requireSiteRole(request, params.siteId, ALL_ROLES);
   const q = new URL(request.url).searchParams;
-  const target = targetFrom((k) => q.get(k)) ?? undefined;
-  return Response.json({ notes: await listNotes(siteId, target) });
+  const asked = q.has("spotId") || q.has("plantKey");
+  const target = targetFrom((k) => q.get(k));
+  if (asked && !target) throw data("Say which spot or plant, by its id or key.", { status: 400 });
+  return Response.json({ notes: await listNotes(siteId, target ?? undefined) });
 }
 
 export async function action({ request, params }: Route.ActionArgs) {
@@ -36,7 +43,9 @@ export async function action({ request, params }: Route.ActionArgs) {
       return { intent, ok: true };
     }
     if (intent === "resolve" || intent === "reopen") {
-      await setNoteResolved({ siteId, actorId: user.id, noteId: Number(form.get("noteId")), resolved: intent === "resolve" });
+      const noteId = toId(form.get("noteId"));
+      if (noteId === null) return data({ intent, error: "Choose a note; reload the page and try again.", body: "" }, { status: 400 });
+      await setNoteResolved({ siteId, actorId: user.id, noteId, resolved: intent === "resolve" });
       return { intent, ok: true };
     }
   } catch (err) {

@@ -52,7 +52,8 @@ export async function action({ request, params }: Route.ActionArgs) {
   const { siteId, user } = await requireSiteRole(request, params.siteId, intent === "leave" ? ALL_ROLES : ["owner"]);
   try {
     if (intent === "invite") {
-      const email = cleanText(String(form.get("email") ?? "")).slice(0, 320);
+      // Not cleaned: an address with a control character in it is refused by the schema, not changed.
+      const email = String(form.get("email") ?? "").slice(0, 320);
       const parsed = inviteSchema.safeParse({ email, role: form.get("role") });
       if (!parsed.success) {
         return data({ intent, error: "Enter an e-mail address and choose carer or mentor.", email, role: String(form.get("role") ?? "").slice(0, 20) }, { status: 400 });
