@@ -5,7 +5,7 @@ import { slimMonths, slimProfile, spotProfiles } from "~/.server/profiles";
 import { getSite, listSpots } from "~/.server/sites";
 import { Chart } from "~/components/chart";
 import { compareSpec, MONTHS_SHORT, SPOT_COLOURS, SPOT_DASH } from "~/components/spot-charts";
-import { compareHeadlines, seasonsOfYear, type SeasonFigures } from "~/domain/season/compare";
+import { compareHeadlines, describeHeadline, seasonsOfYear, type SeasonFigures } from "~/domain/season/compare";
 import { monthKey } from "~/domain/season/local-time";
 import { toLocalInputValue, zonedToUtc } from "~/lib/time";
 import { formatDelta, formatTemp, type TempUnit } from "~/lib/units";
@@ -77,7 +77,6 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   };
 }
 
-const SEASON_WORDS = { winter: "winter", spring: "spring", summer: "summer", autumn: "autumn" } as const;
 
 const ROWS: { label: string; get: (f: SeasonFigures, u: TempUnit) => string; hint?: string }[] = [
   { label: "Lowest", get: (f, u) => formatTemp(f.lowest, u) },
@@ -160,8 +159,7 @@ export default function Compare({ loaderData }: Route.ComponentProps) {
               <ul className="list-disc space-y-1 pl-5">
                 {headlines.map((h) => (
                   <li key={`${h.season}-${h.kind}`}>
-                    The <span className="font-medium">{h.spot}</span> is the {h.kind} in {SEASON_WORDS[h.season]} (
-                    {h.by === "meanDailyLow" ? "nights average" : "days average"} {formatTemp(h.figure, unit)}).
+                    {describeHeadline(h, (c) => formatTemp(c, unit), (c) => formatDelta(c, unit))}
                   </li>
                 ))}
               </ul>

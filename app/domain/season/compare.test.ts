@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { compareHeadlines, seasonsOfYear, type CompareMonth } from "~/domain/season/compare";
+import { compareHeadlines, describeHeadline, SAME_WITHIN_C, seasonsOfYear, SENSOR_ACCURACY_C, type CompareMonth } from "~/domain/season/compare";
 
 // Meteorological seasons (Dec–Feb winter in the north; WMO/Met Office convention), flipped in the south.
 const month = (m: number, low: number, high: number, enough = true): CompareMonth => ({
@@ -50,5 +50,38 @@ describe("compareHeadlines", () => {
     const a = { name: "A", seasons: seasonsOfYear(year(() => [10, 20], (m) => m > 2 && m < 12), "northern") };
     const b = { name: "B", seasons: seasonsOfYear(year(() => [12, 22]), "northern") };
     expect(compareHeadlines([a, b]).some((x) => x.season === "winter")).toBe(false);
+  });
+});
+
+// Sensor accuracy ±0.5 °C per sensor (common practice for cheap hobby sensors, e.g. the DHT22 and
+// SHT3x data sheets): two spots, two sensors, so up to 1 °C apart is no evidence of a difference.
+describe("spots closer than the sensors can tell apart", () => {
+  const c = (v: number) => `${v.toFixed(1)} °C`;
+  const mk = (name: string, low: number, high: number) => ({ name, seasons: seasonsOfYear(year(() => [low, high]), "northern") });
+
+  it("names no winner when two spots differ by 0.003 °C, and says they are about the same within sensor accuracy", () => {
+    expect(SENSOR_ACCURACY_C).toBe(0.5);
+    const h = compareHeadlines([mk("Bench A", 12.001, 22), mk("Bench B", 12.004, 22.002)]);
+    const winter = h.filter((x) => x.season === "winter");
+    expect(winter).toHaveLength(1);
+    expect(winter[0]).toMatchObject({ allSame: true });
+    const words = describeHeadline(winter[0], c, c);
+    expect(words).not.toMatch(/is the warmest/);
+    expect(words).toMatch(/^The Bench B and the Bench A are about the same in winter \(nights average 12\.0 °C and 12\.0 °C\): the difference is within what two sensors of ±0\.5 °C each can tell apart\.$/);
+  });
+
+  it("still names the winner once the gap is beyond what two sensors can tell apart", () => {
+    const h = compareHeadlines([mk("Shelf", 12 + SAME_WITHIN_C + 0.1, 22), mk("Sill", 12, 22)]);
+    const winter = h.find((x) => x.season === "winter")!;
+    expect(winter.sameAs).toEqual([]);
+    expect(describeHeadline(winter, c, c)).toBe("The Shelf is the warmest in winter (nights average 13.1 °C).");
+  });
+
+  it("with three spots names the two that are level together and keeps the clearly colder one apart", () => {
+    const h = compareHeadlines([mk("A", 10, 20), mk("B", 10.3, 24), mk("C", 6, 26)]);
+    const warmest = h.find((x) => x.season === "winter" && x.kind === "warmest")!;
+    expect(warmest).toMatchObject({ spot: "B", sameAs: [{ spot: "A", figure: 10 }], allSame: false });
+    expect(describeHeadline(warmest, c, c)).toMatch(/^The B and the A are the warmest in winter, about the same as each other/);
+    expect(h.find((x) => x.season === "winter" && x.kind === "coldest")).toMatchObject({ spot: "C", sameAs: [] });
   });
 });

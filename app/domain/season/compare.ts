@@ -61,19 +61,33 @@ export function seasonsOfYear(months: CompareMonth[], hemisphere: Hemisphere): S
   });
 }
 
+/**
+ * Accuracy of one cheap temperature sensor, ±0.5 °C (common practice: what the usual hobby sensors,
+ * e.g. the DHT22 and the SHT3x/BME280 families, state on their data sheets at room temperature). Two
+ * spots measured by two such sensors can read up to twice that apart with no real difference.
+ */
+export const SENSOR_ACCURACY_C = 0.5;
+export const SAME_WITHIN_C = 2 * SENSOR_ACCURACY_C;
+
 export type Headline = {
   season: SeasonName;
   kind: "warmest" | "coldest" | "coolest" | "hottest";
   spot: string;
   figure: number;
   by: "meanDailyLow" | "meanDailyHigh";
+  /** Other spots whose figure is within SAME_WITHIN_C of this one: no sensor pair can tell them apart. */
+  sameAs: { spot: string; figure: number }[];
+  /** Every compared spot is within SAME_WITHIN_C of the pick: the season has no winner. */
+  allSame: boolean;
 };
 
 /**
  * What a grower asks first: which spot is warmest in winter (by its mean daily low, what decides
  * whether warm growers cope) and which is coolest in summer (by its mean daily high, what decides
  * whether cool growers cope); with three or more spots also the coldest in winter and the hottest in
- * summer. A season is judged only when every compared spot has at least two of its months.
+ * summer. A season is judged only when every compared spot has at least two of its months. Spots
+ * closer than the sensors can tell apart are named together as about the same, never as a winner;
+ * when all are, the season gets that one sentence.
  */
 export function compareHeadlines(spots: { name: string; seasons: SeasonFigures[] }[]): Headline[] {
   if (spots.length < 2) return [];
@@ -88,7 +102,28 @@ export function compareHeadlines(spots: { name: string; seasons: SeasonFigures[]
     const rows = spots.map((s) => ({ name: s.name, f: s.seasons.find((x) => x.season === ask.season)! }));
     if (rows.some((r) => r.f.monthsCovered < 2 || r.f[ask.by] == null)) continue;
     const pick = rows.reduce((a, b) => (ask.sign * (b.f[ask.by]! - a.f[ask.by]!) > 0 ? b : a));
-    out.push({ season: ask.season, kind: ask.kind, spot: pick.name, figure: pick.f[ask.by]!, by: ask.by });
+    const figure = pick.f[ask.by]!;
+    const sameAs = rows.filter((r) => r !== pick && Math.abs(r.f[ask.by]! - figure) < SAME_WITHIN_C).map((r) => ({ spot: r.name, figure: r.f[ask.by]! }));
+    const allSame = sameAs.length === rows.length - 1;
+    if (allSame && out.some((h) => h.season === ask.season && h.allSame)) continue;
+    out.push({ season: ask.season, kind: ask.kind, spot: pick.name, figure, by: ask.by, sameAs, allSame });
   }
   return out;
+}
+
+/** The headline as the grower reads it; `temp` formats a temperature in their unit. */
+export function describeHeadline(h: Headline, temp: (c: number) => string, deltaTemp: (c: number) => string): string {
+  const what = h.by === "meanDailyLow" ? "nights average" : "days average";
+  const caveat = `within what two sensors of ±${deltaTemp(SENSOR_ACCURACY_C)} each can tell apart`;
+  if (h.sameAs.length === 0) return `The ${h.spot} is the ${h.kind} in ${h.season} (${what} ${temp(h.figure)}).`;
+  const all = [{ spot: h.spot, figure: h.figure }, ...h.sameAs];
+  const names = listWords(all.map((x) => `the ${x.spot}`));
+  const figures = listWords(all.map((x) => temp(x.figure)));
+  if (h.allSame) return `${capitalise(names)} are about the same in ${h.season} (${what} ${figures}): the difference is ${caveat}.`;
+  return `${capitalise(names)} are the ${h.kind} in ${h.season}, about the same as each other (${what} ${figures}, ${caveat}).`;
+}
+
+const capitalise = (s: string) => s.charAt(0).toUpperCase() + s.slice(1);
+function listWords(xs: string[]) {
+  return xs.length <= 1 ? (xs[0] ?? "") : `${xs.slice(0, -1).join(", ")} and ${xs[xs.length - 1]}`;
 }
