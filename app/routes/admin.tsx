@@ -1,7 +1,9 @@
 import { useEffect } from "react";
-import { useRevalidator } from "react-router";
+import { Link, useRevalidator } from "react-router";
 import { requireAdmin } from "~/.server/auth";
 import { ingestHealth } from "~/.server/health";
+import { toId } from "~/.server/ids";
+import { sunkMailPage } from "~/.server/mail";
 import { timeAgo } from "~/lib/time";
 import type { Route } from "./+types/admin";
 
@@ -9,13 +11,20 @@ export const meta: Route.MetaFunction = () => [{ title: "Ingest health · Nichew
 
 export async function loader({ request }: Route.LoaderArgs) {
   await requireAdmin(request);
-  return { health: await ingestHealth(), now: Date.now() };
+  // A page number that is not one shows the first page (the list moves as mail arrives anyway).
+  const page = toId(new URL(request.url).searchParams.get("page")) ?? 1;
+  const list = sunkMailPage({ page, perPage: 20 });
+  return {
+    health: await ingestHealth(),
+    now: Date.now(),
+    mail: { page: list.page, pages: list.pages, total: list.total, items: list.mail.map((m) => ({ id: m.id, at: m.at, to: m.to, subject: m.subject })) },
+  };
 }
 
 const mb = (b: number) => (b / 1024 / 1024).toFixed(1);
 
 export default function Admin({ loaderData }: Route.ComponentProps) {
-  const { health, now } = loaderData;
+  const { health, now, mail } = loaderData;
   const revalidator = useRevalidator();
   useEffect(() => {
     const t = setInterval(() => {
@@ -94,15 +103,38 @@ export default function Admin({ loaderData }: Route.ComponentProps) {
         </section>
         <section className="card">
           <h2 className="h2 mb-3">Mail sink</h2>
-          <p className="mb-3 text-sm text-muted">Messages the local SMTP sink received (development and demo only).</p>
-          {health.mail.length === 0 ? <p className="text-muted">None yet.</p> : null}
-          <ul className="space-y-2 text-sm">
-            {health.mail.map((m) => (
-              <li key={m.id}>
+          <p className="mb-3 text-sm text-muted">
+            Messages the local SMTP sink received (development and demo only), newest first; it keeps the last 500, each at most 256 KB.
+          </p>
+          {mail.total === 0 ? <p className="text-muted">None yet.</p> : null}
+          <ul className="space-y-2 text-sm" data-testid="sunk-mail">
+            {mail.items.map((m) => (
+              <li key={m.id} className="break-words">
                 <span className="font-medium">{m.subject}</span> → {m.to.join(", ")} · {timeAgo(m.at, now)}
               </li>
             ))}
           </ul>
+          {mail.pages > 1 ? (
+            <nav className="mt-3 flex items-center justify-between text-sm" aria-label="Mail pages">
+              {mail.page > 1 ? (
+                <Link className="link" to={`?page=${mail.page - 1}`}>
+                  ← Newer
+                </Link>
+              ) : (
+                <span />
+              )}
+              <span className="text-muted">
+                Page {mail.page} of {mail.pages} ({mail.total} messages)
+              </span>
+              {mail.page < mail.pages ? (
+                <Link className="link" to={`?page=${mail.page + 1}`}>
+                  Older →
+                </Link>
+              ) : (
+                <span />
+              )}
+            </nav>
+          ) : null}
         </section>
       </div>
     </main>

@@ -1,7 +1,9 @@
 // What the local SMTP sink received, for the installation admin (and the invitation test): subject,
 // recipients, the plain-text body decoded, and the links in it. 404 for everyone else.
 import { requireAdmin } from "~/.server/auth";
-import { sunkMail } from "~/.server/mail";
+import { data } from "react-router";
+import { toId } from "~/.server/ids";
+import { sunkMailPage } from "~/.server/mail";
 import type { Route } from "./+types/api.admin.mail";
 
 // The text/plain part of a nodemailer message, with quoted-printable undone.
@@ -19,16 +21,17 @@ function plainText(raw: string) {
   return body;
 }
 
+/** ?page= counts from 1, newest first, 50 a page; ?to= keeps mail to one address. */
 export async function loader({ request }: Route.LoaderArgs) {
   await requireAdmin(request);
-  const to = new URL(request.url).searchParams.get("to")?.toLowerCase();
-  const mail = sunkMail()
-    .filter((m) => !to || m.to.some((t) => t.toLowerCase() === to))
-    .slice(-50)
-    .reverse()
-    .map((m) => {
-      const text = plainText(m.raw);
-      return { id: m.id, at: m.at, from: m.from, to: m.to, subject: m.subject, text, links: [...text.matchAll(/https?:\/\/\S+/g)].map((x) => x[0]) };
-    });
-  return Response.json({ mail }, { headers: { "Cache-Control": "no-store" } });
+  const q = new URL(request.url).searchParams;
+  const pageParam = q.get("page");
+  const page = pageParam === null ? 1 : toId(pageParam);
+  if (page === null) throw data("?page= is a page number from 1.", { status: 400 });
+  const list = sunkMailPage({ page, perPage: 50, to: q.get("to")?.slice(0, 320) });
+  const mail = list.mail.map((m) => {
+    const text = plainText(m.raw);
+    return { id: m.id, at: m.at, from: m.from, to: m.to, subject: m.subject, text, links: [...text.matchAll(/https?:\/\/\S+/g)].map((x) => x[0]) };
+  });
+  return Response.json({ mail, page: list.page, pages: list.pages, total: list.total }, { headers: { "Cache-Control": "no-store" } });
 }
