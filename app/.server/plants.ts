@@ -91,9 +91,12 @@ export function mostTender<T extends { plantKey: string }>(standing: T[], plants
 }
 
 export async function addToSpot(siteId: number, actorId: number, spotId: number, v: { plantKey: string; nickname: string; pots: number }) {
-  await db().insert(spotPlants).values({ spotId, ...v });
-  await db().insert(auditLog).values({ siteId, actorId, action: "plant.place", detail: { spotId, ...v } });
-  await ensureColdWatch({ siteId, spotId, actorId });
+  // The plant, its audit row and the cold watch it calls for outdoors (watches.ts) in one change.
+  await db().transaction(async (tx) => {
+    await tx.insert(spotPlants).values({ spotId, ...v });
+    await tx.insert(auditLog).values({ siteId, actorId, action: "plant.place", detail: { spotId, ...v } });
+    await ensureColdWatch({ siteId, spotId, actorId }, tx);
+  });
 }
 
 async function inventoryRow(siteId: number, id: number) {
@@ -108,9 +111,11 @@ async function inventoryRow(siteId: number, id: number) {
 
 export async function moveToSpot(siteId: number, actorId: number, id: number, toSpotId: number) {
   const row = await inventoryRow(siteId, id);
-  await db().update(spotPlants).set({ spotId: toSpotId, addedAt: sql`now()` }).where(eq(spotPlants.id, row.id));
-  await db().insert(auditLog).values({ siteId, actorId, action: "plant.move", detail: { id, from: row.spotId, to: toSpotId } });
-  await ensureColdWatch({ siteId, spotId: toSpotId, actorId });
+  await db().transaction(async (tx) => {
+    await tx.update(spotPlants).set({ spotId: toSpotId, addedAt: sql`now()` }).where(eq(spotPlants.id, row.id));
+    await tx.insert(auditLog).values({ siteId, actorId, action: "plant.move", detail: { id, from: row.spotId, to: toSpotId } });
+    await ensureColdWatch({ siteId, spotId: toSpotId, actorId }, tx);
+  });
 }
 
 export async function removeFromSpot(siteId: number, actorId: number, id: number) {

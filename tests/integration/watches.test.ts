@@ -11,7 +11,7 @@ import { invalidateSensorCache, sensorInfo } from "~/.server/ingest/sensors";
 import { configureMailer, startMailSink, sunkMail } from "~/.server/mail";
 import { seedAlerts } from "~/.server/seed-alerts";
 import { deleteSpot, updateSpot } from "~/.server/spots";
-import { alertEvents, alertRules, auditLog, users } from "~/db/schema.server";
+import { alertEvents, alertRules, auditLog, spotPlants, users } from "~/db/schema.server";
 import { PLANT_LIBRARY } from "~/domain/plants/library";
 import { action as siteAlertsAction } from "~/routes/site.alerts";
 import { action as spotAlertsAction, loader as spotAlertsLoader } from "~/routes/spots.$spotId.alerts";
@@ -111,6 +111,17 @@ describe("the default cold watch comes with the plants", () => {
     expect(await rulesOf(sill.id)).toHaveLength(0);
     await updateSpot({ siteId: h.site.id, actorId: h.owner.id, spot: sill, values: { name: sill.name, indoor: false, facing: "none", capacity: 0, notes: "" } });
     expect((await rulesOf(sill.id)).map((r) => r.kind)).toEqual(["cold", "silent"]);
+  });
+
+  it("moving a plant out to an empty outdoor spot gives that spot its cold watch", async () => {
+    const h = await household();
+    const shelf = await makeSpot(h.site, { indoor: true });
+    await placePlant(h, h.owner.token, "hoya", shelf.id);
+    const [row] = await db().select().from(spotPlants).where(eq(spotPlants.spotId, shelf.id));
+    const moved = await call(spotAction as Fn, post(h.carer.token, "/", { intent: "plant-move", id: String(row.id), toSpotId: String(h.spot.id) }), { siteId: String(h.site.id), spotId: String(shelf.id) });
+    expect(moved.status).toBe(200);
+    const cold = (await rulesOf(h.spot.id)).find((r) => r.kind === "cold")!;
+    expect(cold.threshold).toBe(PLANT_LIBRARY.find((p) => p.key === "hoya")!.minNightC + 2);
   });
 });
 
