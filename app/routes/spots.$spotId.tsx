@@ -1,11 +1,9 @@
-import { parseWithZod } from "@conform-to/zod/v4";
 import { useEffect, useMemo } from "react";
 import { data, Link, useFetcher, useNavigation } from "react-router";
-import { z } from "zod";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
 import { latestReading } from "~/.server/series";
-import { getSensor, getSite, getSpot, listSensors, placementHistory } from "~/.server/sites";
-import { PlacementError, placeSensor } from "~/.server/placements";
+import { getSite, getSpot, listSensors, placementHistory } from "~/.server/sites";
+import { placeFromForm } from "~/.server/sensors.server";
 import { Chart, useSeries, type ChartSpec } from "~/components/chart";
 import { PlaceSensorForm, PlacementHistory, PlacingTips } from "~/components/placement";
 import { FitList, SeasonTable } from "~/components/season";
@@ -21,7 +19,7 @@ import { inventoryAction, sitePlants } from "~/.server/plants";
 import { spotGrowing } from "~/.server/spot-growing";
 import { fitsFor, slimProfile, spotProfiles, windowOf } from "~/.server/profiles";
 import { VERDICT_RULES } from "~/domain/fit/verdict";
-import { parseLocalDateTime, timeAgo } from "~/lib/time";
+import { timeAgo } from "~/lib/time";
 import { formatTemp, toUnit } from "~/lib/units";
 import type { Route } from "./+types/spots.$spotId";
 
@@ -62,30 +60,14 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   };
 }
 
-const placeHere = z.object({ sensorId: z.number().int().positive(), when: z.enum(["now", "earlier"]).default("now"), at: z.string().optional() });
-
 export async function action({ request, params }: Route.ActionArgs) {
   const { siteId, user } = await requireSiteRole(request, params.siteId, WRITERS);
   const spot = await getSpot(siteId, params.spotId);
   const site = await getSite(siteId);
   const form = await request.formData();
   if (form.get("intent") === "place") {
-    const submission = parseWithZod(form, { schema: placeHere });
-    if (submission.status !== "success") return data({ placeError: "Choose a sensor." }, { status: 400 });
-    const sensor = await getSensor(siteId, submission.value.sensorId);
-    let at = new Date();
-    if (submission.value.when === "earlier") {
-      const parsed = submission.value.at ? parseLocalDateTime(submission.value.at, site.timeZone) : null;
-      if (!parsed) return data({ placeError: "Enter the date and time it was moved." }, { status: 400 });
-      at = parsed;
-    }
-    try {
-      await placeSensor({ siteId, sensorId: sensor.id, spotId: spot.id, at, actorId: user.id });
-    } catch (err) {
-      if (err instanceof PlacementError) return data({ placeError: err.message }, { status: 400 });
-      throw err;
-    }
-    return { placed: true };
+    const placed = await placeFromForm(form, { siteId, spotId: spot.id, timeZone: site.timeZone, actorId: user.id });
+    return "placeError" in placed ? data(placed, { status: 400 }) : placed;
   }
   const planted = await inventoryAction(form, { siteId, spotId: spot.id, actorId: user.id });
   if (planted) return data({ plantError: planted.error }, { status: planted.status });
