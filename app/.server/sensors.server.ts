@@ -18,7 +18,7 @@ import { invalidateSensorCache } from "~/.server/ingest/sensors";
 import { hashSensorSecret, newSensorSecret } from "~/.server/secrets";
 import * as schema from "~/db/schema.server";
 import { auditLog, placements, sensors, spots, type Calibration, type Channel, type Placement } from "~/db/schema.server";
-import { FROM_FIRST_READING, placeSchema } from "~/lib/placements";
+import { FROM_FIRST_READING, gapsBetween, placeSchema, type Gap } from "~/lib/placements";
 import { parseLocalDateTime } from "~/lib/time";
 
 /** A change the grower asked for that cannot be made; the message says why and what to do. */
@@ -257,24 +257,6 @@ export async function splitPlacement(opts: { siteId: number; sensorId: number; p
     await audit(tx, opts.siteId, opts.actorId, "placement.split", { sensorId: opts.sensorId, placementId: p.id, at: at.toISOString(), from: p.spotId, to: spotId });
     return [p.spotId, spotId];
   });
-}
-
-/** A stretch of time in which the sensor was in no spot; null ends are open. */
-export type Gap = { from: Date | null; to: Date | null };
-
-/** The stretches outside every placement, in time order (placements sorted by start). */
-export function gapsBetween(sorted: Pick<Placement, "fromAt" | "toAt">[]): Gap[] {
-  const gaps: Gap[] = [];
-  let cursor: Date | null = null; // end of the time covered so far; null before the first placement
-  for (const [i, p] of sorted.entries()) {
-    if (i === 0 ? p.fromAt.getTime() > FROM_FIRST_READING.getTime() : cursor && cursor.getTime() < p.fromAt.getTime()) {
-      gaps.push({ from: i === 0 ? null : cursor, to: p.fromAt });
-    }
-    if (p.toAt === null) return gaps;
-    cursor = p.toAt;
-  }
-  gaps.push({ from: cursor, to: null });
-  return gaps;
 }
 
 export type UnplacedStretch = Gap & { count: number; first: Date; last: Date };

@@ -10,6 +10,24 @@ export const FROM_FIRST_READING = new Date(0);
 
 export const isFromFirstReading = (at: Date | string) => new Date(at).getTime() <= FROM_FIRST_READING.getTime();
 
+/** A stretch of time in which the sensor was in no spot; null ends are open. */
+export type Gap = { from: Date | null; to: Date | null };
+
+/** The stretches outside every placement, in time order (placements sorted by start). */
+export function gapsBetween(sorted: { fromAt: Date; toAt: Date | null }[]): Gap[] {
+  const gaps: Gap[] = [];
+  let cursor: Date | null = null; // end of the time covered so far; null before the first placement
+  for (const [i, p] of sorted.entries()) {
+    if (i === 0 ? p.fromAt.getTime() > FROM_FIRST_READING.getTime() : cursor && cursor.getTime() < p.fromAt.getTime()) {
+      gaps.push({ from: i === 0 ? null : cursor, to: p.fromAt });
+    }
+    if (p.toAt === null) return gaps;
+    cursor = p.toAt;
+  }
+  gaps.push({ from: cursor, to: null });
+  return gaps;
+}
+
 const localTime = z.string().trim().max(40).optional();
 
 /** "Place it" on a sensor's page (spotId) or a spot's page (sensorId): now or from an earlier time. */
