@@ -279,6 +279,36 @@ export async function unplacedReadings(sensorId: number): Promise<UnplacedStretc
   return res.rows.map((r) => ({ ...gaps[Number(r.i) - 1], count: r.n, first: r.first, last: r.last }));
 }
 
+/** The site's sensors that have any reading outside every placement (one index probe per stretch). */
+export async function sensorsWithUnplaced(siteId: number): Promise<Set<number>> {
+  const rows = await pool().query<{ id: number; from_at: Date | null; to_at: Date | null }>(
+    `SELECT s.id, p.from_at, p.to_at FROM sensors s LEFT JOIN placements p ON p.sensor_id = s.id
+     WHERE s.site_id = $1 ORDER BY s.id, p.from_at`,
+    [siteId],
+  );
+  const bySensor = new Map<number, { fromAt: Date; toAt: Date | null }[]>();
+  for (const r of rows.rows) {
+    const list = bySensor.get(r.id) ?? [];
+    if (r.from_at) list.push({ fromAt: r.from_at, toAt: r.to_at });
+    bySensor.set(r.id, list);
+  }
+  const ids: number[] = [], froms: (Date | null)[] = [], tos: (Date | null)[] = [];
+  for (const [id, list] of bySensor) {
+    for (const g of gapsBetween(list)) {
+      ids.push(id);
+      froms.push(g.from);
+      tos.push(g.to);
+    }
+  }
+  if (ids.length === 0) return new Set();
+  const res = await pool().query<{ id: number }>(
+    `SELECT DISTINCT g.id FROM unnest($1::int[], $2::timestamptz[], $3::timestamptz[]) AS g(id, f, t)
+     WHERE EXISTS (SELECT 1 FROM readings r WHERE r.sensor_id = g.id AND (g.f IS NULL OR r.measured_at >= g.f) AND (g.t IS NULL OR r.measured_at < g.t))`,
+    [ids, froms, tos],
+  );
+  return new Set(res.rows.map((r) => r.id));
+}
+
 /**
  * Puts the readings of one stretch outside every placement into `spotId`, by extending the
  * neighbouring placement in that spot or adding one that covers the stretch. `gap` is the stretch

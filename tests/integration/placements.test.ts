@@ -14,6 +14,7 @@ import {
   placeSensor,
   removeSensorFromSpot,
   saveSensor,
+  sensorsWithUnplaced,
   splitPlacement,
   unplacedReadings,
 } from "~/.server/sensors.server";
@@ -74,8 +75,11 @@ describe("a new sensor's placement", () => {
     // Moving it "earlier" is still refused (it was already placed after that time), and says where to go.
     await expect(placeSensor({ siteId: site.id, sensorId: id, spotId: a.id, at: past[0].measuredAt, actorId: user.id })).rejects.toThrow(/edit its placements/);
 
+    expect(await sensorsWithUnplaced(site.id)).toEqual(new Set([id]));
+
     await assignUnplaced({ siteId: site.id, sensorId: id, gap: { from: stretch.from, to: stretch.to }, spotId: a.id, actorId: user.id });
     expect(await unplacedReadings(id)).toEqual([]);
+    expect(await sensorsWithUnplaced(site.id)).toEqual(new Set());
     expect(await expectRollupsTrue(a.id)).toBe(48);
     // The same spot's placement was extended back, not doubled.
     const rows = (await pool().query("SELECT spot_id FROM placements WHERE sensor_id = $1", [id])).rows;
