@@ -56,9 +56,3 @@ export async function rebuildRollups(spotIds: number[]) {
     client.release();
   }
 }
-
-/** Spots a sensor has ever been placed in (all of them are affected by its calibration). */
-export async function spotsOfSensor(sensorId: number): Promise<number[]> {
-  const res = await pool().query<{ spot_id: number }>("SELECT DISTINCT spot_id FROM placements WHERE sensor_id = $1", [sensorId]);
-  return res.rows.map((r) => r.spot_id);
-}
