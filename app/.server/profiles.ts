@@ -7,6 +7,7 @@ import { PLANT_LIBRARY, type PlantProfile } from "~/domain/plants/library";
 import { seasonProfile } from "~/domain/season/profile";
 import type { HourlyRollup } from "~/domain/season/types";
 import type { Site } from "~/db/schema.server";
+import { toLocalInputValue, zonedToUtc } from "~/lib/time";
 
 /** Straight from PostgreSQL, no cache. */
 export async function fetchRollups(spotIds: number[], from: Date, to: Date): Promise<Map<number, HourlyRollup[]>> {
@@ -43,8 +44,13 @@ export async function fetchRollups(spotIds: number[], from: Date, to: Date): Pro
 // compared by count and lowest and highest id, so a change committed out of id order, or the
 // oldest entries pruned, still shows. The last two hours are always read fresh, and as the clock
 // moves on only the newly past hours are read and appended.
+//
+// A rolling period (one that reaches the last two hours) is kept under the spot's id; a period that
+// ended (a past year judged by the verdict, a compare period) under the spot and its bounds, so
+// pages judging different periods of one spot don't push each other's rows out.
 type CachedRollups = { from: number; edge: number; check: string; rows: HourlyRollup[] };
-type CacheHolder = { rollups: Map<number, CachedRollups>; rowCount?: number };
+type CacheKey = number | string;
+type CacheHolder = { rollups: Map<CacheKey, CachedRollups>; rowCount?: number };
 const cacheHolder = ((globalThis as Record<string, unknown>).__nichewiseRollupCache ??= { rollups: new Map() }) as CacheHolder;
 /**
  * Bounded by rows, not spots: a spot-year is 8,760 rows, about 1.5 MB, so this holds 64 spot-years
@@ -74,6 +80,8 @@ export async function loadRollups(spotIds: number[], fromAsked: Date, to: Date):
   const from = Math.ceil(fromAsked.getTime() / 900_000) * 900_000;
   const edge = Math.min(to.getTime(), Math.floor(Date.now() / 3_600_000) * 3_600_000 - 2 * 3_600_000);
   if (edge <= from) return fetchRollups(spotIds, new Date(from), to);
+  const ended = edge === to.getTime();
+  const keyOf = (spotId: number): CacheKey => (ended ? `${spotId}:${from}:${edge}` : spotId);
   const checks = await pool().query<{ spot_id: number; check: string }>(
     `SELECT s AS spot_id, (SELECT count(*) || ':' || coalesce(min(id), 0) || ':' || coalesce(max(id), 0)
       FROM rollup_changes WHERE spot_id = s) AS check
@@ -84,16 +92,17 @@ export async function loadRollups(spotIds: number[], fromAsked: Date, to: Date):
   const stale: { spotId: number; check: string }[] = [];
   const behind = new Map<number, { spotId: number; hit: CachedRollups }[]>(); // by the edge they were read to
   for (const { spot_id: spotId, check } of checks.rows) {
-    const hit = cache.get(spotId);
+    const hit = cache.get(keyOf(spotId));
     if (!hit || hit.check !== check || hit.from > from || hit.edge <= from) stale.push({ spotId, check });
     else if (hit.edge < edge) behind.set(hit.edge, [...(behind.get(hit.edge) ?? []), { spotId, hit }]);
   }
   const used = new Map<number, CachedRollups>();
   const remember = (spotId: number, entry: CachedRollups) => {
     used.set(spotId, entry);
-    const before = cache.get(spotId);
-    cache.delete(spotId); // re-inserted last: the Map's order is the order of use
-    cache.set(spotId, entry);
+    const key = keyOf(spotId);
+    const before = cache.get(key);
+    cache.delete(key); // re-inserted last: the Map's order is the order of use
+    cache.set(key, entry);
     let rowCount = (cacheHolder.rowCount ?? 0) - (before?.rows.length ?? 0) + entry.rows.length;
     // The spot just used stays even when it alone is over the bound: this request reads it.
     while (rowCount > MAX_CACHED_ROWS && cache.size > 1) {
@@ -103,7 +112,7 @@ export async function loadRollups(spotIds: number[], fromAsked: Date, to: Date):
     }
     cacheHolder.rowCount = rowCount;
   };
-  for (const id of spotIds) if (!stale.some((c) => c.spotId === id)) remember(id, cache.get(id)!);
+  for (const id of spotIds) if (!stale.some((c) => c.spotId === id)) remember(id, cache.get(keyOf(id))!);
   if (stale.length > 0) {
     const fresh = await fetchRollups(stale.map((c) => c.spotId), new Date(from), new Date(edge));
     for (const c of stale) remember(c.spotId, { from, edge, check: c.check, rows: fresh.get(c.spotId)! });
@@ -126,23 +135,112 @@ export async function loadRollups(spotIds: number[], fromAsked: Date, to: Date):
 
 const plantThresholds = [...new Set(PLANT_LIBRARY.map((p) => p.minNightC))];
 
-/**
- * By default the last twelve months of a spot (ending now), the window a grower's year strip shows;
- * `range` picks another period (the compare page). `plants` adds the site's own profiles' nights to
- * the hour counts.
- */
-export async function spotProfiles(site: Site, spotIds: number[], now = new Date(), opts: { range?: { from: Date; to: Date }; plants?: PlantProfile[] } = {}) {
-  const to = opts.range?.to ?? now;
-  const from = opts.range?.from ?? new Date(now.getTime() - 365 * 86_400_000);
-  const rollups = await loadRollups(spotIds, from, to);
-  const siteInfo = { latitude: site.latitude, longitude: site.longitude, timeZone: site.timeZone };
-  const thresholds = opts.plants ? [...new Set([...plantThresholds, ...opts.plants.map((p) => p.minNightC)])] : plantThresholds;
+// ---------------------------------------------------------------------------------------------
+// The period a verdict judges. By default each spot's latest twelve months with readings: a year
+// imported from a logger is judged as that year, not as eleven empty months before today. A page
+// may ask for the twelve months ending with a chosen month instead (`?period=2025-12`).
+
+export type PeriodChoice = { kind: "latest" } | { kind: "ending"; month: string };
+
+export type JudgedPeriod = {
+  from: Date;
+  to: Date;
+  /** First and last month judged, "YYYY-MM" in the site's time zone. */
+  firstMonth: string;
+  lastMonth: string;
+  /** The period runs to today (rather than ending with a past month). */
+  toToday: boolean;
+};
+
+const MONTH_RE = /^(\d{4})-(0[1-9]|1[0-2])$/;
+type YearMonth = { y: number; m: number };
+const ymOf = (key: string): YearMonth => ({ y: Number(key.slice(0, 4)), m: Number(key.slice(5, 7)) });
+const addMonths = ({ y, m }: YearMonth, n: number): YearMonth => {
+  const k = y * 12 + (m - 1) + n;
+  return { y: Math.floor(k / 12), m: (k % 12) + 1 };
+};
+const keyOfYm = ({ y, m }: YearMonth) => `${String(y).padStart(4, "0")}-${String(m).padStart(2, "0")}`;
+const localMonth = (at: Date, timeZone: string) => toLocalInputValue(at, timeZone).slice(0, 7);
+const monthStartAt = (ym: YearMonth, timeZone: string) => zonedToUtc({ year: ym.y, month: ym.m, day: 1 }, timeZone);
+
+/** Reads `?period=`: absent or "latest" is the default; a month "YYYY-MM" ends a chosen twelve months. */
+export function parsePeriod(value: string | null, now: Date, timeZone: string): { choice: PeriodChoice; problem: string | null } {
+  if (value === null || value === "" || value === "latest") return { choice: { kind: "latest" }, problem: null };
+  if (!MONTH_RE.test(value)) return { choice: { kind: "latest" }, problem: "Choose the period by its last month (e.g. 2025-12); showing the latest twelve months with readings." };
+  const current = localMonth(now, timeZone);
+  if (value > current) return { choice: { kind: "ending", month: current }, problem: "That month hasn't happened yet; showing the twelve months to this one." };
+  return { choice: { kind: "ending", month: value }, problem: null };
+}
+
+/** The twelve months ending with `month` (to today if it is the current month). */
+function periodEnding(month: string, now: Date, timeZone: string): JudgedPeriod {
+  const last = ymOf(month);
+  const first = addMonths(last, -11);
+  const end = monthStartAt(addMonths(last, 1), timeZone);
+  const toToday = end.getTime() > now.getTime();
+  return { from: monthStartAt(first, timeZone), to: toToday ? now : end, firstMonth: keyOfYm(first), lastMonth: month, toToday };
+}
+
+/** The rolling year to today: what a spot with readings this month is judged on. */
+function yearToToday(now: Date, timeZone: string): JudgedPeriod {
+  const from = new Date(now.getTime() - 365 * 86_400_000);
+  return { from, to: now, firstMonth: localMonth(from, timeZone), lastMonth: localMonth(now, timeZone), toToday: true };
+}
+
+/** Months a page offers as a period's last month: this one and the 35 before (readings reach three years back). */
+export function pickableMonths(now: Date, timeZone: string): string[] {
+  const current = ymOf(localMonth(now, timeZone));
+  return Array.from({ length: 36 }, (_, i) => keyOfYm(addMonths(current, -i)));
+}
+
+/** Each spot's judged period for `choice`; "latest" looks up the spot's latest hour with readings. */
+export async function judgedPeriods(site: Site, spotIds: number[], choice: PeriodChoice, now = new Date()): Promise<Map<number, JudgedPeriod>> {
+  if (choice.kind === "ending") {
+    const period = periodEnding(choice.month, now, site.timeZone);
+    return new Map(spotIds.map((id) => [id, period]));
+  }
+  const latest = await pool().query<{ spot_id: number; hour: Date }>(
+    `SELECT s AS spot_id, (SELECT max(hour) FROM hourly_rollups WHERE spot_id = s AND hour <= $2) AS hour FROM unnest($1::int[]) s`,
+    [spotIds, now],
+  );
+  const current = localMonth(now, site.timeZone);
   return new Map(
-    spotIds.map((id) => {
-      const season = seasonProfile(rollups.get(id)!, siteInfo, { from, to, thresholds });
-      return [id, season] as const;
+    latest.rows.map(({ spot_id, hour }) => {
+      const month = hour ? localMonth(hour, site.timeZone) : current;
+      return [spot_id, month >= current ? yearToToday(now, site.timeZone) : periodEnding(month, now, site.timeZone)] as const;
     }),
   );
+}
+
+/**
+ * By default the last twelve months of a spot (ending now); `range` picks another period for all
+ * spots (the compare page), `periods` one per spot (see judgedPeriods). `plants` adds the site's
+ * own profiles' nights to the hour counts.
+ */
+export async function spotProfiles(
+  site: Site,
+  spotIds: number[],
+  now = new Date(),
+  opts: { range?: { from: Date; to: Date }; periods?: Map<number, { from: Date; to: Date }>; plants?: PlantProfile[] } = {},
+) {
+  const siteInfo = { latitude: site.latitude, longitude: site.longitude, timeZone: site.timeZone };
+  const thresholds = opts.plants ? [...new Set([...plantThresholds, ...opts.plants.map((p) => p.minNightC)])] : plantThresholds;
+  const rangeOf = (id: number) => opts.periods?.get(id) ?? opts.range ?? { from: new Date(now.getTime() - 365 * 86_400_000), to: now };
+  // Spots judged on the same period are read together.
+  const groups = new Map<string, { from: Date; to: Date; ids: number[] }>();
+  for (const id of spotIds) {
+    const { from, to } = rangeOf(id);
+    const key = `${from.getTime()}:${to.getTime()}`;
+    const group = groups.get(key) ?? { from, to, ids: [] };
+    group.ids.push(id);
+    groups.set(key, group);
+  }
+  const out = new Map<number, ReturnType<typeof seasonProfile>>();
+  for (const { from, to, ids } of groups.values()) {
+    const rollups = await loadRollups(ids, from, to);
+    for (const id of ids) out.set(id, seasonProfile(rollups.get(id)!, siteInfo, { from, to, thresholds }));
+  }
+  return new Map(spotIds.map((id) => [id, out.get(id)!] as const));
 }
 
 /** Fits for one spot, best first; pass the site's plants (library plus own profiles). */

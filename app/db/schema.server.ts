@@ -137,6 +137,9 @@ export const placements = pgTable(
     fromAt: timestamp({ withTimezone: true }).notNull(),
     // null while the sensor is still there
     toAt: timestamp({ withTimezone: true }),
+    // When the placement was made, which can be long after fromAt (a placement dated back): the
+    // silent-sensor watch counts from it, not from fromAt.
+    createdAt: createdAt(),
   },
   (t) => [index().on(t.sensorId, t.fromAt), index().on(t.spotId)],
 );

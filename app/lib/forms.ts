@@ -63,6 +63,9 @@ export const sensorSchema = z.object({
   name: z.string({ error: "Name the sensor" }).trim().min(1, "Name the sensor").max(80),
   channels: z.array(z.enum(CHANNELS)).min(1, "Pick at least one channel").default(["temperature", "humidity"]),
   spotId: z.number().int().positive().optional(),
+  // Where its placement starts: its first reading (a logger's stored data lands in the spot), now, or a time.
+  since: z.enum(["first", "now", "at"]).default("first"),
+  sinceAt: z.string().trim().max(40).optional(),
 });
 
 const offset = (label: string, max: number) =>
@@ -77,12 +80,6 @@ export const calibrationSchema = z.object({
   temperature: offset("Temperature", 10),
   humidity: offset("Humidity", 30),
   lux: offset("Light", 5000),
-});
-
-export const placeSchema = z.object({
-  spotId: z.number({ error: "Choose a spot" }).int().positive(),
-  when: z.enum(["now", "earlier"]).default("now"),
-  at: z.string().optional(),
 });
 
 /** Where to go after signing in: only paths on this site. */

@@ -1,7 +1,8 @@
 import { data, Form, Link, redirect, useNavigation } from "react-router";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
 import { deleteCustomProfile, findSitePlant, parseWish, saveWish, siteInventory, sitePlant, sitePlants, siteWishlist } from "~/.server/plants";
-import { fitSummary, spotProfiles, windowOf } from "~/.server/profiles";
+import { fitSummary, judgedPeriods, parsePeriod, pickableMonths, spotProfiles, windowOf } from "~/.server/profiles";
+import { periodLabel, PeriodPicker } from "~/components/period-picker";
 import { getSite, listSpots } from "~/.server/sites";
 import { VerdictBadge } from "~/components/season";
 import { NotesPanel } from "~/components/notes-panel";
@@ -19,7 +20,10 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     getSite(siteId), listSpots(siteId), siteWishlist(siteId), siteInventory(siteId), sitePlants(siteId), listNotes(siteId, { plantKey: params.plantKey }),
   ]);
   const plant = findSitePlant(plants, params.plantKey);
-  const profiles = await spotProfiles(site, spots.map((s) => s.id), new Date(), { plants });
+  const now = new Date();
+  const { choice, problem: periodProblem } = parsePeriod(new URL(request.url).searchParams.get("period"), now, site.timeZone);
+  const periods = await judgedPeriods(site, spots.map((s) => s.id), choice, now);
+  const profiles = await spotProfiles(site, spots.map((s) => s.id), now, { plants, periods });
   const ranked = rankSpotsForPlant(plant, spots.map((s) => ({ spot: s, season: profiles.get(s.id)!, window: windowOf(site, s) })));
   const wish = wishes.find((w) => w.plantKey === plant.key) ?? null;
   return {
@@ -33,8 +37,18 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     standing: inventory.filter((i) => i.plantKey === plant.key).map((i) => ({ ...i, spotName: spots.find((s) => s.id === i.spotId)?.name ?? "" })),
     spots: ranked.map(({ spot: { spot }, fit }) => {
       const f = fitSummary(plant, fit);
-      return { id: spot.id, name: spot.name, verdict: f.verdict, reasons: f.reasons, okReasons: f.okReasons, missingAdvice: f.missingAdvice };
+      const { firstMonth, lastMonth, toToday } = periods.get(spot.id)!;
+      return {
+        id: spot.id,
+        name: spot.name,
+        verdict: f.verdict,
+        reasons: f.reasons,
+        okReasons: f.okReasons,
+        missingAdvice: f.missingAdvice,
+        period: { firstMonth, lastMonth, toToday },
+      };
     }),
+    period: { chosen: choice.kind === "latest" ? "latest" : choice.month, months: pickableMonths(now, site.timeZone), problem: periodProblem },
   };
 }
 
@@ -134,7 +148,13 @@ export default function PlantPage({ loaderData, actionData }: Route.ComponentPro
 
       <section className="card">
         <h3 className="h2 mb-1">Where could it live?</h3>
-        <p className="mb-3 text-sm text-muted">This site's spots, best fit first, judged on each spot's last twelve months.</p>
+        <p className="mb-2 text-sm text-muted">
+          This site's spots, best fit first, judged on{" "}
+          {loaderData.period.chosen === "latest" ? "each spot's latest twelve months with readings" : "the months below"}.
+        </p>
+        <div className="mb-3">
+          <PeriodPicker chosen={loaderData.period.chosen} months={loaderData.period.months} problem={loaderData.period.problem} />
+        </div>
         {spots.length === 0 ? (
           <p className="text-muted">No spots yet.</p>
         ) : (
@@ -145,6 +165,9 @@ export default function PlantPage({ loaderData, actionData }: Route.ComponentPro
                   <Link to={`/sites/${loaderData.siteId}/spots/${s.id}?plant=${encodeURIComponent(plant.key)}`} className="link font-semibold">
                     {s.name}
                   </Link>
+                  <span className="text-sm text-muted" data-testid="judged-period">
+                    {periodLabel(s.period)}
+                  </span>
                   <span className="ml-auto">
                     <VerdictBadge verdict={s.verdict} />
                   </span>

@@ -1,20 +1,26 @@
 import { parseWithZod } from "@conform-to/zod/v4";
-import { eq } from "drizzle-orm";
 import { useEffect, useState } from "react";
 import { data, Form, redirect, useFetcher, useNavigation } from "react-router";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
-import { db } from "~/.server/db";
 import { env } from "~/.server/env";
 import { runningBroker } from "~/.server/ingest/broker";
-import { rebuildRollups, spotsOfSensor } from "~/.server/ingest/rollups";
-import { invalidateSensorCache } from "~/.server/ingest/sensors";
-import { PlacementError, placeSensor, removeSensorFromSpot } from "~/.server/placements";
-import { hashSensorSecret, newSensorSecret } from "~/.server/secrets";
-import { getSensor, getSite, getSpot, listSpots, placementHistory } from "~/.server/sites";
-import { PlaceSensorForm, PlacementHistory, PlacingTips } from "~/components/placement";
+import {
+  assignUnplaced,
+  deleteSensor,
+  movePlacementStart,
+  PlacementError,
+  placeFromForm,
+  removeSensorFromSpot,
+  rotateSensorSecret,
+  saveSensor,
+  splitPlacement,
+  unplacedReadings,
+} from "~/.server/sensors.server";
+import { getSensor, getSite, listSpots, placementHistory } from "~/.server/sites";
+import { PlaceSensorForm, PlacementEditor, PlacingTips } from "~/components/placement";
 import { useNow } from "~/components/use-now";
-import { auditLog, sensors } from "~/db/schema.server";
-import { calibrationSchema, placeSchema } from "~/lib/forms";
+import { calibrationSchema } from "~/lib/forms";
+import { placementEditSchema } from "~/lib/placements";
 import { formatInZone, parseLocalDateTime, timeAgo } from "~/lib/time";
 import type { Route } from "./+types/sensors.$sensorId";
 
@@ -33,6 +39,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     sensor: { ...sensor, secretHash: undefined },
     spots: await listSpots(siteId),
     history: await placementHistory({ sensorId: sensor.id }),
+    unplaced: await unplacedReadings(sensor.id),
     connect: {
       host: e.MQTT_PUBLIC_HOST ?? (e.MQTT_HOST === "0.0.0.0" ? new URL(request.url).hostname : e.MQTT_HOST),
       port: runningBroker()?.port ?? e.MQTT_PORT,
@@ -42,6 +49,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   };
 }
 
+const PLACEMENT_EDITS = new Set(["move-start", "split", "assign"]);
+
 export async function action({ request, params }: Route.ActionArgs) {
   const form = await request.formData();
   const intent = String(form.get("intent") ?? "");
@@ -49,60 +58,53 @@ export async function action({ request, params }: Route.ActionArgs) {
   const { siteId, user } = await requireSiteRole(request, params.siteId, owner ? ["owner"] : WRITERS);
   const sensor = await getSensor(siteId, params.sensorId);
   const site = await getSite(siteId);
+  const who = { siteId, sensorId: sensor.id, actorId: user.id };
 
   if (intent === "place") {
-    const submission = parseWithZod(form, { schema: placeSchema });
-    if (submission.status !== "success") return data({ placeError: "Choose a spot." }, { status: 400 });
-    await getSpot(siteId, submission.value.spotId);
-    let at = new Date();
-    if (submission.value.when === "earlier") {
-      const parsed = submission.value.at ? parseLocalDateTime(submission.value.at, site.timeZone) : null;
-      if (!parsed) return data({ placeError: "Enter the date and time it was moved." }, { status: 400 });
-      at = parsed;
-    }
-    try {
-      await placeSensor({ siteId, sensorId: sensor.id, spotId: submission.value.spotId, at, actorId: user.id });
-    } catch (err) {
-      if (err instanceof PlacementError) return data({ placeError: err.message }, { status: 400 });
-      throw err;
-    }
-    return { placed: true };
+    const placed = await placeFromForm(form, { ...who, timeZone: site.timeZone });
+    return "placeError" in placed ? data(placed, { status: 400 }) : placed;
   }
   if (intent === "unplace") {
-    await removeSensorFromSpot({ siteId, sensorId: sensor.id, at: new Date(), actorId: user.id });
+    await removeSensorFromSpot({ ...who, at: new Date() });
     return { placed: false };
+  }
+  if (PLACEMENT_EDITS.has(intent)) {
+    const submission = parseWithZod(form, { schema: placementEditSchema });
+    if (submission.status !== "success") return data({ editError: "Choose a time and a spot." }, { status: 400 });
+    const edit = submission.value;
+    const at = "at" in edit && edit.at ? parseLocalDateTime(edit.at, site.timeZone) : null;
+    try {
+      if (edit.intent === "move-start") {
+        if (edit.start !== "first" && !at) return data({ editError: "Enter when it got there." }, { status: 400 });
+        await movePlacementStart({ ...who, placementId: edit.placementId, fromAt: edit.start === "first" ? "first" : at! });
+      } else if (edit.intent === "split") {
+        if (!at) return data({ editError: "Enter when it was moved." }, { status: 400 });
+        await splitPlacement({ ...who, placementId: edit.placementId, at, spotId: edit.spotId });
+      } else {
+        const end = (ms: number | undefined) => (ms === undefined ? null : new Date(ms));
+        await assignUnplaced({ ...who, gap: { from: end(edit.gapFrom), to: end(edit.gapTo) }, spotId: edit.spotId });
+      }
+    } catch (err) {
+      if (err instanceof PlacementError) return data({ editError: err.message }, { status: 400 });
+      throw err;
+    }
+    return { edited: true };
   }
   if (intent === "save") {
     const submission = parseWithZod(form, { schema: calibrationSchema });
     if (submission.status !== "success") return data({ result: submission.reply() }, { status: 400 });
     const { name, ...offsets } = submission.value;
     const calibration = Object.fromEntries(Object.entries(offsets).filter(([, v]) => v != null && v !== 0));
-    const changed = JSON.stringify(calibration) !== JSON.stringify(sensor.calibration);
-    await db().update(sensors).set({ name, calibration }).where(eq(sensors.id, sensor.id));
-    await db().insert(auditLog).values({ siteId, actorId: user.id, action: "sensor.update", detail: { sensorId: sensor.id, name, calibration } });
-    if (changed) {
-      invalidateSensorCache(sensor.id);
-      await rebuildRollups(await spotsOfSensor(sensor.id));
-    }
+    await saveSensor({ ...who, name, calibration });
     return { saved: true };
   }
   if (intent === "rotate") {
-    const secret = newSensorSecret();
-    await db().update(sensors).set({ secretHash: hashSensorSecret(secret) }).where(eq(sensors.id, sensor.id));
-    invalidateSensorCache(sensor.id);
-    runningBroker()?.disconnectSensor(sensor.id);
-    await db().insert(auditLog).values({ siteId, actorId: user.id, action: "sensor.rotate-secret", detail: { sensorId: sensor.id } });
+    const secret = await rotateSensorSecret(who);
     return redirect(`/sites/${siteId}/sensors/${sensor.id}?new=1#secret=${secret}`);
   }
   if (intent === "delete") {
     if (form.get("confirm") !== sensor.name) return data({ deleteError: `Type “${sensor.name}” to delete it.` }, { status: 400 });
-    const spotIds = await spotsOfSensor(sensor.id);
-    await db().delete(sensors).where(eq(sensors.id, sensor.id));
-    await db().execute(`DELETE FROM readings WHERE sensor_id = ${sensor.id}`);
-    invalidateSensorCache(sensor.id);
-    runningBroker()?.disconnectSensor(sensor.id);
-    await rebuildRollups(spotIds);
-    await db().insert(auditLog).values({ siteId, actorId: user.id, action: "sensor.delete", detail: { sensorId: sensor.id, name: sensor.name } });
+    await deleteSensor({ ...who, name: sensor.name });
     return redirect(`/sites/${siteId}/sensors`);
   }
   throw data("Unknown action", { status: 400 });
@@ -122,7 +124,7 @@ function useSecretFromFragment() {
 }
 
 export default function SensorPage({ loaderData, actionData }: Route.ComponentProps) {
-  const { sensor, spots, history, site, role, connect } = loaderData;
+  const { sensor, spots, history, unplaced, site, role, connect } = loaderData;
   const secret = useSecretFromFragment();
   const now = useNow(loaderData.now);
   const navigation = useNavigation();
@@ -229,6 +231,7 @@ export default function SensorPage({ loaderData, actionData }: Route.ComponentPr
               timeZone={site.timeZone}
               error={actionData && "placeError" in actionData ? actionData.placeError : undefined}
               busy={navigation.state !== "idle"}
+              allowFirst={history.length === 0}
             />
             {current ? (
               <Form method="post">
@@ -241,9 +244,17 @@ export default function SensorPage({ loaderData, actionData }: Route.ComponentPr
       </div>
 
       <aside className="space-y-6">
-        <section className="card">
+        <section className="card scroll-mt-4" id="placements">
           <h2 className="h2 mb-3">Where it has been</h2>
-          <PlacementHistory rows={history} timeZone={site.timeZone} show="spot" />
+          <PlacementEditor
+            rows={history}
+            unplaced={unplaced}
+            spots={spots.map((s) => ({ id: s.id, name: s.name }))}
+            timeZone={site.timeZone}
+            canEdit={role !== "mentor"}
+            error={actionData && "editError" in actionData ? actionData.editError : undefined}
+            busy={navigation.state !== "idle"}
+          />
         </section>
         {role === "owner" ? (
           <>

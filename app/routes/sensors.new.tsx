@@ -1,38 +1,44 @@
 import { getFormProps, useForm } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
+import { useState } from "react";
 import { Form, redirect, useNavigation } from "react-router";
 import { requireSiteRole } from "~/.server/auth";
-import { db } from "~/.server/db";
-import { placeSensor } from "~/.server/placements";
-import { hashSensorSecret, newSensorSecret } from "~/.server/secrets";
-import { getSpot, listSpots } from "~/.server/sites";
+import { createSensor, PlacementError } from "~/.server/sensors.server";
+import { getSite, getSpot, listSpots } from "~/.server/sites";
 import { FormErrors, SelectField, TextField } from "~/components/field";
-import { auditLog, sensors } from "~/db/schema.server";
 import { CHANNELS, sensorSchema } from "~/lib/forms";
+import { parseLocalDateTime } from "~/lib/time";
 import type { Route } from "./+types/sensors.new";
 
 export const meta: Route.MetaFunction = () => [{ title: "Add a sensor · Nichewise" }];
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { siteId } = await requireSiteRole(request, params.siteId, ["owner"]);
-  return { spots: await listSpots(siteId) };
+  return { spots: await listSpots(siteId), timeZone: (await getSite(siteId)).timeZone };
 }
 
 export async function action({ request, params }: Route.ActionArgs) {
   const { siteId, user } = await requireSiteRole(request, params.siteId, ["owner"]);
   const submission = parseWithZod(await request.formData(), { schema: sensorSchema });
   if (submission.status !== "success") return { result: submission.reply() };
-  const { name, channels, spotId } = submission.value;
+  const { name, channels, spotId, since, sinceAt } = submission.value;
   if (spotId) await getSpot(siteId, spotId);
-  const secret = newSensorSecret();
-  const [sensor] = await db()
-    .insert(sensors)
-    .values({ siteId, name, channels, secretHash: hashSensorSecret(secret) })
-    .returning({ id: sensors.id });
-  await db().insert(auditLog).values({ siteId, actorId: user.id, action: "sensor.create", detail: { sensorId: sensor.id, name } });
-  if (spotId) await placeSensor({ siteId, sensorId: sensor.id, spotId, at: new Date(), actorId: user.id });
+  let from: "first" | "now" | Date = since === "at" ? "now" : since;
+  if (spotId && since === "at") {
+    const parsed = sinceAt ? parseLocalDateTime(sinceAt, (await getSite(siteId)).timeZone) : null;
+    if (!parsed) return { result: submission.reply({ fieldErrors: { sinceAt: ["Enter the date and time it was put there."] } }) };
+    from = parsed;
+  }
+  let created;
+  try {
+    created = await createSensor({ siteId, name, channels, spotId, since: from, actorId: user.id });
+  } catch (err) {
+    if (err instanceof PlacementError) return { result: submission.reply({ fieldErrors: { sinceAt: [err.message] } }) };
+    throw err;
+  }
+  const { id, secret } = created;
   // The secret travels once, in the URL fragment, which browsers never send to the server.
-  return redirect(`/sites/${siteId}/sensors/${sensor.id}?new=1#secret=${secret}`);
+  return redirect(`/sites/${siteId}/sensors/${id}?new=1#secret=${secret}`);
 }
 
 export default function NewSensor({ loaderData, actionData }: Route.ComponentProps) {
@@ -69,11 +75,48 @@ export default function NewSensor({ loaderData, actionData }: Route.ComponentPro
             label="Place it in"
             options={[{ value: "", label: "Not placed yet" }, ...loaderData.spots.map((s) => ({ value: String(s.id), label: s.name }))]}
           />
+          <SinceField name={fields.since.name} atName={fields.sinceAt.name} errors={fields.sinceAt.errors} timeZone={loaderData.timeZone} />
           <button className="btn" disabled={navigation.state !== "idle"}>
             Add sensor
           </button>
         </Form>
       </div>
     </div>
+  );
+}
+
+/** Since when the placement counts: by default from its first reading, so stored data lands in the spot. */
+function SinceField({ name, atName, errors, timeZone }: { name: string; atName: string; errors?: string[]; timeZone: string }) {
+  const [since, setSince] = useState<"first" | "now" | "at">("first");
+  const option = (value: typeof since, label: string) => (
+    <label className="inline-flex items-center gap-2">
+      <input type="radio" name={name} value={value} checked={since === value} onChange={() => setSince(value)} /> {label}
+    </label>
+  );
+  return (
+    <fieldset>
+      <legend className="label">Since when (if placed)</legend>
+      <div className="mt-1 flex flex-wrap gap-4 text-sm">
+        {option("first", "From its first reading")}
+        {option("now", "From now")}
+        {option("at", "From a date")}
+      </div>
+      <p className="hint">
+        {since === "first"
+          ? "Readings it stored before you added it (a logger's past months, a buffer while offline) count for this spot too."
+          : since === "now"
+            ? "Readings with earlier times will be in no spot; the sensor's page shows them and can put them in a spot later."
+            : "Readings from before this time will be in no spot until you put them in one on the sensor's page."}
+      </p>
+      {since === "at" ? (
+        <div className="mt-2">
+          <label className="label" htmlFor="sinceAt">
+            Put there at ({timeZone.replace(/_/g, " ")} time)
+          </label>
+          <input id="sinceAt" name={atName} type="datetime-local" className="field" required />
+        </div>
+      ) : null}
+      {errors ? <p className="error">{errors.join(" ")}</p> : null}
+    </fieldset>
   );
 }

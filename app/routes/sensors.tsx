@@ -1,5 +1,6 @@
 import { Link } from "react-router";
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
+import { sensorsWithUnplaced } from "~/.server/sensors.server";
 import { listSensors } from "~/.server/sites";
 import { timeAgo } from "~/lib/time";
 import type { Route } from "./+types/sensors";
@@ -8,7 +9,8 @@ export const meta: Route.MetaFunction = () => [{ title: "Sensors · Nichewise" }
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { siteId, role } = await requireSiteRole(request, params.siteId, ALL_ROLES);
-  return { role, sensors: await listSensors(siteId), now: Date.now() };
+  const [sensors, unplaced] = await Promise.all([listSensors(siteId), sensorsWithUnplaced(siteId)]);
+  return { role, sensors: sensors.map((s) => ({ ...s, unplaced: unplaced.has(s.id) })), now: Date.now() };
 }
 
 export const QUIET_AFTER_MS = 30 * 60_000;
@@ -31,9 +33,10 @@ export default function Sensors({ loaderData, params }: Route.ComponentProps) {
           const quiet = !s.lastSeenAt || now - new Date(s.lastSeenAt).getTime() > QUIET_AFTER_MS;
           return (
             <li key={s.id}>
-              <Link to={`/sites/${params.siteId}/sensors/${s.id}`} className="flex flex-wrap items-center gap-x-4 gap-y-1 p-4 hover:bg-paper">
+              <Link to={`/sites/${params.siteId}/sensors/${s.id}${s.unplaced ? "#placements" : ""}`} className="flex flex-wrap items-center gap-x-4 gap-y-1 p-4 hover:bg-paper">
                 <span className="font-semibold">{s.name}</span>
                 <span className="text-sm text-muted">{s.spotName ? `in ${s.spotName}` : "not placed"}</span>
+                {s.unplaced ? <span className="text-sm font-medium text-care">some readings are in no spot</span> : null}
                 <span className={`ml-auto text-sm ${quiet ? "font-medium text-care" : "text-muted"}`}>
                   {quiet ? "Quiet — " : ""}last heard {timeAgo(s.lastSeenAt, now)}
                   {s.battery != null ? ` · battery ${Math.round(s.battery)} %` : ""}

@@ -1,11 +1,9 @@
-import { parseWithZod } from "@conform-to/zod/v4";
 import { useEffect, useMemo } from "react";
 import { data, Link, useFetcher, useNavigation } from "react-router";
-import { z } from "zod";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
 import { latestReading } from "~/.server/series";
-import { getSensor, getSite, getSpot, listSensors, placementHistory } from "~/.server/sites";
-import { PlacementError, placeSensor } from "~/.server/placements";
+import { getSite, getSpot, listSensors, placementHistory } from "~/.server/sites";
+import { placeFromForm } from "~/.server/sensors.server";
 import { Chart, useSeries, type ChartSpec } from "~/components/chart";
 import { PlaceSensorForm, PlacementHistory, PlacingTips } from "~/components/placement";
 import { FitList, SeasonTable } from "~/components/season";
@@ -19,9 +17,10 @@ import { Inventory } from "~/components/inventory";
 import { EnvelopeChart, YearCharts } from "~/components/spot-charts";
 import { inventoryAction, sitePlants } from "~/.server/plants";
 import { spotGrowing } from "~/.server/spot-growing";
-import { fitsFor, slimProfile, spotProfiles, windowOf } from "~/.server/profiles";
+import { fitsFor, judgedPeriods, parsePeriod, pickableMonths, slimProfile, spotProfiles, windowOf } from "~/.server/profiles";
+import { periodLabel, PeriodPicker } from "~/components/period-picker";
 import { VERDICT_RULES } from "~/domain/fit/verdict";
-import { parseLocalDateTime, timeAgo } from "~/lib/time";
+import { timeAgo } from "~/lib/time";
 import { formatTemp, toUnit } from "~/lib/units";
 import type { Route } from "./+types/spots.$spotId";
 
@@ -31,17 +30,21 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const { siteId, role, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
   const spot = await getSpot(siteId, params.spotId);
   const site = await getSite(siteId);
+  const q = new URL(request.url).searchParams;
+  const now = new Date();
+  const { choice, problem: periodProblem } = parsePeriod(q.get("period"), now, site.timeZone);
+  const period = (await judgedPeriods(site, [spot.id], choice, now)).get(spot.id)!;
   const [history, latest, sensors, profiles, allPlants, notes] = await Promise.all([
     placementHistory({ spotId: spot.id }),
     latestReading(spot.id),
     listSensors(siteId),
-    spotProfiles(site, [spot.id]),
+    spotProfiles(site, [spot.id], now, { range: period }),
     sitePlants(siteId),
     listNotes(siteId, { spotId: spot.id }),
   ]);
   const season = profiles.get(spot.id)!;
   const fits = fitsFor(season, allPlants, windowOf(site, spot));
-  const plantKey = new URL(request.url).searchParams.get("plant") ?? fits[0]?.key;
+  const plantKey = q.get("plant") ?? fits[0]?.key;
   const plant = allPlants.find((p) => p.key === plantKey) ?? null;
   return {
     now: Date.now(),
@@ -53,6 +56,14 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     latest,
     sensors: sensors.filter((s) => s.spotId !== spot.id),
     profile: slimProfile(season),
+    period: {
+      chosen: choice.kind === "latest" ? "latest" : choice.month,
+      firstMonth: period.firstMonth,
+      lastMonth: period.lastMonth,
+      toToday: period.toToday,
+      months: pickableMonths(now, site.timeZone),
+      problem: periodProblem,
+    },
     fits,
     plant: plant ? { key: plant.key, name: plant.name, minNightC: plant.minNightC, maxDayC: plant.maxDayC } : null,
     plants: allPlants.map((p) => ({ key: p.key, name: p.name })),
@@ -62,30 +73,14 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   };
 }
 
-const placeHere = z.object({ sensorId: z.number().int().positive(), when: z.enum(["now", "earlier"]).default("now"), at: z.string().optional() });
-
 export async function action({ request, params }: Route.ActionArgs) {
   const { siteId, user } = await requireSiteRole(request, params.siteId, WRITERS);
   const spot = await getSpot(siteId, params.spotId);
   const site = await getSite(siteId);
   const form = await request.formData();
   if (form.get("intent") === "place") {
-    const submission = parseWithZod(form, { schema: placeHere });
-    if (submission.status !== "success") return data({ placeError: "Choose a sensor." }, { status: 400 });
-    const sensor = await getSensor(siteId, submission.value.sensorId);
-    let at = new Date();
-    if (submission.value.when === "earlier") {
-      const parsed = submission.value.at ? parseLocalDateTime(submission.value.at, site.timeZone) : null;
-      if (!parsed) return data({ placeError: "Enter the date and time it was moved." }, { status: 400 });
-      at = parsed;
-    }
-    try {
-      await placeSensor({ siteId, sensorId: sensor.id, spotId: spot.id, at, actorId: user.id });
-    } catch (err) {
-      if (err instanceof PlacementError) return data({ placeError: err.message }, { status: 400 });
-      throw err;
-    }
-    return { placed: true };
+    const placed = await placeFromForm(form, { siteId, spotId: spot.id, timeZone: site.timeZone, actorId: user.id });
+    return "placeError" in placed ? data(placed, { status: 400 }) : placed;
   }
   const planted = await inventoryAction(form, { siteId, spotId: spot.id, actorId: user.id });
   if (planted) return data({ plantError: planted.error }, { status: planted.status });
@@ -164,10 +159,17 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
         <YearStrip
           months={loaderData.profile.year}
           unit={unit}
-          title="The last twelve months, month by month"
+          title={`${periodLabel(loaderData.period)}, month by month`}
           band={loaderData.plant ? { low: loaderData.plant.minNightC, high: loaderData.plant.maxDayC, label: `${loaderData.plant.name}'s comfortable range` } : null}
         />
+        <PeriodPicker
+          chosen={loaderData.period.chosen}
+          months={loaderData.period.months}
+          keep={{ plant: loaderData.plant?.key }}
+          problem={loaderData.period.problem}
+        />
         <form method="get" className="flex flex-wrap items-center gap-2 text-sm">
+          {loaderData.period.chosen !== "latest" ? <input type="hidden" name="period" value={loaderData.period.chosen} /> : null}
           <label htmlFor="plant">Lay a plant's range over it:</label>
           <select id="plant" name="plant" className="field w-auto max-w-full" defaultValue={loaderData.plant?.key} onChange={(e) => e.currentTarget.form?.requestSubmit()}>
             {loaderData.plants.map((p) => (
@@ -184,7 +186,10 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
 
       <section className="card">
         <h3 className="h2 mb-1">What would grow here</h3>
-        <p className="mb-4 text-sm text-muted">Plant groups from the library, best fit first, judged on this spot's last twelve months.</p>
+        <p className="mb-4 text-sm text-muted" data-testid="judged-period">
+          Plant groups from the library, best fit first, judged on {periodLabel(loaderData.period)}
+          {loaderData.period.chosen === "latest" ? ": this spot's latest twelve months with readings" : ""}.
+        </p>
         <FitList fits={loaderData.fits} unit={unit} siteId={site.id} />
         <details className="mt-4 text-sm">
           <summary className="cursor-pointer font-medium">How the verdict is decided</summary>

@@ -1,7 +1,8 @@
 import { data, Form, Link, useNavigation } from "react-router";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
 import { parseWish, removeWish, saveWish, siteInventory, sitePlants, siteWishlist } from "~/.server/plants";
-import { spotProfiles, windowOf } from "~/.server/profiles";
+import { judgedPeriods, parsePeriod, pickableMonths, spotProfiles, windowOf } from "~/.server/profiles";
+import { periodLabel, PeriodPicker } from "~/components/period-picker";
 import { getSite, listSpots } from "~/.server/sites";
 import { VerdictBadge } from "~/components/season";
 import { rankSpotsForPlant, VERDICT_ORDER } from "~/domain/fit/verdict";
@@ -15,7 +16,10 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const [site, spots, plants, wishes, inventory] = await Promise.all([getSite(siteId), listSpots(siteId), sitePlants(siteId), siteWishlist(siteId), siteInventory(siteId)]);
   const byKey = new Map(plants.map((p) => [p.key, p]));
   const wanted = wishes.filter((w) => byKey.has(w.plantKey));
-  const profiles = wanted.length ? await spotProfiles(site, spots.map((s) => s.id), new Date(), { plants }) : new Map();
+  const now = new Date();
+  const { choice, problem: periodProblem } = parsePeriod(new URL(request.url).searchParams.get("period"), now, site.timeZone);
+  const periods = wanted.length ? await judgedPeriods(site, spots.map((s) => s.id), choice, now) : new Map();
+  const profiles = wanted.length ? await spotProfiles(site, spots.map((s) => s.id), now, { plants, periods }) : new Map();
   const withSeason = spots.map((s) => ({ spot: s, season: profiles.get(s.id)!, window: windowOf(site, s) }));
   const ranked = wanted.map((w) => ({ wish: w, fits: rankSpotsForPlant(byKey.get(w.plantKey)!, withSeason).map((r) => ({ spotId: r.spot.spot.id, verdict: r.fit.verdict, reason: r.fit.reasons[0]?.message ?? null })) }));
   const plan = planWishlist(
@@ -44,6 +48,14 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     rows,
     spots: plan.spots.filter((s) => s.capacity > 0 || s.mustHavePots + s.otherPots > 0),
     choices: plants.filter((p) => !wishes.some((w) => w.plantKey === p.key)).map((p) => ({ key: p.key, name: p.name })),
+    period: {
+      chosen: choice.kind === "latest" ? "latest" : choice.month,
+      months: pickableMonths(now, site.timeZone),
+      problem: periodProblem,
+      // A chosen period is the same for every spot; by default each spot has its own.
+      judged: choice.kind === "ending" ? periodLabel(periods.values().next().value ?? { firstMonth: choice.month, lastMonth: choice.month, toToday: false }) : null,
+      bySpot: choice.kind === "latest" ? spots.filter((s) => periods.has(s.id)).map((s) => `${s.name}: ${periodLabel(periods.get(s.id))}`) : [],
+    },
   };
 }
 
@@ -75,6 +87,13 @@ export default function Wishlist({ loaderData, actionData }: Route.ComponentProp
       <div>
         <h2 className="h2">Wishlist</h2>
         <p className="text-sm text-muted">Plants you want, best fit first. Must-haves claim room in their best spot before the rest.</p>
+        <p className="mt-1 text-sm text-muted" data-testid="judged-period">
+          Judged on {loaderData.period.judged ?? "each spot's latest twelve months with readings"}
+          {loaderData.period.bySpot.length > 0 ? ` (${loaderData.period.bySpot.join("; ")})` : ""}.
+        </p>
+        <div className="mt-2">
+          <PeriodPicker chosen={loaderData.period.chosen} months={loaderData.period.months} problem={loaderData.period.problem} />
+        </div>
       </div>
 
       {full.length > 0 ? (

@@ -45,7 +45,8 @@ export async function makeSensor(site: { id: number }, spot?: { id: number }, pl
     .insert(sensors)
     .values({ siteId: site.id, name: `Sensor ${uniq()}`, secretHash: hashSensorSecret(secret) })
     .returning();
-  if (spot) await db().insert(placements).values({ sensorId: sensor.id, spotId: spot.id, fromAt: placedFrom });
+  // Made when it starts, as a placement made live is (not dated back).
+  if (spot) await db().insert(placements).values({ sensorId: sensor.id, spotId: spot.id, fromAt: placedFrom, createdAt: placedFrom });
   return { ...sensor, secret };
 }
 

@@ -368,14 +368,17 @@ export class AlertEngine {
 
   /** Opens silent-sensor events for spots whose sensors have said nothing for longer than the rule allows. */
   async checkSilence(now = new Date()) {
-    const rules = (await pool().query<RuleRow & { last_seen: Date | null; placed_from: Date | null }>(
-      `${RULE_SELECT.replace("FROM alert_rules r", ", x.last_seen, x.placed_from FROM alert_rules r")}
-       JOIN LATERAL (SELECT max(s.last_seen_at) AS last_seen, min(p.from_at) AS placed_from
+    // A sensor is quiet here from the latest of its last reading, the start of its placement and
+    // the moment that placement was made: a placement dated back (a logger's past year) or a last
+    // reading from before the sensor came here is not silence in this spot.
+    const rules = (await pool().query<RuleRow & { quiet_since: Date | null }>(
+      `${RULE_SELECT.replace("FROM alert_rules r", ", x.quiet_since FROM alert_rules r")}
+       JOIN LATERAL (SELECT max(greatest(s.last_seen_at, p.from_at, p.created_at)) AS quiet_since
          FROM placements p JOIN sensors s ON s.id = p.sensor_id WHERE p.spot_id = r.spot_id AND p.to_at IS NULL) x ON true
-       WHERE r.kind = 'silent' AND NOT r.paused AND x.placed_from IS NOT NULL`,
+       WHERE r.kind = 'silent' AND NOT r.paused AND x.quiet_since IS NOT NULL`,
     )).rows;
     for (const rule of rules) {
-      const since = rule.last_seen ?? rule.placed_from!;
+      const since = rule.quiet_since!;
       const minutes = (now.getTime() - since.getTime()) / 60_000;
       if (minutes < rule.threshold) continue;
       let opened: number | null = null;

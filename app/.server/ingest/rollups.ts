@@ -25,15 +25,29 @@ FROM (
 ) x
 GROUP BY spot_id, hour`;
 
-export async function rebuildRollups(spotIds: number[]) {
+/** Anything that runs plain SQL: a pool client, or a Drizzle transaction through `rawExecutor`. */
+export type SqlRunner = { query(text: string, values?: unknown[]): Promise<unknown> };
+
+/**
+ * Rebuilds the spots' rollups inside the caller's transaction, so a change to placements or a
+ * calibration and the rollups it implies commit together (or not at all). Take it last in the
+ * transaction: the lock holds the writer back until COMMIT.
+ */
+export async function rebuildRollupsIn(run: SqlRunner, spotIds: number[]) {
   const ids = [...new Set(spotIds)];
   if (ids.length === 0) return;
+  await run.query("LOCK TABLE hourly_rollups IN SHARE ROW EXCLUSIVE MODE");
+  await run.query("DELETE FROM hourly_rollups WHERE spot_id = ANY($1::int[])", [ids]);
+  await run.query(REBUILD_SQL, [ids]);
+}
+
+/** Rebuilds the spots' rollups in a transaction of its own. */
+export async function rebuildRollups(spotIds: number[]) {
+  if (spotIds.length === 0) return;
   const client = await pool().connect();
   try {
     await client.query("BEGIN");
-    await client.query("LOCK TABLE hourly_rollups IN SHARE ROW EXCLUSIVE MODE");
-    await client.query("DELETE FROM hourly_rollups WHERE spot_id = ANY($1::int[])", [ids]);
-    await client.query(REBUILD_SQL, [ids]);
+    await rebuildRollupsIn(client, spotIds);
     await client.query("COMMIT");
   } catch (err) {
     await client.query("ROLLBACK").catch(() => {});
@@ -41,10 +55,4 @@ export async function rebuildRollups(spotIds: number[]) {
   } finally {
     client.release();
   }
-}
-
-/** Spots a sensor has ever been placed in (all of them are affected by its calibration). */
-export async function spotsOfSensor(sensorId: number): Promise<number[]> {
-  const res = await pool().query<{ spot_id: number }>("SELECT DISTINCT spot_id FROM placements WHERE sensor_id = $1", [sensorId]);
-  return res.rows.map((r) => r.spot_id);
 }
