@@ -369,7 +369,7 @@ async function bench() {
     const res = await p.query(named + " ORDER BY hour", [[target], from, to]);
     const rollups: HourlyRollup[] = res.rows.map((x) => ({
       hour: x.hour, tN: x.t_n, tMin: x.t_min, tMax: x.t_max, tSum: x.t_sum, hN: x.h_n, hMin: x.h_min, hMax: x.h_max,
-      hSum: x.h_sum, dpMarginMin: x.dp, luxN: x.lux_n, luxSum: x.lux_sum,
+      hSum: x.h_sum, dpMarginMin: x.dp, luxN: x.lux_n, luxSum: x.lux_sum, dpN: x.dp_n, dpUnderN: x.dp_under_n,
     }));
     return seasonProfile(rollups, siteInfo, { from, to });
   }
