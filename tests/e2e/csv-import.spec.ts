@@ -19,7 +19,9 @@ test("CSV upload: preview as stored, skipped rows named, import twice adds nothi
   await expect(preview).toBeVisible();
   // 68 °F = 20 °C (the definition of the Fahrenheit scale: °C = (°F − 32) × 5/9).
   await expect(preview).toContainText("20.00");
-  await expect(page.getByTestId("csv-failures")).toContainText("Row 4");
+  await expect(page.getByTestId("csv-failures")).toContainText("Line 4");
+  // Rows are numbered by their line in the file: the row after the bad one is line 5, not 4.
+  await expect(preview.locator("tbody tr td:first-child")).toHaveText(["2", "3", "5"]);
   await page.getByRole("button", { name: /Import 4 rows/ }).click();
   await expect(page.getByTestId("csv-result")).toContainText("3 new readings stored of 4 rows");
   await page.getByRole("button", { name: "Import another file" }).click();
