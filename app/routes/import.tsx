@@ -47,7 +47,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   const bytes = new Uint8Array(await file.arrayBuffer());
   let head: CsvHead;
   try {
-    head = readCsvHead(bytes);
+    head = await readCsvHead(bytes);
   } catch (err) {
     if (err instanceof CsvLimitError) return data({ error: err.message }, { status: 413 });
     return data({ error: `The file could not be read as CSV: ${(err as Error).message}` }, { status: 400 });

@@ -23,8 +23,8 @@ async function setup(timeZone: string, placedFrom?: Date) {
   return { user, site, spot, sensor };
 }
 
-function mappingFor(bytes: Uint8Array, timeZone: string): CsvMapping {
-  const head = readCsvHead(bytes);
+async function mappingFor(bytes: Uint8Array, timeZone: string): Promise<CsvMapping> {
+  const head = await readCsvHead(bytes);
   return { ...guessMapping(head.headers), dateFormat: "iso", timeZone };
 }
 
@@ -55,7 +55,7 @@ describe("CSV import of naive local times across daylight saving", () => {
       const springFile = loggerFile(zone, spring);
       const autumnFile = loggerFile(zone, autumn);
       const bytes = enc(springFile.text + autumnFile.text.split("\n").slice(1).join("\n"));
-      const mapping = mappingFor(bytes, zone);
+      const mapping = await mappingFor(bytes, zone);
       const preview = await previewCsv(bytes, mapping, sensor.id);
       expect(preview).toMatchObject({ rows: 72, valid: 72, failed: 0 });
       expect(preview.dstChanges.map((c) => c.kind).sort()).toEqual(["repeated"]);
@@ -73,12 +73,12 @@ describe("CSV import of naive local times across daylight saving", () => {
       "\n" +
       ["2025-10-26 01:30", "2025-10-26 02:00", "2025-10-26 02:30", "2025-10-26 02:00", "2025-10-26 02:30", "2025-10-26 03:00"].map((t) => `${t},14`).join("\n");
     const bytes = enc(text);
-    const preview = await previewCsv(bytes, mappingFor(bytes, "Europe/Madrid"), sensor.id);
+    const preview = await previewCsv(bytes, await mappingFor(bytes, "Europe/Madrid"), sensor.id);
     expect(preview.dstChanges).toMatchObject([
       { date: "2025-03-30", kind: "skipped", rows: 2 },
       { date: "2025-10-26", kind: "repeated", rows: 4, first: 2, second: 2 },
     ]);
-    await importCsv(bytes, mappingFor(bytes, "Europe/Madrid"), sensor.id);
+    await importCsv(bytes, await mappingFor(bytes, "Europe/Madrid"), sensor.id);
     expect((await storedTimes(sensor.id)).map((ms) => new Date(ms).toISOString().slice(0, 16))).toEqual([
       "2025-03-30T00:40", // 01:40 CET
       "2025-03-30T01:10", // 02:10 never happened: read as 03:10 CEST
@@ -98,7 +98,7 @@ describe("CSV preview lines and placements", () => {
   it("numbers preview rows and failures by their line in the file, blank lines and bad rows included", async () => {
     const { sensor } = await setup("UTC");
     const bytes = enc("time,temperature\n\n2025-06-02 10:00,warm\n2025-06-02 10:10,21\r\n\n2025-06-02 10:20,22\n");
-    const preview = await previewCsv(bytes, mappingFor(bytes, "UTC"), sensor.id);
+    const preview = await previewCsv(bytes, await mappingFor(bytes, "UTC"), sensor.id);
     expect(preview.firstFailures.map((f) => f.line)).toEqual([3]);
     expect(preview.sample.map((s) => s.line)).toEqual([4, 6]);
   });
@@ -107,7 +107,7 @@ describe("CSV preview lines and placements", () => {
     const { user, site, sensor } = await setup("UTC", new Date("2025-06-01T00:00:00Z"));
     const rows = Array.from({ length: 48 }, (_, k) => `${new Date(Date.UTC(2025, 4, 31) + k * 60 * MIN).toISOString()},20`);
     const bytes = enc("time,temperature\n" + rows.join("\n"));
-    const mapping = mappingFor(bytes, "UTC");
+    const mapping = await mappingFor(bytes, "UTC");
     const preview = await previewCsv(bytes, mapping, sensor.id);
     expect(preview).toMatchObject({ rows: 48, valid: 48, outsideSpots: 24, beforeFirstPlacement: 24 });
     expect(preview.earliestOutside!.toISOString()).toBe("2025-05-31T00:00:00.000Z");
