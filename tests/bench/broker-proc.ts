@@ -28,7 +28,8 @@ async function csvUnderLoad(msg: { file: string; sensorId: number; mapping: CsvM
   delay.enable();
   const t0 = performance.now();
   // The upload's bytes, as the route holds them.
-  const bytes = new Uint8Array(readFileSync(msg.file));
+  const file = readFileSync(msg.file);
+  const bytes = new Uint8Array(file.buffer, file.byteOffset, file.byteLength);
   const preview = await previewCsv(bytes, msg.mapping, msg.sensorId);
   const t1 = performance.now();
   const result = await importCsv(bytes, msg.mapping, msg.sensorId);
@@ -36,9 +37,12 @@ async function csvUnderLoad(msg: { file: string; sensorId: number; mapping: CsvM
   delay.disable();
   clearInterval(sampler);
   peak = Math.max(peak, process.memoryUsage.rss());
+  const heap = process.memoryUsage();
+  (globalThis as { gc?: () => void }).gc?.();
+  const afterGc = process.memoryUsage.rss();
   process.send!({
     p50Ms: delay.percentile(50) / 1e6, p99Ms: delay.percentile(99) / 1e6, maxMs: delay.max / 1e6,
-    growthMb: (peak - rss0) / 2 ** 20, previewMs: t1 - t0, importMs: t2 - t1,
+    growthMb: (peak - rss0) / 2 ** 20, afterGcMb: (afterGc - rss0) / 2 ** 20, heapUsedMb: heap.heapUsed / 2 ** 20, heapTotalMb: heap.heapTotal / 2 ** 20, previewMs: t1 - t0, importMs: t2 - t1,
     rows: preview.rows, stored: result.stored, dst: preview.dstChanges.length,
   });
 }
