@@ -302,7 +302,11 @@ export async function importCsv(source: CsvSource, mapping: CsvMapping, sensorId
     pending = [];
   };
   for await (const batch of rowsOf(source, opts.head)) {
-    if (stopped) break;
+    // Once a batch is refused the rest is only counted, for the answer's "of N rows".
+    if (stopped) {
+      rows += batch.length;
+      continue;
+    }
     for (const row of batch) {
       rows++;
       const r = rowToReading(row.cells, mapping, sensorId, ctx);
