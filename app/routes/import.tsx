@@ -90,7 +90,8 @@ export async function action({ request, params }: Route.ActionArgs) {
       mapping,
       rows: p.sample.map(({ line, reading: r }) => ({
         line,
-        measuredAt: formatInZone(r.measuredAt, site.timeZone, { second: "2-digit" }),
+        // With the offset, so the two readings of a repeated hour can be told apart.
+        measuredAt: formatInZone(r.measuredAt, site.timeZone, { second: "2-digit", timeZoneName: "shortOffset" }),
         temperature: r.temperature,
         humidity: r.humidity,
         lux: r.lux,
