@@ -118,6 +118,16 @@ describe("CSV preview lines and placements", () => {
     expect(audit).toMatchObject([{ action: "csv.import", actorId: user.id, detail: { sensorId: sensor.id, rows: 48, stored: 48, outsideSpots: 24 } }]);
   });
 
+  it("an import of a file that breaks off keeps the rows before the break and says where it stopped", async () => {
+    const { sensor } = await setup("UTC");
+    const bytes = enc('time,temperature\n2025-06-02 10:00,21\n2025-06-02 10:10,22\n"2025-06-02 10:20,23\n2025-06-02 10:30,24\n');
+    await expect(previewCsv(bytes, await mappingFor(bytes, "UTC"), sensor.id)).rejects.toThrow(/quote/i);
+    const result = await importCsv(bytes, await mappingFor(bytes, "UTC"), sensor.id);
+    expect(result).toMatchObject({ stored: 2, stopped: { line: 4 } });
+    expect(result.stopped!.reason).toMatch(/could not be read as CSV/);
+    expect((await storedTimes(sensor.id)).length).toBe(2);
+  });
+
   it("lets one preview or import run per user, two in all", () => {
     const a = csvSlot("user-a")!;
     expect(a).toBeTypeOf("function");

@@ -134,9 +134,10 @@ async function* rowsOfBytes(bytes: Uint8Array, head: CsvHead): AsyncGenerator<Cs
     const slice = Buffer.from(bytes.buffer, bytes.byteOffset + at, Math.min(SLICE, bytes.byteLength - at));
     let err = parser.api.parse(slice, false, push, () => {});
     if (!err && end) err = parser.api.parse(undefined, true, push, () => {});
-    if (err) throw err;
+    // The rows before a break in the file are handed on first.
     if (batch.length > 0) yield batch;
     batch = [];
+    if (err) throw err;
     await nextTurn();
     if (end) break;
   }
@@ -301,13 +302,24 @@ export async function importCsv(source: CsvSource, mapping: CsvMapping, sensorId
     if (!stopped && pending.length > 0) writing = { result: writer().write(pending), rows: pending.length, line: pendingLine };
     pending = [];
   };
-  for await (const batch of rowsOf(source, opts.head)) {
-    // Once a batch is refused the rest is only counted, for the answer's "of N rows".
-    if (stopped) {
-      rows += batch.length;
-      continue;
+  let lastLine = 1;
+  try {
+    for await (const batch of rowsOf(source, opts.head)) {
+      // Once a batch is refused the rest is only counted, for the answer's "of N rows".
+      if (stopped) {
+        rows += batch.length;
+        continue;
+      }
+      await convertBatch(batch);
     }
+  } catch (err) {
+    // The file itself breaks off (the preview would have said so): what came before is written.
+    await flush();
+    stopped ??= { line: lastLine + 1, reason: `the file could not be read as CSV from there: ${(err as Error).message}` };
+  }
+  async function convertBatch(batch: CsvRow[]) {
     for (const row of batch) {
+      lastLine = row.line;
       rows++;
       const r = rowToReading(row.cells, mapping, sensorId, ctx);
       if (r.ok) {
