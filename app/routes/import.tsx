@@ -2,7 +2,7 @@ import { data, useFetcher } from "react-router";
 import { useState } from "react";
 import { requireSiteRole, WRITERS } from "~/.server/auth";
 import { readLimited } from "~/.server/ingest/http";
-import { auditCsvImport, CsvLimitError, csvSlot, importCsv, previewCsv, readCsvHead, type CsvHead } from "~/.server/ingest/csv-import";
+import { auditCsvImport, CsvLimitError, isCsvFileError, csvSlot, importCsv, previewCsv, readCsvHead, type CsvHead } from "~/.server/ingest/csv-import";
 import { getSensor, getSite, listSensors } from "~/.server/sites";
 import { CSV_MAX_BYTES, CSV_MAX_ROWS, DATE_FORMATS, guessMapping, type CsvMapping, type DateFormat } from "~/domain/ingest/csv";
 import { isTimeZone } from "~/lib/forms";
@@ -77,7 +77,10 @@ export async function action({ request, params }: Route.ActionArgs) {
     const sensorPage = `/sites/${siteId}/sensors/${sensor.id}#placements`;
     if (form.get("intent") === "import") {
       const result = await importCsv(bytes, mapping, sensor.id, { head });
-      await auditCsvImport({ siteId, actorId: user.id, sensorId: sensor.id, sensorName: sensor.name, result });
+      // An import stopped by the database going away still gets its answer, audited or not.
+      await auditCsvImport({ siteId, actorId: user.id, sensorId: sensor.id, sensorName: sensor.name, result }).catch((err) =>
+        console.error(`[csv] could not audit the import for sensor ${sensor.id}:`, err),
+      );
       return data(
         { imported: { ...result, dstChanges: result.dstChanges.map(describeDstChange), sensorPage } },
         { status: result.stopped ? 503 : 200 },
@@ -107,7 +110,8 @@ export async function action({ request, params }: Route.ActionArgs) {
     };
     return { preview };
   } catch (err) {
-    return data({ error: `The file could not be read as CSV: ${(err as Error).message}` }, { status: 400 });
+    if (!isCsvFileError(err)) throw err;
+    return data({ error: `The file could not be read as CSV: ${err.message}` }, { status: 400 });
   } finally {
     release();
   }

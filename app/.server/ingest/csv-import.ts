@@ -8,7 +8,7 @@
 // per user (csvSlot).
 import { isUtf8 } from "node:buffer";
 import { setImmediate as nextTurn } from "node:timers/promises";
-import { Parser } from "csv-parse";
+import { CsvError, Parser } from "csv-parse";
 import { parse } from "csv-parse/sync";
 import { CSV_MAX_BYTES, CSV_MAX_ROWS, guessDelimiter, rowToReading, type CsvMapping } from "~/domain/ingest/csv";
 import type { Reading, SpotKindForLimits } from "~/domain/ingest/payload";
@@ -20,6 +20,9 @@ import { sensorInfo } from "~/.server/ingest/sensors";
 import { writer, type WriteResult } from "~/.server/ingest/writer";
 
 export class CsvLimitError extends Error {}
+
+/** An error in the file itself (a quote never closed, a row too long), not in the server. */
+export const isCsvFileError = (err: unknown): err is Error => err instanceof CsvError || err instanceof CsvLimitError;
 
 const tooBig = () => new CsvLimitError(`The file is over ${CSV_MAX_BYTES / 1024 / 1024} MB; split it and import the parts.`);
 const tooManyRows = () => new CsvLimitError(`The file has over ${CSV_MAX_ROWS.toLocaleString("en")} rows; split it and import the parts.`);
