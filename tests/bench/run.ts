@@ -480,8 +480,10 @@ function output(started: Date) {
     ...rows.map((r) => `| ${r.figure}${r.note ? ` — ${r.note}` : ""} | ${r.ours} | ${r.baseline} | ${r.ratio} | ${r.target} |`),
   ].join("\n");
   mkdirSync(".bench", { recursive: true });
-  writeFileSync(".bench/latest.json", JSON.stringify({ header, rows }, null, 2));
-  writeFileSync(".bench/latest.md", md + "\n");
+  // A run of one part does not overwrite the whole run's figures.
+  const name = ONLY ? `latest-${ONLY}` : "latest";
+  writeFileSync(`.bench/${name}.json`, JSON.stringify({ header, rows }, null, 2));
+  writeFileSync(`.bench/${name}.md`, md + "\n");
   console.log("\n" + md + "\n");
 }
 
