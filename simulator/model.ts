@@ -5,6 +5,7 @@
 // start of a run, so a backfill and a live run that overlap produce the same readings at the
 // same instants — exactly what ingest deduplication must cope with.
 import * as SunCalc from "suncalc";
+import { zoneClock } from "~/domain/season/local-time";
 
 export type SpotKind = "outdoor" | "windowsill" | "bathroom" | "heated-room" | "room";
 export type Facing = "N" | "NE" | "E" | "SE" | "S" | "SW" | "W" | "NW" | "none";
@@ -491,32 +492,10 @@ const INTERNAL_GAIN_C = 4.5;
 
 type LocalClock = (t: number) => number;
 
+/** Local wall-clock time (as naive ms) of an instant, from the one time-zone module. */
 function localClock(timeZone: string): LocalClock {
-  const format = new Intl.DateTimeFormat("en-US", {
-    timeZone,
-    hourCycle: "h23",
-    year: "numeric",
-    month: "numeric",
-    day: "numeric",
-    hour: "numeric",
-    minute: "numeric",
-    second: "numeric",
-  });
-  const offsets = new Map<number, number>();
-  return (t) => {
-    const hour = Math.floor(t / HOUR);
-    let offset = offsets.get(hour);
-    if (offset === undefined) {
-      const at = hour * HOUR;
-      const p: Record<string, number> = {};
-      for (const part of format.formatToParts(new Date(at))) {
-        if (part.type !== "literal") p[part.type] = Number(part.value);
-      }
-      offset = Date.UTC(p.year, p.month - 1, p.day, p.hour, p.minute, p.second) - at;
-      offsets.set(hour, offset);
-    }
-    return t + offset;
-  };
+  const clock = zoneClock(timeZone);
+  return (t) => t + clock.offsetAt(t);
 }
 
 type Shower = { start: number; end: number; peak: number };

@@ -17,20 +17,21 @@ export async function fetchRollups(spotIds: number[], from: Date, to: Date): Pro
     `SELECT spot_id, json_build_array(array_agg((extract(epoch FROM hour) * 1000)::float8 ORDER BY hour),
         array_agg(t_n ORDER BY hour), array_agg(t_min ORDER BY hour), array_agg(t_max ORDER BY hour), array_agg(t_sum ORDER BY hour),
         array_agg(h_n ORDER BY hour), array_agg(h_min ORDER BY hour), array_agg(h_max ORDER BY hour), array_agg(h_sum ORDER BY hour),
-        array_agg(dp_margin_min ORDER BY hour), array_agg(lux_n ORDER BY hour), array_agg(lux_sum ORDER BY hour)) AS c
+        array_agg(dp_margin_min ORDER BY hour), array_agg(lux_n ORDER BY hour), array_agg(lux_sum ORDER BY hour),
+        array_agg(dp_n ORDER BY hour), array_agg(dp_under_n ORDER BY hour)) AS c
      FROM hourly_rollups WHERE spot_id = ANY($1::int[]) AND hour >= $2 AND hour < $3 GROUP BY spot_id`,
     [spotIds, from, to],
   );
   const out = new Map<number, HourlyRollup[]>(spotIds.map((id) => [id, []]));
   for (const { spot_id, c } of res.rows) {
-    const [hour, tN, tMin, tMax, tSum, hN, hMin, hMax, hSum, dp, luxN, luxSum] = c;
+    const [hour, tN, tMin, tMax, tSum, hN, hMin, hMax, hSum, dp, luxN, luxSum, dpN, dpUnderN] = c;
     const list = out.get(spot_id)!;
     for (let i = 0; i < hour.length; i++) {
       list.push({
         hour: new Date(hour[i]!),
         tN: tN[i] ?? 0, tMin: tMin[i], tMax: tMax[i], tSum: tSum[i],
         hN: hN[i] ?? 0, hMin: hMin[i], hMax: hMax[i], hSum: hSum[i],
-        dpMarginMin: dp[i], luxN: luxN[i] ?? 0, luxSum: luxSum[i],
+        dpMarginMin: dp[i], luxN: luxN[i] ?? 0, luxSum: luxSum[i], dpN: dpN[i] ?? 0, dpUnderN: dpUnderN[i] ?? 0,
       });
     }
   }

@@ -176,6 +176,9 @@ export const hourlyRollups = pgTable(
     hMax: real(),
     hSum: doublePrecision(),
     dpMarginMin: real(),
+    // Readings with a dew-point margin, and those under 2 °C: the share of the hour spent near condensation.
+    dpN: integer().notNull().default(0),
+    dpUnderN: integer().notNull().default(0),
     luxN: integer().notNull().default(0),
     luxSum: doublePrecision(),
   },

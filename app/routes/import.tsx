@@ -2,11 +2,11 @@ import { data, useFetcher } from "react-router";
 import { useState } from "react";
 import { requireSiteRole, WRITERS } from "~/.server/auth";
 import { readLimited } from "~/.server/ingest/http";
-import { convertRows, CsvLimitError, importCsv, parseCsv } from "~/.server/ingest/csv-import";
+import { auditCsvImport, CsvLimitError, isCsvFileError, csvSlot, importCsv, previewCsv, readCsvHead, type CsvHead } from "~/.server/ingest/csv-import";
 import { getSensor, getSite, listSensors } from "~/.server/sites";
 import { CSV_MAX_BYTES, CSV_MAX_ROWS, DATE_FORMATS, guessMapping, type CsvMapping, type DateFormat } from "~/domain/ingest/csv";
 import { isTimeZone } from "~/lib/forms";
-import { formatInZone } from "~/lib/time";
+import { describeDstChange, formatInZone } from "~/lib/time";
 import type { Route } from "./+types/import";
 
 export const meta: Route.MetaFunction = () => [{ title: "Import CSV · Nichewise" }];
@@ -21,11 +21,18 @@ type Preview = {
   mapping: Omit<CsvMapping, "timeZone" | "dateFormat">;
   rows: { line: number; measuredAt: string; temperature: number | null; humidity: number | null; lux: number | null }[];
   failed: { line: number; reason: string }[];
+  failedTotal: number;
   total: number;
+  /** How rows at daylight-saving changes were read, one sentence each. */
+  dstChanges: string[];
+  outsideSpots: number;
+  beforeFirstPlacement: number;
+  earliestOutside: string | null;
+  sensorPage: string;
 };
 
 export async function action({ request, params }: Route.ActionArgs) {
-  const { siteId } = await requireSiteRole(request, params.siteId, WRITERS);
+  const { siteId, user } = await requireSiteRole(request, params.siteId, WRITERS);
   const site = await getSite(siteId);
   // The size limit is enforced on the stream, before anything is parsed (multipart overhead allowed).
   const body = await readLimited(request.clone(), CSV_MAX_BYTES + 64 * 1024);
@@ -37,21 +44,22 @@ export async function action({ request, params }: Route.ActionArgs) {
   const timeZone = String(form.get("timeZone") || site.timeZone);
   if (!isTimeZone(timeZone)) return data({ error: "Choose a time zone from the list." }, { status: 400 });
   const dateFormat = (DATE_FORMATS as readonly string[]).includes(String(form.get("dateFormat"))) ? (String(form.get("dateFormat")) as DateFormat) : "iso";
-  let parsed: ReturnType<typeof parseCsv>;
+  const bytes = new Uint8Array(await file.arrayBuffer());
+  let head: CsvHead;
   try {
-    parsed = parseCsv(new Uint8Array(await file.arrayBuffer()));
+    head = await readCsvHead(bytes);
   } catch (err) {
     if (err instanceof CsvLimitError) return data({ error: err.message }, { status: 413 });
     return data({ error: `The file could not be read as CSV: ${(err as Error).message}` }, { status: 400 });
   }
-  if (parsed.rows.length === 0) return data({ error: "The file has no rows." }, { status: 400 });
-  const guess = guessMapping(parsed.headers);
+  if (head.headers.length === 0) return data({ error: "The file has no rows." }, { status: 400 });
+  const guess = guessMapping(head.headers);
   const col = (name: string, fallback: number | null) => {
     const v = form.get(name);
     if (v === null) return fallback;
     if (v === "") return null;
     const n = Number(v);
-    return Number.isInteger(n) && n >= 0 && n < parsed.headers.length ? n : fallback;
+    return Number.isInteger(n) && n >= 0 && n < head.headers.length ? n : fallback;
   };
   const mapping: CsvMapping = {
     timestamp: col("timestamp", guess.timestamp) ?? guess.timestamp,
@@ -62,25 +70,51 @@ export async function action({ request, params }: Route.ActionArgs) {
     dateFormat,
     timeZone,
   };
-  if (form.get("intent") === "import") {
-    const result = await importCsv(parsed.rows, mapping, sensor.id);
-    return data({ imported: result }, { status: result.stopped ? 503 : 200 });
+  // A million-row file takes seconds: one at a time per grower, two in the whole server.
+  const release = csvSlot(String(user.id));
+  if (!release) return data({ error: "Another preview or import is running; try again when it has finished." }, { status: 429 });
+  try {
+    const sensorPage = `/sites/${siteId}/sensors/${sensor.id}#placements`;
+    if (form.get("intent") === "import") {
+      const result = await importCsv(bytes, mapping, sensor.id, { head });
+      // An import stopped by the database going away still gets its answer, audited or not.
+      await auditCsvImport({ siteId, actorId: user.id, sensorId: sensor.id, sensorName: sensor.name, result }).catch((err) =>
+        console.error(`[csv] could not audit the import for sensor ${sensor.id}:`, err),
+      );
+      return data(
+        { imported: { ...result, dstChanges: result.dstChanges.map(describeDstChange), sensorPage } },
+        { status: result.stopped ? 503 : 200 },
+      );
+    }
+    const p = await previewCsv(bytes, mapping, sensor.id, { head });
+    if (p.rows === 0) return data({ error: "The file has no rows." }, { status: 400 });
+    const preview: Preview = {
+      headers: head.headers,
+      mapping,
+      rows: p.sample.map(({ line, reading: r }) => ({
+        line,
+        // With the offset, so the two readings of a repeated hour can be told apart.
+        measuredAt: formatInZone(r.measuredAt, site.timeZone, { second: "2-digit", timeZoneName: "shortOffset" }),
+        temperature: r.temperature,
+        humidity: r.humidity,
+        lux: r.lux,
+      })),
+      failed: p.firstFailures,
+      failedTotal: p.failed,
+      total: p.rows,
+      dstChanges: p.dstChanges.map(describeDstChange),
+      outsideSpots: p.outsideSpots,
+      beforeFirstPlacement: p.beforeFirstPlacement,
+      earliestOutside: p.earliestOutside ? formatInZone(p.earliestOutside, site.timeZone) : null,
+      sensorPage,
+    };
+    return { preview };
+  } catch (err) {
+    if (!isCsvFileError(err)) throw err;
+    return data({ error: `The file could not be read as CSV: ${err.message}` }, { status: 400 });
+  } finally {
+    release();
   }
-  const sample = await convertRows(parsed.rows, mapping, sensor.id, 200);
-  const preview: Preview = {
-    headers: parsed.headers,
-    mapping,
-    rows: sample.ok.slice(0, 10).map((r, i) => ({
-      line: i + 2,
-      measuredAt: formatInZone(r.measuredAt, site.timeZone, { second: "2-digit" }),
-      temperature: r.temperature,
-      humidity: r.humidity,
-      lux: r.lux,
-    })),
-    failed: sample.failed.slice(0, 10),
-    total: parsed.rows.length,
-  };
-  return { preview };
 }
 
 const zones = typeof Intl.supportedValuesOf === "function" ? Intl.supportedValuesOf("timeZone") : ["UTC"];
@@ -201,7 +235,7 @@ export default function Import({ loaderData }: Route.ComponentProps) {
             <table className="table">
               <thead>
                 <tr>
-                  <th>Row</th>
+                  <th>Line</th>
                   <th>Time ({site.timeZone})</th>
                   <th>°C</th>
                   <th>% RH</th>
@@ -221,13 +255,47 @@ export default function Import({ loaderData }: Route.ComponentProps) {
               </tbody>
             </table>
           </div>
+          {preview.dstChanges.length > 0 ? (
+            <div className="mt-4" data-testid="csv-dst">
+              <h3 className="font-semibold">Clock changes</h3>
+              <ul className="mt-1 list-disc pl-5 text-sm">
+                {preview.dstChanges.map((d) => (
+                  <li key={d}>{d}</li>
+                ))}
+              </ul>
+            </div>
+          ) : null}
+          {preview.outsideSpots > 0 ? (
+            <div className="mt-4" role="alert" data-testid="csv-outside">
+              <p className="text-poor font-semibold">
+                {preview.beforeFirstPlacement > 0
+                  ? `${preview.beforeFirstPlacement.toLocaleString("en")} ${preview.beforeFirstPlacement === 1 ? "row falls" : "rows fall"} before this sensor's placement`
+                  : ""}
+                {preview.beforeFirstPlacement > 0 && preview.outsideSpots > preview.beforeFirstPlacement ? "; " : ""}
+                {preview.outsideSpots > preview.beforeFirstPlacement
+                  ? `${(preview.outsideSpots - preview.beforeFirstPlacement).toLocaleString("en")} fall between its placements, in no spot`
+                  : ""}
+                .
+              </p>
+              <p className="text-sm">
+                They would be stored but shown on no spot&apos;s pages{preview.earliestOutside ? ` (the earliest is ${preview.earliestOutside})` : ""}.{" "}
+                <a className="link" href={preview.sensorPage}>
+                  Extend the sensor&apos;s placement
+                </a>{" "}
+                to cover them before importing, or assign them there afterwards.
+              </p>
+            </div>
+          ) : null}
           {preview.failed.length > 0 ? (
             <div className="mt-4">
-              <h3 className="font-semibold text-poor">Rows that will be skipped (of the first 200)</h3>
+              <h3 className="font-semibold text-poor">
+                Rows that will be skipped ({preview.failedTotal.toLocaleString("en")}
+                {preview.failedTotal > preview.failed.length ? `, the first ${preview.failed.length} shown` : ""})
+              </h3>
               <ul className="mt-1 list-disc pl-5 text-sm" data-testid="csv-failures">
                 {preview.failed.map((f) => (
                   <li key={f.line}>
-                    Row {f.line}: {f.reason}
+                    Line {f.line}: {f.reason}
                   </li>
                 ))}
               </ul>
@@ -244,6 +312,23 @@ export default function Import({ loaderData }: Route.ComponentProps) {
             {imported.duplicates > 0 ? `; ${imported.duplicates.toLocaleString("en")} were already stored` : ""}
             {imported.failed > 0 ? `; ${imported.failed.toLocaleString("en")} rows skipped` : ""}.
           </p>
+          {imported.outsideSpots > 0 ? (
+            <p className="mt-2" role="alert" data-testid="csv-result-outside">
+              {imported.outsideSpots.toLocaleString("en")} of the file&apos;s readings are at times when the sensor was in no spot, so no
+              page shows them.{" "}
+              <a className="link" href={imported.sensorPage}>
+                Assign them to a spot on the sensor&apos;s page
+              </a>
+              .
+            </p>
+          ) : null}
+          {imported.dstChanges.length > 0 ? (
+            <ul className="mt-2 list-disc pl-5 text-sm">
+              {imported.dstChanges.map((d) => (
+                <li key={d}>{d}</li>
+              ))}
+            </ul>
+          ) : null}
           {imported.stopped ? (
             <p className="error mt-2" role="alert" data-testid="csv-stopped">
               The rows from line {imported.stopped.line.toLocaleString("en")} on could not be stored ({imported.stopped.reason}). Everything

@@ -1,83 +1,285 @@
 // CSV import through the same writer as live ingest. Limits are checked on the raw bytes and the
 // line count before the parser sees the file; a file imported twice adds nothing the second time.
+//
+// One process serves the web, the broker and the alerts, so a million-row file must neither
+// freeze it nor bloat it: the file is parsed in 32 KB slices straight from its bytes, each slice's
+// rows converted and handed on before the next, with a turn of the event loop between slices; no
+// pass holds more than one write batch of rows. At most two previews or imports run at once, one
+// per user (csvSlot).
+import { isUtf8 } from "node:buffer";
+import { setImmediate as nextTurn } from "node:timers/promises";
+import { CsvError, Parser } from "csv-parse";
 import { parse } from "csv-parse/sync";
 import { CSV_MAX_BYTES, CSV_MAX_ROWS, guessDelimiter, rowToReading, type CsvMapping } from "~/domain/ingest/csv";
 import type { Reading, SpotKindForLimits } from "~/domain/ingest/payload";
+import { WallClockReader, type DstChange } from "~/lib/time";
+import { db, pool } from "~/.server/db";
+import { auditLog } from "~/db/schema.server";
 import { recordRejectionsSoon } from "~/.server/ingest/rejections";
 import { sensorInfo } from "~/.server/ingest/sensors";
 import { writer, type WriteResult } from "~/.server/ingest/writer";
 
 export class CsvLimitError extends Error {}
 
+/** An error in the file itself (a quote never closed, a row too long), not in the server. */
+export const isCsvFileError = (err: unknown): err is Error => err instanceof CsvError || err instanceof CsvLimitError;
+
+const tooBig = () => new CsvLimitError(`The file is over ${CSV_MAX_BYTES / 1024 / 1024} MB; split it and import the parts.`);
+const tooManyRows = () => new CsvLimitError(`The file has over ${CSV_MAX_ROWS.toLocaleString("en")} rows; split it and import the parts.`);
+
 export function checkLimits(bytes: Uint8Array) {
-  if (bytes.byteLength > CSV_MAX_BYTES) throw new CsvLimitError(`The file is over ${CSV_MAX_BYTES / 1024 / 1024} MB; split it and import the parts.`);
+  if (bytes.byteLength > CSV_MAX_BYTES) throw tooBig();
   let lines = 0;
-  for (let i = 0; i < bytes.length; i++) if (bytes[i] === 10) lines++;
-  if (lines > CSV_MAX_ROWS + 1) throw new CsvLimitError(`The file has over ${CSV_MAX_ROWS.toLocaleString("en")} rows; split it and import the parts.`);
+  for (let i = bytes.indexOf(10); i !== -1; i = bytes.indexOf(10, i + 1)) lines++;
+  if (lines > CSV_MAX_ROWS + 1) throw tooManyRows();
 }
 
+const CHECK_CHUNK = 1024 * 1024;
+
+/**
+ * The limits and the encoding, a megabyte at a time with a turn of the event loop between: the
+ * whole 20 MB at once held the loop for about 50 ms. Each piece ends before a UTF-8 lead byte, so
+ * the pieces validate on their own.
+ */
+async function inspect(bytes: Uint8Array): Promise<Encoding> {
+  if (bytes.byteLength > CSV_MAX_BYTES) throw tooBig();
+  let lines = 0;
+  let utf8 = true;
+  for (let start = 0; start < bytes.byteLength; ) {
+    let end = Math.min(bytes.byteLength, start + CHECK_CHUNK);
+    while (end < bytes.byteLength && end > start && (bytes[end] & 0xc0) === 0x80) end--;
+    for (let i = start; i < end; i++) if (bytes[i] === 10) lines++;
+    if (lines > CSV_MAX_ROWS + 1) throw tooManyRows();
+    if (utf8) utf8 = isUtf8(bytes.subarray(start, end));
+    start = end;
+    await nextTurn();
+  }
+  return utf8 ? "utf8" : "latin1";
+}
+
+const PARSE_OPTIONS = {
+  // A logger's row is a few dozen characters: a "row" of megabytes is not one, and is refused.
+  max_record_size: 64 * 1024,
+  relax_column_count: true,
+  relax_quotes: true,
+  skip_empty_lines: true,
+  trim: true,
+  record_delimiter: ["\r\n", "\n", "\r"],
+};
+
+type Encoding = "utf8" | "latin1";
+
+const SLICE = 32 * 1024;
+
+/** The first line's text (for the delimiter), the encoding, and whether the first record is a header. */
+export type CsvHead = { headers: string[]; hasHeader: boolean; delimiter: string; encoding: Encoding; bom: boolean };
+
+const looksLikeHeader = (record: string[]) => record.some((c) => /[a-z]/i.test(c) && !/^\d{1,4}[-/.]\d/.test(c));
+
+/** Checks the file's limits and reads its first record, without parsing the rest. */
+export async function readCsvHead(bytes: Uint8Array): Promise<CsvHead> {
+  return headOf(bytes, await inspect(bytes));
+}
+
+function headOf(bytes: Uint8Array, encoding: Encoding): CsvHead {
+  const bom = bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf;
+  const start = bom ? 3 : 0;
+  const probe = Buffer.from(bytes.buffer, bytes.byteOffset + start, Math.min(bytes.byteLength - start, 64 * 1024)).toString(encoding);
+  const firstLine = probe.slice(0, probe.search(/\r?\n|\r/) >>> 0 || probe.length);
+  const delimiter = guessDelimiter(firstLine);
+  let first: string[] | null = null;
+  const parser = newParser(delimiter, encoding);
+  for (let at = start; at < bytes.byteLength && first === null; at += SLICE) {
+    const err = parser.api.parse(Buffer.from(bytes.buffer, bytes.byteOffset + at, Math.min(SLICE, bytes.byteLength - at)), false, (r) => (first ??= r), () => {});
+    if (err) throw err;
+  }
+  if (first === null) parser.api.parse(undefined, true, (r) => (first ??= r), () => {});
+  if (first === null) return { headers: [], hasHeader: false, delimiter, encoding, bom };
+  const head: string[] = first;
+  return looksLikeHeader(head)
+    ? { headers: head, hasHeader: true, delimiter, encoding, bom }
+    : { headers: head.map((_c, i) => `Column ${i + 1}`), hasHeader: false, delimiter, encoding, bom };
+}
+
+// csv-parse's push API (what its stream calls for each chunk), used directly so that a slice's
+// records come back synchronously and nothing queues inside a stream.
+type PushParser = { api: { parse(buf: Buffer | undefined, end: boolean, push: (r: string[]) => void, close: () => void): Error | undefined; info: { lines: number } } };
+
+function newParser(delimiter: string, encoding: Encoding): PushParser {
+  return new Parser({ ...PARSE_OPTIONS, delimiter, encoding }) as unknown as PushParser;
+}
+
+/** The whole file in memory, for tests and small files; imports read the bytes with `importCsv`. */
 export function parseCsv(bytes: Uint8Array): { headers: string[]; rows: string[][] } {
   checkLimits(bytes);
-  let text: string;
-  try {
-    text = new TextDecoder("utf-8", { fatal: true }).decode(bytes);
-  } catch {
-    text = new TextDecoder("latin1").decode(bytes);
+  const head = headOf(bytes, isUtf8(bytes) ? "utf8" : "latin1");
+  const text = Buffer.from(bytes.buffer, bytes.byteOffset + (head.bom ? 3 : 0), bytes.byteLength - (head.bom ? 3 : 0)).toString(head.encoding);
+  const records = parse(text, { ...PARSE_OPTIONS, delimiter: head.delimiter }) as string[][];
+  return { headers: head.headers, rows: head.hasHeader ? records.slice(1) : records };
+}
+
+/** One record and the line of the file it ends on (the header is line 1). */
+type CsvRow = { line: number; cells: string[] };
+
+
+/** The file's data rows in slices, with their lines in the file, a turn of the event loop apart. */
+async function* rowsOfBytes(bytes: Uint8Array, head: CsvHead): AsyncGenerator<CsvRow[]> {
+  const parser = newParser(head.delimiter, head.encoding);
+  let skipHeader = head.hasHeader;
+  let batch: CsvRow[] = [];
+  const push = (cells: string[]) => {
+    if (skipHeader) skipHeader = false;
+    else batch.push({ line: parser.api.info.lines, cells });
+  };
+  const start = head.bom ? 3 : 0;
+  for (let at = start; at <= bytes.byteLength; at += SLICE) {
+    const end = at + SLICE >= bytes.byteLength;
+    const slice = Buffer.from(bytes.buffer, bytes.byteOffset + at, Math.min(SLICE, bytes.byteLength - at));
+    let err = parser.api.parse(slice, false, push, () => {});
+    if (!err && end) err = parser.api.parse(undefined, true, push, () => {});
+    // The rows before a break in the file are handed on first.
+    if (batch.length > 0) yield batch;
+    batch = [];
+    if (err) throw err;
+    await nextTurn();
+    if (end) break;
   }
-  text = text.replace(/^\uFEFF/, "");
-  const firstLine = text.slice(0, text.search(/\r?\n|\r/) >>> 0 || text.length);
-  const records = parse(text, {
-    delimiter: guessDelimiter(firstLine),
-    relax_column_count: true,
-    relax_quotes: true,
-    skip_empty_lines: true,
-    trim: true,
-    record_delimiter: ["\r\n", "\n", "\r"],
-  }) as string[][];
-  if (records.length === 0) return { headers: [], rows: [] };
-  const looksLikeHeader = records[0].some((c) => /[a-z]/i.test(c) && !/^\d{1,4}[-/.]\d/.test(c));
-  return looksLikeHeader
-    ? { headers: records[0], rows: records.slice(1) }
-    : { headers: records[0].map((_c, i) => `Column ${i + 1}`), rows: records };
+}
+
+/** Rows already in memory (tests): line = index + 2, as if under a header line. */
+async function* rowsOfArray(rows: string[][]): AsyncGenerator<CsvRow[]> {
+  const step = 4000;
+  for (let i = 0; i < rows.length; i += step) {
+    yield rows.slice(i, i + step).map((cells, k) => ({ line: i + k + 2, cells }));
+    await nextTurn();
+  }
 }
 
 type Failure = { line: number; reason: string; row: string[] };
-type Conversion = { now: Date; kind: SpotKindForLimits };
+type Conversion = { now: Date; kind: SpotKindForLimits; clock: WallClockReader };
 
-async function conversion(sensorId: number): Promise<Conversion> {
+async function conversion(sensorId: number, mapping: CsvMapping): Promise<Conversion> {
   const info = await sensorInfo(sensorId);
-  return { now: new Date(), kind: info?.kind ?? "unplaced" };
+  return { now: new Date(), kind: info?.kind ?? "unplaced", clock: new WallClockReader(mapping.timeZone) };
 }
 
-/** Rows `from`..`to` as readings; a failure's line counts the header as line 1. */
-function convertRange(rows: string[][], from: number, to: number, mapping: CsvMapping, sensorId: number, ctx: Conversion, onFailure: (f: Failure) => void) {
+/** The sensor's placements as [from, to) in ms, oldest first. */
+async function placementSpans(sensorId: number): Promise<[number, number][]> {
+  const { rows } = await pool().query<{ from_at: Date; to_at: Date | null }>(
+    "SELECT from_at, to_at FROM placements WHERE sensor_id = $1 ORDER BY from_at",
+    [sensorId],
+  );
+  return rows.map((r) => [r.from_at.getTime(), r.to_at?.getTime() ?? Infinity]);
+}
+
+/** Counts readings at times when the sensor was in no spot (no page shows those). */
+class SpotCoverage {
+  outside = 0;
+  beforeFirst = 0;
+  earliestOutside: number | null = null;
+  constructor(private readonly spans: [number, number][]) {}
+  add(ms: number) {
+    const spans = this.spans;
+    // Files are in time order, so the span that held the last reading is tried first.
+    if (this.last >= 0 && ms >= spans[this.last][0] && ms < spans[this.last][1]) return;
+    for (let i = 0; i < spans.length; i++) {
+      if (ms >= spans[i][0] && ms < spans[i][1]) {
+        this.last = i;
+        return;
+      }
+    }
+    this.outside++;
+    if (spans.length === 0 || ms < spans[0][0]) this.beforeFirst++;
+    if (this.earliestOutside === null || ms < this.earliestOutside) this.earliestOutside = ms;
+  }
+  private last = -1;
+}
+
+export type CsvSource = Uint8Array | string[][];
+
+async function* rowsOf(source: CsvSource, head?: CsvHead): AsyncGenerator<CsvRow[]> {
+  if (Array.isArray(source)) yield* rowsOfArray(source);
+  else yield* rowsOfBytes(source, head ?? (await readCsvHead(source)));
+}
+
+export type PreviewRow = { line: number; reading: Reading };
+
+export type CsvPreview = {
+  rows: number;
+  valid: number;
+  failed: number;
+  /** The first valid rows with their lines in the file. */
+  sample: PreviewRow[];
+  firstFailures: { line: number; reason: string }[];
+  /** How rows at the clock changes were read. */
+  dstChanges: DstChange[];
+  /** Valid rows at times when the sensor was in no spot; those before its first placement. */
+  outsideSpots: number;
+  beforeFirstPlacement: number;
+  earliestOutside: Date | null;
+};
+
+/** A pass over the whole file without writing: what an import would store, and where. */
+export async function previewCsv(source: CsvSource, mapping: CsvMapping, sensorId: number, opts: { head?: CsvHead; sample?: number } = {}): Promise<CsvPreview> {
+  const ctx = await conversion(sensorId, mapping);
+  const coverage = new SpotCoverage(await placementSpans(sensorId));
+  const sampleSize = opts.sample ?? 10;
+  const sample: PreviewRow[] = [];
+  const firstFailures: { line: number; reason: string }[] = [];
+  let rows = 0, valid = 0, failed = 0;
+  for await (const batch of rowsOf(source, opts.head)) {
+    for (const row of batch) {
+      rows++;
+      const r = rowToReading(row.cells, mapping, sensorId, ctx);
+      if (r.ok) {
+        valid++;
+        coverage.add(r.reading.measuredAt.getTime());
+        if (sample.length < sampleSize) sample.push({ line: row.line, reading: r.reading });
+      } else if (failed++ < sampleSize) firstFailures.push({ line: row.line, reason: r.reason });
+    }
+  }
+  return {
+    rows,
+    valid,
+    failed,
+    sample,
+    firstFailures,
+    dstChanges: [...ctx.clock.changes.values()],
+    outsideSpots: coverage.outside,
+    beforeFirstPlacement: coverage.beforeFirst,
+    earliestOutside: coverage.earliestOutside === null ? null : new Date(coverage.earliestOutside),
+  };
+}
+
+/** The first `limit` rows as readings or failures (kept for callers that hold the rows). */
+export async function convertRows(rows: string[][], mapping: CsvMapping, sensorId: number, limit = Infinity) {
+  const ctx = await conversion(sensorId, mapping);
   const ok: Reading[] = [];
-  for (let i = from; i < to; i++) {
+  const failed: Failure[] = [];
+  for (let i = 0; i < Math.min(rows.length, limit); i++) {
     const r = rowToReading(rows[i], mapping, sensorId, ctx);
     if (r.ok) ok.push(r.reading);
-    else onFailure({ line: i + 2, reason: r.reason, row: rows[i] });
+    else failed.push({ line: i + 2, reason: r.reason, row: rows[i] });
   }
-  return ok;
-}
-
-export async function convertRows(rows: string[][], mapping: CsvMapping, sensorId: number, limit = Infinity) {
-  const failed: Failure[] = [];
-  const ok = convertRange(rows, 0, Math.min(rows.length, limit), mapping, sensorId, await conversion(sensorId), (f) => failed.push(f));
   return { ok, failed };
 }
 
-const IMPORT_BATCH = 10_000;
+// 5,000 rather than 10,000: each batch's readings live until PostgreSQL has them, and half the
+// batch halved the process's RSS growth over a million-row import (npm run bench).
+const IMPORT_BATCH = 5_000;
 
 /**
- * Writes the valid rows in batches of 10,000, each converted while the one before it is being
+ * Writes the valid rows in batches of 5,000, each converted while the one before it is being
  * written: converting is this process's work and writing is PostgreSQL's, so the two overlap. A
  * batch that cannot be written (the database gone, say) stops the import there, and the result
  * says at which line: the batches before it stay stored, and importing the file again adds only
  * what is missing.
  */
-export async function importCsv(rows: string[][], mapping: CsvMapping, sensorId: number) {
-  const ctx = await conversion(sensorId);
+export async function importCsv(source: CsvSource, mapping: CsvMapping, sensorId: number, opts: { head?: CsvHead } = {}) {
+  const ctx = await conversion(sensorId, mapping);
+  const coverage = new SpotCoverage(await placementSpans(sensorId));
   const firstFailures: Failure[] = [];
+  let rows = 0;
   let failed = 0;
   let valid = 0;
   let written = 0; // valid rows in batches that committed
@@ -96,17 +298,83 @@ export async function importCsv(rows: string[][], mapping: CsvMapping, sensorId:
       stopped = { line: w.line, reason: err instanceof Error ? err.message : String(err) };
     }
   };
-  for (let i = 0; i < rows.length && !stopped; i += IMPORT_BATCH) {
-    const ok = convertRange(rows, i, Math.min(rows.length, i + IMPORT_BATCH), mapping, sensorId, ctx, (f) => {
-      if (failed++ < 50) firstFailures.push(f);
-    });
-    valid += ok.length;
+  let pending: Reading[] = [];
+  let pendingLine = 0;
+  const flush = async () => {
     await settle();
-    if (!stopped && ok.length > 0) writing = { result: writer().write(ok), rows: ok.length, line: i + 2 };
+    if (!stopped && pending.length > 0) writing = { result: writer().write(pending), rows: pending.length, line: pendingLine };
+    pending = [];
+  };
+  let lastLine = 1;
+  try {
+    for await (const batch of rowsOf(source, opts.head)) {
+      // Once a batch is refused the rest is only counted, for the answer's "of N rows".
+      if (stopped) {
+        rows += batch.length;
+        continue;
+      }
+      await convertBatch(batch);
+    }
+  } catch (err) {
+    // The file itself breaks off (the preview would have said so): what came before is written.
+    await flush();
+    stopped ??= { line: lastLine + 1, reason: `the file could not be read as CSV from there: ${(err as Error).message}` };
   }
+  async function convertBatch(batch: CsvRow[]) {
+    for (const row of batch) {
+      lastLine = row.line;
+      rows++;
+      const r = rowToReading(row.cells, mapping, sensorId, ctx);
+      if (r.ok) {
+        if (pending.length === 0) pendingLine = row.line;
+        pending.push(r.reading);
+        valid++;
+        coverage.add(r.reading.measuredAt.getTime());
+      } else if (failed++ < 50) firstFailures.push({ line: row.line, reason: r.reason, row: row.cells });
+      if (pending.length >= IMPORT_BATCH) await flush();
+    }
+  }
+  await flush();
   await settle();
   recordRejectionsSoon(
     firstFailures.map((f) => ({ sensorId, source: "csv" as const, reason: f.reason, payload: f.row.join(",").slice(0, 300) })),
   );
-  return { rows: rows.length, valid, stored, duplicates: written - stored, failed, firstFailures: firstFailures.slice(0, 20), stopped };
+  return {
+    rows,
+    valid,
+    stored,
+    duplicates: written - stored,
+    failed,
+    firstFailures: firstFailures.slice(0, 20),
+    stopped,
+    /** Valid rows of this file at times when the sensor was in no spot: stored, but on no page. */
+    outsideSpots: coverage.outside,
+    dstChanges: [...ctx.clock.changes.values()],
+  };
+}
+
+export type CsvImportResult = Awaited<ReturnType<typeof importCsv>>;
+
+// At most this many previews and imports at once in the process, and one per user.
+export const CSV_MAX_RUNNING = 2;
+const running = new Set<string>();
+
+/** A turn to preview or import, or null when the user already has one or the server has two. */
+export function csvSlot(userKey: string): (() => void) | null {
+  if (running.has(userKey) || running.size >= CSV_MAX_RUNNING) return null;
+  running.add(userKey);
+  return () => running.delete(userKey);
+}
+
+/** One audit row per import: who imported how much into which sensor. */
+export async function auditCsvImport(opts: { siteId: number; actorId: number; sensorId: number; sensorName: string; result: CsvImportResult }) {
+  const { rows, stored, duplicates, failed, outsideSpots, stopped } = opts.result;
+  await db()
+    .insert(auditLog)
+    .values({
+      siteId: opts.siteId,
+      actorId: opts.actorId,
+      action: "csv.import",
+      detail: { sensorId: opts.sensorId, sensor: opts.sensorName, rows, stored, duplicates, failed, outsideSpots, stoppedAtLine: stopped?.line ?? null },
+    });
 }

@@ -8,6 +8,7 @@ import type pg from "pg";
 import { pool } from "~/.server/db";
 import type { Reading } from "~/domain/ingest/payload";
 import { zoneClock } from "~/domain/season/local-time";
+import { CONDENSATION_MARGIN_C } from "~/domain/season/profile";
 
 export type CommittedReading = { spotId: number; sensorId: number; measuredAt: Date; t: number | null; h: number | null; battery: number | null };
 export type BatchListener = (rows: CommittedReading[]) => void | Promise<void>;
@@ -21,6 +22,10 @@ export type WriteResult = { inserted: number };
  */
 export const LOCAL_HOUR_START = (at: string, timeZone: string) =>
   `(${at} - ((${at} AT TIME ZONE ${timeZone}) - date_trunc('hour', ${at} AT TIME ZONE ${timeZone})))`;
+
+/** An hour's readings with a dew-point margin and those under the condensation margin (a channel added to a stored row counts once). */
+export const DP_COUNTS = (margin: string) =>
+  `count(${margin})::int AS dp_n, (count(*) FILTER (WHERE ${margin} < ${CONDENSATION_MARGIN_C}))::int AS dp_under_n`;
 
 // Aggregate of the rows a statement really inserted, upserted into the rollups; `$1..$6` are arrays.
 // The CASEs keep a missing channel NULL: least/greatest ignore NULLs and would turn it into 0.
@@ -98,10 +103,11 @@ WITH ${input}, ins AS (
   SELECT spot_id, hour,
     count(t)::int AS t_n, min(t) AS t_min, max(t) AS t_max, sum(t) AS t_sum,
     count(h)::int AS h_n, min(h) AS h_min, max(h) AS h_max, sum(h) AS h_sum,
-    min(${merge ? "dp" : "dew_point_margin(t, h)"}) AS dp_margin_min, count(l)::int AS lux_n, sum(l) AS lux_sum
+    min(${merge ? "dp" : "dew_point_margin(t, h)"}) AS dp_margin_min, count(l)::int AS lux_n, sum(l) AS lux_sum,
+    ${DP_COUNTS(merge ? "CASE WHEN t IS NOT NULL OR h IS NOT NULL THEN dp END" : "dew_point_margin(t, h)")}
   FROM placed GROUP BY spot_id, hour
 ), up AS (
-  INSERT INTO hourly_rollups AS r (spot_id, hour, t_n, t_min, t_max, t_sum, h_n, h_min, h_max, h_sum, dp_margin_min, lux_n, lux_sum)
+  INSERT INTO hourly_rollups AS r (spot_id, hour, t_n, t_min, t_max, t_sum, h_n, h_min, h_max, h_sum, dp_margin_min, lux_n, lux_sum, dp_n, dp_under_n)
   SELECT * FROM agg ORDER BY spot_id, hour -- one lock order for every writer, so no deadlocks
   ON CONFLICT (spot_id, hour) DO UPDATE SET
     t_n = r.t_n + excluded.t_n, t_min = least(r.t_min, excluded.t_min), t_max = greatest(r.t_max, excluded.t_max),
@@ -109,6 +115,7 @@ WITH ${input}, ins AS (
     h_n = r.h_n + excluded.h_n, h_min = least(r.h_min, excluded.h_min), h_max = greatest(r.h_max, excluded.h_max),
     h_sum = CASE WHEN r.h_sum IS NULL THEN excluded.h_sum ELSE r.h_sum + coalesce(excluded.h_sum, 0) END,
     dp_margin_min = least(r.dp_margin_min, excluded.dp_margin_min),
+    dp_n = r.dp_n + excluded.dp_n, dp_under_n = r.dp_under_n + excluded.dp_under_n,
     lux_n = r.lux_n + excluded.lux_n,
     lux_sum = CASE WHEN r.lux_sum IS NULL THEN excluded.lux_sum ELSE r.lux_sum + coalesce(excluded.lux_sum, 0) END
   RETURNING 1

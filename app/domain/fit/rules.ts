@@ -178,12 +178,12 @@ export const coldNights: FitRule = (profile, season, t) => {
   const lowest = days.lowest;
   const clearlyUnder = profile.minNightC - t.nightCountMarginC;
   let cold = 0, clearlyCold = 0, mask = 0;
-  for (let i = 0; i < days.n; i++) {
-    const low = days.lows[i];
-    if (low < profile.minNightC) {
+  // Counted by night (evening to morning, see NIGHT_START_HOUR), so one cold night is one night.
+  for (const night of season.nights) {
+    if (night.low < profile.minNightC) {
       cold++;
-      mask |= 1 << days.months[i];
-      if (low < clearlyUnder) clearlyCold++;
+      mask |= 1 << night.month;
+      if (night.low < clearlyUnder) clearlyCold++;
     }
   }
   const wants = `this group wants ${c(profile.minNightC)} or more`;

@@ -70,9 +70,12 @@ export function spotYear(spec: SpotYearSpec = {}): SeasonProfile {
   return seasonProfile(rollups, FIXTURE_SITE, { from: new Date(from), to: new Date(to) });
 }
 
-/** Patches setting one hour (03:00, a night hour all year at 51.5° N) to `t` on the first `count` days of a month. */
+/**
+ * Patches setting one hour (23:00, a night hour all year at 51.5° N) to `t` on the first `count`
+ * days of a month: each is the night starting on that day (a night is counted by the date it starts).
+ */
 export function coldSnaps(month: number, count: number, t: number): HourPatch[] {
-  return Array.from({ length: count }, (_, i) => ({ month, dayOfMonth: i + 1, hour: 3, value: { t } }));
+  return Array.from({ length: count }, (_, i) => ({ month, dayOfMonth: i + 1, hour: 23, value: { t } }));
 }
 
 /** Patches setting 13:00 UTC (a sun-up hour all year) to `t` on the first `count` days of a month. */

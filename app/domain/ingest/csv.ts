@@ -1,6 +1,6 @@
 // CSV import, the pure part: guessing columns, reading timestamps in the formats loggers write,
 // and turning one row into a reading or the reason it can't be one.
-import { zonedToUtc } from "~/lib/time";
+import { WallClockReader, zonedToUtc } from "~/lib/time";
 import { validateReading, type ParseResult, type SpotKindForLimits } from "~/domain/ingest/payload";
 
 export const CSV_MAX_BYTES = 20 * 1024 * 1024;
@@ -43,8 +43,12 @@ export function guessMapping(headers: string[]): Pick<CsvMapping, "timestamp" | 
 const WALL = /^(\d{1,4})[-/.](\d{1,2})[-/.](\d{1,4})(?:[T ,]+(\d{1,2}):(\d{2})(?::(\d{2})(?:\.\d+)?)?\s*([ap]\.?m\.?)?)?$/i;
 const ZONED = /(Z|[+-]\d{2}:?\d{2})$/i;
 
-/** A timestamp cell as an instant; naive times are read in `timeZone`. Null when unreadable. */
-export function parseCsvTime(cell: string, format: DateFormat, timeZone: string): Date | null {
+/**
+ * A timestamp cell as an instant; naive times are read in `zone`: a zone name, or a reader that
+ * reads a file's rows in order (a repeated hour is read as the logger wrote it, see
+ * WallClockReader). Null when unreadable.
+ */
+export function parseCsvTime(cell: string, format: DateFormat, zone: string | WallClockReader): Date | null {
   const v = cell.trim().replace(/^"|"$/g, "");
   if (!v) return null;
   if (format === "epoch" || /^\d{9,13}(\.\d+)?$/.test(v)) {
@@ -75,7 +79,8 @@ export function parseCsvTime(cell: string, format: DateFormat, timeZone: string)
   if (mo < 1 || mo > 12 || d < 1 || d > 31 || hour > 23 || minute > 59 || second > 59) return null;
   const probe = new Date(Date.UTC(y, mo - 1, d));
   if (probe.getUTCDate() !== d) return null; // 31 April and the like
-  return zonedToUtc({ year: y, month: mo, day: d, hour, minute, second }, timeZone);
+  const wall = { year: y, month: mo, day: d, hour, minute, second };
+  return typeof zone === "string" ? zonedToUtc(wall, zone) : new Date(zone.read(wall));
 }
 
 const cellNumber = (cell: string | undefined): number | string | null => {
@@ -89,11 +94,11 @@ export function rowToReading(
   row: string[],
   mapping: CsvMapping,
   sensorId: number,
-  opts: { now: Date; kind: SpotKindForLimits },
+  opts: { now: Date; kind: SpotKindForLimits; clock?: WallClockReader },
 ): ParseResult {
   const cell = row[mapping.timestamp];
   if (cell == null) return { ok: false, reason: "row has no timestamp column" };
-  const at = parseCsvTime(cell, mapping.dateFormat, mapping.timeZone);
+  const at = parseCsvTime(cell, mapping.dateFormat, opts.clock ?? mapping.timeZone);
   if (!at) return { ok: false, reason: `timestamp “${cell.slice(0, 40)}” is not in the chosen format` };
   const pick = (i: number | null) => (i == null ? null : cellNumber(row[i]));
   return validateReading(

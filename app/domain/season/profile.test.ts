@@ -3,6 +3,8 @@ import fc from "fast-check";
 import * as SunCalc from "suncalc";
 import { seasonProfile, MIN_DAYS_FOR_MONTH, MIN_HOURS_FOR_DAY } from "~/domain/season/profile";
 import type { HourlyRollup, Site } from "~/domain/season/types";
+import { coldNights, DEFAULT_FIT_THRESHOLDS } from "~/domain/fit/rules";
+import { PLANT_LIBRARY } from "~/domain/plants/library";
 
 const HOUR = 3_600_000;
 const london: Site = { latitude: 51.5074, longitude: -0.1278, timeZone: "Europe/London" };
@@ -340,5 +342,42 @@ describe("seasonProfile — percentiles and invariants", () => {
       return (performance.now() - t0).toFixed(1);
     });
     console.log(`seasonProfile: ${rollups.length} rollups in ${runs.join(" / ")} ms (first, then warm)`);
+  });
+});
+
+describe("seasonProfile — nights and time near the dew point", () => {
+  // A week of 20 °C in a London January, with one cold spell.
+  const week = (cold: (local: { day: number; hour: number }) => boolean) =>
+    hoursBetween("2025-01-08T00:00:00Z", "2025-01-15T00:00:00Z").map((ms) => {
+      const p = localParts(ms, london.timeZone);
+      return rollup(ms, { t: cold(p) ? 8 : 20 });
+    });
+
+  it("one cold night from 22:00 to 06:00 reads 1 night (a night runs 18:00 to 08:00, common practice)", () => {
+    const rollups = week((p) => (p.day === 10 && p.hour >= 22) || (p.day === 11 && p.hour < 6));
+    const season = seasonProfile(rollups, london, { ...yearOpts, thresholds: [10] });
+    expect(season.months[0].below.find((b) => b.thresholdC === 10)).toMatchObject({ hours: 8, nights: 1 });
+    expect(season.nights.filter((n) => n.low < 10).map((n) => n.key)).toEqual(["2025-01-10"]);
+    const phal = PLANT_LIBRARY.find((p) => p.name.startsWith("Phalaenopsis"))!;
+    const verdict = coldNights(phal, season, DEFAULT_FIT_THRESHOLDS);
+    expect(verdict.message).toContain("on 1 night ");
+    expect(verdict.message).not.toContain("2 nights");
+  });
+
+  it("two cold evenings are two nights, and a cold morning belongs to the night before", () => {
+    const rollups = week((p) => (p.day === 9 && p.hour === 23) || (p.day === 12 && p.hour === 5) || (p.day === 12 && p.hour === 19));
+    const season = seasonProfile(rollups, london, { ...yearOpts, thresholds: [10] });
+    expect(season.nights.filter((n) => n.low < 10).map((n) => n.key)).toEqual(["2025-01-09", "2025-01-11", "2025-01-12"]);
+    expect(season.months[0].below.find((b) => b.thresholdC === 10)!.nights).toBe(3);
+  });
+
+  it("a January on a single-glazed sill: 91 hours touch the 2 °C margin but the readings spend 71 h under it", () => {
+    // 744 hours of six readings each; in 51 hours all six are under the margin, in 40 only three.
+    const rollups = hoursBetween("2025-01-01T00:00:00Z", "2025-02-01T00:00:00Z").map((ms, i) => {
+      const r = rollup(ms, { t: 6, rh: 80, dp: i < 91 ? 1.2 : 4 });
+      return { ...r, dpN: 6, dpUnderN: i < 51 ? 6 : i < 91 ? 3 : 0 };
+    });
+    expect(rollups.filter((r) => r.dpMarginMin! < 2).length).toBe(91);
+    expect(seasonProfile(rollups, london, yearOpts).months[0].condensationHours).toBe(71);
   });
 });

@@ -10,12 +10,14 @@ import {
   zoneClock,
   type LocalDate,
 } from "~/domain/season/local-time";
+import { resolveWall } from "~/lib/time";
 import type {
   DaySummary,
   Hemisphere,
   HourlyRollup,
   MonthOfYearProfile,
   MonthProfile,
+  NightSummary,
   PeriodStats,
   SeasonName,
   SeasonPeriodProfile,
@@ -38,6 +40,13 @@ export const CONDENSATION_MARGIN_C = 2;
 /** Lux per µmol m⁻² s⁻¹ for sunlight — Thimijan & Heins (1983), HortScience 18, 818–822. */
 export const SUNLIGHT_LUX_PER_PPFD = 54;
 export const DEFAULT_THRESHOLDS_C = [10];
+/**
+ * A night runs from 18:00 to 08:00 the next morning, local time, and belongs to the date it starts
+ * on: one cold spell from 22:00 to 06:00 is one night, not two calendar days (common practice: the
+ * grower's "night of the 5th" ends on the morning of the 6th).
+ */
+export const NIGHT_START_HOUR = 18;
+export const NIGHT_END_HOUR = 8;
 
 export const MONTH_NAMES = [
   "January", "February", "March", "April", "May", "June",
@@ -58,6 +67,8 @@ type DayAgg = {
   rhLow: number;
   rhHigh: number;
   belowHours: number[];
+  /** Nights counted with this day: the one starting on it, and an earlier one whose evening has no day of its own. */
+  nights: Night[];
   condensationHours: number;
   daySum: number;
   dayN: number;
@@ -70,6 +81,8 @@ type DayAgg = {
 };
 
 const HOUR_MS = 3_600_000;
+
+type Night = { dayNumber: number; low: number; hours: number; morningDay: number };
 
 export function hemisphereOf(latitude: number): Hemisphere {
   return latitude < 0 ? "southern" : "northern";
@@ -111,6 +124,7 @@ function newDay(dayNumber: number, thresholdCount: number, sun: { sunUp: number;
     rhLow: Infinity,
     rhHigh: -Infinity,
     belowHours: new Array<number>(thresholdCount).fill(0),
+    nights: [],
     condensationHours: 0,
     daySum: 0,
     dayN: 0,
@@ -147,7 +161,10 @@ function addHour(day: DayAgg, r: HourlyRollup, ms: number, thresholds: number[])
     day.rhLow = Math.min(day.rhLow, r.hMin ?? m);
     day.rhHigh = Math.max(day.rhHigh, r.hMax ?? m);
   }
-  if (r.dpMarginMin !== null && r.dpMarginMin < CONDENSATION_MARGIN_C) day.condensationHours++;
+  // The share of the hour's readings under the margin, as the time spent under it; rollups written
+  // before that count was kept have only the hour's lowest margin, and count whole hours.
+  if (r.dpN) day.condensationHours += (r.dpUnderN ?? 0) / r.dpN;
+  else if (r.dpMarginMin !== null && r.dpMarginMin < CONDENSATION_MARGIN_C) day.condensationHours++;
   if (r.luxN > 0 && r.luxSum !== null) {
     // PPFD = lux / 54 (sunlight); one hour at that PPFD = PPFD × 3600 µmol m⁻², /1e6 → mol.
     day.dliSum += ((r.luxSum / r.luxN / SUNLIGHT_LUX_PER_PPFD) * 3600) / 1e6;
@@ -212,6 +229,7 @@ function aggregate(days: DayAgg[], thresholds: number[], hourly: Float64Array = 
     rhSum += d.rhSum;
     rhN += d.rhN;
     condensationHours += d.condensationHours;
+    for (const n of d.nights) for (let i = 0; i < below.length; i++) if (n.low < below[i].thresholdC) below[i].nights++;
     hoursObserved += d.hours;
     const dif = dayNightDifference(d);
     if (dif !== null) difs.push(dif);
@@ -219,7 +237,6 @@ function aggregate(days: DayAgg[], thresholds: number[], hourly: Float64Array = 
     if (dli !== null) dlis.push(dli);
     for (let i = 0; i < below.length; i++) {
       below[i].hours += d.belowHours[i];
-      if (d.hours > 0 && d.low < below[i].thresholdC) below[i].nights++;
     }
   }
   return {
@@ -239,7 +256,7 @@ function aggregate(days: DayAgg[], thresholds: number[], hourly: Float64Array = 
     // Hour-weighted like the temperature percentiles: the mean of hourly means.
     humidity: { lowest: finiteOrNull(rhLow), highest: finiteOrNull(rhHigh), mean: rhN > 0 ? rhSum / rhN : null },
     below,
-    condensationHours,
+    condensationHours: Math.round(condensationHours * 10) / 10,
     light: { meanDli: meanOrNull(dlis), daysWithLight: dlis.length },
     hoursObserved,
     daysObserved: complete.length,
@@ -280,18 +297,37 @@ export function seasonProfile(rollups: HourlyRollup[], site: Site, opts: SeasonP
   const toMs = opts.to.getTime();
 
   const days = new Map<number, DayAgg>();
+  const nights = new Map<number, Night>();
   for (const r of rollups) {
     const ms = r.hour.getTime();
     if (ms < fromMs || ms >= toMs) continue;
-    const offset = clock.offsetAt(ms);
-    const dayNumber = Math.floor((ms + offset) / DAY_MS);
+    const local = ms + clock.offsetAt(ms);
+    const dayNumber = Math.floor(local / DAY_MS);
     let day = days.get(dayNumber);
     if (!day) {
-      const localNoonMs = dayNumber * DAY_MS + 12 * HOUR_MS - offset;
+      const localNoonMs = resolveWall(dayNumber * DAY_MS + 12 * HOUR_MS, site.timeZone).ms;
       day = newDay(dayNumber, thresholds.length, sunWindow(localNoonMs, dayNumber, site));
       days.set(dayNumber, day);
     }
     addHour(day, r, ms, thresholds);
+    const hourOfDay = Math.floor((local - dayNumber * DAY_MS) / HOUR_MS);
+    if (r.tN > 0 && r.tSum !== null && (hourOfDay >= NIGHT_START_HOUR || hourOfDay < NIGHT_END_HOUR)) {
+      const start = hourOfDay >= NIGHT_START_HOUR ? dayNumber : dayNumber - 1;
+      const low = r.tMin ?? r.tSum / r.tN;
+      const night = nights.get(start);
+      if (night) {
+        night.low = Math.min(night.low, low);
+        night.hours++;
+      } else nights.set(start, { dayNumber: start, low, hours: 1, morningDay: dayNumber });
+    }
+  }
+  // A night is counted with the day it starts on; one whose evening has no readings (a file that
+  // starts at midnight) with its morning's day, so it is neither lost nor counted twice.
+  // A night that started before the requested range is left to the range before it.
+  const firstLocalDay = clock.localDayNumber(fromMs);
+  for (const n of nights.values()) {
+    if (n.dayNumber < firstLocalDay) nights.delete(n.dayNumber);
+    else (days.get(n.dayNumber) ?? days.get(n.morningDay))!.nights.push(n);
   }
 
   const orderedDays = [...days.values()].sort((a, b) => a.dayNumber - b.dayNumber);
@@ -399,5 +435,12 @@ export function seasonProfile(rollups: HourlyRollup[], site: Site, opts: SeasonP
     dli: dayDli(d),
   }));
 
-  return { timeZone: site.timeZone, hemisphere, from: opts.from, to: opts.to, thresholds, months, seasons, year, days: daySummaries };
+  const nightSummaries: NightSummary[] = [...nights.values()]
+    .sort((a, b) => a.dayNumber - b.dayNumber)
+    .map((n) => {
+      const date = dateOfDayNumber(n.dayNumber);
+      return { key: dayKey(date), month: date.month, dayNumber: n.dayNumber, hoursObserved: n.hours, low: n.low };
+    });
+
+  return { timeZone: site.timeZone, hemisphere, from: opts.from, to: opts.to, thresholds, months, seasons, year, days: daySummaries, nights: nightSummaries };
 }

@@ -10,6 +10,9 @@ export type HourlyRollup = {
   hMax: number | null;
   hSum: number | null; // relative humidity %
   dpMarginMin: number | null; // lowest (air temperature − dew point) in the hour, °C
+  /** Readings of the hour with a dew-point margin, and those under CONDENSATION_MARGIN_C (0 in rollups older than the count). */
+  dpN?: number;
+  dpUnderN?: number;
   luxN: number;
   luxSum: number | null; // lux samples in the hour and their sum (mean = luxSum/luxN)
 };
@@ -23,7 +26,7 @@ export type ThresholdCount = {
   thresholdC: number;
   /** Hours whose hourly mean temperature was below the threshold. */
   hours: number;
-  /** Local days whose lowest temperature fell below the threshold. */
+  /** Nights (NIGHT_START_HOUR to NIGHT_END_HOUR local, by the date they start) with a reading below the threshold. */
   nights: number;
 };
 
@@ -52,7 +55,7 @@ export type PeriodStats = {
   };
   humidity: { lowest: number | null; highest: number | null; mean: number | null };
   below: ThresholdCount[];
-  /** Hours whose lowest dew-point margin was under CONDENSATION_MARGIN_C. */
+  /** Time the readings spent under CONDENSATION_MARGIN_C, hours (to 0.1 h). */
   condensationHours: number;
   light: { meanDli: number | null; daysWithLight: number };
   coverage: Coverage;
@@ -97,6 +100,15 @@ export type DaySummary = {
   dli: number | null;
 };
 
+/** A night: from NIGHT_START_HOUR on its date to NIGHT_END_HOUR the next morning, local time. */
+export type NightSummary = {
+  key: string; // local date the night starts, "2026-01-05"
+  month: number; // 1–12, of that date
+  dayNumber: number;
+  hoursObserved: number;
+  low: number;
+};
+
 export type SeasonProfile = {
   timeZone: string;
   hemisphere: Hemisphere;
@@ -108,4 +120,6 @@ export type SeasonProfile = {
   /** All Januaries together, all Februaries together, … — the profile a grower reads. */
   year: MonthOfYearProfile[];
   days: DaySummary[];
+  /** Nights with a temperature reading, in order. */
+  nights: NightSummary[];
 };
