@@ -2,7 +2,8 @@
 import { isIP } from "node:net";
 import { z } from "zod";
 
-const port = z.coerce.number().int().min(1).max(65535);
+// 0 lets the system choose a free port (tests start the whole server that way).
+const port = z.coerce.number().int().min(0).max(65535);
 const flag = z
   .enum(["0", "1", "true", "false", "yes", "no"])
   .transform((v) => v === "1" || v === "true" || v === "yes");

@@ -157,9 +157,9 @@ function refuseCrossOrigin(req: express.Request, res: express.Response, next: ex
 const isEntry = process.argv[1] && path.resolve(process.argv[1]) === path.resolve(import.meta.filename);
 if (isEntry) {
   const dev = process.argv.includes("--dev");
-  // React, React Router and Express run their production code only with NODE_ENV=production; the
-  // start scripts set it, and a bare `node build/nichewise-server.mjs` gets it too.
-  if (!dev) process.env.NODE_ENV ??= "production";
+  // React, React Router and Express pick their production code at import, from NODE_ENV: too early
+  // to set it here, so the start scripts and the supervisor set it.
+  if (!dev && process.env.NODE_ENV !== "production") log(`NODE_ENV is ${process.env.NODE_ENV ?? "unset"}: running React's development code (slower, more memory); npm start sets NODE_ENV=production`);
   main({ dev }).then(
     (running) => {
       let stopping = false;
