@@ -98,7 +98,7 @@ async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[],
   if (opts.dev) {
     const vite = await import("vite");
     // Vite's HMR socket shares our server rather than opening a port of its own.
-    const viteServer = await vite.createServer({ server: { middlewareMode: true, hmr: { server } } });
+    const viteServer = await vite.createServer({ server: { middlewareMode: true, ws: { server } } });
     stops.push(() => viteServer.close());
     app.use(viteServer.middlewares);
     app.all("*", reactRouterAdapter(() => viteServer.ssrLoadModule("virtual:react-router/server-build") as Promise<ServerBuild>, "development"));
@@ -122,7 +122,9 @@ async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[],
         server.closeAllConnections();
       }),
   );
-  const url = publicUrl();
+  const port = (server.address() as { port: number }).port;
+  // PORT=0 (tests) lets the system choose; the log and the answer name the port it chose.
+  const url = e.PORT === 0 && !e.PUBLIC_URL ? publicUrl().replace(/:0$/, `:${port}`) : publicUrl();
   log(`Web app on ${url}`);
 
   if (demo.seed && e.NW_SIMULATOR) {
@@ -133,7 +135,7 @@ async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[],
     stops.splice(stops.length, 0, sim.stop);
   }
 
-  return { stop: stopAll, url, mqttPort: broker.port, port: (server.address() as { port: number }).port };
+  return { stop: stopAll, url, mqttPort: broker.port, port };
 }
 
 // Actions refuse posts from other origins (CSRF). Sensors posting to the ingest API carry a bearer
