@@ -140,6 +140,8 @@ export function reactRouterAdapter(getBuild: () => ServerBuild | Promise<ServerB
         if (!read.ok) return refuse(req, res, read.status, read.message);
         body = read.bytes;
         release = read.release;
+        // The body's share of the budget is given back when the exchange ends, however it ends.
+        res.once("close", release);
       }
       let url: URL;
       let headers: Headers;
@@ -151,7 +153,6 @@ export function reactRouterAdapter(getBuild: () => ServerBuild | Promise<ServerB
       }
       const controller = new AbortController();
       res.once("close", () => {
-        release();
         if (!res.writableFinished) controller.abort();
       });
       const request = new Request(url, { method: req.method, headers, body: body as Uint8Array<ArrayBuffer> | null, signal: controller.signal });
