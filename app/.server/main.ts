@@ -145,7 +145,7 @@ function refuseCrossOrigin(req: express.Request, res: express.Response, next: ex
   if (req.path === "/api/ingest") return next();
   const origin = req.headers.origin;
   const site = req.headers["sec-fetch-site"];
-  if (site === "cross-site" || (origin && origin !== "null" && new URL(origin).host !== req.headers.host)) {
+  if (site === "cross-site" || (origin && origin !== "null" && originHost(origin) !== req.headers.host)) {
     res.status(403).type("text/plain").send("Cross-origin form posts are refused.");
     return;
   }
@@ -154,6 +154,15 @@ function refuseCrossOrigin(req: express.Request, res: express.Response, next: ex
     return;
   }
   next();
+}
+
+// A malformed Origin is refused like a foreign one, rather than thrown on.
+function originHost(origin: string) {
+  try {
+    return new URL(origin).host;
+  } catch {
+    return null;
+  }
 }
 
 const isEntry = process.argv[1] && path.resolve(process.argv[1]) === path.resolve(import.meta.filename);

@@ -140,6 +140,9 @@ describe("request bodies are bounded before any route reads them (issue 14 §1)"
     expect(declared.status).toBe(413);
     const chunked = await send({ path: "/sign-in", method: "POST", headers: { "Content-Type": FORM, "Transfer-Encoding": "chunked" }, stream: 1024 * 1024 + 1 });
     expect(chunked.status).toBe(413);
+    // A malformed Origin is refused, not a 500.
+    const badOrigin = await send({ path: "/sign-in", method: "POST", headers: { "Content-Type": FORM, Origin: "http://[bad" }, body: "email=a" });
+    expect(badOrigin.status).toBe(403);
     // The ingest and import limits are not for requests without their credentials.
     const anonymousIngest = await send({ path: "/api/ingest", method: "POST", headers: { "Transfer-Encoding": "chunked" }, stream: 1024 * 1024 });
     expect(anonymousIngest.status).toBe(413);
