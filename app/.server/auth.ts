@@ -77,6 +77,15 @@ export async function validateSessionToken(token: string): Promise<ValidSession 
   return { ...row, renewed };
 }
 
+/** Whether a token names an unexpired session: one read, no renewal (the web adapter's upload check). */
+export async function sessionIsLive(token: string): Promise<boolean> {
+  const [row] = await db()
+    .select({ id: sessions.id })
+    .from(sessions)
+    .where(and(eq(sessions.id, sessionIdFromToken(token)), gt(sessions.expiresAt, new Date())));
+  return !!row;
+}
+
 export async function invalidateSession(sessionId: string) {
   await db().delete(sessions).where(eq(sessions.id, sessionId));
 }

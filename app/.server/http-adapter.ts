@@ -8,7 +8,7 @@ import type { IncomingMessage } from "node:http";
 import type { NextFunction, Request as ExpressRequest, Response as ExpressResponse } from "express";
 import { writeReadableStreamToWritable } from "@react-router/node";
 import { createRequestHandler, type ServerBuild } from "react-router";
-import { SESSION_COOKIE, sessionCookie } from "~/.server/auth";
+import { readSessionToken, SESSION_COOKIE, sessionCookie, sessionIsLive } from "~/.server/auth";
 import { MAX_HTTP_BYTES } from "~/.server/ingest/http";
 import { requestScope, type RequestScope } from "~/.server/request-scope";
 import { CSV_MAX_BYTES } from "~/domain/ingest/csv";
@@ -26,32 +26,41 @@ declare module "react-router" {
 export const FORM_MAX_BYTES = 64 * 1024;
 /** The CSV import: its documented file limit plus the multipart form around it. */
 export const IMPORT_MAX_BYTES = CSV_MAX_BYTES + 64 * 1024;
+
 /**
- * All large bodies being read at once, together: five imports at their limit, or a few dozen
- * ingest batches. Past it the server answers 503 rather than grow.
+ * How many bytes of each kind of body may be held at once, all requests together: past it the
+ * server answers 503 (with Retry-After) rather than grow. Separate, so that a flood of one kind
+ * (forms from anyone, batches with made-up sensor tokens) does not refuse the others.
  */
-export const BODY_BUDGET_BYTES = 5 * IMPORT_MAX_BYTES;
+type Budget = { readonly name: string; readonly max: number; used: number };
+export const BODY_BUDGETS = {
+  form: { name: "form", max: 32 * 1024 * 1024, used: 0 } as Budget,
+  ingest: { name: "ingest", max: 8 * MAX_HTTP_BYTES, used: 0 } as Budget,
+  import: { name: "import", max: 3 * IMPORT_MAX_BYTES, used: 0 } as Budget,
+};
 
 const IMPORT_PATH = /^\/sites\/\d+\/import(?:\.data)?$/;
 
 /**
- * The most bytes a request may send. The large limits are only for the two routes that need them,
- * and only with the credential they require (checked again by the route), so that anyone else is
- * held to a form's size.
+ * The most bytes a request may send, and the budget it counts against. The large limits are only
+ * for the two routes that need them and only with their credential: a bearer token for the ingest
+ * API (verified by the route before it reads anything), a live session for the CSV import. Anyone
+ * else is held to a form's size.
  */
-export function bodyLimit(pathname: string, headers: IncomingMessage["headers"]): number {
-  if (pathname === "/api/ingest" && /^Bearer /.test(headers.authorization ?? "")) return MAX_HTTP_BYTES;
-  if (IMPORT_PATH.test(pathname) && (headers.cookie ?? "").includes(`${SESSION_COOKIE}=`)) return IMPORT_MAX_BYTES;
-  return FORM_MAX_BYTES;
+export async function bodyLimit(pathname: string, headers: IncomingMessage["headers"]): Promise<{ limit: number; budget: Budget }> {
+  if (pathname === "/api/ingest" && /^Bearer \S/.test(headers.authorization ?? "")) return { limit: MAX_HTTP_BYTES, budget: BODY_BUDGETS.ingest };
+  if (IMPORT_PATH.test(pathname)) {
+    const token = readSessionToken(headers.cookie);
+    if (token && (await sessionIsLive(token).catch(() => false))) return { limit: IMPORT_MAX_BYTES, budget: BODY_BUDGETS.import };
+  }
+  return { limit: FORM_MAX_BYTES, budget: BODY_BUDGETS.form };
 }
-
-let bodyBytesInFlight = 0;
 
 type BodyRead = { ok: true; bytes: Buffer; release: () => void } | { ok: false; status: 400 | 413 | 503; message: string };
 
-function readBody(req: IncomingMessage, limit: number): Promise<BodyRead> {
+function readBody(req: IncomingMessage, limit: number, budget: Budget): Promise<BodyRead> {
   const tooLarge = { ok: false, status: 413, message: `Request body over ${limit >= 1024 * 1024 ? `${Math.round(limit / 1024 / 1024)} MB` : `${limit / 1024} KB`}.` } as const;
-  const busy = { ok: false, status: 503, message: "Too many large uploads at once: try again in a minute." } as const;
+  const busy = { ok: false, status: 503, message: "Too many uploads at once: try again in a minute." } as const;
   const declared = req.headers["content-length"];
   if (declared !== undefined && !/^\d+$/.test(declared)) return Promise.resolve({ ok: false, status: 400, message: "Bad Content-Length." });
   if (declared !== undefined && Number(declared) > limit) return Promise.resolve(tooLarge);
@@ -60,7 +69,7 @@ function readBody(req: IncomingMessage, limit: number): Promise<BodyRead> {
     let size = 0;
     let settled = false;
     const release = () => {
-      bodyBytesInFlight -= size;
+      budget.used -= size;
       size = 0;
     };
     const finish = (result: BodyRead) => {
@@ -75,9 +84,9 @@ function readBody(req: IncomingMessage, limit: number): Promise<BodyRead> {
     };
     const onData = (chunk: Buffer) => {
       size += chunk.byteLength;
-      bodyBytesInFlight += chunk.byteLength;
+      budget.used += chunk.byteLength;
       if (size > limit) return finish(tooLarge);
-      if (size > FORM_MAX_BYTES && bodyBytesInFlight > BODY_BUDGET_BYTES) return finish(busy);
+      if (budget.used > budget.max) return finish(busy);
       chunks.push(chunk);
     };
     const onEnd = () => finish({ ok: true, bytes: Buffer.concat(chunks), release });
@@ -136,7 +145,8 @@ export function reactRouterAdapter(getBuild: () => ServerBuild | Promise<ServerB
     try {
       let body: Buffer | null = null;
       if (req.method !== "GET" && req.method !== "HEAD") {
-        const read = await readBody(req, bodyLimit(req.path, req.headers));
+        const { limit, budget } = await bodyLimit(req.path, req.headers);
+        const read = await readBody(req, limit, budget);
         if (!read.ok) return refuse(req, res, read.status, read.message);
         body = read.bytes;
         release = read.release;

@@ -146,7 +146,35 @@ describe("request bodies are bounded before any route reads them (issue 14 §1)"
     // The ingest and import limits are not for requests without their credentials.
     const anonymousIngest = await send({ path: "/api/ingest", method: "POST", headers: { "Transfer-Encoding": "chunked" }, stream: 1024 * 1024 });
     expect(anonymousIngest.status).toBe(413);
+    const { user } = await signedIn();
+    const site = await makeSite(user);
+    const madeUpSession = await send({
+      path: `/sites/${site.id}/import`,
+      method: "POST",
+      headers: { Cookie: "nw_session=madeup", Origin: origin(), "Content-Type": "multipart/form-data; boundary=nwboundary", "Transfer-Encoding": "chunked" },
+      stream: 1024 * 1024,
+    });
+    expect(madeUpSession.status).toBe(413);
     expect((await send({ path: "/sign-in" })).status).toBe(200);
+  });
+
+  it("past the budget of bodies held at once, a post gets 503 with Retry-After, and the budget is given back", async () => {
+    const { BODY_BUDGETS } = await import("~/.server/http-adapter");
+    const before = BODY_BUDGETS.form.used;
+    // As if many other form posts were being read at this moment.
+    BODY_BUDGETS.form.used += BODY_BUDGETS.form.max;
+    try {
+      const r = await send({ path: "/sign-in", method: "POST", headers: { "Content-Type": FORM, Origin: origin() }, body: form({ email: "a@example.test", password: "x" }) });
+      expect(r.status).toBe(503);
+      expect(r.headers["retry-after"]).toBeDefined();
+    } finally {
+      BODY_BUDGETS.form.used -= BODY_BUDGETS.form.max;
+    }
+    const ok = await send({ path: "/sign-in", method: "POST", headers: { "Content-Type": FORM, Origin: origin() }, body: form({ email: "a@example.test", password: "x" }) });
+    expect(ok.status).toBe(200);
+    // Given back when the server has closed the exchange, which may follow the answer by a moment.
+    for (let i = 0; i < 100 && BODY_BUDGETS.form.used !== before; i++) await new Promise((r) => setTimeout(r, 20));
+    expect(BODY_BUDGETS.form.used).toBe(before);
   });
 
   it("actions check the session before they read the body", async () => {
