@@ -59,7 +59,14 @@ export async function bodyLimit(pathname: string, headers: IncomingMessage["head
 type BodyRead = { ok: true; bytes: Buffer; release: () => void } | { ok: false; status: 400 | 413 | 503; message: string };
 
 function readBody(req: IncomingMessage, limit: number, budget: Budget): Promise<BodyRead> {
-  const tooLarge = { ok: false, status: 413, message: `Request body over ${limit >= 1024 * 1024 ? `${Math.round(limit / 1024 / 1024)} MB` : `${limit / 1024} KB`}.` } as const;
+  const tooLarge = {
+    ok: false,
+    status: 413,
+    message:
+      budget === BODY_BUDGETS.import
+        ? `The file is over ${CSV_MAX_BYTES / 1024 / 1024} MB; split it and import the parts.`
+        : `Request body over ${limit >= 1024 * 1024 ? `${Math.round(limit / 1024 / 1024)} MB` : `${limit / 1024} KB`}.`,
+  } as const;
   const busy = { ok: false, status: 503, message: "Too many uploads at once: try again in a minute." } as const;
   const declared = req.headers["content-length"];
   if (declared !== undefined && !/^\d+$/.test(declared)) return Promise.resolve({ ok: false, status: 400, message: "Bad Content-Length." });
