@@ -216,7 +216,9 @@ async function sendResponse(req: IncomingMessage, res: ExpressResponse, response
 export function securityHeaders(opts: { dev: boolean; https: boolean }) {
   return (_req: ExpressRequest, res: ExpressResponse, next: NextFunction) => {
     const nonce = randomBytes(16).toString("base64");
-    res.locals.nonce = nonce;
+    // No nonce on the page in development: the policy there allows inline scripts anyway, and
+    // React reports the dev-only critical-CSS link's nonce (hidden by the browser) as a mismatch.
+    res.locals.nonce = opts.dev ? "" : nonce;
     res.setHeader("Content-Security-Policy", contentSecurityPolicy(nonce, opts.dev));
     res.setHeader("X-Content-Type-Options", "nosniff");
     res.setHeader("Referrer-Policy", "same-origin");

@@ -189,6 +189,9 @@ if (isEntry) {
         }, 20_000).unref();
         running.stop().then(() => process.exit(0));
       };
+      // In development a Vite server that React Router's plugin starts registers a SIGTERM handler
+      // that exits at once, skipping this shutdown (PostgreSQL was left running): ours only.
+      process.removeAllListeners("SIGTERM");
       process.on("SIGINT", () => shutdown("SIGINT"));
       process.on("SIGTERM", () => shutdown("SIGTERM"));
     },

@@ -192,19 +192,17 @@ describe("request bodies are bounded before any route reads them (issue 14 §1)"
 });
 
 describe("security headers and the production policy (issue 14 §1)", () => {
-  it("sends a CSP whose nonce is on every inline script of the page, frame-ancestors 'none', nosniff and a referrer policy", async () => {
+  it("sends a CSP (in production: scripts by nonce only), frame-ancestors 'none', nosniff and a referrer policy", async () => {
     const r = await send({ path: "/sign-in" });
     const csp = r.headers["content-security-policy"] as string;
     expect(csp).toContain("frame-ancestors 'none'");
     expect(csp).toContain("object-src 'none'");
     expect(r.headers["x-content-type-options"]).toBe("nosniff");
     expect(r.headers["referrer-policy"]).toBe("same-origin");
-    const scripts = [...r.body.matchAll(/<script\b([^>]*)>/g)].map((m) => m[1]);
-    expect(scripts.length).toBeGreaterThan(0);
-    const nonce = / nonce="([^"]+)"/;
-    for (const attrs of scripts.filter((a) => !/\bsrc=/.test(a))) expect(attrs).toMatch(nonce);
-    // The development policy (this server runs Vite) allows inline scripts; the production one
-    // allows only the nonce, which is checked in Chromium by tests/e2e/security-headers.spec.ts.
+    // This server runs Vite, whose development policy allows inline scripts. The production policy
+    // allows only the nonce: checked here, and against the pages in Chromium by
+    // tests/e2e/security-headers.spec.ts.
+    expect(csp).toContain("script-src 'self' 'unsafe-inline'");
     const { contentSecurityPolicy } = await import("~/.server/http-adapter");
     expect(contentSecurityPolicy("abc").split("; ").find((d) => d.startsWith("script-src"))).toBe("script-src 'self' 'nonce-abc'");
   });
