@@ -48,6 +48,7 @@ const IMPORT_PATH = /^\/sites\/\d+\/import(?:\.data)?$/;
  * else is held to a form's size.
  */
 export async function bodyLimit(pathname: string, headers: IncomingMessage["headers"]): Promise<{ limit: number; budget: Budget }> {
+  pathname = pathname.replace(/(.)\/+$/, "$1");
   if (pathname === "/api/ingest" && /^Bearer \S/.test(headers.authorization ?? "")) return { limit: MAX_HTTP_BYTES, budget: BODY_BUDGETS.ingest };
   if (IMPORT_PATH.test(pathname)) {
     const token = readSessionToken(headers.cookie);
