@@ -108,7 +108,7 @@ async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[],
     app.use("/assets", express.static(path.join(buildDir, "client/assets"), { immutable: true, maxAge: "1y" }));
     app.use(express.static(path.join(buildDir, "client"), { maxAge: "1h" }));
     const build = (await import(path.join(buildDir, "server/index.js"))) as ServerBuild;
-    app.all("*", reactRouterAdapter(() => build, process.env.NODE_ENV === "production" ? "production" : "development"));
+    app.all("*", reactRouterAdapter(() => build, "production"));
   }
 
   await new Promise<void>((resolve, reject) => {
