@@ -31,6 +31,7 @@ export default defineConfig({
     stdout: "ignore",
     stderr: "pipe",
     env: {
+      NODE_ENV: "production",
       PORT: String(E2E.port),
       NW_PG_PORT: String(E2E.pgPort),
       NW_PG_DATA: `${E2E.dir}/postgres`,

@@ -1,6 +1,11 @@
 import { isRouteErrorResponse, Links, Meta, Outlet, Scripts, ScrollRestoration } from "react-router";
 import type { Route } from "./+types/root";
+import { z } from "zod";
 import "./app.css";
+
+// In the browser zod would probe for eval (new Function) to compile its parsers, which the
+// Content-Security-Policy refuses and reports; it parses the same without. The server keeps it.
+if (typeof document !== "undefined") z.config({ jitless: true });
 
 export const meta: Route.MetaFunction = () => [{ title: "Nichewise" }];
 

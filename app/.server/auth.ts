@@ -5,15 +5,26 @@ import { hash, verify } from "@node-rs/argon2";
 import { and, eq, gt, sql } from "drizzle-orm";
 import { data } from "react-router";
 import { db } from "~/.server/db";
+import { publicUrl } from "~/.server/env";
 import { paramId } from "~/.server/ids";
+import { requestScope } from "~/.server/request-scope";
 import { randomToken, sha256Hex } from "~/.server/secrets";
+import { MAX_PASSWORD_LENGTH } from "~/lib/forms";
 import { memberships, sessions, signInFailures, users, type Role, type User } from "~/db/schema.server";
 
 // OWASP Password Storage Cheat Sheet, argon2id minimum: m = 19 MiB, t = 2, p = 1.
 export const ARGON2_OPTIONS = { algorithm: 2, memoryCost: 19456, timeCost: 2, parallelism: 1 } as const;
 
-export const hashPassword = (password: string) => hash(password, ARGON2_OPTIONS);
+// Passwords are bounded before argon2 reads them, whatever the caller checked: argon2 costs per byte
+// (OWASP Authentication Cheat Sheet, maximum password length).
+export { MAX_PASSWORD_LENGTH };
+
+export const hashPassword = (password: string) => {
+  if (password.length > MAX_PASSWORD_LENGTH) throw new Error(`Passwords are at most ${MAX_PASSWORD_LENGTH} characters`);
+  return hash(password, ARGON2_OPTIONS);
+};
 export async function verifyPassword(passwordHash: string, password: string) {
+  if (password.length > MAX_PASSWORD_LENGTH) return false;
   try {
     return await verify(passwordHash, password);
   } catch {
@@ -60,8 +71,20 @@ export async function validateSessionToken(token: string): Promise<ValidSession 
     row.expiresAt = new Date(now + SESSION_DAYS * DAY);
     await db().update(sessions).set({ expiresAt: row.expiresAt }).where(eq(sessions.id, id));
     renewed = true;
+    // The web adapter sends the cookie again with the new expiry, whatever route asked.
+    const scope = requestScope.getStore();
+    if (scope) scope.renewedSession = { token, expiresAt: row.expiresAt };
   }
   return { ...row, renewed };
+}
+
+/** Whether a token names an unexpired session: one read, no renewal (the web adapter's upload check). */
+export async function sessionIsLive(token: string): Promise<boolean> {
+  const [row] = await db()
+    .select({ id: sessions.id })
+    .from(sessions)
+    .where(and(eq(sessions.id, sessionIdFromToken(token)), gt(sessions.expiresAt, new Date())));
+  return !!row;
 }
 
 export async function invalidateSession(sessionId: string) {
@@ -72,7 +95,9 @@ export async function invalidateUserSessions(userId: number) {
   await db().delete(sessions).where(eq(sessions.userId, userId));
 }
 
-const secureCookies = () => process.env.NODE_ENV === "production" && !process.env.NW_INSECURE_COOKIES;
+// Secure whenever the app is reached over https (PUBLIC_URL); a plain-http install on a home network
+// could not keep the cookie otherwise.
+const secureCookies = () => publicUrl().startsWith("https:");
 
 export function sessionCookie(token: string, expiresAt: Date): string {
   const parts = [`${SESSION_COOKIE}=${token}`, "HttpOnly", "SameSite=Lax", "Path=/", `Expires=${expiresAt.toUTCString()}`];
@@ -143,7 +168,11 @@ export async function requireAdmin(request: Request) {
   return user;
 }
 
-// Rate limit of failed sign-ins: per account and per address, counted over a sliding window.
+// Rate limit of failed sign-ins, counted over a sliding window: per client address, and per account
+// from that address. The account's count is kept per address so that failures from one place (a
+// flood on guessed accounts, or on a real one) do not lock the account's owner out elsewhere
+// (OWASP Authentication Cheat Sheet, account lockout as a denial of service). The address is the
+// socket's, or a trusted proxy's forwarded one (TRUST_PROXY): never a header the client picks.
 export const SIGN_IN_WINDOW_MINUTES = 15;
 export const MAX_FAILURES_PER_ACCOUNT = 5;
 export const MAX_FAILURES_PER_ADDRESS = 20;
@@ -156,18 +185,20 @@ async function failuresFor(key: string) {
   return row?.n ?? 0;
 }
 
+const accountKey = (email: string, address: string) => `acct:${email}@@${address}`;
+
 export async function signInBlocked(email: string, address: string) {
-  const [acct, addr] = await Promise.all([failuresFor(`acct:${email}`), failuresFor(`addr:${address}`)]);
+  const [acct, addr] = await Promise.all([failuresFor(accountKey(email, address)), failuresFor(`addr:${address}`)]);
   return acct >= MAX_FAILURES_PER_ACCOUNT || addr >= MAX_FAILURES_PER_ADDRESS;
 }
 
 export async function recordSignInFailure(email: string, address: string) {
-  await db().insert(signInFailures).values([{ key: `acct:${email}` }, { key: `addr:${address}` }]);
+  await db().insert(signInFailures).values([{ key: accountKey(email, address) }, { key: `addr:${address}` }]);
   await db().execute(sql`delete from sign_in_failures where at < now() - interval '1 day'`);
 }
 
-export async function clearSignInFailures(email: string) {
-  await db().delete(signInFailures).where(eq(signInFailures.key, `acct:${email}`));
+export async function clearSignInFailures(email: string, address: string) {
+  await db().delete(signInFailures).where(eq(signInFailures.key, accountKey(email, address)));
 }
 
 export type SignInResult =
@@ -186,7 +217,7 @@ export async function signIn(email: string, password: string, address: string): 
     await recordSignInFailure(normalised, address);
     return { ok: false, error: "That e-mail and password do not match an account." };
   }
-  await clearSignInFailures(normalised);
+  await clearSignInFailures(normalised, address);
   const token = generateSessionToken();
   const session = await createSession(token, user.id);
   return { ok: true, token, expiresAt: session.expiresAt, user };
@@ -194,7 +225,3 @@ export async function signIn(email: string, password: string, address: string): 
 
 const DUMMY_HASH =
   "$argon2id$v=19$m=19456,t=2,p=1$c29tZXNhbHRzb21lc2FsdA$Vf3s9w3U0ZxZrWm1h3Gm0n2FJc6k0m8s3b2Q7w1QhJY";
-
-export function clientAddress(request: Request): string {
-  return request.headers.get("X-Nichewise-Client") ?? "unknown";
-}

@@ -6,14 +6,13 @@ import express from "express";
 import { existsSync } from "node:fs";
 import http from "node:http";
 import path from "node:path";
-import { createRequestListener } from "@react-router/node";
 import type { ServerBuild } from "react-router";
-import { env, publicUrl } from "~/.server/env";
+import { demoPolicy, env, publicUrl } from "~/.server/env";
 import { startEmbeddedPostgres, type EmbeddedPostgres } from "~/.server/postgres";
 
 const log = (s: string) => console.log(`[nichewise] ${s}`);
 
-export type Running = { stop: () => Promise<void>; url: string; mqttPort: number };
+export type Running = { stop: () => Promise<void>; url: string; mqttPort: number; port: number };
 
 export async function main(opts: { dev?: boolean } = {}): Promise<Running> {
   const stops: (() => Promise<void>)[] = [];
@@ -79,44 +78,39 @@ async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[],
   const daily = setInterval(() => pruneRollupChanges().catch(() => {}), 86_400_000);
   stops.push(async () => clearInterval(daily));
 
-  if (e.NW_DEMO) {
+  const demo = demoPolicy(e);
+  log(demo.why);
+  if (demo.seed) {
     const { seedDemo } = await import("~/.server/seed");
     await seedDemo({ log, backfillDays: e.NW_BACKFILL_DAYS });
   }
 
+  const { reactRouterAdapter, securityHeaders } = await import("~/.server/http-adapter");
   const app = express();
+  const server = http.createServer(app);
   app.disable("x-powered-by");
+  // The client's address for the sign-in rate limit: the socket's, or what trusted proxies forwarded.
+  app.set("trust proxy", e.TRUST_PROXY);
+  app.use(securityHeaders({ dev: !!opts.dev, https: publicUrl().startsWith("https:") }));
   app.use(compression());
-  // Who is asking, for the sign-in rate limit; a client cannot set this header itself.
-  app.use((req, _res, next) => {
-    req.headers["x-nichewise-client"] = req.socket.remoteAddress ?? "unknown";
-    next();
-  });
   app.use(refuseCrossOrigin);
 
   if (opts.dev) {
     const vite = await import("vite");
-    const viteServer = await vite.createServer({ server: { middlewareMode: true } });
+    // Vite's HMR socket shares our server rather than opening a port of its own.
+    const viteServer = await vite.createServer({ server: { middlewareMode: true, ws: { server } } });
     stops.push(() => viteServer.close());
     app.use(viteServer.middlewares);
-    app.use(async (req, res, next) => {
-      try {
-        const build = (await viteServer.ssrLoadModule("virtual:react-router/server-build")) as ServerBuild;
-        return createRequestListener({ build, mode: "development" })(req, res);
-      } catch (err) {
-        next(err);
-      }
-    });
+    app.all("*", reactRouterAdapter(() => viteServer.ssrLoadModule("virtual:react-router/server-build") as Promise<ServerBuild>, "development"));
   } else {
     const buildDir = path.resolve("build");
     if (!existsSync(path.join(buildDir, "server/index.js"))) throw new Error("No build found: run `npm run build` first");
     app.use("/assets", express.static(path.join(buildDir, "client/assets"), { immutable: true, maxAge: "1y" }));
     app.use(express.static(path.join(buildDir, "client"), { maxAge: "1h" }));
     const build = (await import(path.join(buildDir, "server/index.js"))) as ServerBuild;
-    app.all("*", createRequestListener({ build, mode: "production" }));
+    app.all("*", reactRouterAdapter(() => build, "production"));
   }
 
-  const server = http.createServer(app);
   await new Promise<void>((resolve, reject) => {
     server.once("error", reject);
     server.listen(e.PORT, e.HOST, () => resolve());
@@ -128,10 +122,12 @@ async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[],
         server.closeAllConnections();
       }),
   );
-  const url = publicUrl();
+  const port = (server.address() as { port: number }).port;
+  // PORT=0 (tests) lets the system choose; the log and the answer name the port it chose.
+  const url = e.PORT === 0 && !e.PUBLIC_URL ? publicUrl().replace(/:0$/, `:${port}`) : publicUrl();
   log(`Web app on ${url}`);
 
-  if (e.NW_DEMO && e.NW_SIMULATOR) {
+  if (demo.seed && e.NW_SIMULATOR) {
     const { startLiveSimulator } = await import("../../simulator/live");
     const coldFrontAt = e.NW_COLD_FRONT ? new Date(Date.now() + 30_000) : null;
     const sim = await startLiveSimulator({ mqttUrl: `mqtt://127.0.0.1:${broker.port}`, speed: e.NW_SIM_SPEED, intervalS: e.NW_SIM_INTERVAL_S, coldFrontAt, log });
@@ -139,7 +135,7 @@ async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[],
     stops.splice(stops.length, 0, sim.stop);
   }
 
-  return { stop: stopAll, url, mqttPort: broker.port };
+  return { stop: stopAll, url, mqttPort: broker.port, port };
 }
 
 // Actions refuse posts from other origins (CSRF). Sensors posting to the ingest API carry a bearer
@@ -149,7 +145,7 @@ function refuseCrossOrigin(req: express.Request, res: express.Response, next: ex
   if (req.path === "/api/ingest") return next();
   const origin = req.headers.origin;
   const site = req.headers["sec-fetch-site"];
-  if (site === "cross-site" || (origin && origin !== "null" && new URL(origin).host !== req.headers.host)) {
+  if (site === "cross-site" || (origin && origin !== "null" && originHost(origin) !== req.headers.host)) {
     res.status(403).type("text/plain").send("Cross-origin form posts are refused.");
     return;
   }
@@ -160,9 +156,21 @@ function refuseCrossOrigin(req: express.Request, res: express.Response, next: ex
   next();
 }
 
+// A malformed Origin is refused like a foreign one, rather than thrown on.
+function originHost(origin: string) {
+  try {
+    return new URL(origin).host;
+  } catch {
+    return null;
+  }
+}
+
 const isEntry = process.argv[1] && path.resolve(process.argv[1]) === path.resolve(import.meta.filename);
 if (isEntry) {
   const dev = process.argv.includes("--dev");
+  // React, React Router and Express pick their production code at import, from NODE_ENV: too early
+  // to set it here, so the start scripts and the supervisor set it.
+  if (!dev && process.env.NODE_ENV !== "production") log(`NODE_ENV is ${process.env.NODE_ENV ?? "unset"}: running React's development code (slower, more memory); npm start sets NODE_ENV=production`);
   main({ dev }).then(
     (running) => {
       let stopping = false;
@@ -181,6 +189,9 @@ if (isEntry) {
         }, 20_000).unref();
         running.stop().then(() => process.exit(0));
       };
+      // In development a Vite server that React Router's plugin starts registers a SIGTERM handler
+      // that exits at once, skipping this shutdown (PostgreSQL was left running): ours only.
+      process.removeAllListeners("SIGTERM");
       process.on("SIGINT", () => shutdown("SIGINT"));
       process.on("SIGTERM", () => shutdown("SIGTERM"));
     },

@@ -5,9 +5,12 @@ export const FACINGS = ["N", "NE", "E", "SE", "S", "SW", "W", "NW", "none"] as c
 
 const email = z.string({ error: "Enter your e-mail address" }).trim().toLowerCase().pipe(z.email("That is not an e-mail address"));
 
+/** The longest password read anywhere; argon2 hashes every byte of it. */
+export const MAX_PASSWORD_LENGTH = 256;
+
 export const signInSchema = z.object({
   email,
-  password: z.string({ error: "Enter your password" }).min(1, "Enter your password"),
+  password: z.string({ error: "Enter your password" }).min(1, "Enter your password").max(MAX_PASSWORD_LENGTH, "That e-mail and password do not match an account."),
   next: z.string().optional(),
 });
 
@@ -83,6 +86,23 @@ export const calibrationSchema = z.object({
 });
 
 /** Where to go after signing in: only paths on this site. */
+/**
+ * Where to go after signing in: a path on this site, or "/". The value is parsed the way a browser
+ * reads a Location header (tabs and newlines dropped, backslashes read as slashes), against a
+ * stand-in origin, and only a same-origin result is kept, re-serialised as path, query and fragment
+ * (OWASP Unvalidated Redirects and Forwards Cheat Sheet).
+ */
 export function safeNext(next: string | null | undefined) {
-  return next && next.startsWith("/") && !next.startsWith("//") && !next.startsWith("/\\") ? next : "/";
+  if (!next || next.length > 2048) return "/";
+  const origin = "http://nichewise.invalid";
+  let url: URL;
+  try {
+    url = new URL(next, `${origin}/`);
+  } catch {
+    return "/";
+  }
+  if (url.origin !== origin || !next.startsWith("/")) return "/";
+  const path = url.pathname + url.search + url.hash;
+  // "//host" would itself be read as another site.
+  return path.startsWith("/") && !path.startsWith("//") ? path : "/";
 }

@@ -28,6 +28,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 }
 
 export async function action({ request, params }: Route.ActionArgs) {
+  // Members only, before the body is read; the role the intent needs is checked below.
+  await requireSiteRole(request, params.siteId, ALL_ROLES);
   const form = await request.formData();
   const intent = String(form.get("intent") ?? "");
   const { siteId, user } = await requireSiteRole(request, params.siteId, intent === "resolve" || intent === "reopen" ? ["owner"] : ["owner", "mentor"]);

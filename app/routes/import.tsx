@@ -1,7 +1,6 @@
 import { data, useFetcher } from "react-router";
 import { useState } from "react";
 import { requireSiteRole, WRITERS } from "~/.server/auth";
-import { readLimited } from "~/.server/ingest/http";
 import { auditCsvImport, CsvLimitError, isCsvFileError, csvSlot, importCsv, previewCsv, readCsvHead, type CsvHead } from "~/.server/ingest/csv-import";
 import { getSensor, getSite, listSensors } from "~/.server/sites";
 import { CSV_MAX_BYTES, CSV_MAX_ROWS, DATE_FORMATS, guessMapping, type CsvMapping, type DateFormat } from "~/domain/ingest/csv";
@@ -34,9 +33,7 @@ type Preview = {
 export async function action({ request, params }: Route.ActionArgs) {
   const { siteId, user } = await requireSiteRole(request, params.siteId, WRITERS);
   const site = await getSite(siteId);
-  // The size limit is enforced on the stream, before anything is parsed (multipart overhead allowed).
-  const body = await readLimited(request.clone(), CSV_MAX_BYTES + 64 * 1024);
-  if (body === null) return data({ error: `The file is over ${CSV_MAX_BYTES / 1024 / 1024} MB; split it and import the parts.` }, { status: 413 });
+  // The body is already bounded by the web adapter (IMPORT_MAX_BYTES) before this runs.
   const form = await request.formData();
   const file = form.get("file");
   if (!(file instanceof File) || file.size === 0) return data({ error: "Choose a CSV file." }, { status: 400 });

@@ -47,6 +47,8 @@ const inviteSchema = z.object({
 });
 
 export async function action({ request, params }: Route.ActionArgs) {
+  // Members only, before the body is read; the role the intent needs is checked below.
+  await requireSiteRole(request, params.siteId, ALL_ROLES);
   const form = await request.formData();
   const intent = String(form.get("intent") ?? "");
   const { siteId, user } = await requireSiteRole(request, params.siteId, intent === "leave" ? ALL_ROLES : ["owner"]);

@@ -52,6 +52,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 const PLACEMENT_EDITS = new Set(["move-start", "split", "assign"]);
 
 export async function action({ request, params }: Route.ActionArgs) {
+  // Members only, before the body is read; the role the intent needs is checked below.
+  await requireSiteRole(request, params.siteId, ALL_ROLES);
   const form = await request.formData();
   const intent = String(form.get("intent") ?? "");
   const owner = intent === "save" || intent === "rotate" || intent === "delete";

@@ -1,7 +1,7 @@
 import { getFormProps, useForm } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
 import { Form, Link, redirect, useNavigation } from "react-router";
-import { clientAddress, getUser, sessionCookie, signIn } from "~/.server/auth";
+import { getUser, sessionCookie, signIn } from "~/.server/auth";
 import { AuthFrame } from "~/components/auth-frame";
 import { FormErrors, TextField } from "~/components/field";
 import { safeNext, signInSchema } from "~/lib/forms";
@@ -16,11 +16,11 @@ export async function loader({ request }: Route.LoaderArgs) {
   return { next, email: params.get("email") ?? "" };
 }
 
-export async function action({ request }: Route.ActionArgs) {
+export async function action({ request, context }: Route.ActionArgs) {
   const submission = parseWithZod(await request.formData(), { schema: signInSchema });
   if (submission.status !== "success") return { result: submission.reply({ hideFields: ["password"] }) };
   const { email, password, next } = submission.value;
-  const result = await signIn(email, password, clientAddress(request));
+  const result = await signIn(email, password, context.clientAddress);
   if (!result.ok) return { result: submission.reply({ formErrors: [result.error], hideFields: ["password"] }) };
   return redirect(safeNext(next), { headers: { "Set-Cookie": sessionCookie(result.token, result.expiresAt) } });
 }

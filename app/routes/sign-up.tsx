@@ -1,9 +1,10 @@
 import { getFormProps, useForm } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
-import { eq } from "drizzle-orm";
 import { Form, Link, redirect, useNavigation } from "react-router";
 import { createSession, generateSessionToken, getUser, hashPassword, sessionCookie } from "~/.server/auth";
 import { db } from "~/.server/db";
+import { publicUrl } from "~/.server/env";
+import { sendMail } from "~/.server/mail";
 import { AuthFrame } from "~/components/auth-frame";
 import { FormErrors, TextField } from "~/components/field";
 import { users } from "~/db/schema.server";
@@ -23,19 +24,36 @@ export async function action({ request }: Route.ActionArgs) {
   const submission = parseWithZod(await request.formData(), { schema: signUpSchema });
   if (submission.status !== "success") return { result: submission.reply({ hideFields: ["password"] }) };
   const { name, email, password, next } = submission.value;
-  const [existing] = await db().select({ id: users.id }).from(users).where(eq(users.email, email));
-  if (existing) {
-    return {
-      result: submission.reply({ fieldErrors: { email: ["An account with this e-mail exists already: sign in instead."] }, hideFields: ["password"] }),
-    };
+  // Hashed either way, so that the answer takes as long for a taken address as for a new one.
+  const passwordHash = await hashPassword(password);
+  const [user] = await db().insert(users).values({ name, email, passwordHash }).onConflictDoNothing({ target: users.email }).returning({ id: users.id });
+  if (!user) {
+    // The address has an account: the answer is the same redirect a new account gets (without its
+    // session), so the form does not tell who has an account here (OWASP Authentication Cheat
+    // Sheet, account enumeration); the owner of the address hears of it by e-mail instead.
+    tellOwnerOfSignUpAttempt(email);
+    return redirect(safeNext(next));
   }
-  const [user] = await db()
-    .insert(users)
-    .values({ name, email, passwordHash: await hashPassword(password) })
-    .returning({ id: users.id });
   const token = generateSessionToken();
   const session = await createSession(token, user.id);
   return redirect(safeNext(next), { headers: { "Set-Cookie": sessionCookie(token, session.expiresAt) } });
+}
+
+function tellOwnerOfSignUpAttempt(email: string) {
+  const signInUrl = `${publicUrl()}/sign-in?email=${encodeURIComponent(email)}`;
+  const text = [
+    "Someone tried to create a Nichewise account with this e-mail address, which already has one.",
+    "",
+    `If it was you, sign in instead: ${signInUrl}`,
+    "If it was not you, you need do nothing: your account and password are unchanged.",
+  ].join("\n");
+  const html = `<p>Someone tried to create a Nichewise account with this e-mail address, which already has one.</p>
+<p>If it was you, <a href="${signInUrl}">sign in instead</a>.</p>
+<p>If it was not you, you need do nothing: your account and password are unchanged.</p>`;
+  // Not awaited: the answer must not wait on (or reveal) the mail.
+  sendMail({ to: email, subject: "Your Nichewise account", text, html }).catch((err) =>
+    console.error(`[nichewise] could not send the sign-up notice: ${(err as Error).message}`),
+  );
 }
 
 export default function SignUp({ loaderData, actionData }: Route.ComponentProps) {

@@ -55,6 +55,8 @@ function parseRule(form: FormData, kind: AlertKind, unit: "C" | "F") {
 }
 
 export async function action({ request, params }: Route.ActionArgs) {
+  // Members only, before the body is read; the role the intent needs is checked below.
+  await requireSiteRole(request, params.siteId, ALL_ROLES);
   const form = await request.formData();
   const intent = String(form.get("intent") ?? "");
   // Carers may pause and resume a watch (plants brought in); everything else is the owner's.

@@ -243,7 +243,7 @@ async function bench() {
   // Both processes run bundled, as `npm start` runs the product (build/nichewise-server.mjs): tsx's
   // loader and transpile cache alone add about 60 MB to a process.
   const [brokerJs, loadgenJs] = await Promise.all(["broker-proc", "loadgen"].map(bundle));
-  const ingest = spawn(process.execPath, [...serverNodeFlags(), brokerJs], { stdio: ["ignore", "inherit", "inherit", "ipc"], env: process.env });
+  const ingest = spawn(process.execPath, [...serverNodeFlags(), brokerJs], { stdio: ["ignore", "inherit", "inherit", "ipc"], env: { ...process.env, NODE_ENV: "production" } });
   const ask = <T,>(cmd: string) =>
     new Promise<T>((resolve) => {
       ingest.once("message", (m) => resolve(m as T));
