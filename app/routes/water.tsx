@@ -2,6 +2,7 @@ import { useMemo, useRef, useEffect } from "react";
 import { data, Form, useNavigation } from "react-router";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
 import { getSite } from "~/.server/sites";
+import { formId } from "~/.server/ids";
 import { addWaterCheck, deleteWaterCheck, listWaterChecks } from "~/.server/water";
 import { Chart, type ChartSpec } from "~/components/chart";
 import { parseSource, ppmLabel, sourceName, STANDARD_SOURCES } from "~/domain/water/checks";
@@ -30,7 +31,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   const form = await request.formData();
   const intent = String(form.get("intent") ?? "");
   if (intent === "delete") {
-    await deleteWaterCheck(siteId, user.id, Number(form.get("checkId")));
+    await deleteWaterCheck(siteId, user.id, formId(form, "checkId"));
     return { intent, ok: true };
   }
   if (intent !== "log") throw data("Unknown action", { status: 400 });

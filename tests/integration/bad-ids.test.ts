@@ -18,6 +18,7 @@ import { action as spotAlertsAction, loader as spotAlertsLoader } from "~/routes
 import { action as spotEditAction } from "~/routes/spots.$spotId.edit";
 import { action as spotAction, loader as spotLoader } from "~/routes/spots.$spotId";
 import { loader as sensorLoader } from "~/routes/sensors.$sensorId";
+import { action as waterAction } from "~/routes/water";
 import { addMember, makeSensor, makeSite, makeSpot, makeUser } from "./helpers";
 
 type Fn = (a: never) => unknown;
@@ -91,7 +92,7 @@ describe("malformed ids in paths are 404, never 500", () => {
 });
 
 describe("malformed ids in form fields and query strings are 400, never 500", () => {
-  it("a watch, an alert, a note, an invitation, a member and an inventory row", async () => {
+  it("a watch, an alert, a note, an invitation, a member, an inventory row and a water check", async () => {
     const s = String(site.id);
     for (const id of BAD_IDS) {
       const spotParams = { siteId: s, spotId: String(spot.id) };
@@ -106,6 +107,7 @@ describe("malformed ids in form fields and query strings are 400, never 500", ()
       expect(await statusOf(membersAction as Fn, req(`/sites/${s}/members`, { intent: "remove", userId: id }), { siteId: s }), id).toBe(400);
       expect(await statusOf(spotAction as Fn, req(`/sites/${s}/spots/${spot.id}`, { intent: "plant-move", id, toSpotId: String(spot.id) }), spotParams), id).toBe(400);
       expect(await statusOf(spotAction as Fn, req(`/sites/${s}/spots/${spot.id}`, { intent: "plant-remove", id }), spotParams), id).toBe(400);
+      expect(await statusOf(waterAction as Fn, req(`/sites/${s}/water`, { intent: "delete", checkId: id }), { siteId: s }), id).toBe(400);
     }
   });
 });
