@@ -180,14 +180,16 @@ export async function startBroker(opts: {
     const parsed = validateReading(sensorId, payload as never, { now: new Date(), kind: info.kind, previous: lastTemperature(sensorId) });
     if (!parsed.ok) return refuse(sensorId, packet, parsed.reason, done);
     const reading = parsed.reading;
-    if (reading.temperature !== null) noteTemperature(sensorId, reading.measuredAt.getTime(), reading.temperature);
     opts.writer.store([partial ? { ...reading, partial } : reading]).then(
       (r: WriteResult) => {
         // Acked all the same: the sensor can do nothing about it, and the stored value stays.
         if (r.conflicts > 0) {
           stats.rejected++;
           recordRejectionsSoon([{ sensorId, source: "mqtt", topic: packet.topic, reason: CONFLICT_REASON, payload: (packet.payload as Buffer).subarray(0, 500).toString("utf8") }]);
-        } else stats.accepted++;
+        } else {
+          stats.accepted++;
+          if (reading.temperature !== null) noteTemperature(sensorId, reading.measuredAt.getTime(), reading.temperature);
+        }
         done(null);
       },
       (err: Error) => failed(err, done),
