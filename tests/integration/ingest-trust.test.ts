@@ -188,4 +188,17 @@ describe("readings outside any placement", () => {
     expect([rb.inserted, rb.outsideSpot]).toEqual([1, 0]);
     expect(rs.conflicts).toBe(0);
   });
+
+  it("single-channel readings of one second merge into one row; only a second value for the same channel is a conflict", async () => {
+    const sensor = await setup();
+    const w = new ReadingWriter();
+    const at = minutesAgo(15);
+    const partial = (channel: "temperature" | "humidity", v: number) => ({ sensorId: sensor.id, measuredAt: at, temperature: null, humidity: null, lux: null, battery: null, [channel]: v, partial: true });
+    expect((await w.store([partial("temperature", 20)])).conflicts).toBe(0);
+    expect((await w.store([partial("humidity", 55)])).conflicts).toBe(0); // fills the row's empty column
+    expect((await w.store([partial("temperature", 20)])).conflicts).toBe(0); // a resend
+    expect((await w.store([partial("temperature", 23)])).conflicts).toBe(1);
+    const stored = await pool().query("SELECT temperature, humidity FROM readings WHERE sensor_id = $1", [sensor.id]);
+    expect(stored.rows).toEqual([{ temperature: 20, humidity: 55 }]);
+  });
 });
