@@ -25,6 +25,7 @@ import type { ReadingWriter, WriteResult } from "~/.server/ingest/writer";
 export const MAX_CONNECT_BYTES = 4 * 1024;
 export const MAX_PUBLISH_BYTES = MAX_PAYLOAD_BYTES + 1024;
 const MAX_OTHER_BYTES = 4 * 1024;
+const packetLimit = (cmd: string) => (cmd === "publish" ? MAX_PUBLISH_BYTES : cmd === "connect" ? MAX_CONNECT_BYTES : MAX_OTHER_BYTES);
 /** A connection that has not sent a complete CONNECT within this is closed (aedes' connectTimeout). */
 export const CONNECT_TIMEOUT_MS = 10_000;
 
@@ -47,7 +48,7 @@ type Holder = { running?: RunningBroker };
 const holder = ((globalThis as Record<string, unknown>).__nichewiseBroker ??= {}) as Holder;
 export const runningBroker = () => holder.running;
 
-function authError(message: string, code: 2 | 3 | 4 | 5) {
+function authError(message: string, code: 3 | 4 | 5) {
   return Object.assign(new Error(message), { returnCode: code });
 }
 
@@ -69,7 +70,7 @@ function limitPacketSizes(client: Client, tooBig: (client: Client, cmd: string, 
   parser._parseLength = function (this: PacketParser) {
     if (!parseLength.call(this)) return false;
     const { cmd, length } = this.packet;
-    if (length <= (cmd === "publish" ? MAX_PUBLISH_BYTES : cmd === "connect" ? MAX_CONNECT_BYTES : MAX_OTHER_BYTES)) return true;
+    if (length <= packetLimit(cmd)) return true;
     this._list.consume(this._list.length);
     tooBig(client, cmd, length);
     this._emitError(new Error(`${cmd} packet of ${length} bytes is over the limit`));
@@ -200,7 +201,7 @@ export async function startBroker(opts: {
     const sensorId = sensorOf.get(client);
     if (sensorId === undefined) return;
     stats.rejected++;
-    recordRejectionsSoon([{ sensorId, source: "mqtt", reason: `${cmd} packet of ${length} bytes is over ${cmd === "publish" ? MAX_PUBLISH_BYTES : MAX_OTHER_BYTES} bytes: connection closed`, payload: "" }]);
+    recordRejectionsSoon([{ sensorId, source: "mqtt", reason: `${cmd} packet of ${length} bytes is over ${packetLimit(cmd)} bytes: connection closed`, payload: "" }]);
   }
 
   /** Counts a new connection, or refuses it when the broker is full. */
