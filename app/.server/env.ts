@@ -42,6 +42,8 @@ const schema = z.object({
   MQTT_HOST: z.string().min(1).default("127.0.0.1"),
   MQTT_PORT: port.default(1883),
   MQTT_WS_PORT: port.default(8083),
+  // Open MQTT connections (TCP and WebSocket together) at most: each sensor holds one.
+  MQTT_MAX_CONNECTIONS: z.coerce.number().int().min(1).max(100_000).default(1000),
   MQTT_PUBLIC_HOST: z.string().optional(),
   SMTP_URL: z.url().optional(),
   MAIL_FROM: z.string().default("Nichewise <alerts@nichewise.invalid>"),

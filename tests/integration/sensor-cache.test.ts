@@ -3,7 +3,7 @@
 // that started before it.
 import { afterEach, describe, expect, it, vi } from "vitest";
 import { pool } from "~/.server/db";
-import { cachedSensorInfo, invalidateSensorCache, sensorInfo } from "~/.server/ingest/sensors";
+import { cachedSensorInfo, invalidateSensorCache, MAX_UNKNOWN_IDS, sensorInfo, unknownSensorIdsCached, UNKNOWN_TTL_MS } from "~/.server/ingest/sensors";
 import { makeSensor, makeSite, makeSpot, makeUser } from "./helpers";
 
 /** Counts the cache's own queries (the one that reads a sensor's secret hash). */
@@ -61,5 +61,32 @@ describe("sensor cache", () => {
     await settle();
     expect(cachedSensorInfo(sensor.id)).toBeUndefined();
     expect(await sensorInfo(sensor.id)).toBeNull();
+  });
+
+  it("remembers ids that are no sensor for a short while and only so many, so made-up ids cannot grow memory", async () => {
+    const top = (await pool().query<{ id: number }>("SELECT coalesce(max(id), 0)::int AS id FROM sensors")).rows[0].id;
+    const first = top + 1_000_000;
+    const n = MAX_UNKNOWN_IDS + 500;
+    for (let i = 0; i < n; i += 500) {
+      await Promise.all(Array.from({ length: 500 }, (_, k) => sensorInfo(first + i + k)));
+    }
+    expect(unknownSensorIdsCached()).toBe(MAX_UNKNOWN_IDS);
+    // A retry with an unknown id costs no query while it is remembered.
+    const lookups = countLookups();
+    expect(await sensorInfo(first + n - 1)).toBeNull();
+    expect(cachedSensorInfo(first + n - 1)).toBeNull();
+    expect(lookups()).toBe(0);
+    // Past its time, "no such sensor" is asked again (a sensor may have been added meanwhile) and
+    // a lapsed entry is dropped, not served.
+    const now = Date.now();
+    vi.spyOn(Date, "now").mockReturnValue(now + UNKNOWN_TTL_MS + 1);
+    expect(cachedSensorInfo(first + n - 1)).toBeUndefined();
+    expect(await sensorInfo(first + n - 2)).toBeNull();
+    expect(lookups()).toBe(1);
+    // Ids beyond PostgreSQL's integer are never asked about, nor remembered.
+    const before = unknownSensorIdsCached();
+    expect(await sensorInfo(99_999_999_999)).toBeNull();
+    expect(lookups()).toBe(1);
+    expect(unknownSensorIdsCached()).toBe(before);
   });
 });

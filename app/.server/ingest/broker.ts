@@ -2,14 +2,32 @@
 // their own topic. A reading is written inside `authorizePublish`, before aedes sends the PUBACK,
 // so an acknowledged reading is a committed one; if the write fails the callback gets the error,
 // aedes closes the connection without acking and the sensor resends after reconnecting.
+//
+// Before a client has signed in it can cost the server little: packets are refused by their
+// announced length before their bodies are buffered, connections are counted, a connection that
+// sends no CONNECT in time is closed, and browsers of other sites may not open the WebSocket port.
 import { Aedes, type AedesOptions, type Client } from "aedes";
-import { createServer, type Server } from "node:net";
+import { createServer, type Server, type Socket } from "node:net";
 import http from "node:http";
 import { WebSocketServer, createWebSocketStream } from "ws";
-import { decodeMessage, parseTopic, TOPIC_PREFIX, validateReading } from "~/domain/ingest/payload";
+import { decodeMessage, isSensorId, MAX_PAYLOAD_BYTES, parseTopic, TOPIC_PREFIX, validateReading } from "~/domain/ingest/payload";
+import { env, publicUrl } from "~/.server/env";
 import { recordRejectionsSoon } from "~/.server/ingest/rejections";
-import { cachedSensorInfo, sensorInfo, verifySensorSecret, type SensorInfo } from "~/.server/ingest/sensors";
-import type { ReadingWriter } from "~/.server/ingest/writer";
+import { cachedSensorInfo, lastTemperature, noteTemperature, sensorInfo, verifySensorSecret, type SensorInfo } from "~/.server/ingest/sensors";
+import type { ReadingWriter, WriteResult } from "~/.server/ingest/writer";
+
+/**
+ * Largest packets taken, by the length their fixed header announces (MQTT 3.1.1 §2.2.3), checked
+ * before the body is read. A CONNECT holds a client id, the sensor id, a secret of at most 200
+ * characters and perhaps a small will message. A PUBLISH holds a topic and a payload; payloads a
+ * little over MAX_PAYLOAD_BYTES are still read, acknowledged and recorded with their reason.
+ */
+export const MAX_CONNECT_BYTES = 4 * 1024;
+export const MAX_PUBLISH_BYTES = MAX_PAYLOAD_BYTES + 1024;
+const MAX_OTHER_BYTES = 4 * 1024;
+const packetLimit = (cmd: string) => (cmd === "publish" ? MAX_PUBLISH_BYTES : cmd === "connect" ? MAX_CONNECT_BYTES : MAX_OTHER_BYTES);
+/** A connection that has not sent a complete CONNECT within this is closed (aedes' connectTimeout). */
+export const CONNECT_TIMEOUT_MS = 10_000;
 
 export type BrokerStats = { startedAt: Date; accepted: number; rejected: number; refusedConnections: number; writeFailures: number };
 
@@ -23,6 +41,9 @@ export type RunningBroker = {
   wsPort: number | null;
 };
 
+/** The reason recorded for a reading whose time already holds a different value. */
+export const CONFLICT_REASON = "conflicting duplicate: a different value is already stored for this sensor and time (kept the stored one)";
+
 type Holder = { running?: RunningBroker };
 const holder = ((globalThis as Record<string, unknown>).__nichewiseBroker ??= {}) as Holder;
 export const runningBroker = () => holder.running;
@@ -31,24 +52,58 @@ function authError(message: string, code: 3 | 4 | 5) {
   return Object.assign(new Error(message), { returnCode: code });
 }
 
+type PacketParser = {
+  packet: { cmd: string; length: number };
+  _list: { length: number; consume: (n: number) => void };
+  _parseLength: () => boolean;
+  _emitError: (err: Error) => void;
+};
+
+/**
+ * Makes a client's packet parser refuse a packet whose announced length is over its limit, before
+ * the parser buffers the body: mqtt-packet's Parser has no such setting and would otherwise collect
+ * an announced 200 MB. The parser's error closes the connection (aedes' client error path).
+ */
+function limitPacketSizes(client: Client, tooBig: (client: Client, cmd: string, length: number) => void) {
+  const parser = (client as unknown as { _parser: PacketParser })._parser;
+  const parseLength = parser._parseLength;
+  parser._parseLength = function (this: PacketParser) {
+    if (!parseLength.call(this)) return false;
+    const { cmd, length } = this.packet;
+    if (length <= packetLimit(cmd)) return true;
+    this._list.consume(this._list.length);
+    tooBig(client, cmd, length);
+    this._emitError(new Error(`${cmd} packet of ${length} bytes is over the limit`));
+    return false;
+  };
+}
+
 export async function startBroker(opts: {
   host: string;
   port: number;
   wsPort?: number | null;
   writer: ReadingWriter;
   log?: (s: string) => void;
+  /** Open MQTT connections (TCP and WebSocket together) at most; more are closed at once. */
+  maxConnections?: number;
+  connectTimeoutMs?: number;
+  /** Browser origins allowed on the WebSocket port; clients sending no Origin (sensors) always are. */
+  allowedOrigins?: string[];
 }): Promise<RunningBroker> {
   const log = opts.log ?? console.log;
+  const maxConnections = opts.maxConnections ?? env().MQTT_MAX_CONNECTIONS;
   const sensorOf = new WeakMap<Client, number>();
   const clientsOf = new Map<number, Set<Client>>();
   const stats: BrokerStats = { startedAt: new Date(), accepted: 0, rejected: 0, refusedConnections: 0, writeFailures: 0 };
+  let openConnections = 0;
 
   const options: AedesOptions = {
     // QoS 1 deliveries in flight across the broker; each waits for a group commit (a few ms).
     concurrency: 1000,
+    connectTimeout: opts.connectTimeoutMs ?? CONNECT_TIMEOUT_MS,
     authenticate(client, username, password, done) {
       const id = Number(username);
-      if (!username || !Number.isInteger(id) || id <= 0 || !password) {
+      if (!username || !isSensorId(id) || !password) {
         stats.refusedConnections++;
         return done(authError("Bad user name or password", 4), false);
       }
@@ -58,6 +113,10 @@ export async function startBroker(opts: {
             stats.refusedConnections++;
             return done(authError("Bad user name or password", 4), false);
           }
+          // A client id is the sensor's own: the broker files it under the sensor id, so another
+          // sensor sending the same client id gets a session of its own instead of taking this
+          // one over (MQTT 3.1.1 §3.1.4 closes the older connection of a client id).
+          client.id = `${id}/${client.id}`;
           sensorOf.set(client, id);
           let set = clientsOf.get(id);
           if (!set) clientsOf.set(id, (set = new Set()));
@@ -119,16 +178,42 @@ export async function startBroker(opts: {
   /** Validates and stores one message; `done` (the PUBACK) comes after the commit. */
   function writeOrRefuse(sensorId: number, info: SensorInfo | null, packet: Publish, payload: unknown, partial: boolean, done: Done) {
     if (!info) return refuse(sensorId, packet, "unknown sensor (deleted?)", done);
-    const parsed = validateReading(sensorId, payload as never, { now: new Date(), kind: info.kind });
+    const parsed = validateReading(sensorId, payload as never, { now: new Date(), kind: info.kind, previous: lastTemperature(sensorId) });
     if (!parsed.ok) return refuse(sensorId, packet, parsed.reason, done);
-    opts.writer.store([partial ? { ...parsed.reading, partial } : parsed.reading]).then(
-      () => {
-        stats.accepted++;
+    const reading = parsed.reading;
+    opts.writer.store([partial ? { ...reading, partial } : reading]).then(
+      (r: WriteResult) => {
+        // Acked all the same: the sensor can do nothing about it, and the stored value stays.
+        if (r.conflicts > 0) {
+          stats.rejected++;
+          recordRejectionsSoon([{ sensorId, source: "mqtt", topic: packet.topic, reason: CONFLICT_REASON, payload: (packet.payload as Buffer).subarray(0, 500).toString("utf8") }]);
+        } else {
+          stats.accepted++;
+          if (reading.temperature !== null) noteTemperature(sensorId, reading.measuredAt.getTime(), reading.temperature);
+        }
         done(null);
       },
       (err: Error) => failed(err, done),
     );
   }
+
+  function tooBig(client: Client, cmd: string, length: number) {
+    const sensorId = sensorOf.get(client);
+    if (sensorId === undefined) return;
+    stats.rejected++;
+    recordRejectionsSoon([{ sensorId, source: "mqtt", reason: `${cmd} packet of ${length} bytes is over ${packetLimit(cmd)} bytes: connection closed`, payload: "" }]);
+  }
+
+  /** Counts a new connection, or refuses it when the broker is full. */
+  function admit(): boolean {
+    if (openConnections >= maxConnections) {
+      stats.refusedConnections++;
+      return false;
+    }
+    openConnections++;
+    return true;
+  }
+  const release = () => void openConnections--;
 
   const broker = await Aedes.createBroker(options);
   // A sensor's reading has no one to go to: the server takes it in authorizePublish, and a sensor
@@ -149,7 +234,11 @@ export async function startBroker(opts: {
 
   // No Nagle delay on PUBACKs: a sensor publishing every few ms would otherwise wait for the TCP
   // ack of the previous PUBACK (up to a delayed-ack timeout) before hearing about the next one.
-  const server: Server = createServer({ noDelay: true }, broker.handle);
+  const server: Server = createServer({ noDelay: true }, (socket: Socket) => {
+    if (!admit()) return void socket.destroy();
+    socket.once("close", release);
+    limitPacketSizes(broker.handle(socket), tooBig);
+  });
   await new Promise<void>((resolve, reject) => {
     server.once("error", reject);
     server.listen(opts.port, opts.host, () => resolve());
@@ -164,11 +253,26 @@ export async function startBroker(opts: {
     wsServer = http.createServer((_req, res) => {
       res.writeHead(426, { "Content-Type": "text/plain" }).end("MQTT over WebSocket: connect with a WebSocket MQTT client\n");
     });
-    wss = new WebSocketServer({ server: wsServer });
+    // A page of another site must not open MQTT connections from a visitor's browser (browsers
+    // send Origin on every WebSocket handshake, RFC 6455 §4.1); sensors and other non-browser
+    // clients send none.
+    const allowed = new Set(opts.allowedOrigins ?? [new URL(publicUrl()).origin]);
+    wss = new WebSocketServer({
+      server: wsServer,
+      // One WebSocket message carries one MQTT packet or a few; this keeps ws from collecting 100 MB (its default).
+      maxPayload: 64 * 1024,
+      verifyClient: ({ origin }, accept) => {
+        if (origin && !allowed.has(origin)) return accept(false, 403, "Origin not allowed");
+        if (openConnections >= maxConnections) return accept(false, 503, "Too many connections");
+        accept(true);
+      },
+    });
     wss.on("connection", (ws, req) => {
+      if (!admit()) return void ws.terminate();
+      ws.once("close", release);
       const stream = createWebSocketStream(ws);
       stream.on("error", () => ws.terminate());
-      broker.handle(stream as never, req);
+      limitPacketSizes(broker.handle(stream as never, req), tooBig);
     });
     await new Promise<void>((resolve, reject) => {
       wsServer!.once("error", reject);

@@ -1,9 +1,9 @@
 // HTTP ingest: one reading or a batch from a sensor that buffered while offline. Authenticated with
 // the sensor's secret as a bearer token; same validation and writer as MQTT; 2xx only after COMMIT.
-import { validateReading, type Reading } from "~/domain/ingest/payload";
+import { isSensorId, validateReading, type Reading } from "~/domain/ingest/payload";
 import { recordRejectionsSoon, type Rejected } from "~/.server/ingest/rejections";
-import { verifySensorSecret } from "~/.server/ingest/sensors";
-import { writer } from "~/.server/ingest/writer";
+import { lastTemperature, noteTemperature, verifySensorSecret } from "~/.server/ingest/sensors";
+import { writer, type WriteResult } from "~/.server/ingest/writer";
 
 export const MAX_HTTP_BATCH = 10_000;
 export const MAX_HTTP_BYTES = 4 * 1024 * 1024;
@@ -41,12 +41,26 @@ export async function readLimited(request: Request, limit: number): Promise<stri
   return Buffer.concat(chunks).toString("utf8");
 }
 
+/** A reading of this request that holds a different value for a time already given or stored. */
+type Conflict = { index: number; time: string; reason: string };
+const SAME_REQUEST = "a different reading for the same time earlier in this request (kept the first)";
+const ALREADY_STORED = "a different reading is already stored for this time (kept the stored one)";
+
+/** True when two readings disagree in a channel both carry (a plain resend agrees). */
+const disagree = (a: Reading, b: Reading) =>
+  (a.temperature !== null && b.temperature !== null && a.temperature !== b.temperature) ||
+  (a.humidity !== null && b.humidity !== null && a.humidity !== b.humidity) ||
+  (a.lux !== null && b.lux !== null && a.lux !== b.lux);
+
 export async function handleHttpIngest(request: Request): Promise<Response> {
   if (request.method !== "POST") return json({ error: "POST readings here" }, 405);
   const auth = request.headers.get("Authorization") ?? "";
   const m = /^Bearer (\d+)\.([A-Za-z0-9]+)$/.exec(auth.trim());
   if (!m) return json({ error: "Send Authorization: Bearer <sensor id>.<secret>" }, 401);
   const sensorId = Number(m[1]);
+  // An id no sensor can have (beyond PostgreSQL's integer) is a wrong token, not an outage: a 503
+  // would make the sensor retry forever.
+  if (!isSensorId(sensorId)) return json({ error: "Unknown sensor or wrong secret" }, 401);
   const info = await verifySensorSecret(sensorId, m[2]).catch(() => undefined);
   if (info === undefined) return json({ error: "Storage unavailable, try again" }, 503);
   if (!info) return json({ error: "Unknown sensor or wrong secret" }, 401);
@@ -70,28 +84,61 @@ export async function handleHttpIngest(request: Request): Promise<Response> {
 
   const now = new Date();
   const ok: Reading[] = [];
+  const okIndex: number[] = [];
   const rejected: { index: number; reason: string }[] = [];
+  const conflicts: Conflict[] = [];
   const toRecord: Rejected[] = [];
+  const byTime = new Map<number, Reading>();
   items.forEach((item, index) => {
     if (typeof item !== "object" || item === null || Array.isArray(item)) {
       rejected.push({ index, reason: "not a JSON object" });
       toRecord.push({ sensorId, source: "http", reason: "not a JSON object", payload: preview(item) });
       return;
     }
-    const r = validateReading(sensorId, item as never, { now, kind: info.kind });
-    if (r.ok) ok.push(r.reading);
-    else {
+    const r = validateReading(sensorId, item as never, { now, kind: info.kind, previous: lastTemperature(sensorId) });
+    if (!r.ok) {
       rejected.push({ index, reason: r.reason });
       toRecord.push({ sensorId, source: "http", reason: r.reason, payload: preview(item) });
+      return;
     }
+    const ms = r.reading.measuredAt.getTime();
+    const earlier = byTime.get(ms);
+    if (earlier && disagree(earlier, r.reading)) {
+      conflicts.push({ index, time: r.reading.measuredAt.toISOString(), reason: SAME_REQUEST });
+      return;
+    }
+    if (!earlier) byTime.set(ms, r.reading);
+    if (r.reading.temperature !== null) noteTemperature(sensorId, ms, r.reading.temperature);
+    ok.push(r.reading);
+    okIndex.push(index);
   });
   recordRejectionsSoon(toRecord.slice(0, 100));
-  let stored = 0;
+  let result: WriteResult;
   try {
-    stored = (await writer().write(ok)).inserted;
+    result = await writer().write(ok);
   } catch {
     return json({ error: "Storage unavailable: nothing was stored, send the same batch again" }, 503);
   }
+  if (result.conflictsAt) {
+    const at = new Set(result.conflictsAt);
+    ok.forEach((r, i) => {
+      if (at.has(r.measuredAt.getTime())) conflicts.push({ index: okIndex[i], time: r.measuredAt.toISOString(), reason: ALREADY_STORED });
+    });
+    conflicts.sort((a, b) => a.index - b.index);
+  }
+  const stored = result.inserted;
   // `stored` counts rows new to the database; a resent batch stores nothing and that is fine.
-  return json({ received: items.length, accepted: ok.length, stored, duplicates: ok.length - stored, rejected });
+  return json({
+    received: items.length,
+    accepted: ok.length,
+    stored,
+    duplicates: Math.max(0, ok.length - stored - result.conflicts),
+    conflicts: conflicts.length,
+    conflicting: conflicts.slice(0, 1000),
+    outsideSpot: result.outsideSpot,
+    ...(result.outsideSpot > 0
+      ? { message: `${result.outsideSpot} readings were stored but fall outside any placement of this sensor: assign them on the sensor page` }
+      : {}),
+    rejected,
+  });
 }

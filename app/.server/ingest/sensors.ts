@@ -2,7 +2,7 @@
 // few seconds so that a busy sensor costs no query per message.
 import { pool } from "~/.server/db";
 import { checkSensorSecret, hashSensorSecret } from "~/.server/secrets";
-import type { SpotKindForLimits } from "~/domain/ingest/payload";
+import { isSensorId, type SpotKindForLimits } from "~/domain/ingest/payload";
 
 export type SensorInfo = { id: number; siteId: number; timeZone: string; secretHash: string; kind: SpotKindForLimits };
 
@@ -13,17 +13,52 @@ type Holder = {
   fetching: Map<number, Promise<SensorInfo | null>>;
   /** Bumped by invalidation, so a query that started before it cannot store what it read. */
   generation: number;
+  /**
+   * Ids that are no sensor, remembered for a short while so that a client retrying with one costs
+   * no query per try; apart from the known sensors (bounded by the table) so that a client trying
+   * made-up ids can neither grow memory nor push known sensors out.
+   */
+  unknown: Map<number, number>;
+  /** Each sensor's latest accepted temperature (°C as sent, by measuring time), for the jump check. */
+  lastTemperature: Map<number, LastTemperature>;
 };
+export type LastTemperature = { ms: number; t: number };
 const holder = ((globalThis as Record<string, unknown>).__nichewiseSensors ??= {
   cache: new Map(),
   fetching: new Map(),
   generation: 0,
+  unknown: new Map(),
+  lastTemperature: new Map(),
 }) as Holder;
 // A holder left on globalThis by an earlier version of this module (dev reload) lacks these.
 holder.fetching ??= new Map();
 holder.generation ??= 0;
+holder.unknown ??= new Map();
+holder.lastTemperature ??= new Map();
 
 const TTL_MS = 10_000;
+/** How long "no such sensor" is believed (a sensor added meanwhile is found after this at most). */
+export const UNKNOWN_TTL_MS = 10_000;
+/** At most this many unknown ids are remembered; the oldest is forgotten first. */
+export const MAX_UNKNOWN_IDS = 10_000;
+
+function rememberUnknown(id: number) {
+  holder.unknown.delete(id); // re-inserted last: a Map iterates in insertion order
+  holder.unknown.set(id, Date.now());
+  if (holder.unknown.size > MAX_UNKNOWN_IDS) holder.unknown.delete(holder.unknown.keys().next().value!);
+}
+
+/** True while `id` is remembered as no sensor; a lapsed entry is dropped. */
+function knownUnknown(id: number): boolean {
+  const at = holder.unknown.get(id);
+  if (at === undefined) return false;
+  if (Date.now() - at < UNKNOWN_TTL_MS) return true;
+  holder.unknown.delete(id);
+  return false;
+}
+
+/** How many unknown ids are remembered (for tests and the health page). */
+export const unknownSensorIdsCached = () => holder.unknown.size;
 
 /**
  * The cached entry, or undefined when there is none. An entry past its time is still returned,
@@ -33,11 +68,15 @@ const TTL_MS = 10_000;
  */
 export function cachedSensorInfo(id: number): SensorInfo | null | undefined {
   const hit = holder.cache.get(id);
+  if (hit === undefined) return knownUnknown(id) ? null : undefined;
   if (hit && Date.now() - hit.at >= TTL_MS) fetchSensorInfo(id).catch(() => {}); // the stale entry serves meanwhile
   return hit?.info;
 }
 
 export async function sensorInfo(id: number): Promise<SensorInfo | null> {
+  // Beyond PostgreSQL's integer no sensor exists; asking would fail the query (and read as an outage).
+  if (!isSensorId(id)) return null;
+  if (knownUnknown(id)) return null;
   const hit = holder.cache.get(id);
   if (hit && Date.now() - hit.at < TTL_MS) return hit.info;
   try {
@@ -67,7 +106,13 @@ function fetchSensorInfo(id: number): Promise<SensorInfo | null> {
       const info: SensorInfo | null = row
         ? { id: row.id, siteId: row.site_id, timeZone: row.time_zone, secretHash: row.secret_hash, kind: row.indoor == null ? "unplaced" : row.indoor ? "indoor" : "outdoor" }
         : null;
-      if (holder.generation === generation) holder.cache.set(id, { info, at: Date.now() });
+      if (holder.generation === generation) {
+        if (info) holder.cache.set(id, { info, at: Date.now() });
+        else {
+          holder.cache.delete(id); // a deleted sensor: known no more
+          rememberUnknown(id);
+        }
+      }
       return info;
     })
     .finally(() => {
@@ -82,15 +127,35 @@ export function invalidateSensorCache(id?: number) {
   if (id === undefined) {
     holder.cache.clear();
     holder.fetching.clear();
+    holder.unknown.clear();
+    holder.lastTemperature.clear();
   } else {
     holder.cache.delete(id);
     holder.fetching.delete(id);
+    holder.unknown.delete(id);
+    holder.lastTemperature.delete(id);
+  }
+}
+
+/** The sensor's latest accepted temperature, if any (a plain map lookup: runs per message). */
+export const lastTemperature = (id: number): LastTemperature | undefined => holder.lastTemperature.get(id);
+
+/**
+ * Remembers an accepted temperature if it is the sensor's latest by measuring time. Only sensors
+ * that passed authentication get here, so the map is bounded by the sensors table.
+ */
+export function noteTemperature(id: number, ms: number, t: number) {
+  const last = holder.lastTemperature.get(id);
+  if (last === undefined) holder.lastTemperature.set(id, { ms, t });
+  else if (ms >= last.ms) {
+    last.ms = ms;
+    last.t = t;
   }
 }
 
 /** Checks a sensor's secret against its stored hash. */
 export async function verifySensorSecret(id: number, secret: string): Promise<SensorInfo | null> {
-  if (!secret || secret.length > 200) return null;
+  if (!isSensorId(id) || !secret || secret.length > 200) return null;
   const info = await sensorInfo(id);
   if (!info) return null;
   const { ok, legacy } = await checkSensorSecret(info.secretHash, secret);

@@ -12,7 +12,12 @@ import { CONDENSATION_MARGIN_C } from "~/domain/season/profile";
 
 export type CommittedReading = { spotId: number; sensorId: number; measuredAt: Date; t: number | null; h: number | null; battery: number | null };
 export type BatchListener = (rows: CommittedReading[]) => void | Promise<void>;
-export type WriteResult = { inserted: number };
+/**
+ * `inserted`: rows new to the database. `conflicts`: readings whose sensor and time already held a
+ * different value (the stored one is kept; a plain resend is no conflict). `outsideSpot`: inserted
+ * rows that fall in no placement of their sensor, so no spot shows them (counted for write() only).
+ */
+export type WriteResult = { inserted: number; conflicts: number; outsideSpot: number; conflictsAt?: number[] };
 
 /**
  * SQL for the instant the local hour containing `at` began: `at` minus the minutes and seconds past
@@ -37,7 +42,7 @@ export const DP_COUNTS = (margin: string) =>
 // because no two statements in flight hold readings of the same instant of a sensor. It is
 // MATERIALIZED: inlined into the join below, PostgreSQL re-read it for every inserted row
 // (10 s for 10,000 readings), and the bounds let it skip the months the batch doesn't touch.
-function buildWriteSql({ merge, withRows, withSeen, optimistic }: Variant) {
+function buildWriteSql({ merge, withRows, withSeen, optimistic, withOutside }: Variant) {
   const input = merge
     ? `raw_input AS (
   SELECT sensor_id, to_timestamp(ms / 1000) AS measured_at, temperature, humidity, lux, battery FROM unnest($1::int[], $2::float8[], $3::real[], $4::real[], $5::real[], $6::real[])
@@ -78,6 +83,21 @@ function buildWriteSql({ merge, withRows, withSeen, optimistic }: Variant) {
   FROM ins LEFT JOIN old o ON o.sensor_id = ins.sensor_id AND o.measured_at = ins.measured_at
 )`
     : `fresh AS (SELECT * FROM ins)`;
+  // Readings that met a stored row with a different value in a channel both have. The snapshot of
+  // \`readings\` is the one before this statement, so it holds exactly the rows the input ran into.
+  // A plain INSERT that succeeded met none, so only the ON CONFLICT variants look.
+  const conflicts = optimistic
+    ? ""
+    : merge
+      ? `, conflicts AS (
+  SELECT i.sensor_id, i.measured_at FROM input i JOIN old o ON o.sensor_id = i.sensor_id AND o.measured_at = i.measured_at
+  WHERE i.temperature <> o.temperature OR i.humidity <> o.humidity OR i.lux <> o.lux
+)`
+      : `, conflicts AS (
+  SELECT i.sensor_id, i.measured_at FROM input i JOIN readings r ON r.sensor_id = i.sensor_id AND r.measured_at = i.measured_at
+  WHERE r.measured_at >= (SELECT min(measured_at) FROM input) AND r.measured_at <= (SELECT max(measured_at) FROM input)
+    AND (i.temperature <> r.temperature OR i.humidity <> r.humidity OR i.lux <> r.lux)
+)`;
   return `
 WITH ${input}, ins AS (
   INSERT INTO readings (sensor_id, measured_at, temperature, humidity, lux, battery)
@@ -129,8 +149,10 @@ WITH ${input}, ins AS (
   ) x
   WHERE s.id = x.sensor_id AND (s.last_seen_at IS NULL OR x.last_at >= s.last_seen_at)
   RETURNING 1` : "SELECT 1 WHERE false"}
-)
+)${conflicts}
 SELECT (SELECT count(*)::int FROM ins) AS inserted, (SELECT count(*)::int FROM up) AS hours,
+  ${optimistic ? "NULL::json" : `(SELECT json_agg(json_build_array(sensor_id, (extract(epoch FROM measured_at) * 1000)::bigint)) FROM conflicts)`} AS conflicts,
+  ${withOutside ? "greatest(0, (SELECT count(*) FROM fresh) - (SELECT count(*) FROM placed))::int" : "0"} AS outside,
   (SELECT count(*)::int FROM seen) AS seen,
   ${withRows ? `coalesce((SELECT json_agg(json_build_array(spot_id, sensor_id, measured_at, t, h, battery) ORDER BY measured_at)
     FROM placed), '[]'::json)` : `'[]'::json`} AS placed`;
@@ -143,11 +165,12 @@ const SQL = new Map<string, string>();
 // `optimistic`: a plain INSERT, about half the cost of INSERT … ON CONFLICT DO NOTHING per row
 // (no speculative insertion), tried first for batches without single-channel readings. The
 // primary key still refuses any duplicate; the batch is then written with ON CONFLICT.
-type Variant = { merge: boolean; withRows: boolean; withKeys: boolean; withSeen: boolean; optimistic: boolean };
+// `withOutside`: count inserted rows in no placement (write() callers are told; store() skips it).
+type Variant = { merge: boolean; withRows: boolean; withKeys: boolean; withSeen: boolean; optimistic: boolean; withOutside: boolean };
 /** The statement text of a variant, and a name to prepare it under. */
 function sqlFor(v: Variant): { text: string; name: string } {
   const optimistic = v.optimistic && !v.merge;
-  const name = `nw-write-${v.merge ? "m" : "p"}${v.withRows ? "r" : ""}${v.withKeys ? "k" : ""}${v.withSeen ? "s" : ""}${optimistic ? "o" : ""}`;
+  const name = `nw-write-${v.merge ? "m" : "p"}${v.withRows ? "r" : ""}${v.withKeys ? "k" : ""}${v.withSeen ? "s" : ""}${optimistic ? "o" : ""}${v.withOutside ? "c" : ""}`;
   let text = SQL.get(name);
   if (!text) SQL.set(name, (text = buildWriteSql({ ...v, optimistic }) + (v.withKeys ? KEYS : "")));
   return { text, name };
@@ -177,9 +200,12 @@ async function writeStatement(client: pg.PoolClient, v: Omit<Variant, "optimisti
   }
 }
 
-// With several callers in one group commit, each needs to know which of its rows were new.
+// With several callers in one group commit, each needs to know which of its rows were new, and
+// which of those fall in no placement (withKeys implies withOutside: some caller counts).
 const KEYS = `,
-  coalesce((SELECT json_agg(json_build_array(sensor_id, (extract(epoch FROM measured_at) * 1000)::bigint)) FROM ins), '[]'::json) AS keys`;
+  coalesce((SELECT json_agg(json_build_array(sensor_id, (extract(epoch FROM measured_at) * 1000)::bigint)) FROM ins), '[]'::json) AS keys,
+  coalesce((SELECT json_agg(json_build_array(f.sensor_id, (extract(epoch FROM f.measured_at) * 1000)::bigint)) FROM fresh f
+    WHERE NOT EXISTS (SELECT 1 FROM placed p WHERE p.sensor_id = f.sensor_id AND p.measured_at = f.measured_at)), '[]'::json) AS outside_keys`;
 
 /** A PostgreSQL array literal of finite numbers (NULL for null); validation has refused NaN/∞. */
 function literal(values: (number | null)[]): string {
@@ -197,8 +223,11 @@ type Pending = { readings: Reading[]; counted: boolean; resolve: (r: WriteResult
 
 type StatementRow = {
   inserted: number;
+  conflicts: [number, number][] | null;
+  outside: number;
   placed: [number, number, string, number | null, number | null, number | null][];
   keys?: [number, number][];
+  outside_keys?: [number, number][];
 };
 
 
@@ -305,22 +334,31 @@ export class ReadingWriter {
 
   /**
    * As `write`, for callers that need only the commit (the broker acks it): a group commit of
-   * such callers alone skips listing the rows it inserted.
+   * such callers alone skips listing the rows it inserted, so `inserted` and `outsideSpot` may
+   * read 0; `conflicts` is always told.
    */
-  store(readings: Reading[]): Promise<unknown> {
+  store(readings: Reading[]): Promise<WriteResult> {
     return this.route(readings, false);
   }
 
   private route(readings: Reading[], counted: boolean): Promise<WriteResult> {
-    if (readings.length === 0) return Promise.resolve({ inserted: 0 });
+    if (readings.length === 0) return Promise.resolve({ inserted: 0, conflicts: 0, outsideSpot: 0 });
     const k = this.shards.length;
     const first = readings[0].sensorId % k;
     if (k === 1 || readings.every((r) => r.sensorId % k === first)) return this.enqueue(this.shards[first], readings, counted);
     const parts: Reading[][] = this.shards.map(() => []);
     for (const r of readings) parts[r.sensorId % k].push(r);
-    return Promise.all(parts.map((part, i) => (part.length > 0 ? this.enqueue(this.shards[i], part, counted) : { inserted: 0 }))).then((rs) => ({
-      inserted: rs.reduce((n, r) => n + r.inserted, 0),
-    }));
+    return Promise.all(parts.map((part, i) => (part.length > 0 ? this.enqueue(this.shards[i], part, counted) : null))).then((rs) => {
+      const sum: WriteResult = { inserted: 0, conflicts: 0, outsideSpot: 0 };
+      for (const r of rs) {
+        if (!r) continue;
+        sum.inserted += r.inserted;
+        sum.conflicts += r.conflicts;
+        sum.outsideSpot += r.outsideSpot;
+        if (r.conflictsAt) (sum.conflictsAt ??= []).push(...r.conflictsAt);
+      }
+      return sum;
+    });
   }
 
   private enqueue(shard: Shard, readings: Reading[], counted: boolean): Promise<WriteResult> {
@@ -369,20 +407,21 @@ export class ReadingWriter {
     const merge = rows.some((r) => r.partial);
     const withRows = this.listeners.size > 0;
     // One caller is told the statement's own count; several need the inserted keys to share it out.
-    const withKeys = batch.length > 1 && batch.some((p) => p.counted);
+    const withOutside = batch.some((p) => p.counted);
+    const withKeys = batch.length > 1 && withOutside;
     const started = performance.now();
     const halves = n >= SPLIT_MIN_ROWS ? await this.halves(rows) : null;
     let results: StatementRow[] = [];
     let failure: Error | null = null;
     if (halves) {
-      ({ results, failure } = await this.splitStatements(halves, merge, withRows, withKeys));
+      ({ results, failure } = await this.splitStatements(halves, merge, withRows, withKeys, withOutside));
       // Nothing committed (a lock wait timed out, say): the batch gets one plain try.
       if (results.length === 0) failure = null;
       else this.stats.splitBatches++;
     }
     if (results.length === 0 && !failure) {
       try {
-        results = [await this.statement(columns(rows), n, merge, withRows, withKeys)];
+        results = [await this.statement(columns(rows), n, merge, withRows, withKeys, withOutside)];
       } catch (err) {
         failure = asError(err);
       }
@@ -414,19 +453,45 @@ export class ReadingWriter {
       for (const p of batch) p.reject(failure);
       return;
     }
+    // Conflicts are rare: the set of their keys is built only when there are some.
+    let conflicting: Set<string> | null = null;
+    for (const r of results) {
+      if (!r.conflicts) continue;
+      conflicting ??= new Set();
+      for (const [id, ms] of r.conflicts) conflicting.add(`${id}:${ms}`);
+    }
     if (batch.length === 1) {
-      batch[0].resolve({ inserted: results.reduce((k, r) => k + r.inserted, 0) });
+      let inserted = 0;
+      let outsideSpot = 0;
+      for (const r of results) {
+        inserted += r.inserted;
+        outsideSpot += r.outside;
+      }
+      batch[0].resolve(conflicting ? { inserted, conflicts: conflicting.size, outsideSpot, conflictsAt: [...conflicting].map((k) => Number(k.split(":")[1])) } : { inserted, conflicts: 0, outsideSpot });
       return;
     }
-    if (!withKeys) {
-      for (const p of batch) p.resolve({ inserted: 0 }); // store(): nobody reads the count
-      return;
-    }
-    const fresh = new Set(results.flatMap((r) => r.keys ?? []).map(([id, ms]) => `${id}:${ms}`));
+    const fresh = withKeys ? new Set(results.flatMap((r) => r.keys ?? []).map(([id, ms]) => `${id}:${ms}`)) : null;
+    const outside = withKeys ? new Set(results.flatMap((r) => r.outside_keys ?? []).map(([id, ms]) => `${id}:${ms}`)) : null;
     for (const p of batch) {
       let inserted = 0;
-      for (const r of p.readings) if (fresh.delete(`${r.sensorId}:${r.measuredAt.getTime()}`)) inserted++;
-      p.resolve({ inserted });
+      let conflicts = 0;
+      let outsideSpot = 0;
+      let conflictsAt: number[] | undefined;
+      if (fresh || conflicting) {
+        for (const r of p.readings) {
+          const key = `${r.sensorId}:${r.measuredAt.getTime()}`;
+          if (fresh?.delete(key)) {
+            inserted++;
+            if (outside!.delete(key)) outsideSpot++;
+          }
+          if (conflicting?.has(key)) {
+            conflicts++;
+            (conflictsAt ??= []).push(r.measuredAt.getTime());
+          }
+        }
+      }
+      // store() callers without keys are told only their conflicts: nobody reads their count.
+      p.resolve(conflictsAt ? { inserted, conflicts, outsideSpot, conflictsAt } : { inserted, conflicts, outsideSpot });
     }
   }
 
@@ -443,10 +508,10 @@ export class ReadingWriter {
   }
 
   /** One statement, its own transaction: it has committed when the result comes back. */
-  private async statement(cols: string[], rows: number, merge: boolean, withRows: boolean, withKeys: boolean): Promise<StatementRow> {
+  private async statement(cols: string[], rows: number, merge: boolean, withRows: boolean, withKeys: boolean, withOutside: boolean): Promise<StatementRow> {
     const client = await this.getPool().connect();
     try {
-      const row = await writeStatement(client, { merge, withRows, withKeys, withSeen: true }, cols, { prepared: rows <= PREPARED_MAX_ROWS });
+      const row = await writeStatement(client, { merge, withRows, withKeys, withSeen: true, withOutside }, cols, { prepared: rows <= PREPARED_MAX_ROWS });
       client.release();
       return row;
     } catch (err) {
@@ -464,8 +529,8 @@ export class ReadingWriter {
    * updated by the later half after the earlier committed). A lock timeout breaks a wait that a
    * third writer, sharing a spot's rollups with both halves, could otherwise close into a cycle.
    */
-  private async splitStatements(halves: [Reading[], Reading[]], merge: boolean, withRows: boolean, withKeys: boolean): Promise<{ results: StatementRow[]; failure: Error | null }> {
-    const variant = { merge, withRows, withKeys, withSeen: false };
+  private async splitStatements(halves: [Reading[], Reading[]], merge: boolean, withRows: boolean, withKeys: boolean, withOutside: boolean): Promise<{ results: StatementRow[]; failure: Error | null }> {
+    const variant = { merge, withRows, withKeys, withSeen: false, withOutside };
     // What the whole batch says about the sensor, set once the earlier half has committed.
     const [earlierRows, laterRows] = halves;
     const lastMs = laterRows[laterRows.length - 1].measuredAt.getTime();

@@ -3,7 +3,7 @@
 // throws. Property-based with fast-check, plus hand-picked nasties.
 import fc from "fast-check";
 import { describe, expect, it } from "vitest";
-import { CHANNEL_TOPICS, decodeMessage, LIMITS, MAX_FUTURE_MS, MAX_PAST_MS, parseInstant, validateReading, type ChannelTopic } from "~/domain/ingest/payload";
+import { CHANNEL_TOPICS, decodeMessage, LIMITS, MAX_FUTURE_MS, MAX_PAST_MS, implausibleJump, parseInstant, validateReading, type ChannelTopic } from "~/domain/ingest/payload";
 
 const NOW = new Date("2026-06-15T12:00:00Z");
 const CHANNELS: (ChannelTopic | "reading")[] = ["reading", ...CHANNEL_TOPICS];
@@ -178,12 +178,47 @@ describe("MQTT payloads, hand-picked nasties", () => {
 });
 
 describe("values PostgreSQL's real cannot hold", () => {
-  it("a subnormal number is stored as 0 rather than failing the whole group commit", () => {
-    // 5e-324 is the smallest double (IEEE 754 binary64); float4 input refuses it as an underflow.
+  it("a subnormal number is refused with its reason, not stored as 0 °C (and never fails the group commit)", () => {
+    // 5e-324 is the smallest double (IEEE 754 binary64), 1e-40 a float32 subnormal (below 2^-126):
+    // integer bits read as a float, not a measurement.
     for (const tiny of [-5e-324, 5e-324, 1e-40]) {
-      const r = ingest("reading", utf8(JSON.stringify({ temperature: tiny, humidity: Math.abs(tiny) })));
-      expect(r.ok, JSON.stringify(r)).toBe(true);
-      if (r.ok && "reading" in r) expect([r.reading.temperature, r.reading.humidity]).toEqual([0, 0]);
+      const r = ingest("reading", utf8(JSON.stringify({ temperature: tiny, humidity: 50 })));
+      expect(r.ok, JSON.stringify(r)).toBe(false);
+      if (!r.ok) expect(r.reason).toMatch(/^temperature: a subnormal number/);
     }
+    const plain = ingest("temperature", utf8("5e-324"));
+    expect(plain.ok).toBe(false);
+    // Zero and a tiny but normal value stay readings (the latter rounded to the sensor's resolution).
+    for (const [t, stored] of [[0, 0], [-0, 0], [1e-7, 0], [0.0625, 0.0625]]) {
+      const r = ingest("reading", utf8(JSON.stringify({ temperature: t })));
+      expect(r.ok && "reading" in r ? r.reading.temperature : r).toBe(stored);
+    }
+  });
+});
+
+describe("jumps no sensor makes", () => {
+  const at = (s: number) => new Date(Date.UTC(2026, 0, 10, 12, 0, s));
+  const now = at(600);
+  const check = (previous: { ms: number; t: number } | undefined, body: object) =>
+    validateReading(7, body as never, { now, kind: "outdoor", previous });
+
+  it("refuses 18 → 64.4 °C in 60 s (a °F sensor without its unit) and says why", () => {
+    const r = check({ ms: at(0).getTime(), t: 18 }, { time: at(60).toISOString(), temperature: 64.4 });
+    expect(r.ok).toBe(false);
+    if (!r.ok) expect(r.reason).toMatch(/^temperature: 18 → 64\.4 °C in 60 s is a jump no sensor makes .*"unit":"F"/);
+    // The same value with its unit is 18 °C and fine.
+    expect(check({ ms: at(0).getTime(), t: 18 }, { time: at(60).toISOString(), temperature: 64.4, unit: "F" }).ok).toBe(true);
+  });
+
+  it("accepts real swings, a large step after a gap of more than five minutes, and a first reading", () => {
+    // A sun patch or a heater: a few °C a minute (common practice), well inside 20 °C + 5 °C/min.
+    expect(check({ ms: at(0).getTime(), t: 18 }, { time: at(60).toISOString(), temperature: 26 }).ok).toBe(true);
+    expect(check({ ms: at(0).getTime(), t: 24.9 }, { time: at(1).toISOString(), temperature: 18 }).ok).toBe(true);
+    expect(check({ ms: at(0).getTime() - 6 * 60_000, t: 18 }, { time: at(0).toISOString(), temperature: 64.4 }).ok).toBe(true);
+    expect(check(undefined, { time: at(0).toISOString(), temperature: 64.4 }).ok).toBe(true);
+    // A reading earlier than the previous one is compared the same way.
+    expect(check({ ms: at(60).getTime(), t: 64.4 }, { time: at(0).toISOString(), temperature: 18 }).ok).toBe(false);
+    expect(implausibleJump({ ms: 0, t: 10 }, 120_000, 40)).toBeNull(); // 30 °C in 2 min: at the 20 + 10 limit
+    expect(implausibleJump({ ms: 0, t: 10 }, 120_000, 40.5)).toMatch(/jump/);
   });
 });

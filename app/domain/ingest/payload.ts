@@ -25,6 +25,41 @@ export const MAX_FUTURE_MS = 5 * 60 * 1000;
 export const MAX_PAST_MS = 3 * 365 * 24 * 3600 * 1000;
 export const MAX_PAYLOAD_BYTES = 4096;
 
+/** Sensor ids are PostgreSQL integers: anything else names no sensor. */
+export const MAX_SENSOR_ID = 2_147_483_647;
+export const isSensorId = (n: number) => Number.isInteger(n) && n > 0 && n <= MAX_SENSOR_ID;
+
+/**
+ * The largest temperature change a sensor's reading can make between two readings `minutes` apart:
+ * 20 °C at once plus 5 °C a minute. Air around plants does not move that fast: the quickest real
+ * swings are a sun patch reaching a sensor or a heater starting beside it, a few °C a minute at
+ * most, and a housed sensor lags the air by a time constant of a minute or more (memory: typical of
+ * consumer sensors in vented cases). A larger step is a fault: a °F sensor that lost its unit
+ * (18 °C → 64.4), a probe shorting, bits read as the wrong type.
+ */
+export const maxTemperatureStep = (minutes: number) => 20 + 5 * minutes;
+/** The jump check compares only with a previous reading at most this far away in measuring time. */
+export const JUMP_WINDOW_MS = 5 * 60 * 1000;
+
+/**
+ * Why `t` (°C) at `ms` cannot follow the sensor's previous reading, or null when it can.
+ * Only a previous reading within JUMP_WINDOW_MS counts: after a gap the sensor may have been moved.
+ */
+export function implausibleJump(previous: { ms: number; t: number } | undefined, ms: number, t: number): string | null {
+  if (previous === undefined) return null;
+  const dt = Math.abs(ms - previous.ms);
+  if (dt > JUMP_WINDOW_MS) return null;
+  const step = Math.abs(t - previous.t);
+  const minutes = dt / 60_000;
+  if (step <= maxTemperatureStep(minutes)) return null;
+  return `temperature: ${round1(previous.t)} → ${round1(t)} °C in ${dt <= 60_000 ? `${Math.round(dt / 1000)} s` : `${round1(minutes)} min`} is a jump no sensor makes (over ${round1(maxTemperatureStep(minutes))} °C); a °F sensor without "unit":"F"?`;
+}
+
+// The smallest normal single-precision float. A non-zero value below it is no measurement: it is
+// what integer bits read as a float give (5e-324 is the double with bit pattern 1), and PostgreSQL's
+// real would store it as 0 or refuse it.
+const FLOAT32_MIN_NORMAL = 1.1754943508222875e-38;
+
 // What a sensor's spot can physically see. Indoors, -80 °C or 70 °C means a broken probe.
 export const LIMITS = {
   indoor: { tMin: -20, tMax: 55 },
@@ -34,7 +69,10 @@ export const LIMITS = {
 export type SpotKindForLimits = keyof typeof LIMITS;
 
 const finite = z.number().refine(Number.isFinite, "not a finite number");
-const num = z.union([finite, z.string().trim().regex(/^-?\d+(\.\d+)?$/).transform(Number)], { error: "not a number" });
+const num = z
+  .union([finite, z.string().trim().regex(/^-?\d+(\.\d+)?$/).transform(Number)], { error: "not a number" })
+  .refine(Number.isFinite, "not a finite number")
+  .refine((n) => n === 0 || Math.abs(n) >= FLOAT32_MIN_NORMAL, "a subnormal number (raw bits read as a float?), not a measurement");
 
 const timeField = z.union([
   z.number().refine(Number.isFinite, "not a finite number"),
@@ -80,7 +118,7 @@ function firstIssue(error: z.ZodError) {
 export function validateReading(
   sensorId: number,
   payload: ReadingPayload,
-  opts: { now: Date; kind: SpotKindForLimits },
+  opts: { now: Date; kind: SpotKindForLimits; previous?: { ms: number; t: number } },
 ): ParseResult {
   const parsed = readingPayloadSchema.safeParse(payload);
   if (!parsed.success) return { ok: false, reason: firstIssue(parsed.error) };
@@ -109,6 +147,11 @@ export function validateReading(
       reason: `temperature: ${round1(temperature)} °C is outside what ${opts.kind === "indoor" ? "an indoor" : "this"} spot can see (${lim.tMin} to ${lim.tMax} °C)`,
     };
   }
+  const measuredMs = Math.floor(measuredAt.getTime() / 1000) * 1000;
+  if (temperature != null && opts.previous !== undefined) {
+    const jump = implausibleJump(opts.previous, measuredMs, temperature);
+    if (jump) return { ok: false, reason: jump };
+  }
   const humidity = p.humidity ?? null;
   if (humidity != null && (humidity < 0 || humidity > 100)) {
     return { ok: false, reason: `humidity: ${round1(humidity)} % is outside 0–100 %` };
@@ -121,7 +164,7 @@ export function validateReading(
     ok: true,
     reading: {
       sensorId,
-      measuredAt: new Date(Math.floor(measuredAt.getTime() / 1000) * 1000),
+      measuredAt: new Date(measuredMs),
       temperature: tidy(temperature),
       humidity: tidy(humidity),
       lux: tidy(lux),
