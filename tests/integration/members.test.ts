@@ -204,7 +204,7 @@ describe("invitation abuse", () => {
     // Sent at once: the row locks count them in turn, so no burst slips past the limit.
     const results = await Promise.allSettled([...sends, { site: sites[3], email: `spray-extra-${owner.id}@example.test` }].map((x) => inviteMember({ siteId: x.site.id, actor: owner, email: x.email, role: "mentor" })));
     const refused = results.filter((r) => r.status === "rejected");
-    expect(refused).toHaveLength(1);
+    expect(refused, refused.map((r) => String((r as PromiseRejectedResult).reason)).join("; ")).toHaveLength(1);
     expect((refused[0] as PromiseRejectedResult).reason).toBeInstanceOf(InvitationLimitError);
     expect(String((refused[0] as PromiseRejectedResult).reason.message)).toMatch(/30 invitations in the last 24 hours/);
   });
