@@ -13,6 +13,22 @@ export function PlacingTips() {
   );
 }
 
+/** A required choice of spot or sensor that starts unchosen. */
+function ChoiceSelect({ id, name, choices, placeholder = "Choose…", className = "field" }: { id: string; name: string; choices: { id: number; name: string }[]; placeholder?: string; className?: string }) {
+  return (
+    <select id={id} name={name} className={className} required defaultValue="">
+      <option value="" disabled>
+        {placeholder}
+      </option>
+      {choices.map((c) => (
+        <option key={c.id} value={c.id}>
+          {c.name}
+        </option>
+      ))}
+    </select>
+  );
+}
+
 export function PlaceSensorForm({
   spots,
   sensors,
@@ -39,16 +55,7 @@ export function PlaceSensorForm({
           <label className="label" htmlFor="spotId">
             Spot
           </label>
-          <select id="spotId" name="spotId" className="field" required defaultValue="">
-            <option value="" disabled>
-              Choose a spot
-            </option>
-            {spots.map((s) => (
-              <option key={s.id} value={s.id}>
-                {s.name}
-              </option>
-            ))}
-          </select>
+          <ChoiceSelect id="spotId" name="spotId" placeholder="Choose a spot" choices={spots} />
         </div>
       ) : null}
       {sensors ? (
@@ -56,16 +63,7 @@ export function PlaceSensorForm({
           <label className="label" htmlFor="sensorId">
             Sensor
           </label>
-          <select id="sensorId" name="sensorId" className="field" required defaultValue="">
-            <option value="" disabled>
-              Choose a sensor
-            </option>
-            {sensors.map((s) => (
-              <option key={s.id} value={s.id}>
-                {s.name}
-              </option>
-            ))}
-          </select>
+          <ChoiceSelect id="sensorId" name="sensorId" placeholder="Choose a sensor" choices={sensors} />
         </div>
       ) : null}
       <fieldset className="flex flex-wrap gap-4 text-sm">
@@ -179,16 +177,7 @@ export function PlacementEditor({
                     <label className="label" htmlFor={`assign-${String(u.from)}`}>
                       They were in
                     </label>
-                    <select id={`assign-${String(u.from)}`} name="spotId" className="field w-auto" required defaultValue="">
-                      <option value="" disabled>
-                        Choose…
-                      </option>
-                      {spots.map((s) => (
-                        <option key={s.id} value={s.id}>
-                          {s.name}
-                        </option>
-                      ))}
-                    </select>
+                    <ChoiceSelect id={`assign-${String(u.from)}`} name="spotId" className="field w-auto" choices={spots} />
                   </div>
                   <button className="btn-quiet" disabled={busy}>
                     Put them there
@@ -240,18 +229,7 @@ export function PlacementEditor({
                     <label className="label" htmlFor={`split-to-${p.id}`}>
                       to
                     </label>
-                    <select id={`split-to-${p.id}`} name="spotId" className="field w-auto" required defaultValue="">
-                      <option value="" disabled>
-                        Choose…
-                      </option>
-                      {spots
-                        .filter((s) => s.id !== p.spotId)
-                        .map((s) => (
-                          <option key={s.id} value={s.id}>
-                            {s.name}
-                          </option>
-                        ))}
-                    </select>
+                    <ChoiceSelect id={`split-to-${p.id}`} name="spotId" className="field w-auto" choices={spots.filter((s) => s.id !== p.spotId)} />
                   </div>
                   <button className="btn-quiet" disabled={busy}>
                     Split it there

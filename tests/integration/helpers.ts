@@ -1,7 +1,9 @@
 // Test data made through the same tables the app uses.
 import { sql } from "drizzle-orm";
+import { beforeAll, afterAll } from "vitest";
 import { hashPassword } from "~/.server/auth";
 import { db } from "~/.server/db";
+import { configureMailer, startMailSink } from "~/.server/mail";
 import { hashSensorSecret, newSensorSecret } from "~/.server/secrets";
 import { memberships, placements, sensors, sites, spots, users, type Role } from "~/db/schema.server";
 
@@ -69,4 +71,21 @@ export async function storedRollups(spotId: number) {
     select hour, t_n as n, t_min as tmin, t_max as tmax, t_sum as tsum, h_n as hn, h_sum as hsum
     from hourly_rollups where spot_id = ${spotId} and (t_n > 0 or h_n > 0) order by hour`);
   return res.rows;
+}
+
+/** The local SMTP sink for this test file, with the mailer pointed at it (e-mail is faked at the network edge only). */
+export function useMailSink() {
+  let sink: Awaited<ReturnType<typeof startMailSink>> | undefined;
+  beforeAll(async () => {
+    sink = await startMailSink({ port: 0 });
+    configureMailer(`smtp://127.0.0.1:${sink.port}`);
+  });
+  afterAll(async () => {
+    await sink?.close();
+  });
+  return {
+    get port() {
+      return sink!.port;
+    },
+  };
 }

@@ -3,7 +3,8 @@
 // §2.2.3 (remaining length), §3.1 (CONNECT), §3.2 (CONNACK), §3.3 (PUBLISH) and §3.4 (PUBACK).
 import { connect, type Socket } from "node:net";
 
-function remainingLength(n: number): Buffer {
+/** The remaining-length field of MQTT 3.1.1 §2.2.3. */
+export function remainingLength(n: number): Buffer {
   const out: number[] = [];
   do {
     let byte = n % 128;

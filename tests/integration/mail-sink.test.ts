@@ -1,22 +1,15 @@
 // The development mail sink is bounded (issue 14): a message over 256 KB is refused and not kept,
 // only the newest 500 messages and 32 MB are kept, a message takes at most 50 recipients, and the
 // admin's list of it is paginated (?page=).
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import nodemailer from "nodemailer";
 import { createSession, generateSessionToken } from "~/.server/auth";
-import { configureMailer, sendMail, SINK_KEEP, SINK_MAX_MESSAGE_BYTES, SINK_MAX_TOTAL_BYTES, startMailSink, sunkMail } from "~/.server/mail";
+import { sendMail, SINK_KEEP, SINK_MAX_MESSAGE_BYTES, SINK_MAX_TOTAL_BYTES, sunkMail } from "~/.server/mail";
 import { loader as adminLoader } from "~/routes/admin";
 import { loader as mailApi } from "~/routes/api.admin.mail";
-import { makeUser } from "./helpers";
+import { makeUser, useMailSink } from "./helpers";
 
-let sink: Awaited<ReturnType<typeof startMailSink>>;
-beforeAll(async () => {
-  sink = await startMailSink({ port: 0 });
-  configureMailer(`smtp://127.0.0.1:${sink.port}`);
-});
-afterAll(async () => {
-  await sink?.close();
-});
+const sink = useMailSink();
 
 const lines = (chars: number) => Array.from({ length: Math.ceil(chars / 64) }, () => "y".repeat(63)).join("\n");
 const rawBytes = () => sunkMail().reduce((n, m) => n + m.raw.length, 0);

@@ -1,9 +1,9 @@
 // Invitations, role changes and the last-owner rule against a real PostgreSQL, with the mail going
 // through the real SMTP sink.
 import { and, eq } from "drizzle-orm";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import { db } from "~/.server/db";
-import { configureMailer, startMailSink, sunkMail } from "~/.server/mail";
+import { sunkMail } from "~/.server/mail";
 import { createSession, generateSessionToken } from "~/.server/auth";
 import {
   acceptInvitation,
@@ -24,16 +24,9 @@ import {
 import { auditLog, invitations, memberships, sites } from "~/db/schema.server";
 import { action as inviteAction, loader as inviteLoader } from "~/routes/invite";
 import { action as membersAction } from "~/routes/members";
-import { addMember, makeSite, makeUser } from "./helpers";
+import { addMember, makeSite, makeUser, useMailSink } from "./helpers";
 
-let sink: Awaited<ReturnType<typeof startMailSink>>;
-beforeAll(async () => {
-  sink = await startMailSink({ port: 0 });
-  configureMailer(`smtp://127.0.0.1:${sink.port}`);
-});
-afterAll(async () => {
-  await sink?.close();
-});
+useMailSink();
 
 const roleOf = async (siteId: number, userId: number) =>
   (await db().select({ role: memberships.role }).from(memberships).where(and(eq(memberships.siteId, siteId), eq(memberships.userId, userId))))[0]?.role ?? null;

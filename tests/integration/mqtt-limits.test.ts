@@ -14,6 +14,7 @@ import { pool } from "~/.server/db";
 import { MAX_CONNECT_BYTES, startBroker, type RunningBroker } from "~/.server/ingest/broker";
 import { ReadingWriter } from "~/.server/ingest/writer";
 import { makeSensor, makeSite, makeSpot, makeUser } from "./helpers";
+import { remainingLength } from "./ingest-mqtt-wire";
 
 const brokers: RunningBroker[] = [];
 const clients: MqttClient[] = [];
@@ -51,17 +52,6 @@ function rawSocket(port: number): Promise<Socket> {
 
 const closed = (s: Socket) => new Promise<void>((resolve) => (s.destroyed ? resolve() : s.once("close", () => resolve())));
 
-/** The remaining-length field of MQTT 3.1.1 §2.2.3. */
-function remainingLength(n: number): Buffer {
-  const out: number[] = [];
-  do {
-    let byte = n % 128;
-    n = Math.floor(n / 128);
-    if (n > 0) byte |= 0x80;
-    out.push(byte);
-  } while (n > 0);
-  return Buffer.from(out);
-}
 
 /**
  * Sends a fixed header announcing `announced` bytes, then body bytes in 64 KB chunks (waiting for

@@ -3,12 +3,12 @@
 // outdoor spot and never on an empty one, mentors hear of cold snaps only when they opt in, and a
 // spot change is one transaction with its audit row and the sensor cache's invalidation.
 import { and, eq } from "drizzle-orm";
-import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import { createSession, generateSessionToken } from "~/.server/auth";
 import { siteRecipients } from "~/.server/alerts/store";
 import { db } from "~/.server/db";
 import { invalidateSensorCache, sensorInfo } from "~/.server/ingest/sensors";
-import { configureMailer, startMailSink, sunkMail } from "~/.server/mail";
+import { sunkMail } from "~/.server/mail";
 import { seedAlerts } from "~/.server/seed-alerts";
 import { deleteSpot, updateSpot } from "~/.server/spots";
 import { alertEvents, alertRules, auditLog, spotPlants, users } from "~/db/schema.server";
@@ -16,16 +16,9 @@ import { PLANT_LIBRARY } from "~/domain/plants/library";
 import { action as siteAlertsAction } from "~/routes/site.alerts";
 import { action as spotAlertsAction, loader as spotAlertsLoader } from "~/routes/spots.$spotId.alerts";
 import { action as spotAction } from "~/routes/spots.$spotId";
-import { addMember, makeSensor, makeSite, makeSpot, makeUser } from "./helpers";
+import { addMember, makeSensor, makeSite, makeSpot, makeUser, useMailSink } from "./helpers";
 
-let sink: Awaited<ReturnType<typeof startMailSink>>;
-beforeAll(async () => {
-  sink = await startMailSink({ port: 0 });
-  configureMailer(`smtp://127.0.0.1:${sink.port}`);
-});
-afterAll(async () => {
-  await sink?.close();
-});
+useMailSink();
 
 type Fn = (a: never) => unknown;
 async function call(fn: Fn, request: Request, params: Record<string, string>) {
