@@ -4,6 +4,7 @@ import { pool } from "~/.server/db";
 import { rankPlantsForSpot, type PlantFit } from "~/domain/fit/verdict";
 import type { SpotWindow } from "~/domain/fit/window-light";
 import { PLANT_LIBRARY, type PlantProfile } from "~/domain/plants/library";
+import type { LightSource } from "~/domain/climate/light";
 import { seasonProfile } from "~/domain/season/profile";
 import type { HourlyRollup } from "~/domain/season/types";
 import type { Site } from "~/db/schema.server";
@@ -18,20 +19,20 @@ export async function fetchRollups(spotIds: number[], from: Date, to: Date): Pro
         array_agg(t_n ORDER BY hour), array_agg(t_min ORDER BY hour), array_agg(t_max ORDER BY hour), array_agg(t_sum ORDER BY hour),
         array_agg(h_n ORDER BY hour), array_agg(h_min ORDER BY hour), array_agg(h_max ORDER BY hour), array_agg(h_sum ORDER BY hour),
         array_agg(dp_margin_min ORDER BY hour), array_agg(lux_n ORDER BY hour), array_agg(lux_sum ORDER BY hour),
-        array_agg(dp_n ORDER BY hour), array_agg(dp_under_n ORDER BY hour)) AS c
+        array_agg(dp_n ORDER BY hour), array_agg(dp_under_n ORDER BY hour), array_agg(lux_max ORDER BY hour)) AS c
      FROM hourly_rollups WHERE spot_id = ANY($1::int[]) AND hour >= $2 AND hour < $3 GROUP BY spot_id`,
     [spotIds, from, to],
   );
   const out = new Map<number, HourlyRollup[]>(spotIds.map((id) => [id, []]));
   for (const { spot_id, c } of res.rows) {
-    const [hour, tN, tMin, tMax, tSum, hN, hMin, hMax, hSum, dp, luxN, luxSum, dpN, dpUnderN] = c;
+    const [hour, tN, tMin, tMax, tSum, hN, hMin, hMax, hSum, dp, luxN, luxSum, dpN, dpUnderN, luxMax] = c;
     const list = out.get(spot_id)!;
     for (let i = 0; i < hour.length; i++) {
       list.push({
         hour: new Date(hour[i]!),
         tN: tN[i] ?? 0, tMin: tMin[i], tMax: tMax[i], tSum: tSum[i],
         hN: hN[i] ?? 0, hMin: hMin[i], hMax: hMax[i], hSum: hSum[i],
-        dpMarginMin: dp[i], luxN: luxN[i] ?? 0, luxSum: luxSum[i], dpN: dpN[i] ?? 0, dpUnderN: dpUnderN[i] ?? 0,
+        dpMarginMin: dp[i], luxN: luxN[i] ?? 0, luxSum: luxSum[i], luxMax: luxMax[i], dpN: dpN[i] ?? 0, dpUnderN: dpUnderN[i] ?? 0,
       });
     }
   }
@@ -236,10 +237,13 @@ export async function spotProfiles(
     group.ids.push(id);
     groups.set(key, group);
   }
+  // Each spot's light source sets the lux → PPFD factor of its DLI (sunlight unless the grower said lamps).
+  const lit = await pool().query<{ id: number; light_source: LightSource }>("SELECT id, light_source FROM spots WHERE id = ANY($1::int[])", [spotIds]);
+  const lightSource = new Map(lit.rows.map((r) => [r.id, r.light_source]));
   const out = new Map<number, ReturnType<typeof seasonProfile>>();
   for (const { from, to, ids } of groups.values()) {
     const rollups = await loadRollups(ids, from, to);
-    for (const id of ids) out.set(id, seasonProfile(rollups.get(id)!, siteInfo, { from, to, thresholds }));
+    for (const id of ids) out.set(id, seasonProfile(rollups.get(id)!, siteInfo, { from, to, thresholds, lightSource: lightSource.get(id) }));
   }
   return new Map(spotIds.map((id) => [id, out.get(id)!] as const));
 }
@@ -272,11 +276,13 @@ export const windowOf = (site: Site, spot: { facing: SpotWindow["facing"]; indoo
 export function slimProfile(season: ReturnType<typeof seasonProfile>) {
   return {
     hemisphere: season.hemisphere,
-    year: season.year.map(({ key, month, name, temperature, humidity, below, condensationHours, light, coverage }) => ({
-      key, month, name, temperature, humidity, below, condensationHours, light, coverage,
+    luxPerPpfd: season.luxPerPpfd,
+    luxClipped: season.luxClipped,
+    year: season.year.map(({ key, month, name, temperature, humidity, below, condensationHours, light, luxClipped, coverage }) => ({
+      key, month, name, temperature, humidity, below, condensationHours, light, luxClipped, coverage,
     })),
-    seasons: season.seasons.map(({ key, label, season: name, temperature, humidity, below, condensationHours, light, coverage }) => ({
-      key, label, season: name, temperature, humidity, below, condensationHours, light, coverage,
+    seasons: season.seasons.map(({ key, label, season: name, temperature, humidity, below, condensationHours, light, luxClipped, coverage }) => ({
+      key, label, season: name, temperature, humidity, below, condensationHours, light, luxClipped, coverage,
     })),
   };
 }

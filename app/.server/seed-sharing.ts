@@ -69,7 +69,7 @@ export async function seedSharing(opts: { siteId: number; ownerId: number; carer
       );
   }
   // Tap water about 280 ppm, alkaline (hard-water area); rain from the water butt about 15 ppm.
-  // The carer measures with a TDS pen; a few early tap checks came from the owner's EC meter (0.5 scale).
+  // The carer measures with a TDS pen on the 0.5 scale; a few early tap checks came from the owner's EC meter.
   const checks: (typeof waterChecks.$inferInsert)[] = [];
   for (let i = 0; i < 12; i++) {
     const checkedOn = ago(14 + i * 15);
@@ -77,13 +77,14 @@ export async function seedSharing(opts: { siteId: number; ownerId: number; carer
     if (i >= 9) {
       checks.push({ siteId: opts.siteId, source: "tap", checkedOn, ec: Math.round(560 + wobble(i, 20) * 2), ecScale: 0.5, ph: Math.round((7.6 + wobble(i + 3, 0.15)) * 10) / 10, byUserId });
     } else {
-      checks.push({ siteId: opts.siteId, source: "tap", checkedOn, ppm: Math.round(280 + wobble(i, 12)), ph: Math.round((7.5 + wobble(i + 3, 0.2)) * 10) / 10, byUserId });
+      checks.push({ siteId: opts.siteId, source: "tap", checkedOn, ppm: Math.round(280 + wobble(i, 12)), ecScale: 0.5, ph: Math.round((7.5 + wobble(i + 3, 0.2)) * 10) / 10, byUserId });
     }
     checks.push({
       siteId: opts.siteId,
       source: "rain",
       checkedOn: new Date(checkedOn.getTime() + 3_600_000),
       ppm: Math.max(4, Math.round(15 + wobble(i + 7, 6))),
+      ecScale: 0.5,
       ph: Math.round((6.1 + wobble(i + 5, 0.35)) * 10) / 10,
       byUserId,
     });

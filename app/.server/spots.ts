@@ -8,14 +8,32 @@ import { cleanText } from "~/.server/ids";
 import { invalidateSensorCache } from "~/.server/ingest/sensors";
 import { ensureColdWatch } from "~/.server/watches";
 import { auditLog, placements, spots, type Spot } from "~/db/schema.server";
-import type { FACINGS } from "~/lib/forms";
+import type { LightSource } from "~/domain/climate/light";
+import type { FACINGS, Glazing } from "~/lib/forms";
 
-export type SpotValues = { name: string; indoor: boolean; facing: (typeof FACINGS)[number]; capacity: number; notes: string };
+/**
+ * `lightSource` (default sun) sets the lux → PPFD factor of the spot's DLI; `glazing` is kept only
+ * for a spot by a window (facing not "none"), else stored as not given. Both left out: unchanged.
+ */
+export type SpotValues = {
+  name: string;
+  indoor: boolean;
+  facing: (typeof FACINGS)[number];
+  capacity: number;
+  notes: string;
+  lightSource?: LightSource;
+  glazing?: Glazing | null;
+};
 
-const FIELDS = ["name", "indoor", "facing", "capacity", "notes"] as const;
+const FIELDS = ["name", "indoor", "facing", "capacity", "notes", "lightSource", "glazing"] as const;
 
 // PostgreSQL refuses NUL in text: free text loses the control characters nobody types.
-const clean = (v: SpotValues): SpotValues => ({ ...v, name: cleanText(v.name).trim() || "Unnamed spot", notes: cleanText(v.notes) });
+const clean = (v: SpotValues): SpotValues => ({
+  ...v,
+  name: cleanText(v.name).trim() || "Unnamed spot",
+  notes: cleanText(v.notes),
+  ...(v.glazing !== undefined ? { glazing: v.facing === "none" ? null : v.glazing } : {}),
+});
 
 export async function createSpot(opts: { siteId: number; actorId: number; values: SpotValues }) {
   return db().transaction(async (tx) => {
@@ -32,7 +50,7 @@ export async function updateSpot(opts: { siteId: number; actorId: number; spot: 
   const { spot } = opts;
   const values = clean(opts.values);
   const changes: Record<string, [unknown, unknown]> = {};
-  for (const k of FIELDS) if (spot[k] !== values[k]) changes[k] = [k === "notes" ? spot[k].length : spot[k], k === "notes" ? values[k].length : values[k]];
+  for (const k of FIELDS) if (values[k] !== undefined && spot[k] !== values[k]) changes[k] = [k === "notes" ? spot[k].length : spot[k], k === "notes" ? values[k].length : values[k]];
   const sensorIds = await db().transaction(async (tx) => {
     const [updated] = await tx
       .update(spots)

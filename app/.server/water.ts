@@ -1,7 +1,7 @@
 // Water checks per site: logged by carers and owners, read by everyone in the site.
 import { and, asc, eq } from "drizzle-orm";
 import { db } from "~/.server/db";
-import { checkPpm } from "~/domain/water/checks";
+import { checkEc, checkPpm, checkSample } from "~/domain/water/checks";
 import { waterVerdict } from "~/domain/water/water";
 import { auditLog, users, waterChecks } from "~/db/schema.server";
 
@@ -21,12 +21,10 @@ export async function listWaterChecks(siteId: number) {
     .leftJoin(users, eq(users.id, waterChecks.byUserId))
     .where(eq(waterChecks.siteId, siteId))
     .orderBy(asc(waterChecks.checkedOn), asc(waterChecks.id));
-  return rows.map((r) => {
-    const tds = checkPpm(r);
-    return { ...r, tds, ...waterVerdict({ ppm: tds, ph: r.ph }) };
-  });
+  return rows.map((r) => ({ ...r, ecExact: checkEc(r), ...waterVerdict(checkSample(r)) }));
 }
 
+/** `ecScale`: the meter's ppm per µS/cm when the grower gave it, for a TDS or an EC meter alike. */
 export type NewWaterCheck = { source: string; checkedOn: Date; ppm: number | null; ec: number | null; ecScale: 0.5 | 0.7 | null; ph: number | null };
 
 export async function addWaterCheck(siteId: number, actorId: number, check: NewWaterCheck) {
@@ -36,7 +34,7 @@ export async function addWaterCheck(siteId: number, actorId: number, check: NewW
       siteId,
       actorId,
       action: "water.add",
-      detail: { checkId: row.id, source: check.source, ppm: checkPpm(check), ph: check.ph },
+      detail: { checkId: row.id, source: check.source, ppm: checkPpm(check), ec: checkEc(check), ph: check.ph },
     });
     return row;
   });

@@ -84,6 +84,11 @@ export const memberships = pgTable(
 
 export const facingEnum = pgEnum("window_facing", ["N", "NE", "E", "SE", "S", "SW", "W", "NW", "none"]);
 
+/** What lights a spot: picks the lux → PPFD factor of its DLI (app/domain/climate/light.ts). */
+export const lightSourceEnum = pgEnum("light_source", ["sun", "led", "fluorescent", "mixed"]);
+/** A windowsill's glazing, for the cold-glass rule; null when not given. */
+export const glazingEnum = pgEnum("glazing", ["single", "double", "old_double", "triple", "none"]);
+
 export const spots = pgTable(
   "spots",
   {
@@ -96,6 +101,8 @@ export const spots = pgTable(
     facing: facingEnum().notNull().default("none"),
     capacity: integer().notNull().default(0),
     notes: text().notNull().default(""),
+    lightSource: lightSourceEnum().notNull().default("sun"),
+    glazing: glazingEnum(),
     createdAt: createdAt(),
   },
   (t) => [index().on(t.siteId)],
@@ -181,6 +188,8 @@ export const hourlyRollups = pgTable(
     dpUnderN: integer().notNull().default(0),
     luxN: integer().notNull().default(0),
     luxSum: doublePrecision(),
+    /** The hour's highest lux reading: a run of hours at one ceiling is a sensor that clips. */
+    luxMax: doublePrecision(),
   },
   (t) => [primaryKey({ columns: [t.spotId, t.hour] })],
 );

@@ -1,7 +1,11 @@
 // Shared form schemas: the same zod schema validates in the browser (through conform) and in the action.
 import { z } from "zod";
+import { LIGHT_SOURCES } from "~/domain/climate/light";
 
 export const FACINGS = ["N", "NE", "E", "SE", "S", "SW", "W", "NW", "none"] as const;
+/** A windowsill's glazing ("old_double": an older double unit, U ≈ 2.8), for the cold-glass rule. */
+export const GLAZINGS = ["single", "double", "old_double", "triple", "none"] as const;
+export type Glazing = (typeof GLAZINGS)[number];
 
 const email = z.string({ error: "Enter your e-mail address" }).trim().toLowerCase().pipe(z.email("That is not an e-mail address"));
 
@@ -58,6 +62,9 @@ export const spotSchema = z.object({
     .min(0, "Can't be negative")
     .max(500, "That is more pots than we expect on one spot"),
   notes: z.string().trim().max(2000, "Keep notes under 2,000 characters").optional(),
+  lightSource: z.enum(LIGHT_SOURCES, { error: "Choose what lights the spot" }).default("sun"),
+  // Empty means not given; kept only for a spot by a window (see updateSpot).
+  glazing: z.enum(GLAZINGS, { error: "Choose the glazing, or leave it not given" }).optional(),
 });
 
 export const CHANNELS = ["temperature", "humidity", "lux", "battery"] as const;

@@ -27,8 +27,8 @@ export async function action({ request, params }: Route.ActionArgs) {
   }
   const submission = parseWithZod(formData, { schema: spotSchema });
   if (submission.status !== "success") return { result: submission.reply() };
-  const { indoor, notes, ...rest } = submission.value;
-  await updateSpot({ siteId, actorId: user.id, spot, values: { ...rest, indoor: indoor === "indoor", notes: notes ?? "" } });
+  const { indoor, notes, glazing, ...rest } = submission.value;
+  await updateSpot({ siteId, actorId: user.id, spot, values: { ...rest, indoor: indoor === "indoor", notes: notes ?? "", glazing: glazing ?? null } });
   return redirect(`/sites/${siteId}/spots/${spot.id}`);
 }
 
@@ -47,6 +47,8 @@ export default function EditSpot({ loaderData, actionData }: Route.ComponentProp
               facing: spot.facing,
               capacity: spot.capacity,
               notes: spot.notes,
+              lightSource: spot.lightSource,
+              glazing: spot.glazing ?? "",
             }}
             submitLabel="Save"
           />

@@ -22,6 +22,7 @@ import { periodLabel, PeriodPicker } from "~/components/period-picker";
 import { VERDICT_RULES } from "~/domain/fit/verdict";
 import { timeAgo } from "~/lib/time";
 import { formatTemp, toUnit } from "~/lib/units";
+import { LIGHT_SOURCE_LABELS, type LightSource } from "~/domain/climate/light";
 import type { Route } from "./+types/spots.$spotId";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.spot.name ?? "Spot"} · Nichewise` }];
@@ -85,6 +86,27 @@ export async function action({ request, params }: Route.ActionArgs) {
   const planted = await inventoryAction(form, { siteId, spotId: spot.id, actorId: user.id });
   if (planted) return data({ plantError: planted.error }, { status: planted.status });
   throw data("Unknown action", { status: 400 });
+}
+
+/** Beside the DLI figures: which lux factor they use, and a light sensor that clips. */
+function LightNotes({ profile, lightSource }: { profile: { luxPerPpfd: number; luxClipped: { ceilingLux: number } | null; year: { name: string; luxClipped: unknown }[] }; lightSource: LightSource }) {
+  const clipped = profile.luxClipped;
+  const months = profile.year.filter((m) => m.luxClipped).map((m) => m.name);
+  return (
+    <>
+      {lightSource !== "sun" ? (
+        <p className="mt-2 text-xs text-muted" data-testid="light-source-note">
+          DLI here counts {profile.luxPerPpfd} lux as 1 µmol m⁻² s⁻¹ of plant light: {LIGHT_SOURCE_LABELS[lightSource].toLowerCase()}, as set for this spot.
+        </p>
+      ) : null}
+      {clipped ? (
+        <p className="mt-2 rounded-lg border border-care/40 bg-care/5 p-2 text-sm" role="note" data-testid="lux-clipped">
+          Your light sensor tops out at about {(Math.round(clipped.ceilingLux / 1000) * 1000).toLocaleString("en")} lux: the sunniest hours read low,
+          so the DLI{months.length ? ` of ${months.join(", ")}` : ""} is a lower bound.
+        </p>
+      ) : null}
+    </>
+  );
 }
 
 const hoursChart = (unit: "C" | "F"): ChartSpec => ({
@@ -217,6 +239,7 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
       <section className="card">
         <h3 className="h2 mb-3">Season profile</h3>
         <SeasonTable months={loaderData.profile.year} seasons={loaderData.profile.seasons} unit={unit} />
+        <LightNotes profile={loaderData.profile} lightSource={spot.lightSource} />
       </section>
 
       <section className="card">

@@ -17,8 +17,8 @@ export async function action({ request, params }: Route.ActionArgs) {
   const { siteId, user } = await requireSiteRole(request, params.siteId, ["owner"]);
   const submission = parseWithZod(await request.formData(), { schema: spotSchema });
   if (submission.status !== "success") return { result: submission.reply() };
-  const { indoor, notes, ...rest } = submission.value;
-  const spot = await createSpot({ siteId, actorId: user.id, values: { ...rest, indoor: indoor === "indoor", notes: notes ?? "" } });
+  const { indoor, notes, glazing, ...rest } = submission.value;
+  const spot = await createSpot({ siteId, actorId: user.id, values: { ...rest, indoor: indoor === "indoor", notes: notes ?? "", glazing: glazing ?? null } });
   return redirect(`/sites/${siteId}/spots/${spot.id}`);
 }
 

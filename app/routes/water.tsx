@@ -6,7 +6,7 @@ import { formId } from "~/.server/ids";
 import { addWaterCheck, deleteWaterCheck, listWaterChecks } from "~/.server/water";
 import { Chart, type ChartSpec } from "~/components/chart";
 import { parseSource, ppmLabel, sourceName, STANDARD_SOURCES } from "~/domain/water/checks";
-import { PH_MAX, PH_MIN, ROUTINE_WATERING_MAX_PPM, type WaterVerdict } from "~/domain/water/water";
+import { PH_MAX, PH_MIN, ROUTINE_WATERING_MAX_EC, routineLimitPpm, UNBUFFERED_MAX_EC, type WaterVerdict } from "~/domain/water/water";
 import { formatInZone, toLocalInputValue, zonedToUtc } from "~/lib/time";
 import type { Route } from "./+types/water";
 
@@ -54,7 +54,6 @@ export async function action({ request, params }: Route.ActionArgs) {
   if (value != null && !(value >= 0 && value <= (measure === "ec" ? 20000 : 10000))) {
     return fail(measure === "ec" ? "EC is a number of µS/cm, 0 to 20,000." : "TDS is a number of ppm, 0 to 10,000.");
   }
-  if (measure === "ec" && value != null && !scale) return fail("Choose the meter's scale (0.5 or 0.7); its manual says which.");
   if (ph != null && !(ph >= 0 && ph <= 14)) return fail("pH is between 0 and 14.");
   if (value == null && ph == null) return fail("Enter a TDS/EC reading, a pH, or both.");
   await addWaterCheck(siteId, user.id, {
@@ -62,7 +61,8 @@ export async function action({ request, params }: Route.ActionArgs) {
     checkedOn,
     ppm: measure === "ppm" ? value : null,
     ec: measure === "ec" ? value : null,
-    ecScale: measure === "ec" && value != null ? scale : null,
+    // The scale of a TDS meter turns its ppm into conductivity; an EC meter's is kept for its ppm.
+    ecScale: value != null ? scale : null,
     ph,
   });
   return { intent, ok: true, source };
@@ -94,20 +94,21 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
   const day = (d: Date | string) => formatInZone(d, timeZone, { hour: undefined, minute: undefined });
 
   const chartData = useMemo(() => {
-    const withTds = checks.filter((c) => c.tds != null);
+    const withTds = checks.filter((c) => c.ecExact != null);
     const t = [...new Set(withTds.map((c) => Math.floor(new Date(c.checkedOn).getTime() / 1000)))].sort((a, b) => a - b);
     const cols: Record<string, (number | null)[]> = { t };
     sources.forEach((s, i) => {
       const col: (number | null)[] = t.map(() => null);
-      for (const c of withTds.filter((c) => c.source === s)) col[t.indexOf(Math.floor(new Date(c.checkedOn).getTime() / 1000))] = Math.round(c.tds! * 10) / 10;
+      for (const c of withTds.filter((c) => c.source === s)) col[t.indexOf(Math.floor(new Date(c.checkedOn).getTime() / 1000))] = Math.round(c.ecExact!);
       cols[`s${i}`] = col;
     });
-    cols.limit = t.map(() => ROUTINE_WATERING_MAX_PPM);
+    cols.limit = t.map(() => ROUTINE_WATERING_MAX_EC);
     return t.length ? cols : undefined;
   }, [checks, sources]);
+  const unplotted = checks.filter((c) => c.ecExact == null && c.ppm != null).length;
   const spec = useMemo<ChartSpec>(
     () => ({
-      title: "Dissolved solids over time (ppm)",
+      title: "Dissolved solids over time (conductivity, µS/cm)",
       unit: "C",
       height: 220,
       build: (d) => ({
@@ -119,13 +120,13 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
             width: 2,
             spanGaps: true,
             points: { show: true, size: 6 },
-            value: (_u: unknown, v: number | null) => (v == null ? "–" : `${v} ppm`),
+            value: (_u: unknown, v: number | null) => (v == null ? "–" : `${v} µS/cm`),
           })),
-          { label: `${ROUTINE_WATERING_MAX_PPM} ppm rule of thumb`, stroke: "#6f675c", dash: [6, 4], width: 1, points: { show: false } },
+          { label: `${ROUTINE_WATERING_MAX_EC} µS/cm rule of thumb`, stroke: "#6f675c", dash: [6, 4], width: 1, points: { show: false } },
         ],
         axes: [
           { stroke: "#6f675c", grid: { stroke: "#e4dccd" } },
-          { stroke: "#6f675c", grid: { stroke: "#e4dccd" }, label: "ppm", size: 50 },
+          { stroke: "#6f675c", grid: { stroke: "#e4dccd" }, label: "µS/cm", size: 50 },
         ],
       }),
     }),
@@ -138,8 +139,18 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
         <h2 className="text-xl font-semibold">Water checks</h2>
         <p className="max-w-3xl text-sm text-muted">
           Check each water source before it goes on the plants: dissolved solids (a TDS meter in ppm, or an EC meter in µS/cm) and pH.
-          The rules of thumb: over {ROUTINE_WATERING_MAX_PPM} ppm is not for routine watering, and pH outside {PH_MIN}–{PH_MAX} needs attention.
+          The rules of thumb:
         </p>
+        <ul className="mt-1 max-w-3xl list-disc pl-5 text-sm text-muted" data-testid="water-rules">
+          <li>
+            Water that conducts over {ROUTINE_WATERING_MAX_EC} µS/cm is not for routine watering. A TDS meter shows that line as{" "}
+            {routineLimitPpm(0.5)} ppm on the 0.5 (NaCl) scale and {routineLimitPpm(0.7)} ppm on the 0.7 (442) scale; its manual says which it uses.
+          </li>
+          <li>
+            pH outside {PH_MIN}–{PH_MAX} needs attention only in water with some buffer (over {UNBUFFERED_MAX_EC} µS/cm). Rain and RO water are
+            nearly free of minerals: their pH drifts with the air and means little, and the potting mix and fertiliser set the pH at the roots.
+          </li>
+        </ul>
       </div>
 
       <p className="rounded-xl border border-care/40 bg-care/5 p-3 text-sm" role="note">
@@ -176,6 +187,12 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
       {chartData ? (
         <section className="card">
           <Chart spec={spec} data={chartData} testId="water-chart" />
+          {unplotted ? (
+            <p className="mt-2 text-xs text-muted">
+              {unplotted} TDS {unplotted === 1 ? "reading" : "readings"} without the meter's scale {unplotted === 1 ? "is" : "are"} in the table but not
+              on the chart: a ppm figure stands for a different conductivity on a 0.5 and a 0.7 meter.
+            </p>
+          ) : null}
         </section>
       ) : null}
 
@@ -203,7 +220,10 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
                     <td className="whitespace-nowrap">{day(c.checkedOn)}</td>
                     <td>{sourceName(c.source)}</td>
                     <td>{ppmLabel(c)}</td>
-                    <td>{c.ph ?? "–"}</td>
+                    <td>
+                      {c.ph ?? "–"}
+                      {c.ph != null && c.buffered === false ? <span className="text-xs text-muted"> (no buffer: not judged)</span> : null}
+                    </td>
                     <td className={VERDICT[c.verdict].cls}>
                       <span aria-hidden="true">{VERDICT[c.verdict].icon} </span>
                       {c.verdict === "good" ? "good" : c.verdict === "adjust" ? "needs attention" : "not for routine use"}
@@ -286,13 +306,14 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
               </div>
               <div>
                 <label className="label" htmlFor="scale">
-                  EC meter's scale
+                  Meter's ppm scale
                 </label>
-                <select id="scale" name="scale" className="field" defaultValue={typed.scale ?? "0.5"}>
+                <select id="scale" name="scale" className="field" defaultValue={typed.scale ?? ""}>
+                  <option value="">Not sure</option>
                   <option value="0.5">0.5 — NaCl scale (ppm = µS/cm × 0.5)</option>
                   <option value="0.7">0.7 — 442 scale (ppm = µS/cm × 0.7)</option>
                 </select>
-                <p className="hint">Only for EC readings; the meter's manual says which scale it uses.</p>
+                <p className="hint">The meter's manual says which. It matters for a TDS reading in ppm: the same water reads 1.4 times higher on a 0.7 meter.</p>
               </div>
               <div>
                 <label className="label" htmlFor="ph">

@@ -370,14 +370,14 @@ async function bench() {
   }
   // Columns of the rebuild SELECT are unnamed aggregates; name them so both paths read the same.
   const named = RAW_HOURLY.replace(
-    /SELECT spot_id, hour, count\(t\)::int, min\(t\), max\(t\), sum\(t\), count\(h\)::int, min\(h\), max\(h\), sum\(h\),\s*min\(dew_point_margin\(t, h\)\), count\(l\)::int, sum\(l\)/,
-    "SELECT spot_id, hour, count(t)::int AS t_n, min(t) AS t_min, max(t) AS t_max, sum(t) AS t_sum, count(h)::int AS h_n, min(h) AS h_min, max(h) AS h_max, sum(h) AS h_sum, min(dew_point_margin(t, h)) AS dp, count(l)::int AS lux_n, sum(l) AS lux_sum",
+    /SELECT spot_id, hour, count\(t\)::int, min\(t\), max\(t\), sum\(t\), count\(h\)::int, min\(h\), max\(h\), sum\(h\),\s*min\(dew_point_margin\(t, h\)\), count\(l\)::int, sum\(l\), max\(l\)/,
+    "SELECT spot_id, hour, count(t)::int AS t_n, min(t) AS t_min, max(t) AS t_max, sum(t) AS t_sum, count(h)::int AS h_n, min(h) AS h_min, max(h) AS h_max, sum(h) AS h_sum, min(dew_point_margin(t, h)) AS dp, count(l)::int AS lux_n, sum(l) AS lux_sum, max(l) AS lux_max",
   );
   async function fromRawNamed(from: Date, to: Date) {
     const res = await p.query(named + " ORDER BY hour", [[target], from, to]);
     const rollups: HourlyRollup[] = res.rows.map((x) => ({
       hour: x.hour, tN: x.t_n, tMin: x.t_min, tMax: x.t_max, tSum: x.t_sum, hN: x.h_n, hMin: x.h_min, hMax: x.h_max,
-      hSum: x.h_sum, dpMarginMin: x.dp, luxN: x.lux_n, luxSum: x.lux_sum, dpN: x.dp_n, dpUnderN: x.dp_under_n,
+      hSum: x.h_sum, dpMarginMin: x.dp, luxN: x.lux_n, luxSum: x.lux_sum, luxMax: x.lux_max, dpN: x.dp_n, dpUnderN: x.dp_under_n,
     }));
     return seasonProfile(rollups, siteInfo, { from, to });
   }

@@ -173,7 +173,7 @@ WITH fresh AS (
   SELECT p.spot_id, ${LOCAL_HOUR_START("r.measured_at", "si.time_zone")} AS hour,
     count(r.temperature)::int AS t_n, min(r.temperature) AS t_min, max(r.temperature) AS t_max, sum(r.temperature) AS t_sum,
     count(r.humidity)::int AS h_n, min(r.humidity) AS h_min, max(r.humidity) AS h_max, sum(r.humidity) AS h_sum,
-    count(r.lux)::int AS lux_n, sum(r.lux) AS lux_sum
+    count(r.lux)::int AS lux_n, sum(r.lux) AS lux_sum, max(r.lux) AS lux_max
   FROM placements p
   JOIN readings r ON r.sensor_id = p.sensor_id AND r.measured_at >= p.from_at AND (p.to_at IS NULL OR r.measured_at < p.to_at)
   JOIN spots sp ON sp.id = p.spot_id JOIN sites si ON si.id = sp.site_id
@@ -186,7 +186,7 @@ SELECT
   count(*) FILTER (WHERE f.spot_id IS NULL OR s.spot_id IS NULL
     OR f.t_n <> s.t_n OR f.h_n <> s.h_n OR f.lux_n <> s.lux_n
     OR f.t_min IS DISTINCT FROM s.t_min OR f.t_max IS DISTINCT FROM s.t_max
-    OR f.h_min IS DISTINCT FROM s.h_min OR f.h_max IS DISTINCT FROM s.h_max
+    OR f.h_min IS DISTINCT FROM s.h_min OR f.h_max IS DISTINCT FROM s.h_max OR f.lux_max IS DISTINCT FROM s.lux_max
     OR abs(coalesce(f.t_sum, 0) - coalesce(s.t_sum, 0)) > 1e-6 * greatest(1, abs(coalesce(f.t_sum, 0))) + 0.01
     OR abs(coalesce(f.h_sum, 0) - coalesce(s.h_sum, 0)) > 1e-6 * greatest(1, abs(coalesce(f.h_sum, 0))) + 0.01
     OR abs(coalesce(f.lux_sum, 0) - coalesce(s.lux_sum, 0)) > 1e-6 * greatest(1, abs(coalesce(f.lux_sum, 0))) + 0.5)::int AS differing,

@@ -6,9 +6,9 @@ import { pool } from "~/.server/db";
 import { DP_COUNTS, LOCAL_HOUR_START } from "~/.server/ingest/writer";
 
 export const REBUILD_SQL = `
-INSERT INTO hourly_rollups (spot_id, hour, t_n, t_min, t_max, t_sum, h_n, h_min, h_max, h_sum, dp_margin_min, lux_n, lux_sum, dp_n, dp_under_n)
+INSERT INTO hourly_rollups (spot_id, hour, t_n, t_min, t_max, t_sum, h_n, h_min, h_max, h_sum, dp_margin_min, lux_n, lux_sum, lux_max, dp_n, dp_under_n)
 SELECT spot_id, hour, count(t)::int, min(t), max(t), sum(t), count(h)::int, min(h), max(h), sum(h),
-  min(dew_point_margin(t, h)), count(l)::int, sum(l), ${DP_COUNTS("dew_point_margin(t, h)")}
+  min(dew_point_margin(t, h)), count(l)::int, sum(l), max(l), ${DP_COUNTS("dew_point_margin(t, h)")}
 FROM (
   SELECT p.spot_id,
     ${LOCAL_HOUR_START("r.measured_at", "si.time_zone")} AS hour,

@@ -123,11 +123,11 @@ WITH ${input}, ins AS (
   SELECT spot_id, hour,
     count(t)::int AS t_n, min(t) AS t_min, max(t) AS t_max, sum(t) AS t_sum,
     count(h)::int AS h_n, min(h) AS h_min, max(h) AS h_max, sum(h) AS h_sum,
-    min(${merge ? "dp" : "dew_point_margin(t, h)"}) AS dp_margin_min, count(l)::int AS lux_n, sum(l) AS lux_sum,
+    min(${merge ? "dp" : "dew_point_margin(t, h)"}) AS dp_margin_min, count(l)::int AS lux_n, sum(l) AS lux_sum, max(l) AS lux_max,
     ${DP_COUNTS(merge ? "CASE WHEN t IS NOT NULL OR h IS NOT NULL THEN dp END" : "dew_point_margin(t, h)")}
   FROM placed GROUP BY spot_id, hour
 ), up AS (
-  INSERT INTO hourly_rollups AS r (spot_id, hour, t_n, t_min, t_max, t_sum, h_n, h_min, h_max, h_sum, dp_margin_min, lux_n, lux_sum, dp_n, dp_under_n)
+  INSERT INTO hourly_rollups AS r (spot_id, hour, t_n, t_min, t_max, t_sum, h_n, h_min, h_max, h_sum, dp_margin_min, lux_n, lux_sum, lux_max, dp_n, dp_under_n)
   SELECT * FROM agg ORDER BY spot_id, hour -- one lock order for every writer, so no deadlocks
   ON CONFLICT (spot_id, hour) DO UPDATE SET
     t_n = r.t_n + excluded.t_n, t_min = least(r.t_min, excluded.t_min), t_max = greatest(r.t_max, excluded.t_max),
@@ -137,7 +137,8 @@ WITH ${input}, ins AS (
     dp_margin_min = least(r.dp_margin_min, excluded.dp_margin_min),
     dp_n = r.dp_n + excluded.dp_n, dp_under_n = r.dp_under_n + excluded.dp_under_n,
     lux_n = r.lux_n + excluded.lux_n,
-    lux_sum = CASE WHEN r.lux_sum IS NULL THEN excluded.lux_sum ELSE r.lux_sum + coalesce(excluded.lux_sum, 0) END
+    lux_sum = CASE WHEN r.lux_sum IS NULL THEN excluded.lux_sum ELSE r.lux_sum + coalesce(excluded.lux_sum, 0) END,
+    lux_max = greatest(r.lux_max, excluded.lux_max)
   RETURNING 1
 ), seen AS (${withSeen ? `
   UPDATE sensors s SET last_seen_at = greatest(s.last_seen_at, x.last_at),

@@ -1,6 +1,9 @@
 import { describe, it, expect } from "vitest";
 import fc from "fast-check";
 import {
+  LIGHT_SOURCES,
+  LIGHT_SOURCE_LABELS,
+  LIGHT_SOURCE_LUX_PER_PPFD,
   LUX_PER_FOOT_CANDLE,
   LUX_PER_PPFD,
   ORCHID_LIGHT_BANDS,
@@ -10,6 +13,7 @@ import {
   dliFromPeakLuxSineDay,
   footCandlesToLux,
   lightBandForDli,
+  luxPerPpfdFor,
   luxToFootCandles,
   luxToPpfd,
 } from "~/domain/climate/light";
@@ -112,5 +116,24 @@ describe("orchid light bands (common practice, figures from memory)", () => {
     expect(lightBandForDli(high.dliMin)).toBe("high");
     expect(lightBandForDli(high.dliMax)).toBe("high");
     expect(lightBandForDli(high.dliMax + 0.01)).toBe("above-high");
+  });
+});
+
+describe("light source per spot", () => {
+  // Sun and cool-white fluorescent: Thimijan & Heins (1983), HortScience 18, 818–822. White LED:
+  // 70 (memory, the middle of ~65–75 computed from white LED spectra); mixed: halfway (our choice).
+  it("picks the lux → PPFD factor of each source, sunlight by default", () => {
+    expect(LIGHT_SOURCE_LUX_PER_PPFD).toEqual({ sun: 54, led: 70, fluorescent: 74, mixed: 62 });
+    expect(luxPerPpfdFor("led")).toBe(70);
+    expect(luxPerPpfdFor(undefined)).toBe(SUNLIGHT_LUX_PER_PPFD);
+    expect(luxPerPpfdFor("nonsense")).toBe(SUNLIGHT_LUX_PER_PPFD);
+    expect(LIGHT_SOURCES.every((s) => LIGHT_SOURCE_LABELS[s].length > 0)).toBe(true);
+  });
+
+  it("gives a lamp-lit shelf less plant light than the same lux of daylight", () => {
+    // 10,800 lux for 12 h: 8.64 mol m⁻² d⁻¹ as sunlight (REFERENCES check), 6.66 under white LEDs.
+    const hours = Array.from({ length: 12 }, () => 10_800);
+    expect(dliFromHourlyMeanLux(hours, luxPerPpfdFor("sun"))).toBeCloseTo(8.64, 9);
+    expect(dliFromHourlyMeanLux(hours, luxPerPpfdFor("led"))).toBeCloseTo((10_800 / 70) * 0.0036 * 12, 9);
   });
 });

@@ -10,7 +10,7 @@ export const SUNLIGHT_LUX_PER_PPFD = 54;
 
 /**
  * Other sources from the same table (as reproduced in secondary tables that cite it). White LEDs
- * are not in it and vary by make, so none is offered for them.
+ * are not in it and vary by make: see WHITE_LED_LUX_PER_PPFD.
  */
 export const LUX_PER_PPFD = {
   sunlight: SUNLIGHT_LUX_PER_PPFD,
@@ -19,6 +19,46 @@ export const LUX_PER_PPFD = {
   metalHalide: 71,
   incandescent: 50,
 } as const;
+
+/**
+ * What lights a spot, as the grower sets it per spot: it picks the lux → PPFD factor that the
+ * spot's daily light integral uses.
+ */
+export const LIGHT_SOURCES = ["sun", "led", "fluorescent", "mixed"] as const;
+export type LightSource = (typeof LIGHT_SOURCES)[number];
+
+/**
+ * White LEDs are not in Thimijan & Heins' table. Ordinary white LEDs (about 2,700–6,500 K) come to
+ * roughly 65–75 lux per µmol m⁻² s⁻¹ when computed from their spectra; 70 is the middle of that
+ * (memory, after Ashdown's spectral tables, "Photometry and Photosynthesis", 2014–2021). A make's
+ * own PPFD figure beats it.
+ */
+export const WHITE_LED_LUX_PER_PPFD = 70;
+
+/**
+ * Lux per µmol m⁻² s⁻¹ for each light source a grower can pick. Sun (through a window or outdoors)
+ * and cool-white fluorescent tubes from Thimijan & Heins (1983) via LUX_PER_PPFD; white LED as
+ * above; "mixed" (daylight plus lamps) halfway between sun and white LED, so its DLI is off by at
+ * most about 13 % whichever dominates (our choice, not a published figure).
+ */
+export const LIGHT_SOURCE_LUX_PER_PPFD: Readonly<Record<LightSource, number>> = {
+  sun: LUX_PER_PPFD.sunlight,
+  led: WHITE_LED_LUX_PER_PPFD,
+  fluorescent: LUX_PER_PPFD.coolWhiteFluorescent,
+  mixed: (LUX_PER_PPFD.sunlight + WHITE_LED_LUX_PER_PPFD) / 2,
+};
+
+export const LIGHT_SOURCE_LABELS: Readonly<Record<LightSource, string>> = {
+  sun: "Daylight (through a window or outdoors)",
+  led: "White LED lamps",
+  fluorescent: "Fluorescent tubes",
+  mixed: "Daylight and lamps together",
+};
+
+/** The factor for a light source; anything unknown counts as sunlight, the default. */
+export function luxPerPpfdFor(source: string | null | undefined): number {
+  return (LIGHT_SOURCES as readonly string[]).includes(source ?? "") ? LIGHT_SOURCE_LUX_PER_PPFD[source as LightSource] : SUNLIGHT_LUX_PER_PPFD;
+}
 
 /** 1 foot-candle = 1 lm/ft² = 1/0.3048² lux (international foot, exact). */
 export const LUX_PER_FOOT_CANDLE = 1 / (0.3048 * 0.3048);

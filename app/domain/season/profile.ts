@@ -10,11 +10,13 @@ import {
   zoneClock,
   type LocalDate,
 } from "~/domain/season/local-time";
+import { luxPerPpfdFor, type LightSource } from "~/domain/climate/light";
 import { resolveWall } from "~/lib/time";
 import type {
   DaySummary,
   Hemisphere,
   HourlyRollup,
+  LuxClipping,
   MonthOfYearProfile,
   MonthProfile,
   NightSummary,
@@ -37,8 +39,23 @@ export const MIN_DAYS_FOR_MONTH = 20;
 export const MIN_LIGHT_HOURS_FOR_DLI = 20;
 /** Dew-point margin under which glass and leaves are taken to be wet (brief). */
 export const CONDENSATION_MARGIN_C = 2;
-/** Lux per µmol m⁻² s⁻¹ for sunlight — Thimijan & Heins (1983), HortScience 18, 818–822. */
+/**
+ * Lux per µmol m⁻² s⁻¹ for sunlight — Thimijan & Heins (1983), HortScience 18, 818–822. The
+ * default; a spot lit by lamps uses its light source's factor (LIGHT_SOURCE_LUX_PER_PPFD).
+ */
 export const SUNLIGHT_LUX_PER_PPFD = 54;
+/**
+ * Clipping: a light sensor clips when at least CLIP_MIN_HOURS hours on CLIP_MIN_DAYS days have
+ * their highest reading within CLIP_TOLERANCE of the profile's highest, and no fewer hours sit in
+ * the 10 % just under it. Natural light has a thin, sloping top (a few hours come close to the
+ * brightest, many more a little lower); a saturated chip piles its hours on one value. Lamps are
+ * flat by nature, so spots lit by LED or fluorescent tubes alone are not checked. Our rule, not a
+ * published one; the ceiling must be at least CLIP_MIN_LUX, well above any lamp-free room's light.
+ */
+export const CLIP_TOLERANCE = 0.002;
+export const CLIP_MIN_HOURS = 5;
+export const CLIP_MIN_DAYS = 2;
+export const CLIP_MIN_LUX = 1_000;
 export const DEFAULT_THRESHOLDS_C = [10];
 /**
  * A night runs from 18:00 to 08:00 the next morning, local time, and belongs to the date it starts
@@ -53,7 +70,8 @@ export const MONTH_NAMES = [
   "July", "August", "September", "October", "November", "December",
 ] as const;
 
-export type SeasonProfileOptions = { from: Date; to: Date; thresholds?: number[] };
+/** `lightSource` picks the lux → PPFD factor of the DLI (default sunlight) and whether clipping is looked for. */
+export type SeasonProfileOptions = { from: Date; to: Date; thresholds?: number[]; lightSource?: LightSource };
 
 type DayAgg = {
   dayNumber: number;
@@ -76,6 +94,8 @@ type DayAgg = {
   nightN: number;
   dliSum: number;
   lightHours: number;
+  /** Each light hour's highest lux (its mean in rollups without a maximum). */
+  luxTops: number[];
   sunUp: number; // ms; ±Infinity in polar day or night
   sunDown: number;
 };
@@ -132,11 +152,12 @@ function newDay(dayNumber: number, thresholdCount: number, sun: { sunUp: number;
     nightN: 0,
     dliSum: 0,
     lightHours: 0,
+    luxTops: [],
     ...sun,
   };
 }
 
-function addHour(day: DayAgg, r: HourlyRollup, ms: number, thresholds: number[]): void {
+function addHour(day: DayAgg, r: HourlyRollup, ms: number, thresholds: number[], luxPerPpfd: number): void {
   if (r.tN > 0 && r.tSum !== null) {
     const m = r.tSum / r.tN;
     day.hours++;
@@ -166,9 +187,12 @@ function addHour(day: DayAgg, r: HourlyRollup, ms: number, thresholds: number[])
   if (r.dpN) day.condensationHours += (r.dpUnderN ?? 0) / r.dpN;
   else if (r.dpMarginMin !== null && r.dpMarginMin < CONDENSATION_MARGIN_C) day.condensationHours++;
   if (r.luxN > 0 && r.luxSum !== null) {
-    // PPFD = lux / 54 (sunlight); one hour at that PPFD = PPFD × 3600 µmol m⁻², /1e6 → mol.
-    day.dliSum += ((r.luxSum / r.luxN / SUNLIGHT_LUX_PER_PPFD) * 3600) / 1e6;
+    // PPFD = lux / the light source's factor (54 for sunlight); one hour at that PPFD = PPFD × 3600
+    // µmol m⁻², /1e6 → mol.
+    const meanLux = r.luxSum / r.luxN;
+    day.dliSum += ((meanLux / luxPerPpfd) * 3600) / 1e6;
     day.lightHours++;
+    day.luxTops.push(r.luxMax ?? meanLux);
   }
 }
 
@@ -184,6 +208,42 @@ function dayDli(d: DayAgg): number | null {
 }
 
 type Stats = Omit<PeriodStats, "coverage"> & { hoursObserved: number; daysObserved: number };
+
+/** The sensor's ceiling and the lowest reading counted as at it, or null when the light does not clip. */
+type Ceiling = { lux: number; edge: number };
+
+/** Looks for a flat top in the hours' highest lux readings (see CLIP_TOLERANCE). */
+function findLuxCeiling(days: DayAgg[]): Ceiling | null {
+  let top = -Infinity;
+  for (const d of days) for (const v of d.luxTops) if (v > top) top = v;
+  if (!(top >= CLIP_MIN_LUX)) return null;
+  const edge = top * (1 - CLIP_TOLERANCE);
+  const shoulder = top * 0.9;
+  let at = 0, daysAt = 0, near = 0;
+  for (const d of days) {
+    let here = 0;
+    for (const v of d.luxTops) {
+      if (v >= edge) here++;
+      else if (v >= shoulder) near++;
+    }
+    at += here;
+    if (here > 0) daysAt++;
+  }
+  return at >= CLIP_MIN_HOURS && daysAt >= CLIP_MIN_DAYS && at >= near ? { lux: top, edge } : null;
+}
+
+/** Hours and days of `days` at the ceiling. */
+function clippingIn(days: DayAgg[], ceiling: Ceiling | null): LuxClipping | null {
+  if (!ceiling) return null;
+  let hours = 0, withHours = 0;
+  for (const d of days) {
+    let here = 0;
+    for (const v of d.luxTops) if (v >= ceiling.edge) here++;
+    hours += here;
+    if (here > 0) withHours++;
+  }
+  return hours > 0 ? { ceilingLux: ceiling.lux, hours, days: withHours } : null;
+}
 
 /** Hourly means of the days, sorted; typed arrays sort numerically and fast. */
 function sortedHourlyMeans(days: DayAgg[]): Float64Array {
@@ -214,7 +274,7 @@ function mergeSorted(parts: Float64Array[]): Float64Array {
 }
 
 /** `hourly`: the days' hourly mean temperatures, sorted (the caller may have them already). */
-function aggregate(days: DayAgg[], thresholds: number[], hourly: Float64Array = sortedHourlyMeans(days)): Stats {
+function aggregate(days: DayAgg[], thresholds: number[], ceiling: Ceiling | null, hourly: Float64Array = sortedHourlyMeans(days)): Stats {
   const complete = days.filter((d) => d.hours >= MIN_HOURS_FOR_DAY);
   const difs: number[] = [];
   const dlis: number[] = [];
@@ -258,6 +318,7 @@ function aggregate(days: DayAgg[], thresholds: number[], hourly: Float64Array = 
     below,
     condensationHours: Math.round(condensationHours * 10) / 10,
     light: { meanDli: meanOrNull(dlis), daysWithLight: dlis.length },
+    luxClipped: clippingIn(days, ceiling),
     hoursObserved,
     daysObserved: complete.length,
   };
@@ -291,6 +352,7 @@ function addMonths(year: number, month: number, n: number): { year: number; mont
  */
 export function seasonProfile(rollups: HourlyRollup[], site: Site, opts: SeasonProfileOptions): SeasonProfile {
   const thresholds = [...new Set([...DEFAULT_THRESHOLDS_C, ...(opts.thresholds ?? [])])].sort((a, b) => a - b);
+  const luxPerPpfd = luxPerPpfdFor(opts.lightSource);
   const hemisphere = hemisphereOf(site.latitude);
   const clock = zoneClock(site.timeZone);
   const fromMs = opts.from.getTime();
@@ -309,7 +371,7 @@ export function seasonProfile(rollups: HourlyRollup[], site: Site, opts: SeasonP
       day = newDay(dayNumber, thresholds.length, sunWindow(localNoonMs, dayNumber, site));
       days.set(dayNumber, day);
     }
-    addHour(day, r, ms, thresholds);
+    addHour(day, r, ms, thresholds, luxPerPpfd);
     const hourOfDay = Math.floor((local - dayNumber * DAY_MS) / HOUR_MS);
     if (r.tN > 0 && r.tSum !== null && (hourOfDay >= NIGHT_START_HOUR || hourOfDay < NIGHT_END_HOUR)) {
       const start = hourOfDay >= NIGHT_START_HOUR ? dayNumber : dayNumber - 1;
@@ -331,6 +393,8 @@ export function seasonProfile(rollups: HourlyRollup[], site: Site, opts: SeasonP
   }
 
   const orderedDays = [...days.values()].sort((a, b) => a.dayNumber - b.dayNumber);
+  const lampsOnly = opts.lightSource === "led" || opts.lightSource === "fluorescent";
+  const ceiling = lampsOnly ? null : findLuxCeiling(orderedDays);
   const daysByMonth = new Map<string, DayAgg[]>();
   for (const d of orderedDays) {
     const key = monthKey(d.date.year, d.date.month);
@@ -359,7 +423,7 @@ export function seasonProfile(rollups: HourlyRollup[], site: Site, opts: SeasonP
       monthDays.set(key, list);
       const hourly = sortedHourlyMeans(list);
       monthHourly.set(key, hourly);
-      const stats = aggregate(list, thresholds, hourly);
+      const stats = aggregate(list, thresholds, ceiling, hourly);
       monthStats.set(key, stats);
       months.push({
         key,
@@ -387,7 +451,7 @@ export function seasonProfile(rollups: HourlyRollup[], site: Site, opts: SeasonP
       const ym = addMonths(start.year, start.month, i);
       return n + daysInMonth(ym.year, ym.month);
     }, 0);
-    const stats = aggregate(ms.flatMap((m) => monthDays.get(m.key)!), thresholds, mergeSorted(ms.map((m) => monthHourly.get(m.key)!)));
+    const stats = aggregate(ms.flatMap((m) => monthDays.get(m.key)!), thresholds, ceiling, mergeSorted(ms.map((m) => monthHourly.get(m.key)!)));
     const enough = ms.length === 3 && ms.every((m) => m.coverage.enough);
     return {
       key: `${monthKey(start.year, start.month)}/${monthKey(end.year, end.month)}`,
@@ -404,7 +468,7 @@ export function seasonProfile(rollups: HourlyRollup[], site: Site, opts: SeasonP
     const stats =
       included.length === 1
         ? monthStats.get(included[0].key)!
-        : aggregate(included.flatMap((m) => monthDays.get(m.key)!), thresholds, mergeSorted(included.map((m) => monthHourly.get(m.key)!)));
+        : aggregate(included.flatMap((m) => monthDays.get(m.key)!), thresholds, ceiling, mergeSorted(included.map((m) => monthHourly.get(m.key)!)));
     return {
       key: String(month).padStart(2, "0"),
       month,
@@ -442,5 +506,18 @@ export function seasonProfile(rollups: HourlyRollup[], site: Site, opts: SeasonP
       return { key: dayKey(date), month: date.month, dayNumber: n.dayNumber, hoursObserved: n.hours, low: n.low };
     });
 
-  return { timeZone: site.timeZone, hemisphere, from: opts.from, to: opts.to, thresholds, months, seasons, year, days: daySummaries, nights: nightSummaries };
+  return {
+    timeZone: site.timeZone,
+    hemisphere,
+    from: opts.from,
+    to: opts.to,
+    thresholds,
+    luxPerPpfd,
+    luxClipped: clippingIn(orderedDays, ceiling),
+    months,
+    seasons,
+    year,
+    days: daySummaries,
+    nights: nightSummaries,
+  };
 }

@@ -15,6 +15,22 @@ export type HourlyRollup = {
   dpUnderN?: number;
   luxN: number;
   luxSum: number | null; // lux samples in the hour and their sum (mean = luxSum/luxN)
+  /** The hour's highest lux sample; absent or null in rollups older than the column (the hour's mean stands in). */
+  luxMax?: number | null;
+};
+
+/**
+ * A light sensor that tops out: many hours whose highest reading sits at one ceiling (a flat top),
+ * as a cheap lux chip does near 55 klux in direct sun. The sunniest hours read low, so the DLI of
+ * the hours counted is a lower bound.
+ */
+export type LuxClipping = {
+  /** The ceiling, lux: the highest hourly reading of the whole profile. */
+  ceilingLux: number;
+  /** Hours (of this period) whose highest reading reached the ceiling. */
+  hours: number;
+  /** Local days with at least one such hour. */
+  days: number;
 };
 
 export type Site = { latitude: number; longitude: number; timeZone: string }; // IANA zone
@@ -57,7 +73,10 @@ export type PeriodStats = {
   below: ThresholdCount[];
   /** Time the readings spent under CONDENSATION_MARGIN_C, hours (to 0.1 h). */
   condensationHours: number;
+  /** Mean daily light integral, mol m⁻² d⁻¹, with the spot's light source's lux → PPFD factor. */
   light: { meanDli: number | null; daysWithLight: number };
+  /** Hours of this period at the light sensor's ceiling; null when the sensor does not clip or never reached it here. */
+  luxClipped: LuxClipping | null;
   coverage: Coverage;
 };
 
@@ -115,6 +134,10 @@ export type SeasonProfile = {
   from: Date;
   to: Date;
   thresholds: number[];
+  /** Lux per µmol m⁻² s⁻¹ the DLI figures used (the spot's light source; 54 for sunlight). */
+  luxPerPpfd: number;
+  /** Whether the light sensor clipped anywhere in the profile (hours and days over the whole period). */
+  luxClipped: LuxClipping | null;
   months: MonthProfile[];
   seasons: SeasonPeriodProfile[];
   /** All Januaries together, all Februaries together, … — the profile a grower reads. */

@@ -1,5 +1,5 @@
 import { describe, it, expect } from "vitest";
-import { checkPpm, parseSource, ppmLabel, sourceName } from "~/domain/water/checks";
+import { checkEc, checkPpm, checkSample, parseSource, ppmLabel, sourceName } from "~/domain/water/checks";
 import { waterVerdict } from "~/domain/water/water";
 
 // Meter scales are common practice: ppm ≈ µS/cm × 0.5 on the NaCl scale, × 0.7 on the 442 scale
@@ -23,17 +23,33 @@ describe("checkPpm", () => {
     expect(checkPpm({ ppm: null, ec: null, ecScale: null, ph: 6 })).toBeNull();
   });
 
-  it("the same 200 µS/cm is fine on one scale and over the 100 ppm line on the other (common practice)", () => {
-    expect(waterVerdict({ ppm: checkPpm({ ppm: null, ec: 200, ecScale: 0.5, ph: 6 }), ph: 6 }).verdict).toBe("good");
-    expect(waterVerdict({ ppm: checkPpm({ ppm: null, ec: 200, ecScale: 0.7, ph: 6 }), ph: 6 }).verdict).toBe("avoid");
+  it("gives no ppm for an EC reading without a scale", () => {
+    expect(checkPpm({ ppm: null, ec: 400, ecScale: null, ph: null })).toBeNull();
+  });
+});
+
+describe("checkEc", () => {
+  it("is exact for an EC reading or a TDS reading of known scale, and unknown otherwise", () => {
+    expect(checkEc({ ppm: null, ec: 400, ecScale: null, ph: null })).toBe(400);
+    expect(checkEc({ ppm: 280, ec: null, ecScale: 0.7, ph: null })).toBeCloseTo(400, 9);
+    expect(checkEc({ ppm: 280, ec: null, ecScale: null, ph: null })).toBeNull();
+  });
+
+  // Issue 15: 200 µS/cm was fine on the 0.5 scale and not on the 0.7 one. The rule is in µS/cm
+  // (common practice: 200 µS/cm = 100 ppm on the NaCl scale), so the scale no longer decides it.
+  it("gives a 200 µS/cm reading the same verdict whatever scale the meter was set to", () => {
+    for (const ecScale of [0.5, 0.7, null]) {
+      expect(waterVerdict(checkSample({ ppm: null, ec: 200, ecScale, ph: 6 })).verdict).toBe("good");
+      expect(waterVerdict(checkSample({ ppm: null, ec: 260, ecScale, ph: 6 })).verdict).toBe("avoid");
+    }
   });
 });
 
 describe("labels", () => {
   it("says where the ppm came from", () => {
-    expect(ppmLabel({ ppm: 15, ec: null, ecScale: null, ph: null })).toBe("15 ppm (TDS)");
-    expect(ppmLabel({ ppm: null, ec: 560, ecScale: 0.5, ph: null })).toBe("560 µS/cm × 0.5 (NaCl scale) ≈ 280 ppm");
-    expect(ppmLabel({ ppm: null, ec: 400, ecScale: 0.7, ph: null })).toBe("400 µS/cm × 0.7 (442 scale) ≈ 280 ppm");
+    expect(ppmLabel({ ppm: 15, ec: null, ecScale: null, ph: null })).toBe("15 ppm (TDS, scale not given) = 21–30 µS/cm");
+    expect(ppmLabel({ ppm: 15, ec: null, ecScale: 0.5, ph: null })).toBe("15 ppm (TDS, 0.5 scale) = 30 µS/cm");
+    expect(ppmLabel({ ppm: null, ec: 560, ecScale: 0.5, ph: null })).toBe("560 µS/cm (EC) = 280 ppm on a 0.5 meter, 392 on a 0.7");
   });
 
   it("names sources", () => {

@@ -1,14 +1,30 @@
 // One logged water check in the units the grower's meter gives, turned into the figure the rules
-// of thumb use (ppm) with a label saying where it came from.
-import { ecToPpm, type TdsScale } from "~/domain/water/water";
+// of thumb use (conductivity, µS/cm) with a label saying where it came from.
+import { ecToPpm, ppmToEc, sampleEc, type TdsScale, type WaterSample } from "~/domain/water/water";
 
 export const STANDARD_SOURCES = ["tap", "rain", "filtered"] as const;
 
+/**
+ * As stored: a TDS meter's ppm or an EC meter's µS/cm, and the meter's scale (ppm per µS/cm) when
+ * the grower gave it. For a TDS meter the scale turns its ppm back into conductivity; for an EC
+ * meter it only says which ppm the grower's other tables mean.
+ */
 export type StoredCheck = { ppm: number | null; ec: number | null; ecScale: number | null; ph: number | null };
 
-const isScale = (s: number | null): s is TdsScale => s === 0.5 || s === 0.7;
+export const isScale = (s: number | null | undefined): s is TdsScale => s === 0.5 || s === 0.7;
 
-/** TDS in ppm: as measured, or converted from EC on the meter's scale; null when neither was taken. */
+/** The sample the verdict reads: an EC reading as conductivity, a TDS reading with its scale if known. */
+export function checkSample(c: StoredCheck): WaterSample {
+  return c.ec != null ? { ec: c.ec, ppm: null, ph: c.ph } : { ppm: c.ppm, scale: isScale(c.ecScale) ? c.ecScale : null, ph: c.ph };
+}
+
+/** Conductivity in µS/cm when it is known exactly (an EC reading, or ppm on a known scale), else null. */
+export function checkEc(c: StoredCheck): number | null {
+  const range = sampleEc(checkSample(c));
+  return range && range.low === range.high ? range.low : null;
+}
+
+/** TDS in ppm: as measured, or converted from EC on the meter's scale; null when neither is known. */
 export function checkPpm(c: StoredCheck): number | null {
   if (c.ppm != null) return c.ppm;
   if (c.ec != null && isScale(c.ecScale)) return ecToPpm(c.ec, c.ecScale);
@@ -17,12 +33,15 @@ export function checkPpm(c: StoredCheck): number | null {
 
 const round = (v: number, d = 0) => Number(v.toFixed(d)).toLocaleString("en");
 
-/** "280 ppm (TDS meter)" or "560 µS/cm × 0.5 (NaCl scale) ≈ 280 ppm". */
+/**
+ * "280 ppm (TDS, 0.5 scale) = 560 µS/cm", "280 ppm (TDS, scale not given) = 400–560 µS/cm" or
+ * "560 µS/cm (EC) = 280 ppm on a 0.5 meter, 392 on a 0.7".
+ */
 export function ppmLabel(c: StoredCheck): string {
-  if (c.ppm != null) return `${round(c.ppm)} ppm (TDS)`;
-  if (c.ec != null && isScale(c.ecScale)) {
-    const scale = c.ecScale === 0.5 ? "NaCl scale" : "442 scale";
-    return `${round(c.ec)} µS/cm × ${c.ecScale} (${scale}) ≈ ${round(ecToPpm(c.ec, c.ecScale))} ppm`;
+  if (c.ec != null) return `${round(c.ec)} µS/cm (EC) = ${round(ecToPpm(c.ec, 0.5))} ppm on a 0.5 meter, ${round(ecToPpm(c.ec, 0.7))} on a 0.7`;
+  if (c.ppm != null) {
+    if (isScale(c.ecScale)) return `${round(c.ppm)} ppm (TDS, ${c.ecScale} scale) = ${round(ppmToEc(c.ppm, c.ecScale))} µS/cm`;
+    return `${round(c.ppm)} ppm (TDS, scale not given) = ${round(ppmToEc(c.ppm, 0.7))}–${round(ppmToEc(c.ppm, 0.5))} µS/cm`;
   }
   return "not measured";
 }
