@@ -1,7 +1,9 @@
 // Season profiles and fits for spots, computed from the hourly rollups on each page load (a year of
 // rollups is ~8,760 rows per spot; the raw readings are never read here).
 import { pool } from "~/.server/db";
-import { rankPlantsForSpot, type PlantFit } from "~/domain/fit/verdict";
+import { rankPlantsForSpot, type FitContext, type PlantFit } from "~/domain/fit/verdict";
+import { describeFact, describeReason, DEFAULT_FORMAT, temp, type Format } from "~/domain/fit/describe";
+import { describeMonths } from "~/domain/fit/describe";
 import type { SpotWindow } from "~/domain/fit/window-light";
 import { PLANT_LIBRARY, type PlantProfile } from "~/domain/plants/library";
 import { seasonProfile } from "~/domain/season/profile";
@@ -244,22 +246,33 @@ export async function spotProfiles(
   return new Map(spotIds.map((id) => [id, out.get(id)!] as const));
 }
 
-/** Fits for one spot, best first; pass the site's plants (library plus own profiles). */
-export function fitsFor(season: ReturnType<typeof seasonProfile>, plants: PlantProfile[] = PLANT_LIBRARY, window?: SpotWindow) {
-  return rankPlantsForSpot(plants, season, undefined, window).map(({ plant, fit }) => fitSummary(plant, fit));
+/** Fits for one spot, best first; pass the site's plants (library plus own profiles) and the grower's unit. */
+export function fitsFor(season: ReturnType<typeof seasonProfile>, plants: PlantProfile[] = PLANT_LIBRARY, context: FitContext | SpotWindow = {}, format: Format = DEFAULT_FORMAT) {
+  return rankPlantsForSpot(plants, season, undefined, context).map(({ plant, fit }) => fitSummary(plant, fit, format));
 }
 
-/** What a page shows of one plant's fit: the verdict, reasons that ask for something, and what suits it. */
-export function fitSummary(plant: PlantProfile, fit: PlantFit) {
+/** "Good from May to September; bring it in before nights fall under 10 °C." */
+export function describeSeasonal(fit: PlantFit, format: Format = DEFAULT_FORMAT): string | null {
+  if (!fit.seasonal) return null;
+  return `Good ${describeMonths(fit.seasonal.months)}; bring it in before nights fall under ${temp(fit.seasonal.bringInBelowC, format)}.`;
+}
+
+/** What a page shows of one plant's fit: the verdict, reasons that ask for something, and what suits it, in the grower's unit. */
+export function fitSummary(plant: PlantProfile, fit: PlantFit, format: Format = DEFAULT_FORMAT) {
+  const name = plant.name.split(/[ ,(]/)[0];
+  const seasonal = describeSeasonal(fit, format);
+  const asking = fit.reasons.filter((r) => r.level !== "good").map((r) => ({ rule: r.rule, level: r.level, message: describeReason(r, format, name) }));
   return {
     key: plant.key,
     name: plant.name,
-    category: plant.category,
+    // Cool / intermediate / warm are orchid terms.
+    category: plant.group === "orchid" ? plant.category : null,
     minNightC: plant.minNightC,
     maxDayC: plant.maxDayC,
     verdict: fit.verdict,
-    reasons: fit.reasons.filter((r) => r.level !== "ok" || r.noData).map((r) => ({ rule: r.rule, level: r.level, message: r.message })),
-    okReasons: fit.reasons.filter((r) => r.level === "ok" && !r.noData).map((r) => r.message),
+    level: fit.level,
+    reasons: seasonal ? [{ rule: "seasonal", level: "care" as const, message: seasonal }, ...asking] : asking,
+    okReasons: fit.reasons.filter((r) => r.level === "good").map((r) => r.facts.map((f) => describeFact(f, format, name)).join(" ")).filter(Boolean),
     missingMonths: fit.missingMonths,
     missingAdvice: fit.missingAdvice,
   };

@@ -36,7 +36,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     wish: wish ? { mustHave: wish.mustHave, pots: wish.pots } : null,
     standing: inventory.filter((i) => i.plantKey === plant.key).map((i) => ({ ...i, spotName: spots.find((s) => s.id === i.spotId)?.name ?? "" })),
     spots: ranked.map(({ spot: { spot }, fit }) => {
-      const f = fitSummary(plant, fit);
+      const f = fitSummary(plant, fit, { unit: user.temperatureUnit });
       const { firstMonth, lastMonth, toToday } = periods.get(spot.id)!;
       return {
         id: spot.id,

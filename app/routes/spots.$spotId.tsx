@@ -43,7 +43,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     listNotes(siteId, { spotId: spot.id }),
   ]);
   const season = profiles.get(spot.id)!;
-  const fits = fitsFor(season, allPlants, windowOf(site, spot));
+  const fits = fitsFor(season, allPlants, windowOf(site, spot), { unit: user.temperatureUnit });
   const plantKey = q.get("plant") ?? fits[0]?.key;
   const plant = allPlants.find((p) => p.key === plantKey) ?? null;
   return {
