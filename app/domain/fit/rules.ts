@@ -75,7 +75,12 @@ export type FitThresholds = {
   seasonWindowDays: number;
   /** A month's daily humidity minimum under the group's minimum on this share of its days asks for care. */
   dryDayShare: number;
-  /** A month with mean DLI under dliMin × this, or over dliMax × this (inverted), is far off. */
+  /**
+   * The DLI band's edges are soft (group ranges from memory): a month counts as dim under
+   * dliMin × (1 − this) and bright over dliMax × (1 + this).
+   */
+  lightEdgeShare: number;
+  /** A month with mean DLI under dliMin ÷ this, or over dliMax × this, is far off. */
   lightFarFactor: number;
   /** Months far too bright (scorch) for a low-light group before it is poor. */
   scorchPoorMonths: number;
@@ -92,6 +97,7 @@ export const DEFAULT_FIT_THRESHOLDS: FitThresholds = {
   seasonNights: 10,
   seasonWindowDays: 28,
   dryDayShare: 0.25,
+  lightEdgeShare: 0.2,
   lightFarFactor: 1.5,
   scorchPoorMonths: 3,
   condensationCareShare: 0.1,
@@ -360,8 +366,8 @@ export const lightBand: FitRule = (profile, season, t) => {
   const measured = season.year.filter((m) => m.light.meanDli !== null && m.light.daysWithLight > 0);
   if (measured.length === 0) return { rule: "light", level: "unknown", noData: true, facts: [] };
   const months = measured.map((m) => ({ month: m.month, dli: round1(m.light.meanDli!) }));
-  const dim = months.filter((m) => m.dli < profile.dliMin).map((m) => m.month);
-  const bright = months.filter((m) => m.dli > profile.dliMax).map((m) => m.month);
+  const dim = months.filter((m) => m.dli < profile.dliMin * (1 - t.lightEdgeShare)).map((m) => m.month);
+  const bright = months.filter((m) => m.dli > profile.dliMax * (1 + t.lightEdgeShare)).map((m) => m.month);
   const scorch = months.filter((m) => m.dli > profile.dliMax * t.lightFarFactor).map((m) => m.month);
   const farDim = months.filter((m) => m.dli < profile.dliMin / t.lightFarFactor).map((m) => m.month);
   const unmeasured = [1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12].filter((m) => !measured.some((x) => x.month === m));
@@ -438,7 +444,15 @@ export const floweringNeeds: FitRule = (profile, season, t) => {
       levels.push("good");
       months.push(...hit.months);
     } else {
+      // Where the cool spell comes out of season, the months it does come (half their days or more).
       const anyTime = cueMonths ? bestCoolSpell(season, cond, () => true, cool.weeks) : { best: 0, months: [] };
+      const coolMonths: number[] = [];
+      if (anyTime.best >= needDays) {
+        for (let m = 1; m <= 12; m++) {
+          const inMonth = days.filter((d) => d.month === m);
+          if (inMonth.length && inMonth.filter((d) => cond({ low: d.low!, high: d.high! })).length * 2 >= inMonth.length) coolMonths.push(m);
+        }
+      }
       facts.push({
         kind: "cue-missed",
         maxNightC: cool.maxNightC,
@@ -446,7 +460,7 @@ export const floweringNeeds: FitRule = (profile, season, t) => {
         weeks: cool.weeks,
         bestDays: hit.best,
         cueMonths: cueMonths ? cyclicOrder(cueMonths) : [],
-        outOfSeason: anyTime.best >= needDays ? anyTime.months : [],
+        outOfSeason: cyclicOrder(coolMonths),
         dryRest,
       });
       levels.push("care");

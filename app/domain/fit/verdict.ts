@@ -44,7 +44,7 @@ export const VERDICT_RULES: { verdict: Verdict; when: string }[] = [
   },
   {
     verdict: "good for part of the year",
-    when: "The spot rules the group out over the year, but suits it for a run of two or more months: use it then and bring the plant in before nights fall under its comfort line.",
+    when: "An outdoor spot rules the group out over the year, but suits it for a run of two or more months: use it then and bring the plant in before nights fall under its comfort line.",
   },
   {
     verdict: "not enough data yet",
@@ -133,7 +133,8 @@ export function fitPlant(
     .sort((a, b) => LEVEL_ORDER[a.level] - LEVEL_ORDER[b.level] || ruleRank(a) - ruleRank(b));
   const missing = missingMonthsOf(season);
   const levels = new Set(reasons.map((r) => r.level));
-  const seasonal = levels.has("poor") ? seasonalUse(profile, season, thresholds) : null;
+  // Seasonal use is for spots a plant can be carried out to and back in: outdoors.
+  const seasonal = levels.has("poor") && ctx.window && !ctx.window.indoor ? seasonalUse(profile, season, thresholds) : null;
   const verdict: Verdict = levels.has("poor")
     ? seasonal
       ? "good for part of the year"
