@@ -18,7 +18,7 @@ export type SpotWindow = { latitude: number; facing: SpotFacing; indoor: boolean
  *   elevation ≥ SCORCH_MIN_ELEVATION) in SCORCH_MIN_MONTHS months or more — a south, south-east,
  *   south-west or west window in spring and summer; morning sun through an east window is gentle.
  */
-export const STRONG_SUN_HOURS = 3;
+export const STRONG_SUN_HOURS = 4;
 export const HIGH_LIGHT_MIN_STRONG_MONTHS = 6;
 export const SCORCH_MIN_ELEVATION = 35;
 export const SCORCH_MIN_MONTHS = 3;
