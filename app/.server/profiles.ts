@@ -2,8 +2,7 @@
 // rollups is ~8,760 rows per spot; the raw readings are never read here).
 import { pool } from "~/.server/db";
 import { rankPlantsForSpot, type FitContext, type PlantFit } from "~/domain/fit/verdict";
-import { describeFact, describeReason, DEFAULT_FORMAT, temp, type Format } from "~/domain/fit/describe";
-import { describeMonths } from "~/domain/fit/describe";
+import { describeFact, describeReason, describeSeasonal as seasonalWords, DEFAULT_FORMAT, type Format } from "~/domain/fit/describe";
 import type { SpotWindow } from "~/domain/fit/window-light";
 import { PLANT_LIBRARY, type PlantProfile } from "~/domain/plants/library";
 import { seasonProfile } from "~/domain/season/profile";
@@ -253,8 +252,7 @@ export function fitsFor(season: ReturnType<typeof seasonProfile>, plants: PlantP
 
 /** "Good from May to September; bring it in before nights fall under 10 °C." */
 export function describeSeasonal(fit: PlantFit, format: Format = DEFAULT_FORMAT): string | null {
-  if (!fit.seasonal) return null;
-  return `Good ${describeMonths(fit.seasonal.months)}; bring it in before nights fall under ${temp(fit.seasonal.bringInBelowC, format)}.`;
+  return fit.seasonal ? seasonalWords(fit.seasonal, format) : null;
 }
 
 /** What a page shows of one plant's fit: the verdict, reasons that ask for something, and what suits it, in the grower's unit. */

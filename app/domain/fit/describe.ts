@@ -174,7 +174,7 @@ export function describeFact(fact: Fact, f: Format = DEFAULT_FORMAT, name = "thi
     case "condensation-wet":
       return fact.expected
         ? `Near the dew point for ${count(Math.round(fact.hours), "hour", "hours", f)} (${Math.round(fact.worstShare * 100)} % of the time in ${MONTH_NAMES[fact.worstMonth - 1]}) — normal for ${name}'s humid range; keep the air moving so leaves dry.`
-        : `The air sat within ${delta(fact.marginC, f)} of its dew point for ${count(Math.round(fact.hours), "hour", "hours", f)}, most ${describeMonths(fact.months)} (${Math.round(fact.worstShare * 100)} % of the time in ${MONTH_NAMES[fact.worstMonth - 1]}): leaves stay wet, which invites rot. More air movement and watering early in the day help.`;
+        : `The air sat within ${delta(fact.marginC, f)} of its dew point for ${count(Math.round(fact.hours), "hour", "hours", f)}, ${fact.months.length === 12 ? "in every month" : `most ${describeMonths(fact.months)}`} (${Math.round(fact.worstShare * 100)} % of the time in ${MONTH_NAMES[fact.worstMonth - 1]}): leaves stay wet, which invites rot. More air movement and watering early in the day help.`;
     case "cold-glass":
       return `Cold glass: with U ${formatNumber(fact.uValue, f.locale)} glazing the pane's inside ${fact.months.map((m) => `in ${MONTH_NAMES[m.month - 1]} sits near ${temp(m.paneC, f)}, at or under the room's ${temp(m.dewPointC, f)} dew point`).join("; ")} — water runs on the glass; keep leaves off it.`;
   }
@@ -188,4 +188,9 @@ export function describeReason(r: RuleResult, f: Format = DEFAULT_FORMAT, name?:
       : `No ${r.rule === "humidity" ? "humidity" : r.rule === "condensation" ? "temperature and humidity" : "temperature"} readings yet, so this isn't judged.`;
   }
   return r.facts.map((x) => describeFact(x, f, name)).join(" ");
+}
+
+/** "Good from May to September; bring it in before nights fall under 4.5 °C." */
+export function describeSeasonal(seasonal: { months: number[]; bringInBelowC: number }, f: Format = DEFAULT_FORMAT): string {
+  return `Good ${describeMonths(seasonal.months)}; bring it in before nights fall under ${temp(seasonal.bringInBelowC, f)}.`;
 }

@@ -369,13 +369,16 @@ export const lightBand: FitRule = (profile, season, t) => {
   const dim = months.filter((m) => m.dli < profile.dliMin * (1 - t.lightEdgeShare)).map((m) => m.month);
   const bright = months.filter((m) => m.dli > profile.dliMax * (1 + t.lightEdgeShare)).map((m) => m.month);
   const scorch = months.filter((m) => m.dli > profile.dliMax * t.lightFarFactor).map((m) => m.month);
-  const farDim = months.filter((m) => m.dli < profile.dliMin / t.lightFarFactor).map((m) => m.month);
+  // Winter is dim at any window at high latitudes; what rules a group out is a growing season far
+  // too dim: most of April–September (October–March in the south) under dliMin ÷ lightFarFactor.
+  const growing = hemisphereMonths([4, 5, 6, 7, 8, 9], season);
+  const farDim = months.filter((m) => growing.includes(m.month) && m.dli < profile.dliMin / t.lightFarFactor).map((m) => m.month);
   const unmeasured = [1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12].filter((m) => !measured.some((x) => x.month === m));
   const facts: Fact[] = [{ kind: "light-months", minDli: profile.dliMin, maxDli: profile.dliMax, months, dim, bright, scorch, unmeasured }];
   const clipped = measured.filter((m) => (m.light as { luxClipped?: number | boolean }).luxClipped).map((m) => m.month);
   if (clipped.length) facts.push({ kind: "light-clipped", months: clipped });
   const level: RuleLevel =
-    (profile.light === "low" && scorch.length >= t.scorchPoorMonths) || farDim.length >= 6
+    (profile.light === "low" && scorch.length >= t.scorchPoorMonths) || farDim.length >= 4
       ? "poor"
       : dim.length || bright.length
         ? "care"

@@ -1,7 +1,7 @@
 // A table of spot scenarios: synthetic hourly years (51.5° N, UTC) with named features, each with
 // the verdict an experienced grower would give and the source of that judgement beside it.
 import { describe, expect, it } from "vitest";
-import { describeReason } from "~/domain/fit/describe";
+import { describeReason, describeSeasonal } from "~/domain/fit/describe";
 import type { RuleResult } from "~/domain/fit/rules";
 import { spotYear, type HourPatch, type MonthSpec } from "~/domain/fit/season-fixture";
 import { fitPlant, rankPlantsForSpot, type FitContext, type Verdict } from "~/domain/fit/verdict";
@@ -266,6 +266,14 @@ const SCENARIOS: Scenario[] = [
     source: "common practice (REFERENCES.md): cymbidiums summer outdoors and come in before frost",
   },
   {
+    name: "summer-only bench with a hot July: Odontoglossum suits it for two months around it, not in July",
+    season: () => spotYear({ month: byMonth((m) => ({ night: summer(m) ? 12 : m === 4 || m === 10 ? 5 : -2, day: summer(m) ? (m === 7 ? 28 : 22) : 8, rh: 70, lux: 12000 })) }),
+    plant: "odontoglossum",
+    context: bench,
+    verdict: "good for part of the year",
+    source: "AOS Odontoglossum guidance (memory): days under 24 °C; summer heat over about 29 °C harms",
+  },
+  {
     name: "summer-only bench: Phalaenopsis never suits it",
     season: () => spotYear({ month: byMonth((m) => ({ night: summer(m) ? 12 : m === 4 || m === 10 ? 5 : -2, day: summer(m) ? 22 : 8, rh: 70, lux: 30000 })) }),
     plant: "phalaenopsis",
@@ -286,6 +294,18 @@ describe("spot scenarios, each with the verdict an experienced grower would give
       expect(kinds(fit.reasons).length).toBeGreaterThan(0);
     });
   }
+});
+
+describe("seasonal use", () => {
+  it("says when an outdoor bench suits a group and the night to bring it in before, in the grower's unit", () => {
+    const season = spotYear({ month: byMonth((m) => ({ night: summer(m) ? 12 : m === 4 || m === 10 ? 5 : -2, day: summer(m) ? 22 : 8, rh: 70, lux: 30000 })) });
+    const fit = fitPlant(plantByKey("cymbidium")!, season, undefined, bench);
+    expect(fit.seasonal).toEqual({ months: [5, 6, 7, 8, 9], bringInBelowC: 4.5 });
+    expect(describeSeasonal(fit.seasonal!)).toBe("Good from May to September; bring it in before nights fall under 4.5 °C.");
+    expect(describeSeasonal(fit.seasonal!, { unit: "F" })).toBe("Good from May to September; bring it in before nights fall under 40.1 °F.");
+    // Indoors the same temperatures are judged for the whole year: no seasonal use.
+    expect(fitPlant(plantByKey("cymbidium")!, season, undefined, east).seasonal).toBeNull();
+  });
 });
 
 describe("ranking by how far the spot misses", () => {
