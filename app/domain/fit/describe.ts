@@ -157,7 +157,7 @@ export function describeFact(fact: Fact, f: Format = DEFAULT_FORMAT, name = "thi
       return "No temperature cue needed to flower.";
     case "cue-met": {
       const cond = [fact.maxNightC !== undefined ? `nights at ${temp(fact.maxNightC, f)} or below` : "", fact.maxDayC !== undefined ? `days at ${temp(fact.maxDayC, f)} or below` : ""].filter(Boolean).join(" and ");
-      return `Flowering cue met: ${count(fact.days, "day", "days", f)} with ${cond} ${describeMonths(fact.months)}, in season for ${name} (${fact.weeks} weeks needed).` + (fact.dryRest ? " Keep it nearly dry through that rest, or it makes keikis instead of flowers." : "");
+      return `Flowering cue met: ${count(fact.days, "day", "days", f)} with ${cond} ${describeMonths(fact.months)}, in season for ${name} (${fact.weeks} weeks needed).` + (fact.dryRest ? " Keep it nearly dry through that rest: watered, it grows instead of flowering." : "");
     }
     case "cue-missed": {
       const cond = [fact.maxNightC !== undefined ? `nights at ${temp(fact.maxNightC, f)} or below` : "", fact.maxDayC !== undefined ? `days at ${temp(fact.maxDayC, f)} or below` : ""].filter(Boolean).join(" and ");
