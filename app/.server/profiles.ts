@@ -4,6 +4,8 @@ import { pool } from "~/.server/db";
 import { rankPlantsForSpot, type FitContext, type PlantFit } from "~/domain/fit/verdict";
 import { describeFact, describeReason, describeSeasonal as seasonalWords, DEFAULT_FORMAT, type Format } from "~/domain/fit/describe";
 import type { SpotWindow } from "~/domain/fit/window-light";
+import type { GlassContext } from "~/domain/fit/cold-glass";
+import { GLAZING_U, type Glazing } from "~/domain/climate/glass";
 import { PLANT_LIBRARY, type PlantProfile } from "~/domain/plants/library";
 import { seasonProfile } from "~/domain/season/profile";
 import type { HourlyRollup } from "~/domain/season/types";
@@ -275,6 +277,28 @@ export function fitSummary(plant: PlantProfile, fit: PlantFit, format: Format = 
     missingAdvice: fit.missingAdvice,
   };
 }
+
+/**
+ * Cold glass for a windowsill (issue 15): with the glazing named, the pane's inside temperature each
+ * month from the site's outdoor spot (its mean daily low) — null without an outdoor spot with readings.
+ */
+export async function glassContextFor(
+  site: Site,
+  spot: { id: number; indoor: boolean; facing: string },
+  outdoorSpots: { id: number; indoor: boolean }[],
+  period: { from: Date; to: Date },
+  glazing: Glazing | null,
+  now = new Date(),
+): Promise<GlassContext | undefined> {
+  if (!glazing || !spot.indoor || spot.facing === "none") return undefined;
+  const outdoor = outdoorSpots.find((s) => !s.indoor && s.id !== spot.id);
+  if (!outdoor) return undefined;
+  const season = (await spotProfiles(site, [outdoor.id], now, { range: period })).get(outdoor.id)!;
+  const lows = new Map(season.year.filter((m) => m.temperature.meanDailyLow !== null).map((m) => [m.month, m.temperature.meanDailyLow!] as const));
+  return lows.size > 0 ? { uValue: GLAZING_U[glazing], outdoorLowByMonth: lows } : undefined;
+}
+
+export const parseGlazing = (v: string | null): Glazing | null => (v !== null && Object.hasOwn(GLAZING_U, v) ? (v as Glazing) : null);
 
 /** How a spot's window is described to the fit rules (used for light when it has no light sensor). */
 export const windowOf = (site: Site, spot: { facing: SpotWindow["facing"]; indoor: boolean }): SpotWindow => ({ latitude: site.latitude, facing: spot.facing, indoor: spot.indoor });

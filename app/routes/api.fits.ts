@@ -5,11 +5,10 @@
 // other spot routes: any member of the site.
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
 import { sitePlants } from "~/.server/plants";
-import { describeSeasonal, judgedPeriods, parsePeriod, spotProfiles, windowOf } from "~/.server/profiles";
+import { describeSeasonal, glassContextFor, judgedPeriods, parseGlazing, parsePeriod, spotProfiles, windowOf } from "~/.server/profiles";
 import { getSite, getSpot, listSpots } from "~/.server/sites";
-import { GLAZING_U, type Glazing } from "~/domain/climate/glass";
+import { GLAZING_U } from "~/domain/climate/glass";
 import { describeReason, type Format } from "~/domain/fit/describe";
-import type { GlassContext } from "~/domain/fit/cold-glass";
 import { rankPlantsForSpot } from "~/domain/fit/verdict";
 import { toLocalInputValue, zonedToUtc } from "~/lib/time";
 import type { Route } from "./+types/api.fits";
@@ -36,7 +35,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const glazingQ = q.get("glazing")?.slice(0, 20) ?? null;
   if (fromQ !== null && !MONTH_RE.test(fromQ)) bad("from is a month, YYYY-MM");
   if (toQ !== null && !MONTH_RE.test(toQ)) bad("to is a month, YYYY-MM");
-  if (glazingQ !== null && !(glazingQ in GLAZING_U)) bad(`glazing is one of ${Object.keys(GLAZING_U).join(", ")}`);
+  if (glazingQ !== null && !Object.hasOwn(GLAZING_U, glazingQ)) bad(`glazing is one of ${Object.keys(GLAZING_U).join(", ")}`);
   const now = new Date();
   const current = monthIndex(toLocalInputValue(now, site.timeZone).slice(0, 7));
 
@@ -55,15 +54,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   }
 
   // Cold glass, when the member names the glazing and the site has an outdoor spot to read.
-  let glass: GlassContext | undefined;
-  if (glazingQ !== null && spot.indoor && spot.facing !== "none") {
-    const outdoor = (await listSpots(siteId)).find((s) => !s.indoor && s.id !== spot.id);
-    if (outdoor) {
-      const season = (await spotProfiles(site, [outdoor.id], now, { range: period })).get(outdoor.id)!;
-      const lows = new Map(season.year.filter((m) => m.temperature.meanDailyLow !== null).map((m) => [m.month, m.temperature.meanDailyLow!] as const));
-      if (lows.size > 0) glass = { uValue: GLAZING_U[glazingQ as Glazing], outdoorLowByMonth: lows };
-    }
-  }
+  const glass = await glassContextFor(site, spot, await listSpots(siteId), period, parseGlazing(glazingQ), now);
 
   const plants = await sitePlants(siteId);
   const season = (await spotProfiles(site, [spot.id], now, { range: period, plants })).get(spot.id)!;

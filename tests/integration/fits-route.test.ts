@@ -6,7 +6,7 @@ import { eq } from "drizzle-orm";
 import { createSession, generateSessionToken } from "~/.server/auth";
 import { db } from "~/.server/db";
 import { ReadingWriter } from "~/.server/ingest/writer";
-import { users } from "~/db/schema.server";
+import { spots, users } from "~/db/schema.server";
 import { loader as fitsLoader } from "~/routes/api.fits";
 import { loader as spotLoader } from "~/routes/spots.$spotId";
 import { makeSensor, makeSite, makeSpot, makeUser } from "./helpers";
@@ -101,4 +101,38 @@ describe("the fits route", () => {
   it("answers only members of the site", async () => {
     expect(await status(fits(strangerToken, ""))).toBe(404);
   });
+});
+
+describe("cold glass on a windowsill (ISO 6946 surface resistance, REFERENCES.md)", () => {
+  it("with single glazing and a freezing January outside, the pane sits under the room's dew point; with triple it doesn't", async () => {
+    const owner = await makeUser();
+    const s = await makeSite(owner, { timeZone: "Europe/London" });
+    const sill = await makeSpot(s, { indoor: true, name: "Sill" });
+    await db().update(spots).set({ facing: "N" }).where(eq(spots.id, sill.id));
+    const outside = await makeSpot(s, { indoor: false, name: "Yard" });
+    const inSensor = await makeSensor(s, sill, new Date("2024-12-01T00:00:00Z"));
+    const outSensor = await makeSensor(s, outside, new Date("2024-12-01T00:00:00Z"));
+    // January 2025: 20 °C and 60 % inside (dew point ~12 °C), 0 °C outside.
+    const from = Date.UTC(2025, 0, 1);
+    const readings = Array.from({ length: 31 * 24 }, (_, i) => new Date(from + i * HOUR)).flatMap((at) => [
+      { sensorId: inSensor.id, measuredAt: at, temperature: 20, humidity: 60, lux: null, battery: null },
+      { sensorId: outSensor.id, measuredAt: at, temperature: 0, humidity: 90, lux: null, battery: null },
+    ]);
+    await new ReadingWriter().write(readings);
+    const t = await sessionFor(owner.id);
+    const ask = async (glazing: string) => {
+      const r = (await fitsLoader({ request: req(t, `/api/sites/${s.id}/spots/${sill.id}/fits?from=2025-01&to=2025-01&glazing=${glazing}`), params: { siteId: String(s.id), spotId: String(sill.id) }, context: {} } as never)) as Response;
+      const body = await r.json();
+      return { body, wet: body.fits.find((f: { key: string }) => f.key === "phalaenopsis").rules.find((x: { rule: string }) => x.rule === "condensation") };
+    };
+    const single = await ask("single");
+    expect(single.body.glazing).toEqual({ glazing: "single", uValue: 5.8 });
+    expect(single.wet.level).toBe("care");
+    const glassFact = single.wet.facts.find((f: { kind: string }) => f.kind === "cold-glass");
+    expect(glassFact.months[0]).toMatchObject({ month: 1 });
+    expect(glassFact.months[0].paneC).toBeCloseTo(4.9, 0);
+    expect(single.wet.text).toContain("Cold glass");
+    const triple = await ask("triple");
+    expect(triple.wet.facts.some((f: { kind: string }) => f.kind === "cold-glass")).toBe(false);
+  }, 60_000);
 });
