@@ -183,6 +183,19 @@ const worstNights = (nights: NightSummary[], line: number, n = 3): Episode[] =>
     .slice(0, n)
     .map((x) => ({ date: x.key, valueC: round1(x.low), hours: Math.max(1, hoursUnder(x.temps, line)) }));
 
+const lowestCache = new WeakMap<SeasonProfile, number>();
+/** The lowest reading of nights and days: a cold snap at 9 in the morning still chills. */
+function lowestOf(season: SeasonProfile): number {
+  let lowest = lowestCache.get(season);
+  if (lowest === undefined) {
+    lowest = Infinity;
+    for (const n of season.nights) lowest = Math.min(lowest, n.low);
+    for (const d of season.days) if (d.low !== null) lowest = Math.min(lowest, d.low);
+    lowestCache.set(season, lowest);
+  }
+  return lowest;
+}
+
 /**
  * Nights against the comfort night and the cold damage line. Past damage → poor. Past comfort for a
  * season (many nights within weeks) → care, or poor when the season's typical night sits nearer the
@@ -191,10 +204,7 @@ const worstNights = (nights: NightSummary[], line: number, n = 3): Episode[] =>
 export const coldNights: FitRule = (profile, season, t) => {
   if (season.nights.length === 0) return unknown("cold-nights");
   const { comfortNightC: comfort, damageNightC: damage } = linesOf(profile);
-  // Day hours count too: a cold snap at 9 in the morning still chills.
-  let lowest = Infinity;
-  for (const n of season.nights) lowest = Math.min(lowest, n.low);
-  for (const d of season.days) if (d.low !== null) lowest = Math.min(lowest, d.low);
+  const lowest = lowestOf(season);
   const cold = season.nights.filter((n) => n.low < comfort - t.sensorMarginC);
   let comfortDh = 0;
   for (const n of cold) comfortDh += degreeHoursUnder(n.temps, comfort, n.low);
@@ -269,7 +279,8 @@ export const hotDays: FitRule = (profile, season, t) => {
   const costsSpikes = profile.flowering.coolPeriod?.maxDayC !== undefined;
   const highest = Math.max(...days.map((d) => d.high!));
   const hot = days.filter((d) => d.high! > comfort + t.sensorMarginC);
-  const damaged = days.filter((d) => (d.temps?.length ? hoursOver(d.temps, damage) > 0 : d.high! > damage));
+  // Hourly means never exceed the day's high, so only days whose high passed the line are read hour by hour.
+  const damaged = days.filter((d) => d.high! > damage && (d.temps?.length ? hoursOver(d.temps, damage) > 0 : true));
   const episodes = (list: typeof days, line: number): Episode[] =>
     [...list]
       .sort((a, b) => b.high! - a.high! || a.dayNumber - b.dayNumber)
@@ -310,6 +321,25 @@ export const hotDays: FitRule = (profile, season, t) => {
   };
 };
 
+/** Each month's daily humidity minimums, sorted, once per season. */
+const humidityCache = new WeakMap<SeasonProfile, { byMonth: number[][]; lowest: number; count: number }>();
+function dailyHumidity(season: SeasonProfile) {
+  let h = humidityCache.get(season);
+  if (!h) {
+    const byMonth: number[][] = Array.from({ length: 13 }, () => []);
+    let lowest = Infinity, count = 0;
+    for (const d of season.days) {
+      if (d.rhLow === undefined || d.rhLow === null) continue;
+      byMonth[d.month].push(d.rhLow);
+      lowest = Math.min(lowest, d.rhLow);
+      count++;
+    }
+    for (const list of byMonth) list.sort((a, b) => a - b);
+    humidityCache.set(season, (h = { byMonth, lowest, count }));
+  }
+  return h;
+}
+
 /**
  * Humidity by its dry part of the day: each day's lowest reading against the group's minimum. A
  * month where that happens on a quarter of its days or more asks for care; the monthly mean would
@@ -317,21 +347,24 @@ export const hotDays: FitRule = (profile, season, t) => {
  * a humidifier), so never worse than care. Damp air: the monthly mean over the group's maximum.
  */
 export const humidityBand: FitRule = (profile, season, t) => {
-  const days = season.days.filter((d) => d.rhLow !== undefined && d.rhLow !== null);
+  const { byMonth, lowest: lowestDaily, count } = dailyHumidity(season);
   const months = season.year.filter((m) => m.humidity.mean !== null);
-  if (months.length === 0 && days.length === 0) return unknown("humidity");
+  if (months.length === 0 && count === 0) return unknown("humidity");
   const facts: Fact[] = [];
   const dryMonths: number[] = [];
   const dryDayMins: number[] = [];
-  let dryDays = 0;
+  let dryDays = 0, daysInDryMonths = 0;
   for (let m = 1; m <= 12; m++) {
-    const inMonth = days.filter((d) => d.month === m);
-    if (inMonth.length === 0) continue;
-    const dry = inMonth.filter((d) => d.rhLow! < profile.humidityMin);
-    if (dry.length / inMonth.length >= t.dryDayShare) {
+    const mins = byMonth[m];
+    if (mins.length === 0) continue;
+    // Sorted ascending: the dry days are a prefix.
+    let dry = 0;
+    while (dry < mins.length && mins[dry] < profile.humidityMin) dry++;
+    if (dry / mins.length >= t.dryDayShare) {
       dryMonths.push(m);
-      dryDays += dry.length;
-      for (const d of dry) dryDayMins.push(d.rhLow!);
+      dryDays += dry;
+      daysInDryMonths += mins.length;
+      for (let i = 0; i < dry; i++) dryDayMins.push(mins[i]);
     }
   }
   if (dryMonths.length > 0) {
@@ -339,7 +372,7 @@ export const humidityBand: FitRule = (profile, season, t) => {
       kind: "humidity-dry",
       minPct: profile.humidityMin,
       dryDays,
-      days: days.filter((d) => dryMonths.includes(d.month)).length,
+      days: daysInDryMonths,
       months: cyclicOrder(dryMonths),
       typicalDailyMinPct: Math.round(median(dryDayMins)),
       lowestPct: Math.round(Math.min(...dryDayMins)),
@@ -350,7 +383,7 @@ export const humidityBand: FitRule = (profile, season, t) => {
     facts.push({ kind: "humidity-damp", maxPct: profile.humidityMax, months: cyclicOrder(damp.map((m) => m.month)), meanPct: Math.round(Math.max(...damp.map((m) => m.humidity.mean!))) });
   }
   if (facts.length === 0) {
-    const lowest = days.length ? Math.min(...days.map((d) => d.rhLow!)) : Math.min(...months.map((m) => m.humidity.lowest ?? m.humidity.mean!));
+    const lowest = count ? lowestDaily : Math.min(...months.map((m) => m.humidity.lowest ?? m.humidity.mean!));
     return { rule: "humidity", level: "good", facts: [{ kind: "humidity-ok", minPct: profile.humidityMin, maxPct: profile.humidityMax, lowestDailyMinPct: Math.round(lowest) }] };
   }
   return { rule: "humidity", level: "care", months: monthKeys([...dryMonths, ...damp.map((m) => m.month)]), facts };
@@ -421,6 +454,22 @@ function bestCoolSpell(
   return { best, months: cyclicOrder([...months]) };
 }
 
+const swingCache = new WeakMap<SeasonProfile, Map<number, { month: number; difC: number }[]>>();
+/** Each month's typical (median) day–night difference, the day's high minus its low, once per season. */
+function monthlySwings(season: SeasonProfile, minDays: number) {
+  let byMin = swingCache.get(season);
+  if (!byMin) swingCache.set(season, (byMin = new Map()));
+  let out = byMin.get(minDays);
+  if (!out) {
+    const swings: number[][] = Array.from({ length: 13 }, () => []);
+    for (const d of season.days) if (d.low !== null && d.high !== null) swings[d.month].push(d.high - d.low);
+    out = [];
+    for (let m = 1; m <= 12; m++) if (swings[m].length >= minDays) out.push({ month: m, difC: round1(median(swings[m])) });
+    byMin.set(minDays, out);
+  }
+  return out;
+}
+
 /**
  * The flowering cue in its season (cool nights or cool days for some weeks, in the months the cue
  * counts) and the day–night difference as the day's high minus its low, month by month. Missing
@@ -470,11 +519,7 @@ export const floweringNeeds: FitRule = (profile, season, t) => {
     }
   }
   if (need !== undefined) {
-    const byMonth: { month: number; difC: number }[] = [];
-    for (let m = 1; m <= 12; m++) {
-      const swings = days.filter((d) => d.month === m).map((d) => d.high! - d.low!);
-      if (swings.length >= t.difMinDays) byMonth.push({ month: m, difC: round1(median(swings)) });
-    }
+    const byMonth = monthlySwings(season, t.difMinDays);
     const meeting = byMonth.filter((x) => x.difC >= need - t.sensorMarginC);
     if (byMonth.length === 0) levels.push("unknown");
     else if (meeting.length > 0) {
