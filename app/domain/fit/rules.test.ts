@@ -157,6 +157,15 @@ describe("light by month", () => {
     (season.year[5].light as { luxClipped?: number }).luxClipped = 40;
     expect(lightBand(phal, season, T).facts.map((f) => f.kind)).toContain("light-clipped");
   });
+
+  it("doesn't call a clipped month dim: the chip reads low in direct sun", () => {
+    const season = lux((m) => (m === 6 ? 2000 : 9000));
+    expect((lightBand(phal, season, T).facts[0] as { dim: number[] }).dim).toContain(6);
+    (season.year[5].light as { luxClipped?: boolean }).luxClipped = true;
+    const r = lightBand(phal, season, T);
+    expect((r.facts[0] as { dim: number[] }).dim).not.toContain(6);
+    expect(r.facts.find((f) => f.kind === "light-clipped")).toMatchObject({ months: [6] });
+  });
 });
 
 describe("flowering cues in their season", () => {

@@ -399,16 +399,17 @@ export const lightBand: FitRule = (profile, season, t) => {
   const measured = season.year.filter((m) => m.light.meanDli !== null && m.light.daysWithLight > 0);
   if (measured.length === 0) return { rule: "light", level: "unknown", noData: true, facts: [] };
   const months = measured.map((m) => ({ month: m.month, dli: round1(m.light.meanDli!) }));
-  const dim = months.filter((m) => m.dli < profile.dliMin * (1 - t.lightEdgeShare)).map((m) => m.month);
+  // A lux chip that clips in direct sun reads low: a clipped month isn't called dim on its word.
+  const clipped = measured.filter((m) => (m.light as { luxClipped?: number | boolean }).luxClipped).map((m) => m.month);
+  const dim = months.filter((m) => m.dli < profile.dliMin * (1 - t.lightEdgeShare) && !clipped.includes(m.month)).map((m) => m.month);
   const bright = months.filter((m) => m.dli > profile.dliMax * (1 + t.lightEdgeShare)).map((m) => m.month);
   const scorch = months.filter((m) => m.dli > profile.dliMax * t.lightFarFactor).map((m) => m.month);
   // Winter is dim at any window at high latitudes; what rules a group out is a growing season far
   // too dim: most of April–September (October–March in the south) under dliMin ÷ lightFarFactor.
   const growing = hemisphereMonths([4, 5, 6, 7, 8, 9], season);
-  const farDim = months.filter((m) => growing.includes(m.month) && m.dli < profile.dliMin / t.lightFarFactor).map((m) => m.month);
+  const farDim = months.filter((m) => growing.includes(m.month) && !clipped.includes(m.month) && m.dli < profile.dliMin / t.lightFarFactor).map((m) => m.month);
   const unmeasured = [1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12].filter((m) => !measured.some((x) => x.month === m));
   const facts: Fact[] = [{ kind: "light-months", minDli: profile.dliMin, maxDli: profile.dliMax, months, dim, bright, scorch, unmeasured }];
-  const clipped = measured.filter((m) => (m.light as { luxClipped?: number | boolean }).luxClipped).map((m) => m.month);
   if (clipped.length) facts.push({ kind: "light-clipped", months: clipped });
   const level: RuleLevel =
     (profile.light === "low" && scorch.length >= t.scorchPoorMonths) || farDim.length >= 4
