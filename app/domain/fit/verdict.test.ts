@@ -102,6 +102,14 @@ describe("ranking", () => {
     expect(ranked.at(-1)!.plant.key).toBe("nepenthes-lowland"); // damaged under 13 °C
   });
 
+  it("among groups asking for care, puts what a humidity tray fixes before a window too dark to flower them", () => {
+    // A north window with a dry winter: Phalaenopsis only needs a tray; Brassavola needs sun it won't get.
+    const north = { latitude: 51.5, facing: "N" as const, indoor: true };
+    const season = spotYear({ month: (m) => ({ ...steadyRoom(m), night: 19, day: 24, ...(m <= 2 ? { rhDay: 40, rhNight: 60 } : {}) }) });
+    const keys = rankPlantsForSpot([plantByKey("brassavola")!, phal], season, undefined, north).map((r) => r.plant.key);
+    expect(keys).toEqual(["phalaenopsis", "brassavola"]);
+  });
+
   it("ranks spots for a plant best first, keeping the caller's spot objects", () => {
     const spots = [
       { id: "porch", season: porch },

@@ -173,13 +173,15 @@ export function fitPlant(
 /**
  * Best first: the verdict; then how far the spot misses the group — degree-hours past its damage
  * lines, then past its comfort lines (on a frosty bench every tropical group struggles, and the
- * hardiest heads the list) — then fewer rules asking for care and fewer missing months. Not the
+ * hardiest heads the list) — then the rules asking for care, weighted (CARE_WEIGHT), and fewer missing months. Not the
  * count of failed rules: one hard frost outweighs three small cautions.
  */
 type Rank = { verdict: number; damage: number; comfort: number; tail: number };
+/** What a rule asking for care costs in the ranking: what a tray or a fan fixes costs less than heat, cold, light or flowers. */
+const CARE_WEIGHT: Record<string, number> = { humidity: 1, condensation: 1 };
 function fitRank(f: PlantFit): Rank {
   let care = 0;
-  for (const r of f.reasons) if (r.level === "care" || r.level === "unknown") care++;
+  for (const r of f.reasons) if (r.level === "care" || r.level === "unknown") care += r.level === "unknown" ? 1 : (CARE_WEIGHT[r.rule] ?? 2);
   return { verdict: VERDICT_ORDER.indexOf(f.verdict), damage: f.miss.damage, comfort: f.miss.comfort, tail: care * 16 + f.missingMonths.length };
 }
 const compareRanks = (a: Rank, b: Rank) => a.verdict - b.verdict || a.damage - b.damage || a.comfort - b.comfort || a.tail - b.tail;
