@@ -6,6 +6,7 @@ import {
   cyclicOrder,
   FIT_RULES,
   floweringNeeds,
+  hemisphereMonths,
   hotDays,
   humidityBand,
   judgeAll,
@@ -179,6 +180,11 @@ describe("flowering cues in their season", () => {
     expect(late).toMatchObject({ level: "care", facts: [{ kind: "cue-missed", outOfSeason: [12, 1, 2], cueMonths: [8, 9, 10, 11] }] });
     const autumn = floweringNeeds(cymbidium, spotYear({ month: (m) => ({ night: m === 9 || m === 10 ? 11 : 16, day: 22 }) }), T);
     expect(autumn).toMatchObject({ level: "good", facts: [{ kind: "cue-met" }] });
+  });
+
+  it("shifts the cue months by six in the southern hemisphere (hemisphereMonths)", () => {
+    expect(hemisphereMonths([8, 9, 10, 11], { hemisphere: "southern" } as never)).toEqual([2, 3, 4, 5]);
+    expect(hemisphereMonths([8, 9, 10, 11], { hemisphere: "northern" } as never)).toEqual([8, 9, 10, 11]);
   });
 
   it("the day–night difference is the day's high minus its low, by month", () => {

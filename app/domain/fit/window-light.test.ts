@@ -34,6 +34,11 @@ describe("windowLight", () => {
     expect(windowLight(phal, w("N")).level).toBe("good");
   });
 
+  it("in the southern hemisphere the hot window faces north (Sydney, 33.9° S)", () => {
+    expect(windowLight(phal, { latitude: -33.9, facing: "N", indoor: true })).toMatchObject({ level: "care", facts: [{ verdict: "scorch" }] });
+    expect(windowLight(phal, { latitude: -33.9, facing: "S", indoor: true }).level).toBe("good");
+  });
+
   it("says light is unknown with no facing set, and outdoors", () => {
     expect(windowLight(cattleya, w("none"))).toMatchObject({ level: "unknown", facts: [{ kind: "light-unknown", reason: "no-sensor" }] });
     expect(describeReason(windowLight(cattleya, w("none")))).toContain("no window facing set");
