@@ -37,6 +37,7 @@ export default [
   route("api/ingest", "routes/api.ingest.ts"),
   route("api/sites/:siteId/spots/:spotId/series", "routes/api.series.ts"),
   route("api/sites/:siteId/spots/:spotId/latest", "routes/api.latest.ts"),
+  route("api/sites/:siteId/spots/:spotId/fits", "routes/api.fits.ts"),
   route("api/sites/:siteId/sensors/:sensorId/status", "routes/api.sensor-status.ts"),
   route("api/sites/:siteId/alerts", "routes/api.alerts.ts"),
   route("api/sites/:siteId/notes", "routes/api.notes.ts"),

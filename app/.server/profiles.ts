@@ -1,8 +1,11 @@
 // Season profiles and fits for spots, computed from the hourly rollups on each page load (a year of
 // rollups is ~8,760 rows per spot; the raw readings are never read here).
 import { pool } from "~/.server/db";
-import { rankPlantsForSpot, type PlantFit } from "~/domain/fit/verdict";
+import { rankPlantsForSpot, type FitContext, type PlantFit } from "~/domain/fit/verdict";
+import { describeFact, describeReason, describeSeasonal as seasonalWords, DEFAULT_FORMAT, type Format } from "~/domain/fit/describe";
 import type { SpotWindow } from "~/domain/fit/window-light";
+import type { GlassContext } from "~/domain/fit/cold-glass";
+import { GLAZING_U, type Glazing } from "~/domain/climate/glass";
 import { PLANT_LIBRARY, type PlantProfile } from "~/domain/plants/library";
 import type { LightSource } from "~/domain/climate/light";
 import { seasonProfile } from "~/domain/season/profile";
@@ -248,26 +251,58 @@ export async function spotProfiles(
   return new Map(spotIds.map((id) => [id, out.get(id)!] as const));
 }
 
-/** Fits for one spot, best first; pass the site's plants (library plus own profiles). */
-export function fitsFor(season: ReturnType<typeof seasonProfile>, plants: PlantProfile[] = PLANT_LIBRARY, window?: SpotWindow) {
-  return rankPlantsForSpot(plants, season, undefined, window).map(({ plant, fit }) => fitSummary(plant, fit));
+/** Fits for one spot, best first; pass the site's plants (library plus own profiles) and the grower's unit. */
+export function fitsFor(season: ReturnType<typeof seasonProfile>, plants: PlantProfile[] = PLANT_LIBRARY, context: FitContext | SpotWindow = {}, format: Format = DEFAULT_FORMAT) {
+  return rankPlantsForSpot(plants, season, undefined, context).map(({ plant, fit }) => fitSummary(plant, fit, format));
 }
 
-/** What a page shows of one plant's fit: the verdict, reasons that ask for something, and what suits it. */
-export function fitSummary(plant: PlantProfile, fit: PlantFit) {
+/** "Good from May to September; bring it in before nights fall under 10 °C." */
+export function describeSeasonal(fit: PlantFit, format: Format = DEFAULT_FORMAT): string | null {
+  return fit.seasonal ? seasonalWords(fit.seasonal, format) : null;
+}
+
+/** What a page shows of one plant's fit: the verdict, reasons that ask for something, and what suits it, in the grower's unit. */
+export function fitSummary(plant: PlantProfile, fit: PlantFit, format: Format = DEFAULT_FORMAT) {
+  const name = plant.name.split(/[ ,(]/)[0];
+  const seasonal = describeSeasonal(fit, format);
+  const asking = fit.reasons.filter((r) => r.level !== "good").map((r) => ({ rule: r.rule, level: r.level, message: describeReason(r, format, name) }));
   return {
     key: plant.key,
     name: plant.name,
-    category: plant.category,
+    // Cool / intermediate / warm are orchid terms.
+    category: plant.group === "orchid" ? plant.category : null,
     minNightC: plant.minNightC,
     maxDayC: plant.maxDayC,
     verdict: fit.verdict,
-    reasons: fit.reasons.filter((r) => r.level !== "ok" || r.noData).map((r) => ({ rule: r.rule, level: r.level, message: r.message })),
-    okReasons: fit.reasons.filter((r) => r.level === "ok" && !r.noData).map((r) => r.message),
+    level: fit.level,
+    reasons: seasonal ? [{ rule: "seasonal", level: "care" as const, message: seasonal }, ...asking] : asking,
+    okReasons: fit.reasons.filter((r) => r.level === "good").map((r) => r.facts.map((f) => describeFact(f, format, name)).join(" ")).filter(Boolean),
     missingMonths: fit.missingMonths,
     missingAdvice: fit.missingAdvice,
   };
 }
+
+/**
+ * Cold glass for a windowsill (issue 15): with the glazing named, the pane's inside temperature each
+ * month from the site's outdoor spot (its mean daily low) — null without an outdoor spot with readings.
+ */
+export async function glassContextFor(
+  site: Site,
+  spot: { id: number; indoor: boolean; facing: string },
+  outdoorSpots: { id: number; indoor: boolean }[],
+  period: { from: Date; to: Date },
+  glazing: Glazing | null,
+  now = new Date(),
+): Promise<GlassContext | undefined> {
+  if (!glazing || !spot.indoor || spot.facing === "none") return undefined;
+  const outdoor = outdoorSpots.find((s) => !s.indoor && s.id !== spot.id);
+  if (!outdoor) return undefined;
+  const season = (await spotProfiles(site, [outdoor.id], now, { range: period })).get(outdoor.id)!;
+  const lows = new Map(season.year.filter((m) => m.temperature.meanDailyLow !== null).map((m) => [m.month, m.temperature.meanDailyLow!] as const));
+  return lows.size > 0 ? { uValue: GLAZING_U[glazing], outdoorLowByMonth: lows } : undefined;
+}
+
+export const parseGlazing = (v: string | null): Glazing | null => (v !== null && Object.hasOwn(GLAZING_U, v) ? (v as Glazing) : null);
 
 /** How a spot's window is described to the fit rules (used for light when it has no light sensor). */
 export const windowOf = (site: Site, spot: { facing: SpotWindow["facing"]; indoor: boolean }): SpotWindow => ({ latitude: site.latitude, facing: spot.facing, indoor: spot.indoor });

@@ -4,6 +4,7 @@ import { formatDelta, formatTemp, type TempUnit } from "~/lib/units";
 const VERDICT_STYLE: Record<string, { icon: string; cls: string }> = {
   "thrives here": { icon: "✓", cls: "text-good border-good/30 bg-good/5" },
   "possible with care": { icon: "◐", cls: "text-care border-care/30 bg-care/5" },
+  "good for part of the year": { icon: "◑", cls: "text-care border-care/30 bg-care/5" },
   "struggles here": { icon: "✕", cls: "text-poor border-poor/30 bg-poor/5" },
   "not enough data yet": { icon: "…", cls: "text-muted border-line bg-paper" },
 };
@@ -21,8 +22,9 @@ export function VerdictBadge({ verdict }: { verdict: string }) {
 export type FitRow = {
   key: string;
   name: string;
-  category: string;
+  category: string | null;
   verdict: string;
+  level?: string;
   reasons: { rule: string; level: string; message: string }[];
   okReasons: string[];
   missingMonths: string[];
@@ -36,7 +38,7 @@ export function FitList({ fits }: { fits: FitRow[]; unit: TempUnit; siteId: numb
         <li key={f.key} className="py-3">
           <div className="flex flex-wrap items-center gap-x-3 gap-y-1">
             <span className="font-semibold">{f.name}</span>
-            <span className="text-sm text-muted">{f.category} grower</span>
+            {f.category ? <span className="text-sm text-muted">{f.category} grower</span> : null}
             <span className="ml-auto">
               <VerdictBadge verdict={f.verdict} />
             </span>
@@ -124,7 +126,7 @@ export function SeasonTable({ months, seasons, unit }: { months: SlimProfile["ye
       </table>
       <p className="mt-2 text-xs text-muted">
         * too few days with readings to judge (fewer than 20 in the month). Percentiles are of hourly mean temperatures. Day–night is the mean
-        day temperature minus the mean night temperature, split at sunrise and sunset here.
+        day temperature minus the mean night temperature, split at sunrise and sunset here; the fit rules read it as the day's high minus its low.
       </p>
     </div>
   );

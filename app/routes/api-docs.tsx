@@ -104,6 +104,30 @@ export default function ApiDocs({ loaderData: d }: Route.ComponentProps) {
       </section>
 
       <section className="card space-y-4">
+        <h2 className="h2">Fits: which plant groups suit a spot</h2>
+        <Endpoint
+          method="GET"
+          path="/api/sites/:siteId/spots/:spotId/fits?from=YYYY-MM&to=YYYY-MM&glazing=single|old-double|double|triple"
+          who="Any member of the site. from and to are months in the site's time zone (at most 36 months); without them, the spot's latest twelve months with readings, as on the spot page."
+        >
+          <p className="text-sm">
+            Every plant group of the site, best fit first (ranked by how far the spot misses each: degree-hours past the group's damage
+            lines, then past its comfort range). Each has a stable <code>level</code> (<code>good</code>, <code>care</code>, <code>poor</code>,{" "}
+            <code>unknown</code> = not enough data yet), the page's <code>verdict</code>, <code>seasonal</code> (months an outdoor spot suits
+            it, or null), and each rule's <code>level</code>, <code>facts</code> and <code>text</code>. Facts are numbers and dates, always in
+            °C (degree-hours in K·h); <code>text</code> says the same in your temperature unit. <code>glazing</code> adds the cold-glass check
+            for a windowsill, read against the site's outdoor spot. A malformed or out-of-range month is a 400 with <code>{`{"error"}`}</code>.
+          </p>
+          <Code>{`curl -b cookies.txt '${spot}/fits?from=2025-01&to=2025-12'
+{"spot":{"id":1,…},"period":{"from":"2025-01-01T00:00:00.000Z","to":"2026-01-01T00:00:00.000Z","firstMonth":"2025-01","lastMonth":"2025-12","toToday":false},
+ "fits":[{"key":"phalaenopsis","level":"care","verdict":"possible with care","miss":{"damage":0,"comfort":3},
+   "rules":[{"rule":"cold-nights","level":"care","months":["01"],
+     "facts":[{"kind":"cold-snap","comfortC":16,"damageC":10,"nights":1,"worst":[{"date":"2025-01-17","valueC":13.9,"hours":1}],"degreeHours":2.1}],
+     "text":"A brief cold snap: 1 night under 16 °C (17 Jan: 13.9 °C for 1 hour), above the 10 °C damage line — …"},…]},…]}`}</Code>
+        </Endpoint>
+      </section>
+
+      <section className="card space-y-4">
         <h2 className="h2">Exports and season profiles</h2>
         <Endpoint
           method="GET"

@@ -36,7 +36,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     wish: wish ? { mustHave: wish.mustHave, pots: wish.pots } : null,
     standing: inventory.filter((i) => i.plantKey === plant.key).map((i) => ({ ...i, spotName: spots.find((s) => s.id === i.spotId)?.name ?? "" })),
     spots: ranked.map(({ spot: { spot }, fit }) => {
-      const f = fitSummary(plant, fit);
+      const f = fitSummary(plant, fit, { unit: user.temperatureUnit });
       const { firstMonth, lastMonth, toToday } = periods.get(spot.id)!;
       return {
         id: spot.id,
@@ -79,13 +79,23 @@ function needsOf(p: PlantProfile, unit: TempUnit): Need[] {
   const cue = [
     f.difC != null ? `days about ${deltaToUnit(f.difC, unit).toFixed(0)} °${unit} warmer than nights` : null,
     f.coolPeriod
-      ? `${f.coolPeriod.weeks} weeks of nights at or below ${formatTemp(f.coolPeriod.maxNightC, unit, 0)}${f.coolPeriod.maxDayC != null ? ` and days at or below ${formatTemp(f.coolPeriod.maxDayC, unit, 0)}` : ""}${f.coolPeriod.months ? ` (${f.coolPeriod.months})` : ""}`
+      ? `${f.coolPeriod.weeks} weeks of ${[
+          f.coolPeriod.maxNightC != null ? `nights at or below ${formatTemp(f.coolPeriod.maxNightC, unit, 0)}` : null,
+          f.coolPeriod.maxDayC != null ? `days at or below ${formatTemp(f.coolPeriod.maxDayC, unit, 0)}` : null,
+        ]
+          .filter(Boolean)
+          .join(" and ")}${f.coolPeriod.months ? ` (${f.coolPeriod.months})` : ""}${f.coolPeriod.dryRest ? ", kept nearly dry" : ""}`
       : null,
   ].filter(Boolean);
   return [
-    { label: "Temperature group", value: `${p.category} growing`, fields: ["category"] },
-    { label: "Lowest safe night", value: formatTemp(p.minNightC, unit, 0), fields: ["minNightC"] },
+    // Cool / intermediate / warm are orchid terms.
+    ...(p.group === "orchid" ? [{ label: "Temperature group", value: `${p.category} growing`, fields: ["category"] }] : []),
+    { label: "Lowest comfortable night", value: formatTemp(p.minNightC, unit, 0), fields: ["minNightC"] },
     { label: "Highest comfortable day", value: formatTemp(p.maxDayC, unit, 0), fields: ["maxDayC"] },
+    ...(p.maxNightC != null ? [{ label: "Warmest comfortable night", value: formatTemp(p.maxNightC, unit, 0), fields: ["damageNightC/damageDayC/maxNightC"] }] : []),
+    ...(p.damageNightC != null && p.damageDayC != null
+      ? [{ label: "Harmed below / above", value: `${formatTemp(p.damageNightC, unit, 0)} / ${formatTemp(p.damageDayC, unit, 0)}`, fields: ["damageNightC/damageDayC/maxNightC"] }]
+      : []),
     { label: "Humidity", value: `${p.humidityMin}–${p.humidityMax} %`, fields: ["humidityMin/humidityMax"] },
     { label: "Light", value: p.light, fields: ["light"] },
     { label: "Daily light integral", value: `${p.dliMin}–${p.dliMax} mol m⁻² d⁻¹`, fields: ["dliMin/dliMax"] },

@@ -35,7 +35,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     plants: shown.map((p) => ({
       key: p.key,
       name: p.name,
-      category: p.category,
+      // Cool / intermediate / warm are orchid terms.
+      category: p.group === "orchid" ? p.category : null,
       light: p.light,
       minNightC: p.minNightC,
       maxDayC: p.maxDayC,
@@ -124,7 +125,7 @@ export default function Plants({ loaderData }: Route.ComponentProps) {
               </div>
               <p className="text-sm">{p.summary}</p>
               <p className="text-sm text-muted">
-                {p.category} growing · nights {formatTemp(p.minNightC, unit, 0)} or more · days up to {formatTemp(p.maxDayC, unit, 0)} · {LIGHT_WORDS[p.light]}
+                {p.category ? `${p.category} growing · ` : ""}nights {formatTemp(p.minNightC, unit, 0)} or more · days up to {formatTemp(p.maxDayC, unit, 0)} · {LIGHT_WORDS[p.light]}
               </p>
             </li>
           ))}

@@ -2,7 +2,7 @@ import { useEffect, useMemo } from "react";
 import { data, Link, useFetcher, useNavigation } from "react-router";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
 import { latestReading } from "~/.server/series";
-import { getSite, getSpot, listSensors, placementHistory } from "~/.server/sites";
+import { getSite, getSpot, listSensors, listSpots, placementHistory } from "~/.server/sites";
 import { placeFromForm } from "~/.server/sensors.server";
 import { Chart, useSeries, type ChartSpec } from "~/components/chart";
 import { PlaceSensorForm, PlacementHistory, PlacingTips } from "~/components/placement";
@@ -17,7 +17,8 @@ import { Inventory } from "~/components/inventory";
 import { EnvelopeChart, YearCharts } from "~/components/spot-charts";
 import { inventoryAction, sitePlants } from "~/.server/plants";
 import { spotGrowing } from "~/.server/spot-growing";
-import { fitsFor, judgedPeriods, parsePeriod, pickableMonths, slimProfile, spotProfiles, windowOf } from "~/.server/profiles";
+import { fitsFor, glassContextFor, judgedPeriods, parseGlazing, parsePeriod, pickableMonths, slimProfile, spotProfiles, windowOf } from "~/.server/profiles";
+import { GLAZING_U } from "~/domain/climate/glass";
 import { periodLabel, PeriodPicker } from "~/components/period-picker";
 import { VERDICT_RULES } from "~/domain/fit/verdict";
 import { timeAgo } from "~/lib/time";
@@ -44,7 +45,10 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     listNotes(siteId, { spotId: spot.id }),
   ]);
   const season = profiles.get(spot.id)!;
-  const fits = fitsFor(season, allPlants, windowOf(site, spot));
+  // Cold glass when the grower names the glazing (a windowsill of a site with an outdoor spot).
+  const glazing = parseGlazing(q.get("glazing"));
+  const glass = await glassContextFor(site, spot, await listSpots(siteId), period, glazing, now);
+  const fits = fitsFor(season, allPlants, { window: windowOf(site, spot), glass }, { unit: user.temperatureUnit });
   const plantKey = q.get("plant") ?? fits[0]?.key;
   const plant = allPlants.find((p) => p.key === plantKey) ?? null;
   return {
@@ -69,6 +73,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     plant: plant ? { key: plant.key, name: plant.name, minNightC: plant.minNightC, maxDayC: plant.maxDayC } : null,
     plants: allPlants.map((p) => ({ key: p.key, name: p.name })),
     verdictRules: VERDICT_RULES,
+    glazing: { chosen: glazing, judged: glass !== undefined, options: Object.entries(GLAZING_U).map(([key, u]) => ({ key, u })) },
     notes,
     growing: await spotGrowing(site, spot, allPlants, fits, sensors),
   };
@@ -213,6 +218,26 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
           {loaderData.period.chosen === "latest" ? ": this spot's latest twelve months with readings" : ""}.
         </p>
         <FitList fits={loaderData.fits} unit={unit} siteId={site.id} />
+        {spot.indoor && spot.facing !== "none" ? (
+          <form method="get" className="mt-4 flex flex-wrap items-center gap-2 text-sm" data-testid="glazing-form">
+            {loaderData.period.chosen !== "latest" ? <input type="hidden" name="period" value={loaderData.period.chosen} /> : null}
+            <label htmlFor="glazing" className="text-muted">
+              Cold glass: the window's glazing
+            </label>
+            <select id="glazing" name="glazing" defaultValue={loaderData.glazing.chosen ?? ""} className="field w-auto">
+              <option value="">not set</option>
+              {loaderData.glazing.options.map((o) => (
+                <option key={o.key} value={o.key}>
+                  {o.key.replace("-", " ")} (U ≈ {o.u})
+                </option>
+              ))}
+            </select>
+            <button className="btn-quiet">Judge</button>
+            {loaderData.glazing.chosen && !loaderData.glazing.judged ? (
+              <span className="text-muted">— needs an outdoor spot with readings on this site to know the cold outside.</span>
+            ) : null}
+          </form>
+        ) : null}
         <details className="mt-4 text-sm">
           <summary className="cursor-pointer font-medium">How the verdict is decided</summary>
           <ol className="mt-2 list-decimal space-y-1 pl-5 text-muted">

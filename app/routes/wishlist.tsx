@@ -1,7 +1,7 @@
 import { data, Form, Link, useNavigation } from "react-router";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
 import { parseWish, removeWish, saveWish, siteInventory, sitePlants, siteWishlist } from "~/.server/plants";
-import { judgedPeriods, parsePeriod, pickableMonths, spotProfiles, windowOf } from "~/.server/profiles";
+import { fitSummary, judgedPeriods, parsePeriod, pickableMonths, spotProfiles, windowOf } from "~/.server/profiles";
 import { periodLabel, PeriodPicker } from "~/components/period-picker";
 import { getSite, listSpots } from "~/.server/sites";
 import { VerdictBadge } from "~/components/season";
@@ -12,7 +12,7 @@ import type { Route } from "./+types/wishlist";
 export const meta: Route.MetaFunction = () => [{ title: "Wishlist · Nichewise" }];
 
 export async function loader({ request, params }: Route.LoaderArgs) {
-  const { siteId, role } = await requireSiteRole(request, params.siteId, ALL_ROLES);
+  const { siteId, role, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
   const [site, spots, plants, wishes, inventory] = await Promise.all([getSite(siteId), listSpots(siteId), sitePlants(siteId), siteWishlist(siteId), siteInventory(siteId)]);
   const byKey = new Map(plants.map((p) => [p.key, p]));
   const wanted = wishes.filter((w) => byKey.has(w.plantKey));
@@ -21,7 +21,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const periods = wanted.length ? await judgedPeriods(site, spots.map((s) => s.id), choice, now) : new Map();
   const profiles = wanted.length ? await spotProfiles(site, spots.map((s) => s.id), now, { plants, periods }) : new Map();
   const withSeason = spots.map((s) => ({ spot: s, season: profiles.get(s.id)!, window: windowOf(site, s) }));
-  const ranked = wanted.map((w) => ({ wish: w, fits: rankSpotsForPlant(byKey.get(w.plantKey)!, withSeason).map((r) => ({ spotId: r.spot.spot.id, verdict: r.fit.verdict, reason: r.fit.reasons[0]?.message ?? null })) }));
+  const ranked = wanted.map((w) => ({ wish: w, fits: rankSpotsForPlant(byKey.get(w.plantKey)!, withSeason).map((r) => ({ spotId: r.spot.spot.id, verdict: r.fit.verdict, reason: fitSummary(byKey.get(w.plantKey)!, r.fit, { unit: user.temperatureUnit }).reasons[0]?.message ?? null })) }));
   const plan = planWishlist(
     spots.map((s) => ({ id: s.id, name: s.name, capacity: s.capacity, standingPots: inventory.filter((i) => i.spotId === s.id).reduce((n, i) => n + i.pots, 0) })),
     ranked.map((r) => ({ plantKey: r.wish.plantKey, mustHave: r.wish.mustHave, pots: r.wish.pots, fits: r.fits })),

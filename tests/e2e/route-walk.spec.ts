@@ -56,6 +56,7 @@ const EXPECT: Record<string, Expect> = {
   "/api/ingest": { get: all(405), post: all(401) },
   "/api/sites/:siteId/spots/:spotId/series": { get: member },
   "/api/sites/:siteId/spots/:spotId/latest": { get: member },
+  "/api/sites/:siteId/spots/:spotId/fits": { get: member },
   "/api/sites/:siteId/sensors/:sensorId/status": { get: member },
 };
 

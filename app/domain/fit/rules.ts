@@ -1,58 +1,105 @@
-import { mean } from "simple-statistics";
+// The fit rules: each judges one side of a spot's season against a plant group and returns a level
+// and the facts behind it (numbers, dates, months) — never sentences. describe.ts turns the facts
+// into words in the grower's unit; the JSON route returns them as they are.
+//
+// The model: every limit has two lines, a comfort line (the group grows well inside it) and a damage
+// line (the plant is harmed past it), and what counts is how long and how far the spot goes past
+// each: degree-hours, nights, and whether it is a brief snap or a season of weeks.
 import type { PlantProfile } from "~/domain/plants/library";
-import { CONDENSATION_MARGIN_C, MONTH_NAMES } from "~/domain/season/profile";
-import type { MonthOfYearProfile, SeasonProfile } from "~/domain/season/types";
+import { CONDENSATION_MARGIN_C } from "~/domain/season/profile";
+import type { MonthOfYearProfile, NightSummary, SeasonProfile } from "~/domain/season/types";
 
-export type RuleLevel = "ok" | "care" | "poor";
+/** A rule's level: `unknown` when it had nothing to judge (no sensor for it, no readings yet). */
+export type RuleLevel = "good" | "care" | "poor" | "unknown";
+
+/** One night or day past a line: its local date ("2026-01-17"), the extreme, and hours past the line. */
+export type Episode = { date: string; valueC: number; hours: number };
+
+export type Fact =
+  // Temperature, cold side
+  | { kind: "cold-ok"; comfortC: number; lowestC: number }
+  | { kind: "cold-snap"; comfortC: number; damageC: number; nights: number; worst: Episode[]; degreeHours: number }
+  | { kind: "cold-season"; comfortC: number; damageC: number; nights: number; months: number[]; typicalLowC: number; degreeHours: number }
+  | { kind: "cold-damage"; damageC: number; nights: number; worst: Episode[]; degreeHours: number }
+  // Warm nights for cool growers
+  | { kind: "warm-nights-ok"; maxNightC: number; warmestLowC: number }
+  | { kind: "warm-nights"; maxNightC: number; nights: number; months: number[]; typicalLowC: number; season: boolean }
+  // Temperature, hot side
+  | { kind: "heat-ok"; comfortC: number; highestC: number }
+  | { kind: "heat-snap"; comfortC: number; damageC: number; days: number; worst: Episode[]; degreeHours: number; costsSpikes: boolean }
+  | { kind: "heat-season"; comfortC: number; damageC: number; days: number; months: number[]; typicalHighC: number; degreeHours: number; costsSpikes: boolean }
+  | { kind: "heat-damage"; damageC: number; days: number; worst: Episode[]; degreeHours: number }
+  // Humidity by its dry hours (daily minimum)
+  | { kind: "humidity-ok"; minPct: number; maxPct: number; lowestDailyMinPct: number }
+  | { kind: "humidity-dry"; minPct: number; dryDays: number; days: number; months: number[]; typicalDailyMinPct: number; lowestPct: number }
+  | { kind: "humidity-damp"; maxPct: number; months: number[]; meanPct: number }
+  // Light by month
+  | { kind: "light-months"; minDli: number; maxDli: number; months: { month: number; dli: number }[]; dim: number[]; bright: number[]; scorch: number[]; unmeasured: number[] }
+  | { kind: "light-clipped"; months: number[] }
+  | { kind: "light-window"; facing: string; sunnyMonths: number; strongSunMonths: number[]; need: "high" | "medium" | "low"; verdict: "shade" | "scorch" | "fits" }
+  | { kind: "light-unknown"; need: "high" | "medium" | "low"; minDli: number; maxDli: number; reason: "no-sensor" | "outdoor" }
+  // Flowering cues
+  | { kind: "cue-none" }
+  | { kind: "cue-met"; maxNightC?: number; maxDayC?: number; weeks: number; months: number[]; days: number; dryRest: boolean }
+  | { kind: "cue-missed"; maxNightC?: number; maxDayC?: number; weeks: number; bestDays: number; cueMonths: number[]; outOfSeason: number[]; dryRest: boolean }
+  | { kind: "dif-met"; needC: number; months: { month: number; difC: number }[] }
+  | { kind: "dif-missed"; needC: number; bestC: number; bestMonth: number | null }
+  // Condensation
+  | { kind: "condensation-ok"; hours: number; marginC: number }
+  | { kind: "condensation-wet"; hours: number; marginC: number; months: number[]; worstMonth: number; worstShare: number; expected: boolean }
+  | { kind: "cold-glass"; months: { month: number; paneC: number; dewPointC: number }[]; uValue: number };
 
 export type RuleResult = {
-  rule: string;
+  rule: RuleName;
   level: RuleLevel;
-  message: string;
+  facts: Fact[];
   /** Months of the year concerned, as month-of-year keys "01"–"12" (the year strip's columns). */
   months?: string[];
   /** Set when the rule had nothing to judge (no sensor for it, or no readings yet). */
   noData?: boolean;
-  /** How far the worst night or day went past the group's limit, °C (cold nights, hot days). */
-  shortfallC?: number;
+  /** How far the spot misses: degree-hours past the damage line and past the comfort line. */
+  miss?: { damage: number; comfort: number };
 };
 
-/** Where each rule turns from ok to care to poor. Our own choices unless noted; kept as data so a page can show them. */
+export type RuleName = "cold-nights" | "warm-nights" | "hot-days" | "humidity" | "light" | "flowering" | "condensation";
+
+/** Where each rule turns; our own choices (common practice) unless noted. Kept as data so a page can show them. */
 export type FitThresholds = {
-  /** Poor when the lowest night is more than this far under the group's safe night… */
-  nightPoorMarginC: number;
-  /** …or when more than this many nights fall more than nightCountMarginC under it. */
-  nightPoorCount: number;
   /**
-   * Nights within this of the safe night count for care but not towards poor: a cheap sensor reads
-   * to about ±0.5 °C (DHT22 and SHT3x data sheets), and the safe night is a comfortable minimum,
-   * not a damage line — a heated room's 15.6 °C nights don't rule out a 16 °C group.
+   * A cheap sensor reads to about ±0.5 °C (DHT22 and SHT3x data sheets): a night within this of a
+   * comfort line is not counted past it.
    */
-  nightCountMarginC: number;
-  /** Poor when the highest day is more than this far over the comfortable day… */
-  dayPoorMarginC: number;
-  /** …or when more than this many days go over it. */
-  dayPoorCount: number;
-  /** Mean DLI under dliMin × this is poor (under dliMin alone is care). */
-  lightLowPoorFactor: number;
-  /** Mean DLI over dliMax × this is poor (over dliMax alone is care). */
-  lightHighPoorFactor: number;
-  /** A month whose share of hours near the dew point reaches this asks for care. */
+  sensorMarginC: number;
+  /** A season: at least this many nights (or days) past the comfort line within `seasonWindowDays`. */
+  seasonNights: number;
+  seasonWindowDays: number;
+  /** A month's daily humidity minimum under the group's minimum on this share of its days asks for care. */
+  dryDayShare: number;
+  /**
+   * The DLI band's edges are soft (group ranges from memory): a month counts as dim under
+   * dliMin × (1 − this) and bright over dliMax × (1 + this).
+   */
+  lightEdgeShare: number;
+  /** A month with mean DLI under dliMin ÷ this, or over dliMax × this, is far off. */
+  lightFarFactor: number;
+  /** Months far too bright (scorch) for a low-light group before it is poor. */
+  scorchPoorMonths: number;
+  /** A month whose share of time near the dew point reaches this asks for care. */
   condensationCareShare: number;
   /** A cool spell counts when this share of the days in the window qualify. */
   coolSpellShare: number;
-  /** A month's mean day–night difference counts with at least this many days behind it. */
+  /** A month's day–night difference counts with at least this many days behind it. */
   difMinDays: number;
 };
 
 export const DEFAULT_FIT_THRESHOLDS: FitThresholds = {
-  nightPoorMarginC: 2,
-  nightPoorCount: 10,
-  nightCountMarginC: 0.5,
-  dayPoorMarginC: 4,
-  dayPoorCount: 20,
-  lightLowPoorFactor: 0.5,
-  lightHighPoorFactor: 1.5,
+  sensorMarginC: 0.5,
+  seasonNights: 10,
+  seasonWindowDays: 28,
+  dryDayShare: 0.25,
+  lightEdgeShare: 0.2,
+  lightFarFactor: 1.5,
+  scorchPoorMonths: 3,
   condensationCareShare: 0.1,
   coolSpellShare: 0.8,
   difMinDays: 10,
@@ -60,18 +107,20 @@ export const DEFAULT_FIT_THRESHOLDS: FitThresholds = {
 
 export type FitRule = (profile: PlantProfile, season: SeasonProfile, thresholds: FitThresholds) => RuleResult;
 
-const LEVEL_RANK: Record<RuleLevel, number> = { ok: 0, care: 1, poor: 2 };
+const LEVEL_RANK: Record<RuleLevel, number> = { good: 0, unknown: 1, care: 2, poor: 3 };
 export const worstLevel = (levels: RuleLevel[]): RuleLevel =>
-  levels.reduce<RuleLevel>((w, l) => (LEVEL_RANK[l] > LEVEL_RANK[w] ? l : w), "ok");
+  levels.reduce<RuleLevel>((w, l) => (LEVEL_RANK[l] > LEVEL_RANK[w] ? l : w), "good");
 
-/** 7.2 → "7.2", 13.0 → "13", −0.04 → "0". */
-export function formatNumber(x: number): string {
-  const r = Math.round(x * 10) / 10;
-  return (Object.is(r, -0) ? 0 : r).toFixed(1).replace(/\.0$/, "");
+/** The group's lines, with defaults for profiles that don't name them (a site's own profiles). */
+export function linesOf(p: PlantProfile) {
+  return {
+    comfortNightC: p.minNightC,
+    damageNightC: p.damageNightC ?? p.minNightC - 4,
+    comfortDayC: p.maxDayC,
+    damageDayC: p.damageDayC ?? p.maxDayC + 4,
+    maxNightC: p.maxNightC,
+  };
 }
-const c = (x: number) => `${formatNumber(x)} °C`;
-const counts = new Intl.NumberFormat("en-GB");
-const plural = (n: number, one: string, many = `${one}s`) => `${counts.format(n)} ${n === 1 ? one : many}`;
 
 /** The genus or group as a grower says it: "Phalaenopsis (moth orchid)" → "Phalaenopsis". */
 export function shortName(profile: PlantProfile): string {
@@ -96,235 +145,303 @@ export function cyclicOrder(months: number[]): number[] {
   return [...sorted.slice(start), ...sorted.slice(0, start)];
 }
 
-/** Contiguous runs of months in reading order: [11, 12, 1, 3] → [[11, 12, 1], [3]]. */
-function monthRuns(months: number[]): number[][] {
-  const runs: number[][] = [];
-  for (const m of cyclicOrder(months)) {
-    const last = runs.at(-1);
-    if (last && m === (last.at(-1)! % 12) + 1) last.push(m);
-    else runs.push([m]);
+const monthKeys = (months: number[]) => cyclicOrder(months).map(monthKeyOf);
+const median = (xs: number[]) => {
+  if (xs.length === 0) return NaN;
+  const s = [...xs].sort((a, b) => a - b);
+  const mid = s.length >> 1;
+  return s.length % 2 ? s[mid] : (s[mid - 1] + s[mid]) / 2;
+};
+const round1 = (x: number) => Math.round(x * 10) / 10;
+
+/** Months in which the hemisphere's cue months fall: northern months shifted six in the south. */
+export const hemisphereMonths = (months: number[], season: SeasonProfile) =>
+  season.hemisphere === "southern" ? months.map((m) => ((m + 5) % 12) + 1) : months;
+
+const unknown = (rule: RuleName): RuleResult => ({ rule, level: "unknown", noData: true, facts: [] });
+
+/** The most items (by day number) in any window of `width` days. */
+function densestWindow(dayNumbers: number[], width: number): number {
+  let best = 0;
+  for (let i = 0, j = 0; i < dayNumbers.length; i++) {
+    while (dayNumbers[i] - dayNumbers[j] >= width) j++;
+    best = Math.max(best, i - j + 1);
   }
-  return runs;
+  return best;
 }
 
-const joinAnd = (parts: string[]) => (parts.length <= 1 ? parts.join("") : `${parts.slice(0, -1).join(", ")} and ${parts.at(-1)}`);
+const hoursUnder = (temps: number[] | undefined, line: number) => (temps ?? []).filter((t) => t < line).length;
+const degreeHoursUnder = (temps: number[] | undefined, line: number, low: number) =>
+  temps && temps.length ? temps.reduce((n, t) => n + Math.max(0, line - t), 0) : Math.max(0, line - low);
+const hoursOver = (temps: number[] | undefined, line: number) => (temps ?? []).filter((t) => t > line).length;
+const degreeHoursOver = (temps: number[] | undefined, line: number, high: number) =>
+  temps && temps.length ? temps.reduce((n, t) => n + Math.max(0, t - line), 0) : Math.max(0, high - line);
+
+const worstNights = (nights: NightSummary[], line: number, n = 3): Episode[] =>
+  [...nights]
+    .sort((a, b) => a.low - b.low || a.dayNumber - b.dayNumber)
+    .slice(0, n)
+    .map((x) => ({ date: x.key, valueC: round1(x.low), hours: Math.max(1, hoursUnder(x.temps, line)) }));
+
+const lowestCache = new WeakMap<SeasonProfile, number>();
+/** The lowest reading of nights and days: a cold snap at 9 in the morning still chills. */
+function lowestOf(season: SeasonProfile): number {
+  let lowest = lowestCache.get(season);
+  if (lowest === undefined) {
+    lowest = Infinity;
+    for (const n of season.nights) lowest = Math.min(lowest, n.low);
+    for (const d of season.days) if (d.low !== null) lowest = Math.min(lowest, d.low);
+    lowestCache.set(season, lowest);
+  }
+  return lowest;
+}
 
 /**
- * "in July", "in July and August", "between November and February",
- * "in January, March and June", "in January–June and September".
+ * Nights against the comfort night and the cold damage line. Past damage → poor. Past comfort for a
+ * season (many nights within weeks) → care, or poor when the season's typical night sits nearer the
+ * damage line than the comfort line. A few nights past comfort (a snap) → care, naming the nights.
  */
-export function describeMonths(months: number[]): string {
-  const runs = monthRuns(months);
-  const name = (m: number) => MONTH_NAMES[m - 1];
-  if (runs.length === 0) return "";
-  if (runs.length === 1 && runs[0].length >= 3) return `between ${name(runs[0][0])} and ${name(runs[0].at(-1)!)}`;
-  const parts = runs.flatMap((r) => (r.length >= 3 ? [`${name(r[0])}–${name(r.at(-1)!)}`] : r.map(name)));
-  return `in ${joinAnd(parts)}`;
-}
-
-const monthKeys = (months: number[]) => cyclicOrder(months).map(monthKeyOf);
-
-/** Months 1–12 whose bit is set in a 13-bit mask (bit m for month m). */
-function maskMonths(mask: number): number[] {
-  const out: number[] = [];
-  for (let m = 1; m <= 12; m++) if (mask & (1 << m)) out.push(m);
-  return out;
-}
-
-// A fit table asks the same season about its measured days once per plant and rule (50 spots × 40
-// plants is 2,000 asks), so each season's days are laid out once as typed columns and the rules
-// count over them without building arrays of days.
-type Measured = {
-  n: number;
-  lows: Float64Array;
-  highs: Float64Array;
-  months: Uint8Array;
-  dayNumbers: Int32Array;
-  lowest: number;
-  highest: number;
-};
-const measuredCache = new WeakMap<SeasonProfile, Measured>();
-function measuredDays(season: SeasonProfile): Measured {
-  let m = measuredCache.get(season);
-  if (!m) {
-    const days = season.days.filter((d) => d.low !== null && d.high !== null);
-    const n = days.length;
-    m = { n, lows: new Float64Array(n), highs: new Float64Array(n), months: new Uint8Array(n), dayNumbers: new Int32Array(n), lowest: Infinity, highest: -Infinity };
-    for (let i = 0; i < n; i++) {
-      const d = days[i];
-      m.lows[i] = d.low!;
-      m.highs[i] = d.high!;
-      m.months[i] = d.month;
-      m.dayNumbers[i] = d.dayNumber;
-      if (d.low! < m.lowest) m.lowest = d.low!;
-      if (d.high! > m.highest) m.highest = d.high!;
-    }
-    measuredCache.set(season, m);
-  }
-  return m;
-}
-
-const noReadings = (rule: string, what: string): RuleResult => ({
-  rule,
-  level: "ok",
-  noData: true,
-  message: `No ${what} readings yet, so this isn't judged.`,
-});
-
-/** Nights against the group's lowest safe night: the rule that decides most fits. */
 export const coldNights: FitRule = (profile, season, t) => {
-  const days = measuredDays(season);
-  if (days.n === 0) return noReadings("cold-nights", "temperature");
-  const lowest = days.lowest;
-  const clearlyUnder = profile.minNightC - t.nightCountMarginC;
-  let cold = 0, clearlyCold = 0, mask = 0;
-  // Counted by night (evening to morning, see NIGHT_START_HOUR), so one cold night is one night.
-  for (const night of season.nights) {
-    if (night.low < profile.minNightC) {
-      cold++;
-      mask |= 1 << night.month;
-      if (night.low < clearlyUnder) clearlyCold++;
-    }
+  if (season.nights.length === 0) return unknown("cold-nights");
+  const { comfortNightC: comfort, damageNightC: damage } = linesOf(profile);
+  const lowest = lowestOf(season);
+  const cold = season.nights.filter((n) => n.low < comfort - t.sensorMarginC);
+  let comfortDh = 0;
+  for (const n of cold) comfortDh += degreeHoursUnder(n.temps, comfort, n.low);
+  const damaged = season.nights.filter((n) => n.low < damage);
+  let damageDh = 0;
+  for (const n of damaged) damageDh += degreeHoursUnder(n.temps, damage, n.low);
+  const miss = { damage: round1(damageDh), comfort: round1(comfortDh) };
+  if (damaged.length > 0) {
+    return {
+      rule: "cold-nights",
+      level: "poor",
+      months: monthKeys(damaged.map((n) => n.month)),
+      miss,
+      facts: [{ kind: "cold-damage", damageC: damage, nights: damaged.length, worst: worstNights(damaged, damage), degreeHours: round1(damageDh) }],
+    };
   }
-  const wants = `this group wants ${c(profile.minNightC)} or more`;
-  if (cold === 0) {
-    return { rule: "cold-nights", level: "ok", message: `Nights stayed at ${c(profile.minNightC)} or above (lowest ${c(lowest)}); ${wants}.` };
+  if (cold.length === 0) return { rule: "cold-nights", level: "good", miss, facts: [{ kind: "cold-ok", comfortC: comfort, lowestC: round1(lowest) }] };
+  const isSeason = densestWindow(cold.map((n) => n.dayNumber), t.seasonWindowDays) >= t.seasonNights;
+  if (!isSeason) {
+    return {
+      rule: "cold-nights",
+      level: "care",
+      months: monthKeys(cold.map((n) => n.month)),
+      miss,
+      facts: [{ kind: "cold-snap", comfortC: comfort, damageC: damage, nights: cold.length, worst: worstNights(cold, comfort), degreeHours: round1(comfortDh) }],
+    };
   }
-  const months = cyclicOrder(maskMonths(mask));
-  const poor = profile.minNightC - lowest > t.nightPoorMarginC || clearlyCold > t.nightPoorCount;
-  const when = `${plural(cold, "night")} ${describeMonths(months)} (lowest ${c(lowest)})`;
+  // The season's months: those with a season's worth of cold nights (pro rata), else all cold months.
+  const byMonth = new Map<number, NightSummary[]>();
+  for (const n of cold) byMonth.set(n.month, [...(byMonth.get(n.month) ?? []), n]);
+  let months = [...byMonth.entries()].filter(([, ns]) => ns.length >= t.seasonNights / 2).map(([m]) => m);
+  if (months.length === 0) months = [...byMonth.keys()];
+  const typical = median(cold.filter((n) => months.includes(n.month)).map((n) => n.low));
   return {
     rule: "cold-nights",
-    level: poor ? "poor" : "care",
-    shortfallC: profile.minNightC - lowest,
+    level: typical < (comfort + damage) / 2 ? "poor" : "care",
     months: monthKeys(months),
-    message: poor
-      ? `Nights fell below ${c(profile.minNightC)} on ${when}; ${wants}. Cold tolerance: ${profile.coldTolerance}.`
-      : cold > t.nightPoorCount
-        ? `Nights ran a touch under ${c(profile.minNightC)} on ${when}, never more than ${c(t.nightCountMarginC)} under — about what a cheap sensor can tell apart; ${wants}. Fine for most plants of the group; watch the tender ones.`
-        : `Nights dipped just under ${c(profile.minNightC)} on ${when}; ${wants}. Moving it back from the glass or bringing it in on the coldest nights may be enough.`,
+    miss,
+    facts: [{ kind: "cold-season", comfortC: comfort, damageC: damage, nights: cold.length, months: cyclicOrder(months), typicalLowC: round1(typical), degreeHours: round1(comfortDh) }],
   };
 };
-
-/** Days against the group's highest comfortable day. */
-export const hotDays: FitRule = (profile, season, t) => {
-  const days = measuredDays(season);
-  if (days.n === 0) return noReadings("hot-days", "temperature");
-  const highest = days.highest;
-  let hot = 0, mask = 0;
-  for (let i = 0; i < days.n; i++) {
-    if (days.highs[i] > profile.maxDayC) {
-      hot++;
-      mask |= 1 << days.months[i];
-    }
-  }
-  if (hot === 0) {
-    return { rule: "hot-days", level: "ok", message: `Days stayed at ${c(profile.maxDayC)} or below (highest ${c(highest)}).` };
-  }
-  const months = cyclicOrder(maskMonths(mask));
-  const poor = highest - profile.maxDayC > t.dayPoorMarginC || hot > t.dayPoorCount;
-  // Groups cued to flower by cool days (Phalaenopsis) lose flowers to heat before they lose health.
-  const flowerCost = profile.flowering.coolPeriod?.maxDayC !== undefined ? ` — ${shortName(profile)} may not spike` : "";
-  return {
-    rule: "hot-days",
-    level: poor ? "poor" : "care",
-    shortfallC: highest - profile.maxDayC,
-    months: monthKeys(months),
-    message:
-      `Days went above ${c(profile.maxDayC)} on ${plural(hot, "day")} ${describeMonths(months)} (highest ${c(highest)})${flowerCost}; ` +
-      `this group is comfortable up to ${c(profile.maxDayC)}.` +
-      (poor ? "" : " Shade at midday and moving air help."),
-  };
-};
-
-const withHumidity = (season: SeasonProfile) => season.year.filter((m) => m.humidity.mean !== null);
-const pct = (x: number) => `${Math.round(x)} %`;
-const range = (lo: number, hi: number) => (Math.round(lo) === Math.round(hi) ? pct(lo) : `${Math.round(lo)}–${pct(hi)}`);
-
-/** Monthly mean humidity against the group's band. Dry air is fixable, so never worse than care. */
-export const humidityBand: FitRule = (profile, season) => {
-  const months = withHumidity(season);
-  if (months.length === 0) return noReadings("humidity", "humidity");
-  const band = `${profile.humidityMin}–${profile.humidityMax} %`;
-  const dry = months.filter((m) => m.humidity.mean! < profile.humidityMin);
-  const damp = months.filter((m) => m.humidity.mean! > profile.humidityMax);
-  const means = months.map((m) => m.humidity.mean!);
-  if (dry.length === 0 && damp.length === 0) {
-    return {
-      rule: "humidity",
-      level: "ok",
-      message: `Humidity averaged ${range(Math.min(...means), Math.max(...means))} month by month, inside this group's ${band}.`,
-    };
-  }
-  const parts: string[] = [];
-  if (dry.length > 0) {
-    const driest = Math.min(...dry.map((m) => m.humidity.mean!));
-    parts.push(
-      `The air averaged as low as ${pct(driest)} ${describeMonths(dry.map((m) => m.month))}; this group wants ${band}. ` +
-        "A tray of wet gravel under the pot, grouping plants together or a room humidifier raises it.",
-    );
-  }
-  if (damp.length > 0) {
-    const dampest = Math.max(...damp.map((m) => m.humidity.mean!));
-    parts.push(
-      `The air averaged up to ${pct(dampest)} ${describeMonths(damp.map((m) => m.month))}, above this group's ${band}; ` +
-        "give it more air movement so leaves dry between waterings.",
-    );
-  }
-  return { rule: "humidity", level: "care", months: monthKeys([...dry, ...damp].map((m) => m.month)), message: parts.join(" ") };
-};
-
-const DLI_UNIT = "mol m⁻² d⁻¹";
-
-/** Daily light integral against the group's band, where the spot has a light sensor. */
-export const lightBand: FitRule = (profile, season, t) => {
-  const months = season.year.filter((m) => m.light.meanDli !== null);
-  if (months.length === 0) {
-    return {
-      rule: "light",
-      level: "ok",
-      noData: true,
-      message: "No light sensor in this spot, so light isn't judged here; an estimate from the window facing is outside this rule.",
-    };
-  }
-  const avg = mean(months.map((m) => m.light.meanDli!));
-  const band = `${formatNumber(profile.dliMin)}–${formatNumber(profile.dliMax)} ${DLI_UNIT}`;
-  const dim = months.filter((m) => m.light.meanDli! < profile.dliMin);
-  const bright = months.filter((m) => m.light.meanDli! > profile.dliMax);
-  const level: RuleLevel =
-    avg < profile.dliMin * t.lightLowPoorFactor || avg > profile.dliMax * t.lightHighPoorFactor
-      ? "poor"
-      : avg < profile.dliMin || avg > profile.dliMax
-        ? "care"
-        : "ok";
-  const basis = `over ${plural(months.length, "month")} with light readings`;
-  const notes: string[] = [];
-  if (dim.length > 0) notes.push(`Too dim ${describeMonths(dim.map((m) => m.month))}.`);
-  if (bright.length > 0) notes.push(`Too bright ${describeMonths(bright.map((m) => m.month))}.`);
-  const advice =
-    level === "ok" ? "" : avg < profile.dliMin ? " A brighter window or a grow light would be needed." : " It needs shade from direct sun here.";
-  return {
-    rule: "light",
-    level,
-    months: monthKeys([...dim, ...bright].map((m) => m.month)),
-    message: `Daily light averaged ${formatNumber(avg)} ${DLI_UNIT} ${basis}; this group wants ${band}.${notes.length ? " " + notes.join(" ") : ""}${advice}`,
-  };
-};
-
-type Part = { level: RuleLevel; message: string; months: number[]; noData?: boolean };
 
 /**
- * The most days meeting the cool-period condition in any run of `window` consecutive calendar days
- * (days without readings count as not meeting it), and the months of those days. The first such
- * window wins a tie.
+ * Warm nights for groups with a maximum night (cool growers): a season of nights above it stops
+ * growth or flowering — poor when the season's typical night is 2 °C or more above it, else care.
  */
-function bestCoolSpell(days: Measured, maxNightC: number, maxDayC: number | undefined, window: number): { best: number; bestMonths: number[] } {
-  const first = days.dayNumbers[0];
-  const flags = new Uint8Array(days.dayNumbers[days.n - 1] - first + 1);
-  for (let i = 0; i < days.n; i++) {
-    if (days.lows[i] <= maxNightC && (maxDayC === undefined || days.highs[i] <= maxDayC)) flags[days.dayNumbers[i] - first] = 1;
+export const warmNights: FitRule = (profile, season, t) => {
+  const { maxNightC } = linesOf(profile);
+  if (maxNightC === undefined) return { rule: "warm-nights", level: "good", facts: [] };
+  if (season.nights.length === 0) return unknown("warm-nights");
+  const warm = season.nights.filter((n) => n.low > maxNightC + t.sensorMarginC);
+  const warmest = Math.max(...season.nights.map((n) => n.low));
+  if (warm.length === 0) return { rule: "warm-nights", level: "good", facts: [{ kind: "warm-nights-ok", maxNightC, warmestLowC: round1(warmest) }] };
+  const isSeason = densestWindow(warm.map((n) => n.dayNumber), t.seasonWindowDays) >= t.seasonNights;
+  const typical = median(warm.map((n) => n.low));
+  const months = cyclicOrder(warm.map((n) => n.month));
+  const comfortDh = warm.reduce((s, n) => s + Math.max(0, n.low - maxNightC) * Math.max(1, n.hoursObserved), 0);
+  return {
+    rule: "warm-nights",
+    level: !isSeason ? "good" : typical >= maxNightC + 2 ? "poor" : "care",
+    months: monthKeys(months),
+    miss: { damage: 0, comfort: round1(comfortDh) },
+    facts: [{ kind: "warm-nights", maxNightC, nights: warm.length, months, typicalLowC: round1(typical), season: isSeason }],
+  };
+};
+
+/** Days against the comfortable day and the heat damage line, as for nights. */
+export const hotDays: FitRule = (profile, season, t) => {
+  const days = season.days.filter((d) => d.high !== null);
+  if (days.length === 0) return unknown("hot-days");
+  const { comfortDayC: comfort, damageDayC: damage } = linesOf(profile);
+  const costsSpikes = profile.flowering.coolPeriod?.maxDayC !== undefined;
+  const highest = Math.max(...days.map((d) => d.high!));
+  const hot = days.filter((d) => d.high! > comfort + t.sensorMarginC);
+  // Hourly means never exceed the day's high, so only days whose high passed the line are read hour by hour.
+  const damaged = days.filter((d) => d.high! > damage && (d.temps?.length ? hoursOver(d.temps, damage) > 0 : true));
+  const episodes = (list: typeof days, line: number): Episode[] =>
+    [...list]
+      .sort((a, b) => b.high! - a.high! || a.dayNumber - b.dayNumber)
+      .slice(0, 3)
+      .map((d) => ({ date: d.key, valueC: round1(d.high!), hours: Math.max(1, hoursOver(d.temps, line)) }));
+  let comfortDh = 0, damageDh = 0;
+  for (const d of hot) comfortDh += degreeHoursOver(d.temps, comfort, d.high!);
+  for (const d of damaged) damageDh += degreeHoursOver(d.temps, damage, d.high!);
+  const miss = { damage: round1(damageDh), comfort: round1(comfortDh) };
+  if (damaged.length > 0) {
+    return {
+      rule: "hot-days",
+      level: "poor",
+      months: monthKeys(damaged.map((d) => d.month)),
+      miss,
+      facts: [{ kind: "heat-damage", damageC: damage, days: damaged.length, worst: episodes(damaged, damage), degreeHours: round1(damageDh) }],
+    };
   }
-  const width = Math.min(window, flags.length);
+  if (hot.length === 0) return { rule: "hot-days", level: "good", miss, facts: [{ kind: "heat-ok", comfortC: comfort, highestC: round1(highest) }] };
+  const isSeason = densestWindow(hot.map((d) => d.dayNumber), t.seasonWindowDays) >= t.seasonNights;
+  if (!isSeason) {
+    return {
+      rule: "hot-days",
+      level: "care",
+      months: monthKeys(hot.map((d) => d.month)),
+      miss,
+      facts: [{ kind: "heat-snap", comfortC: comfort, damageC: damage, days: hot.length, worst: episodes(hot, comfort), degreeHours: round1(comfortDh), costsSpikes }],
+    };
+  }
+  const typical = median(hot.map((d) => d.high!));
+  const months = cyclicOrder(hot.map((d) => d.month));
+  return {
+    rule: "hot-days",
+    level: typical > (comfort + damage) / 2 ? "poor" : "care",
+    months: monthKeys(months),
+    miss,
+    facts: [{ kind: "heat-season", comfortC: comfort, damageC: damage, days: hot.length, months, typicalHighC: round1(typical), degreeHours: round1(comfortDh), costsSpikes }],
+  };
+};
+
+/** Each month's daily humidity minimums, sorted, once per season. */
+const humidityCache = new WeakMap<SeasonProfile, { byMonth: number[][]; lowest: number; count: number }>();
+function dailyHumidity(season: SeasonProfile) {
+  let h = humidityCache.get(season);
+  if (!h) {
+    const byMonth: number[][] = Array.from({ length: 13 }, () => []);
+    let lowest = Infinity, count = 0;
+    for (const d of season.days) {
+      if (d.rhLow === undefined || d.rhLow === null) continue;
+      byMonth[d.month].push(d.rhLow);
+      lowest = Math.min(lowest, d.rhLow);
+      count++;
+    }
+    for (const list of byMonth) list.sort((a, b) => a - b);
+    humidityCache.set(season, (h = { byMonth, lowest, count }));
+  }
+  return h;
+}
+
+/**
+ * Humidity by its dry part of the day: each day's lowest reading against the group's minimum. A
+ * month where that happens on a quarter of its days or more asks for care; the monthly mean would
+ * hide a heated room's 30 % afternoons behind its 70 % nights. Dry air is fixable (a tray, grouping,
+ * a humidifier), so never worse than care. Damp air: the monthly mean over the group's maximum.
+ */
+export const humidityBand: FitRule = (profile, season, t) => {
+  const { byMonth, lowest: lowestDaily, count } = dailyHumidity(season);
+  const months = season.year.filter((m) => m.humidity.mean !== null);
+  if (months.length === 0 && count === 0) return unknown("humidity");
+  const facts: Fact[] = [];
+  const dryMonths: number[] = [];
+  const dryDayMins: number[] = [];
+  let dryDays = 0, daysInDryMonths = 0;
+  for (let m = 1; m <= 12; m++) {
+    const mins = byMonth[m];
+    if (mins.length === 0) continue;
+    // Sorted ascending: the dry days are a prefix.
+    let dry = 0;
+    while (dry < mins.length && mins[dry] < profile.humidityMin) dry++;
+    if (dry / mins.length >= t.dryDayShare) {
+      dryMonths.push(m);
+      dryDays += dry;
+      daysInDryMonths += mins.length;
+      for (let i = 0; i < dry; i++) dryDayMins.push(mins[i]);
+    }
+  }
+  if (dryMonths.length > 0) {
+    facts.push({
+      kind: "humidity-dry",
+      minPct: profile.humidityMin,
+      dryDays,
+      days: daysInDryMonths,
+      months: cyclicOrder(dryMonths),
+      typicalDailyMinPct: Math.round(median(dryDayMins)),
+      lowestPct: Math.round(Math.min(...dryDayMins)),
+    });
+  }
+  const damp = months.filter((m) => m.humidity.mean! > profile.humidityMax);
+  if (damp.length > 0) {
+    facts.push({ kind: "humidity-damp", maxPct: profile.humidityMax, months: cyclicOrder(damp.map((m) => m.month)), meanPct: Math.round(Math.max(...damp.map((m) => m.humidity.mean!))) });
+  }
+  if (facts.length === 0) {
+    const lowest = count ? lowestDaily : Math.min(...months.map((m) => m.humidity.lowest ?? m.humidity.mean!));
+    return { rule: "humidity", level: "good", facts: [{ kind: "humidity-ok", minPct: profile.humidityMin, maxPct: profile.humidityMax, lowestDailyMinPct: Math.round(lowest) }] };
+  }
+  return { rule: "humidity", level: "care", months: monthKeys([...dryMonths, ...damp.map((m) => m.month)]), facts };
+};
+
+/**
+ * Daily light integral month by month against the group's band: too dim and too bright. The yearly
+ * mean would hide 19 mol in June and 3 in December. Low-light groups far over their maximum in
+ * several months scorch (poor); the rest asks for care (a grow light, a sheer curtain). Light that
+ * isn't measured is `unknown`, never fine.
+ */
+export const lightBand: FitRule = (profile, season, t) => {
+  const measured = season.year.filter((m) => m.light.meanDli !== null && m.light.daysWithLight > 0);
+  if (measured.length === 0) return { rule: "light", level: "unknown", noData: true, facts: [] };
+  const months = measured.map((m) => ({ month: m.month, dli: round1(m.light.meanDli!) }));
+  // A lux chip that clips in direct sun reads low: a clipped month isn't called dim on its word.
+  const clipped = measured.filter((m) => (m.light as { luxClipped?: number | boolean }).luxClipped).map((m) => m.month);
+  const dim = months.filter((m) => m.dli < profile.dliMin * (1 - t.lightEdgeShare) && !clipped.includes(m.month)).map((m) => m.month);
+  const bright = months.filter((m) => m.dli > profile.dliMax * (1 + t.lightEdgeShare)).map((m) => m.month);
+  const scorch = months.filter((m) => m.dli > profile.dliMax * t.lightFarFactor).map((m) => m.month);
+  // Winter is dim at any window at high latitudes; what rules a group out is a growing season far
+  // too dim: most of April–September (October–March in the south) under dliMin ÷ lightFarFactor.
+  const growing = hemisphereMonths([4, 5, 6, 7, 8, 9], season);
+  const farDim = months.filter((m) => growing.includes(m.month) && !clipped.includes(m.month) && m.dli < profile.dliMin / t.lightFarFactor).map((m) => m.month);
+  const unmeasured = [1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12].filter((m) => !measured.some((x) => x.month === m));
+  const facts: Fact[] = [{ kind: "light-months", minDli: profile.dliMin, maxDli: profile.dliMax, months, dim, bright, scorch, unmeasured }];
+  if (clipped.length) facts.push({ kind: "light-clipped", months: clipped });
+  const level: RuleLevel =
+    (profile.light === "low" && scorch.length >= t.scorchPoorMonths) || farDim.length >= 4
+      ? "poor"
+      : dim.length || bright.length
+        ? "care"
+        : unmeasured.length
+          ? "unknown"
+          : "good";
+  return { rule: "light", level, months: monthKeys([...dim, ...bright]), facts };
+};
+
+/**
+ * The best stretch of `weeks` weeks (within the cue months, when the group has them) in which
+ * enough days meet the cool-period condition. Returns the count of qualifying days and their months.
+ */
+function bestCoolSpell(
+  season: SeasonProfile,
+  cond: (d: { low: number; high: number }) => boolean,
+  inSeason: (month: number) => boolean,
+  weeks: number,
+): { best: number; months: number[] } {
+  const days = season.days.filter((d) => d.low !== null && d.high !== null);
+  if (days.length === 0) return { best: 0, months: [] };
+  const first = days[0].dayNumber;
+  const flags = new Uint8Array(days.at(-1)!.dayNumber - first + 1);
+  const monthAt = new Uint8Array(flags.length);
+  for (const d of days) {
+    monthAt[d.dayNumber - first] = d.month;
+    if (inSeason(d.month) && cond({ low: d.low!, high: d.high! })) flags[d.dayNumber - first] = 1;
+  }
+  const width = Math.min(weeks * 7, flags.length);
   let count = 0, best = 0, bestEnd = width - 1;
   for (let i = 0; i < flags.length; i++) {
     count += flags[i] - (i >= width ? flags[i - width] : 0);
@@ -333,134 +450,138 @@ function bestCoolSpell(days: Measured, maxNightC: number, maxDayC: number | unde
       bestEnd = i;
     }
   }
-  let mask = 0;
-  for (let i = 0; i < days.n; i++) {
-    const at = days.dayNumbers[i] - first;
-    if (flags[at] && at > bestEnd - width && at <= bestEnd) mask |= 1 << days.months[i];
-  }
-  return { best, bestMonths: maskMonths(mask) };
+  const months = new Set<number>();
+  for (let i = Math.max(0, bestEnd - width + 1); i <= bestEnd; i++) if (flags[i]) months.add(monthAt[i]);
+  return { best, months: cyclicOrder([...months]) };
 }
 
-/** Best stretch of `weeks` weeks in which enough days meet the cool-period condition. */
-function coolSpell(profile: PlantProfile, season: SeasonProfile, t: FitThresholds): Part {
-  const cp = profile.flowering.coolPeriod!;
-  const name = shortName(profile);
-  const days = measuredDays(season);
-  const condition =
-    cp.maxDayC === undefined
-      ? `nights at or below ${c(cp.maxNightC)}`
-      : `days at or below ${c(cp.maxDayC)} with nights at or below ${c(cp.maxNightC)}`;
-  if (days.n === 0) return { level: "ok", noData: true, months: [], message: `No readings yet to tell whether it gets ${condition}.` };
-  const window = cp.weeks * 7;
-  const { best, bestMonths } = bestCoolSpell(days, cp.maxNightC, cp.maxDayC, window);
-  const needed = Math.ceil(window * t.coolSpellShare);
-  const during = cp.months ? ` (${cp.months})` : "";
-  if (best >= needed) {
-    return {
-      level: "ok",
-      months: cyclicOrder(bestMonths),
-      message: `It gets its cool spell: ${condition} on ${best} of ${window} days ${describeMonths(bestMonths)}, enough for ${name} to flower.`,
-    };
+const swingCache = new WeakMap<SeasonProfile, Map<number, { month: number; difC: number }[]>>();
+/** Each month's typical (median) day–night difference, the day's high minus its low, once per season. */
+function monthlySwings(season: SeasonProfile, minDays: number) {
+  let byMin = swingCache.get(season);
+  if (!byMin) swingCache.set(season, (byMin = new Map()));
+  let out = byMin.get(minDays);
+  if (!out) {
+    const swings: number[][] = Array.from({ length: 13 }, () => []);
+    for (const d of season.days) if (d.low !== null && d.high !== null) swings[d.month].push(d.high - d.low);
+    out = [];
+    for (let m = 1; m <= 12; m++) if (swings[m].length >= minDays) out.push({ month: m, difC: round1(median(swings[m])) });
+    byMin.set(minDays, out);
   }
-  if (best === 0) {
-    return {
-      level: "care",
-      months: [],
-      message: `It never had ${condition}; ${name} needs about ${plural(cp.weeks, "week")} of them${during} to flower — it may grow here but not flower.`,
-    };
-  }
-  return {
-    level: "care",
-    months: cyclicOrder(bestMonths),
-    message: `At best ${best} of any ${window} days had ${condition}; ${name} needs about ${plural(cp.weeks, "week")} of them${during} to flower — it may grow here but not flower.`,
-  };
+  return out;
 }
 
-function difNeed(profile: PlantProfile, season: SeasonProfile, t: FitThresholds): Part {
-  const need = profile.flowering.difC!;
-  const name = shortName(profile);
-  const months = season.year.filter(
-    (m): m is MonthOfYearProfile & { temperature: { meanDayNightDifference: number } } =>
-      m.temperature.meanDayNightDifference !== null && m.temperature.daysWithDayAndNight >= t.difMinDays,
-  );
-  if (months.length === 0) {
-    return { level: "ok", noData: true, months: [], message: "Not enough days yet to judge the drop from day to night." };
-  }
-  const meeting = months.filter((m) => m.temperature.meanDayNightDifference >= need);
-  const best = Math.max(...months.map((m) => m.temperature.meanDayNightDifference));
-  if (meeting.length > 0) {
-    return {
-      level: "ok",
-      months: meeting.map((m) => m.month),
-      message: `Days ran up to ${c(best)} warmer than nights, meeting the ${c(need)} ${name} flowers best with ${describeMonths(meeting.map((m) => m.month))}.`,
-    };
-  }
-  return {
-    level: "care",
-    months: [],
-    message: `Days ran at most ${c(best)} warmer than nights in any month; ${name} flowers best with about ${c(need)} — it may grow but flower poorly.`,
-  };
-}
-
-/** The day–night difference or cool period the group needs to flower. Missing it costs flowers, not the plant: care at worst. */
+/**
+ * The flowering cue in its season (cool nights or cool days for some weeks, in the months the cue
+ * counts) and the day–night difference as the day's high minus its low, month by month. Missing
+ * them costs flowers, not the plant: care at worst.
+ */
 export const floweringNeeds: FitRule = (profile, season, t) => {
-  const parts: Part[] = [];
-  if (profile.flowering.coolPeriod) parts.push(coolSpell(profile, season, t));
-  if (profile.flowering.difC !== undefined) parts.push(difNeed(profile, season, t));
-  if (parts.length === 0) {
-    return { rule: "flowering", level: "ok", message: `No temperature cue needed to flower. ${profile.flowering.note}` };
+  const days = season.days.filter((d) => d.low !== null && d.high !== null);
+  const cool = profile.flowering.coolPeriod;
+  const need = profile.flowering.difC;
+  if (!cool && need === undefined) return { rule: "flowering", level: "good", facts: [{ kind: "cue-none" }] };
+  if (days.length === 0) return unknown("flowering");
+  const facts: Fact[] = [];
+  const levels: RuleLevel[] = [];
+  const months: number[] = [];
+  if (cool) {
+    const cond = (d: { low: number; high: number }) => (cool.maxNightC === undefined || d.low <= cool.maxNightC) && (cool.maxDayC === undefined || d.high <= cool.maxDayC);
+    const cueMonths = cool.cueMonths ? hemisphereMonths(cool.cueMonths, season) : null;
+    const inSeason = (m: number) => !cueMonths || cueMonths.includes(m);
+    const needDays = Math.ceil(cool.weeks * 7 * t.coolSpellShare);
+    const hit = bestCoolSpell(season, cond, inSeason, cool.weeks);
+    const dryRest = cool.dryRest ?? false;
+    if (hit.best >= needDays) {
+      facts.push({ kind: "cue-met", maxNightC: cool.maxNightC, maxDayC: cool.maxDayC, weeks: cool.weeks, months: hit.months, days: hit.best, dryRest });
+      levels.push("good");
+      months.push(...hit.months);
+    } else {
+      // Where the cool spell comes out of season, the months it does come (half their days or more).
+      const anyTime = cueMonths ? bestCoolSpell(season, cond, () => true, cool.weeks) : { best: 0, months: [] };
+      const coolMonths: number[] = [];
+      if (anyTime.best >= needDays) {
+        for (let m = 1; m <= 12; m++) {
+          const inMonth = days.filter((d) => d.month === m);
+          if (inMonth.length && inMonth.filter((d) => cond({ low: d.low!, high: d.high! })).length * 2 >= inMonth.length) coolMonths.push(m);
+        }
+      }
+      facts.push({
+        kind: "cue-missed",
+        maxNightC: cool.maxNightC,
+        maxDayC: cool.maxDayC,
+        weeks: cool.weeks,
+        bestDays: hit.best,
+        cueMonths: cueMonths ? cyclicOrder(cueMonths) : [],
+        outOfSeason: cyclicOrder(coolMonths),
+        dryRest,
+      });
+      levels.push("care");
+    }
   }
-  const months = [...new Set(parts.flatMap((p) => p.months))];
-  return {
-    rule: "flowering",
-    level: worstLevel(parts.map((p) => p.level)),
-    message: parts.map((p) => p.message).join(" "),
-    ...(months.length ? { months: monthKeys(months) } : {}),
-    ...(parts.every((p) => p.noData) ? { noData: true } : {}),
-  };
+  if (need !== undefined) {
+    const byMonth = monthlySwings(season, t.difMinDays);
+    const meeting = byMonth.filter((x) => x.difC >= need - t.sensorMarginC);
+    if (byMonth.length === 0) levels.push("unknown");
+    else if (meeting.length > 0) {
+      facts.push({ kind: "dif-met", needC: need, months: meeting });
+      levels.push("good");
+      months.push(...meeting.map((x) => x.month));
+    } else {
+      const best = byMonth.reduce((a, b) => (b.difC > a.difC ? b : a));
+      facts.push({ kind: "dif-missed", needC: need, bestC: best.difC, bestMonth: best.month });
+      levels.push("care");
+    }
+  }
+  return { rule: "flowering", level: worstLevel(levels), facts, ...(months.length ? { months: monthKeys(months) } : {}) };
 };
 
-/** Hours within 2 °C of the dew point: wet glass and leaves, a fungal and rot risk. */
-export const condensation: FitRule = (_profile, season, t) => {
+/**
+ * Time the air spent within CONDENSATION_MARGIN_C of its dew point (the season profile counts it as
+ * time under the margin). A 2 K margin is about 88 % RH, so for a group whose own range reaches that
+ * (Masdevallia, Nepenthes) damp air is expected and the advice is air movement, not a warning.
+ */
+export const condensation: FitRule = (profile, season, t) => {
   const months = season.year.filter((m) => m.coverage.hoursObserved > 0);
-  if (months.length === 0) return noReadings("condensation", "temperature and humidity");
-  const total = months.reduce((n, m) => n + m.condensationHours, 0);
+  if (months.length === 0) return unknown("condensation");
+  const total = round1(months.reduce((n, m) => n + m.condensationHours, 0));
   const share = (m: MonthOfYearProfile) => m.condensationHours / m.coverage.hoursObserved;
   const wet = months.filter((m) => share(m) >= t.condensationCareShare);
-  const margin = c(CONDENSATION_MARGIN_C);
-  if (wet.length === 0) {
-    return {
-      rule: "condensation",
-      level: "ok",
-      message: `The air came within ${margin} of the dew point for ${plural(total, "hour")} in all — little risk of wet leaves.`,
-    };
-  }
+  if (wet.length === 0) return { rule: "condensation", level: "good", facts: [{ kind: "condensation-ok", hours: total, marginC: CONDENSATION_MARGIN_C }] };
   const worst = wet.reduce((a, b) => (share(b) > share(a) ? b : a));
+  const expected = profile.humidityMax >= 88;
   return {
     rule: "condensation",
-    level: "care",
+    level: expected ? "good" : "care",
     months: monthKeys(wet.map((m) => m.month)),
-    message:
-      `The air sat within ${margin} of the dew point for ${plural(total, "hour")}, most ${describeMonths(wet.map((m) => m.month))} ` +
-      `(${Math.round(share(worst) * 100)} % of the hours in ${worst.name}): glass and leaves stay wet, which invites rot and fungal spots. ` +
-      "More air movement and watering early in the day help.",
+    facts: [
+      {
+        kind: "condensation-wet",
+        hours: total,
+        marginC: CONDENSATION_MARGIN_C,
+        months: cyclicOrder(wet.map((m) => m.month)),
+        worstMonth: worst.month,
+        worstShare: Math.round(share(worst) * 100) / 100,
+        expected,
+      },
+    ],
   };
 };
 
-export const FIT_RULES: FitRule[] = [coldNights, hotDays, humidityBand, lightBand, floweringNeeds, condensation];
+export const FIT_RULES: FitRule[] = [coldNights, warmNights, hotDays, humidityBand, lightBand, floweringNeeds, condensation];
 
 /**
  * What each rule reads of a plant profile. Plants alike in these get the same result in the same
- * season, so a fit table (many spots × a library whose groups share their limits, plus the site's
- * copies of them) judges each distinct case once. A rule added without an entry is never shared.
+ * season, so a fit table judges each distinct case once. A rule added without an entry is never shared.
  */
 const RULE_INPUTS = new Map<FitRule, (p: PlantProfile) => string>([
-  [coldNights, (p) => `${p.minNightC}|${p.coldTolerance}`],
-  [hotDays, (p) => `${p.maxDayC}|${p.flowering.coolPeriod?.maxDayC !== undefined}|${shortName(p)}`],
+  [coldNights, (p) => `${p.minNightC}|${linesOf(p).damageNightC}`],
+  [warmNights, (p) => `${p.maxNightC}`],
+  [hotDays, (p) => `${p.maxDayC}|${linesOf(p).damageDayC}|${p.flowering.coolPeriod?.maxDayC !== undefined}`],
   [humidityBand, (p) => `${p.humidityMin}|${p.humidityMax}`],
-  [lightBand, (p) => `${p.dliMin}|${p.dliMax}`],
-  [floweringNeeds, (p) => `${JSON.stringify(p.flowering)}|${shortName(p)}`],
-  [condensation, () => ""],
+  [lightBand, (p) => `${p.dliMin}|${p.dliMax}|${p.light}`],
+  [floweringNeeds, (p) => JSON.stringify(p.flowering)],
+  [condensation, (p) => `${p.humidityMax >= 88}`],
 ]);
 
 const judged = new WeakMap<SeasonProfile, WeakMap<FitThresholds, Map<string, RuleResult>>>();

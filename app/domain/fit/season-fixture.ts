@@ -10,6 +10,8 @@ export type MonthSpec = {
   night: number; // °C in hours whose midpoint is outside sunrise–sunset
   day: number; // °C in sun-up hours
   rh?: number; // % all month
+  rhDay?: number; // % in sun-up hours (overrides rh by day)
+  rhNight?: number; // % in the other hours
   lux?: number; // sun-up hours only; undefined: no light sensor
   dpMargin?: number; // °C all month
 };
@@ -56,7 +58,7 @@ export function spotYear(spec: SpotYearSpec = {}): SeasonProfile {
     const up = ms + HOUR / 2 >= rise && ms + HOUR / 2 < set;
     const patch = patches.get(`${month}-${d.getUTCDate()}-${d.getUTCHours()}`) ?? {};
     const t = patch.t ?? (up ? m.day : m.night);
-    const rh = patch.rh ?? m.rh ?? 60;
+    const rh = patch.rh ?? (up ? m.rhDay : m.rhNight) ?? m.rh ?? 60;
     const lux = m.lux === undefined ? undefined : up ? m.lux : 0;
     rollups.push({
       hour: d,

@@ -34,6 +34,11 @@ describe("planWishlist", () => {
     expect(plan.spots.find((s) => s.id === 3)!.free).toBeNull();
   });
 
+  it("does not make a home of a spot that suits it for part of the year only (a summer bench)", () => {
+    const plan = planWishlist(spots, [wish("f", true, 1, [{ spotId: 3, verdict: "good for part of the year" }, { spotId: 2, verdict: "struggles here" }])]);
+    expect(plan.wishes[0]).toMatchObject({ placed: null, best: { spotId: 3 }, note: "No spot suits it all year; the best suits it for part of the year." });
+  });
+
   it("says when no suitable spot has room", () => {
     const plan = planWishlist(spots, [wish("e", true, 5, [{ spotId: 2, verdict: "thrives here" }, { spotId: 1, verdict: "possible with care" }])]);
     expect(plan.wishes[0]).toMatchObject({ placed: null, note: "No room left in a spot that suits it (Kitchen sill has no room left)." });

@@ -31,8 +31,11 @@ export type WishPlan = {
 
 export type SpotRoom = WishSpot & { mustHavePots: number; otherPots: number; free: number | null; filledByMustHaves: boolean };
 
-/** A plant can go in a spot when the verdict is not "struggles here". "Not enough data yet" counts, with its caveat shown. */
-const usable = (v: Verdict) => v !== "struggles here";
+/**
+ * A plant can stand in a spot when the verdict is not "struggles here" nor "good for part of the
+ * year" (a summer bench is no home for the winter). "Not enough data yet" counts, with its caveat shown.
+ */
+const usable = (v: Verdict) => v !== "struggles here" && v !== "good for part of the year";
 
 export function planWishlist(spots: WishSpot[], wishes: Wish[]): { wishes: WishPlan[]; spots: SpotRoom[] } {
   const room = new Map(spots.map((s) => [s.id, { ...s, mustHavePots: 0, otherPots: 0 }]));
@@ -49,7 +52,12 @@ export function planWishlist(spots: WishSpot[], wishes: Wish[]): { wishes: WishP
     const fits = [...w.fits].filter((f) => room.has(f.spotId)).sort((a, b) => VERDICT_ORDER.indexOf(a.verdict) - VERDICT_ORDER.indexOf(b.verdict));
     const best = fits[0] ?? null;
     if (!best || !usable(best.verdict)) {
-      plans[i] = { plantKey: w.plantKey, best, placed: null, note: best ? "No spot suits it yet." : "No spots to judge yet." };
+      plans[i] = {
+        plantKey: w.plantKey,
+        best,
+        placed: null,
+        note: !best ? "No spots to judge yet." : best.verdict === "good for part of the year" ? "No spot suits it all year; the best suits it for part of the year." : "No spot suits it yet.",
+      };
       continue;
     }
     const placed = fits.find((f) => usable(f.verdict) && freeIn(f.spotId) >= w.pots) ?? null;

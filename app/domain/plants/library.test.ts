@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { CATEGORY_NIGHTS, PLANT_LIBRARY, SOURCED_FIELDS, categoryForNight, plantByKey } from "~/domain/plants/library";
+import { CATEGORY_NIGHTS, DLI_BANDS, PLANT_LIBRARY, SOURCED_FIELDS, categoryForNight, plantByKey } from "~/domain/plants/library";
 
 describe("plant library", () => {
   it("holds at least 22 profiles with unique keys", () => {
@@ -73,5 +73,46 @@ describe("plant library", () => {
     expect(plantByKey("cattleya")!.flowering.difC).toBeGreaterThanOrEqual(8);
     // Reid (1991): chilling injury below 7–10 °C, so warm groups keep safe nights above 10 °C.
     for (const p of PLANT_LIBRARY.filter((q) => q.category === "warm")) expect(p.minNightC).toBeGreaterThan(10);
+  });
+});
+
+describe("plant library: two lines per limit (issue 15)", () => {
+  it("gives every group a damage line beyond its comfort range, with a source", () => {
+    for (const p of PLANT_LIBRARY) {
+      expect(p.damageNightC, p.key).toBeLessThan(p.minNightC);
+      expect(p.damageDayC, p.key).toBeGreaterThan(p.maxDayC);
+      if (p.maxNightC !== undefined) expect(p.maxNightC, p.key).toBeGreaterThan(p.minNightC);
+      expect(p.sources.some((s) => s.field.startsWith("damageNightC")), p.key).toBe(true);
+    }
+  });
+
+  it("keeps each group's DLI range inside its light class band, and says so in the source", () => {
+    for (const p of PLANT_LIBRARY) {
+      const band = DLI_BANDS[p.light];
+      expect(p.dliMin, p.key).toBeGreaterThanOrEqual(band.min);
+      expect(p.dliMax, p.key).toBeLessThanOrEqual(band.max);
+      expect(p.sources.find((s) => s.field === "dliMin/dliMax")?.source, p.key).toContain(`${band.min}–${band.max}`);
+    }
+  });
+
+  it("has Odontoglossum as a cool grower, and Masdevallia's warm-night and heat lines", () => {
+    const odm = plantByKey("odontoglossum")!;
+    expect(odm).toMatchObject({ category: "cool" });
+    expect(odm.maxDayC).toBeLessThanOrEqual(24);
+    expect(plantByKey("oncidium")!.name).not.toContain("Odontoglossum");
+    expect(plantByKey("masdevallia")).toMatchObject({ maxNightC: 16, damageDayC: 27 });
+  });
+
+  it("no longer contradicts itself on Maudiae's cold line", () => {
+    const maudiae = plantByKey("paphiopedilum-mottled")!;
+    expect(maudiae.coldTolerance).not.toMatch(/sulks below 13/);
+    expect(maudiae.damageNightC).toBeLessThan(13);
+  });
+
+  it("cues flowering in season: Cymbidium late summer–autumn, nobile Dendrobium a dry winter rest, Phalaenopsis by days alone", () => {
+    expect(plantByKey("cymbidium")!.flowering.coolPeriod!.cueMonths).toEqual([8, 9, 10, 11]);
+    expect(plantByKey("dendrobium-nobile")!.flowering.coolPeriod).toMatchObject({ dryRest: true });
+    expect(plantByKey("phalaenopsis")!.flowering.coolPeriod).toMatchObject({ maxDayC: 26 });
+    expect(plantByKey("phalaenopsis")!.flowering.coolPeriod!.maxNightC).toBeUndefined();
   });
 });

@@ -1,7 +1,8 @@
 export type TemperatureCategory = "cool" | "intermediate" | "warm";
 
 export type CoolPeriod = {
-  maxNightC: number;
+  /** Nights at or under this count towards the cue (absent: nights don't matter). */
+  maxNightC?: number;
   /**
    * Extension beyond night temperature: some groups (Phalaenopsis) are cued by cool days, not
    * cool nights — Blanchard & Runkle (2006).
@@ -9,15 +10,29 @@ export type CoolPeriod = {
   maxDayC?: number;
   weeks: number;
   months?: string; // in words, hemisphere-neutral: "late summer into autumn"
+  /**
+   * Months (1–12, northern hemisphere; shifted six months in the south) in which the cue counts:
+   * a cool spell outside them comes too early or too late. Absent: any month.
+   */
+  cueMonths?: number[];
+  /** The rest must be kept nearly dry (nobile Dendrobium, Pleione, Coelogyne cristata). */
+  dryRest?: boolean;
 };
 
 export type PlantProfile = {
   key: string;
   name: string;
   group: "orchid" | "other";
+  /** An orchid term: shown for orchids only (group "orchid"); kept on others for filters and own profiles. */
   category: TemperatureCategory;
-  minNightC: number; // lowest safe night
-  maxDayC: number; // highest comfortable day
+  minNightC: number; // lowest comfortable night: the bottom of the comfort range
+  maxDayC: number; // highest comfortable day: the top of the comfort range
+  /** Cold damage line, °C: below it the plant is harmed (chilling or frost), not just slowed. Absent: minNightC − 4. */
+  damageNightC?: number;
+  /** Heat damage line, °C: above it the plant is harmed. Absent: maxDayC + 4. */
+  damageDayC?: number;
+  /** Highest comfortable night, °C, for cool growers: a season of warmer nights stops growth or flowering. */
+  maxNightC?: number;
   humidityMin: number;
   humidityMax: number; // % band
   light: "low" | "medium" | "high";
@@ -71,7 +86,7 @@ const dli = (note = "common practice"): Source => ({
 });
 const memo = (field: string, source: string): Source => ({ field, source, memory: true });
 
-export const PLANT_LIBRARY: PlantProfile[] = [
+const BASE_LIBRARY: PlantProfile[] = [
   {
     key: "phalaenopsis",
     name: "Phalaenopsis (moth orchid)",
@@ -85,7 +100,7 @@ export const PLANT_LIBRARY: PlantProfile[] = [
     dliMin: 4,
     dliMax: 8,
     flowering: {
-      coolPeriod: { maxNightC: 18, maxDayC: 26, weeks: 4, months: "late summer into autumn" },
+      coolPeriod: { maxDayC: 26, weeks: 4, months: "any time of year, usually autumn" },
       note:
         "Spikes are set by cooler days: spikes formed at 20/14 and 23/17 °C day/night and none at 29 °C days. A few weeks of days under about 26 °C usually bring a spike.",
     },
@@ -120,7 +135,7 @@ export const PLANT_LIBRARY: PlantProfile[] = [
     dliMin: 3,
     dliMax: 6,
     flowering: { note: "No temperature cue needed; flowers when mature and given steady warmth." },
-    coldTolerance: "tolerates a brief night near 8 °C if kept dry; sulks below 13 °C",
+    coldTolerance: "grows best with nights of 16 °C or more; a spell of nights under about 13 °C stops growth; a brief night near 10 °C is survived if kept dry",
     summary: "A slipper orchid for a warm, shaded windowsill that stays evenly moist.",
     sources: [
       CATEGORY,
@@ -130,7 +145,7 @@ export const PLANT_LIBRARY: PlantProfile[] = [
       aos("light", "Paphiopedilum: shady east or west window", true),
       dli(),
       memo("flowering", "no temperature cue for mottled types (memory)"),
-      memo("coldTolerance", "AOS sheet: can stand nights in the 40s °F briefly (memory of the wording)"),
+      memo("coldTolerance", "AOS sheet: warm types want 60–65 °F nights; a brief cooler night is survived (memory of the wording); the 13 °C growth line and 10 °C damage line are ours"),
     ],
   },
   {
@@ -146,7 +161,7 @@ export const PLANT_LIBRARY: PlantProfile[] = [
     dliMin: 4,
     dliMax: 8,
     flowering: {
-      coolPeriod: { maxNightC: 13, weeks: 4, months: "autumn" },
+      coolPeriod: { maxNightC: 13, weeks: 4, months: "autumn", cueMonths: [9, 10, 11] },
       note: "Cool autumn nights help the large complex hybrids set buds.",
     },
     coldTolerance: "takes nights near 7 °C; damaged by frost",
@@ -190,7 +205,7 @@ export const PLANT_LIBRARY: PlantProfile[] = [
   },
   {
     key: "oncidium",
-    name: "Oncidium alliance (Oncidium, Odontoglossum hybrids and kin)",
+    name: "Oncidium alliance (Oncidium and its warm-tolerant hybrids)",
     group: "orchid",
     category: "intermediate",
     minNightC: 13,
@@ -227,7 +242,7 @@ export const PLANT_LIBRARY: PlantProfile[] = [
     dliMin: 15,
     dliMax: 30,
     flowering: {
-      coolPeriod: { maxNightC: 13, weeks: 4, months: "late summer into autumn" },
+      coolPeriod: { maxNightC: 13, weeks: 4, months: "late summer into autumn", cueMonths: [8, 9, 10, 11] },
       note: "Needs weeks of cool autumn nights (about 10–13 °C) to spike; in a room that never cools it grows but may not flower.",
     },
     coldTolerance: "takes nights near 2–4 °C without frost; frost kills",
@@ -257,7 +272,7 @@ export const PLANT_LIBRARY: PlantProfile[] = [
     dliMin: 12,
     dliMax: 25,
     flowering: {
-      coolPeriod: { maxNightC: 10, weeks: 4, months: "autumn to early winter, kept nearly dry" },
+      coolPeriod: { maxNightC: 10, weeks: 4, months: "autumn to early winter, kept nearly dry", cueMonths: [10, 11, 12, 1], dryRest: true },
       note: "Needs a cool, dry winter rest (nights about 10 °C or a little below) to flower; kept warm and wet it makes plantlets instead.",
     },
     coldTolerance: "takes nights near 5 °C when dry; frost kills",
@@ -416,7 +431,7 @@ export const PLANT_LIBRARY: PlantProfile[] = [
     dliMin: 8,
     dliMax: 15,
     flowering: {
-      coolPeriod: { maxNightC: 10, weeks: 6, months: "winter, kept on the dry side" },
+      coolPeriod: { maxNightC: 10, weeks: 6, months: "winter, kept on the dry side", cueMonths: [11, 12, 1, 2], dryRest: true },
       note: "Needs a cold, fairly dry winter (nights about 5–10 °C) to flower.",
     },
     coldTolerance: "takes nights near 3–5 °C when dry; frost kills",
@@ -471,7 +486,7 @@ export const PLANT_LIBRARY: PlantProfile[] = [
     dliMin: 8,
     dliMax: 14,
     flowering: {
-      coolPeriod: { maxNightC: 5, weeks: 10, months: "winter dormancy, bulbs kept dry" },
+      coolPeriod: { maxNightC: 5, weeks: 10, months: "winter dormancy, bulbs kept dry", cueMonths: [11, 12, 1, 2, 3], dryRest: true },
       note: "Needs a cold, dry winter dormancy just above freezing to flower in spring.",
     },
     coldTolerance: "dormant bulbs take 1–5 °C; hard frost kills",
@@ -498,7 +513,7 @@ export const PLANT_LIBRARY: PlantProfile[] = [
     humidityMax: 70,
     light: "medium",
     dliMin: 10,
-    dliMax: 18,
+    dliMax: 15,
     flowering: { difC: 8, note: "Likes a clear day–night drop, as its Cattleya relatives do." },
     coldTolerance: "tolerates about 10 °C",
     summary: "Tough Cattleya relatives for a bright window, forgiving of dry spells.",
@@ -552,7 +567,7 @@ export const PLANT_LIBRARY: PlantProfile[] = [
     dliMin: 8,
     dliMax: 14,
     flowering: {
-      coolPeriod: { maxNightC: 12, weeks: 6, months: "winter rest" },
+      coolPeriod: { maxNightC: 12, weeks: 6, months: "winter rest", cueMonths: [11, 12, 1, 2] },
       note: "A cool winter rest (nights about 5–12 °C) brings summer flowers.",
     },
     coldTolerance: "winter rest near 5–10 °C; a brief 3 °C is survivable",
@@ -659,7 +674,7 @@ export const PLANT_LIBRARY: PlantProfile[] = [
     dliMin: 6,
     dliMax: 14,
     flowering: {
-      coolPeriod: { maxNightC: 15, weeks: 6, months: "winter" },
+      coolPeriod: { maxNightC: 15, weeks: 6, months: "winter", cueMonths: [11, 12, 1, 2] },
       note: "A cooler, drier winter and bright light help it flower; leave the old flower spurs on.",
     },
     coldTolerance: "damaged below about 7 °C",
@@ -757,6 +772,94 @@ export const PLANT_LIBRARY: PlantProfile[] = [
     ],
   },
 ];
+
+const ODONTOGLOSSUM: PlantProfile = {
+  key: "odontoglossum",
+  name: "Odontoglossum and cool Oncidium-alliance hybrids",
+  group: "orchid",
+  category: "cool",
+  minNightC: 10,
+  maxDayC: 24,
+  humidityMin: 50,
+  humidityMax: 80,
+  light: "medium",
+  dliMin: 6,
+  dliMax: 12,
+  flowering: { note: "No firm cue; flowers on mature growths when kept cool and evenly moist." },
+  coldTolerance: "takes nights near 7 °C; damaged near 4 °C; summer heat over about 29 °C is the real risk",
+  summary: "A cloud-forest orchid with showy sprays for a cool, bright, airy room that stays under about 24 °C.",
+  sources: [
+    CATEGORY,
+    memo("minNightC", "AOS culture guidance for Odontoglossum: cool nights 50–55 °F (10–13 °C) (memory)"),
+    memo("maxDayC", "AOS culture guidance for Odontoglossum: days 70–75 °F (21–24 °C) (memory)"),
+    memo("humidityMin/humidityMax", "AOS culture guidance for Odontoglossum (memory)"),
+    memo("light", "AOS culture guidance: bright shade, as for Oncidium (memory)"),
+    memo("dliMin/dliMax", "from memory"),
+    memo("flowering", "grower experience (memory)"),
+    memo("coldTolerance", "grower experience (memory)"),
+  ],
+};
+
+/**
+ * DLI bands per light class, mol m⁻² d⁻¹ (*memory*, common practice among growers under lights):
+ * each group's own range lies inside its class band; the group's range is from memory.
+ */
+export const DLI_BANDS: Record<PlantProfile["light"], { min: number; max: number }> = {
+  low: { min: 2, max: 8 },
+  medium: { min: 5, max: 15 },
+  high: { min: 10, max: 30 },
+};
+
+type Limits = { damageNightC: number; damageDayC: number; maxNightC?: number; source: string; memory?: boolean };
+/**
+ * Damage lines and maximum nights. Cold damage lines follow each group's cold tolerance above and
+ * Reid (1991) for chilling-sensitive tropicals (7–10 °C); heat lines and maximum nights are from
+ * memory of culture guidance unless named.
+ */
+const LIMITS: Record<string, Limits> = {
+  phalaenopsis: { damageNightC: 10, damageDayC: 35, source: "cold: Reid (1991) chilling below 10 °C; heat 35 °C: AOS 'can stand 95 °F' for warm growers (memory)", memory: true },
+  "paphiopedilum-mottled": { damageNightC: 10, damageDayC: 35, source: "AOS: can stand 95 °F; cold line ours from the sheet's brief cool night (memory)", memory: true },
+  "paphiopedilum-complex": { damageNightC: 4, damageDayC: 35, source: "AOS Paphiopedilum sheet: can stand 95 °F (memory of the wording); cold line from grower experience (memory)", memory: true },
+  cattleya: { damageNightC: 5, damageDayC: 35, source: "cold tolerance above; heat from AOS 'more with shade and humidity' (memory)", memory: true },
+  oncidium: { damageNightC: 8, damageDayC: 35, source: "grower experience (memory)", memory: true },
+  cymbidium: { damageNightC: 2, damageDayC: 35, source: "AOS Cymbidium sheet: takes nights near 35–40 °F without frost (memory of the wording)", memory: true },
+  "dendrobium-nobile": { damageNightC: 3, damageDayC: 35, source: "grower experience (memory)", memory: true },
+  "dendrobium-phalaenanthe": { damageNightC: 10, damageDayC: 38, source: "cold tolerance above; heat from memory", memory: true },
+  vanda: { damageNightC: 10, damageDayC: 38, source: "Reid (1991) chilling below 10 °C; heat from memory", memory: true },
+  miltoniopsis: { damageNightC: 5, damageDayC: 29, maxNightC: 17, source: "AOS guidance: suffers above 80 °F (memory)", memory: true },
+  masdevallia: { damageNightC: 3, damageDayC: 27, maxNightC: 16, source: "profile above: heat above about 27 °C kills; warm nights (18–20 °C) stop flowering (memory)", memory: true },
+  odontoglossum: { damageNightC: 4, damageDayC: 29, maxNightC: 16, source: "grower experience (memory)", memory: true },
+  zygopetalum: { damageNightC: 4, damageDayC: 33, source: "grower experience (memory)", memory: true },
+  "coelogyne-cristata": { damageNightC: 1, damageDayC: 32, source: "cold tolerance above (memory)", memory: true },
+  ludisia: { damageNightC: 10, damageDayC: 35, source: "Reid (1991); heat from memory", memory: true },
+  pleione: { damageNightC: -3, damageDayC: 30, maxNightC: 18, source: "grower experience: light frost on dry bulbs survived, hard frost kills (memory)", memory: true },
+  "encyclia-prosthechea": { damageNightC: 7, damageDayC: 35, source: "grower experience (memory)", memory: true },
+  brassavola: { damageNightC: 10, damageDayC: 38, source: "cold tolerance above; heat from memory", memory: true },
+  neofinetia: { damageNightC: 2, damageDayC: 36, source: "cold tolerance above (memory)", memory: true },
+  tillandsia: { damageNightC: 5, damageDayC: 38, source: "cold tolerance above (memory)", memory: true },
+  anthurium: { damageNightC: 10, damageDayC: 35, source: "Reid (1991) chilling; heat from memory", memory: true },
+  "begonia-rex": { damageNightC: 8, damageDayC: 35, source: "RHS guidance and grower experience (memory)", memory: true },
+  hoya: { damageNightC: 5, damageDayC: 38, source: "grower experience (memory)", memory: true },
+  "nepenthes-highland": { damageNightC: 3, damageDayC: 30, maxNightC: 18, source: "carnivorous-plant society guidance: highlands want a night drop (memory)", memory: true },
+  "nepenthes-lowland": { damageNightC: 13, damageDayC: 40, source: "cold tolerance above (memory)", memory: true },
+  calathea: { damageNightC: 10, damageDayC: 35, source: "Reid (1991) chilling below 10 °C; heat from memory", memory: true },
+};
+
+export const PLANT_LIBRARY: PlantProfile[] = [...BASE_LIBRARY, ODONTOGLOSSUM].map((p) => {
+  const l = LIMITS[p.key];
+  const band = DLI_BANDS[p.light];
+  const sources = p.sources.map((s) =>
+    s.field === "dliMin/dliMax" ? { field: s.field, source: `group range from memory, inside the ${p.light}-light class band ${band.min}–${band.max} mol m⁻² d⁻¹ (common practice)`, memory: true } : s,
+  );
+  if (!l) return { ...p, sources };
+  return {
+    ...p,
+    damageNightC: l.damageNightC,
+    damageDayC: l.damageDayC,
+    ...(l.maxNightC !== undefined ? { maxNightC: l.maxNightC } : {}),
+    sources: [...sources, { field: "damageNightC/damageDayC/maxNightC", source: l.source, ...(l.memory ? { memory: true } : {}) }],
+  };
+});
 
 export function plantByKey(key: string): PlantProfile | undefined {
   return PLANT_LIBRARY.find((p) => p.key === key);

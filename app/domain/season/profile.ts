@@ -102,7 +102,7 @@ type DayAgg = {
 
 const HOUR_MS = 3_600_000;
 
-type Night = { dayNumber: number; low: number; hours: number; morningDay: number };
+type Night = { dayNumber: number; low: number; hours: number; morningDay: number; temps: number[] };
 
 export function hemisphereOf(latitude: number): Hemisphere {
   return latitude < 0 ? "southern" : "northern";
@@ -380,7 +380,8 @@ export function seasonProfile(rollups: HourlyRollup[], site: Site, opts: SeasonP
       if (night) {
         night.low = Math.min(night.low, low);
         night.hours++;
-      } else nights.set(start, { dayNumber: start, low, hours: 1, morningDay: dayNumber });
+        night.temps.push(r.tSum / r.tN);
+      } else nights.set(start, { dayNumber: start, low, hours: 1, morningDay: dayNumber, temps: [r.tSum / r.tN] });
     }
   }
   // A night is counted with the day it starts on; one whose evening has no readings (a file that
@@ -497,13 +498,15 @@ export function seasonProfile(rollups: HourlyRollup[], site: Site, opts: SeasonP
     dayNightDifference: dayNightDifference(d),
     lightHours: d.lightHours,
     dli: dayDli(d),
+    temps: d.tempMeans,
+    rhLow: finiteOrNull(d.rhLow),
   }));
 
   const nightSummaries: NightSummary[] = [...nights.values()]
     .sort((a, b) => a.dayNumber - b.dayNumber)
     .map((n) => {
       const date = dateOfDayNumber(n.dayNumber);
-      return { key: dayKey(date), month: date.month, dayNumber: n.dayNumber, hoursObserved: n.hours, low: n.low };
+      return { key: dayKey(date), month: date.month, dayNumber: n.dayNumber, hoursObserved: n.hours, low: n.low, temps: n.temps };
     });
 
   return {

@@ -117,6 +117,10 @@ export type DaySummary = {
   lightHours: number;
   /** Only for days with at least MIN_LIGHT_HOURS_FOR_DLI hours of light samples. */
   dli: number | null;
+  /** The day's hourly mean temperatures, °C (for degree-hours past a line). */
+  temps?: number[];
+  /** The day's lowest relative humidity, % (the dry part of the day). */
+  rhLow?: number | null;
 };
 
 /** A night: from NIGHT_START_HOUR on its date to NIGHT_END_HOUR the next morning, local time. */
@@ -126,6 +130,8 @@ export type NightSummary = {
   dayNumber: number;
   hoursObserved: number;
   low: number;
+  /** The night's hourly mean temperatures, °C (for hours and degree-hours under a line). */
+  temps?: number[];
 };
 
 export type SeasonProfile = {
