@@ -283,7 +283,7 @@ export function fitSummary(plant: PlantProfile, fit: PlantFit, format: Format = 
 }
 
 /**
- * Cold glass for a windowsill (issue 15): with the glazing named, the pane's inside temperature each
+ * Cold glass for a windowsill (issue 15): with the glazing named (the spot's setting), the pane's inside temperature each
  * month from the site's outdoor spot (its mean daily low) — null without an outdoor spot with readings.
  */
 export async function glassContextFor(
@@ -302,7 +302,8 @@ export async function glassContextFor(
   return lows.size > 0 ? { uValue: GLAZING_U[glazing], outdoorLowByMonth: lows } : undefined;
 }
 
-export const parseGlazing = (v: string | null): Glazing | null => (v !== null && Object.hasOwn(GLAZING_U, v) ? (v as Glazing) : null);
+/** A glazing with a pane to judge, or null for "none", not given or anything else. */
+export const parseGlazing = (v: string | null | undefined): Glazing | null => (v != null && Object.hasOwn(GLAZING_U, v) ? (v as Glazing) : null);
 
 /** How a spot's window is described to the fit rules (used for light when it has no light sensor). */
 export const windowOf = (site: Site, spot: { facing: SpotWindow["facing"]; indoor: boolean }): SpotWindow => ({ latitude: site.latitude, facing: spot.facing, indoor: spot.indoor });

@@ -107,7 +107,7 @@ export default function ApiDocs({ loaderData: d }: Route.ComponentProps) {
         <h2 className="h2">Fits: which plant groups suit a spot</h2>
         <Endpoint
           method="GET"
-          path="/api/sites/:siteId/spots/:spotId/fits?from=YYYY-MM&to=YYYY-MM&glazing=single|old-double|double|triple"
+          path="/api/sites/:siteId/spots/:spotId/fits?from=YYYY-MM&to=YYYY-MM&glazing=single|old_double|double|triple"
           who="Any member of the site. from and to are months in the site's time zone (at most 36 months); without them, the spot's latest twelve months with readings, as on the spot page."
         >
           <p className="text-sm">

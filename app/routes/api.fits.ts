@@ -53,8 +53,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     period = { from: startOf(first, site.timeZone), to: toToday ? now : end, firstMonth: keyOfIndex(first), lastMonth: keyOfIndex(Math.min(last, current)), toToday };
   }
 
-  // Cold glass, when the member names the glazing and the site has an outdoor spot to read.
-  const glass = await glassContextFor(site, spot, await listSpots(siteId), period, parseGlazing(glazingQ), now);
+  // Cold glass from the spot's glazing (or the one asked for), when the site has an outdoor spot to read.
+  const glazing = glazingQ !== null ? parseGlazing(glazingQ) : parseGlazing(spot.glazing);
+  const glass = await glassContextFor(site, spot, await listSpots(siteId), period, glazing, now);
 
   const plants = await sitePlants(siteId);
   const season = (await spotProfiles(site, [spot.id], now, { range: period, plants })).get(spot.id)!;
@@ -65,7 +66,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
       spot: { id: spot.id, name: spot.name, indoor: spot.indoor, facing: spot.facing },
       period: { from: period.from.toISOString(), to: period.to.toISOString(), firstMonth: period.firstMonth, lastMonth: period.lastMonth, toToday: period.toToday },
       units: { facts: "°C, K, degree-hours in K·h, %, mol m⁻² d⁻¹; dates are the site's local dates", text: `°${format.unit}` },
-      glazing: glass ? { glazing: glazingQ, uValue: glass.uValue } : null,
+      glazing: glass ? { glazing, uValue: glass.uValue } : null,
       fits: ranked.map(({ plant, fit }) => {
         const name = plant.name.split(/[ ,(]/)[0];
         return {

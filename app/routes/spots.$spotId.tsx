@@ -18,7 +18,6 @@ import { EnvelopeChart, YearCharts } from "~/components/spot-charts";
 import { inventoryAction, sitePlants } from "~/.server/plants";
 import { spotGrowing } from "~/.server/spot-growing";
 import { fitsFor, glassContextFor, judgedPeriods, parseGlazing, parsePeriod, pickableMonths, slimProfile, spotProfiles, windowOf } from "~/.server/profiles";
-import { GLAZING_U } from "~/domain/climate/glass";
 import { periodLabel, PeriodPicker } from "~/components/period-picker";
 import { VERDICT_RULES } from "~/domain/fit/verdict";
 import { timeAgo } from "~/lib/time";
@@ -45,8 +44,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     listNotes(siteId, { spotId: spot.id }),
   ]);
   const season = profiles.get(spot.id)!;
-  // Cold glass when the grower names the glazing (a windowsill of a site with an outdoor spot).
-  const glazing = parseGlazing(q.get("glazing"));
+  // Cold glass from the spot's glazing (a windowsill of a site with an outdoor spot).
+  const glazing = parseGlazing(spot.glazing);
   const glass = await glassContextFor(site, spot, await listSpots(siteId), period, glazing, now);
   const fits = fitsFor(season, allPlants, { window: windowOf(site, spot), glass }, { unit: user.temperatureUnit });
   const plantKey = q.get("plant") ?? fits[0]?.key;
@@ -73,7 +72,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     plant: plant ? { key: plant.key, name: plant.name, minNightC: plant.minNightC, maxDayC: plant.maxDayC } : null,
     plants: allPlants.map((p) => ({ key: p.key, name: p.name })),
     verdictRules: VERDICT_RULES,
-    glazing: { chosen: glazing, judged: glass !== undefined, options: Object.entries(GLAZING_U).map(([key, u]) => ({ key, u })) },
+    glazing: { chosen: glazing, judged: glass !== undefined },
     notes,
     growing: await spotGrowing(site, spot, allPlants, fits, sensors),
   };
@@ -219,24 +218,13 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
         </p>
         <FitList fits={loaderData.fits} unit={unit} siteId={site.id} />
         {spot.indoor && spot.facing !== "none" ? (
-          <form method="get" className="mt-4 flex flex-wrap items-center gap-2 text-sm" data-testid="glazing-form">
-            {loaderData.period.chosen !== "latest" ? <input type="hidden" name="period" value={loaderData.period.chosen} /> : null}
-            <label htmlFor="glazing" className="text-muted">
-              Cold glass: the window's glazing
-            </label>
-            <select id="glazing" name="glazing" defaultValue={loaderData.glazing.chosen ?? ""} className="field w-auto">
-              <option value="">not set</option>
-              {loaderData.glazing.options.map((o) => (
-                <option key={o.key} value={o.key}>
-                  {o.key.replace("-", " ")} (U ≈ {o.u})
-                </option>
-              ))}
-            </select>
-            <button className="btn-quiet">Judge</button>
-            {loaderData.glazing.chosen && !loaderData.glazing.judged ? (
-              <span className="text-muted">— needs an outdoor spot with readings on this site to know the cold outside.</span>
-            ) : null}
-          </form>
+          <p className="mt-4 text-sm text-muted" data-testid="glazing-note">
+            {loaderData.glazing.judged
+              ? `Cold glass judged for ${loaderData.glazing.chosen?.replace("_", " ")} glazing, from the site's outdoor spot.`
+              : loaderData.glazing.chosen
+                ? "Cold glass needs an outdoor spot with readings on this site to know the cold outside."
+                : "Name the window's glazing under Edit spot to judge condensation on cold glass."}
+          </p>
         ) : null}
         <details className="mt-4 text-sm">
           <summary className="cursor-pointer font-medium">How the verdict is decided</summary>

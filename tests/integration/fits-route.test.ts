@@ -120,8 +120,9 @@ describe("cold glass on a windowsill (ISO 6946 surface resistance, REFERENCES.md
     ]);
     await new ReadingWriter().write(readings);
     const t = await sessionFor(owner.id);
-    const ask = async (glazing: string) => {
-      const r = (await fitsLoader({ request: req(t, `/api/sites/${s.id}/spots/${sill.id}/fits?from=2025-01&to=2025-01&glazing=${glazing}`), params: { siteId: String(s.id), spotId: String(sill.id) }, context: {} } as never)) as Response;
+    const ask = async (glazing: string | null) => {
+      const query = `?from=2025-01&to=2025-01${glazing === null ? "" : `&glazing=${glazing}`}`;
+      const r = (await fitsLoader({ request: req(t, `/api/sites/${s.id}/spots/${sill.id}/fits${query}`), params: { siteId: String(s.id), spotId: String(sill.id) }, context: {} } as never)) as Response;
       const body = await r.json();
       return { body, wet: body.fits.find((f: { key: string }) => f.key === "phalaenopsis").rules.find((x: { rule: string }) => x.rule === "condensation") };
     };
@@ -134,5 +135,9 @@ describe("cold glass on a windowsill (ISO 6946 surface resistance, REFERENCES.md
     expect(single.wet.text).toContain("Cold glass");
     const triple = await ask("triple");
     expect(triple.wet.facts.some((f: { kind: string }) => f.kind === "cold-glass")).toBe(false);
+    // Without the query, the glazing stored with the spot (its edit form) is judged.
+    expect((await ask(null)).body.glazing).toBeNull();
+    await db().update(spots).set({ glazing: "single" }).where(eq(spots.id, sill.id));
+    expect((await ask(null)).body.glazing).toEqual({ glazing: "single", uValue: 5.8 });
   }, 60_000);
 });

@@ -8,13 +8,14 @@ import { dewPoint } from "~/domain/climate/psychro";
 /** Interior surface resistance, m²K/W: ISO 6946:2017, Table 7, horizontal heat flow. */
 export const R_SI = 0.13;
 
-export type Glazing = "single" | "old-double" | "double" | "triple";
-
 /**
  * Typical centre-of-pane U-values, W/m²K (*memory*; check against EN 673 or a glazing maker's
  * table): single ≈ 5.8, old air-filled double ≈ 2.8, low-e argon double ≈ 1.2, triple ≈ 0.7.
  */
-export const GLAZING_U: Record<Glazing, number> = { single: 5.8, "old-double": 2.8, double: 1.2, triple: 0.7 };
+export const GLAZING_U = { single: 5.8, old_double: 2.8, double: 1.2, triple: 0.7 } as const;
+
+/** Glazing with a pane to judge (a spot's `glazing` may also be "none", or not given). */
+export type Glazing = keyof typeof GLAZING_U;
 
 /** The pane's inside surface temperature, °C. */
 export function paneInsideC(indoorC: number, outdoorC: number, uValue: number): number {
