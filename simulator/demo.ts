@@ -14,6 +14,7 @@ export const DEMO_HOUSEHOLD = {
     {
       name: "Kitchen sill (east)",
       indoor: true,
+      glazing: "double",
       facing: "E",
       capacity: 6,
       notes: "Above the sink; blind down on summer mornings.",
@@ -23,6 +24,7 @@ export const DEMO_HOUSEHOLD = {
     {
       name: "Landing sill (south-west)",
       indoor: true,
+      glazing: "old_double",
       facing: "SW",
       capacity: 4,
       notes: "Single glazing; cold at night in winter.",
@@ -32,6 +34,7 @@ export const DEMO_HOUSEHOLD = {
     {
       name: "Bathroom shelf",
       indoor: true,
+      glazing: "single",
       facing: "N",
       capacity: 3,
       notes: "Frosted north window; steamy after morning showers.",
@@ -60,6 +63,8 @@ export const DEMO_HOUSEHOLD = {
     name: string;
     indoor: boolean;
     facing: SimSpot["facing"];
+    /** A windowsill's glazing, for the cold-glass rule (the database's glazing names). */
+    glazing?: "single" | "double" | "old_double" | "triple";
     capacity: number;
     notes: string;
     sim: SimSpot;

@@ -46,7 +46,7 @@ export async function seedDemo(opts: { log?: (s: string) => void; backfillDays?:
   for (const [i, s] of h.spots.entries()) {
     const [spot] = await db()
       .insert(spots)
-      .values({ siteId: site.id, name: s.name, indoor: s.indoor, facing: s.facing, capacity: s.capacity, notes: s.notes })
+      .values({ siteId: site.id, name: s.name, indoor: s.indoor, facing: s.facing, glazing: s.glazing ?? null, capacity: s.capacity, notes: s.notes })
       .returning({ id: spots.id });
     const secret = newSensorSecret();
     const [sensor] = await db()
