@@ -9,8 +9,10 @@
 // following the outdoor air and holds a level that depends only on the time of day. β is a ridge
 // regression pulled towards a physical prior (an outdoor spot follows the air; an indoor one its
 // two-day mean plus a few degrees), so directions the two weeks never showed fall back on physics.
+import * as SunCalc from "suncalc";
 import type { HourlyRollup } from "~/domain/season/types";
 import { zoneClock } from "~/domain/season/local-time";
+import { FACING_AZIMUTH, type SpotFacing } from "~/domain/climate/sun";
 
 export const HOUR_MS = 3_600_000;
 const DAY_MS = 86_400_000;
@@ -68,6 +70,10 @@ export type Drivers = {
   smooth: Float64Array[];
   sun: Float64Array;
   hourOfDay: Uint8Array;
+  /** Sun through the spot's window (direct beam on a vertical pane facing its way), or the sun squared without one. */
+  windowSun: Float64Array;
+  /** Whether the spot has a window facing a known way: its sun then comes through `windowSun`. */
+  hasWindow: boolean;
   dailyMean: Float64Array;
   outdoorVapour: Float64Array;
 };
@@ -76,8 +82,18 @@ export function saturationHpa(t: number): number {
   return 6.1094 * Math.exp((17.625 * t) / (243.04 + t));
 }
 
-/** Derives the model's inputs from outdoor weather; gaps carry the last known value. */
-export function drivers(w: OutdoorSeries, timeZone: string): Drivers {
+/** Where the spot is and which way its window faces, for the sun on the glass. */
+export type Place = { latitude: number; longitude: number; facing: SpotFacing };
+
+const RAD = Math.PI / 180;
+
+/**
+ * Derives the model's inputs from outdoor weather; gaps carry the last known value. With a window
+ * facing, the sun's beam on that pane is worked out from the sun's position (suncalc) and the
+ * reported irradiance: the global sun divided by the sine of the elevation is the beam, times the
+ * cosine of its angle to the pane (capped low in the sky, where the estimate runs away).
+ */
+export function drivers(w: OutdoorSeries, timeZone: string, place?: Place): Drivers {
   const n = w.temperature.length;
   const now = new Float64Array(n);
   const sun = new Float64Array(n);
@@ -85,6 +101,8 @@ export function drivers(w: OutdoorSeries, timeZone: string): Drivers {
   const outdoorVapour = new Float64Array(n);
   const smooth = TAUS.map(() => new Float64Array(n));
   const dailyMean = new Float64Array(n);
+  const windowSun = new Float64Array(n);
+  const facingAz = place && place.facing !== "none" ? FACING_AZIMUTH[place.facing] * RAD : null;
   const clock = zoneClock(timeZone);
   let lastT = NaN;
   let lastSw = 0;
@@ -110,6 +128,14 @@ export function drivers(w: OutdoorSeries, timeZone: string): Drivers {
     const sw = i + 1 < n ? w.shortwave[i + 1] : w.shortwave[i];
     if (Number.isFinite(sw)) lastSw = sw;
     sun[i] = lastSw / 100;
+    if (facingAz !== null && lastSw > 0) {
+      const pos = SunCalc.getPosition(new Date(t + HOUR_MS / 2), place!.latitude, place!.longitude);
+      const compass = pos.azimuth + Math.PI;
+      const cosInc = Math.cos(pos.altitude) * Math.cos(compass - facingAz);
+      const sinE = Math.sin(pos.altitude);
+      const beam = pos.altitude > 0 && cosInc > 0 ? Math.min(8, (sun[i] * cosInc) / Math.max(0.15, sinE)) : 0;
+      windowSun[i] = 3 * (1 - Math.exp(-beam / 3));
+    } else windowSun[i] = facingAz === null ? sun[i] * sun[i] : 0;
     const rh = w.humidity[i];
     if (Number.isFinite(rh)) lastRh = rh;
     outdoorVapour[i] = (saturationHpa(now[i]) * lastRh) / 100;
@@ -129,12 +155,14 @@ export function drivers(w: OutdoorSeries, timeZone: string): Drivers {
     if (lo >= 0 && hi < n) acc += now[hi] - now[lo];
     dailyMean[i] = lo >= 0 && hi < n ? acc / 24 : now[i];
   }
-  return { start: w.start, n, now, smooth, sun, hourOfDay, dailyMean, outdoorVapour };
+  return { start: w.start, n, now, smooth, sun, hourOfDay, windowSun, hasWindow: facingAz !== null, dailyMean, outdoorVapour };
 }
 
 function features(d: Drivers, i: number, out: Float64Array): void {
   const h = (2 * Math.PI * d.hourOfDay[i]) / 24;
-  const sun = d.sun[i];
+  // Behind glass the warmth comes with the beam on the pane (it saturates: the sill and the air
+  // around the sensor shed heat faster the warmer they are); the sky's light only as a little diffuse gain.
+  const sun = d.hasWindow ? d.windowSun[i] : d.sun[i];
   out[0] = 1;
   out[1] = d.now[i];
   out[2] = d.smooth[0][i];
@@ -147,7 +175,7 @@ function features(d: Drivers, i: number, out: Float64Array): void {
   out[9] = Math.cos(h);
   out[10] = Math.sin(2 * h);
   out[11] = Math.cos(2 * h);
-  out[12] = sun * sun;
+  out[12] = d.hasWindow ? Math.min(d.sun[i], 1.5) : d.windowSun[i];
 }
 
 /** Prior coefficients: outdoors the spot is the air; indoors its two-day mean plus internal gains (~4 °C, memory). */
@@ -324,11 +352,11 @@ function detectClip(d: Drivers, data: Sample[], beta: number[], sign: 1 | -1): (
   return level;
 }
 
-export type FitOptions = { indoor: boolean; timeZone: string; holdOutDays?: number };
+export type FitOptions = { indoor: boolean; timeZone: string; place?: Place; holdOutDays?: number };
 
 /** Fits the response of one spot; null when fewer than MIN_DAYS days line up with the weather. */
 export function fitResponse(rollups: HourlyRollup[], weather: OutdoorSeries | Drivers, opts: FitOptions): ResponseModel | null {
-  const d = "smooth" in weather ? weather : drivers(weather, opts.timeZone);
+  const d = "smooth" in weather ? weather : drivers(weather, opts.timeZone, opts.place);
   const all = samples(rollups, d);
   const days = [...new Set(all.map((s) => s.day))].sort((a, b) => a - b);
   if (days.length < MIN_DAYS) return null;
