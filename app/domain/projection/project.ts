@@ -2,8 +2,8 @@
 // giving for every month of the year the season profile's figures with an 80 % interval that holds
 // both the year-to-year weather and the model's own error. Measured months always win; a month
 // partly measured blends the two and says so. Pure: no I/O.
-import type { HourlyRollup, MonthOfYearProfile, Site } from "~/domain/season/types";
-import { seasonProfile } from "~/domain/season/profile";
+import type { MonthOfYearProfile, Site } from "~/domain/season/types";
+import { DEFAULT_THRESHOLDS_C, MIN_HOURS_FOR_DAY, NIGHT_END_HOUR, NIGHT_START_HOUR } from "~/domain/season/profile";
 import { drivers, HOUR_MS, predictHour, saturationHpa, type Drivers, type OutdoorSeries, type ResponseModel } from "./response";
 
 /** A figure and its 80 % interval. */
@@ -80,95 +80,218 @@ export type ProjectionOptions = {
 };
 
 /**
- * Plays `model` through the weather of `years` and returns the twelve months' projected figures.
- * `weather` must cover the years (and a week before the first, for the smoothing to settle).
+ * Plays `model` through the weather of `years` and returns the twelve months' projected figures,
+ * computed by the season profile's rules (an own pass over the hours: building ten years of
+ * rollup objects for seasonProfile took four times as long). `weather` must cover the years (and a
+ * week before the first, for the smoothing to settle).
  */
 export function projectYear(model: ResponseModel, weather: OutdoorSeries | Drivers, site: Site, opts: ProjectionOptions): ProjectedMonth[] {
   const d = "smooth" in weather ? weather : drivers(weather, site.timeZone);
   const rand = mulberry32(opts.seed ?? 1);
   const years = [...opts.years].sort((a, b) => a - b);
-  const from = new Date(Date.UTC(years[0], 0, 1));
-  const to = new Date(Date.UTC(years[years.length - 1] + 1, 0, 1));
-  const first = Math.max(0, Math.floor((from.getTime() - d.start) / HOUR_MS) - 24);
-  const last = Math.min(d.n, Math.ceil((to.getTime() - d.start) / HOUR_MS) + 24);
-  const rollups: HourlyRollup[] = [];
-  const half = model.hourSpreadC / 2;
+  const thresholds = [...new Set([...DEFAULT_THRESHOLDS_C, ...(opts.thresholds ?? [])])].sort((a, b) => a - b);
+  const first = Math.max(0, Math.floor((Date.UTC(years[0], 0, 1) - d.start) / HOUR_MS) - 24);
+  const last = Math.min(d.n, Math.ceil((Date.UTC(years[years.length - 1] + 1, 0, 1) - d.start) / HOUR_MS) + 24);
+  const wanted = new Set(years);
   const x = new Float64Array(13);
   const blocks = model.residualDays;
-  let block: number[] = [];
-  // Outdoor daily means per month-of-year of each year, for the extrapolation term.
-  const outdoorByMonth = new Map<string, { sum: number; n: number }>();
+  let block: number[] = [0];
+  const half = model.hourSpreadC / 2;
+  const stats = new Map<number, MonthAcc>();
+  let day: DayAcc | null = null;
+  let night: { key: number; low: number; hours: number } | null = null;
+  const closeDay = () => {
+    if (day && day.acc) finishDay(day, day.acc);
+  };
   for (let i = first; i < last; i++) {
-    if (d.hourOfDay[i] === 0 || block.length === 0) block = blocks.length > 0 ? blocks[Math.floor(rand() * blocks.length)] : [0];
-    const p = predictHour(model, d, i, x) + block[d.hourOfDay[i] % block.length];
-    let rh: number | null = null;
+    const ld = d.localDay[i];
+    const h = d.hourOfDay[i];
+    if (!day || day.dayNumber !== ld) {
+      closeDay();
+      block = blocks.length > 0 ? blocks[Math.floor(rand() * blocks.length)] : [0];
+      const date = new Date(ld * 86_400_000);
+      const year = date.getUTCFullYear();
+      const key = year * 100 + date.getUTCMonth() + 1;
+      let acc = stats.get(key);
+      if (!acc && wanted.has(year)) stats.set(key, (acc = newMonth(thresholds.length)));
+      day = { dayNumber: ld, acc: acc ?? null, hours: 0, low: Infinity, high: -Infinity, daySum: 0, dayN: 0, nightSum: 0, nightN: 0 };
+    }
+    const p = predictHour(model, d, i, x) + block[h % block.length];
+    const acc = day.acc;
+    // Nights run NIGHT_START_HOUR to NIGHT_END_HOUR and belong to the day they start on.
+    if (h >= NIGHT_START_HOUR || h < NIGHT_END_HOUR) {
+      const key = h >= NIGHT_START_HOUR ? ld : ld - 1;
+      if (!night || night.key !== key) {
+        if (night) finishNight(night, stats, thresholds);
+        night = { key, low: Infinity, hours: 0 };
+      }
+      night.low = Math.min(night.low, p - half);
+      night.hours++;
+    }
+    if (!acc) continue;
+    day.hours++;
+    day.low = Math.min(day.low, p - half);
+    day.high = Math.max(day.high, p + half);
+    if (d.sun[i] > 0) {
+      day.daySum += p;
+      day.dayN++;
+    } else {
+      day.nightSum += p;
+      day.nightN++;
+    }
+    acc.hourly.push(p);
+    for (let k = 0; k < thresholds.length; k++) if (p < thresholds[k]) acc.belowHours[k]++;
+    acc.outdoorSum += d.now[i];
     if (model.vapourExcessHpa !== null) {
       const e = d.outdoorVapour[i] + model.vapourExcessHpa;
-      rh = Math.max(1, Math.min(100, (100 * e) / saturationHpa(p)));
+      const rh = Math.max(1, Math.min(100, (100 * e) / saturationHpa(p)));
+      acc.rhSum += rh;
+      acc.rhN++;
+      if (rh < acc.rhLow) acc.rhLow = rh;
+      if (rh > acc.rhHigh) acc.rhHigh = rh;
     }
-    const t = d.start + i * HOUR_MS;
-    rollups.push({
-      hour: new Date(t),
-      tN: 1,
-      tMin: p - half,
-      tMax: p + half,
-      tSum: p,
-      hN: rh === null ? 0 : 1,
-      hMin: rh,
-      hMax: rh,
-      hSum: rh,
-      dpMarginMin: null,
-      luxN: 0,
-      luxSum: null,
-    });
-    const key = new Date(t).toISOString().slice(0, 7);
-    const acc = outdoorByMonth.get(key) ?? { sum: 0, n: 0 };
-    acc.sum += d.now[i];
-    acc.n++;
-    outdoorByMonth.set(key, acc);
   }
-  const profile = seasonProfile(rollups, site, { from, to, thresholds: opts.thresholds });
+  closeDay();
+  if (night) finishNight(night, stats, thresholds);
+
   const q = model.quality;
   // The model's own error on a month's figures: its bias on held-out days and a share of its
   // day-to-day error (days average out within a month, a bias does not).
   const base2 = q ? q.biasC ** 2 + ((q.dailyLowMaeC + q.dailyHighMaeC) / 2) ** 2 / 2 : 1;
   const out: ProjectedMonth[] = [];
   for (let month = 1; month <= 12; month++) {
-    const months = profile.months.filter((m) => m.month === month && m.coverage.enough);
-    const mm = String(month).padStart(2, "0");
-    const outdoor = years.map((y) => outdoorByMonth.get(`${y}-${mm}`)).filter((a) => a && a.n > 0).map((a) => a!.sum / a!.n);
-    const outdoorMean = outdoor.length ? outdoor.reduce((a, b) => a + b, 0) / outdoor.length : NaN;
+    const months = years.map((y) => stats.get(y * 100 + month)).filter((m): m is MonthAcc => !!m && m.completeDays >= 20).map(summarise);
+    const outdoorMean = months.length ? months.reduce((a, m) => a + m.outdoorMean, 0) / months.length : NaN;
     const [lo, hi] = model.outdoorRange;
     const beyond = Number.isFinite(outdoorMean) ? Math.max(0, lo - outdoorMean, outdoorMean - hi) : 0;
     const sigma = Math.sqrt(base2 + (EXTRAPOLATION_ERROR_PER_C * beyond) ** 2);
-    const pick = (f: (m: (typeof months)[number]) => number | null, s = sigma) => figure(months.map(f), s);
+    const pick = (f: (m: MonthSummary) => number | null, s = sigma) => figure(months.map(f), s);
+    const humid = model.vapourExcessHpa !== null;
     out.push({
       month,
       source: "projected",
       measuredDays: 0,
-      daysInMonth: months[0]?.coverage.daysInPeriod ?? 30,
+      daysInMonth: new Date(Date.UTC(2001, month, 0)).getUTCDate(),
       years: months.length,
       figures: {
-        meanDailyLow: pick((m) => m.temperature.meanDailyLow),
-        meanDailyHigh: pick((m) => m.temperature.meanDailyHigh),
-        lowest: pick((m) => m.temperature.lowest, sigma * 1.5),
-        highest: pick((m) => m.temperature.highest, sigma * 1.5),
-        p05: pick((m) => m.temperature.p05),
-        p95: pick((m) => m.temperature.p95),
-        meanDayNightDifference: pick((m) => m.temperature.meanDayNightDifference, sigma / 2),
-        // Humidity follows the outdoor vapour plus the spot's own excess: its error is wider (memory-free guess: 3 % RH per °C).
-        humidityMean: model.vapourExcessHpa === null ? null : pick((m) => m.humidity.mean, 3 * sigma),
-        humidityLowest: model.vapourExcessHpa === null ? null : pick((m) => m.humidity.lowest, 3 * sigma),
-        humidityHighest: model.vapourExcessHpa === null ? null : pick((m) => m.humidity.highest, 3 * sigma),
-        below: profile.thresholds.map((thresholdC, k) => ({
+        meanDailyLow: pick((m) => m.meanDailyLow),
+        meanDailyHigh: pick((m) => m.meanDailyHigh),
+        lowest: pick((m) => m.lowest, sigma * 1.5),
+        highest: pick((m) => m.highest, sigma * 1.5),
+        p05: pick((m) => m.p05),
+        p95: pick((m) => m.p95),
+        meanDayNightDifference: pick((m) => m.meanDayNightDifference, sigma / 2),
+        // Humidity follows the outdoor vapour plus the spot's own excess; its error is taken as
+        // 3 % RH per °C of the temperature's (RH moves about 3–6 % per °C near room temperature).
+        humidityMean: humid ? pick((m) => m.humidityMean, 3 * sigma) : null,
+        humidityLowest: humid ? pick((m) => m.humidityLowest, 3 * sigma) : null,
+        humidityHighest: humid ? pick((m) => m.humidityHighest, 3 * sigma) : null,
+        below: months.length === 0 ? [] : thresholds.map((thresholdC, k) => ({
           thresholdC,
-          hours: figure(months.map((m) => m.below[k].hours), 0)!,
-          nights: figure(months.map((m) => m.below[k].nights), 0)!,
-        })).filter((b) => b.hours && b.nights),
+          hours: figure(months.map((m) => m.belowHours[k]), 0)!,
+          nights: figure(months.map((m) => m.belowNights[k]), 0)!,
+        })),
       },
     });
   }
   return out;
+}
+
+type DayAcc = { dayNumber: number; acc: MonthAcc | null; hours: number; low: number; high: number; daySum: number; dayN: number; nightSum: number; nightN: number };
+type MonthAcc = {
+  hourly: number[];
+  lowSum: number;
+  highSum: number;
+  completeDays: number;
+  lowest: number;
+  highest: number;
+  difSum: number;
+  difN: number;
+  belowHours: number[];
+  belowNights: number[];
+  outdoorSum: number;
+  rhSum: number;
+  rhN: number;
+  rhLow: number;
+  rhHigh: number;
+};
+type MonthSummary = {
+  meanDailyLow: number;
+  meanDailyHigh: number;
+  lowest: number;
+  highest: number;
+  p05: number;
+  p95: number;
+  meanDayNightDifference: number | null;
+  humidityMean: number | null;
+  humidityLowest: number | null;
+  humidityHighest: number | null;
+  belowHours: number[];
+  belowNights: number[];
+  outdoorMean: number;
+};
+
+function newMonth(nThresholds: number): MonthAcc {
+  return {
+    hourly: [],
+    lowSum: 0,
+    highSum: 0,
+    completeDays: 0,
+    lowest: Infinity,
+    highest: -Infinity,
+    difSum: 0,
+    difN: 0,
+    belowHours: new Array(nThresholds).fill(0),
+    belowNights: new Array(nThresholds).fill(0),
+    outdoorSum: 0,
+    rhSum: 0,
+    rhN: 0,
+    rhLow: Infinity,
+    rhHigh: -Infinity,
+  };
+}
+
+// The season profile's rules (domain/season/profile.ts): a day counts with MIN_HOURS_FOR_DAY
+// hours; an hour is day when the sun is up; a night is counted below a line when any hour of it is.
+function finishDay(day: DayAcc, acc: MonthAcc) {
+  if (day.hours === 0) return;
+  acc.lowest = Math.min(acc.lowest, day.low);
+  acc.highest = Math.max(acc.highest, day.high);
+  if (day.hours >= MIN_HOURS_FOR_DAY) {
+    acc.lowSum += day.low;
+    acc.highSum += day.high;
+    acc.completeDays++;
+  }
+  if (day.dayN > 0 && day.nightN > 0) {
+    acc.difSum += day.daySum / day.dayN - day.nightSum / day.nightN;
+    acc.difN++;
+  }
+}
+
+function finishNight(night: { key: number; low: number; hours: number }, stats: Map<number, MonthAcc>, thresholds: number[]) {
+  const date = new Date(night.key * 86_400_000);
+  const acc = stats.get(date.getUTCFullYear() * 100 + date.getUTCMonth() + 1);
+  if (!acc) return;
+  for (let k = 0; k < thresholds.length; k++) if (night.low < thresholds[k]) acc.belowNights[k]++;
+}
+
+function summarise(m: MonthAcc): MonthSummary {
+  const sorted = Float64Array.from(m.hourly).sort();
+  return {
+    meanDailyLow: m.lowSum / m.completeDays,
+    meanDailyHigh: m.highSum / m.completeDays,
+    lowest: m.lowest,
+    highest: m.highest,
+    p05: quantile(sorted as unknown as number[], 0.05),
+    p95: quantile(sorted as unknown as number[], 0.95),
+    meanDayNightDifference: m.difN > 0 ? m.difSum / m.difN : null,
+    humidityMean: m.rhN > 0 ? m.rhSum / m.rhN : null,
+    humidityLowest: m.rhN > 0 ? m.rhLow : null,
+    humidityHighest: m.rhN > 0 ? m.rhHigh : null,
+    belowHours: m.belowHours,
+    belowNights: m.belowNights,
+    outdoorMean: m.outdoorSum / m.hourly.length,
+  };
 }
 
 const exact = (v: number | null): Figure | null => (v === null ? null : { value: v, low: v, high: v });

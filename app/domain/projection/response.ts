@@ -9,7 +9,6 @@
 // following the outdoor air and holds a level that depends only on the time of day. β is a ridge
 // regression pulled towards a physical prior (an outdoor spot follows the air; an indoor one its
 // two-day mean plus a few degrees), so directions the two weeks never showed fall back on physics.
-import * as SunCalc from "suncalc";
 import type { HourlyRollup } from "~/domain/season/types";
 import { zoneClock } from "~/domain/season/local-time";
 import { FACING_AZIMUTH, type SpotFacing } from "~/domain/climate/sun";
@@ -70,6 +69,8 @@ export type Drivers = {
   smooth: Float64Array[];
   sun: Float64Array;
   hourOfDay: Uint8Array;
+  /** Local day number (days since 1970-01-01 in the site's zone) of each hour. */
+  localDay: Int32Array;
   /** Sun through the spot's window (direct beam on a vertical pane facing its way), or the sun squared without one. */
   windowSun: Float64Array;
   /** Whether the spot has a window facing a known way: its sun then comes through `windowSun`. */
@@ -98,11 +99,13 @@ export function drivers(w: OutdoorSeries, timeZone: string, place?: Place): Driv
   const now = new Float64Array(n);
   const sun = new Float64Array(n);
   const hourOfDay = new Uint8Array(n);
+  const localDay = new Int32Array(n);
   const outdoorVapour = new Float64Array(n);
   const smooth = TAUS.map(() => new Float64Array(n));
   const dailyMean = new Float64Array(n);
   const windowSun = new Float64Array(n);
   const facingAz = place && place.facing !== "none" ? FACING_AZIMUTH[place.facing] * RAD : null;
+  const pos = { altitude: 0, azimuth: 0 };
   const clock = zoneClock(timeZone);
   let lastT = NaN;
   let lastSw = 0;
@@ -129,9 +132,8 @@ export function drivers(w: OutdoorSeries, timeZone: string, place?: Place): Driv
     if (Number.isFinite(sw)) lastSw = sw;
     sun[i] = lastSw / 100;
     if (facingAz !== null && lastSw > 0) {
-      const pos = SunCalc.getPosition(new Date(t + HOUR_MS / 2), place!.latitude, place!.longitude);
-      const compass = pos.azimuth + Math.PI;
-      const cosInc = Math.cos(pos.altitude) * Math.cos(compass - facingAz);
+      sunPosition(t + HOUR_MS / 2, place!.latitude, place!.longitude, pos);
+      const cosInc = Math.cos(pos.altitude) * Math.cos(pos.azimuth - facingAz);
       const sinE = Math.sin(pos.altitude);
       const beam = pos.altitude > 0 && cosInc > 0 ? Math.min(8, (sun[i] * cosInc) / Math.max(0.15, sinE)) : 0;
       windowSun[i] = 3 * (1 - Math.exp(-beam / 3));
@@ -145,6 +147,7 @@ export function drivers(w: OutdoorSeries, timeZone: string, place?: Place): Driv
       offset = clock.offsetAt(t + 12 * HOUR_MS);
     }
     hourOfDay[i] = Math.floor((((t + offset) % DAY_MS) + DAY_MS) % DAY_MS / HOUR_MS);
+    localDay[i] = Math.floor((t + offset) / DAY_MS);
   }
   // Centred 24-hour mean, for telling which outdoor conditions the fit has seen.
   let acc = 0;
@@ -155,7 +158,26 @@ export function drivers(w: OutdoorSeries, timeZone: string, place?: Place): Driv
     if (lo >= 0 && hi < n) acc += now[hi] - now[lo];
     dailyMean[i] = lo >= 0 && hi < n ? acc / 24 : now[i];
   }
-  return { start: w.start, n, now, smooth, sun, hourOfDay, windowSun, hasWindow: facingAz !== null, dailyMean, outdoorVapour };
+  return { start: w.start, n, now, smooth, sun, hourOfDay, localDay, windowSun, hasWindow: facingAz !== null, dailyMean, outdoorVapour };
+}
+
+/**
+ * The sun's altitude and compass azimuth (radians, from north, clockwise) — the low-precision
+ * formulas of the Astronomical Almanac (about 0.01°), cheap enough for ten years of hours.
+ */
+function sunPosition(ms: number, latitude: number, longitude: number, out: { altitude: number; azimuth: number }): void {
+  const n = (ms - Date.UTC(2000, 0, 1, 12)) / DAY_MS;
+  const g = (357.529 + 0.98560028 * n) * RAD;
+  const q = 280.459 + 0.98564736 * n;
+  const L = (q + 1.915 * Math.sin(g) + 0.02 * Math.sin(2 * g)) * RAD;
+  const e = (23.439 - 0.00000036 * n) * RAD;
+  const ra = Math.atan2(Math.cos(e) * Math.sin(L), Math.cos(L));
+  const dec = Math.asin(Math.sin(e) * Math.sin(L));
+  const gmst = (18.697374558 + 24.06570982441908 * n) * 15 * RAD;
+  const H = gmst + longitude * RAD - ra;
+  const phi = latitude * RAD;
+  out.altitude = Math.asin(Math.sin(phi) * Math.sin(dec) + Math.cos(phi) * Math.cos(dec) * Math.cos(H));
+  out.azimuth = Math.atan2(-Math.sin(H), Math.tan(dec) * Math.cos(phi) - Math.sin(phi) * Math.cos(H));
 }
 
 function features(d: Drivers, i: number, out: Float64Array): void {
