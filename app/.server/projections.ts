@@ -7,7 +7,9 @@ import { loadRollups } from "~/.server/profiles";
 import { weatherStatus, loadHours, type WeatherStatus } from "~/.server/weather/store";
 import type { SpotFacing } from "~/domain/climate/sun";
 import { combineMonths, projectYear, type ProjectedMonth } from "~/domain/projection/project";
-import { drivers, fitResponse, type ModelQuality } from "~/domain/projection/response";
+import { forecastSpot, type ForecastHour, type ForecastNight } from "~/domain/projection/forecast";
+import { drivers, fitResponse, type ModelQuality, type Place, type ResponseModel } from "~/domain/projection/response";
+import { dateOfDayNumber, zoneClock } from "~/domain/season/local-time";
 import { DEFAULT_THRESHOLDS_C, MIN_DAYS_FOR_MONTH, seasonProfile } from "~/domain/season/profile";
 
 const HOUR = 3_600_000;
@@ -41,7 +43,7 @@ export type ProjectedProfile = {
   firmBy: Date | null;
 };
 
-type Cached = { profile: ProjectedProfile; hours: number; weatherKey: string };
+type Cached = { profile: ProjectedProfile; model: ResponseModel; place: { siteId: number; timeZone: string } & Place; indoor: boolean; hours: number; weatherKey: string };
 const cache = new Map<number, Cached>();
 
 /** Thresholds for "hours below": the season profile's defaults unless the caller names its own. */
@@ -111,7 +113,7 @@ export async function projectedProfile(spotId: number, opts: { now?: Date; thres
     firmBy: firmBy(months, now, site.timeZone),
   };
   if (cache.size >= CACHE_SPOTS) cache.delete(cache.keys().next().value!);
-  cache.set(spotId, { profile, hours, weatherKey });
+  cache.set(spotId, { profile, model, place: { siteId: spot.site_id, ...site, facing: spot.indoor ? spot.facing : "none" }, indoor: spot.indoor, hours, weatherKey });
   return profile;
 }
 
@@ -122,18 +124,36 @@ export async function projectedProfile(spotId: number, opts: { now?: Date; thres
 function firmBy(months: ProjectedMonth[], now: Date, timeZone: string): Date | null {
   const open = months.filter((m) => m.source !== "measured");
   if (open.length === 0) return null;
-  const local = new Date(now.toLocaleString("en-US", { timeZone }));
-  const year = local.getFullYear();
-  const month = local.getMonth() + 1;
+  const local = dateOfDayNumber(zoneClock(timeZone).localDayNumber(now.getTime()));
+  const { year, month } = local;
   let latest = 0;
   for (const m of open) {
     const needed = MIN_DAYS_FOR_MONTH - (m.month === month ? m.measuredDays : 0);
     let y = year;
-    if (m.month < month || (m.month === month && local.getDate() + needed - 1 > m.daysInMonth)) y++;
-    const day = m.month === month && y === year ? local.getDate() + needed - 1 : MIN_DAYS_FOR_MONTH;
+    if (m.month < month || (m.month === month && local.day + needed - 1 > m.daysInMonth)) y++;
+    const day = m.month === month && y === year ? local.day + needed - 1 : MIN_DAYS_FOR_MONTH;
     latest = Math.max(latest, Date.UTC(y, m.month - 1, Math.max(1, day)));
   }
   return new Date(latest);
+}
+
+export type SpotForecast = { spotId: number; forecastAt: Date | null; hours: ForecastHour[]; nights: ForecastNight[] };
+
+/**
+ * The next `hours` hours at a spot from the stored forecast through its response model, and the
+ * nights in them (expected low, its 80 % lower bound, the leaves' likely low on clear still nights
+ * outdoors): what a forecast warning needs. Null when the spot has no model yet.
+ */
+export async function spotForecast(spotId: number, opts: { now?: Date; hours?: number } = {}): Promise<SpotForecast | null> {
+  const now = opts.now ?? new Date();
+  const profile = await projectedProfile(spotId, { now });
+  const entry = cache.get(spotId);
+  if (!profile?.model || !entry) return null;
+  // Ten days before now let the 48-hour smoothing settle.
+  const weather = await loadHours(entry.place.siteId, new Date(now.getTime() - 10 * DAY), new Date(now.getTime() + 3 * DAY));
+  const d = drivers(weather, entry.place.timeZone, entry.place);
+  const { hours, nights } = forecastSpot(entry.model, d, now.getTime(), { outdoor: !entry.indoor, hours: opts.hours ?? 48 });
+  return { spotId, forecastAt: profile.weather.state === "ready" ? profile.weather.forecastAt : null, hours, nights };
 }
 
 /** Forget a spot's cached projection (its readings were rebuilt, it moved site). */

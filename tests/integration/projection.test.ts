@@ -3,7 +3,7 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { pool } from "~/.server/db";
 import { ReadingWriter } from "~/.server/ingest/writer";
-import { projectedProfile } from "~/.server/projections";
+import { projectedProfile, spotForecast } from "~/.server/projections";
 import { WeatherJob } from "~/.server/weather/job";
 import type { Reading } from "~/domain/ingest/payload";
 import { DEMO_SCENARIO, DEMO_SITE, generate, type SimSpot } from "../../simulator/model";
@@ -77,5 +77,18 @@ describe("projectedProfile", () => {
     expect(jan.value).toBeLessThan(5);
     // Cached: the same answer object until a day passes or a day's readings arrive.
     expect(await projectedProfile(bench.id, { now: NOW, years: 3 })).toBe(p);
+  });
+
+  it("forecasts the bench's next 48 hours and nights from the stored forecast through its model", async () => {
+    const bench = await spotWithDays({ kind: "outdoor", facing: "none", hasLight: false }, false, 15, 111);
+    const f = (await spotForecast(bench.id, { now: NOW }))!;
+    expect(f.hours).toHaveLength(48);
+    expect(f.nights.length).toBeGreaterThanOrEqual(2);
+    for (const n of f.nights) {
+      expect(n.lowerBound).toBeLessThan(n.expectedLow);
+      // Nights at the demo site, any month (DEMO_OUTDOOR_MONTHS: lowest −6 °C, highest 31.5 °C).
+      expect(n.expectedLow).toBeGreaterThan(-12);
+      expect(n.expectedLow).toBeLessThan(25);
+    }
   });
 });

@@ -21,7 +21,9 @@ export type OutdoorSeries = {
   start: number;
   temperature: ArrayLike<number>;
   humidity: ArrayLike<number>;
+  /** Cloud cover, %, and wind at 10 m, km/h: for radiative frost in forecasts. */
   cloud?: ArrayLike<number>;
+  wind?: ArrayLike<number>;
   shortwave: ArrayLike<number>;
 };
 
@@ -77,6 +79,9 @@ export type Drivers = {
   hasWindow: boolean;
   dailyMean: Float64Array;
   outdoorVapour: Float64Array;
+  /** Cloud cover (%) and wind (km/h) of the hour, NaN where not reported. */
+  cloud: Float64Array;
+  wind: Float64Array;
 };
 
 export function saturationHpa(t: number): number {
@@ -101,11 +106,14 @@ export function drivers(w: OutdoorSeries, timeZone: string, place?: Place): Driv
   const hourOfDay = new Uint8Array(n);
   const localDay = new Int32Array(n);
   const outdoorVapour = new Float64Array(n);
+  const cloud = new Float64Array(n);
+  const wind = new Float64Array(n);
   const smooth = TAUS.map(() => new Float64Array(n));
   const dailyMean = new Float64Array(n);
   const windowSun = new Float64Array(n);
   const facingAz = place && place.facing !== "none" ? FACING_AZIMUTH[place.facing] * RAD : null;
   const pos = { altitude: 0, azimuth: 0 };
+  const sunAt = facingAz !== null ? new SunPosition(place!.latitude, place!.longitude) : null;
   const clock = zoneClock(timeZone);
   let lastT = NaN;
   let lastSw = 0;
@@ -132,7 +140,7 @@ export function drivers(w: OutdoorSeries, timeZone: string, place?: Place): Driv
     if (Number.isFinite(sw)) lastSw = sw;
     sun[i] = lastSw / 100;
     if (facingAz !== null && lastSw > 0) {
-      sunPosition(t + HOUR_MS / 2, place!.latitude, place!.longitude, pos);
+      sunAt!.at(t + HOUR_MS / 2, pos);
       const cosInc = Math.cos(pos.altitude) * Math.cos(pos.azimuth - facingAz);
       const sinE = Math.sin(pos.altitude);
       const beam = pos.altitude > 0 && cosInc > 0 ? Math.min(8, (sun[i] * cosInc) / Math.max(0.15, sinE)) : 0;
@@ -140,6 +148,8 @@ export function drivers(w: OutdoorSeries, timeZone: string, place?: Place): Driv
     } else windowSun[i] = facingAz === null ? sun[i] * sun[i] : 0;
     const rh = w.humidity[i];
     if (Number.isFinite(rh)) lastRh = rh;
+    cloud[i] = w.cloud ? w.cloud[i] : NaN;
+    wind[i] = w.wind ? w.wind[i] : NaN;
     outdoorVapour[i] = (saturationHpa(now[i]) * lastRh) / 100;
     const day = Math.floor(t / DAY_MS);
     if (day !== offsetDay) {
@@ -158,27 +168,52 @@ export function drivers(w: OutdoorSeries, timeZone: string, place?: Place): Driv
     if (lo >= 0 && hi < n) acc += now[hi] - now[lo];
     dailyMean[i] = lo >= 0 && hi < n ? acc / 24 : now[i];
   }
-  return { start: w.start, n, now, smooth, sun, hourOfDay, localDay, windowSun, hasWindow: facingAz !== null, dailyMean, outdoorVapour };
+  return { start: w.start, n, now, smooth, sun, hourOfDay, localDay, windowSun, hasWindow: facingAz !== null, dailyMean, outdoorVapour, cloud, wind };
 }
 
 /**
  * The sun's altitude and compass azimuth (radians, from north, clockwise) — the low-precision
- * formulas of the Astronomical Almanac (about 0.01°), cheap enough for ten years of hours.
+ * formulas of the Astronomical Almanac (about 0.01°). The sun's right ascension and declination are
+ * worked out once per UTC day (they move about 1° a day: under 2 minutes of hour angle), which
+ * keeps ten years of hours cheap.
  */
-function sunPosition(ms: number, latitude: number, longitude: number, out: { altitude: number; azimuth: number }): void {
-  const n = (ms - Date.UTC(2000, 0, 1, 12)) / DAY_MS;
-  const g = (357.529 + 0.98560028 * n) * RAD;
-  const q = 280.459 + 0.98564736 * n;
-  const L = (q + 1.915 * Math.sin(g) + 0.02 * Math.sin(2 * g)) * RAD;
-  const e = (23.439 - 0.00000036 * n) * RAD;
-  const ra = Math.atan2(Math.cos(e) * Math.sin(L), Math.cos(L));
-  const dec = Math.asin(Math.sin(e) * Math.sin(L));
-  const gmst = (18.697374558 + 24.06570982441908 * n) * 15 * RAD;
-  const H = gmst + longitude * RAD - ra;
-  const phi = latitude * RAD;
-  out.altitude = Math.asin(Math.sin(phi) * Math.sin(dec) + Math.cos(phi) * Math.cos(dec) * Math.cos(H));
-  out.azimuth = Math.atan2(-Math.sin(H), Math.tan(dec) * Math.cos(phi) - Math.sin(phi) * Math.cos(H));
+class SunPosition {
+  private day = NaN;
+  private ra = 0;
+  private sinDec = 0;
+  private cosDec = 0;
+  private readonly sinPhi: number;
+  private readonly cosPhi: number;
+  constructor(
+    latitude: number,
+    private readonly longitude: number,
+  ) {
+    this.sinPhi = Math.sin(latitude * RAD);
+    this.cosPhi = Math.cos(latitude * RAD);
+  }
+
+  at(ms: number, out: { altitude: number; azimuth: number }): void {
+    const n = (ms - J2000) / DAY_MS;
+    const day = Math.floor(n);
+    if (day !== this.day) {
+      this.day = day;
+      const m = day + 0.5;
+      const g = (357.529 + 0.98560028 * m) * RAD;
+      const L = (280.459 + 0.98564736 * m + 1.915 * Math.sin(g) + 0.02 * Math.sin(2 * g)) * RAD;
+      const e = (23.439 - 0.00000036 * m) * RAD;
+      this.ra = Math.atan2(Math.cos(e) * Math.sin(L), Math.cos(L));
+      const dec = Math.asin(Math.sin(e) * Math.sin(L));
+      this.sinDec = Math.sin(dec);
+      this.cosDec = Math.cos(dec);
+    }
+    const H = (18.697374558 + 24.06570982441908 * n) * 15 * RAD + this.longitude * RAD - this.ra;
+    const cosH = Math.cos(H);
+    out.altitude = Math.asin(this.sinPhi * this.sinDec + this.cosPhi * this.cosDec * cosH);
+    out.azimuth = Math.atan2(-Math.sin(H), (this.sinDec / this.cosDec) * this.cosPhi - this.sinPhi * cosH);
+  }
 }
+
+const J2000 = Date.UTC(2000, 0, 1, 12);
 
 function features(d: Drivers, i: number, out: Float64Array): void {
   const h = (2 * Math.PI * d.hourOfDay[i]) / 24;
