@@ -139,7 +139,7 @@ export function projectYear(model: ResponseModel, weather: OutdoorSeries | Drive
       day.nightSum += p;
       day.nightN++;
     }
-    acc.hourly.push(p);
+    if (acc.nHourly < acc.hourly.length) acc.hourly[acc.nHourly++] = p;
     for (let k = 0; k < thresholds.length; k++) if (p < thresholds[k]) acc.belowHours[k]++;
     acc.outdoorSum += d.now[i];
     if (model.vapourExcessHpa !== null) {
@@ -199,7 +199,8 @@ export function projectYear(model: ResponseModel, weather: OutdoorSeries | Drive
 
 type DayAcc = { dayNumber: number; acc: MonthAcc | null; hours: number; low: number; high: number; daySum: number; dayN: number; nightSum: number; nightN: number };
 type MonthAcc = {
-  hourly: number[];
+  hourly: Float64Array;
+  nHourly: number;
   lowSum: number;
   highSum: number;
   completeDays: number;
@@ -233,7 +234,8 @@ type MonthSummary = {
 
 function newMonth(nThresholds: number): MonthAcc {
   return {
-    hourly: [],
+    hourly: new Float64Array(24 * 31 + 2),
+    nHourly: 0,
     lowSum: 0,
     highSum: 0,
     completeDays: 0,
@@ -276,7 +278,7 @@ function finishNight(night: { key: number; low: number; hours: number }, stats: 
 }
 
 function summarise(m: MonthAcc): MonthSummary {
-  const sorted = Float64Array.from(m.hourly).sort();
+  const sorted = m.hourly.subarray(0, m.nHourly).sort();
   return {
     meanDailyLow: m.lowSum / m.completeDays,
     meanDailyHigh: m.highSum / m.completeDays,
@@ -290,7 +292,7 @@ function summarise(m: MonthAcc): MonthSummary {
     humidityHighest: m.rhN > 0 ? m.rhHigh : null,
     belowHours: m.belowHours,
     belowNights: m.belowNights,
-    outdoorMean: m.outdoorSum / m.hourly.length,
+    outdoorMean: m.outdoorSum / m.nHourly,
   };
 }
 

@@ -215,8 +215,14 @@ class SunPosition {
 
 const J2000 = Date.UTC(2000, 0, 1, 12);
 
+// sin and cos of the hour of day and of twice it, by hour: ten years of hours ask for them.
+const HARMONICS = Array.from({ length: 24 }, (_, hour) => {
+  const h = (2 * Math.PI * hour) / 24;
+  return [Math.sin(h), Math.cos(h), Math.sin(2 * h), Math.cos(2 * h)];
+});
+
 function features(d: Drivers, i: number, out: Float64Array): void {
-  const h = (2 * Math.PI * d.hourOfDay[i]) / 24;
+  const [s1, c1, s2, c2] = HARMONICS[d.hourOfDay[i]];
   // Behind glass the warmth comes with the beam on the pane (it saturates: the sill and the air
   // around the sensor shed heat faster the warmer they are); the sky's light only as a little diffuse gain.
   const sun = d.hasWindow ? d.windowSun[i] : d.sun[i];
@@ -226,12 +232,12 @@ function features(d: Drivers, i: number, out: Float64Array): void {
   out[3] = d.smooth[1][i];
   out[4] = d.smooth[2][i];
   out[5] = sun;
-  out[6] = sun * Math.sin(h);
-  out[7] = sun * Math.cos(h);
-  out[8] = Math.sin(h);
-  out[9] = Math.cos(h);
-  out[10] = Math.sin(2 * h);
-  out[11] = Math.cos(2 * h);
+  out[6] = sun * s1;
+  out[7] = sun * c1;
+  out[8] = s1;
+  out[9] = c1;
+  out[10] = s2;
+  out[11] = c2;
   out[12] = d.hasWindow ? Math.min(d.sun[i], 1.5) : d.windowSun[i];
 }
 
