@@ -87,6 +87,39 @@ describe("weather job", () => {
     expect(fake.requests.length).toBe(before);
   });
 
+  it("tops up: the forecast every 3 hours, the archive's new days daily; a moved site starts afresh", async () => {
+    const site = await makeSite(await makeUser());
+    await new WeatherJob({ endpoints, years: 1, perRound: 50, now: () => NOW }).untilIdle();
+    const before = await weatherStatus(site.id);
+
+    const later = NOW + 2 * DAY;
+    const fakeLater = await startWeatherFake({ now: () => later });
+    try {
+      const job = new WeatherJob({ endpoints: { ...endpoints, archiveUrl: `${fakeLater.url}/v1/archive`, forecastUrl: `${fakeLater.url}/v1/forecast` }, years: 1, perRound: 50, now: () => later });
+      await job.untilIdle();
+      // Every site of the database is topped up; this one with a forecast and the archive's two new days.
+      const asked = fakeLater.requests.filter((r) => r.query.includes(`latitude=51.7000`));
+      expect(asked.some((r) => r.path === "/v1/forecast")).toBe(true);
+      expect(asked.some((r) => r.path === "/v1/archive")).toBe(true);
+      const after = await weatherStatus(site.id);
+      if (before.state !== "ready" || after.state !== "ready") throw new Error("not ready");
+      expect(Date.parse(after.archiveTo!) - Date.parse(before.archiveTo!)).toBe(2 * DAY);
+      expect(after.archiveFrom).toBe(before.archiveFrom);
+    } finally {
+      await fakeLater.close();
+    }
+
+    // Moved 2° east: the weather of the old place goes, the new place's is fetched.
+    await pool().query(`UPDATE sites SET longitude = 0.2 WHERE id = $1`, [site.id]);
+    const job = new WeatherJob({ endpoints, years: 1, perRound: 50, now: () => NOW });
+    await job.round();
+    const moved = await pool().query<{ longitude: number; archive_from: string | null }>(`SELECT longitude, archive_from FROM weather_fetches WHERE site_id = $1`, [site.id]);
+    expect(moved.rows[0].longitude).toBe(0.2);
+    await job.untilIdle();
+    expect(fake.requests.some((r) => r.query.includes("longitude=0.2000"))).toBe(true);
+    expect((await weatherStatus(site.id)).state).toBe("ready");
+  });
+
   it("a service that is down or slow fails the fetch quickly, backs off, and leaves the status 'not fetched'", async () => {
     const site = await makeSite(await makeUser());
     const job = new WeatherJob({ endpoints: { ...endpoints, timeoutMs: 300 }, years: 1, perRound: 200, now: () => NOW });
