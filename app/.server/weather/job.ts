@@ -76,9 +76,11 @@ export class WeatherJob {
               to_char(f.archive_from, 'YYYY-MM-DD') AS archive_from, to_char(f.archive_to, 'YYYY-MM-DD') AS archive_to,
               f.forecast_at, coalesce(f.failures, 0) AS failures, f.next_attempt_at
        FROM sites s LEFT JOIN weather_fetches f ON f.site_id = s.id
-       WHERE f.next_attempt_at IS NULL OR f.next_attempt_at <= $1
-       ORDER BY f.archive_from IS NOT NULL, s.id LIMIT 200`,
-      [new Date(now)],
+       WHERE (f.next_attempt_at IS NULL OR f.next_attempt_at <= $1)
+         AND (f.site_id IS NULL OR f.latitude <> s.latitude OR f.longitude <> s.longitude OR f.forecast_at IS NULL
+              OR f.forecast_at <= $2 OR f.archive_from IS NULL OR f.archive_from > $3::date OR f.archive_to < $4::date)
+       ORDER BY f.archive_from IS NOT NULL, f.forecast_at NULLS FIRST, s.id LIMIT 200`,
+      [new Date(now), new Date(now - FORECAST_EVERY_MS), isoDay(Date.UTC(new Date(now).getUTCFullYear() - this.opts.years, 0, 1)), isoDay(Math.floor(now / DAY) * DAY - (ARCHIVE_DELAY_DAYS + 1) * DAY)],
     );
     let budget = this.opts.perRound ?? 4;
     let made = 0;
