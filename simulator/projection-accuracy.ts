@@ -43,7 +43,7 @@ export function demoWeather() {
 }
 
 /** The hourly rollups a year of 10-minute readings makes (Europe/London hours are UTC hours). */
-function yearRollups(spotIndex: number): HourlyRollup[] {
+export function yearRollups(spotIndex: number): HourlyRollup[] {
   const s = DEMO_HOUSEHOLD.spots[spotIndex];
   const byHour = new Map<number, HourlyRollup>();
   for (const r of generate(site, s.sim, DEMO_SCENARIO, { from: new Date(Date.UTC(YEAR, 0, 1)), to: new Date(Date.UTC(YEAR + 1, 0, 1)), intervalMs: 600_000, sensorSeed: s.sensor.seed })) {
