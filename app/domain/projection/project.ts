@@ -96,7 +96,7 @@ export function projectYear(model: ResponseModel, weather: OutdoorSeries | Drive
   const x = new Float64Array(13);
   const blocks = model.residualDays;
   let block: number[] = [0];
-  const half = model.hourSpreadC / 2;
+  const { lowOffsetC, highOffsetC } = model;
   const stats = new Map<number, MonthAcc>();
   let day: DayAcc | null = null;
   let night: { key: number; low: number; hours: number } | null = null;
@@ -125,13 +125,13 @@ export function projectYear(model: ResponseModel, weather: OutdoorSeries | Drive
         if (night) finishNight(night, stats, thresholds);
         night = { key, low: Infinity, hours: 0 };
       }
-      night.low = Math.min(night.low, p - half);
+      night.low = Math.min(night.low, p + lowOffsetC);
       night.hours++;
     }
     if (!acc) continue;
     day.hours++;
-    day.low = Math.min(day.low, p - half);
-    day.high = Math.max(day.high, p + half);
+    day.low = Math.min(day.low, p + lowOffsetC);
+    day.high = Math.max(day.high, p + highOffsetC);
     if (d.sun[i] > 0) {
       day.daySum += p;
       day.dayN++;

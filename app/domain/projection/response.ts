@@ -34,8 +34,13 @@ export type ResponseModel = {
   ceiling: (number | null)[] | null;
   /** Indoor vapour pressure over outdoor, hPa (people, plants, cooking); null without humidity. */
   vapourExcessHpa: number | null;
-  /** Typical range of the readings inside an hour (tMax − tMin), to turn hourly means into lows and highs. */
-  hourSpreadC: number;
+  /**
+   * How far a day's lowest reading falls below its lowest hourly mean, and its highest reading rises
+   * above its highest hourly mean (medians over the fitted days): the model speaks in hourly means,
+   * the season profile in readings. Larger on a sunny sill, where the sun comes and goes within the hour.
+   */
+  lowOffsetC: number;
+  highOffsetC: number;
   /** Residuals (measured − fitted hourly mean) per fitted local day, for the bootstrap. */
   residualDays: number[][];
   /** The outdoor daily means the fit saw, °C: outside them the model extrapolates. */
@@ -460,7 +465,8 @@ function fitOn(data: Sample[], d: Drivers, opts: FitOptions): ResponseModel {
     floor,
     ceiling,
     vapourExcessHpa: null,
-    hourSpreadC: 0,
+    lowOffsetC: 0,
+    highOffsetC: 0,
     residualDays: [],
     outdoorRange: [Infinity, -Infinity],
     hoursFitted: data.length,
@@ -469,21 +475,31 @@ function fitOn(data: Sample[], d: Drivers, opts: FitOptions): ResponseModel {
   };
   const x = new Float64Array(N_FEATURES);
   const excess: number[] = [];
-  const spreads: number[] = [];
   const byDay = new Map<number, number[]>();
+  const extremes = new Map<number, { lo: number; hi: number; loMean: number; hiMean: number; n: number }>();
   for (const s of data) {
     const r = s.y - predictHour(partial, d, s.i, x);
     let list = byDay.get(s.day);
     if (!list) byDay.set(s.day, (list = []));
     list.push(r);
-    spreads.push(s.yMax - s.yMin);
+    const e = extremes.get(s.day);
+    if (!e) extremes.set(s.day, { lo: s.yMin, hi: s.yMax, loMean: s.y, hiMean: s.y, n: 1 });
+    else {
+      e.lo = Math.min(e.lo, s.yMin);
+      e.hi = Math.max(e.hi, s.yMax);
+      e.loMean = Math.min(e.loMean, s.y);
+      e.hiMean = Math.max(e.hiMean, s.y);
+      e.n++;
+    }
     if (s.rh !== null) excess.push((saturationHpa(s.y) * s.rh) / 100 - d.outdoorVapour[s.i]);
     const dm = d.dailyMean[s.i];
     if (dm < partial.outdoorRange[0]) partial.outdoorRange[0] = dm;
     if (dm > partial.outdoorRange[1]) partial.outdoorRange[1] = dm;
   }
   partial.residualDays = [...byDay.values()].filter((l) => l.length >= 12);
-  partial.hourSpreadC = median(spreads);
+  const whole = [...extremes.values()].filter((e) => e.n >= 18);
+  partial.lowOffsetC = whole.length ? median(whole.map((e) => e.lo - e.loMean)) : 0;
+  partial.highOffsetC = whole.length ? median(whole.map((e) => e.hi - e.hiMean)) : 0;
   partial.vapourExcessHpa = excess.length >= 24 ? median(excess) : null;
   return partial;
 }
@@ -496,14 +512,13 @@ function assess(m: ResponseModel, d: Drivers, test: Sample[]): ModelQuality | nu
   for (const s of test) {
     const p = predictHour(m, d, s.i, x);
     se += (p - s.y) ** 2;
-    const half = m.hourSpreadC / 2;
     const day = days.get(s.day);
-    if (!day) days.set(s.day, { lo: s.yMin, hi: s.yMax, plo: p - half, phi: p + half });
+    if (!day) days.set(s.day, { lo: s.yMin, hi: s.yMax, plo: p + m.lowOffsetC, phi: p + m.highOffsetC });
     else {
       day.lo = Math.min(day.lo, s.yMin);
       day.hi = Math.max(day.hi, s.yMax);
-      day.plo = Math.min(day.plo, p - half);
-      day.phi = Math.max(day.phi, p + half);
+      day.plo = Math.min(day.plo, p + m.lowOffsetC);
+      day.phi = Math.max(day.phi, p + m.highOffsetC);
     }
   }
   const list = [...days.values()];
