@@ -1,9 +1,11 @@
 // The invented demo household: where it is, its spots, and how each spot is simulated.
-import { DEMO_SCENARIO, type SimSite, type SimSpot } from "./model";
+import { scenarioAt, type SimSite, type SimSpot } from "./model";
 
 export const DEMO_HOUSEHOLD = {
   site: { name: "Hollins Lane", latitude: 51.7, longitude: -2.2, timeZone: "Europe/London" } satisfies SimSite & { name: string },
-  scenario: DEMO_SCENARIO,
+  // The very climate the local weather service fake serves for this place (DEMO_SCENARIO), so the
+  // backfill, the live sensors and the stored outdoor weather agree hour by hour.
+  scenario: scenarioAt(51.7, -2.2),
   people: {
     owner: { email: "owner@nichewise.test", name: "Wren Ashdown", password: "greenhouse-demo-1" },
     carer: { email: "carer@nichewise.test", name: "Jory Ashdown", password: "greenhouse-demo-2" },

@@ -17,6 +17,8 @@ export async function startLiveSimulator(opts: {
   speed?: number;
   coldFrontAt?: Date | null;
   frontSpeed?: number;
+  /** The weather every sensor plays: the one the weather service (fake) serves, with its forecast front. */
+  scenario?: Scenario;
   credentialsFile?: string;
   log?: (s: string) => void;
 }) {
@@ -42,7 +44,7 @@ export async function startLiveSimulator(opts: {
   };
 }
 
-function runSensor(sensor: LiveSensor, opts: { mqttUrl: string; intervalS: number }) {
+function runSensor(sensor: LiveSensor, opts: { mqttUrl: string; intervalS: number; scenario?: Scenario }) {
   const client: MqttClient = mqtt.connect(opts.mqttUrl, {
     username: String(sensor.sensorId),
     password: sensor.secret,
@@ -55,7 +57,7 @@ function runSensor(sensor: LiveSensor, opts: { mqttUrl: string; intervalS: numbe
   const topic = `nichewise/sensors/${sensor.sensorId}/reading`;
   const intervalMs = opts.intervalS * 1000;
   let last = Date.now();
-  const scenario = sensor.scenario ?? DEMO_HOUSEHOLD.scenario;
+  const scenario = sensor.scenario ?? opts.scenario ?? DEMO_HOUSEHOLD.scenario;
   const tick = () => {
     const now = Date.now();
     const scale = sensor.timeScale;

@@ -114,6 +114,8 @@ const SALT = {
   noiseT: 30,
   noiseRh: 32,
   noiseLux: 34,
+  wind: 20,
+  windHour: 21,
   dropout: 40,
   duplicate: 50,
   swap: 51,
@@ -159,6 +161,8 @@ type DayState = {
   dewPoint: number;
   /** 0 clear … 1 overcast. */
   cloud: number;
+  /** A big anomaly: settled air, clear and still. */
+  settled: boolean;
 };
 
 // Parton & Logan (1981), "A model for diurnal variation in soil and air temperature",
@@ -275,6 +279,7 @@ class Climate {
       tMax: mean + halfRange,
       dewPoint: tMin - dewDepression,
       cloud,
+      settled: Math.abs(anomaly) > 2.5,
     };
   }
 
@@ -407,6 +412,78 @@ export function outdoorClimate(site: SimSite, scenario: Scenario): (t: Date) => 
     const temperature = climate.temperature(t);
     climate.sun(t, sun);
     return { temperature, humidity: climate.outdoorHumidity(t, temperature), sunElevation: sun.elevation };
+  };
+}
+
+/** What a weather service reports for an hour: air, cloud, wind and sun at the ground. */
+export type OutdoorWeather = {
+  temperature: number;
+  humidity: number;
+  /** Total cloud cover, %. */
+  cloudCover: number;
+  /** Wind at 10 m, km/h. */
+  windSpeed: number;
+  /** Global horizontal irradiance, W/m² (mean of the hour before, as services report it). */
+  shortwave: number;
+};
+
+// Daylight's luminous efficacy, ~110 lm/W for sun and sky together (memory).
+const LUX_PER_WATT = 110;
+
+/**
+ * Hourly outdoor weather as a weather service reports it, from the same climate as `generate`:
+ * instant temperature and humidity at `t`, cloud of the day, a wind that drops on settled (clear,
+ * frosty or hot) days and at night, and the sun's irradiance averaged over the hour before `t`.
+ */
+export function outdoorWeather(site: SimSite, scenario: Scenario): (t: Date) => OutdoorWeather {
+  assertSite(site);
+  const climate = new Climate(site, scenario);
+  const sun = { elevation: 0, azimuth: 0 };
+  const skyNow: Sky = { directNormal: 0, diffuseHorizontal: 0 };
+  return (at: Date) => {
+    const t = at.getTime();
+    const d = climate.dayIndex(t);
+    const day = climate.day(d);
+    const temperature = climate.temperature(t);
+    let lux = 0;
+    for (let k = 0; k < 4; k++) {
+      const ts = t - (k + 0.5) * 15 * MINUTE;
+      climate.sun(ts, sun);
+      sky(sun.elevation, climate.directFraction(ts, climate.day(climate.dayIndex(ts)).cloud), skyNow);
+      lux += skyNow.directNormal * Math.max(0, Math.sin(sun.elevation * RAD)) + skyNow.diffuseHorizontal;
+    }
+    climate.sun(t, sun);
+    const seed = scenario.seed;
+    const gusty = day.settled ? 0.4 : 1;
+    const daytime = sun.elevation > 0 ? 1.3 : 0.8;
+    const windSpeed = (4 + 16 * unit(seed, d, SALT.wind) * gusty) * daytime * (0.8 + 0.4 * unit(seed, Math.floor(t / HOUR), SALT.windHour));
+    return {
+      temperature,
+      humidity: climate.outdoorHumidity(t, temperature),
+      cloudCover: Math.round(100 * day.cloud),
+      windSpeed: Math.round(windSpeed * 10) / 10,
+      shortwave: Math.round(lux / 4 / LUX_PER_WATT),
+    };
+  };
+}
+
+/**
+ * The scenario the simulator (and the local weather service fake) uses at a place: the demo's at
+ * the demo site, elsewhere a climate drawn from the latitude (warmer and flatter towards the
+ * equator; rough figures from memory for a maritime-to-continental middle) with its own seed, so
+ * every place is deterministic and different.
+ */
+export function scenarioAt(latitude: number, longitude: number): Scenario {
+  if (Math.abs(latitude - DEMO_SITE.latitude) < 0.05 && Math.abs(longitude - DEMO_SITE.longitude) < 0.05) return DEMO_SCENARIO;
+  const lat = Math.abs(latitude);
+  const key = Math.round((latitude + 90) * 100) * 40000 + Math.round((longitude + 180) * 100);
+  return {
+    seed: hash3(DEMO_SCENARIO.seed, key, 7),
+    annualMeanC: clamp(27 - 0.32 * lat, -15, 28),
+    annualAmplitudeC: clamp(1 + 0.12 * lat, 1, 18),
+    dailyAmplitudeC: 4 + 2 * unit(DEMO_SCENARIO.seed, key, 8),
+    coldestDayOfYear: 15,
+    fronts: true,
   };
 }
 
@@ -801,6 +878,17 @@ export function coldFrontScenario(start: Date): Scenario {
     fronts: false,
     coldFront: { start, dropC: 9, hours: 2 },
   };
+}
+
+/**
+ * The forecast front of `start:cold-front` at real-time pace, for the weather fake's forecast and
+ * the live sensors alike: the next 18:00 UTC at least 18 h away, the air falling 8 °C over 3 h and
+ * held 8 h (a night's frost on the demo bench), so a forecast warning has 12–48 h to be sent.
+ */
+export function forecastColdFront(now: number): ColdFront {
+  let start = Math.floor(now / DAY) * DAY + 18 * HOUR;
+  while (start < now + 18 * HOUR) start += DAY;
+  return { start: new Date(start), dropC: 8, hours: 8 };
 }
 
 /** Suggested spots for a demo household; the sensor seeds keep each sensor's noise its own. */

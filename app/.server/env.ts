@@ -57,6 +57,15 @@ const schema = z.object({
   NW_BACKFILL_DAYS: z.coerce.number().int().min(0).max(800).default(365),
   // The demo's compressed cold front on the outdoor bench, starting ~30 s after start (alert timings 60× faster).
   NW_COLD_FRONT: flag.default(false),
+  // Outdoor weather: the hosted service's endpoints (Open-Meteo's archive and forecast, or a paid
+  // plan's customer endpoints with WEATHER_API_KEY). Unset: the local fake, started on
+  // WEATHER_FAKE_PORT (0: any free port) and backed by the simulator's climate.
+  WEATHER_ARCHIVE_URL: z.url().optional(),
+  WEATHER_FORECAST_URL: z.url().optional(),
+  WEATHER_API_KEY: z.string().min(1).max(200).optional(),
+  WEATHER_FAKE_PORT: port.default(0),
+  // Past years of hourly weather stored per site, for the projections.
+  WEATHER_YEARS: z.coerce.number().int().min(1).max(30).default(10),
 });
 
 export type Env = z.infer<typeof schema>;

@@ -64,6 +64,23 @@ async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[],
     await writer().drain();
   });
 
+  // Outdoor weather: the hosted service when configured, else the local fake (the simulator's
+  // climate, with the demo's forecast front under NW_COLD_FRONT). The job never blocks start-up.
+  let archiveUrl = e.WEATHER_ARCHIVE_URL;
+  let forecastUrl = e.WEATHER_FORECAST_URL;
+  const { forecastColdFront } = await import("../../simulator/model");
+  const forecastFront = e.NW_COLD_FRONT ? forecastColdFront(Date.now()) : undefined;
+  if (!archiveUrl || !forecastUrl) {
+    const { startWeatherFake } = await import("../../simulator/weather-fake");
+    const fake = await startWeatherFake({ port: e.WEATHER_FAKE_PORT, coldFront: forecastFront, log });
+    stops.push(fake.close);
+    archiveUrl ??= `${fake.url}/v1/archive`;
+    forecastUrl ??= `${fake.url}/v1/forecast`;
+  }
+  const { startWeatherJob } = await import("~/.server/weather/job");
+  const weatherJob = startWeatherJob({ endpoints: { archiveUrl, forecastUrl, apiKey: e.WEATHER_API_KEY }, years: e.WEATHER_YEARS, log });
+  stops.push(weatherJob.stop);
+
   const { pruneRejections } = await import("~/.server/ingest/rejections");
   const { pruneRollupChanges } = await import("~/.server/profiles");
   const housekeeping = setInterval(() => {
@@ -130,7 +147,9 @@ async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[],
   if (demo.seed && e.NW_SIMULATOR) {
     const { startLiveSimulator } = await import("../../simulator/live");
     const coldFrontAt = e.NW_COLD_FRONT ? new Date(Date.now() + 30_000) : null;
-    const sim = await startLiveSimulator({ mqttUrl: `mqtt://127.0.0.1:${broker.port}`, speed: e.NW_SIM_SPEED, intervalS: e.NW_SIM_INTERVAL_S, coldFrontAt, log });
+    const { DEMO_HOUSEHOLD } = await import("../../simulator/demo");
+    const scenario = { ...DEMO_HOUSEHOLD.scenario, coldFront: forecastFront };
+    const sim = await startLiveSimulator({ mqttUrl: `mqtt://127.0.0.1:${broker.port}`, speed: e.NW_SIM_SPEED, intervalS: e.NW_SIM_INTERVAL_S, coldFrontAt, scenario, log });
     if (coldFrontAt) log("Cold front: the outdoor bench starts falling in about a minute; watch the site page and the admin page's mail");
     stops.splice(stops.length, 0, sim.stop);
   }

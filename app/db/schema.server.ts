@@ -5,6 +5,7 @@ import { sql } from "drizzle-orm";
 import {
   bigserial,
   boolean,
+  date,
   doublePrecision,
   index,
   integer,
@@ -14,6 +15,7 @@ import {
   primaryKey,
   real,
   serial,
+  smallint,
   text,
   timestamp,
   uniqueIndex,
@@ -443,3 +445,39 @@ export const invitations = pgTable(
   },
   (t) => [index().on(t.siteId)],
 );
+
+// Outdoor weather of a site, one row per UTC day with 24 hourly values per column, in small
+// integers: temperature in 0.1 °C, humidity and cloud in %, wind in 0.1 km/h, sun in W/m² (about
+// 0.4 kB a day, 150 kB a site-year with its index). `forecast` rows are replaced by the archive's.
+export const weatherDays = pgTable(
+  "weather_days",
+  {
+    siteId: integer()
+      .notNull()
+      .references(() => sites.id, { onDelete: "cascade" }),
+    day: date({ mode: "string" }).notNull(),
+    temperature: smallint().array().notNull(),
+    humidity: smallint().array().notNull(),
+    cloud: smallint().array().notNull(),
+    wind: smallint().array().notNull(),
+    shortwave: smallint().array().notNull(),
+    forecast: boolean().notNull().default(false),
+  },
+  (t) => [primaryKey({ columns: [t.siteId, t.day] })],
+);
+
+// Where a site's weather fetch stands: the place it was fetched for (a moved site starts again),
+// the archive's stored span, the last forecast, and the back-off after failures.
+export const weatherFetches = pgTable("weather_fetches", {
+  siteId: integer()
+    .primaryKey()
+    .references(() => sites.id, { onDelete: "cascade" }),
+  latitude: doublePrecision().notNull(),
+  longitude: doublePrecision().notNull(),
+  archiveFrom: date({ mode: "string" }),
+  archiveTo: date({ mode: "string" }),
+  forecastAt: timestamp({ withTimezone: true }),
+  failures: integer().notNull().default(0),
+  nextAttemptAt: timestamp({ withTimezone: true }),
+  lastError: text(),
+});

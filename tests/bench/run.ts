@@ -30,6 +30,13 @@ import type { HourlyRollup } from "../../app/domain/season/types";
 import { backfill } from "../../simulator/backfill";
 import { DEMO_SCENARIO, DEMO_SITE } from "../../simulator/model";
 import { zoneClock } from "../../app/domain/season/local-time";
+import { projectYear } from "../../app/domain/projection/project";
+import { drivers, fitResponse } from "../../app/domain/projection/response";
+import { WeatherJob } from "../../app/.server/weather/job";
+import { loadHours } from "../../app/.server/weather/store";
+import { DEMO_HOUSEHOLD } from "../../simulator/demo";
+import { generate } from "../../simulator/model";
+import { startWeatherFake } from "../../simulator/weather-fake";
 
 const run = promisify(execFile);
 const DIR = ".data/bench";
@@ -188,6 +195,57 @@ async function main() {
   }
 }
 
+/**
+ * Outdoor weather and projections: ten years of a site's weather fetched from the local fake and
+ * stored (and its size per site-year), then the response model fitted on 14 days of a simulated
+ * windowsill and played through those ten years.
+ */
+async function projectionBench(siteId: number) {
+  const fake = await startWeatherFake({});
+  try {
+    const job = new WeatherJob({ endpoints: { archiveUrl: `${fake.url}/v1/archive`, forecastUrl: `${fake.url}/v1/forecast` }, years: 10, perRound: 50 });
+    const [, fetchMs] = await timed(() => job.untilIdle());
+    const size = await pool().query<{ days: number; bytes: string }>(
+      `SELECT (SELECT count(*)::int FROM weather_days WHERE site_id = $1) AS days, pg_total_relation_size('weather_days') AS bytes`,
+      [siteId],
+    );
+    const perYear = (Number(size.rows[0].bytes) / size.rows[0].days) * 365.25;
+    rows.push({ figure: "Outdoor weather: 10 years + forecast fetched from the local fake and stored (s)", ours: fmt(fetchMs / 1000, 1), baseline: "—", ratio: "—", target: "—", note: `${fmt(size.rows[0].days)} days; ${fmt(perYear / 1024, 0)} KiB per site-year with its index` });
+
+    const now = Date.now();
+    const thisYear = new Date(now).getUTCFullYear();
+    const [weather, loadMs] = await timed(() => loadHours(siteId, new Date(Date.UTC(thisYear - 10, 0, 1) - 14 * DAY), new Date(now + 16 * DAY)));
+    const site = { latitude: DEMO_SITE.latitude, longitude: DEMO_SITE.longitude, timeZone: DEMO_SITE.timeZone };
+    const spot = DEMO_HOUSEHOLD.spots[0];
+    const from = now - 14 * DAY;
+    const byHour = new Map<number, HourlyRollup>();
+    for (const r of generate(site, spot.sim, DEMO_SCENARIO, { from: new Date(from), to: new Date(now), intervalMs: 600_000, sensorSeed: 1 })) {
+      const h = Math.floor(r.measuredAt.getTime() / 3_600_000) * 3_600_000;
+      const x = byHour.get(h) ?? { hour: new Date(h), tN: 0, tMin: 99, tMax: -99, tSum: 0, hN: 0, hMin: 100, hMax: 0, hSum: 0, dpMarginMin: null, luxN: 0, luxSum: null };
+      x.tN++;
+      x.tSum! += r.temperature;
+      x.tMin = Math.min(x.tMin!, r.temperature);
+      x.tMax = Math.max(x.tMax!, r.temperature);
+      x.hN++;
+      x.hSum! += r.humidity;
+      byHour.set(h, x);
+    }
+    const rollups = [...byHour.values()];
+    const years = Array.from({ length: 10 }, (_, i) => thisYear - 10 + i);
+    const once = () => {
+      const d = drivers(weather, site.timeZone, { ...site, facing: spot.facing });
+      const model = fitResponse(rollups, d, { indoor: true, timeZone: site.timeZone })!;
+      return projectYear(model, d, site, { years });
+    };
+    for (let i = 0; i < 3; i++) once();
+    const times: number[] = [];
+    for (let i = 0; i < 7; i++) times.push((await timed(async () => once()))[1]);
+    rows.push({ figure: "Fit one spot's response model on 14 days and project 12 months from 10 years of hourly weather (ms)", ours: fmt(median(times), 1), baseline: `${fmt(loadMs, 1)} (reading the 10 years of weather)`, ratio: "—", target: "≤ 50 ms", note: "median of 7 after 3 to warm up; in process, no database" });
+  } finally {
+    await fake.close();
+  }
+}
+
 async function bench() {
   const p = pool();
   const started = new Date();
@@ -221,6 +279,10 @@ async function bench() {
   const creds = sensorIds.map((id) => ({ id, secret }));
   if (ONLY === "csv-load") {
     await csvUnderLoad({ sensorId: bulkIds[7], creds, timeZone: site.time_zone });
+    return output(started);
+  }
+  if (ONLY === "projection") {
+    await projectionBench(site.id);
     return output(started);
   }
 
@@ -464,6 +526,9 @@ async function bench() {
   const growthBatch = synthetic(sensorIds.slice(150, 160), 5000, now - 2 * DAY * 30, 30_000);
   const [, gMs] = await timed(() => directWrite(new ReadingWriter(pool, 5, 2000), growthBatch));
   rows.push({ figure: `Growth: direct writer with ${fmt(rawCount)} readings already stored (readings/s)`, ours: fmt(growthBatch.length / (gMs / 1000)), baseline: `${fmt(directRate)} (with ${fmt(total)} stored)`, ratio: `${fmt((growthBatch.length / (gMs / 1000) / directRate) * 100)} %`, target: "—" });
+
+  settle();
+  await projectionBench(site.id);
 
   log(`autovacuum settled after ${fmt(await quietDb(), 1)} s`);
   await csvUnderLoad({ sensorId: bulkIds[7], creds, timeZone: site.time_zone });

@@ -10,7 +10,7 @@ import type { CommittedReading, ReadingWriter } from "~/.server/ingest/writer";
 import { sendMail } from "~/.server/mail";
 import { siteRecipients, spotPoints, type Recipient } from "~/.server/alerts/store";
 import { latestReading } from "~/.server/series";
-import { projectCrossing, roundMinutes } from "~/domain/alerts/early-warning";
+import { EARLY_WARNING_HISTORY_MINUTES, projectCrossing, roundMinutes } from "~/domain/alerts/early-warning";
 import { clearMessage, earlyMessage, openMessage, type Composed, type MessageContext } from "~/domain/alerts/messages";
 import { inQuietHours } from "~/domain/alerts/quiet";
 import { evaluate, isBack, isPast, KINDS, valueFor, worse, type AlertKind, type Point, type Transition } from "~/domain/alerts/rules";
@@ -332,7 +332,7 @@ export class AlertEngine {
   private async earlyWarning(rule: RuleRow, batch: Point[]) {
     if (!rule.early_warning || (rule.kind !== "cold" && rule.kind !== "heat")) return;
     const latest = batch[batch.length - 1];
-    const windowMs = 60 * this.minuteMs;
+    const windowMs = EARLY_WARNING_HISTORY_MINUTES * this.minuteMs;
     const history = (await spotPoints(rule.spot_id, new Date(batch[0].at.getTime() - windowMs), latest.at))
       .map((p) => ({ at: p.at, value: valueFor(rule.kind, p) }))
       .filter((p): p is Point => p.value != null);

@@ -68,4 +68,49 @@ describe("projectCrossing", () => {
     const pts = Array.from({ length: 13 }, (_, i) => ({ at: new Date(T0 + i * 5 * 1000), value: 13 - (3 * i * 5) / 60 }));
     expect(projectCrossing("cold", 8, pts, 1000)?.minutes).toBeCloseTo(40, 6);
   });
+
+  // The cases of issue 16: a sensor read every 15 or 20 minutes saw fewer than the 6 readings an
+  // hour the old fit wanted, and a clear night's 0.7 °C/h drift was under its 1 °C/h floor.
+  const noisy = (seed: number) => {
+    let s = seed;
+    return () => ((s = (s * 1103515245 + 12345) % 2147483648) / 2147483648) * 2 - 1;
+  };
+  const line = (everyMin: number, hours: number, start: number, ratePerHour: number, seed = 3) => {
+    const rand = noisy(seed);
+    return Array.from({ length: Math.floor((hours * 60) / everyMin) + 1 }, (_, i) => ({
+      at: new Date(T0 + i * everyMin * MIN),
+      value: Math.round((start + (ratePerHour * i * everyMin) / 60 + 0.15 * rand()) * 10) / 10,
+    }));
+  };
+
+  for (const everyMin of [15, 20]) {
+    it(`warns on a 2 °C/h fall read every ${everyMin} minutes, before the line is crossed`, () => {
+      const { warnedAt, crossedAt } = replay(line(everyMin, 6, 14, -2), 8);
+      expect(crossedAt).not.toBeNull();
+      expect(warnedAt).not.toBeNull();
+      expect(crossedAt! - warnedAt!).toBeGreaterThanOrEqual(15 * MIN);
+    });
+  }
+
+  it("warns on a clear night's slow, steady 0.7 °C/h drift toward the line, an hour or more ahead", () => {
+    for (const everyMin of [1, 5, 20]) {
+      const { warnedAt, crossedAt } = replay(line(everyMin, 10, 8, -0.7), 3);
+      expect(crossedAt, `every ${everyMin} min`).not.toBeNull();
+      expect(warnedAt, `every ${everyMin} min`).not.toBeNull();
+      expect(crossedAt! - warnedAt!, `every ${everyMin} min`).toBeGreaterThanOrEqual(60 * MIN);
+    }
+  });
+
+  it("a slow drift that levels off above the line never warns", () => {
+    // 0.7 °C/h for 3 hours, then flat 2 °C above the line: the crossing was always more than two
+    // hours away on the drifting line, and the flat line points nowhere.
+    const pts = line(5, 12, 7.1, -0.7).map((p, i) => ({ ...p, value: Math.max(p.value, 5 + (i % 2) * 0.1) }));
+    expect(replay(pts, 3).warnedAt).toBeNull();
+  });
+
+  it("says the time in hours past an hour and a half", () => {
+    expect(roundMinutes(110)).toBe("about 2 hours");
+    expect(roundMinutes(95)).toBe("about 1.5 hours");
+  });
 });
+
