@@ -1,46 +1,8 @@
 // A spot's answer: the verdict summary at the top of its page, and the fit list folded so the top
 // few groups are shown in full and the rest as "19 groups: nights below their minimum".
 import { FitList, type FitRow } from "~/components/season";
+import { groupFits } from "~/domain/fit/summary";
 import { VerdictMark, VerdictWords, type VerdictName } from "~/components/verdict-mark";
-
-/** What a group's first reason is about, in words that fit many groups at once. */
-const REASON_GIST: Record<string, string> = {
-  "cold-nights": "nights below their minimum",
-  "warm-nights": "nights too warm for them",
-  "hot-days": "days above their maximum",
-  humidity: "air too dry or too damp for them",
-  light: "light that does not suit them, or is not known",
-  flowering: "no cue to flower",
-  condensation: "leaves wet with dew",
-  "cold-glass": "cold glass by the window",
-  seasonal: "good only for a run of months",
-};
-
-export const gistOf = (f: Pick<FitRow, "verdict" | "reasons" | "missingMonths">) => {
-  const first = f.reasons[0];
-  if (first) return REASON_GIST[first.rule] ?? "other reasons";
-  if (f.verdict === "not enough data yet") return "months still without enough readings";
-  return "nothing asks for care";
-};
-
-const ORDER: VerdictName[] = ["thrives here", "possible with care", "good for part of the year", "not enough data yet", "struggles here"];
-
-export type FitGroup = { verdict: string; gist: string; names: string[] };
-
-/** Groups the fits after the top `top` by verdict, then by the gist of their first reason, biggest first within a verdict. */
-export function groupFits(fits: FitRow[], top: number): FitGroup[] {
-  const groups = new Map<string, FitGroup>();
-  for (const f of fits.slice(top)) {
-    const gist = gistOf(f);
-    const key = `${f.verdict}|${gist}`;
-    const g = groups.get(key) ?? { verdict: f.verdict, gist, names: [] };
-    g.names.push(f.name);
-    groups.set(key, g);
-  }
-  return [...groups.values()].sort(
-    (a, b) => ORDER.indexOf(a.verdict as VerdictName) - ORDER.indexOf(b.verdict as VerdictName) || b.names.length - a.names.length,
-  );
-}
 
 const listNames = (names: string[], max = 4) => {
   const short = names.map((n) => n.split(" (")[0]);

@@ -133,7 +133,7 @@ export function SpotCard({ spot, siteId, unit, now, periodText }: { spot: SpotCa
         <figcaption className="mt-1 text-xs text-muted">
           {low && high ? (
             <>
-              Coldest {formatTemp(low.c, unit)} ({low.month}), warmest {formatTemp(high.c, unit)} ({high.month}). Line: lowest to highest; bar: mean daily low to high, coloured cold to warm.
+              Coldest {formatTemp(low.c, unit)} ({low.month}), warmest {formatTemp(high.c, unit)} ({high.month}).
             </>
           ) : (
             "The year fills in as readings arrive."
@@ -182,7 +182,7 @@ const WHY = { wished: "on your wishlist", growing: "growing here", fits: "does w
 export function WhereMatrix({ rows, spots, siteId }: { rows: MatrixData; spots: { id: number; name: string }[]; siteId: number }) {
   if (rows.length === 0 || spots.length === 0) return null;
   return (
-    <div className="-mx-5 overflow-x-auto px-5">
+    <div className="relative -mx-5 overflow-x-auto px-5">
       <table className="w-full border-collapse text-sm" data-testid="where-matrix">
         <caption className="sr-only">Where each plant group grows: a verdict for every spot</caption>
         <thead>
@@ -191,7 +191,7 @@ export function WhereMatrix({ rows, spots, siteId }: { rows: MatrixData; spots: 
               Group
             </th>
             {spots.map((s) => (
-              <th key={s.id} scope="col" className="min-w-[3.25rem] px-1 py-2 align-bottom text-xs leading-tight font-medium">
+              <th key={s.id} scope="col" className="min-w-[3rem] px-1 py-2 align-bottom text-xs leading-tight font-medium">
                 <Link to={`/sites/${siteId}/spots/${s.id}`} className="hover:underline">
                   {s.name}
                 </Link>
@@ -202,7 +202,7 @@ export function WhereMatrix({ rows, spots, siteId }: { rows: MatrixData; spots: 
         <tbody>
           {rows.map((r) => (
             <tr key={r.key} className="border-t border-stone-line">
-              <th scope="row" className="py-2 pr-2 text-left font-normal">
+              <th scope="row" className="max-w-[9rem] py-2 pr-2 text-left font-normal sm:max-w-none">
                 <Link to={`/sites/${siteId}/plants/${r.key}`} className="font-medium hover:underline">
                   {r.name}
                 </Link>
