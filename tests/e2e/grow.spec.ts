@@ -6,14 +6,14 @@ test("the spot page folds the day-by-day year, the dew-point margin and the numb
   await signIn(page, DEMO.owner);
   await page.goto("/sites/1");
   await page.getByRole("link", { name: /Spare room/ }).first().click();
-  await page.getByTestId("fold-days").locator("summary").click();
+  await page.getByTestId("fold-days").locator(":scope > summary").click();
   for (const id of ["chart-year", "chart-margin"]) {
     await expect(page.getByTestId(id).locator("canvas")).toHaveCount(1);
   }
   await expect(page.getByTestId("chart-year").locator("canvas")).toBeVisible();
   // The monthly envelope chart is gone: the year strip draws the same figures (issue 17).
   await expect(page.getByTestId("chart-envelope")).toHaveCount(0);
-  await page.getByTestId("fold-numbers").locator("summary").click();
+  await page.getByTestId("fold-numbers").locator(":scope > summary").click();
   await expect(page.getByTestId("season-table")).toBeVisible();
   await expect(page.getByTestId("season-table")).toContainText("January");
   await expect(page.getByTestId("inventory")).toContainText("Blush");
