@@ -182,7 +182,9 @@ const WHY = { wished: "on your wishlist", growing: "growing here", fits: "does w
 export function WhereMatrix({ rows, spots, siteId }: { rows: MatrixData; spots: { id: number; name: string }[]; siteId: number }) {
   if (rows.length === 0 || spots.length === 0) return null;
   return (
-    <div className="relative -mx-5 overflow-x-auto px-5">
+    <>
+      {spots.length > 4 ? <p className="text-xs text-muted sm:hidden">Slide the table sideways for all {spots.length} spots.</p> : null}
+      <div className="relative -mx-5 overflow-x-auto px-5">
       <table className="w-full border-collapse text-sm" data-testid="where-matrix">
         <caption className="sr-only">Where each plant group grows: a verdict for every spot</caption>
         <thead>
@@ -218,6 +220,7 @@ export function WhereMatrix({ rows, spots, siteId }: { rows: MatrixData; spots: 
           ))}
         </tbody>
       </table>
-    </div>
+      </div>
+    </>
   );
 }
