@@ -1,4 +1,4 @@
-import { NavLink, Outlet, useLocation } from "react-router";
+import { Link, Outlet, useLocation } from "react-router";
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
 import { getSite } from "~/.server/sites";
 import { alertBanner } from "~/.server/alerts/queries";
@@ -39,6 +39,9 @@ export default function SiteLayout({ loaderData }: Route.ComponentProps) {
     tabs
       .filter((t) => (t.end ? location.pathname === t.to : location.pathname === t.to || location.pathname.startsWith(`${t.to}/`)))
       .sort((a, b) => b.to.length - a.to.length)[0] ?? (location.pathname.startsWith(`${base}/spots`) ? tabs[0] : undefined);
+  // The tab's own page is the current page; a page under it (a spot of Spots) is its current location.
+  const here = (t: (typeof tabs)[number]) =>
+    t === current ? { "data-here": "", "aria-current": location.pathname === t.to ? ("page" as const) : ("location" as const) } : {};
   return (
     <main className="mx-auto max-w-6xl px-4 pt-6 pb-16 sm:px-6">
       <div className="flex flex-wrap items-baseline justify-between gap-2">
@@ -59,9 +62,9 @@ export default function SiteLayout({ loaderData }: Route.ComponentProps) {
           <ul className="mt-1 grid grid-cols-2 gap-1 rounded-md border border-stone-line bg-card p-2">
             {tabs.map((t) => (
               <li key={t.to}>
-                <NavLink to={t.to} end={t.end} className="block rounded px-3 py-2.5 text-sm font-medium aria-[current=page]:bg-stone aria-[current=page]:font-semibold">
+                <Link to={t.to} {...here(t)} className="block rounded px-3 py-2.5 text-sm font-medium data-[here]:bg-stone data-[here]:font-semibold">
                   {t.label}
-                </NavLink>
+                </Link>
               </li>
             ))}
           </ul>
@@ -69,13 +72,13 @@ export default function SiteLayout({ loaderData }: Route.ComponentProps) {
         <ul className="hidden flex-wrap gap-x-1 border-b border-line sm:flex">
           {tabs.map((t) => (
             <li key={t.to}>
-              <NavLink
+              <Link
                 to={t.to}
-                end={t.end}
-                className="block border-b-2 border-transparent px-3 py-2.5 text-sm font-medium text-muted hover:text-ink aria-[current=page]:border-accent aria-[current=page]:text-ink"
+                {...here(t)}
+                className="block border-b-2 border-transparent px-3 py-2.5 text-sm font-medium text-muted hover:text-ink data-[here]:border-accent data-[here]:text-ink"
               >
                 {t.label}
-              </NavLink>
+              </Link>
             </li>
           ))}
         </ul>
