@@ -63,7 +63,9 @@ export async function siteMap(site: Site, unit: TempUnit, now = new Date()) {
     const period = periods.get(spot.id)!;
     const verdicts = new Map(fits.map((f) => [f.key, f]));
     const standing = inventory.filter((i) => i.spotId === spot.id);
-    const top = fits.filter((f) => f.verdict !== "struggles here").slice(0, 3);
+    // "Grows best here" names only groups judged to grow; those not judged yet are counted apart.
+    const top = fits.filter((f) => f.verdict !== "struggles here" && f.verdict !== "not enough data yet").slice(0, 3);
+    const pending = fits.filter((f) => f.verdict === "not enough data yet").length;
     const r = live.get(spot.id);
     return {
       id: spot.id,
@@ -82,6 +84,7 @@ export async function siteMap(site: Site, unit: TempUnit, now = new Date()) {
         meanDailyHigh: m.temperature.meanDailyHigh,
         enough: m.coverage.enough,
       })),
+      pending,
       best: top.map((f) => ({ key: f.key, name: f.name, verdict: f.verdict, reason: f.reasons[0]?.message ?? null })),
       standing: standing.map((s) => ({
         id: s.id,

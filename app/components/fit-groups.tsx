@@ -21,13 +21,17 @@ export function VerdictSummary({ fits, period, days }: { fits: FitRow[]; period:
   ];
   const shown = parts.filter((p) => p.names.length > 0);
   const allUnknown = fits.length > 0 && shown.length === 1 && shown[0].verdict === "not enough data yet";
+  if (days === 0)
+    return (
+      <div className="space-y-2" data-testid="verdict-summary">
+        <p className="text-lg">No readings here yet: place a sensor, and the first verdicts follow as the months fill in.</p>
+      </div>
+    );
   return (
     <div className="space-y-2" data-testid="verdict-summary">
-      {days === 0 ? (
-        <p className="text-lg">No readings here yet: place a sensor and the first verdicts follow as the months fill in.</p>
-      ) : allUnknown ? (
+      {allUnknown ? (
         <p className="text-lg">
-          {days} {days === 1 ? "day" : "days"} of readings so far: too few to judge a year. Nothing here rules a group out yet.
+          {days} {days === 1 ? "day" : "days"} of readings so far: too few to judge a year. Nothing here rules these groups out yet.
         </p>
       ) : null}
       <ul className="space-y-1.5">

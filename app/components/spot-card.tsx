@@ -18,6 +18,8 @@ export type SpotCardData = {
   days: number;
   year: CardMonth[];
   best: { key: string; name: string; verdict: string; reason: string | null }[];
+  /** Groups nothing rules out yet, with months still too thin to judge. */
+  pending: number;
   standing: { id: number; name: string; plant: string; pots: number; verdict: string | null }[];
   alerts: { id: number; kind: string; acknowledged: boolean }[];
   openNotes: number;
@@ -121,6 +123,11 @@ export function SpotCard({ spot, siteId, unit, now, periodText }: { spot: SpotCa
           </ul>
         ) : spot.days === 0 ? (
           <p className="text-sm text-muted">Nothing judged yet: no readings. Place a sensor here.</p>
+        ) : spot.pending ? (
+          <p className="text-sm">
+            <VerdictWords verdict="not enough data yet">Not judged yet</VerdictWords>: too few months measured; nothing rules out {spot.pending}{" "}
+            {spot.pending === 1 ? "group" : "groups"} so far.
+          </p>
         ) : (
           <p className="text-sm">
             <VerdictWords verdict="struggles here">Every group struggles here</VerdictWords>

@@ -188,7 +188,7 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
               {latest.rh != null ? `, ${Math.round(latest.rh)} % RH` : ""}, measured {timeAgo(latest.measured_at, now)}
             </p>
           ) : (
-            <p>No readings here yet. Place a sensor in this spot and its readings will show up here.</p>
+            <p>Waiting for the first reading.</p>
           )}
         </div>
       </section>

@@ -93,3 +93,34 @@ test.describe("at 390 px", () => {
     await expect(table.locator("tbody tr").first().locator("td").first()).toHaveCSS("display", "flex");
   });
 });
+
+test.describe("a new spot", () => {
+  test.use({ viewport: { width: 390, height: 844 } });
+
+  test("says on day one that nothing is judged yet, on its page and on the site home", async ({ page }) => {
+    await signIn(page, DEMO.owner);
+    await page.goto("/sites/1/spots/new");
+    await page.getByLabel("Name").fill("Day one shelf");
+    await page.getByRole("button", { name: "Add spot" }).click();
+    await expect(page.getByRole("heading", { name: "Day one shelf" })).toBeVisible();
+    const spotUrl = new URL(page.url()).pathname;
+    const answer = page.getByTestId("verdict-summary");
+    await expect(answer).toBeInViewport({ ratio: 1 });
+    await expect(answer).toContainText("No readings here yet");
+    // No verdict list and no judged period for a spot without readings.
+    await expect(answer.locator("li")).toHaveCount(0);
+    await expect(page.getByTestId("judged-period")).toHaveCount(0);
+
+    await page.goto("/sites/1");
+    const card = page.getByTestId("spot-card").filter({ hasText: "Day one shelf" });
+    await expect(card).toContainText("Nothing judged yet");
+    await expect(card.getByTestId("card-best")).toHaveCount(0);
+    await expect(page.getByTestId("where-matrix").locator("td[data-verdict]").first()).toBeAttached();
+
+    // Leave the demo as it was.
+    await page.goto(`${spotUrl}/edit`);
+    await page.getByLabel("Type “Day one shelf” to confirm").fill("Day one shelf");
+    await page.getByRole("button", { name: "Delete spot" }).click();
+    await expect(page.getByRole("link", { name: "Day one shelf" })).toHaveCount(0);
+  });
+});
