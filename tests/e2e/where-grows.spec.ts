@@ -31,7 +31,11 @@ test.describe("at 1280 px", () => {
       await expect(card).toContainText("Latest hour");
     }
     const spare = cards.filter({ hasText: "Spare room (heated)" });
-    await expect(spare.getByTestId("card-best").locator("li")).not.toHaveCount(0);
+    // The end-to-end demo has 120 days of readings (NW_BACKFILL_DAYS in playwright.config.ts): too
+    // few months to judge a heated room for a year, so its card names no best groups but counts
+    // those nothing rules out, rather than listing "not enough data yet" as what grows best.
+    await expect(spare.getByTestId("card-best")).toHaveCount(0);
+    await expect(spare).toContainText(/Not judged yet.*nothing rules out \d+ groups so far/);
     await expect(spare.getByTestId("card-plants")).toContainText("Blush");
     // The mentor's note on the landing sill is counted on its card and leads to the spot's notes.
     const landing = cards.filter({ hasText: "Landing sill (south-west)" });
