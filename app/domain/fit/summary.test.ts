@@ -17,7 +17,7 @@ describe("grouping a spot's fits after the top few (issue 17)", () => {
     ];
     expect(groupFits(fits, 1)).toEqual([
       { verdict: "possible with care", gist: "air too dry or too damp for them", names: ["Begonia", "Ludisia"] },
-      { verdict: "good for part of the year", gist: "good only for a run of months", names: ["Cymbidium"] },
+      { verdict: "good for part of the year", gist: "nights below their minimum", names: ["Cymbidium"] },
       { verdict: "struggles here", gist: "nights below their minimum", names: ["Phalaenopsis", "Vanda", "Paphiopedilum"] },
       { verdict: "struggles here", gist: "days above their maximum", names: ["Masdevallia"] },
     ]);
@@ -26,6 +26,7 @@ describe("grouping a spot's fits after the top few (issue 17)", () => {
   it("names a fit with no reason by what it lacks, and every fit lands in exactly one group", () => {
     expect(gistOf(fit("A", "not enough data yet"))).toBe("months still without enough readings");
     expect(gistOf(fit("B", "thrives here"))).toBe("nothing asks for care");
+    expect(gistOf(fit("C", "good for part of the year", "seasonal"))).toBe("good only for a run of months");
     const fits = Array.from({ length: 25 }, (_, i) => fit(`G${i}`, i % 2 ? "struggles here" : "possible with care", i % 3 ? "cold-nights" : "light"));
     const groups = groupFits(fits, 3);
     expect(groups.flatMap((g) => g.names).sort()).toEqual(fits.slice(3).map((f) => f.name).sort());

@@ -17,7 +17,8 @@ const REASON_GIST: Record<string, string> = {
 };
 
 export const gistOf = (f: Pick<FitLike, "verdict" | "reasons">) => {
-  const first = f.reasons[0];
+  // "Good for part of the year" says the season already: name what rules out the rest of it.
+  const first = f.reasons.find((r) => r.rule !== "seasonal") ?? f.reasons[0];
   if (first) return REASON_GIST[first.rule] ?? "other reasons";
   if (f.verdict === "not enough data yet") return "months still without enough readings";
   return "nothing asks for care";
