@@ -10,7 +10,8 @@ const listNames = (names: string[], max = 4) => {
 };
 
 /** "Suits: …; possible with care: …; not here: …" — the spot's answer in one paragraph. */
-export function VerdictSummary({ fits, period, days }: { fits: FitRow[]; period: string; days: number }) {
+/** `pastPeriod`: the grower chose twelve months other than the latest with readings. */
+export function VerdictSummary({ fits, period, days, pastPeriod = false }: { fits: FitRow[]; period: string; days: number; pastPeriod?: boolean }) {
   const by = (v: string) => fits.filter((f) => f.verdict === v).map((f) => f.name);
   const parts: { verdict: VerdictName; label: string; names: string[] }[] = [
     { verdict: "thrives here", label: "Suits", names: by("thrives here") },
@@ -24,7 +25,16 @@ export function VerdictSummary({ fits, period, days }: { fits: FitRow[]; period:
   if (days === 0)
     return (
       <div className="space-y-2" data-testid="verdict-summary">
-        <p className="text-lg">No readings here yet: place a sensor, and the first verdicts follow as the months fill in.</p>
+        {pastPeriod ? (
+          <>
+            <p className="text-lg">No readings here in the twelve months chosen: pick a period with readings under the year strip.</p>
+            <p className="text-sm text-muted" data-testid="judged-period">
+              Judged on {period}.
+            </p>
+          </>
+        ) : (
+          <p className="text-lg">No readings here yet: place a sensor, and the first verdicts follow as the months fill in.</p>
+        )}
       </div>
     );
   return (

@@ -179,6 +179,7 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
         <VerdictSummary
           fits={loaderData.fits}
           days={days}
+          pastPeriod={loaderData.period.chosen !== "latest"}
           period={`${periodLabel(loaderData.period)}${loaderData.period.chosen === "latest" ? ", this spot's latest twelve months with readings" : ""}`}
         />
         <div className="mt-3 border-t border-stone-line pt-2 text-sm text-muted tabular-nums" aria-live="polite" data-testid="live-tile">
