@@ -51,13 +51,18 @@ export default function SiteLayout({ loaderData }: Route.ComponentProps) {
       <nav aria-label="Site" className="mt-4 mb-6">
         {/* A phone gets a menu that names the section you are in (closed again after each move);
             a wider screen gets every tab, wrapping rather than scrolling out of sight. */}
-        <details key={location.pathname} className="site-menu sm:hidden" data-testid="site-menu">
+        <details key={location.pathname} className="group sm:hidden" data-testid="site-menu">
           <summary className="flex cursor-pointer items-center justify-between gap-3 rounded-md border border-stone-line bg-card px-4 py-3">
             <span>
               <span className="eyebrow block">Section</span>
-              <span className="font-semibold">{current?.label ?? "Spots"}</span>
+              <span className="font-semibold">{current?.label ?? "Choose a section"}</span>
             </span>
-            <span className="text-sm text-muted">all {tabs.length} sections</span>
+            <span className="text-sm text-muted">
+              all {tabs.length} sections{" "}
+              <span aria-hidden="true" className="inline-block transition-transform group-open:rotate-180">
+                ▾
+              </span>
+            </span>
           </summary>
           <ul className="mt-1 grid grid-cols-2 gap-1 rounded-md border border-stone-line bg-card p-2">
             {tabs.map((t) => (
