@@ -9,6 +9,7 @@ import { listSpots } from "~/.server/sites";
 import { siteEvents } from "~/.server/alerts/queries";
 import { listNotes } from "~/.server/notes";
 import { GLAZING_U } from "~/domain/climate/glass";
+import type { GlassContext } from "~/domain/fit/cold-glass";
 import { VERDICT_ORDER } from "~/domain/fit/verdict";
 import type { Site } from "~/db/schema.server";
 import type { TempUnit } from "~/lib/units";
@@ -32,22 +33,22 @@ export async function siteMap(site: Site, unit: TempUnit, now = new Date()) {
       select distinct on (spot_id) spot_id, hour, t_sum / nullif(t_n, 0) as t, h_sum / nullif(h_n, 0) as h
       from hourly_rollups where spot_id in (select id from spots where site_id = ${site.id})
       order by spot_id, hour desc`),
-    ids.length ? judgedPeriods(site, ids, { kind: "latest" }, now) : Promise.resolve(new Map()),
+    judgedPeriods(site, ids, { kind: "latest" }, now),
   ]);
-  const profiles = ids.length ? await spotProfiles(site, ids, now, { periods, plants }) : new Map();
+  const profiles = await spotProfiles(site, ids, now, { periods, plants });
   const outdoor = spots.find((s) => !s.indoor);
   const format = { unit };
   const fitsBySpot = new Map<number, ReturnType<typeof fitsFor>>();
   for (const spot of spots) {
     const season = profiles.get(spot.id)!;
     const glazing = parseGlazing(spot.glazing);
-    let glass;
+    let glass: GlassContext | undefined;
     if (glazing && spot.indoor && spot.facing !== "none" && outdoor) {
       // The outdoor spot's profile is already here when both are judged on the same period.
       const a = periods.get(spot.id), b = periods.get(outdoor.id);
       if (a && b && a.from.getTime() === b.from.getTime() && a.to.getTime() === b.to.getTime()) {
         const lows = new Map<number, number>(
-          profiles.get(outdoor.id)!.year.filter((m: { temperature: { meanDailyLow: number | null } }) => m.temperature.meanDailyLow !== null).map((m: { month: number; temperature: { meanDailyLow: number | null } }) => [m.month, m.temperature.meanDailyLow!] as const),
+          profiles.get(outdoor.id)!.year.filter((m) => m.temperature.meanDailyLow !== null).map((m) => [m.month, m.temperature.meanDailyLow!] as const),
         );
         glass = lows.size > 0 ? { uValue: GLAZING_U[glazing], outdoorLowByMonth: lows } : undefined;
       } else glass = await glassContextFor(site, spot, spots, a!, glazing, now);
@@ -74,8 +75,8 @@ export async function siteMap(site: Site, unit: TempUnit, now = new Date()) {
       facing: spot.facing,
       capacity: spot.capacity,
       period: { firstMonth: period.firstMonth, lastMonth: period.lastMonth, toToday: period.toToday },
-      days: season.year.reduce((n: number, m: { coverage: { daysObserved: number } }) => n + m.coverage.daysObserved, 0),
-      year: season.year.map((m: { key: string; name: string; temperature: { lowest: number | null; highest: number | null; meanDailyLow: number | null; meanDailyHigh: number | null }; coverage: { enough: boolean; daysObserved: number } }) => ({
+      days: season.year.reduce((n, m) => n + m.coverage.daysObserved, 0),
+      year: season.year.map((m) => ({
         key: m.key,
         name: m.name,
         lowest: m.temperature.lowest,
@@ -108,8 +109,9 @@ export async function siteMap(site: Site, unit: TempUnit, now = new Date()) {
   for (const w of wishes) add(w.plantKey, "wished");
   for (const i of inventory) add(i.plantKey, "growing");
   const bestAnywhere = plants
-    .map((p) => ({ key: p.key, rank: Math.min(...spots.map((s) => VERDICT_ORDER.indexOf((fitsBySpot.get(s.id)!.find((f) => f.key === p.key)?.verdict ?? "struggles here") as never))) }))
-    .filter((p) => p.rank < VERDICT_ORDER.indexOf("struggles here"))
+    .map((p) => ({ key: p.key, rank: Math.min(...spots.map((s) => VERDICT_ORDER.indexOf(fitsBySpot.get(s.id)!.find((f) => f.key === p.key)?.verdict ?? "struggles here"))) }))
+    // "Does well somewhere": judged to grow (not merely not ruled out yet) in at least one spot.
+    .filter((p) => p.rank < VERDICT_ORDER.indexOf("not enough data yet"))
     .sort((a, b) => a.rank - b.rank);
   for (const p of bestAnywhere) if (rows.length < MATRIX_ROWS) add(p.key, "fits");
   const matrix: MatrixRow[] = rows.map(({ key, why }) => ({
