@@ -1,22 +1,10 @@
 import type { SlimProfile } from "~/.server/profiles";
 import { formatDelta, formatTemp, type TempUnit } from "~/lib/units";
+import { VerdictWords } from "~/components/verdict-mark";
 
-const VERDICT_STYLE: Record<string, { icon: string; cls: string }> = {
-  "thrives here": { icon: "✓", cls: "text-good border-good/30 bg-good/5" },
-  "possible with care": { icon: "◐", cls: "text-care border-care/30 bg-care/5" },
-  "good for part of the year": { icon: "◑", cls: "text-care border-care/30 bg-care/5" },
-  "struggles here": { icon: "✕", cls: "text-poor border-poor/30 bg-poor/5" },
-  "not enough data yet": { icon: "…", cls: "text-muted border-line bg-paper" },
-};
-
+/** A verdict as words first with Nichewise's niche mark after it (docs/design.md), no pill. */
 export function VerdictBadge({ verdict }: { verdict: string }) {
-  const s = VERDICT_STYLE[verdict] ?? VERDICT_STYLE["not enough data yet"];
-  return (
-    <span className={`inline-flex items-center gap-1.5 rounded-full border px-2.5 py-0.5 text-sm font-semibold ${s.cls}`}>
-      <span aria-hidden="true">{s.icon}</span>
-      {verdict}
-    </span>
-  );
+  return <VerdictWords verdict={verdict} />;
 }
 
 export type FitRow = {
@@ -31,9 +19,9 @@ export type FitRow = {
   missingAdvice: string | null;
 };
 
-export function FitList({ fits }: { fits: FitRow[]; unit: TempUnit; siteId: number }) {
+export function FitList({ fits, testId = "fit-list" }: { fits: FitRow[]; unit: TempUnit; siteId: number; testId?: string }) {
   return (
-    <ul className="divide-y divide-line" data-testid="fit-list">
+    <ul className="divide-y divide-line" data-testid={testId}>
       {fits.map((f) => (
         <li key={f.key} className="py-3">
           <div className="flex flex-wrap items-center gap-x-3 gap-y-1">
@@ -73,55 +61,47 @@ export function FitList({ fits }: { fits: FitRow[]; unit: TempUnit; siteId: numb
 
 export function SeasonTable({ months, seasons, unit }: { months: SlimProfile["year"]; seasons: SlimProfile["seasons"]; unit: TempUnit }) {
   const rows = [...months.map((m) => ({ ...m, label: m.name })), ...seasons.map((s) => ({ ...s, name: s.label }))];
+  type Row = (typeof rows)[number];
+  const columns: { label: string; cell: (m: Row) => string | number }[] = [
+    { label: "Lowest", cell: (m) => formatTemp(m.temperature.lowest, unit) },
+    { label: "5 %", cell: (m) => formatTemp(m.temperature.p05, unit) },
+    { label: "Mean daily low", cell: (m) => formatTemp(m.temperature.meanDailyLow, unit) },
+    { label: "Mean daily high", cell: (m) => formatTemp(m.temperature.meanDailyHigh, unit) },
+    { label: "95 %", cell: (m) => formatTemp(m.temperature.p95, unit) },
+    { label: "Highest", cell: (m) => formatTemp(m.temperature.highest, unit) },
+    { label: "Day–night", cell: (m) => formatDelta(m.temperature.meanDayNightDifference, unit) },
+    { label: "RH low–high", cell: (m) => (m.humidity.lowest != null ? `${Math.round(m.humidity.lowest)}–${Math.round(m.humidity.highest ?? 0)} %` : "–") },
+    { label: "Hours < 10 °C", cell: (m) => m.below.find((b) => b.thresholdC === 10)?.hours ?? "–" },
+    { label: "Near dew point (h)", cell: (m) => m.condensationHours },
+    { label: "DLI", cell: (m) => (m.light.meanDli != null ? m.light.meanDli.toFixed(1) : "–") },
+    { label: "Days", cell: (m) => `${m.coverage.daysObserved}/${m.coverage.daysInPeriod}` },
+  ];
+  // Under `sm` each row is a card of label–value pairs (the .stack-table class), so a phone reads it without scrolling sideways.
   return (
-    <div className="-mx-5 overflow-x-auto px-5">
-      <table className="table min-w-[48rem]" data-testid="season-table">
+    <div className="sm:-mx-5 sm:overflow-x-auto sm:px-5">
+      <table className="table stack-table sm:min-w-[48rem]" data-testid="season-table">
         <thead>
           <tr>
             <th>Period</th>
-            <th>Lowest</th>
-            <th>5 %</th>
-            <th>Mean daily low</th>
-            <th>Mean daily high</th>
-            <th>95 %</th>
-            <th>Highest</th>
-            <th>Day–night</th>
-            <th>RH low–high</th>
-            <th>Hours &lt; 10 °C</th>
-            <th>Near dew point (h)</th>
-            <th>DLI</th>
-            <th>Days</th>
+            {columns.map((c) => (
+              <th key={c.label}>{c.label}</th>
+            ))}
           </tr>
         </thead>
         <tbody>
-          {rows.map((m) => {
-            const t = m.temperature;
-            const ten = m.below.find((b) => b.thresholdC === 10);
-            return (
-              <tr key={m.key} className={m.coverage.enough ? "" : "text-muted"}>
-                <td className="font-medium">
-                  {m.label}
-                  {m.coverage.enough ? "" : " *"}
+          {rows.map((m) => (
+            <tr key={m.key} className={m.coverage.enough ? "" : "text-muted"}>
+              <th scope="row" className="font-medium text-ink">
+                {m.label}
+                {m.coverage.enough ? "" : " *"}
+              </th>
+              {columns.map((c) => (
+                <td key={c.label} data-label={c.label}>
+                  {c.cell(m)}
                 </td>
-                <td>{formatTemp(t.lowest, unit)}</td>
-                <td>{formatTemp(t.p05, unit)}</td>
-                <td>{formatTemp(t.meanDailyLow, unit)}</td>
-                <td>{formatTemp(t.meanDailyHigh, unit)}</td>
-                <td>{formatTemp(t.p95, unit)}</td>
-                <td>{formatTemp(t.highest, unit)}</td>
-                <td>{formatDelta(t.meanDayNightDifference, unit)}</td>
-                <td>
-                  {m.humidity.lowest != null ? `${Math.round(m.humidity.lowest)}–${Math.round(m.humidity.highest ?? 0)} %` : "–"}
-                </td>
-                <td>{ten?.hours ?? "–"}</td>
-                <td>{m.condensationHours}</td>
-                <td>{m.light.meanDli != null ? m.light.meanDli.toFixed(1) : "–"}</td>
-                <td>
-                  {m.coverage.daysObserved}/{m.coverage.daysInPeriod}
-                </td>
-              </tr>
-            );
-          })}
+              ))}
+            </tr>
+          ))}
         </tbody>
       </table>
       <p className="mt-2 text-xs text-muted">

@@ -1,76 +1,68 @@
-import { sql } from "drizzle-orm";
 import { Link } from "react-router";
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
-import { db } from "~/.server/db";
-import { listSpots } from "~/.server/sites";
+import { getSite } from "~/.server/sites";
+import { siteMap } from "~/.server/site-map";
 import { useNow } from "~/components/use-now";
-import { formatTemp } from "~/lib/units";
-import { timeAgo } from "~/lib/time";
+import { SpotCard, WhereMatrix } from "~/components/spot-card";
+import { VerdictKey } from "~/components/verdict-mark";
+import { periodLabel } from "~/components/period-picker";
 import type { Route } from "./+types/site.spots";
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { siteId, role, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
-  const spots = await listSpots(siteId);
-  // The newest hour of each spot, from the rollups (cheap; the spot page shows the live reading).
-  const latest = await db().execute<{ spot_id: number; hour: string; t: number | null; h: number | null }>(sql`
-    select distinct on (spot_id) spot_id, hour, t_sum / nullif(t_n, 0) as t, h_sum / nullif(h_n, 0) as h
-    from hourly_rollups where spot_id in (select id from spots where site_id = ${siteId})
-    order by spot_id, hour desc`);
-  const bySpot = new Map(latest.rows.map((r) => [r.spot_id, r]));
-  return {
-    now: Date.now(),
-    role,
-    unit: user.temperatureUnit,
-    spots: spots.map((s) => ({ ...s, latest: bySpot.get(s.id) ?? null })),
-  };
+  const site = await getSite(siteId);
+  const { cards, matrix } = await siteMap(site, user.temperatureUnit);
+  return { now: Date.now(), role, unit: user.temperatureUnit, cards, matrix };
 }
 
 export default function SiteSpots({ loaderData, params }: Route.ComponentProps) {
-  const { spots, role, unit } = loaderData;
+  const { cards, matrix, role, unit } = loaderData;
   const now = useNow(loaderData.now);
+  const siteId = Number(params.siteId);
   return (
-    <section>
-      <div className="mb-4 flex items-center justify-between gap-4">
-        <p className="text-muted">{spots.length === 0 ? "No spots yet." : "The places you are measuring."}</p>
-        {role === "owner" ? (
-          <Link to={`/sites/${params.siteId}/spots/new`} className="btn">
-            Add a spot
-          </Link>
-        ) : null}
-      </div>
-      <ul className="grid gap-4 sm:grid-cols-2 lg:grid-cols-3">
-        {spots.map((s) => (
-          <li key={s.id}>
-            <Link to={`/sites/${params.siteId}/spots/${s.id}`} className="card block h-full hover:border-accent/50">
-              <div className="flex items-start justify-between gap-3">
-                <p className="text-lg font-semibold">{s.name}</p>
-                <span className="rounded-full bg-paper px-2 py-0.5 text-xs font-medium text-muted">
-                  {s.indoor ? "indoors" : "outdoors"}
-                  {s.facing !== "none" ? ` · faces ${s.facing}` : ""}
-                </span>
-              </div>
-              {s.latest ? (
-                <p className="mt-3 text-2xl font-semibold tabular-nums">
-                  {s.latest.t != null ? formatTemp(s.latest.t, unit) : "–"}
-                  <span className="ml-3 text-base font-normal text-muted">
-                    {s.latest.h != null ? `${Math.round(s.latest.h)} % RH` : ""}
-                  </span>
-                </p>
-              ) : (
-                <p className="mt-3 text-sm text-muted">No readings yet — place a sensor here.</p>
-              )}
-              <p className="mt-2 text-sm text-muted">
-                {s.capacity > 0 ? `Room for ${s.capacity} pots` : "Capacity not set"}
-                {s.latest
-                  ? now - new Date(s.latest.hour).getTime() < 3_600_000
-                    ? " · average so far this hour"
-                    : ` · nothing heard for ${timeAgo(new Date(new Date(s.latest.hour).getTime() + 3_600_000), now).replace(" ago", "")}`
-                  : ""}
-              </p>
+    <div className="space-y-8">
+      <section aria-labelledby="where-heading" className="space-y-3">
+        <div className="flex flex-wrap items-end justify-between gap-3">
+          <div>
+            <h2 id="where-heading" className="text-xl font-semibold tracking-tight">
+              Where what grows
+            </h2>
+            <p className="text-sm text-muted">
+              {cards.length === 0
+                ? "No spots yet: add the places you want to measure."
+                : "Each spot judged on its latest twelve months of readings, for the plants you grow and want first."}
+            </p>
+          </div>
+          {role === "owner" ? (
+            <Link to={`/sites/${params.siteId}/spots/new`} className="btn">
+              Add a spot
             </Link>
-          </li>
-        ))}
-      </ul>
-    </section>
+          ) : null}
+        </div>
+        {matrix.length ? (
+          <div className="niche space-y-3">
+            <VerdictKey />
+            <WhereMatrix rows={matrix} spots={cards.map((c) => ({ id: c.id, name: c.name }))} siteId={siteId} />
+          </div>
+        ) : null}
+      </section>
+
+      <section aria-labelledby="spots-heading">
+        <h2 id="spots-heading" className="text-xl font-semibold tracking-tight">
+          The spots
+        </h2>
+        <p className="mb-3 text-sm text-muted">
+          Each spot's year in a small strip: a line from the month's lowest to its highest, a bar from the mean daily low to the mean daily high,
+          coloured from cold (blue) to warm (orange). Faded months have too few days of readings.
+        </p>
+        <ul className="grid gap-4 sm:grid-cols-2 lg:grid-cols-3">
+          {cards.map((c) => (
+            <li key={c.id}>
+              <SpotCard spot={c} siteId={siteId} unit={unit} now={now} periodText={periodLabel(c.period)} />
+            </li>
+          ))}
+        </ul>
+      </section>
+    </div>
   );
 }

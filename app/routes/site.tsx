@@ -1,5 +1,4 @@
-import { useEffect, useRef } from "react";
-import { NavLink, Outlet, useLocation } from "react-router";
+import { Link, Outlet, useLocation } from "react-router";
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
 import { getSite } from "~/.server/sites";
 import { alertBanner } from "~/.server/alerts/queries";
@@ -20,12 +19,7 @@ const roleNote = {
 };
 
 export default function SiteLayout({ loaderData }: Route.ComponentProps) {
-  // On a phone the tabs scroll sideways: keep the current one in view.
-  const navRef = useRef<HTMLElement>(null);
   const location = useLocation();
-  useEffect(() => {
-    navRef.current?.querySelector<HTMLElement>("[aria-current=page]")?.scrollIntoView({ block: "nearest", inline: "center" });
-  }, [location.pathname]);
   const { site, role } = loaderData;
   const base = `/sites/${site.id}`;
   const tabs = [
@@ -40,23 +34,59 @@ export default function SiteLayout({ loaderData }: Route.ComponentProps) {
     { to: `${base}/members`, label: "People" },
     ...(role === "owner" ? [{ to: `${base}/edit`, label: "Site details" }] : []),
   ];
+  // The section you are in: the tab whose address starts this page's (a spot's pages belong to Spots).
+  const current =
+    tabs
+      .filter((t) => (t.end ? location.pathname === t.to : location.pathname === t.to || location.pathname.startsWith(`${t.to}/`)))
+      .sort((a, b) => b.to.length - a.to.length)[0] ?? (location.pathname.startsWith(`${base}/spots`) ? tabs[0] : undefined);
+  // The tab's own page is the current page; a page under it (a spot of Spots) is its current location.
+  const here = (t: (typeof tabs)[number]) =>
+    t === current ? { "data-here": "", "aria-current": location.pathname === t.to ? ("page" as const) : ("location" as const) } : {};
   return (
     <main className="mx-auto max-w-6xl px-4 pt-6 pb-16 sm:px-6">
       <div className="flex flex-wrap items-baseline justify-between gap-2">
         <h1 className="h1">{site.name}</h1>
         <p className="text-sm text-muted">{roleNote[role]}</p>
       </div>
-      <nav ref={navRef} aria-label="Site" className="-mx-4 mt-4 mb-6 flex gap-1 overflow-x-auto border-b border-line px-4 sm:mx-0 sm:px-0">
-        {tabs.map((t) => (
-          <NavLink
-            key={t.to}
-            to={t.to}
-            end={t.end}
-            className="shrink-0 border-b-2 border-transparent px-3 py-2.5 text-sm font-medium text-muted hover:text-ink aria-[current=page]:border-accent aria-[current=page]:text-ink"
-          >
-            {t.label}
-          </NavLink>
-        ))}
+      <nav aria-label="Site" className="mt-4 mb-6">
+        {/* A phone gets a menu that names the section you are in (closed again after each move);
+            a wider screen gets every tab, wrapping rather than scrolling out of sight. */}
+        <details key={location.pathname} className="group sm:hidden" data-testid="site-menu">
+          <summary className="flex cursor-pointer items-center justify-between gap-3 rounded-md border border-stone-line bg-card px-4 py-3">
+            <span>
+              <span className="eyebrow block">Section</span>
+              <span className="font-semibold">{current?.label ?? "Choose a section"}</span>
+            </span>
+            <span className="text-sm text-muted">
+              all {tabs.length} sections{" "}
+              <span aria-hidden="true" className="inline-block transition-transform group-open:rotate-180">
+                ▾
+              </span>
+            </span>
+          </summary>
+          <ul className="mt-1 grid grid-cols-2 gap-1 rounded-md border border-stone-line bg-card p-2">
+            {tabs.map((t) => (
+              <li key={t.to}>
+                <Link to={t.to} {...here(t)} className="block rounded px-3 py-2.5 text-sm font-medium data-[here]:bg-stone data-[here]:font-semibold">
+                  {t.label}
+                </Link>
+              </li>
+            ))}
+          </ul>
+        </details>
+        <ul className="hidden flex-wrap gap-x-1 border-b border-line sm:flex">
+          {tabs.map((t) => (
+            <li key={t.to}>
+              <Link
+                to={t.to}
+                {...here(t)}
+                className="block border-b-2 border-transparent px-3 py-2.5 text-sm font-medium text-muted hover:text-ink data-[here]:border-accent data-[here]:text-ink"
+              >
+                {t.label}
+              </Link>
+            </li>
+          ))}
+        </ul>
       </nav>
       <AlertBanner siteId={site.id} initial={loaderData.alerts} unit={loaderData.unit} />
       <Outlet />

@@ -6,7 +6,8 @@ import { getSite, getSpot, listSensors, listSpots, placementHistory } from "~/.s
 import { placeFromForm } from "~/.server/sensors.server";
 import { Chart, useSeries, type ChartSpec } from "~/components/chart";
 import { PlaceSensorForm, PlacementHistory, PlacingTips } from "~/components/placement";
-import { FitList, SeasonTable } from "~/components/season";
+import { SeasonTable } from "~/components/season";
+import { GroupedFits, VerdictSummary } from "~/components/fit-groups";
 import { useNow } from "~/components/use-now";
 import { YearStrip } from "~/components/year-strip";
 import { NotesPanel } from "~/components/notes-panel";
@@ -14,7 +15,7 @@ import { SpotExports } from "~/components/spot-exports";
 import { listNotes } from "~/.server/notes";
 import { DirectSun } from "~/components/direct-sun";
 import { Inventory } from "~/components/inventory";
-import { EnvelopeChart, YearCharts } from "~/components/spot-charts";
+import { YearCharts } from "~/components/spot-charts";
 import { inventoryAction, sitePlants } from "~/.server/plants";
 import { spotGrowing } from "~/.server/spot-growing";
 import { fitsFor, glassContextFor, judgedPeriods, parseGlazing, parsePeriod, pickableMonths, slimProfile, spotProfiles, windowOf } from "~/.server/profiles";
@@ -145,6 +146,9 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
   const series48 = useSeries(`/api/sites/${site.id}/spots/${spot.id}/series?range=48h`);
   const spec48 = useMemo(() => hoursChart(unit), [unit]);
 
+  const days = loaderData.profile.year.reduce((n, m) => n + m.coverage.daysObserved, 0);
+  const openNotes = loaderData.notes.filter((n) => n.resolvedAt === null).length;
+
   return (
     <div className="space-y-6">
       <div className="flex flex-wrap items-end justify-between gap-3">
@@ -168,20 +172,39 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
         </div>
       </div>
 
-      <section className="card" aria-live="polite" data-testid="live-tile">
-        {latest ? (
-          <div className="flex flex-wrap items-baseline gap-x-6 gap-y-1">
-            <p className="text-4xl font-semibold tabular-nums">{formatTemp(latest.temp, unit)}</p>
-            <p className="text-xl tabular-nums text-muted">{latest.rh != null ? `${Math.round(latest.rh)} % RH` : ""}</p>
-            <p className="text-sm text-muted">measured {timeAgo(latest.measured_at, now)}</p>
-          </div>
-        ) : (
-          <p className="text-muted">No readings here yet. Place a sensor in this spot and its readings will show up here.</p>
-        )}
+      <section id="answer" className="answer" aria-labelledby="answer-heading">
+        <h3 id="answer-heading" className="eyebrow mb-2">
+          What grows here
+        </h3>
+        <VerdictSummary
+          fits={loaderData.fits}
+          days={days}
+          pastPeriod={loaderData.period.chosen !== "latest"}
+          period={`${periodLabel(loaderData.period)}${loaderData.period.chosen === "latest" ? ", this spot's latest twelve months with readings" : ""}`}
+        />
+        <div className="mt-3 border-t border-stone-line pt-2 text-sm text-muted tabular-nums" aria-live="polite" data-testid="live-tile">
+          {latest ? (
+            <p>
+              Now: <span className="font-semibold text-ink">{formatTemp(latest.temp, unit)}</span>
+              {latest.rh != null ? `, ${Math.round(latest.rh)} % RH` : ""}, measured {timeAgo(latest.measured_at, now)}
+            </p>
+          ) : (
+            <p>Waiting for the first reading.</p>
+          )}
+        </div>
       </section>
 
+      <nav aria-label="On this page" className="page-index" data-testid="page-index">
+        <span className="eyebrow self-center">On this page</span>
+        <a className="link" href="#year">The year</a>
+        <a className="link" href="#fits">Every group</a>
+        <a className="link" href="#plants">Plants here</a>
+        <a className="link" href="#notes">Notes{openNotes ? ` (${openNotes} open)` : ""}</a>
+        {role !== "mentor" ? <a className="link" href="#place">Place a sensor here</a> : null}
+        <a className="link" href="#closer">Charts and numbers</a>
+      </nav>
 
-      <section className="card space-y-3">
+      <section id="year" className="card space-y-3">
         <YearStrip
           months={loaderData.profile.year}
           unit={unit}
@@ -210,13 +233,10 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
         </form>
       </section>
 
-      <section className="card">
-        <h3 className="h2 mb-1">What would grow here</h3>
-        <p className="mb-4 text-sm text-muted" data-testid="judged-period">
-          Plant groups from the library, best fit first, judged on {periodLabel(loaderData.period)}
-          {loaderData.period.chosen === "latest" ? ": this spot's latest twelve months with readings" : ""}.
-        </p>
-        <FitList fits={loaderData.fits} unit={unit} siteId={site.id} />
+      <section id="fits" className="card">
+        <h3 className="h2 mb-1">Every group, best first</h3>
+        <p className="mb-3 text-sm text-muted">The best few in full; the rest gathered by verdict and by what holds them back.</p>
+        <GroupedFits fits={loaderData.fits} unit={unit} siteId={site.id} />
         {spot.indoor && spot.facing !== "none" ? (
           <p className="mt-4 text-sm text-muted" data-testid="glazing-note">
             {loaderData.glazing.judged
@@ -226,6 +246,7 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
                 : "Name the window's glazing under Edit spot to judge condensation on cold glass."}
           </p>
         ) : null}
+        <LightNotes profile={loaderData.profile} lightSource={spot.lightSource} />
         <details className="mt-4 text-sm">
           <summary className="cursor-pointer font-medium">How the verdict is decided</summary>
           <ol className="mt-2 list-decimal space-y-1 pl-5 text-muted">
@@ -238,55 +259,72 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
         </details>
       </section>
 
-      <Inventory
-        standing={loaderData.growing.standing}
-        plants={loaderData.plants}
-        otherSpots={loaderData.growing.otherSpots}
-        tender={loaderData.growing.tender}
-        canEdit={role !== "mentor"}
-        unit={unit}
-        capacity={spot.capacity}
-        error={actionData && "plantError" in actionData ? (actionData.plantError ?? undefined) : undefined}
-        busy={navigation.state !== "idle"}
-      />
-      <section className="card">
-        <h3 className="h2 mb-3">Season profile</h3>
-        <SeasonTable months={loaderData.profile.year} seasons={loaderData.profile.seasons} unit={unit} />
-        <LightNotes profile={loaderData.profile} lightSource={spot.lightSource} />
-      </section>
-
-      <section className="card">
-        <Chart spec={spec48} data={series48.data} testId="chart-48h" />
-        {series48.error ? <p className="error">Could not load the chart: {series48.error}</p> : null}
-      </section>
-
-      <YearCharts url={`/api/sites/${site.id}/spots/${spot.id}/series?range=year`} unit={unit} timeZone={site.timeZone} />
-      <EnvelopeChart months={loaderData.profile.year} unit={unit} />
-      <DirectSun estimate={loaderData.growing.directSun} hasLightSensor={loaderData.growing.hasLightSensor} />
-
       <div className="grid gap-6 lg:grid-cols-2">
-        <NotesPanel siteId={site.id} target={{ spotId: spot.id }} notes={loaderData.notes} role={role} timeZone={site.timeZone} about="this spot" />
-        <SpotExports siteId={site.id} spotId={spot.id} />
+        <div id="plants">
+          <Inventory
+            standing={loaderData.growing.standing}
+            plants={loaderData.plants}
+            otherSpots={loaderData.growing.otherSpots}
+            tender={loaderData.growing.tender}
+            canEdit={role !== "mentor"}
+            unit={unit}
+            capacity={spot.capacity}
+            error={actionData && "plantError" in actionData ? (actionData.plantError ?? undefined) : undefined}
+            busy={navigation.state !== "idle"}
+          />
+        </div>
+        <div id="notes">
+          <NotesPanel siteId={site.id} target={{ spotId: spot.id }} notes={loaderData.notes} role={role} timeZone={site.timeZone} about="this spot" />
+        </div>
       </div>
 
-      <div className="grid gap-6 lg:grid-cols-2">
-        <section className="card">
-          <h3 className="h2 mb-3">Sensors here over time</h3>
-          <PlacementHistory rows={history} timeZone={site.timeZone} show="sensor" />
+      {role !== "mentor" ? (
+        <section id="place" className="card space-y-3">
+          <h3 className="h2">Place a sensor here</h3>
+          <PlacingTips />
+          <PlaceSensorForm
+            sensors={sensors.map((s) => ({ id: s.id, name: s.spotName ? `${s.name} (now in ${s.spotName})` : s.name }))}
+            timeZone={site.timeZone}
+            error={actionData && "placeError" in actionData ? actionData.placeError : undefined}
+            busy={navigation.state !== "idle"}
+          />
         </section>
-        {role !== "mentor" ? (
-          <section className="card space-y-3">
-            <h3 className="h2">Place a sensor here</h3>
-            <PlacingTips />
-            <PlaceSensorForm
-              sensors={sensors.map((s) => ({ id: s.id, name: s.spotName ? `${s.name} (now in ${s.spotName})` : s.name }))}
-              timeZone={site.timeZone}
-              error={actionData && "placeError" in actionData ? actionData.placeError : undefined}
-              busy={navigation.state !== "idle"}
-            />
-          </section>
-        ) : null}
-      </div>
+      ) : null}
+
+      {/* One level down: the same year in other forms, kept where each adds something. The monthly
+          envelope chart is not repeated here: the year strip above draws the same figures. */}
+      <section id="closer" className="space-y-3" aria-labelledby="closer-heading">
+        <h3 id="closer-heading" className="h2">
+          Charts and numbers
+        </h3>
+        <details className="fold" data-testid="fold-48h">
+          <summary>The last 48 hours, reading by reading</summary>
+          <div>
+            <Chart spec={spec48} data={series48.data} testId="chart-48h" />
+            {series48.error ? <p className="error">Could not load the chart: {series48.error}</p> : null}
+          </div>
+        </details>
+        <details className="fold" data-testid="fold-days">
+          <summary>Day by day through the year, and the dew-point margin</summary>
+          <div className="space-y-4">
+            <YearCharts url={`/api/sites/${site.id}/spots/${spot.id}/series?range=year`} unit={unit} timeZone={site.timeZone} />
+          </div>
+        </details>
+        <details className="fold" data-testid="fold-numbers">
+          <summary>Month by month and season by season, in numbers</summary>
+          <div>
+            <SeasonTable months={loaderData.profile.year} seasons={loaderData.profile.seasons} unit={unit} />
+          </div>
+        </details>
+        <DirectSun estimate={loaderData.growing.directSun} hasLightSensor={loaderData.growing.hasLightSensor} />
+        <details className="fold">
+          <summary>Sensors here over time</summary>
+          <div>
+            <PlacementHistory rows={history} timeZone={site.timeZone} show="sensor" />
+          </div>
+        </details>
+        <SpotExports siteId={site.id} spotId={spot.id} />
+      </section>
     </div>
   );
 }

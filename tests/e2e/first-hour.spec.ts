@@ -70,9 +70,12 @@ test("the demo owner sees the five spots and a spot's chart", async ({ page }) =
     await expect(page.locator("ul li").getByText(name, { exact: true })).toBeVisible();
   }
   await page.locator("ul li").getByText("Bench under the pear tree", { exact: true }).click();
+  // The 48-hour chart and the numbers sit one level down, under the spot's answer (issue 17).
+  await page.getByTestId("fold-48h").locator(":scope > summary").click();
   await expect(page.getByTestId("chart-48h").locator("canvas")).toBeVisible();
   await expect(page.getByTestId("chart-48h")).toContainText("°C");
   await expect(page.getByTestId("year-strip")).toBeVisible();
+  await page.getByTestId("fold-numbers").locator(":scope > summary").click();
   await expect(page.getByTestId("season-table")).toContainText("January");
   // Outdoors in an English winter, warm growers are ruled out.
   const phal = page.getByTestId("fit-list").locator("li", { hasText: "Phalaenopsis" }).first();

@@ -2,16 +2,20 @@
 // with their sources, and the wishlist — as the demo owner, against the demo household.
 import { test, expect, signIn, DEMO } from "./fixtures";
 
-test("the spot page draws the year, the envelope and the dew-point margin, and lists the plants standing there", async ({ page }) => {
+test("the spot page folds the day-by-day year, the dew-point margin and the numbers under its answer, and lists the plants standing there", async ({ page }) => {
   await signIn(page, DEMO.owner);
   await page.goto("/sites/1");
   await page.getByRole("link", { name: /Spare room/ }).first().click();
-  for (const id of ["chart-year", "chart-margin", "chart-envelope"]) {
+  await page.getByTestId("fold-days").locator(":scope > summary").click();
+  for (const id of ["chart-year", "chart-margin"]) {
     await expect(page.getByTestId(id).locator("canvas")).toHaveCount(1);
   }
-  await expect(page.getByTestId("chart-envelope")).toContainText("°C");
-  await page.getByText("The envelope as a table").click();
-  await expect(page.getByTestId("envelope-table")).toContainText("January");
+  await expect(page.getByTestId("chart-year").locator("canvas")).toBeVisible();
+  // The monthly envelope chart is gone: the year strip draws the same figures (issue 17).
+  await expect(page.getByTestId("chart-envelope")).toHaveCount(0);
+  await page.getByTestId("fold-numbers").locator(":scope > summary").click();
+  await expect(page.getByTestId("season-table")).toBeVisible();
+  await expect(page.getByTestId("season-table")).toContainText("January");
   await expect(page.getByTestId("inventory")).toContainText("Blush");
   await expect(page.getByTestId("inventory")).toContainText("Most tender");
   await expect(page.getByTestId("direct-sun")).toBeVisible();
