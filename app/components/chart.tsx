@@ -6,6 +6,7 @@ import { useEffect, useMemo, useRef, useState } from "react";
 import type uPlot from "uplot";
 import "uplot/dist/uPlot.min.css";
 import { DEFAULT_FORMAT } from "~/domain/fit/describe";
+import { timeTickLabels } from "~/lib/chart-scale";
 
 export const TEMP_COLOURS = { cold: "#3b6ea8", cool: "#6aa3c8", mild: "#9bb88a", warm: "#e0a04a", hot: "#c4472f" };
 
@@ -43,31 +44,6 @@ export function useSeries(url: string) {
     };
   }, [url]);
   return state;
-}
-
-const DAY_S = 86_400;
-
-/**
- * Tick labels for a time axis in the site's locale and time zone: hours within a few days ("14:00",
- * with the date at midnight), dates within a few months ("7 Jun"), months over a year ("Jun", the year
- * on January and on the first tick).
- */
-export function timeTickLabels(splits: number[], locale: string, timeZone: string): string[] {
-  if (splits.length === 0) return [];
-  const span = splits.at(-1)! - splits[0];
-  const at = (opts: Intl.DateTimeFormatOptions) => new Intl.DateTimeFormat(locale, { timeZone, ...opts });
-  const hour = at({ hour: "2-digit", minute: "2-digit", hourCycle: "h23" });
-  const day = at({ day: "numeric", month: "short" });
-  const month = at({ month: "short" });
-  const monthYear = at({ month: "short", year: "numeric" });
-  const hourOf = (s: number) => Number(at({ hour: "numeric", hourCycle: "h23" }).format(new Date(s * 1000)));
-  const monthOf = (s: number) => at({ month: "numeric" }).format(new Date(s * 1000));
-  return splits.map((s, i) => {
-    const d = new Date(s * 1000);
-    if (span <= 4 * DAY_S) return hourOf(s) === 0 ? day.format(d) : hour.format(d);
-    if (span <= 100 * DAY_S) return day.format(d);
-    return i === 0 || monthOf(s) === "1" ? monthYear.format(d) : month.format(d);
-  });
 }
 
 type LegendRow = { label: string; colour: string; dash?: number[]; latest: number | null; low: number | null; high: number | null; format: (v: number | null) => string };

@@ -117,7 +117,9 @@ export function SeasonTable({ months, seasons, unit }: { months: SlimProfile["ye
                 <td>{m.condensationHours}</td>
                 <td>{m.light.meanDli != null ? m.light.meanDli.toFixed(1) : "–"}</td>
                 <td>
-                  {m.coverage.daysObserved}/{m.coverage.daysInPeriod}
+                  {m.coverage.daysObserved === 0 && m.coverage.hoursObserved > 0
+                    ? `${Math.round(m.coverage.hoursObserved)} h of ${m.coverage.daysInPeriod} d`
+                    : `${m.coverage.daysObserved} of ${m.coverage.daysInPeriod}`}
                 </td>
               </tr>
             );

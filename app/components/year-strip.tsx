@@ -1,6 +1,7 @@
 // The year strip: twelve months side by side, each a bar from the month's lowest to highest with the
 // 5–95 % band and the mean daily low and high marked, and a plant's comfortable band laid over it.
-import { fromUnit, toUnit, type TempUnit } from "~/lib/units";
+import { coverageLabel, stripTicks } from "~/lib/chart-scale";
+import { toUnit, type TempUnit } from "~/lib/units";
 
 export type StripMonth = {
   key: string;
@@ -8,13 +9,6 @@ export type StripMonth = {
   temperature: { lowest: number | null; highest: number | null; p05: number | null; p95: number | null; meanDailyLow: number | null; meanDailyHigh: number | null };
   coverage: { enough: boolean; daysObserved: number; hoursObserved?: number };
 };
-
-/** How much of a thin month was read: whole days when there are any, else hours ("19 h", not "0d"). */
-export function coverageLabel(c: { daysObserved: number; hoursObserved?: number }): string {
-  if (c.daysObserved > 0) return `${c.daysObserved} d`;
-  if (c.hoursObserved && c.hoursObserved > 0) return `${Math.round(c.hoursObserved)} h`;
-  return "–";
-}
 
 /** The scale's bands in °C, for the key under the strip. */
 const SCALE: { below: number; colour: string }[] = [
@@ -25,15 +19,6 @@ const SCALE: { below: number; colour: string }[] = [
   { below: Infinity, colour: "#c4472f" },
 ];
 
-/** Tick values in the grower's unit: every 5 °C, or every 10 °F (round °F, not converted °C steps). */
-export function stripTicks(loC: number, hiC: number, unit: TempUnit): { label: number; c: number }[] {
-  const step = unit === "F" ? 10 : 5;
-  const lo = toUnit(loC, unit);
-  const hi = toUnit(hiC, unit);
-  const out: { label: number; c: number }[] = [];
-  for (let t = Math.ceil(lo / step) * step; t <= hi; t += step) out.push({ label: t, c: fromUnit(t, unit) });
-  return out;
-}
 
 // The same cool-to-warm scale as every chart (see --color-t-* in app.css).
 export function tempColour(c: number) {
