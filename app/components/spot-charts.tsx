@@ -59,7 +59,7 @@ export function HoursCharts({ url, unit, timeZone }: { url: string; unit: TempUn
       height: 200,
       build: (d, u) => ({
         data: [d.t as number[], conv(d.temp, u)] as never,
-        series: [{ label: `Temperature °${u}`, stroke: "#a9502b", width: 2, value: fmt(u) }],
+        series: [{ label: `Temperature °${u}`, stroke: "#9a4725", width: 2, value: fmt(u) }],
         axes: [AXIS, { ...AXIS, label: `°${u}`, size: 50 }],
       }),
     }),

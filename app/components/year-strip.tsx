@@ -138,7 +138,7 @@ function Strip({
             <g key={m.key} opacity={faint ? 0.45 : 1}>
               {t.lowest != null && t.highest != null ? (
                 <>
-                  <line x1={cx} x2={cx} y1={y(t.highest)} y2={y(t.lowest)} stroke="#6f675c" strokeWidth="2" />
+                  <line x1={cx} x2={cx} y1={y(t.highest)} y2={y(t.lowest)} stroke="#5f584e" strokeWidth="2" />
                   {t.p05 != null && t.p95 != null ? (
                     <rect x={cx - colW * 0.22} width={colW * 0.44} y={y(t.p95)} height={Math.max(2, y(t.p05) - y(t.p95))} rx="4" fill={tempColour((t.p05 + t.p95) / 2)} />
                   ) : null}
@@ -153,7 +153,7 @@ function Strip({
                 {m.name.slice(0, 3)}
               </text>
               {faint ? (
-                <text x={cx} y={H - bottom + 29} textAnchor="middle" fontSize={font - 2} fill="#6f675c">
+                <text x={cx} y={H - bottom + 29} textAnchor="middle" fontSize={font - 2} fill="#5f584e">
                   {coverageLabel(m.coverage)}
                 </text>
               ) : null}
