@@ -112,7 +112,17 @@ export function Chart({
       const xRange = timeAxis && typeof meta.from === "number" && typeof meta.to === "number" ? ([meta.from, meta.to] as [number, number]) : undefined;
       const axisStyle = { stroke: "#5f584e", grid: { stroke: "#e4dccd" }, ticks: { stroke: "#e4dccd" } };
       const axes = built.axes ?? [axisStyle, { ...axisStyle, label: `°${spec.unit}`, size: 50 }];
-      if (timeAxis && axes[0]) axes[0] = { ...axes[0], values: (_u, splits) => timeTickLabels(splits, loc, tz) };
+      const el = ref.current;
+      if (timeAxis && axes[0])
+        axes[0] = {
+          ...axes[0],
+          values: (_u, splits) => {
+            const labels = timeTickLabels(splits, loc, tz);
+            // The labels drawn, for tests and for anyone inspecting the page (the canvas has no text).
+            el.dataset.xTicks = labels.join("|");
+            return labels;
+          },
+        };
       const dayFormat = new Intl.DateTimeFormat(loc, { timeZone: tz, day: "numeric", month: "short", hour: "2-digit", minute: "2-digit", hourCycle: "h23" });
       plot = new UPlot(
         {
