@@ -15,6 +15,14 @@ export function browserTimeZone(): string | null {
   }
 }
 
+/** Types a value into an uncontrolled input as the grower would, so the form and its library see it. */
+function setInput(id: string, value: string) {
+  const input = document.getElementById(id);
+  if (!(input instanceof HTMLInputElement)) return;
+  Object.getOwnPropertyDescriptor(HTMLInputElement.prototype, "value")?.set?.call(input, value);
+  input.dispatchEvent(new Event("input", { bubbles: true }));
+}
+
 type Locating = { state: "idle" } | { state: "asking" } | { state: "done"; accuracy: number } | { state: "failed"; message: string };
 
 export function SiteForm({
@@ -51,8 +59,8 @@ export function SiteForm({
     navigator.geolocation.getCurrentPosition(
       (pos) => {
         // Two decimals, about a kilometre: plenty for sunrise and sunset, and no closer than the grower needs to share.
-        form.update({ name: fields.latitude.name, value: pos.coords.latitude.toFixed(2) });
-        form.update({ name: fields.longitude.name, value: pos.coords.longitude.toFixed(2) });
+        setInput(fields.latitude.id, pos.coords.latitude.toFixed(2));
+        setInput(fields.longitude.id, pos.coords.longitude.toFixed(2));
         setLocating({ state: "done", accuracy: pos.coords.accuracy });
       },
       (err) =>

@@ -27,6 +27,7 @@ test.describe("a new site, set up from a phone in Chicago", () => {
     await expect(page.locator("form input[placeholder]")).toHaveCount(0);
     await expect(page.getByLabel("Time zone")).toHaveValue("America/Chicago");
     await page.getByRole("button", { name: "Use my location" }).click();
+    await expect(page.getByTestId("location-status")).toContainText("Filled in from this device");
     await expect(page.getByLabel("Latitude (°, north positive)")).toHaveValue("41.88");
     await expect(page.getByLabel("Longitude (°, east positive)")).toHaveValue("-87.63");
     await page.getByLabel("Name").fill("Lakeside flat");
@@ -43,10 +44,10 @@ test.describe("a new site, set up from a phone in Chicago", () => {
     // the year axis twelve months of this year and last (never 2027–2029).
     const hours = await ticksOf(page, "chart-48h");
     expect(hours.length).toBeGreaterThan(2);
-    for (const t of hours) expect(t).toMatch(/^(\d\d:\d\d|\d{1,2} [A-Z][a-z]{2})$/);
+    for (const t of hours) expect(t).toMatch(/^(\d\d:\d\d|\d{1,2} [A-Z][a-z]{2,3})$/);
     const thisYear = new Date().getFullYear();
     const months = await ticksOf(page, "chart-year");
-    for (const t of months) expect(t).toMatch(/^[A-Z][a-z]{2}( \d{4})?$/);
+    for (const t of months) expect(t).toMatch(/^[A-Z][a-z]{2,3}( \d{4})?$/);
     for (const y of months.join(" ").match(/\d{4}/g) ?? []) expect([thisYear - 1, thisYear]).toContain(Number(y));
   });
 });
@@ -56,7 +57,7 @@ test("the spot page's charts: dates in en-GB, Nichewise's legend, canvases named
   await page.goto("/sites/1/spots/1");
   // en-GB: day before month ("7 Jun"), never the US "6/7".
   const days = await ticksOf(page, "chart-48h");
-  expect(days.some((t) => /^\d{1,2} [A-Z][a-z]{2}$/.test(t))).toBe(true);
+  expect(days.some((t) => /^\d{1,2} [A-Z][a-z]{2,3}$/.test(t))).toBe(true);
   for (const t of days) expect(t).not.toMatch(/\d+\/\d+/);
   // No stock legend; ours names the line, its value, and the range shown with units.
   await expect(page.locator(".u-legend")).toHaveCount(0);
