@@ -26,7 +26,7 @@ export function DirectSun({ estimate, hasLightSensor }: { estimate: DirectSunEst
       {estimate.months ? (
         <details className="text-sm">
           <summary className="cursor-pointer font-medium">Month by month (the 21st of each month)</summary>
-          <div className="-mx-5 overflow-x-auto px-5">
+          <div className="-mx-5 overflow-x-auto px-5" tabIndex={0} role="region" aria-label="Direct sun month by month">
             <table className="table mt-2" data-testid="direct-sun-table">
               <thead>
                 <tr>

@@ -74,7 +74,7 @@ export function FitList({ fits }: { fits: FitRow[]; unit: TempUnit; siteId: numb
 export function SeasonTable({ months, seasons, unit }: { months: SlimProfile["year"]; seasons: SlimProfile["seasons"]; unit: TempUnit }) {
   const rows = [...months.map((m) => ({ ...m, label: m.name })), ...seasons.map((s) => ({ ...s, name: s.label }))];
   return (
-    <div className="-mx-5 overflow-x-auto px-5">
+    <div className="-mx-5 overflow-x-auto px-5" tabIndex={0} role="region" aria-label="Season table">
       <table className="table min-w-[48rem]" data-testid="season-table">
         <thead>
           <tr>

@@ -125,7 +125,7 @@ export function YearCharts({ url, unit, timeZone }: { url: string; unit: TempUni
         {series.error ? <p className="error">Could not load the year: {series.error}</p> : null}
         <details className="text-sm">
           <summary className="cursor-pointer font-medium">The year as a table (week by week)</summary>
-          <div className="mt-2 max-h-96 overflow-auto">
+          <div className="mt-2 max-h-96 overflow-auto" tabIndex={0} role="region" aria-label="The year, week by week">
             <table className="table" data-testid="year-table">
               <thead>
                 <tr>
@@ -155,7 +155,7 @@ export function YearCharts({ url, unit, timeZone }: { url: string; unit: TempUni
         </p>
         <details className="text-sm">
           <summary className="cursor-pointer font-medium">The dew-point margin as a table (week by week)</summary>
-          <div className="mt-2 max-h-96 overflow-auto">
+          <div className="mt-2 max-h-96 overflow-auto" tabIndex={0} role="region" aria-label="Dew-point margin, week by week">
             <table className="table" data-testid="margin-table">
               <thead>
                 <tr>

@@ -185,7 +185,7 @@ export default function Compare({ loaderData }: Route.ComponentProps) {
             </p>
             <details className="text-sm">
               <summary className="cursor-pointer font-medium">The envelopes as a table</summary>
-              <div className="-mx-5 overflow-x-auto px-5">
+              <div className="-mx-5 overflow-x-auto px-5" tabIndex={0} role="region" aria-label="The envelopes as a table">
                 <table className="table mt-2">
                   <thead>
                     <tr>
@@ -220,7 +220,7 @@ export default function Compare({ loaderData }: Route.ComponentProps) {
               Each season's months in the chosen period taken together; months with fewer than 20 days of readings are left out (the count shows how
               many of its three months are in).
             </p>
-            <div className="-mx-5 overflow-x-auto px-5">
+            <div className="-mx-5 overflow-x-auto px-5" tabIndex={0} role="region" aria-label="Seasons side by side">
               <table className="table min-w-[36rem]" data-testid="compare-table">
                 <thead>
                   <tr>

@@ -197,8 +197,8 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
       ) : null}
 
       <div className="grid grid-cols-1 gap-6 lg:grid-cols-[minmax(0,1fr)_minmax(0,22rem)]">
-        <section className="card relative overflow-x-auto">
-          <h3 className="h2 mb-3">All checks</h3>
+        <section className="card relative overflow-x-auto" tabIndex={0} aria-labelledby="water-all-checks">
+          <h3 id="water-all-checks" className="h2 mb-3">All checks</h3>
           {checks.length === 0 ? (
             <p className="text-sm text-muted">None yet.</p>
           ) : (

@@ -248,7 +248,7 @@ export default function Wishlist({ loaderData, actionData }: Route.ComponentProp
       {spots.length > 0 ? (
         <section className="card">
           <h3 className="h2 mb-3">Room in each spot</h3>
-          <div className="-mx-5 overflow-x-auto px-5">
+          <div className="-mx-5 overflow-x-auto px-5" tabIndex={0} role="region" aria-label="Room in each spot">
             <table className="table" data-testid="wishlist-room">
               <thead>
                 <tr>
