@@ -8,7 +8,7 @@ import "uplot/dist/uPlot.min.css";
 import { DEFAULT_FORMAT } from "~/domain/fit/describe";
 import { timeTickLabels } from "~/lib/chart-scale";
 
-export const TEMP_COLOURS = { cold: "#3b6ea8", cool: "#6aa3c8", mild: "#9bb88a", warm: "#e0a04a", hot: "#c4472f" };
+export const TEMP_COLOURS = { cold: "#3b6ea8", cool: "#6aa3c8", mild: "#cdbf9a", warm: "#e0a04a", hot: "#c4472f" };
 
 /** The locale the product writes dates in; sites have no locale of their own yet. */
 export const SITE_LOCALE = DEFAULT_FORMAT.locale ?? "en-GB";
@@ -190,10 +190,10 @@ export function Chart({
                   <>
                     <dd className="font-semibold tabular-nums">
                       {r.format(here)}
-                      <span className="ml-1 text-xs font-normal text-muted">{cursor ? `at ${cursor.label}` : "last"}</span>
+                      <span className="ml-1 text-xs font-normal text-muted">{cursor ? `at ${cursor.label}` : "latest"}</span>
                     </dd>
                     <dd className="w-full pl-7 text-xs text-muted tabular-nums sm:w-auto sm:pl-0">
-                      range shown {r.format(r.low)} to {r.format(r.high)}
+                      {r.format(r.low)} to {r.format(r.high)} in the span shown
                     </dd>
                   </>
                 )}

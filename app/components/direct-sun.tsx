@@ -99,7 +99,7 @@ function SunBars({ months }: { months: SunMonth[] }) {
         })}
       </svg>
       <figcaption className="mt-1 text-xs text-muted">
-        Bars: hours of direct sun through the window on the 21st of each month,; a dash means none.
+        Bars: hours of direct sun through the window on the 21st of each month; a dash means none.
       </figcaption>
     </figure>
   );

@@ -213,7 +213,7 @@ function envelopeSpec(months: EnvelopeMonth[], unit: TempUnit): ChartSpec {
         { label: `Lowest °${u}`, stroke: TEMP_COLOURS.cold, width: 2, value: fmt(u) },
       ],
       bands: [
-        { series: [1, 4], fill: "rgba(155, 184, 138, 0.16)" },
+        { series: [1, 4], fill: "rgba(205, 191, 154, 0.28)" },
         { series: [2, 3], fill: "rgba(224, 160, 74, 0.30)" },
       ],
       scales: { x: { time: false, range: [-0.4, months.length - 0.6] } },

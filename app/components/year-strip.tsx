@@ -14,7 +14,7 @@ export type StripMonth = {
 const SCALE: { below: number; colour: string }[] = [
   { below: 5, colour: "#3b6ea8" },
   { below: 12, colour: "#6aa3c8" },
-  { below: 20, colour: "#9bb88a" },
+  { below: 20, colour: "#cdbf9a" },
   { below: 27, colour: "#e0a04a" },
   { below: Infinity, colour: "#c4472f" },
 ];
@@ -24,7 +24,7 @@ const SCALE: { below: number; colour: string }[] = [
 export function tempColour(c: number) {
   if (c < 5) return "#3b6ea8";
   if (c < 12) return "#6aa3c8";
-  if (c < 20) return "#9bb88a";
+  if (c < 20) return "#cdbf9a";
   if (c < 27) return "#e0a04a";
   return "#c4472f";
 }

@@ -95,7 +95,7 @@ export default function Compare({ loaderData }: Route.ComponentProps) {
   const headlines = useMemo(() => compareHeadlines(withSeasons), [withSeasons]);
   // All spots share the period, so their calendar months line up; take the longest list as the axis.
   const axisMonths = useMemo(() => compared.reduce<{ key: string; year: number; month: number }[]>((a, c) => (c.months.length > a.length ? c.months : a), []), [compared]);
-  const spec = useMemo(() => compareSpec(axisMonths.map((m) => `${MONTHS_SHORT[m.month - 1]} ${String(m.year).slice(2)}`), compared, unit), [axisMonths, compared, unit]);
+  const spec = useMemo(() => compareSpec(axisMonths.map((m, i) => (i === 0 || m.month === 1 ? `${MONTHS_SHORT[m.month - 1]} ${m.year}` : MONTHS_SHORT[m.month - 1])), compared, unit), [axisMonths, compared, unit]);
   const data = useMemo(() => {
     const d: Record<string, (number | null)[]> = { x: axisMonths.map((_, i) => i) };
     compared.forEach((c, i) => {

@@ -63,7 +63,7 @@ test("the spot page's charts: dates in en-GB, Nichewise's legend, canvases named
   await expect(page.locator(".u-legend")).toHaveCount(0);
   const legend = page.getByTestId("chart-48h").getByTestId("chart-legend");
   await expect(legend).toContainText("°C");
-  await expect(legend).toContainText("range shown");
+  await expect(legend).toContainText("in the span shown");
   // Canvas charts are named for screen readers by what they show.
   await expect(page.getByTestId("chart-year").getByRole("img")).toHaveAttribute("aria-label", /from -?\d+\.\d °C to -?\d+\.\d °C/);
   await expect(page.getByTestId("chart-envelope").getByRole("img")).toHaveAttribute("aria-label", /Lowest/);
