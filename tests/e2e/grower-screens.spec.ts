@@ -64,6 +64,10 @@ test("the spot page's charts: dates in en-GB, Nichewise's legend, canvases named
   const legend = page.getByTestId("chart-48h").getByTestId("chart-legend");
   await expect(legend).toContainText("°C");
   await expect(legend).toContainText("in the span shown");
+  await expect(legend).toContainText("latest");
+  // Pointing at the chart reads the lines there, with the time in the site's words.
+  await page.getByTestId("chart-48h").getByRole("img").hover();
+  await expect(legend).toContainText(/at \d{1,2} [A-Z][a-z]{2,3},? \d\d:\d\d/);
   // Canvas charts are named for screen readers by what they show.
   await expect(page.getByTestId("chart-year").getByRole("img")).toHaveAttribute("aria-label", /from -?\d+\.\d °C to -?\d+\.\d °C/);
   await expect(page.getByTestId("chart-envelope").getByRole("img")).toHaveAttribute("aria-label", /Lowest/);
