@@ -186,7 +186,7 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
 
       {chartData ? (
         <section className="card">
-          <Chart spec={spec} data={chartData} testId="water-chart" />
+          <Chart spec={spec} data={chartData} timeZone={timeZone} testId="water-chart" />
           {unplotted ? (
             <p className="mt-2 text-xs text-muted">
               {unplotted} TDS {unplotted === 1 ? "reading" : "readings"} without the meter's scale {unplotted === 1 ? "is" : "are"} in the table but not
