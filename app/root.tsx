@@ -21,6 +21,9 @@ export function Layout({ children }: { children: React.ReactNode }) {
         <Links />
       </head>
       <body className="min-h-dvh">
+        <a href="#main" className="skip-link">
+          Skip to the page
+        </a>
         {children}
         <ScrollRestoration />
         <Scripts />
@@ -33,11 +36,30 @@ export default function App() {
   return <Outlet />;
 }
 
+/**
+ * Titles by status in our words. The framework's statusText can be a stale default (a 403 once read
+ * "403 Internal Server Error"), so the code alone decides the title.
+ */
+export const STATUS_TITLES: Record<number, string> = {
+  400: "That request could not be read",
+  401: "Sign in first",
+  403: "Not allowed",
+  404: "Not found",
+  405: "Not something this page does",
+  409: "Already changed",
+  413: "Too large",
+  415: "Not a kind of file this page takes",
+  429: "Too many requests: wait a moment",
+  503: "Busy: try again in a moment",
+};
+
+export const statusTitle = (status: number) => STATUS_TITLES[status] ?? (status >= 500 ? "Something went wrong" : "That did not work");
+
 export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {
   let title = "Something went wrong";
   let detail = "The page could not be shown. Your data is safe; try again in a moment.";
   if (isRouteErrorResponse(error)) {
-    title = error.status === 404 ? "Not found" : `${error.status} ${error.statusText || ""}`.trim();
+    title = statusTitle(error.status);
     detail =
       error.status === 404
         ? "There is nothing here, or it belongs to a site you are not a member of."
@@ -48,7 +70,8 @@ export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {
     detail = error.message;
   }
   return (
-    <main className="mx-auto max-w-xl px-5 py-16">
+    <main id="main" className="mx-auto max-w-xl px-5 py-16">
+      <title>{`${title} · Nichewise`}</title>
       <h1 className="h1">{title}</h1>
       <p className="mt-3 text-muted">{detail}</p>
       <a href="/" className="link mt-6 inline-block">

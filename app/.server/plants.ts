@@ -130,17 +130,31 @@ export async function siteWishlist(siteId: number) {
   return db().select().from(wishlist).where(eq(wishlist.siteId, siteId)).orderBy(asc(wishlist.addedAt), asc(wishlist.id));
 }
 
-export async function saveWish(siteId: number, actorId: number, v: { plantKey: string; mustHave: boolean; pots: number }) {
+export async function saveWish(siteId: number, actorId: number, v: { plantKey: string; mustHave: boolean; pots: number }, plantName?: string) {
   await db()
     .insert(wishlist)
     .values({ siteId, ...v })
     .onConflictDoUpdate({ target: [wishlist.siteId, wishlist.plantKey], set: { mustHave: v.mustHave, pots: v.pots } });
-  await db().insert(auditLog).values({ siteId, actorId, action: "wishlist.save", detail: v });
+  await db().insert(auditLog).values({ siteId, actorId, action: "wishlist.save", detail: { ...v, plant: plantName ?? v.plantKey } });
 }
 
-export async function removeWish(siteId: number, actorId: number, plantKey: string) {
-  await db().delete(wishlist).where(and(eq(wishlist.siteId, siteId), eq(wishlist.plantKey, plantKey)));
-  await db().insert(auditLog).values({ siteId, actorId, action: "wishlist.remove", detail: { plantKey } });
+export class ConfirmRemoval extends Error {}
+
+/**
+ * Takes a plant off the wishlist and returns what was removed, so the page can offer to put it back.
+ * A must-have goes only with `confirmed` (it may be another member's), checked here, not only on the page.
+ * The audit row names the plant and what it was.
+ */
+export async function removeWish(siteId: number, actorId: number, plantKey: string, opts: { confirmed?: boolean; plantName?: string } = {}) {
+  return db().transaction(async (tx) => {
+    const [row] = await tx.select().from(wishlist).where(and(eq(wishlist.siteId, siteId), eq(wishlist.plantKey, plantKey))).for("update");
+    if (!row) return null;
+    if (row.mustHave && !opts.confirmed) throw new ConfirmRemoval(`${opts.plantName ?? plantKey} is a must-have.`);
+    await tx.delete(wishlist).where(eq(wishlist.id, row.id));
+    const removed = { plantKey, plant: opts.plantName ?? plantKey, mustHave: row.mustHave, pots: row.pots };
+    await tx.insert(auditLog).values({ siteId, actorId, action: "wishlist.remove", detail: removed });
+    return removed;
+  });
 }
 
 const potsSchema = z.coerce.number().int("Whole pots only").min(1, "At least one pot").max(100, "Up to 100 pots");

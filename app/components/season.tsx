@@ -74,11 +74,17 @@ export function SeasonTable({ months, seasons, unit }: { months: SlimProfile["ye
     { label: "Hours < 10 °C", cell: (m) => m.below.find((b) => b.thresholdC === 10)?.hours ?? "–" },
     { label: "Near dew point (h)", cell: (m) => m.condensationHours },
     { label: "DLI", cell: (m) => (m.light.meanDli != null ? m.light.meanDli.toFixed(1) : "–") },
-    { label: "Days", cell: (m) => `${m.coverage.daysObserved}/${m.coverage.daysInPeriod}` },
+    {
+      label: "Days",
+      cell: (m) =>
+        m.coverage.daysObserved === 0 && m.coverage.hoursObserved > 0
+          ? `${Math.round(m.coverage.hoursObserved)} h of ${m.coverage.daysInPeriod} d`
+          : `${m.coverage.daysObserved} of ${m.coverage.daysInPeriod}`,
+    },
   ];
   // Under `sm` each row is a card of label–value pairs (the .stack-table class), so a phone reads it without scrolling sideways.
   return (
-    <div className="sm:-mx-5 sm:overflow-x-auto sm:px-5">
+    <div className="sm:-mx-5 sm:overflow-x-auto sm:px-5" tabIndex={0} role="region" aria-label="Season table">
       <table className="table stack-table sm:min-w-[48rem]" data-testid="season-table">
         <thead>
           <tr>

@@ -3,10 +3,10 @@
 // a number exactly. Values arrive in °C and are shown in the grower's unit.
 import { useMemo } from "react";
 import type uPlot from "uplot";
-import { Chart, TEMP_COLOURS, useSeries, type ChartSpec } from "~/components/chart";
+import { Chart, SITE_LOCALE, TEMP_COLOURS, useSeries, type ChartSpec } from "~/components/chart";
 import { deltaToUnit, formatDelta, formatTemp, toUnit, type TempUnit } from "~/lib/units";
 
-const AXIS = { stroke: "#6f675c", grid: { stroke: "#e4dccd" }, ticks: { stroke: "#e4dccd" } };
+const AXIS = { stroke: "#5f584e", grid: { stroke: "#e4dccd" }, ticks: { stroke: "#e4dccd" } };
 export const MONTHS_SHORT = ["Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"];
 /** Dew-point margin under which glass and leaves are taken to be wet (the brief; same as the season profile). */
 const WET_MARGIN_C = 2;
@@ -46,6 +46,48 @@ function marginSpec(unit: TempUnit): ChartSpec {
   };
 }
 
+/**
+ * The last 48 hours as two panels on one time axis: temperature above, humidity below, each with its
+ * own scale, so no line is read against the other's axis.
+ */
+export function HoursCharts({ url, unit, timeZone }: { url: string; unit: TempUnit; timeZone: string }) {
+  const series = useSeries(url);
+  const tSpec = useMemo<ChartSpec>(
+    () => ({
+      title: "Last 48 hours: temperature",
+      unit,
+      height: 200,
+      build: (d, u) => ({
+        data: [d.t as number[], conv(d.temp, u)] as never,
+        series: [{ label: `Temperature °${u}`, stroke: "#9a4725", width: 2, value: fmt(u) }],
+        axes: [AXIS, { ...AXIS, label: `°${u}`, size: 50 }],
+      }),
+    }),
+    [unit],
+  );
+  const hSpec = useMemo<ChartSpec>(
+    () => ({
+      title: "Last 48 hours: relative humidity",
+      unit,
+      height: 140,
+      build: (d) => ({
+        data: [d.t as number[], d.rh] as never,
+        series: [{ label: "Relative humidity %", stroke: "#2c6e63", width: 1.5, value: (_s: uPlot, v: number | null) => (v == null ? "–" : `${Math.round(v)} %`) }],
+        scales: { y: { range: [0, 100] } },
+        axes: [AXIS, { ...AXIS, label: "% RH", size: 50 }],
+      }),
+    }),
+    [unit],
+  );
+  return (
+    <section className="card space-y-4">
+      <Chart spec={tSpec} data={series.data} timeZone={timeZone} testId="chart-48h" />
+      <Chart spec={hSpec} data={series.data} timeZone={timeZone} testId="chart-48h-rh" />
+      {series.error ? <p className="error">Could not load the last 48 hours: {series.error}</p> : null}
+    </section>
+  );
+}
+
 /** Seven-day blocks from the first day of the year series, for the fallback tables. */
 function weekly(d: Cols) {
   const t = d.t as number[];
@@ -67,7 +109,7 @@ function weekly(d: Cols) {
 }
 
 const dayLabel = (epochS: number, timeZone: string) =>
-  new Intl.DateTimeFormat("en-GB", { day: "numeric", month: "short", year: "numeric", timeZone }).format(new Date(epochS * 1000));
+  new Intl.DateTimeFormat(SITE_LOCALE, { day: "numeric", month: "short", year: "numeric", timeZone }).format(new Date(epochS * 1000));
 
 export function YearCharts({ url, unit, timeZone }: { url: string; unit: TempUnit; timeZone: string }) {
   const series = useSeries(url);
@@ -78,12 +120,12 @@ export function YearCharts({ url, unit, timeZone }: { url: string; unit: TempUni
   return (
     <>
       <section className="card space-y-3">
-        <Chart spec={bandSpec} data={series.data} testId="chart-year" />
+        <Chart spec={bandSpec} data={series.data} timeZone={timeZone} testId="chart-year" />
         <p className="text-xs text-muted">The shaded band runs from each day's lowest to its highest reading (local days).</p>
         {series.error ? <p className="error">Could not load the year: {series.error}</p> : null}
         <details className="text-sm">
           <summary className="cursor-pointer font-medium">The year as a table (week by week)</summary>
-          <div className="mt-2 max-h-96 overflow-auto">
+          <div className="mt-2 max-h-96 overflow-auto" tabIndex={0} role="region" aria-label="The year, week by week">
             <table className="table" data-testid="year-table">
               <thead>
                 <tr>
@@ -106,14 +148,14 @@ export function YearCharts({ url, unit, timeZone }: { url: string; unit: TempUni
         </details>
       </section>
       <section className="card space-y-3">
-        <Chart spec={mSpec} data={series.data} testId="chart-margin" />
+        <Chart spec={mSpec} data={series.data} timeZone={timeZone} testId="chart-margin" />
         <p className="text-sm text-muted">
           The margin is the air temperature minus its dew point. Under {formatDelta(WET_MARGIN_C, unit, 0)} cold glass and leaves can
           turn wet, which invites fungal spots and rot; {wetDays === 0 ? "that never happened here in the last year." : `that happened on ${wetDays} ${wetDays === 1 ? "day" : "days"} here in the last year.`}
         </p>
         <details className="text-sm">
           <summary className="cursor-pointer font-medium">The dew-point margin as a table (week by week)</summary>
-          <div className="mt-2 max-h-96 overflow-auto">
+          <div className="mt-2 max-h-96 overflow-auto" tabIndex={0} role="region" aria-label="Dew-point margin, week by week">
             <table className="table" data-testid="margin-table">
               <thead>
                 <tr>
@@ -161,6 +203,7 @@ function envelopeSpec(months: EnvelopeMonth[], unit: TempUnit): ChartSpec {
   return {
     title: "Monthly envelope: lowest to highest, with the middle 90 % of hours",
     unit,
+    xLabel: (x) => months[x]?.name ?? "",
     build: (d, u) => ({
       data: [d.x as number[], conv(d.highest, u), conv(d.p95, u), conv(d.p05, u), conv(d.lowest, u)] as never,
       series: [
@@ -170,7 +213,7 @@ function envelopeSpec(months: EnvelopeMonth[], unit: TempUnit): ChartSpec {
         { label: `Lowest °${u}`, stroke: TEMP_COLOURS.cold, width: 2, value: fmt(u) },
       ],
       bands: [
-        { series: [1, 4], fill: "rgba(155, 184, 138, 0.16)" },
+        { series: [1, 4], fill: "rgba(205, 191, 154, 0.28)" },
         { series: [2, 3], fill: "rgba(224, 160, 74, 0.30)" },
       ],
       scales: { x: { time: false, range: [-0.4, months.length - 0.6] } },
@@ -229,8 +272,13 @@ export function EnvelopeChart({ months, unit }: { months: EnvelopeMonth[]; unit:
   );
 }
 
-/** One colour per spot for overlays, chosen away from the cool-to-warm temperature scale. */
-export const SPOT_COLOURS = ["#6b4c9a", "#b0357a", "#2c6e63", "#4a4540"];
+/**
+ * One colour per spot for overlays, from the Okabe–Ito palette (Okabe & Ito 2008, "Color Universal
+ * Design"), which stays apart under the common colour-vision deficiencies: blue, vermillion, bluish
+ * green, reddish purple, the four of its eight that keep 3:1 against the card for a line (WCAG 2.2
+ * 1.4.11). Each spot also gets its own dash, so the key does not rest on colour alone.
+ */
+export const SPOT_COLOURS = ["#0072B2", "#D55E00", "#009E73", "#CC79A7"];
 export const SPOT_DASH: (number[] | undefined)[] = [undefined, [6, 3], [2, 3], [10, 3, 2, 3]];
 
 export function compareSpec(labels: string[], spots: { name: string }[], unit: TempUnit): ChartSpec {
@@ -238,6 +286,7 @@ export function compareSpec(labels: string[], spots: { name: string }[], unit: T
     title: "Monthly envelopes side by side",
     unit,
     legend: false,
+    xLabel: (x) => labels[x] ?? "",
     build: (d, u) => {
       const cols: (number | null)[][] = [];
       const series: uPlot.Series[] = [];

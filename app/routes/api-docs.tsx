@@ -24,7 +24,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 }
 
 function Code({ children }: { children: string }) {
-  return <pre className="overflow-x-auto rounded-lg bg-ink p-3 text-xs leading-relaxed text-paper">{children}</pre>;
+  return <pre tabIndex={0} className="overflow-x-auto rounded-lg bg-ink p-3 text-xs leading-relaxed text-paper">{children}</pre>;
 }
 
 function Endpoint({ method, path, who, children }: { method: string; path: string; who: string; children: React.ReactNode }) {

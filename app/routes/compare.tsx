@@ -95,7 +95,7 @@ export default function Compare({ loaderData }: Route.ComponentProps) {
   const headlines = useMemo(() => compareHeadlines(withSeasons), [withSeasons]);
   // All spots share the period, so their calendar months line up; take the longest list as the axis.
   const axisMonths = useMemo(() => compared.reduce<{ key: string; year: number; month: number }[]>((a, c) => (c.months.length > a.length ? c.months : a), []), [compared]);
-  const spec = useMemo(() => compareSpec(axisMonths.map((m) => `${MONTHS_SHORT[m.month - 1]} ${String(m.year).slice(2)}`), compared, unit), [axisMonths, compared, unit]);
+  const spec = useMemo(() => compareSpec(axisMonths.map((m, i) => (i === 0 || m.month === 1 ? `${MONTHS_SHORT[m.month - 1]} ${m.year}` : MONTHS_SHORT[m.month - 1])), compared, unit), [axisMonths, compared, unit]);
   const data = useMemo(() => {
     const d: Record<string, (number | null)[]> = { x: axisMonths.map((_, i) => i) };
     compared.forEach((c, i) => {
@@ -185,7 +185,7 @@ export default function Compare({ loaderData }: Route.ComponentProps) {
             </p>
             <details className="text-sm">
               <summary className="cursor-pointer font-medium">The envelopes as a table</summary>
-              <div className="-mx-5 overflow-x-auto px-5">
+              <div className="-mx-5 overflow-x-auto px-5" tabIndex={0} role="region" aria-label="The envelopes as a table">
                 <table className="table mt-2">
                   <thead>
                     <tr>
@@ -220,7 +220,7 @@ export default function Compare({ loaderData }: Route.ComponentProps) {
               Each season's months in the chosen period taken together; months with fewer than 20 days of readings are left out (the count shows how
               many of its three months are in).
             </p>
-            <div className="-mx-5 overflow-x-auto px-5">
+            <div className="-mx-5 overflow-x-auto px-5" tabIndex={0} role="region" aria-label="Seasons side by side">
               <table className="table min-w-[36rem]" data-testid="compare-table">
                 <thead>
                   <tr>

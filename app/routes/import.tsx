@@ -228,7 +228,7 @@ export default function Import({ loaderData }: Route.ComponentProps) {
       {preview ? (
         <section className="card" data-testid="csv-preview">
           <h2 className="h2 mb-3">As they will be stored</h2>
-          <div className="overflow-x-auto">
+          <div className="overflow-x-auto" tabIndex={0} role="region" aria-label="Preview of the file">
             <table className="table">
               <thead>
                 <tr>

@@ -325,7 +325,7 @@ function CopyBlock({ label, text, testId }: { label: string; text: string; testI
           {copied ? "Copied" : "Copy"}
         </button>
       </div>
-      <pre className="overflow-x-auto rounded-lg bg-ink p-3 text-xs leading-relaxed text-paper" data-testid={testId}>
+      <pre tabIndex={0} className="overflow-x-auto rounded-lg bg-ink p-3 text-xs leading-relaxed text-paper" data-testid={testId}>
         {text}
       </pre>
     </div>

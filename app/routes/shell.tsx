@@ -31,7 +31,9 @@ export default function Shell({ loaderData }: Route.ComponentProps) {
           </nav>
         </div>
       </header>
-      <Outlet />
+      <div id="main" tabIndex={-1} className="outline-none">
+        <Outlet />
+      </div>
     </div>
   );
 }

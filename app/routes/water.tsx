@@ -186,7 +186,7 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
 
       {chartData ? (
         <section className="card">
-          <Chart spec={spec} data={chartData} testId="water-chart" />
+          <Chart spec={spec} data={chartData} timeZone={timeZone} testId="water-chart" />
           {unplotted ? (
             <p className="mt-2 text-xs text-muted">
               {unplotted} TDS {unplotted === 1 ? "reading" : "readings"} without the meter's scale {unplotted === 1 ? "is" : "are"} in the table but not
@@ -197,8 +197,8 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
       ) : null}
 
       <div className="grid grid-cols-1 gap-6 lg:grid-cols-[minmax(0,1fr)_minmax(0,22rem)]">
-        <section className="card relative overflow-x-auto">
-          <h3 className="h2 mb-3">All checks</h3>
+        <section className="card relative overflow-x-auto" tabIndex={0} aria-labelledby="water-all-checks">
+          <h3 id="water-all-checks" className="h2 mb-3">All checks</h3>
           {checks.length === 0 ? (
             <p className="text-sm text-muted">None yet.</p>
           ) : (

@@ -1,6 +1,7 @@
+import { useEffect, useRef } from "react";
 import { data, Form, Link, useNavigation } from "react-router";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
-import { parseWish, removeWish, saveWish, siteInventory, sitePlants, siteWishlist } from "~/.server/plants";
+import { ConfirmRemoval, parseWish, removeWish, saveWish, siteInventory, sitePlants, siteWishlist } from "~/.server/plants";
 import { fitSummary, judgedPeriods, parsePeriod, pickableMonths, spotProfiles, windowOf } from "~/.server/profiles";
 import { periodLabel, PeriodPicker } from "~/components/period-picker";
 import { getSite, listSpots } from "~/.server/sites";
@@ -22,6 +23,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const profiles = wanted.length ? await spotProfiles(site, spots.map((s) => s.id), now, { plants, periods }) : new Map();
   const withSeason = spots.map((s) => ({ spot: s, season: profiles.get(s.id)!, window: windowOf(site, s) }));
   const ranked = wanted.map((w) => ({ wish: w, fits: rankSpotsForPlant(byKey.get(w.plantKey)!, withSeason).map((r) => ({ spotId: r.spot.spot.id, verdict: r.fit.verdict, reason: fitSummary(byKey.get(w.plantKey)!, r.fit, { unit: user.temperatureUnit }).reasons[0]?.message ?? null })) }));
+  const reasonIn = (i: number, spotId: number | undefined) => ranked[i].fits.find((f) => f.spotId === spotId)?.reason ?? null;
   const plan = planWishlist(
     spots.map((s) => ({ id: s.id, name: s.name, capacity: s.capacity, standingPots: inventory.filter((i) => i.spotId === s.id).reduce((n, i) => n + i.pots, 0) })),
     ranked.map((r) => ({ plantKey: r.wish.plantKey, mustHave: r.wish.mustHave, pots: r.wish.pots, fits: r.fits })),
@@ -37,8 +39,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
         mustHave: r.wish.mustHave,
         pots: r.wish.pots,
         best: p.best ? { spot: spotName.get(p.best.spotId)!, verdict: p.best.verdict, reason: bestFit?.reason ?? null } : null,
-        placed: p.placed ? spotName.get(p.placed.spotId)! : null,
+        placed: p.placed ? { spot: spotName.get(p.placed.spotId)!, verdict: p.placed.verdict, reason: reasonIn(i, p.placed.spotId) } : null,
         note: p.note,
+        everywhereStruggles: p.everywhereStruggles ?? false,
       };
     })
     .sort((a, b) => VERDICT_ORDER.indexOf(a.best?.verdict ?? "struggles here") - VERDICT_ORDER.indexOf(b.best?.verdict ?? "struggles here") || Number(b.mustHave) - Number(a.mustHave));
@@ -67,13 +70,21 @@ export async function action({ request, params }: Route.ActionArgs) {
   if (intent === "save") {
     const parsed = parseWish(form, String(form.get("plantKey") ?? ""));
     if (!parsed.success) return data({ error: parsed.error.issues[0]?.message ?? "Check the plant and pots." }, { status: 400 });
-    if (!plants.some((p) => p.key === parsed.data.plantKey)) return data({ error: "Choose a plant from the list." }, { status: 400 });
-    await saveWish(siteId, user.id, { plantKey: parsed.data.plantKey, mustHave: parsed.data.mustHave === "on", pots: parsed.data.pots });
-    return { error: null };
+    const plant = plants.find((p) => p.key === parsed.data.plantKey);
+    if (!plant) return data({ error: "Choose a plant from the list." }, { status: 400 });
+    await saveWish(siteId, user.id, { plantKey: plant.key, mustHave: parsed.data.mustHave === "on", pots: parsed.data.pots }, plant.name);
+    return { error: null, saved: plant.key, restored: form.get("restore") === "1" ? plant.name : null };
   }
   if (intent === "remove") {
-    await removeWish(siteId, user.id, String(form.get("plantKey") ?? ""));
-    return { error: null };
+    const plantKey = String(form.get("plantKey") ?? "").slice(0, 120);
+    const plantName = plants.find((p) => p.key === plantKey)?.name ?? plantKey;
+    try {
+      const removed = await removeWish(siteId, user.id, plantKey, { confirmed: form.get("confirm") === "yes", plantName });
+      return { error: null, removed };
+    } catch (e) {
+      if (e instanceof ConfirmRemoval) return { error: null, confirm: { plantKey, name: plantName } };
+      throw e;
+    }
   }
   throw data("Unknown action", { status: 400 });
 }
@@ -81,6 +92,13 @@ export async function action({ request, params }: Route.ActionArgs) {
 export default function Wishlist({ loaderData, actionData }: Route.ComponentProps) {
   const { rows, spots, canEdit, choices, siteId } = loaderData;
   const busy = useNavigation().state !== "idle";
+  const addForm = useRef<HTMLFormElement>(null);
+  // After an add, the form starts clean: the next plant must not silently become a must-have too.
+  useEffect(() => {
+    if (actionData && "saved" in actionData && actionData.saved) addForm.current?.reset();
+  }, [actionData]);
+  const removed = actionData && "removed" in actionData ? actionData.removed : null;
+  const confirm = actionData && "confirm" in actionData ? actionData.confirm : null;
   const full = spots.filter((s) => s.filledByMustHaves);
   return (
     <div className="space-y-6">
@@ -102,6 +120,44 @@ export default function Wishlist({ loaderData, actionData }: Route.ComponentProp
           {full.map((s) => `${s.name} (${s.standingPots} standing + ${s.mustHavePots} must-have of ${s.capacity} pots)`).join("; ")}. Anything else
           wanted there needs another spot.
         </p>
+      ) : null}
+
+      {removed ? (
+        <Form method="post" className="card flex flex-wrap items-center gap-3 text-sm" role="status" data-testid="wish-removed">
+          <span>
+            Took {removed.plant}
+            {removed.mustHave ? " (a must-have)" : ""} off the wishlist.
+          </span>
+          <input type="hidden" name="intent" value="save" />
+          <input type="hidden" name="restore" value="1" />
+          <input type="hidden" name="plantKey" value={removed.plantKey} />
+          <input type="hidden" name="pots" value={removed.pots} />
+          {removed.mustHave ? <input type="hidden" name="mustHave" value="on" /> : null}
+          <button className="btn-quiet py-1 text-sm" disabled={busy}>
+            Put it back
+          </button>
+        </Form>
+      ) : null}
+      {actionData && "restored" in actionData && actionData.restored ? (
+        <p className="card text-sm" role="status">
+          {actionData.restored} is back on the wishlist.
+        </p>
+      ) : null}
+      {confirm ? (
+        <Form method="post" className="card flex flex-wrap items-center gap-3 border-care/40 text-sm" role="alertdialog" aria-label={`Remove ${confirm.name}?`} data-testid="wish-confirm">
+          <span>
+            <strong className="text-care">{confirm.name} is a must-have.</strong> Someone on this site counts on it having room. Remove it anyway?
+          </span>
+          <input type="hidden" name="intent" value="remove" />
+          <input type="hidden" name="plantKey" value={confirm.plantKey} />
+          <input type="hidden" name="confirm" value="yes" />
+          <button className="btn-danger py-1 text-sm" disabled={busy}>
+            Remove {confirm.name}
+          </button>
+          <Link to="." className="link" preventScrollReset>
+            Keep it
+          </Link>
+        </Form>
       ) : null}
 
       <section className="card">
@@ -131,19 +187,33 @@ export default function Wishlist({ loaderData, actionData }: Route.ComponentProp
                     </span>
                   ) : null}
                 </div>
-                {r.best ? (
-                  <p className="text-sm">
-                    Best spot: <span className="font-medium">{r.best.spot}</span>
-                    {r.placed && r.placed !== r.best.spot ? (
-                      <>
+                {r.everywhereStruggles && r.best ? (
+                  <p className="text-sm" data-testid="wish-struggles">
+                    {r.note}
+                    {r.best.reason ? (
+                      <span className="text-muted">
                         {" "}
-                        · planned for <span className="font-medium">{r.placed}</span>
-                      </>
+                        Closest is {r.best.spot}: {r.best.reason}
+                      </span>
                     ) : null}
-                    {r.best.reason ? <span className="text-muted"> — {r.best.reason}</span> : null}
                   </p>
+                ) : r.best ? (
+                  <>
+                    <p className="text-sm">
+                      Best spot: <span className="font-medium">{r.best.spot}</span>
+                      {r.best.reason ? <span className="text-muted"> — {r.best.reason}</span> : null}
+                    </p>
+                    {r.placed && r.placed.spot !== r.best.spot ? (
+                      <p className="text-sm" data-testid="wish-planned">
+                        Planned for <span className="font-medium">{r.placed.spot}</span> ({r.placed.verdict})
+                        {r.placed.reason ? <span className="text-muted"> — {r.placed.reason}</span> : null}
+                      </p>
+                    ) : null}
+                    {r.note ? <p className="text-sm text-care">{r.note}</p> : null}
+                  </>
+                ) : r.note ? (
+                  <p className="text-sm text-care">{r.note}</p>
                 ) : null}
-                {r.note ? <p className="text-sm text-care">{r.note}</p> : null}
                 {canEdit ? (
                   <div className="flex flex-wrap items-center gap-2">
                     <Form method="post" className="flex flex-wrap items-center gap-2">
@@ -178,7 +248,7 @@ export default function Wishlist({ loaderData, actionData }: Route.ComponentProp
       {spots.length > 0 ? (
         <section className="card">
           <h3 className="h2 mb-3">Room in each spot</h3>
-          <div className="-mx-5 overflow-x-auto px-5">
+          <div className="-mx-5 overflow-x-auto px-5" tabIndex={0} role="region" aria-label="Room in each spot">
             <table className="table" data-testid="wishlist-room">
               <thead>
                 <tr>
@@ -208,7 +278,7 @@ export default function Wishlist({ loaderData, actionData }: Route.ComponentProp
       ) : null}
 
       {canEdit ? (
-        <Form method="post" className="card grid gap-3 sm:grid-cols-[3fr_1fr_auto_auto] sm:items-end" aria-label="Add to the wishlist">
+        <Form ref={addForm} method="post" className="card grid gap-3 sm:grid-cols-[3fr_1fr_auto_auto] sm:items-end" aria-label="Add to the wishlist">
           <input type="hidden" name="intent" value="save" />
           <div>
             <label className="label" htmlFor="wish-plant">

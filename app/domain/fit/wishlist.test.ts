@@ -29,7 +29,7 @@ describe("planWishlist", () => {
       wish("c", true, 1, [{ spotId: 2, verdict: "struggles here" }]),
       wish("d", false, 20, [{ spotId: 3, verdict: "not enough data yet" }]),
     ]);
-    expect(plan.wishes[0]).toMatchObject({ placed: null, note: "No spot suits it yet." });
+    expect(plan.wishes[0]).toMatchObject({ placed: null, note: "It struggles in every spot here (1 judged).", everywhereStruggles: true });
     expect(plan.wishes[1].placed?.spotId).toBe(3);
     expect(plan.spots.find((s) => s.id === 3)!.free).toBeNull();
   });

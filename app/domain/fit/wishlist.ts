@@ -27,6 +27,8 @@ export type WishPlan = {
   placed: { spotId: number; verdict: Verdict } | null;
   /** Why it was not placed in its best spot, in plain words; null when it was. */
   note: string | null;
+  /** Even the best spot is "struggles here": the page says so once, with no "best spot". */
+  everywhereStruggles?: boolean;
 };
 
 export type SpotRoom = WishSpot & { mustHavePots: number; otherPots: number; free: number | null; filledByMustHaves: boolean };
@@ -56,7 +58,14 @@ export function planWishlist(spots: WishSpot[], wishes: Wish[]): { wishes: WishP
         plantKey: w.plantKey,
         best,
         placed: null,
-        note: !best ? "No spots to judge yet." : best.verdict === "good for part of the year" ? "No spot suits it all year; the best suits it for part of the year." : "No spot suits it yet.",
+        note: !best
+          ? "No spots to judge yet."
+          : best.verdict === "good for part of the year"
+            ? "No spot suits it all year; the best suits it for part of the year."
+            : best.verdict === "struggles here"
+              ? `It struggles in every spot here (${fits.length} judged).`
+              : "No spot suits it yet.",
+        everywhereStruggles: best?.verdict === "struggles here",
       };
       continue;
     }

@@ -67,21 +67,21 @@ describe("spots closer than the sensors can tell apart", () => {
     expect(winter[0]).toMatchObject({ allSame: true });
     const words = describeHeadline(winter[0], c, c);
     expect(words).not.toMatch(/is the warmest/);
-    expect(words).toMatch(/^The Bench B and the Bench A are about the same in winter \(nights average 12\.0 °C and 12\.0 °C\): the difference is within what two sensors of ±0\.5 °C each can tell apart\.$/);
+    expect(words).toMatch(/^Bench B and Bench A are about the same in winter \(nights average 12\.0 °C and 12\.0 °C\): the difference is within what two sensors of ±0\.5 °C each can tell apart\.$/);
   });
 
   it("still names the winner once the gap is beyond what two sensors can tell apart", () => {
     const h = compareHeadlines([mk("Shelf", 12 + SAME_WITHIN_C + 0.1, 22), mk("Sill", 12, 22)]);
     const winter = h.find((x) => x.season === "winter")!;
     expect(winter.sameAs).toEqual([]);
-    expect(describeHeadline(winter, c, c)).toBe("The Shelf is the warmest in winter (nights average 13.1 °C).");
+    expect(describeHeadline(winter, c, c)).toBe("Shelf is the warmest in winter (nights average 13.1 °C).");
   });
 
   it("with three spots names the two that are level together and keeps the clearly colder one apart", () => {
     const h = compareHeadlines([mk("A", 10, 20), mk("B", 10.3, 24), mk("C", 6, 26)]);
     const warmest = h.find((x) => x.season === "winter" && x.kind === "warmest")!;
     expect(warmest).toMatchObject({ spot: "B", sameAs: [{ spot: "A", figure: 10 }], allSame: false });
-    expect(describeHeadline(warmest, c, c)).toMatch(/^The B and the A are the warmest in winter, about the same as each other/);
+    expect(describeHeadline(warmest, c, c)).toMatch(/^B and A are the warmest in winter, about the same as each other/);
     expect(h.find((x) => x.season === "winter" && x.kind === "coldest")).toMatchObject({ spot: "C", sameAs: [] });
   });
 });

@@ -115,15 +115,15 @@ export function compareHeadlines(spots: { name: string; seasons: SeasonFigures[]
 export function describeHeadline(h: Headline, temp: (c: number) => string, deltaTemp: (c: number) => string): string {
   const what = h.by === "meanDailyLow" ? "nights average" : "days average";
   const caveat = `within what two sensors of ±${deltaTemp(SENSOR_ACCURACY_C)} each can tell apart`;
-  if (h.sameAs.length === 0) return `The ${h.spot} is the ${h.kind} in ${h.season} (${what} ${temp(h.figure)}).`;
+  // Spot names as the grower gave them: no article of ours in front ("The Bench B").
+  if (h.sameAs.length === 0) return `${h.spot} is the ${h.kind} in ${h.season} (${what} ${temp(h.figure)}).`;
   const all = [{ spot: h.spot, figure: h.figure }, ...h.sameAs];
-  const names = listWords(all.map((x) => `the ${x.spot}`));
+  const names = listWords(all.map((x) => x.spot));
   const figures = listWords(all.map((x) => temp(x.figure)));
-  if (h.allSame) return `${capitalise(names)} are about the same in ${h.season} (${what} ${figures}): the difference is ${caveat}.`;
-  return `${capitalise(names)} are the ${h.kind} in ${h.season}, about the same as each other (${what} ${figures}, ${caveat}).`;
+  if (h.allSame) return `${names} are about the same in ${h.season} (${what} ${figures}): the difference is ${caveat}.`;
+  return `${names} are the ${h.kind} in ${h.season}, about the same as each other (${what} ${figures}, ${caveat}).`;
 }
 
-const capitalise = (s: string) => s.charAt(0).toUpperCase() + s.slice(1);
 function listWords(xs: string[]) {
   return xs.length <= 1 ? (xs[0] ?? "") : `${xs.slice(0, -1).join(", ")} and ${xs[xs.length - 1]}`;
 }
