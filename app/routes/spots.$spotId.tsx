@@ -1,10 +1,9 @@
-import { useEffect, useMemo } from "react";
+import { useEffect } from "react";
 import { data, Link, useFetcher, useNavigation } from "react-router";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
 import { latestReading } from "~/.server/series";
 import { getSite, getSpot, listSensors, listSpots, placementHistory } from "~/.server/sites";
 import { placeFromForm } from "~/.server/sensors.server";
-import { Chart, useSeries, type ChartSpec } from "~/components/chart";
 import { PlaceSensorForm, PlacementHistory, PlacingTips } from "~/components/placement";
 import { SeasonTable } from "~/components/season";
 import { GroupedFits, VerdictSummary } from "~/components/fit-groups";
@@ -15,14 +14,14 @@ import { SpotExports } from "~/components/spot-exports";
 import { listNotes } from "~/.server/notes";
 import { DirectSun } from "~/components/direct-sun";
 import { Inventory } from "~/components/inventory";
-import { YearCharts } from "~/components/spot-charts";
+import { HoursCharts, YearCharts } from "~/components/spot-charts";
 import { inventoryAction, sitePlants } from "~/.server/plants";
 import { spotGrowing } from "~/.server/spot-growing";
 import { fitsFor, glassContextFor, judgedPeriods, parseGlazing, parsePeriod, pickableMonths, slimProfile, spotProfiles, windowOf } from "~/.server/profiles";
 import { periodLabel, PeriodPicker } from "~/components/period-picker";
 import { VERDICT_RULES } from "~/domain/fit/verdict";
 import { timeAgo } from "~/lib/time";
-import { formatTemp, toUnit } from "~/lib/units";
+import { formatTemp } from "~/lib/units";
 import { LIGHT_SOURCE_LABELS, type LightSource } from "~/domain/climate/light";
 import type { Route } from "./+types/spots.$spotId";
 
@@ -114,23 +113,6 @@ function LightNotes({ profile, lightSource }: { profile: { luxPerPpfd: number; l
   );
 }
 
-const hoursChart = (unit: "C" | "F"): ChartSpec => ({
-  title: "Last 48 hours",
-  unit,
-  build: (d, u) => ({
-    data: [d.t as number[], d.temp.map((v) => (v == null ? null : toUnit(v, u))), d.rh] as never,
-    series: [
-      { label: `Temperature °${u}`, stroke: "#c4472f", width: 2, value: (_s, v) => (v == null ? "–" : `${v.toFixed(1)} °${u}`) },
-      { label: "Humidity %", stroke: "#3b6ea8", width: 1.5, scale: "rh", value: (_s, v) => (v == null ? "–" : `${Math.round(v)} %`) },
-    ],
-    axes: [
-      { stroke: "#6f675c", grid: { stroke: "#e4dccd" } },
-      { stroke: "#6f675c", grid: { stroke: "#e4dccd" }, label: `°${u}`, size: 50 },
-      { stroke: "#3b6ea8", side: 1, scale: "rh", grid: { show: false }, label: "% RH", size: 50 },
-    ],
-  }),
-});
-
 export default function SpotPage({ loaderData, actionData }: Route.ComponentProps) {
   const { spot, site, role, unit, history, sensors } = loaderData;
   const navigation = useNavigation();
@@ -143,8 +125,6 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
     return () => clearInterval(t);
   }, [site.id, spot.id]);
   const latest = live.data?.latest ?? loaderData.latest;
-  const series48 = useSeries(`/api/sites/${site.id}/spots/${spot.id}/series?range=48h`);
-  const spec48 = useMemo(() => hoursChart(unit), [unit]);
 
   const days = loaderData.profile.year.reduce((n, m) => n + m.coverage.daysObserved, 0);
   const openNotes = loaderData.notes.filter((n) => n.resolvedAt === null).length;
@@ -300,8 +280,7 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
         <details className="fold" data-testid="fold-48h">
           <summary>The last 48 hours, reading by reading</summary>
           <div>
-            <Chart spec={spec48} data={series48.data} testId="chart-48h" />
-            {series48.error ? <p className="error">Could not load the chart: {series48.error}</p> : null}
+            <HoursCharts url={`/api/sites/${site.id}/spots/${spot.id}/series?range=48h`} unit={unit} timeZone={site.timeZone} />
           </div>
         </details>
         <details className="fold" data-testid="fold-days">
