@@ -12,6 +12,7 @@ import { promisify } from "node:util";
 import { build as esbuild } from "esbuild";
 import { from as copyFrom } from "pg-copy-streams";
 import { chromium } from "playwright-core";
+import { phonePages } from "./phone";
 import { closeDb, pool, runMigrations } from "../../app/.server/db";
 import { aptInstall, isRoot } from "../../app/.server/debian";
 import { hashSensorSecret } from "../../app/.server/secrets";
@@ -285,6 +286,10 @@ async function bench() {
     await projectionBench(site.id);
     return output(started);
   }
+  if (ONLY === "phone") {
+    await phoneBench();
+    return output(started);
+  }
 
   // ---------- Ingest: bare COPY and the direct writer on the same rows, then MQTT ----------
   const total = N(300_000, 60_000);
@@ -532,7 +537,23 @@ async function bench() {
 
   log(`autovacuum settled after ${fmt(await quietDb(), 1)} s`);
   await csvUnderLoad({ sensorId: bulkIds[7], creds, timeZone: site.time_zone });
+  await phoneBench();
   output(started);
+}
+
+/** The phone figures (tests/bench/phone.ts): the built app's first screens with a 4× slower CPU on a slow network. */
+async function phoneBench() {
+  ensureChromium();
+  for (const f of await phonePages({ chromiumPath: CHROMIUM, log })) {
+    rows.push({
+      figure: `Phone, 390 px, CPU 4× slower, slow 4G: ${f.page}, its answer on screen (ms)`,
+      ours: fmt(f.answerMs, 0),
+      baseline: `${fmt(f.fcpMs, 0)} (first contentful paint)`,
+      ratio: "—",
+      target: "≤ 2,500 ms",
+      note: `JavaScript ${fmt(f.scriptKb, 0)} KB sent, ${fmt(f.scriptKbDecoded, 0)} KB unpacked; median of 3 fresh visits`,
+    });
+  }
 }
 
 function output(started: Date) {
