@@ -9,12 +9,13 @@ const VERDICT_STYLE: Record<string, { icon: string; cls: string }> = {
   "not enough data yet": { icon: "…", cls: "text-muted border-line bg-paper" },
 };
 
-export function VerdictBadge({ verdict }: { verdict: string }) {
+/** `likely`: the verdict rests partly or wholly on projected months (a dashed edge, "likely …"). */
+export function VerdictBadge({ verdict, likely = false }: { verdict: string; likely?: boolean }) {
   const s = VERDICT_STYLE[verdict] ?? VERDICT_STYLE["not enough data yet"];
   return (
-    <span className={`inline-flex items-center gap-1.5 rounded-full border px-2.5 py-0.5 text-sm font-semibold ${s.cls}`}>
+    <span className={`inline-flex items-center gap-1.5 rounded-full border px-2.5 py-0.5 text-sm font-semibold ${s.cls}${likely ? " border-dashed" : ""}`}>
       <span aria-hidden="true">{s.icon}</span>
-      {verdict}
+      {likely ? `likely ${verdict}` : verdict}
     </span>
   );
 }
@@ -29,6 +30,9 @@ export type FitRow = {
   okReasons: string[];
   missingMonths: string[];
   missingAdvice: string | null;
+  /** Measured, or resting on projected months ("likely …", with the months and firm-by date in verdictText). */
+  confidence?: "measured" | "projected" | "mixed";
+  verdictText?: string;
 };
 
 export function FitList({ fits }: { fits: FitRow[]; unit: TempUnit; siteId: number }) {
@@ -40,9 +44,14 @@ export function FitList({ fits }: { fits: FitRow[]; unit: TempUnit; siteId: numb
             <span className="font-semibold">{f.name}</span>
             {f.category ? <span className="text-sm text-muted">{f.category} grower</span> : null}
             <span className="ml-auto">
-              <VerdictBadge verdict={f.verdict} />
+              <VerdictBadge verdict={f.verdict} likely={!!f.confidence && f.confidence !== "measured"} />
             </span>
           </div>
+          {f.confidence && f.confidence !== "measured" && f.verdictText ? (
+            <p className="mt-1 text-sm text-muted" data-testid="fit-basis">
+              {f.verdictText.replace(/^likely [^—]+— /, "")}. Projected months are estimates from past weather.
+            </p>
+          ) : null}
           {f.reasons.length > 0 ? <p className="mt-1.5 text-sm">{f.reasons[0].message}</p> : null}
           {f.missingAdvice ? <p className="mt-1 text-sm text-muted">{f.missingAdvice}</p> : null}
           {f.reasons.length > 1 ? (
