@@ -210,7 +210,11 @@ function merge(measured: RuleResult, projected: Judged | null, rule: RuleName): 
   return {
     ...m,
     level,
-    facts: [...m.facts, ...projected.facts.filter((f) => f.kind !== "projected-ok" || level === "good")],
+    // What sets the level comes first: the projected warning before the measured months' all-clear.
+    facts:
+      confidence === "projected"
+        ? [...projected.facts.filter((f) => f.kind !== "projected-ok"), ...m.facts]
+        : [...m.facts, ...projected.facts.filter((f) => f.kind !== "projected-ok" || level === "good")],
     months: keys(cyclicOrder([...(m.months ?? []).map(Number), ...projected.months])),
     confidence,
     ...(confidence === "projected" && projected.level === "poor" ? { likely: "poor" as const } : {}),

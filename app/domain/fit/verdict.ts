@@ -141,8 +141,10 @@ export function fitPlant(
     .filter((r) => r.facts.length > 0 || r.noData)
     .map((r) => (r.rule === "light" && r.noData && ctx.window ? windowLight(profile, ctx.window) : r))
     .map((r) => (r.rule === "condensation" && ctx.glass ? coldGlass(r, season, ctx.glass) : r));
-  const basis = basisOf(season, ctx.projection);
-  const reasons = (basis ? withProjection(profile, season, judgedReasons, ctx.projection!, thresholds) : judgedReasons.map((r) => ({ ...r, confidence: "measured" as const })))
+  // Measured months always win: a projected month the season has measured is never judged.
+  const projection = ctx.projection && { ...ctx.projection, months: ctx.projection.months.filter((m) => !season.year[m.month - 1]?.coverage.enough) };
+  const basis = basisOf(season, projection);
+  const reasons = (basis ? withProjection(profile, season, judgedReasons, projection!, thresholds) : judgedReasons.map((r) => ({ ...r, confidence: "measured" as const })))
     .filter((r) => r.facts.length > 0 || r.noData)
     .sort((a, b) => LEVEL_ORDER[a.level] - LEVEL_ORDER[b.level] || ruleRank(a) - ruleRank(b));
   const missing = missingMonthsOf(season);
