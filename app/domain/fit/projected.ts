@@ -37,7 +37,7 @@ export type FitBasis = {
 const round1 = (x: number) => Math.round(x * 10) / 10;
 const range = (f: Figure): [number, number] => [round1(f.low), round1(f.high)];
 
-type Judged = { level: RuleLevel; facts: Fact[]; months: number[] };
+type Judged = { level: RuleLevel; facts: Fact[]; months: number[]; monthKeys?: string[] };
 
 /** Cold side: a projected month whose lowest falls past the damage line, or whose nights typically sit under comfort. */
 function cold(p: PlantProfile, months: ProjectedMonth[], years: number, t: FitThresholds): Judged | null {
@@ -193,18 +193,17 @@ const worse = (a: RuleLevel, b: RuleLevel) => (ORDER.indexOf(b) > ORDER.indexOf(
  * reason's confidence to projected when it is what sets the level; a good reason judged on both
  * measured and projected months is mixed.
  */
-function merge(measured: RuleResult, projected: Judged | null, rule: RuleName): RuleResult {
+function merge(measured: RuleResult, projected: Judged, rule: RuleName): RuleResult {
   const m = measured.noData ? null : measured;
-  if (!projected) return { ...measured, confidence: "measured" };
-  if (m?.level === "poor") return { ...measured, confidence: "measured" };
   const pLevel: RuleLevel = projected.level === "poor" ? "care" : projected.level;
-  const keys = (ms: number[]) => ms.map(monthKeyOf);
+  // Month keys in reading order, once per judgement (a fit table merges each judgement many times).
+  const own = (projected.monthKeys ??= cyclicOrder(projected.months).map(monthKeyOf));
   if (rule === "flowering") {
     // A cue likely met on projected months lifts a measured miss (or no data) to good.
-    if (!m || m.level !== "good") return { rule, level: "good", facts: projected.facts, months: keys(cyclicOrder(projected.months)), confidence: "projected" };
+    if (!m || m.level !== "good") return { rule, level: "good", facts: projected.facts, months: own, confidence: "projected" };
     return { ...m, facts: [...m.facts, ...projected.facts], confidence: "mixed" };
   }
-  if (!m) return { rule, level: pLevel, facts: projected.facts, months: keys(cyclicOrder(projected.months)), confidence: "projected", ...(projected.level === "poor" ? { likely: "poor" as const } : {}) };
+  if (!m) return { rule, level: pLevel, facts: projected.facts, months: own, confidence: "projected", ...(projected.level === "poor" ? { likely: "poor" as const } : {}) };
   const level = worse(m.level, pLevel);
   const confidence: Confidence = level === "good" ? "mixed" : ORDER.indexOf(pLevel) > ORDER.indexOf(m.level) ? "projected" : "measured";
   return {
@@ -215,24 +214,49 @@ function merge(measured: RuleResult, projected: Judged | null, rule: RuleName): 
       confidence === "projected"
         ? [...projected.facts.filter((f) => f.kind !== "projected-ok"), ...m.facts]
         : [...m.facts, ...projected.facts.filter((f) => f.kind !== "projected-ok" || level === "good")],
-    months: keys(cyclicOrder([...(m.months ?? []).map(Number), ...projected.months])),
+    months: !m.months?.length ? own : own.length === 0 ? m.months : cyclicOrder([...m.months.map(Number), ...projected.months]).map(monthKeyOf),
     confidence,
     ...(confidence === "projected" && projected.level === "poor" ? { likely: "poor" as const } : {}),
   };
 }
 
+// A fit table judges many plants alike in what a rule reads (fit/rules.ts RULE_INPUTS): each
+// projection's judgement is kept per rule and plant inputs, and each merge per pair of results.
+type JudgeKey = (p: PlantProfile) => string;
+const JUDGES: { rule: RuleName; key: JudgeKey; judge: (p: PlantProfile, months: ProjectedMonth[], years: number, t: FitThresholds, season: SeasonProfile) => Judged | null }[] = [
+  { rule: "cold-nights", key: (p) => `${p.minNightC}|${linesOf(p).damageNightC}`, judge: (p, m, y, t) => cold(p, m, y, t) },
+  { rule: "hot-days", key: (p) => `${p.maxDayC}|${linesOf(p).damageDayC}`, judge: (p, m, y, t) => heat(p, m, y, t) },
+  { rule: "warm-nights", key: (p) => `${p.maxNightC}`, judge: (p, m, y, t) => warm(p, m, y, t) },
+  { rule: "humidity", key: (p) => `${p.humidityMin}|${p.humidityMax}`, judge: (p, m, y) => humidity(p, m, y) },
+  { rule: "flowering", key: (p) => JSON.stringify(p.flowering), judge: (p, m, y, t, s) => flowering(p, m, y, s, t) },
+];
+const judgedCache = new WeakMap<FitProjection, WeakMap<FitThresholds, Map<string, Judged | null>>>();
+const mergedCache = new WeakMap<RuleResult, Map<Judged, RuleResult>>();
+/** Each plant's key per judge, built once per plant profile. */
+const plantKeys = new WeakMap<PlantProfile, string[]>();
+
 /** Each measured rule result joined with the projected months' judgement of the same rule. */
 export function withProjection(profile: PlantProfile, season: SeasonProfile, reasons: RuleResult[], projection: FitProjection, t: FitThresholds): RuleResult[] {
-  const months = projection.months;
-  const y = projection.years;
-  const judged: Partial<Record<RuleName, Judged | null>> = {
-    "cold-nights": cold(profile, months, y, t),
-    "hot-days": heat(profile, months, y, t),
-    "warm-nights": warm(profile, months, y, t),
-    humidity: humidity(profile, months, y),
-    flowering: flowering(profile, months, y, season, t),
-  };
-  return reasons.map((r) => (r.rule in judged ? merge(r, judged[r.rule] ?? null, r.rule) : { ...r, confidence: "measured" as const }));
+  let byT = judgedCache.get(projection);
+  if (!byT) judgedCache.set(projection, (byT = new WeakMap()));
+  let known = byT.get(t);
+  if (!known) byT.set(t, (known = new Map()));
+  let keys = plantKeys.get(profile);
+  if (!keys) plantKeys.set(profile, (keys = JUDGES.map((j) => `${j.rule}|${j.key(profile)}`)));
+  return reasons.map((r) => {
+    const i = JUDGES.findIndex((x) => x.rule === r.rule);
+    if (i < 0) return r; // not judged on projected months: rests on the measured months (confidence absent = measured)
+    const j = JUDGES[i];
+    const key = keys[i];
+    let judged = known.get(key);
+    if (judged === undefined) known.set(key, (judged = j.judge(profile, projection.months, projection.years, t, season)));
+    if (!judged || (r.level === "poor" && !r.noData)) return r;
+    let merges = mergedCache.get(r);
+    if (!merges) mergedCache.set(r, (merges = new Map()));
+    let out = merges.get(judged);
+    if (!out) merges.set(judged, (out = merge(r, judged, r.rule)));
+    return out;
+  });
 }
 
 /** What the verdict rests on. Null when nothing was filled from a projection. */

@@ -67,7 +67,7 @@ export type RuleResult = {
   noData?: boolean;
   /** How far the spot misses: degree-hours past the damage line and past the comfort line. */
   miss?: { damage: number; comfort: number };
-  /** What the result rests on (set by fitPlant): measured months, projected months, or both. */
+  /** What the result rests on: measured months (also when absent), projected months, or both (fit/projected.ts). */
   confidence?: "measured" | "projected" | "mixed";
   /** Set when projected months alone would have made this poor: it is a likely warning at care level instead. */
   likely?: "poor";

@@ -124,6 +124,20 @@ export function seasonalUse(profile: PlantProfile, season: SeasonProfile, t: Fit
 }
 
 /** `projection` fills the months of the period not measured yet (fit/projected.ts). */
+// Measured months always win: a projected month the season has measured is never judged. Kept
+// per season and projection, so a fit table's plants share one filtered projection (and its cache).
+const unmeasuredCache = new WeakMap<SeasonProfile, WeakMap<FitProjection, { projection: FitProjection; basis: FitBasis | null }>>();
+function unmeasured(season: SeasonProfile, projection: FitProjection): { projection: FitProjection; basis: FitBasis | null } {
+  let bySeason = unmeasuredCache.get(season);
+  if (!bySeason) unmeasuredCache.set(season, (bySeason = new WeakMap()));
+  let hit = bySeason.get(projection);
+  if (!hit) {
+    const p = { ...projection, months: projection.months.filter((m) => !season.year[m.month - 1]?.coverage.enough) };
+    bySeason.set(projection, (hit = { projection: p, basis: basisOf(season, p) }));
+  }
+  return hit;
+}
+
 export type FitContext = { window?: SpotWindow; glass?: GlassContext; projection?: FitProjection };
 
 /**
@@ -141,16 +155,16 @@ export function fitPlant(
     .filter((r) => r.facts.length > 0 || r.noData)
     .map((r) => (r.rule === "light" && r.noData && ctx.window ? windowLight(profile, ctx.window) : r))
     .map((r) => (r.rule === "condensation" && ctx.glass ? coldGlass(r, season, ctx.glass) : r));
-  // Measured months always win: a projected month the season has measured is never judged.
-  const projection = ctx.projection && { ...ctx.projection, months: ctx.projection.months.filter((m) => !season.year[m.month - 1]?.coverage.enough) };
-  const basis = basisOf(season, projection);
-  const reasons = (basis ? withProjection(profile, season, judgedReasons, projection!, thresholds) : judgedReasons.map((r) => ({ ...r, confidence: "measured" as const })))
+  const filled = ctx.projection ? unmeasured(season, ctx.projection) : null;
+  const projection = filled?.projection;
+  const basis = filled?.basis ?? null;
+  const reasons = (basis ? withProjection(profile, season, judgedReasons, projection!, thresholds) : judgedReasons)
     .filter((r) => r.facts.length > 0 || r.noData)
     .sort((a, b) => LEVEL_ORDER[a.level] - LEVEL_ORDER[b.level] || ruleRank(a) - ruleRank(b));
   const missing = missingMonthsOf(season);
   // Months the projection fills no longer hold the verdict back; they stay listed as not measured.
-  const filled = new Set(basis?.projectedMonths ?? []);
-  const unfilled = missing.filter((m) => !filled.has(m));
+  const projectedMonths = new Set(basis?.projectedMonths ?? []);
+  const unfilled = missing.filter((m) => !projectedMonths.has(m));
   const levels = new Set(reasons.map((r) => r.level));
   // Seasonal use is for spots a plant can be carried out to and back in: outdoors.
   const seasonal = levels.has("poor") && ctx.window && !ctx.window.indoor ? seasonalUse(profile, season, thresholds) : null;
