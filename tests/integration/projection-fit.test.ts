@@ -119,6 +119,10 @@ describe("fits on measured + projected months", () => {
         expect(r.text).not.toMatch(/struggles here/);
       }
     }
+    // The bench's summer is projected: cool growers get a likely warning about hot days, at care, from the projection alone.
+    const projectedCare = body.fits.flatMap((f) => f.rules.filter((r) => r.confidence === "projected" && r.level === "care"));
+    expect(projectedCare.length).toBeGreaterThan(0);
+    for (const r of projectedCare) expect(r.text).toMatch(/likely/);
     // Phalaenopsis on a winter bench: ruled out by measured frost (common practice: harmed under 10 °C, library.ts).
     const phal = body.fits.find((f) => f.key === "phalaenopsis")!;
     expect(phal.verdict).toBe("struggles here");
