@@ -44,10 +44,10 @@ export function FitList({ fits }: { fits: FitRow[]; unit: TempUnit; siteId: numb
             <span className="font-semibold">{f.name}</span>
             {f.category ? <span className="text-sm text-muted">{f.category} grower</span> : null}
             <span className="ml-auto">
-              <VerdictBadge verdict={f.verdict} likely={!!f.confidence && f.confidence !== "measured"} />
+              <VerdictBadge verdict={f.verdict} likely={!!f.confidence && f.confidence !== "measured" && f.verdict !== "not enough data yet"} />
             </span>
           </div>
-          {f.confidence && f.confidence !== "measured" && f.verdictText ? (
+          {f.confidence && f.confidence !== "measured" && f.verdictText?.startsWith("likely ") ? (
             <p className="mt-1 text-sm text-muted" data-testid="fit-basis">
               {f.verdictText.replace(/^likely [^—]+— /, "")}. Projected months are estimates from past weather.
             </p>

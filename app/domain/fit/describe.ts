@@ -232,7 +232,8 @@ export function describeVerdict(
   f: Format = DEFAULT_FORMAT,
   now = new Date(),
 ): string {
-  if (fit.confidence === "measured" || !fit.basis) return fit.verdict;
+  // "Not enough data yet" is no verdict to call likely (months neither measured nor projected remain).
+  if (fit.confidence === "measured" || !fit.basis || fit.verdict === "not enough data yet") return fit.verdict;
   const b = fit.basis;
   const measured = b.measuredMonths.length === 0 ? "no month measured yet" : `${b.measuredMonths.length} of 12 months measured`;
   const partly = b.blendedMonths.length ? ` (${b.blendedMonths.length === 1 ? MONTH_NAMES[b.blendedMonths[0] - 1] : `${b.blendedMonths.length} months`} partly)` : "";
