@@ -102,6 +102,19 @@ describe("fit on measured + projected months", () => {
     expect(describeReason(cold, { unit: "F" }, "Phalaenopsis")).toMatch(/^Nights from January to February|^Nights in January and February are likely to run under 60.8 °F/);
   });
 
+  it("a flowering cue the measured weeks missed is likely met in projected months in its season", () => {
+    // Cymbidium spikes after about 4 weeks of nights at 13 °C or below in late summer–autumn (library.ts:
+    // common practice). The warm room's measured November misses it; a projected cool September and October meet it.
+    const cymbidium = plantByKey("cymbidium")!;
+    const coolAutumn: FitProjection = { ...warmYear, months: warmYear.months.map((m) => ([9, 10].includes(m.month) ? projected(m.month, { night: 11, day: 20 }) : m)) };
+    const before = fitPlant(cymbidium, novemberOnly, undefined, { ...northWindow, projection: warmYear }).reasons.find((r) => r.rule === "flowering")!;
+    expect(before).toMatchObject({ level: "care" });
+    expect(before.confidence ?? "measured").toBe("measured");
+    const after = fitPlant(cymbidium, novemberOnly, undefined, { ...northWindow, projection: coolAutumn }).reasons.find((r) => r.rule === "flowering")!;
+    expect(after).toMatchObject({ level: "good", confidence: "projected", months: ["09", "10"] });
+    expect(describeReason(after, undefined, "Cymbidium")).toBe("The cool spell Cymbidium needs to flower is likely in September and October (projected, from 10 past years of weather).");
+  });
+
   it("measured months always win: a measured January is judged on its readings, not on a colder projection of it", () => {
     // Measured January and November in the warm room; a projection that (wrongly) puts January at 6 °C.
     const measuredJanuary = spotYear({ month: lit, observed: [1, 11] });

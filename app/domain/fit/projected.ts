@@ -152,8 +152,8 @@ function humidity(p: PlantProfile, months: ProjectedMonth[], years: number): Jud
 /**
  * The flowering cue on projected months: a cool period is likely met when enough months in its
  * season (one per four weeks needed) typically stay under its lines; a day–night difference when a
- * month's typical high minus its typical low reaches it. Only ever good here: a cue not met on
- * projected months leaves the measured judgement as it is.
+ * month's typical high minus its typical low reaches it. Only ever good here, and only when every
+ * cue the group has is likely met: otherwise the measured judgement stands.
  */
 function flowering(p: PlantProfile, months: ProjectedMonth[], years: number, season: SeasonProfile, t: FitThresholds): Judged | null {
   const cool = p.flowering.coolPeriod;
@@ -181,7 +181,9 @@ function flowering(p: PlantProfile, months: ProjectedMonth[], years: number, sea
       met.push(...ok.map((m) => m.month));
     }
   }
-  return facts.length ? { level: "good", months: met, facts } : null;
+  // Good only when every cue the group has is likely met; otherwise the measured judgement stands.
+  const cues = (cool ? 1 : 0) + (need !== undefined ? 1 : 0);
+  return cues > 0 && facts.length === cues ? { level: "good", months: met, facts } : null;
 }
 
 const ORDER: RuleLevel[] = ["good", "unknown", "care", "poor"];
