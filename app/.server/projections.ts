@@ -185,6 +185,18 @@ export async function fitProjection(spotId: number, season: SeasonProfile, opts:
   return { months, years: p.years.length, firmBy: p.firmBy ? p.firmBy.toISOString().slice(0, 10) : null };
 }
 
+/** fitProjection for many spots at once (a fit table: a plant's page, the wishlist): spots without one are left out. */
+export async function fitProjections(seasons: Map<number, SeasonProfile>, opts: { now?: Date } = {}): Promise<Map<number, FitProjection>> {
+  const out = new Map<number, FitProjection>();
+  await Promise.all(
+    [...seasons].map(async ([spotId, season]) => {
+      const p = await fitProjection(spotId, season, opts);
+      if (p) out.set(spotId, p);
+    }),
+  );
+  return out;
+}
+
 /** Forget a spot's cached projection (its readings were rebuilt, it moved site). */
 export function forgetProjection(spotId: number) {
   cache.delete(spotId);

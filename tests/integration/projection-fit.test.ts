@@ -6,6 +6,10 @@ import { createSession, generateSessionToken } from "~/.server/auth";
 import { pool } from "~/.server/db";
 import { ReadingWriter } from "~/.server/ingest/writer";
 import { WeatherJob } from "~/.server/weather/job";
+import { fitProjections } from "~/.server/projections";
+import { spotProfiles, windowOf } from "~/.server/profiles";
+import { rankSpotsForPlant } from "~/domain/fit/verdict";
+import { plantByKey } from "~/domain/plants/library";
 import type { Fact } from "~/domain/fit/rules";
 import type { Reading } from "~/domain/ingest/payload";
 import { loader as fitsLoader } from "~/routes/api.fits";
@@ -88,6 +92,14 @@ describe("fits on measured + projected months", () => {
         for (const fact of r.facts) for (const m of projectedMonthsOf(fact)) expect(body.basis.measuredMonths, `${f.key} ${r.rule} ${fact.kind}`).not.toContain(m);
       }
     }
+    // A fit table over many spots (a plant's page) gets the same projections in one call, and the same verdicts.
+    const seasons = await spotProfiles(site, [sill.id], NOW);
+    const many = await fitProjections(seasons, { now: NOW });
+    expect(many.get(sill.id)!.months.map((m) => m.month)).toEqual(body.basis.projectedMonths);
+    const phal = plantByKey("phalaenopsis")!;
+    const [{ fit: byPlant }] = rankSpotsForPlant(phal, [{ season: seasons.get(sill.id)!, window: windowOf(site, { facing: "E", indoor: true }), projection: many.get(sill.id) }]);
+    expect(byPlant.verdict).toBe(body.fits.find((f) => f.key === "phalaenopsis")!.verdict);
+    expect(byPlant.confidence).toBe(body.fits.find((f) => f.key === "phalaenopsis")!.confidence);
     // The spot page says the same, in words beside the verdict.
     const page = (await spotLoader({
       request: new Request(`http://127.0.0.1/sites/${site.id}/spots/${sill.id}`, { headers: { Cookie: `nw_session=${token}` } }),

@@ -238,14 +238,14 @@ export function rankPlantsForSpot(
 }
 
 /** Spots for one plant, best fit first; ties keep the given order. */
-export function rankSpotsForPlant<S extends { season: SeasonProfile; window?: SpotWindow; glass?: GlassContext }>(
+export function rankSpotsForPlant<S extends { season: SeasonProfile; window?: SpotWindow; glass?: GlassContext; projection?: FitProjection }>(
   plant: PlantProfile,
   spots: S[],
   thresholds: FitThresholds = DEFAULT_FIT_THRESHOLDS,
 ): { spot: S; fit: PlantFit }[] {
   return spots
     .map((spot) => {
-      const fit = fitPlant(plant, spot.season, thresholds, { window: spot.window, glass: spot.glass });
+      const fit = fitPlant(plant, spot.season, thresholds, { window: spot.window, glass: spot.glass, projection: spot.projection });
       return { spot, fit, rank: fitRank(fit) };
     })
     .sort((a, b) => compareRanks(a.rank, b.rank))
