@@ -119,7 +119,7 @@ export default function ApiDocs({ loaderData: d }: Route.ComponentProps) {
             for a windowsill, read against the site's outdoor spot. A malformed or out-of-range month is a 400 with <code>{`{"error"}`}</code>.
           </p>
           <p className="text-sm">
-            <strong>Measured and projected months.</strong> Months of the period without enough readings (fewer than 20 days) are judged from
+            <strong>Measured and projected months.</strong> For a period running to today, months without enough readings (fewer than 20 days) are judged from
             the spot's projection — its response to the outdoor weather played through the site's past years — once it has one (about two
             weeks of readings and the site's weather fetched). <code>basis</code> says what the fits rest on: <code>confidence</code> (
             <code>measured</code>: no month projected; <code>projected</code>: no month measured yet; <code>mixed</code>),{" "}

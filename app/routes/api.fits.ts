@@ -62,8 +62,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const plants = await sitePlants(siteId);
   const season = (await spotProfiles(site, [spot.id], now, { range: period, plants })).get(spot.id)!;
   const format: Format = { unit: user.temperatureUnit };
-  // Months of the period not measured yet are filled from the spot's projection, when it has one.
-  const projection = await fitProjection(spot.id, season, { now });
+  // Months of a period running to today not measured yet are filled from the spot's projection, when it has one.
+  const projection = period.toToday ? await fitProjection(spot.id, season, { now }) : null;
   const ranked = rankPlantsForSpot(plants, season, undefined, { window: windowOf(site, spot), glass, projection: projection ?? undefined });
   return Response.json(
     {

@@ -48,8 +48,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   // Cold glass from the spot's glazing (a windowsill of a site with an outdoor spot).
   const glazing = parseGlazing(spot.glazing);
   const glass = await glassContextFor(site, spot, await listSpots(siteId), period, glazing, now);
-  // Months not measured yet are judged from the spot's projection, when it has one (issue 16).
-  const projection = (await fitProjection(spot.id, season, { now })) ?? undefined;
+  // Months not measured yet are judged from the spot's projection, when it has one (issue 16); a past period stays as measured.
+  const projection = period.toToday ? ((await fitProjection(spot.id, season, { now })) ?? undefined) : undefined;
   const fits = fitsFor(season, allPlants, { window: windowOf(site, spot), glass, projection }, { unit: user.temperatureUnit });
   const plantKey = q.get("plant") ?? fits[0]?.key;
   const plant = allPlants.find((p) => p.key === plantKey) ?? null;

@@ -43,9 +43,9 @@ async function spotWithDays(sim: SimSpot, indoor: boolean, days: number, seed: n
   return spot;
 }
 
-const fitsOf = async (spotId: number): Promise<Body> => {
+const fitsOf = async (spotId: number, query = ""): Promise<Body> => {
   const res = (await fitsLoader({
-    request: new Request(`http://127.0.0.1/api/sites/${site.id}/spots/${spotId}/fits`, { headers: { Cookie: `nw_session=${token}` } }),
+    request: new Request(`http://127.0.0.1/api/sites/${site.id}/spots/${spotId}/fits${query}`, { headers: { Cookie: `nw_session=${token}` } }),
     params: { siteId: String(site.id), spotId: String(spotId) },
     context: {},
   } as Args as never)) as Response;
@@ -92,6 +92,11 @@ describe("fits on measured + projected months", () => {
         for (const fact of r.facts) for (const m of projectedMonthsOf(fact)) expect(body.basis.measuredMonths, `${f.key} ${r.rule} ${fact.kind}`).not.toContain(m);
       }
     }
+    // A period that ended (last month and the eleven before) is judged on what was measured then, not projected.
+    const lastMonth = new Date(Date.UTC(NOW.getUTCFullYear(), NOW.getUTCMonth() - 1, 15)).toISOString().slice(0, 7);
+    const past = await fitsOf(sill.id, `?to=${lastMonth}`);
+    expect(past.basis).toMatchObject({ confidence: "measured", projectedMonths: [] });
+    expect(past.fits.every((f) => f.confidence === "measured" && !f.verdictText.startsWith("likely"))).toBe(true);
     // A fit table over many spots (a plant's page) gets the same projections in one call, and the same verdicts.
     const seasons = await spotProfiles(site, [sill.id], NOW);
     const many = await fitProjections(seasons, { now: NOW });
