@@ -2,7 +2,7 @@
 // rollups is ~8,760 rows per spot; the raw readings are never read here).
 import { pool } from "~/.server/db";
 import { rankPlantsForSpot, type FitContext, type PlantFit } from "~/domain/fit/verdict";
-import { describeFact, describeReason, describeSeasonal as seasonalWords, DEFAULT_FORMAT, type Format } from "~/domain/fit/describe";
+import { describeFact, describeReason, describeSeasonal as seasonalWords, describeVerdict, DEFAULT_FORMAT, type Format } from "~/domain/fit/describe";
 import type { SpotWindow } from "~/domain/fit/window-light";
 import type { GlassContext } from "~/domain/fit/cold-glass";
 import { GLAZING_U, type Glazing } from "~/domain/climate/glass";
@@ -265,7 +265,9 @@ export function describeSeasonal(fit: PlantFit, format: Format = DEFAULT_FORMAT)
 export function fitSummary(plant: PlantProfile, fit: PlantFit, format: Format = DEFAULT_FORMAT) {
   const name = plant.name.split(/[ ,(]/)[0];
   const seasonal = describeSeasonal(fit, format);
-  const asking = fit.reasons.filter((r) => r.level !== "good").map((r) => ({ rule: r.rule, level: r.level, message: describeReason(r, format, name) }));
+  const asking = fit.reasons
+    .filter((r) => r.level !== "good")
+    .map((r) => ({ rule: r.rule, level: r.level, confidence: r.confidence ?? ("measured" as const), message: describeReason(r, format, name) }));
   return {
     key: plant.key,
     name: plant.name,
@@ -275,7 +277,11 @@ export function fitSummary(plant: PlantProfile, fit: PlantFit, format: Format = 
     maxDayC: plant.maxDayC,
     verdict: fit.verdict,
     level: fit.level,
-    reasons: seasonal ? [{ rule: "seasonal", level: "care" as const, message: seasonal }, ...asking] : asking,
+    /** "likely thrives here — 3 of 12 months measured, the rest projected …; firm by 14 May", or the verdict as it is. */
+    verdictText: describeVerdict(fit, format),
+    confidence: fit.confidence,
+    basis: fit.basis,
+    reasons: seasonal ? [{ rule: "seasonal", level: "care" as const, confidence: fit.confidence, message: seasonal }, ...asking] : asking,
     okReasons: fit.reasons.filter((r) => r.level === "good").map((r) => r.facts.map((f) => describeFact(f, format, name)).join(" ")).filter(Boolean),
     missingMonths: fit.missingMonths,
     missingAdvice: fit.missingAdvice,

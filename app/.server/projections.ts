@@ -11,6 +11,8 @@ import { forecastSpot, type ForecastHour, type ForecastNight } from "~/domain/pr
 import { drivers, fitResponse, type ModelQuality, type Place, type ResponseModel } from "~/domain/projection/response";
 import { dateOfDayNumber, zoneClock } from "~/domain/season/local-time";
 import { DEFAULT_THRESHOLDS_C, MIN_DAYS_FOR_MONTH, seasonProfile } from "~/domain/season/profile";
+import type { SeasonProfile } from "~/domain/season/types";
+import type { FitProjection } from "~/domain/fit/projected";
 
 const HOUR = 3_600_000;
 const DAY = 86_400_000;
@@ -45,6 +47,7 @@ export type ProjectedProfile = {
 
 type Cached = { profile: ProjectedProfile; model: ResponseModel; place: { siteId: number; timeZone: string } & Place; indoor: boolean; hours: number; weatherKey: string };
 const cache = new Map<number, Cached>();
+const tooFew = new Map<number, { at: number; hours: number; weatherKey: string }>();
 
 /** Thresholds for "hours below": the season profile's defaults unless the caller names its own. */
 export async function projectedProfile(spotId: number, opts: { now?: Date; thresholds?: number[]; years?: number } = {}): Promise<ProjectedProfile | null> {
@@ -69,6 +72,10 @@ export async function projectedProfile(spotId: number, opts: { now?: Date; thres
     return hit.profile;
   }
 
+  // A spot too new for a model is not refitted (nor ten years of weather read) until its hours grow.
+  const miss = tooFew.get(spotId);
+  if (miss && miss.hours === hours && miss.weatherKey === weatherKey && now.getTime() - miss.at < REFIT_AFTER_MS) return empty("too-few-days");
+
   const thisYear = new Date(now.getTime()).getUTCFullYear();
   const wantYears = opts.years ?? 10;
   const weatherFrom = new Date(Date.UTC(thisYear - wantYears, 0, 1) - 14 * DAY);
@@ -90,7 +97,12 @@ export async function projectedProfile(spotId: number, opts: { now?: Date; thres
   const fitFrom = now.getTime() - FIT_DAYS * DAY;
   const fitRollups = rollups.filter((r) => r.hour.getTime() >= fitFrom);
   const model = fitResponse(fitRollups, d, { indoor: spot.indoor, timeZone: site.timeZone, place: { ...site, facing: spot.indoor ? spot.facing : "none" } });
-  if (!model) return empty("too-few-days");
+  if (!model) {
+    if (tooFew.size >= CACHE_SPOTS) tooFew.delete(tooFew.keys().next().value!);
+    tooFew.set(spotId, { at: now.getTime(), hours, weatherKey });
+    return empty("too-few-days");
+  }
+  tooFew.delete(spotId);
   if (years.length === 0) return { ...empty("no-past-years"), weather };
 
   const projected = projectYear(model, d, site, { years, thresholds: opts.thresholds, seed: spotId });
@@ -156,7 +168,37 @@ export async function spotForecast(spotId: number, opts: { now?: Date; hours?: n
   return { spotId, forecastAt: profile.weather.state === "ready" ? profile.weather.forecastAt : null, hours, nights };
 }
 
+/**
+ * What a fit needs from a spot's projection for a judged season: the months of the season without
+ * enough measured days that the projection fills (projected, or partly measured and blended),
+ * the past years it played through and the local date it will be firm by. Months the projection
+ * itself counts as measured are not filled (a judged period other than the latest year). Null when
+ * there is no projection (no weather yet, too few days) or nothing to fill.
+ */
+export async function fitProjection(spotId: number, season: SeasonProfile, opts: { now?: Date } = {}): Promise<FitProjection | null> {
+  const open = new Set(season.year.filter((m) => !m.coverage.enough).map((m) => m.month));
+  if (open.size === 0) return null;
+  const p = await projectedProfile(spotId, { now: opts.now });
+  if (!p || p.missing || p.months.length === 0) return null;
+  const months = p.months.filter((m) => open.has(m.month) && m.source !== "measured" && m.years > 0);
+  if (months.length === 0) return null;
+  return { months, years: p.years.length, firmBy: p.firmBy ? p.firmBy.toISOString().slice(0, 10) : null };
+}
+
+/** fitProjection for many spots at once (a fit table: a plant's page, the wishlist): spots without one are left out. */
+export async function fitProjections(seasons: Map<number, SeasonProfile>, opts: { now?: Date } = {}): Promise<Map<number, FitProjection>> {
+  const out = new Map<number, FitProjection>();
+  await Promise.all(
+    [...seasons].map(async ([spotId, season]) => {
+      const p = await fitProjection(spotId, season, opts);
+      if (p) out.set(spotId, p);
+    }),
+  );
+  return out;
+}
+
 /** Forget a spot's cached projection (its readings were rebuilt, it moved site). */
 export function forgetProjection(spotId: number) {
   cache.delete(spotId);
+  tooFew.delete(spotId);
 }

@@ -2,9 +2,12 @@ import type { SlimProfile } from "~/.server/profiles";
 import { formatDelta, formatTemp, type TempUnit } from "~/lib/units";
 import { VerdictWords } from "~/components/verdict-mark";
 
-/** A verdict as words first with Nichewise's niche mark after it (docs/design.md), no pill. */
-export function VerdictBadge({ verdict }: { verdict: string }) {
-  return <VerdictWords verdict={verdict} />;
+/**
+ * A verdict as words first with Nichewise's niche mark after it (docs/design.md), no pill. `likely`:
+ * it rests partly or wholly on projected months, and says so.
+ */
+export function VerdictBadge({ verdict, likely = false }: { verdict: string; likely?: boolean }) {
+  return <VerdictWords verdict={verdict}>{likely ? `likely ${verdict}` : verdict}</VerdictWords>;
 }
 
 export type FitRow = {
@@ -17,6 +20,9 @@ export type FitRow = {
   okReasons: string[];
   missingMonths: string[];
   missingAdvice: string | null;
+  /** Measured, or resting on projected months ("likely …", with the months and firm-by date in verdictText). */
+  confidence?: "measured" | "projected" | "mixed";
+  verdictText?: string;
 };
 
 export function FitList({ fits, testId = "fit-list" }: { fits: FitRow[]; unit: TempUnit; siteId: number; testId?: string }) {
@@ -28,9 +34,14 @@ export function FitList({ fits, testId = "fit-list" }: { fits: FitRow[]; unit: T
             <span className="font-semibold">{f.name}</span>
             {f.category ? <span className="text-sm text-muted">{f.category} grower</span> : null}
             <span className="ml-auto">
-              <VerdictBadge verdict={f.verdict} />
+              <VerdictBadge verdict={f.verdict} likely={!!f.confidence && f.confidence !== "measured" && f.verdict !== "not enough data yet"} />
             </span>
           </div>
+          {f.confidence && f.confidence !== "measured" && f.verdictText?.startsWith("likely ") ? (
+            <p className="mt-1 text-sm text-muted" data-testid="fit-basis">
+              {f.verdictText.replace(/^likely [^—]+— /, "")}. Projected months are estimates from past weather.
+            </p>
+          ) : null}
           {f.reasons.length > 0 ? <p className="mt-1.5 text-sm">{f.reasons[0].message}</p> : null}
           {f.missingAdvice ? <p className="mt-1 text-sm text-muted">{f.missingAdvice}</p> : null}
           {f.reasons.length > 1 ? (

@@ -8,7 +8,9 @@ import { sitePlants } from "~/.server/plants";
 import { describeSeasonal, glassContextFor, judgedPeriods, parseGlazing, parsePeriod, spotProfiles, windowOf } from "~/.server/profiles";
 import { getSite, getSpot, listSpots } from "~/.server/sites";
 import { GLAZING_U } from "~/domain/climate/glass";
-import { describeReason, type Format } from "~/domain/fit/describe";
+import { describeReason, describeVerdict, type Format } from "~/domain/fit/describe";
+import { fitProjection } from "~/.server/projections";
+import { basisOf } from "~/domain/fit/projected";
 import { rankPlantsForSpot } from "~/domain/fit/verdict";
 import { toLocalInputValue, zonedToUtc } from "~/lib/time";
 import type { Route } from "./+types/api.fits";
@@ -60,13 +62,24 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const plants = await sitePlants(siteId);
   const season = (await spotProfiles(site, [spot.id], now, { range: period, plants })).get(spot.id)!;
   const format: Format = { unit: user.temperatureUnit };
-  const ranked = rankPlantsForSpot(plants, season, undefined, { window: windowOf(site, spot), glass });
+  // Months of a period running to today not measured yet are filled from the spot's projection, when it has one.
+  const projection = period.toToday ? await fitProjection(spot.id, season, { now }) : null;
+  const ranked = rankPlantsForSpot(plants, season, undefined, { window: windowOf(site, spot), glass, projection: projection ?? undefined });
   return Response.json(
     {
       spot: { id: spot.id, name: spot.name, indoor: spot.indoor, facing: spot.facing },
       period: { from: period.from.toISOString(), to: period.to.toISOString(), firstMonth: period.firstMonth, lastMonth: period.lastMonth, toToday: period.toToday },
       units: { facts: "°C, K, degree-hours in K·h, %, mol m⁻² d⁻¹; dates are the site's local dates", text: `°${format.unit}` },
       glazing: glass ? { glazing, uValue: glass.uValue } : null,
+      // What every fit below rests on: months measured, months filled from the projection, when it is firm.
+      basis: basisOf(season, projection ?? undefined) ?? {
+        confidence: "measured",
+        measuredMonths: season.year.filter((m) => m.coverage.enough).map((m) => m.month),
+        projectedMonths: [],
+        blendedMonths: [],
+        years: 0,
+        firmBy: null,
+      },
       fits: ranked.map(({ plant, fit }) => {
         const name = plant.name.split(/[ ,(]/)[0];
         return {
@@ -74,10 +87,20 @@ export async function loader({ request, params }: Route.LoaderArgs) {
           name: plant.name,
           level: fit.level,
           verdict: fit.verdict,
+          confidence: fit.confidence,
+          verdictText: describeVerdict(fit, format, now),
           seasonal: fit.seasonal ? { ...fit.seasonal, text: describeSeasonal(fit, format) } : null,
           miss: fit.miss,
           missingMonths: fit.missingMonths,
-          rules: fit.reasons.map((r) => ({ rule: r.rule, level: r.level, months: r.months ?? [], facts: r.facts, text: describeReason(r, format, name) })),
+          rules: fit.reasons.map((r) => ({
+            rule: r.rule,
+            level: r.level,
+            confidence: r.confidence ?? "measured",
+            ...(r.likely ? { likely: r.likely } : {}),
+            months: r.months ?? [],
+            facts: r.facts,
+            text: describeReason(r, format, name),
+          })),
         };
       }),
     },

@@ -19,6 +19,7 @@ import { inventoryAction, sitePlants } from "~/.server/plants";
 import { spotGrowing } from "~/.server/spot-growing";
 import { fitsFor, glassContextFor, judgedPeriods, parseGlazing, parsePeriod, pickableMonths, slimProfile, spotProfiles, windowOf } from "~/.server/profiles";
 import { periodLabel, PeriodPicker } from "~/components/period-picker";
+import { fitProjection } from "~/.server/projections";
 import { VERDICT_RULES } from "~/domain/fit/verdict";
 import { timeAgo } from "~/lib/time";
 import { formatTemp } from "~/lib/units";
@@ -47,7 +48,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   // Cold glass from the spot's glazing (a windowsill of a site with an outdoor spot).
   const glazing = parseGlazing(spot.glazing);
   const glass = await glassContextFor(site, spot, await listSpots(siteId), period, glazing, now);
-  const fits = fitsFor(season, allPlants, { window: windowOf(site, spot), glass }, { unit: user.temperatureUnit });
+  // Months not measured yet are judged from the spot's projection, when it has one (issue 16); a past period stays as measured.
+  const projection = period.toToday ? ((await fitProjection(spot.id, season, { now })) ?? undefined) : undefined;
+  const fits = fitsFor(season, allPlants, { window: windowOf(site, spot), glass, projection }, { unit: user.temperatureUnit });
   const plantKey = q.get("plant") ?? fits[0]?.key;
   const plant = allPlants.find((p) => p.key === plantKey) ?? null;
   return {

@@ -177,7 +177,69 @@ export function describeFact(fact: Fact, f: Format = DEFAULT_FORMAT, name = "thi
         : `The air sat within ${delta(fact.marginC, f)} of its dew point for ${count(Math.round(fact.hours), "hour", "hours", f)}, ${fact.months.length === 12 ? "in every month" : `most ${describeMonths(fact.months)}`} (${Math.round(fact.worstShare * 100)} % of the time in ${MONTH_NAMES[fact.worstMonth - 1]}): leaves stay wet, which invites rot. More air movement and watering early in the day help.`;
     case "cold-glass":
       return `Cold glass: with U ${formatNumber(fact.uValue, f.locale)} glazing the pane's inside ${fact.months.map((m) => `in ${MONTH_NAMES[m.month - 1]} sits near ${temp(m.paneC, f)}, at or under the room's ${temp(m.dewPointC, f)} dew point`).join("; ")} — water runs on the glass; keep leaves off it.`;
+    case "projected-cold": {
+      const month = MONTH_NAMES[fact.worstMonth - 1];
+      const within = `(80 % range ${rangeWords(fact.rangeC, f)}, ${pastYears(fact.years)})`;
+      if (fact.line === "damage")
+        return `${month} is likely to fall to ${temp(fact.lowC, f)} here ${within}, under ${name}'s ${temp(fact.lineC, f)} damage line: plan to move it ${describeMonths(fact.months)}. Not measured yet — a projection.`;
+      if (fact.line === "comfort")
+        return `Nights ${describeMonths(fact.months)} are likely to run under ${temp(fact.lineC, f)}, typically ${temp(fact.lowC, f)} in ${month} ${within}: a cold season for ${name}; plan a warmer place then. Not measured yet — a projection.`;
+      return `A few nights ${describeMonths(fact.months)} are likely to dip under ${temp(fact.lineC, f)} (about ${temp(fact.lowC, f)} at the coldest in ${month}, ${within.slice(1, -1)}): cover it or bring it in then.`;
+    }
+    case "projected-heat": {
+      const month = MONTH_NAMES[fact.worstMonth - 1];
+      const within = `(80 % range ${rangeWords(fact.rangeC, f)}, ${pastYears(fact.years)})`;
+      if (fact.line === "damage")
+        return `${month} is likely to reach ${temp(fact.highC, f)} here ${within}, over ${name}'s ${temp(fact.lineC, f)} damage line: plan shade or another place ${describeMonths(fact.months)}. Not measured yet — a projection.`;
+      if (fact.line === "comfort")
+        return `Days ${describeMonths(fact.months)} are likely to run over ${temp(fact.lineC, f)}, typically ${temp(fact.highC, f)} in ${month} ${within}: plan shade and moving air then. Not measured yet — a projection.`;
+      return `A few days ${describeMonths(fact.months)} are likely to pass ${temp(fact.lineC, f)} (about ${temp(fact.highC, f)} at the warmest in ${month}, ${within.slice(1, -1)}): shade at midday then.`;
+    }
+    case "projected-warm-nights":
+      return `Nights ${describeMonths(fact.months)} are likely to stay above ${temp(fact.maxNightC, f)}, typically ${temp(fact.lowC, f)} in ${MONTH_NAMES[fact.worstMonth - 1]} (80 % range ${rangeWords(fact.rangeC, f)}, ${pastYears(fact.years)}): ${name} grows and flowers poorly without cool nights. Not measured yet — a projection.`;
+    case "projected-humidity":
+      return fact.side === "dry"
+        ? `The air is likely to average about ${pct(fact.meanPct)} ${describeMonths(fact.months)}, under ${name}'s ${pct(fact.limitPct)} (${pastYears(fact.years)}): plan a tray, grouping or a humidifier then.`
+        : `The air is likely to average about ${pct(fact.meanPct)} ${describeMonths(fact.months)}, above ${name}'s ${pct(fact.limitPct)} (${pastYears(fact.years)}): keep the air moving then.`;
+    case "projected-ok":
+      return fact.side === "cold"
+        ? `The months not measured yet are likely to stay above ${temp(fact.lineC, f)} (coldest likely ${temp(fact.valueC, f)}, ${pastYears(fact.years)}).`
+        : `The months not measured yet are likely to stay under ${temp(fact.lineC, f)} (warmest likely ${temp(fact.valueC, f)}, ${pastYears(fact.years)}).`;
+    case "projected-cue":
+      return fact.cue === "cool"
+        ? `The cool spell ${name} needs to flower is likely ${describeMonths(fact.months)} (projected, ${pastYears(fact.years)}).`
+        : `The day–night difference ${name} flowers best with is likely ${describeMonths(fact.months)} (projected, ${pastYears(fact.years)}).`;
   }
+}
+
+const rangeWords = (r: [number, number], f: Format) => `${formatNumber(toUnit(r[0], f.unit), f.locale)} to ${temp(r[1], f)}`;
+const pastYears = (years: number) => `from ${years} past ${years === 1 ? "year" : "years"} of weather`;
+
+/** "17 May" from a local date key, with the year when it is not this one's. */
+function firmDate(key: string, f: Format, now: Date): string {
+  const [y, m, d] = key.split("-").map(Number);
+  const opts: Intl.DateTimeFormatOptions = { day: "numeric", month: "long", timeZone: "UTC", ...(y !== now.getUTCFullYear() ? { year: "numeric" } : {}) };
+  return new Intl.DateTimeFormat(f.locale ?? "en-GB", opts).format(new Date(Date.UTC(y, m - 1, d)));
+}
+
+/**
+ * The verdict with what it rests on: "likely thrives here — 3 of 12 months measured, the rest
+ * projected from 10 past years of weather; firm by 14 May". A verdict on measured months alone is
+ * the verdict as it is.
+ */
+export function describeVerdict(
+  fit: { verdict: string; confidence: "measured" | "projected" | "mixed"; basis: { measuredMonths: number[]; projectedMonths: number[]; blendedMonths: number[]; years: number; firmBy: string | null } | null },
+  f: Format = DEFAULT_FORMAT,
+  now = new Date(),
+): string {
+  // "Not enough data yet" is no verdict to call likely (months neither measured nor projected remain).
+  if (fit.confidence === "measured" || !fit.basis || fit.verdict === "not enough data yet") return fit.verdict;
+  const b = fit.basis;
+  const measured = b.measuredMonths.length === 0 ? "no month measured yet" : `${b.measuredMonths.length} of 12 months measured`;
+  const partly = b.blendedMonths.length ? ` (${b.blendedMonths.length === 1 ? MONTH_NAMES[b.blendedMonths[0] - 1] : `${b.blendedMonths.length} months`} partly)` : "";
+  const rest = b.measuredMonths.length === 0 ? "all projected" : "the rest projected";
+  const firm = b.firmBy ? `; firm by ${firmDate(b.firmBy, f, now)}` : "";
+  return `likely ${fit.verdict} — ${measured}${partly}, ${rest} ${pastYears(b.years)}${firm}`;
 }
 
 /** A rule's result in words: its facts joined, or what is not known. */

@@ -47,7 +47,15 @@ export type Fact =
   // Condensation
   | { kind: "condensation-ok"; hours: number; marginC: number }
   | { kind: "condensation-wet"; hours: number; marginC: number; months: number[]; worstMonth: number; worstShare: number; expected: boolean }
-  | { kind: "cold-glass"; months: { month: number; paneC: number; dewPointC: number }[]; uValue: number };
+  | { kind: "cold-glass"; months: { month: number; paneC: number; dewPointC: number }[]; uValue: number }
+  // Projected months (fit/projected.ts): figures from the spot's response model played through
+  // `years` past years of weather, each with its 80 % range. "likely", never certain.
+  | { kind: "projected-cold"; line: "damage" | "comfort" | "snap"; lineC: number; months: number[]; worstMonth: number; lowC: number; rangeC: [number, number]; years: number }
+  | { kind: "projected-heat"; line: "damage" | "comfort" | "snap"; lineC: number; months: number[]; worstMonth: number; highC: number; rangeC: [number, number]; years: number }
+  | { kind: "projected-warm-nights"; maxNightC: number; months: number[]; worstMonth: number; lowC: number; rangeC: [number, number]; years: number }
+  | { kind: "projected-humidity"; side: "dry" | "damp"; limitPct: number; months: number[]; worstMonth: number; meanPct: number; years: number }
+  | { kind: "projected-ok"; side: "cold" | "heat"; months: number[]; valueC: number; lineC: number; years: number }
+  | { kind: "projected-cue"; cue: "cool" | "dif"; months: number[]; years: number };
 
 export type RuleResult = {
   rule: RuleName;
@@ -59,6 +67,10 @@ export type RuleResult = {
   noData?: boolean;
   /** How far the spot misses: degree-hours past the damage line and past the comfort line. */
   miss?: { damage: number; comfort: number };
+  /** What the result rests on: measured months (also when absent), projected months, or both (fit/projected.ts). */
+  confidence?: "measured" | "projected" | "mixed";
+  /** Set when projected months alone would have made this poor: it is a likely warning at care level instead. */
+  likely?: "poor";
 };
 
 export type RuleName = "cold-nights" | "warm-nights" | "hot-days" | "humidity" | "light" | "flowering" | "condensation";

@@ -4,6 +4,7 @@ import { MONTH_NAMES, MIN_DAYS_FOR_MONTH } from "~/domain/season/profile";
 import type { SeasonProfile } from "~/domain/season/types";
 import { windowLight, type SpotWindow } from "~/domain/fit/window-light";
 import { coldGlass, type GlassContext } from "~/domain/fit/cold-glass";
+import { basisOf, withProjection, type Confidence, type FitBasis, type FitProjection } from "~/domain/fit/projected";
 
 export type Verdict = "thrives here" | "possible with care" | "good for part of the year" | "struggles here" | "not enough data yet";
 
@@ -34,6 +35,12 @@ export type PlantFit = {
   missingMonths: string[];
   /** What to do about the missing months, e.g. "Leave the sensor where it is through March." */
   missingAdvice: string | null;
+  /**
+   * What the verdict rests on: measured months only; or, with a projection filling the months not
+   * measured yet, projected or mixed ("likely"), with the months and the date it will be firm.
+   */
+  confidence: Confidence;
+  basis: FitBasis | null;
 };
 
 /** The verdict rule table, first match wins — exported so the page can explain it. */
@@ -116,7 +123,22 @@ export function seasonalUse(profile: PlantProfile, season: SeasonProfile, t: Fit
   return best.length >= 2 ? { months: best, bringInBelowC: bringIn } : null;
 }
 
-export type FitContext = { window?: SpotWindow; glass?: GlassContext };
+/** `projection` fills the months of the period not measured yet (fit/projected.ts). */
+// Measured months always win: a projected month the season has measured is never judged. Kept
+// per season and projection, so a fit table's plants share one filtered projection (and its cache).
+const unmeasuredCache = new WeakMap<SeasonProfile, WeakMap<FitProjection, { projection: FitProjection; basis: FitBasis | null }>>();
+function unmeasured(season: SeasonProfile, projection: FitProjection): { projection: FitProjection; basis: FitBasis | null } {
+  let bySeason = unmeasuredCache.get(season);
+  if (!bySeason) unmeasuredCache.set(season, (bySeason = new WeakMap()));
+  let hit = bySeason.get(projection);
+  if (!hit) {
+    const p = { ...projection, months: projection.months.filter((m) => !season.year[m.month - 1]?.coverage.enough) };
+    bySeason.set(projection, (hit = { projection: p, basis: basisOf(season, p) }));
+  }
+  return hit;
+}
+
+export type FitContext = { window?: SpotWindow; glass?: GlassContext; projection?: FitProjection };
 
 /**
  * `context.window`, when given, lets a spot without a light sensor be judged on light from its
@@ -129,12 +151,20 @@ export function fitPlant(
   context: FitContext | SpotWindow = {},
 ): PlantFit {
   const ctx: FitContext = "facing" in context ? { window: context } : context;
-  const reasons = judgeAll(profile, season, thresholds)
+  const judgedReasons = judgeAll(profile, season, thresholds)
     .filter((r) => r.facts.length > 0 || r.noData)
     .map((r) => (r.rule === "light" && r.noData && ctx.window ? windowLight(profile, ctx.window) : r))
-    .map((r) => (r.rule === "condensation" && ctx.glass ? coldGlass(r, season, ctx.glass) : r))
+    .map((r) => (r.rule === "condensation" && ctx.glass ? coldGlass(r, season, ctx.glass) : r));
+  const filled = ctx.projection ? unmeasured(season, ctx.projection) : null;
+  const projection = filled?.projection;
+  const basis = filled?.basis ?? null;
+  const reasons = (basis ? withProjection(profile, season, judgedReasons, projection!, thresholds) : judgedReasons)
+    .filter((r) => r.facts.length > 0 || r.noData)
     .sort((a, b) => LEVEL_ORDER[a.level] - LEVEL_ORDER[b.level] || ruleRank(a) - ruleRank(b));
   const missing = missingMonthsOf(season);
+  // Months the projection fills no longer hold the verdict back; they stay listed as not measured.
+  const projectedMonths = new Set(basis?.projectedMonths ?? []);
+  const unfilled = missing.filter((m) => !projectedMonths.has(m));
   const levels = new Set(reasons.map((r) => r.level));
   // Seasonal use is for spots a plant can be carried out to and back in: outdoors.
   const seasonal = levels.has("poor") && ctx.window && !ctx.window.indoor ? seasonalUse(profile, season, thresholds) : null;
@@ -142,7 +172,7 @@ export function fitPlant(
     ? seasonal
       ? "good for part of the year"
       : "struggles here"
-    : missing.length > 0
+    : unfilled.length > 0
       ? "not enough data yet"
       : levels.has("care") || levels.has("unknown")
         ? "possible with care"
@@ -153,10 +183,14 @@ export function fitPlant(
     miss.comfort += r.miss?.comfort ?? 0;
   }
   const missingMonths = missing.map((m) => MONTH_NAMES[m - 1]);
+  // A verdict ruled by a measured poor rests on the measurement; any other rests on every month judged.
+  const confidence: Confidence = !basis || (levels.has("poor") && verdict === "struggles here") ? "measured" : basis.confidence;
   return {
     plantKey: profile.key,
     verdict,
     level: VERDICT_LEVEL[verdict],
+    confidence,
+    basis,
     reasons,
     seasonal,
     miss: { damage: Math.round(miss.damage), comfort: Math.round(miss.comfort) },
@@ -204,14 +238,14 @@ export function rankPlantsForSpot(
 }
 
 /** Spots for one plant, best fit first; ties keep the given order. */
-export function rankSpotsForPlant<S extends { season: SeasonProfile; window?: SpotWindow; glass?: GlassContext }>(
+export function rankSpotsForPlant<S extends { season: SeasonProfile; window?: SpotWindow; glass?: GlassContext; projection?: FitProjection }>(
   plant: PlantProfile,
   spots: S[],
   thresholds: FitThresholds = DEFAULT_FIT_THRESHOLDS,
 ): { spot: S; fit: PlantFit }[] {
   return spots
     .map((spot) => {
-      const fit = fitPlant(plant, spot.season, thresholds, { window: spot.window, glass: spot.glass });
+      const fit = fitPlant(plant, spot.season, thresholds, { window: spot.window, glass: spot.glass, projection: spot.projection });
       return { spot, fit, rank: fitRank(fit) };
     })
     .sort((a, b) => compareRanks(a.rank, b.rank))
