@@ -3,6 +3,7 @@
 // pass runs the forecast through each spot's model and e-mails through nodemailer to the SMTP sink.
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { ForecastWarnings, openForecastWarnings } from "~/.server/alerts/forecast";
+import { alertBanner } from "~/.server/alerts/queries";
 import { pool } from "~/.server/db";
 import { ReadingWriter } from "~/.server/ingest/writer";
 import { sunkMail, type SunkMail } from "~/.server/mail";
@@ -107,6 +108,8 @@ describe("forecast warnings", () => {
     const inApp = await openForecastWarnings(site.id, new Date(NOW));
     expect(inApp).toHaveLength(1);
     expect(inApp[0].spotId).toBe(bench.id);
+    // The site's alert banner (every site page) carries it.
+    expect((await alertBanner(site.id, new Date(NOW))).forecast.map((f) => f.id)).toEqual([inApp[0].id]);
     expect(forecastHeadline(inApp[0], "F")).toMatch(/^Wednesday night \(16 Sep\): -?\d+\.\d °F expected on Bench by the wall; the Cymbidium's limit is 35\.6 °F — bring it in\.$/);
 
     // The heated room with a Phalaenopsis (damage line 10 °C): nothing stored, nothing sent.
@@ -139,6 +142,7 @@ describe("forecast warnings", () => {
     expect(text).toContain("no longer looks likely to fall under the Cymbidium's 2.0 °C limit");
     expect(text).toContain(FORECAST_CAUTION);
     expect(await openForecastWarnings(site.id, new Date(later))).toHaveLength(0);
+    expect((await alertBanner(site.id, new Date(later))).forecast).toHaveLength(0);
     // And again: nothing more.
     const before = sunkMail().length;
     await new ForecastWarnings({ now: () => later }).run(site.id);
