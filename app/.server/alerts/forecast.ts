@@ -139,13 +139,13 @@ export class ForecastWarnings {
       await pool().query(`UPDATE forecast_warnings SET ended_at = $2 WHERE spot_id = $1 AND ended_at IS NULL`, [spot.id, at]);
       return none;
     }
-    const forecast = await spotForecast(spot.id, { now: at });
-    if (!forecast || !forecast.forecastAt || now - forecast.forecastAt.getTime() > STALE_FORECAST_MS) return none;
     if (spot.indoor) {
       // A heated room holds its floor whatever the night does: no forecast warning there.
       const profile = await projectedProfile(spot.id, { now: at });
       if (!profile?.model || profile.model.heatingFloor) return none;
     }
+    const forecast = await spotForecast(spot.id, { now: at });
+    if (!forecast || !forecast.forecastAt || now - forecast.forecastAt.getTime() > STALE_FORECAST_MS) return none;
     const open = (await pool().query<WarningRow>(
       `SELECT ${WARNING_COLUMNS} FROM forecast_warnings WHERE spot_id = $1 AND ended_at IS NULL AND cleared_at IS NULL`,
       [spot.id],
