@@ -37,8 +37,9 @@ export function AlertBanner({ siteId, initial, unit }: { siteId: number; initial
       ))}
       {forecast.map((f) => (
         <p key={`f${f.id}`}>
-          <strong className="text-care">❄ Frost forecast</strong> at <Link className="link" to={`/sites/${siteId}/spots/${f.spotId}`}>{f.spotName}</Link>:{" "}
-          {forecastHeadline(f, unit)} <span className="text-muted">A forecast is a help, not a guarantee.</span>
+          <strong className="text-care">❄ Cold night forecast:</strong> {forecastHeadline(f, unit)}{" "}
+          <Link className="link font-medium" to={`/sites/${siteId}/spots/${f.spotId}`}>Open {f.spotName}</Link>{" "}
+          <span className="text-muted">A forecast is a help, not a guarantee.</span>
         </p>
       ))}
     </div>

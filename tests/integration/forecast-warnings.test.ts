@@ -95,7 +95,7 @@ describe("forecast warnings", () => {
     // Owner, carer and the mentor who opted in; not the mentor who left cold-snap alerts unticked (the default for mentors).
     expect(mails.map((m) => m.to[0]).sort()).toEqual([owner.email, carer.email, keenMentor.email].sort());
     const text = plain(mails[0]);
-    expect(mails[0].subject).toMatch(/^Frost forecast for Bench by the wall: -?\d+\.\d °C Wednesday night$/);
+    expect(mails[0].subject).toMatch(/^Cold night forecast for Bench by the wall: Wednesday night may reach -?\d+\.\d °C$/);
     expect(text).toMatch(/Wednesday night \(16 Sep\): -?\d+\.\d °C expected on Bench by the wall; the Cymbidium's limit is 2\.0 °C — bring it in\./);
     expect(text).toContain(FORECAST_CAUTION);
     expect(text).toContain(`/sites/${site.id}/spots/${bench.id}`);
@@ -144,7 +144,7 @@ describe("forecast warnings", () => {
     }
     const clears = mailsAbout(bench.name).filter((m) => m.subject.startsWith("All clear"));
     expect(clears.map((m) => m.to[0]).sort()).toEqual([owner.email, carer.email, keenMentor.email].sort());
-    expect(clears[0].subject).toBe("All clear: Wednesday night no longer looks frosty at Bench by the wall");
+    expect(clears[0].subject).toBe("All clear: Wednesday night no longer looks too cold at Bench by the wall");
     const text = plain(clears[0]);
     expect(text).toContain("no longer looks likely to fall under the Cymbidium's 2.0 °C limit");
     expect(text).toContain(FORECAST_CAUTION);

@@ -45,9 +45,15 @@ describe("words", () => {
 
   it("names the night by its local start date and gives the figure in the grower's unit", () => {
     expect(nightName("2026-12-03")).toBe("Thursday night (3 Dec)");
-    const w = { night: "2026-12-03", spotName: "the bench", plantName: "Cymbidium", damageC: 2, likelyC: 1, expectedLowC: 3, lowerBoundC: 1.4, leafLowC: 1, lowAt: new Date(Date.UTC(2026, 11, 4, 5)) };
-    expect(forecastHeadline(w, "C")).toBe("Thursday night (3 Dec): 1.0 °C expected on the bench; the Cymbidium's limit is 2.0 °C — bring it in.");
-    expect(forecastHeadline(w, "F")).toBe("Thursday night (3 Dec): 33.8 °F expected on the bench; the Cymbidium's limit is 35.6 °F — bring it in.");
+    const base = { night: "2026-12-03", spotName: "the bench", plantName: "Cymbidium", damageC: 2, lowAt: new Date(Date.UTC(2026, 11, 4, 5)) };
+    const cold = { ...base, likelyC: -0.5, expectedLowC: 1, lowerBoundC: -0.5, leafLowC: null };
+    expect(forecastHeadline(cold, "C")).toBe("Thursday night (3 Dec): 1.0 °C expected on the bench; the Cymbidium's limit is 2.0 °C — bring it in.");
+    expect(forecastHeadline(cold, "F")).toBe("Thursday night (3 Dec): 33.8 °F expected on the bench; the Cymbidium's limit is 35.6 °F — bring it in.");
+    const w = { ...base, likelyC: 1, expectedLowC: 3, lowerBoundC: 1.4, leafLowC: 1 };
+    expect(forecastHeadline(w, "C")).toBe("Thursday night (3 Dec): 1.0 °C expected on the leaves at the bench under a clear, still sky (air 3.0 °C); the Cymbidium's limit is 2.0 °C — bring it in.");
+    // Only the 80 % lower bound crosses: said as a possibility, not as the expectation.
+    const loose = { ...base, likelyC: 1.4, expectedLowC: 3.4, lowerBoundC: 1.4, leafLowC: null };
+    expect(forecastHeadline(loose, "C")).toBe("Thursday night (3 Dec): 3.4 °C expected on the bench, and 1.4 °C quite possible; the Cymbidium's limit is 2.0 °C — bring it in.");
     expect(forecastDetail(w, "F", "Europe/London")).toContain("about 3.6 °F below the air");
     expect(likelyLow({ lowerBound: 1.4, leafLow: 1 })).toBe(1);
     expect(likelyLow({ lowerBound: 1.4, leafLow: null })).toBe(1.4);

@@ -85,9 +85,21 @@ export type ForecastWarningFacts = {
   lowAt: Date;
 };
 
-/** The in-app line and the e-mail's first sentence. */
-export function forecastHeadline(w: Pick<ForecastWarningFacts, "night" | "spotName" | "plantName" | "damageC" | "likelyC">, unit: Unit): string {
-  return `${nightName(w.night)}: ${formatTemp(w.likelyC, unit)} expected on ${w.spotName}; the ${w.plantName}'s limit is ${formatTemp(w.damageC, unit)} — bring it in.`;
+/**
+ * The in-app line and the e-mail's first sentence. "Expected" is kept for the forecast's own low (or
+ * the leaves' low under a clear sky, which follows from it); a crossing only the 80 % lower bound
+ * reaches is said as a real possibility, not as the expectation.
+ */
+export function forecastHeadline(
+  w: Pick<ForecastWarningFacts, "night" | "spotName" | "plantName" | "damageC" | "expectedLowC" | "lowerBoundC" | "leafLowC">,
+  unit: Unit,
+): string {
+  const t = (c: number) => formatTemp(c, unit);
+  let what: string;
+  if (w.expectedLowC <= w.damageC) what = `${t(w.expectedLowC)} expected on ${w.spotName}`;
+  else if (w.leafLowC !== null && w.leafLowC <= w.damageC) what = `${t(w.leafLowC)} expected on the leaves at ${w.spotName} under a clear, still sky (air ${t(w.expectedLowC)})`;
+  else what = `${t(w.expectedLowC)} expected on ${w.spotName}, and ${t(w.lowerBoundC)} quite possible`;
+  return `${nightName(w.night)}: ${what}; the ${w.plantName}'s limit is ${t(w.damageC)} — bring it in.`;
 }
 
 /** How the figure was reached, in words. */
@@ -120,7 +132,7 @@ ${lines.filter((l) => l !== "").map((l) => `<p>${escape(l)}</p>`).join("\n")}
 
 export function forecastWarningMessage(c: ForecastMailContext, w: ForecastWarningFacts): Composed {
   return render(
-    `Frost forecast for ${c.spotName}: ${formatTemp(w.likelyC, c.unit)} ${nightName(w.night).replace(/ \(.*\)$/, "")}`,
+    `Cold night forecast for ${c.spotName}: ${nightName(w.night).replace(/ \(.*\)$/, "")} may reach ${formatTemp(w.likelyC, c.unit)}`,
     [
       forecastHeadline(w, c.unit),
       forecastDetail(w, c.unit, c.timeZone),
@@ -133,7 +145,7 @@ export function forecastWarningMessage(c: ForecastMailContext, w: ForecastWarnin
 
 export function forecastClearMessage(c: ForecastMailContext, w: ForecastWarningFacts): Composed {
   return render(
-    `All clear: ${nightName(w.night).replace(/ \(.*\)$/, "")} no longer looks frosty at ${c.spotName}`,
+    `All clear: ${nightName(w.night).replace(/ \(.*\)$/, "")} no longer looks too cold at ${c.spotName}`,
     [
       `The forecast has changed: ${nightName(w.night)} at ${c.spotName} (${c.siteName}) no longer looks likely to fall under the ${w.plantName}'s ${formatTemp(w.damageC, c.unit)} limit.`,
       forecastDetail(w, c.unit, c.timeZone),
