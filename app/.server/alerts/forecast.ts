@@ -142,7 +142,11 @@ export class ForecastWarnings {
     if (spot.indoor) {
       // A heated room holds its floor whatever the night does: no forecast warning there.
       const profile = await projectedProfile(spot.id, { now: at });
-      if (!profile?.model || profile.model.heatingFloor) return none;
+      if (!profile?.model) return none;
+      if (profile.model.heatingFloor) {
+        await pool().query(`UPDATE forecast_warnings SET ended_at = $2 WHERE spot_id = $1 AND ended_at IS NULL`, [spot.id, at]);
+        return none;
+      }
     }
     const forecast = await spotForecast(spot.id, { now: at });
     if (!forecast || !forecast.forecastAt || now - forecast.forecastAt.getTime() > STALE_FORECAST_MS) return none;
