@@ -77,8 +77,17 @@ async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[],
     archiveUrl ??= `${fake.url}/v1/archive`;
     forecastUrl ??= `${fake.url}/v1/forecast`;
   }
+  // Forecast warnings run after each forecast (or archive chunk) the job stores, and every half hour.
+  const { startForecastWarnings } = await import("~/.server/alerts/forecast");
+  const forecastWarnings = startForecastWarnings({ log });
   const { startWeatherJob } = await import("~/.server/weather/job");
-  const weatherJob = startWeatherJob({ endpoints: { archiveUrl, forecastUrl, apiKey: e.WEATHER_API_KEY }, years: e.WEATHER_YEARS, log });
+  const weatherJob = startWeatherJob({
+    endpoints: { archiveUrl, forecastUrl, apiKey: e.WEATHER_API_KEY },
+    years: e.WEATHER_YEARS,
+    log,
+    onStored: (siteId) => void forecastWarnings.runner.run(siteId).catch((err) => console.error("[forecast]", err)),
+  });
+  stops.push(forecastWarnings.stop);
   stops.push(weatherJob.stop);
 
   const { pruneRejections } = await import("~/.server/ingest/rejections");
@@ -100,6 +109,8 @@ async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[],
   if (demo.seed) {
     const { seedDemo } = await import("~/.server/seed");
     await seedDemo({ log, backfillDays: e.NW_BACKFILL_DAYS });
+    // The demo's plants and readings are in: look at the forecast now rather than in half an hour.
+    void forecastWarnings.runner.run().catch((err) => console.error("[forecast]", err));
   }
 
   const { reactRouterAdapter, securityHeaders } = await import("~/.server/http-adapter");

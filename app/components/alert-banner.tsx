@@ -2,6 +2,7 @@
 import { useEffect } from "react";
 import { Link, useFetcher } from "react-router";
 import type { AlertBannerData } from "~/.server/alerts/queries";
+import { forecastHeadline } from "~/domain/alerts/forecast-warning";
 import { formatValue } from "~/domain/alerts/messages";
 import { KINDS } from "~/domain/alerts/rules";
 
@@ -13,8 +14,8 @@ export function AlertBanner({ siteId, initial, unit }: { siteId: number; initial
     }, 15_000);
     return () => clearInterval(t);
   }, [siteId]);
-  const { open, warnings } = live.data ?? initial;
-  if (open.length === 0 && warnings.length === 0) return null;
+  const { open, warnings, forecast = [] } = live.data ?? initial;
+  if (open.length === 0 && warnings.length === 0 && forecast.length === 0) return null;
   return (
     <div role="alert" aria-label="Site alerts" className="mb-6 space-y-1 rounded-md border border-poor/40 bg-poor/10 px-4 py-3 text-sm">
       {open.map((e) => (
@@ -32,6 +33,13 @@ export function AlertBanner({ siteId, initial, unit }: { siteId: number; initial
         <p key={`w${w.ruleId}`}>
           <strong className="text-care">↘ Early warning</strong> at <Link className="link" to={`/sites/${siteId}/spots/${w.spotId}`}>{w.spotName}</Link>: at the
           last hour's rate it reaches {formatValue(w.kind, w.threshold, unit)} within the hour.
+        </p>
+      ))}
+      {forecast.map((f) => (
+        <p key={`f${f.id}`}>
+          <strong className="text-care">❄ Cold night forecast:</strong> {forecastHeadline(f, unit)}{" "}
+          <Link className="link font-medium" to={`/sites/${siteId}/spots/${f.spotId}`}>Open {f.spotName}</Link>{" "}
+          <span className="text-muted">A forecast is a help, not a guarantee.</span>
         </p>
       ))}
     </div>

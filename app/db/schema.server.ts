@@ -481,3 +481,35 @@ export const weatherFetches = pgTable("weather_fetches", {
   nextAttemptAt: timestamp({ withTimezone: true }),
   lastError: text(),
 });
+
+// Forecast warnings (issue 16, part 6): one row per spot and night whose forecast low is likely to
+// cross the most tender placed plant's damage line 12–48 h ahead. `notified_at` and
+// `clear_notified_at` are claimed before the e-mails go, so a night warns once per forecast event;
+// a night that crosses again after its all-clear reopens the same row as a new event.
+export const forecastWarnings = pgTable(
+  "forecast_warnings",
+  {
+    id: serial().primaryKey(),
+    spotId: integer()
+      .notNull()
+      .references(() => spots.id, { onDelete: "cascade" }),
+    /** The local date the night starts on. */
+    night: date({ mode: "string" }).notNull(),
+    plantName: text().notNull(),
+    damageC: real().notNull(),
+    /** The figure compared with the line: the 80 % lower bound, or the leaves' low on a clear still night. */
+    likelyC: real().notNull(),
+    expectedLowC: real().notNull(),
+    lowerBoundC: real().notNull(),
+    leafLowC: real(),
+    lowAt: timestamp({ withTimezone: true }).notNull(),
+    forecastAt: timestamp({ withTimezone: true }),
+    openedAt: timestamp({ withTimezone: true }).notNull(),
+    notifiedAt: timestamp({ withTimezone: true }),
+    clearedAt: timestamp({ withTimezone: true }),
+    clearNotifiedAt: timestamp({ withTimezone: true }),
+    /** The night has passed (or its plants left): no longer shown, no all-clear. */
+    endedAt: timestamp({ withTimezone: true }),
+  },
+  (t) => [uniqueIndex().on(t.spotId, t.night)],
+);

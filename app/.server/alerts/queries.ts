@@ -2,6 +2,7 @@
 import { and, desc, eq, isNull, sql } from "drizzle-orm";
 import { data } from "react-router";
 import { notFound } from "~/.server/auth";
+import { openForecastWarnings } from "~/.server/alerts/forecast";
 import { defaultKinds } from "~/.server/alerts/store";
 import { db } from "~/.server/db";
 import { toId } from "~/.server/ids";
@@ -60,7 +61,7 @@ export async function acknowledge(siteId: number, eventId: unknown, userId: numb
 }
 
 /** Open events and live early warnings of a site, for the banner. */
-export async function alertBanner(siteId: number) {
+export async function alertBanner(siteId: number, now = new Date()) {
   const open = await siteEvents(siteId, { openOnly: true, limit: 10 });
   const warned = await db()
     .select({ ruleId: alertRules.id, kind: alertRules.kind, spotId: spots.id, spotName: spots.name, threshold: alertRules.threshold, warnedAt: alertRules.warnedAt })
@@ -73,6 +74,7 @@ export async function alertBanner(siteId: number) {
     warnings: warned
       .filter((w) => !openRules.has(`${w.spotId}:${w.kind}`))
       .map((w) => ({ ruleId: w.ruleId, kind: w.kind, spotId: w.spotId, spotName: w.spotName, threshold: w.threshold, warnedAt: w.warnedAt!.toISOString() })),
+    forecast: await openForecastWarnings(siteId, now),
   };
 }
 export type AlertBannerData = Awaited<ReturnType<typeof alertBanner>>;

@@ -23,6 +23,8 @@ export type WeatherJobOptions = {
   perRound?: number;
   now?: () => number;
   log?: (s: string) => void;
+  /** Called after a site's forecast or archive chunk is stored (forecast warnings run then); never awaited. */
+  onStored?: (siteId: number) => void;
 };
 
 type FetchRow = {
@@ -146,6 +148,7 @@ export class WeatherJob {
           [row.site_id, first < req.startDate ? first : req.startDate, last],
         );
       }
+      this.opts.onStored?.(row.site_id);
     } catch (err) {
       if (this.abort.signal.aborted) return;
       const failures = row.failures + 1;
