@@ -20,7 +20,9 @@ test("a cold snap on the bench shows in the banner without a reload, and acknowl
   await page.goto("/sites/1/alerts");
   const banner = page.getByRole("alert", { name: "Site alerts" });
   await expect(page.getByRole("heading", { name: "Open alerts" })).toBeVisible();
-  await expect(banner).toHaveCount(0);
+  // No cold snap yet (a forecast warning for the bench may be there: the weather fake's December can
+  // forecast a frost night, which is not what this test is about).
+  await expect(banner.getByText("Cold snap")).toHaveCount(0);
 
   // Fourteen minutes of 2 °C readings through the HTTP ingest, the last just now (seconds off the
   // backfill's five-minute grid so none is a duplicate): the default cold watch needs 10 minutes.
