@@ -6,34 +6,10 @@ import AxeBuilder from "@axe-core/playwright";
 import { test as plain } from "@playwright/test";
 import type { Page } from "@playwright/test";
 import { test, expect, signIn, DEMO } from "./fixtures";
+import { OWNER_PAGES as SITE_PAGES } from "./pages";
 
 const SIGNED_OUT = ["/sign-in", "/sign-up"];
-const OWNER_PAGES = [
-  "/",
-  "/sites/new",
-  "/sites/1",
-  "/sites/1/spots/1",
-  "/sites/1/spots/5",
-  "/sites/1/spots/5/alerts",
-  "/sites/1/spots/1/edit",
-  "/sites/1/spots/new",
-  "/sites/1/sensors",
-  "/sites/1/sensors/1",
-  "/sites/1/sensors/1?new=1#secret=abcdefghijklmnopqrstuvwxyz234567",
-  "/sites/1/sensors/new",
-  "/sites/1/compare",
-  "/sites/1/plants",
-  "/sites/1/plants/phalaenopsis",
-  "/sites/1/plants/new",
-  "/sites/1/wishlist",
-  "/sites/1/import",
-  "/sites/1/water",
-  "/sites/1/alerts",
-  "/sites/1/members",
-  "/sites/1/edit",
-  "/settings",
-  "/help/api",
-];
+const OWNER_PAGES = [...new Set(["/", "/sites/new", ...SITE_PAGES])];
 const ADMIN_PAGES = ["/admin"];
 
 async function violations(page: Page, path: string) {

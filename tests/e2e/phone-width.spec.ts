@@ -2,40 +2,15 @@
 // scroll sideways for (wide tables and code scroll inside their own box). 390 px is a common
 // phone width in CSS pixels (common practice; from memory).
 import { test, expect, signIn, DEMO } from "./fixtures";
+import { OWNER_PAGES } from "./pages";
 
-const PAGES = [
-  "/",
-  "/sites/1",
-  "/sites/1/spots/1",
-  "/sites/1/spots/5",
-  "/sites/1/spots/5/alerts",
-  "/sites/1/spots/1/edit",
-  "/sites/1/spots/new",
-  "/sites/1/sensors",
-  "/sites/1/sensors/1",
-  // A new sensor's page shows its secret and connection commands, with the longest lines.
-  "/sites/1/sensors/1?new=1#secret=abcdefghijklmnopqrstuvwxyz234567",
-  "/sites/1/sensors/new",
-  "/sites/1/compare",
-  "/sites/1/plants",
-  "/sites/1/plants/phalaenopsis",
-  "/sites/1/plants/new",
-  "/sites/1/wishlist",
-  "/sites/1/import",
-  "/sites/1/water",
-  "/sites/1/alerts",
-  "/sites/1/members",
-  "/sites/1/edit",
-  "/settings",
-  "/help/api",
-];
 
 test.use({ viewport: { width: 390, height: 844 } });
 
 test("every page of the demo site fits a 390 px wide phone screen", async ({ page }) => {
   await signIn(page, DEMO.owner);
   const wide: string[] = [];
-  for (const path of PAGES) {
+  for (const path of OWNER_PAGES) {
     const res = await page.goto(path);
     expect(res?.status(), path).toBe(200);
     await page.waitForLoadState("networkidle");

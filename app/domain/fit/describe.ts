@@ -1,6 +1,6 @@
 // Words for the fit rules' facts, in the grower's unit and locale. The rules return numbers and
 // dates only (rules.ts); this is the one place that turns them into sentences.
-import type { Fact, RuleResult } from "~/domain/fit/rules";
+import { cyclicOrder, type Fact, type RuleResult } from "~/domain/fit/rules";
 import { MONTH_NAMES } from "~/domain/season/profile";
 import { deltaToUnit, toUnit, type TempUnit } from "~/lib/units";
 
@@ -34,24 +34,9 @@ export function day(key: string, f: Format): string {
   return new Intl.DateTimeFormat(f.locale ?? "en-GB", { day: "numeric", month: "short", timeZone: "UTC" }).format(new Date(Date.UTC(y, m - 1, d)));
 }
 
-/** Months 1–12 in the order a grower reads them: starting after the longest gap of the year. */
-function cyclic(months: number[]): number[] {
-  const sorted = [...new Set(months)].sort((a, b) => a - b);
-  if (sorted.length <= 1) return sorted;
-  let start = 0, widest = -1;
-  for (let i = 0; i < sorted.length; i++) {
-    const prev = sorted[(i - 1 + sorted.length) % sorted.length];
-    const gap = (sorted[i] - prev + 12) % 12 || 12;
-    if (gap > widest) {
-      widest = gap;
-      start = i;
-    }
-  }
-  return [...sorted.slice(start), ...sorted.slice(0, start)];
-}
 function monthRuns(months: number[]): number[][] {
   const runs: number[][] = [];
-  for (const m of cyclic(months)) {
+  for (const m of cyclicOrder(months)) {
     const last = runs.at(-1);
     if (last && m === (last.at(-1)! % 12) + 1) last.push(m);
     else runs.push([m]);

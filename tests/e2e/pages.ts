@@ -1,0 +1,28 @@
+// The pages a signed-in owner of the demo opens, for the checks that walk them all (phone width,
+// accessibility).
+export const OWNER_PAGES = [
+  "/",
+  "/sites/1",
+  "/sites/1/spots/1",
+  "/sites/1/spots/5",
+  "/sites/1/spots/5/alerts",
+  "/sites/1/spots/1/edit",
+  "/sites/1/spots/new",
+  "/sites/1/sensors",
+  "/sites/1/sensors/1",
+  // A new sensor's page shows its secret and connection commands, with the longest lines.
+  "/sites/1/sensors/1?new=1#secret=abcdefghijklmnopqrstuvwxyz234567",
+  "/sites/1/sensors/new",
+  "/sites/1/compare",
+  "/sites/1/plants",
+  "/sites/1/plants/phalaenopsis",
+  "/sites/1/plants/new",
+  "/sites/1/wishlist",
+  "/sites/1/import",
+  "/sites/1/water",
+  "/sites/1/alerts",
+  "/sites/1/members",
+  "/sites/1/edit",
+  "/settings",
+  "/help/api",
+];
