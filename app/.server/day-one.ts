@@ -134,8 +134,9 @@ export async function firstDaysVersusOutdoors(site: { id: number; timeZone: stri
     const ms = r.hour.getTime();
     const i = Math.floor((ms - outdoors.start) / HOUR);
     const out = outdoors.temperature[i];
-    // Forecast hours are not the weather that happened: compare with the archive only.
-    if (i < 0 || i >= outdoors.forecastFrom || out === undefined || Number.isNaN(out)) continue;
+    // The archive runs some days behind; the latest past hours come from the forecast service's own
+    // record of them until the archive replaces them (the weather job stores both).
+    if (i < 0 || ms > now.getTime() || out === undefined || Number.isNaN(out)) continue;
     const localMs = ms + clock.offsetAt(ms);
     const hour = new Date(localMs).getUTCHours();
     const spot = r.tSum! / r.tN;
