@@ -28,7 +28,7 @@ const LIKELY_LABEL: Record<string, string> = {
 };
 
 function list(names: string[], max = 4) {
-  const shown = names.slice(0, max);
+  const shown = names.slice(0, max).map((n) => n.split(" (")[0]);
   const rest = names.length - shown.length;
   return `${shown.join(", ")}${rest > 0 ? ` and ${rest} more` : ""}`;
 }
@@ -55,7 +55,7 @@ export function DayOne({ view, sun, unit }: { view: DayOneView; sun: DirectSunEs
           <>No readings here yet. Once a sensor has been here about a week, Nichewise learns how this spot follows the outdoor weather and gives likely verdicts for every month.</>
         ) : model.state === "fitted" ? (
           <>
-            From {model.days} {model.days === 1 ? "day" : "days"} of readings beside the outdoor weather, Nichewise has learned how this spot follows it
+            From its latest {model.days} {model.days === 1 ? "day" : "days"} of readings beside the outdoor weather, Nichewise has learned how this spot follows it
             {model.errorC !== null ? ` (daily lows and highs off by about ${formatDelta(model.errorC, unit)} on days it was not fitted on)` : ""} and projects the months not yet measured
             through {model.years} past {model.years === 1 ? "year" : "years"} of weather.{" "}
             {model.firmBy ? (
@@ -98,7 +98,7 @@ export function DayOne({ view, sun, unit }: { view: DayOneView; sun: DirectSunEs
 
       {versus && (versus.nightAboveC !== null || versus.dayAboveC !== null) ? (
         <p data-testid="day-one-versus">
-          {versus.days === 1 ? "Its first day" : `Its ${versus.days} days so far`} ({versus.from}
+          {versus.days === 1 ? "Its one day of readings" : `The last ${versus.days} days with readings`} ({versus.from}
           {versus.from !== versus.to ? `–${versus.to}` : ""}):{" "}
           {versus.nightAboveC !== null ? (
             <>
@@ -119,7 +119,8 @@ export function DayOne({ view, sun, unit }: { view: DayOneView; sun: DirectSunEs
         {climate && coldest && warmest ? (
           <>
             Outdoors here ({climate.years} past {climate.years === 1 ? "year" : "years"}, {climate.firstYear}–{climate.lastYear}): nights average{" "}
-            {formatTemp(coldest.meanDailyLowC, unit)} in {MONTH_NAMES[coldest.month - 1]} (the coldest year {formatTemp(coldest.coldestLowC, unit)}), days{" "}
+            {formatTemp(coldest.meanDailyLowC, unit)} in {MONTH_NAMES[coldest.month - 1]}
+            {coldest.coldestLowC < coldest.meanDailyLowC - 0.2 ? ` (the coldest year ${formatTemp(coldest.coldestLowC, unit)})` : ""}, days{" "}
             {formatTemp(warmest.meanDailyHighC, unit)} in {MONTH_NAMES[warmest.month - 1]}.{" "}
           </>
         ) : view.weather === "not-fetched" ? (

@@ -26,7 +26,8 @@ test("a spot in its first months: the day-one view right after the verdicts, wit
   await page.screenshot({ path: ".data/day-one-1280.png", fullPage: false });
   await page.setViewportSize({ width: 390, height: 844 });
   await page.reload();
-  await page.screenshot({ path: ".data/day-one-390.png", fullPage: true });
+  await page.screenshot({ path: ".data/day-one-390.png" });
+  await dayOne.screenshot({ path: ".data/day-one-390-view.png" });
   await page.getByTestId("day-one-months").locator(":scope > summary").click();
   await expect(page.getByTestId("day-one-months")).toContainText("Jan");
 });
