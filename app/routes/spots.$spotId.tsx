@@ -218,8 +218,6 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
         </div>
       </section>
 
-      {loaderData.dayOne ? <DayOne view={loaderData.dayOne} sun={loaderData.growing.directSun} unit={unit} /> : null}
-
       <nav aria-label="On this page" className="page-index" data-testid="page-index">
         <span className="eyebrow self-center">On this page</span>
         <a className="link" href="#year">The year</a>
@@ -229,6 +227,9 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
         {role !== "mentor" ? <a className="link" href="#place">Place a sensor here</a> : null}
         <a className="link" href="#closer">Charts and numbers</a>
       </nav>
+
+      {/* A new spot: what can be known now, right under the answer and the page's index (issue 16). */}
+      {loaderData.dayOne ? <DayOne view={loaderData.dayOne} sun={loaderData.growing.directSun} unit={unit} /> : null}
 
       <section id="year" className="card space-y-3">
         <YearStrip
