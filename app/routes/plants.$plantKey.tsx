@@ -8,6 +8,7 @@ import { VerdictBadge } from "~/components/season";
 import { NotesPanel } from "~/components/notes-panel";
 import { listNotes } from "~/.server/notes";
 import { rankSpotsForPlant } from "~/domain/fit/verdict";
+import { fitProjections } from "~/.server/projections";
 import { PLANT_LIBRARY, type PlantProfile } from "~/domain/plants/library";
 import { deltaToUnit, formatTemp, type TempUnit } from "~/lib/units";
 import type { Route } from "./+types/plants.$plantKey";
@@ -24,7 +25,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const { choice, problem: periodProblem } = parsePeriod(new URL(request.url).searchParams.get("period"), now, site.timeZone);
   const periods = await judgedPeriods(site, spots.map((s) => s.id), choice, now);
   const profiles = await spotProfiles(site, spots.map((s) => s.id), now, { plants, periods });
-  const ranked = rankSpotsForPlant(plant, spots.map((s) => ({ spot: s, season: profiles.get(s.id)!, window: windowOf(site, s) })));
+  // Months not measured yet are judged from each spot's projection (issue 16); a past period stays as measured.
+  const projections = await fitProjections(new Map(spots.filter((s) => periods.get(s.id)?.toToday).map((s) => [s.id, profiles.get(s.id)!] as const)), { now });
+  const ranked = rankSpotsForPlant(plant, spots.map((s) => ({ spot: s, season: profiles.get(s.id)!, window: windowOf(site, s), projection: projections.get(s.id) })));
   const wish = wishes.find((w) => w.plantKey === plant.key) ?? null;
   return {
     role,
@@ -42,6 +45,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
         id: spot.id,
         name: spot.name,
         verdict: f.verdict,
+        likely: !!f.confidence && f.confidence !== "measured" && f.verdict !== "not enough data yet",
+        basisText: f.verdictText?.startsWith("likely ") ? f.verdictText.replace(/^likely [^—]+— /, "") : null,
         reasons: f.reasons,
         okReasons: f.okReasons,
         missingAdvice: f.missingAdvice,
@@ -179,9 +184,14 @@ export default function PlantPage({ loaderData, actionData }: Route.ComponentPro
                     {periodLabel(s.period)}
                   </span>
                   <span className="ml-auto">
-                    <VerdictBadge verdict={s.verdict} />
+                    <VerdictBadge verdict={s.verdict} likely={s.likely} />
                   </span>
                 </div>
+                {s.likely && s.basisText ? (
+                  <p className="mt-1 text-sm text-muted" data-testid="fit-basis">
+                    {s.basisText}. Projected months are estimates from past weather.
+                  </p>
+                ) : null}
                 {s.reasons[0] ? <p className="mt-1.5 text-sm">{s.reasons[0].message}</p> : null}
                 {s.missingAdvice ? <p className="mt-1 text-sm text-muted">{s.missingAdvice}</p> : null}
                 {s.reasons.length > 1 ? (

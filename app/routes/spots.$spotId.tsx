@@ -20,10 +20,13 @@ import { spotGrowing } from "~/.server/spot-growing";
 import { fitsFor, glassContextFor, judgedPeriods, parseGlazing, parsePeriod, pickableMonths, slimProfile, spotProfiles, windowOf } from "~/.server/profiles";
 import { periodLabel, PeriodPicker } from "~/components/period-picker";
 import { fitProjection } from "~/.server/projections";
+import { dayOne } from "~/.server/day-one";
+import { DayOne, type DayOneView } from "~/components/day-one";
 import { VERDICT_RULES } from "~/domain/fit/verdict";
 import { timeAgo } from "~/lib/time";
 import { formatTemp } from "~/lib/units";
 import { LIGHT_SOURCE_LABELS, type LightSource } from "~/domain/climate/light";
+import type { SeasonProfile } from "~/domain/season/types";
 import type { Route } from "./+types/spots.$spotId";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.spot.name ?? "Spot"} · Nichewise` }];
@@ -52,6 +55,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const projection = period.toToday ? ((await fitProjection(spot.id, season, { now })) ?? undefined) : undefined;
   const fits = fitsFor(season, allPlants, { window: windowOf(site, spot), glass, projection }, { unit: user.temperatureUnit });
   const plantKey = q.get("plant") ?? fits[0]?.key;
+  // A new spot (fewer than twelve measured months, its latest year shown): what can be known now (issue 16, part 5).
+  const measuredMonths = season.year.filter((m) => m.coverage.enough).length;
+  const dayOneView = choice.kind === "latest" && period.toToday && measuredMonths < 12 ? await dayOneFor(site, spot.id, season, fits, now) : null;
   const plant = allPlants.find((p) => p.key === plantKey) ?? null;
   return {
     now: Date.now(),
@@ -72,12 +78,46 @@ export async function loader({ request, params }: Route.LoaderArgs) {
       problem: periodProblem,
     },
     fits,
+    dayOne: dayOneView,
     plant: plant ? { key: plant.key, name: plant.name, minNightC: plant.minNightC, maxDayC: plant.maxDayC } : null,
     plants: allPlants.map((p) => ({ key: p.key, name: p.name })),
     verdictRules: VERDICT_RULES,
     glazing: { chosen: glazing, judged: glass !== undefined },
     notes,
     growing: await spotGrowing(site, spot, allPlants, fits, sensors),
+  };
+}
+
+const dateIn = (d: Date, timeZone: string, year = true) =>
+  d.toLocaleDateString("en-GB", { day: "numeric", month: "short", ...(year ? { year: "numeric" } : {}), timeZone });
+
+async function dayOneFor(site: { id: number; timeZone: string }, spotId: number, season: SeasonProfile, fits: ReturnType<typeof fitsFor>, now: Date): Promise<DayOneView> {
+  const d = await dayOne(site, spotId, { now });
+  const likelyFits = fits.filter((f) => f.confidence && f.confidence !== "measured" && f.verdict !== "not enough data yet");
+  const likely = (["thrives here", "possible with care", "good for part of the year", "struggles here"] as const)
+    .map((verdict) => ({ verdict, names: likelyFits.filter((f) => f.verdict === verdict).map((f) => f.name) }))
+    .filter((l) => l.names.length > 0);
+  const basisOf = likelyFits[0]?.verdictText;
+  // A date-only string ("YYYY-MM-DD"), read as a calendar day.
+  const day = (iso: string) => new Date(`${iso}T12:00:00Z`).toLocaleDateString("en-GB", { day: "numeric", month: "short", year: "numeric", timeZone: "UTC" });
+  const m = d.model;
+  const firm = fits.find((f) => f.basis?.firmBy)?.basis?.firmBy;
+  return {
+    measuredMonths: season.year.filter((x) => x.coverage.enough).length,
+    daysWithReadings: season.year.reduce((n, x) => n + x.coverage.daysObserved, 0),
+    weather: d.weather,
+    climate: d.climate,
+    versus: d.versus
+      ? { ...d.versus, from: dateIn(d.versus.from, site.timeZone, false), to: dateIn(d.versus.to, site.timeZone, false) }
+      : null,
+    model:
+      m.state === "fitted"
+        ? { ...m, firmBy: firm ? day(firm) : m.firmBy ? dateIn(m.firmBy, "UTC") : null }
+        : m.state === "waiting"
+          ? { state: "waiting", expected: m.expected ? dateIn(m.expected, site.timeZone) : null }
+          : m,
+    likely,
+    basis: basisOf?.startsWith("likely ") ? basisOf.replace(/^likely [^—]+— /, "").replace(/; firm by .*$/, "").replace(/^./, (c) => c.toUpperCase()) : null,
   };
 }
 
@@ -131,6 +171,7 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
 
   const days = loaderData.profile.year.reduce((n, m) => n + m.coverage.daysObserved, 0);
   const openNotes = loaderData.notes.filter((n) => n.resolvedAt === null).length;
+  const allUnjudged = loaderData.fits.length > 0 && loaderData.fits.every((f) => f.verdict === "not enough data yet");
 
   return (
     <div className="space-y-6">
@@ -187,6 +228,9 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
         <a className="link" href="#closer">Charts and numbers</a>
       </nav>
 
+      {/* A new spot: what can be known now, right under the answer and the page's index (issue 16). */}
+      {loaderData.dayOne ? <DayOne view={loaderData.dayOne} sun={loaderData.growing.directSun} unit={unit} /> : null}
+
       <section id="year" className="card space-y-3">
         <YearStrip
           months={loaderData.profile.year}
@@ -219,7 +263,15 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
       <section id="fits" className="card">
         <h3 className="h2 mb-1">Every group, best first</h3>
         <p className="mb-3 text-sm text-muted">The best few in full; the rest gathered by verdict and by what holds them back.</p>
-        <GroupedFits fits={loaderData.fits} unit={unit} siteId={site.id} />
+        {allUnjudged ? (
+          // One line instead of a wall of identical rows: nothing is judged yet (issue 16).
+          <p data-testid="fits-unjudged">
+            None of the {loaderData.fits.length} groups can be judged yet: {loaderData.fits[0]?.missingAdvice ?? "too few days of readings here."}
+            {loaderData.dayOne ? " What is known already is above." : ""}
+          </p>
+        ) : (
+          <GroupedFits fits={loaderData.fits} unit={unit} siteId={site.id} />
+        )}
         {spot.indoor && spot.facing !== "none" ? (
           <p className="mt-4 text-sm text-muted" data-testid="glazing-note">
             {loaderData.glazing.judged

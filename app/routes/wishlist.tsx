@@ -8,6 +8,7 @@ import { getSite, listSpots } from "~/.server/sites";
 import { VerdictBadge } from "~/components/season";
 import { rankSpotsForPlant, VERDICT_ORDER } from "~/domain/fit/verdict";
 import { planWishlist } from "~/domain/fit/wishlist";
+import { fitProjections } from "~/.server/projections";
 import type { Route } from "./+types/wishlist";
 
 export const meta: Route.MetaFunction = () => [{ title: "Wishlist · Nichewise" }];
@@ -21,8 +22,18 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const { choice, problem: periodProblem } = parsePeriod(new URL(request.url).searchParams.get("period"), now, site.timeZone);
   const periods = wanted.length ? await judgedPeriods(site, spots.map((s) => s.id), choice, now) : new Map();
   const profiles = wanted.length ? await spotProfiles(site, spots.map((s) => s.id), now, { plants, periods }) : new Map();
-  const withSeason = spots.map((s) => ({ spot: s, season: profiles.get(s.id)!, window: windowOf(site, s) }));
-  const ranked = wanted.map((w) => ({ wish: w, fits: rankSpotsForPlant(byKey.get(w.plantKey)!, withSeason).map((r) => ({ spotId: r.spot.spot.id, verdict: r.fit.verdict, reason: fitSummary(byKey.get(w.plantKey)!, r.fit, { unit: user.temperatureUnit }).reasons[0]?.message ?? null })) }));
+  // Months not measured yet are judged from each spot's projection (issue 16); a past period stays as measured.
+  const projections = wanted.length ? await fitProjections(new Map(spots.filter((s) => periods.get(s.id)?.toToday).map((s) => [s.id, profiles.get(s.id)!] as const)), { now }) : new Map();
+  const withSeason = spots.map((s) => ({ spot: s, season: profiles.get(s.id)!, window: windowOf(site, s), projection: projections.get(s.id) }));
+  const ranked = wanted.map((w) => ({
+    wish: w,
+    fits: rankSpotsForPlant(byKey.get(w.plantKey)!, withSeason).map((r) => ({
+      spotId: r.spot.spot.id,
+      verdict: r.fit.verdict,
+      likely: !!r.fit.confidence && r.fit.confidence !== "measured" && r.fit.verdict !== "not enough data yet",
+      reason: fitSummary(byKey.get(w.plantKey)!, r.fit, { unit: user.temperatureUnit }).reasons[0]?.message ?? null,
+    })),
+  }));
   const reasonIn = (i: number, spotId: number | undefined) => ranked[i].fits.find((f) => f.spotId === spotId)?.reason ?? null;
   const plan = planWishlist(
     spots.map((s) => ({ id: s.id, name: s.name, capacity: s.capacity, standingPots: inventory.filter((i) => i.spotId === s.id).reduce((n, i) => n + i.pots, 0) })),
@@ -38,7 +49,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
         name: byKey.get(r.wish.plantKey)!.name,
         mustHave: r.wish.mustHave,
         pots: r.wish.pots,
-        best: p.best ? { spot: spotName.get(p.best.spotId)!, verdict: p.best.verdict, reason: bestFit?.reason ?? null } : null,
+        best: p.best ? { spot: spotName.get(p.best.spotId)!, verdict: p.best.verdict, likely: r.fits.find((f) => f.spotId === p.best!.spotId)?.likely ?? false, reason: bestFit?.reason ?? null } : null,
         placed: p.placed ? { spot: spotName.get(p.placed.spotId)!, verdict: p.placed.verdict, reason: reasonIn(i, p.placed.spotId) } : null,
         note: p.note,
         everywhereStruggles: p.everywhereStruggles ?? false,
@@ -183,7 +194,7 @@ export default function Wishlist({ loaderData, actionData }: Route.ComponentProp
                   </span>
                   {r.best ? (
                     <span className="ml-auto">
-                      <VerdictBadge verdict={r.best.verdict} />
+                      <VerdictBadge verdict={r.best.verdict} likely={r.best.likely} />
                     </span>
                   ) : null}
                 </div>

@@ -66,7 +66,7 @@ const N_FEATURES = 13;
 // Ridge strength per standardised feature, as a share of the hours fitted.
 const RIDGE = 0.02;
 const CLIP_MARGIN_C = 0.4;
-const MIN_DAYS = 5;
+export const MIN_DAYS = 5;
 
 /** Per-hour inputs derived once from an outdoor series: smoothing runs over the whole series. */
 export type Drivers = {
