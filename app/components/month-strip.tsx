@@ -22,7 +22,7 @@ function Cell({ cell, x }: { cell: StripCell; x: number }) {
       {cell.state === "care" ? <path d="M2 15v-5h12v5z" fill={c} fillOpacity={fillOpacity} /> : null}
       {cell.state === "fail" ? <path d="M4.5 6l7 7M11.5 6l-7 7" stroke={c} strokeWidth="1.7" strokeLinecap="round" opacity={cell.projected ? 0.7 : 1} /> : null}
       {cell.state === "unmeasured" ? <circle cx="8" cy="10.5" r="1.2" fill={c} /> : null}
-      <text x="8" y="25" textAnchor="middle" fontSize="7.5" fill="var(--color-muted)">
+      <text x="8" y="27.5" textAnchor="middle" fontSize="9" fill="var(--color-muted)">
         {MONTH_SHORT[cell.month - 1].slice(0, 1)}
       </text>
     </g>
@@ -35,9 +35,9 @@ export function MonthStrip({ rule, code }: { rule: string; code: string }) {
   const label = stripLabel(rule, cells);
   return (
     <svg
-      viewBox="0 0 216 27"
-      width="216"
-      height="27"
+      viewBox="0 0 240 30"
+      width="240"
+      height="30"
       className="mt-1 block max-w-full"
       role="img"
       aria-label={label}
@@ -46,7 +46,7 @@ export function MonthStrip({ rule, code }: { rule: string; code: string }) {
     >
       <title>{label}</title>
       {cells.map((c, i) => (
-        <Cell key={c.month} cell={c} x={i * 18 + 1} />
+        <Cell key={c.month} cell={c} x={i * 20 + 2} />
       ))}
     </svg>
   );

@@ -37,8 +37,8 @@ const WORDS: Record<"watching" | "paused", { name: string; detail: string; tone:
 export function WatchState({ paused }: { paused: boolean }) {
   const w = WORDS[paused ? "paused" : "watching"];
   return (
-    <p className="inline-flex items-start gap-1.5 text-sm" data-testid="watch-state">
-      <span className={`inline-flex items-center gap-1.5 font-semibold ${w.tone}`}>
+    <p className="flex flex-wrap items-baseline gap-x-1.5 text-sm" data-testid="watch-state">
+      <span className={`inline-flex items-center gap-1.5 font-semibold whitespace-nowrap ${w.tone}`}>
         <WatchMark state={paused ? "paused" : "watching"} />
         {w.name}
       </span>

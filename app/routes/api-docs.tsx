@@ -32,9 +32,10 @@ function chunks(text: string) {
       continued = false;
       continue;
     }
-    const kind: "ask" | "answer" = continued || /^(curl|mosquitto_pub)\b/.test(line) ? "ask" : "answer";
+    // A shell comment ("# A spot with three weeks of readings") belongs with the command under it.
+    const kind: "ask" | "answer" = continued || /^(curl|mosquitto_pub|#)/.test(line) ? "ask" : "answer";
     const last = out.at(-1);
-    if (last && last.kind === kind && (kind === "answer" || continued)) last.lines.push(line);
+    if (last && last.kind === kind && (kind === "answer" || continued || last.lines.at(-1)!.startsWith("#"))) last.lines.push(line);
     else out.push({ kind, lines: [line] });
     continued = kind === "ask" && line.endsWith("\\");
   }
