@@ -8,7 +8,8 @@ import type { GlassContext } from "~/domain/fit/cold-glass";
 import { GLAZING_U, type Glazing } from "~/domain/climate/glass";
 import { PLANT_LIBRARY, type PlantProfile } from "~/domain/plants/library";
 import type { LightSource } from "~/domain/climate/light";
-import { seasonProfile } from "~/domain/season/profile";
+import { MONTH_NAMES, seasonProfile } from "~/domain/season/profile";
+import { encodeStrip, monthStrip } from "~/domain/fit/month-strip";
 import type { HourlyRollup } from "~/domain/season/types";
 import type { Site } from "~/db/schema.server";
 import { toLocalInputValue, zonedToUtc } from "~/lib/time";
@@ -265,9 +266,15 @@ export function describeSeasonal(fit: PlantFit, format: Format = DEFAULT_FORMAT)
 export function fitSummary(plant: PlantProfile, fit: PlantFit, format: Format = DEFAULT_FORMAT) {
   const name = plant.name.split(/[ ,(]/)[0];
   const seasonal = describeSeasonal(fit, format);
+  // Each reason's twelve-month strip (issue 17): measured months are those not still short of data.
+  const missing = new Set(fit.missingMonths.map((n) => (MONTH_NAMES as readonly string[]).indexOf(n) + 1));
+  const stripBasis = { measured: [1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12].filter((m) => !missing.has(m)), projected: fit.basis?.projectedMonths ?? [] };
   const asking = fit.reasons
     .filter((r) => r.level !== "good")
-    .map((r) => ({ rule: r.rule, level: r.level, confidence: r.confidence ?? ("measured" as const), message: describeReason(r, format, name) }));
+    .map((r) => {
+      const cells = monthStrip(r, stripBasis);
+      return { rule: r.rule, level: r.level, confidence: r.confidence ?? ("measured" as const), message: describeReason(r, format, name), strip: cells ? encodeStrip(cells) : null };
+    });
   return {
     key: plant.key,
     name: plant.name,

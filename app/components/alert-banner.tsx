@@ -31,13 +31,13 @@ export function AlertBanner({ siteId, initial, unit }: { siteId: number; initial
       ))}
       {warnings.map((w) => (
         <p key={`w${w.ruleId}`}>
-          <strong className="text-ink">↘ Early warning</strong> at <Link className="link" to={`/sites/${siteId}/spots/${w.spotId}`}>{w.spotName}</Link>: at the
+          <strong className="text-v-care">↘ Early warning</strong> at <Link className="link" to={`/sites/${siteId}/spots/${w.spotId}`}>{w.spotName}</Link>: at the
           last hour's rate it reaches {formatValue(w.kind, w.threshold, unit)} within the hour.
         </p>
       ))}
       {forecast.map((f) => (
         <p key={`f${f.id}`}>
-          <strong className="text-ink">❄ Cold night forecast:</strong> {forecastHeadline(f, unit)}{" "}
+          <strong className="text-v-care">❄ Cold night forecast:</strong> {forecastHeadline(f, unit)}{" "}
           <Link className="link font-medium" to={`/sites/${siteId}/spots/${f.spotId}`}>Open {f.spotName}</Link>{" "}
           <span className="text-muted">A forecast is a help, not a guarantee.</span>
         </p>

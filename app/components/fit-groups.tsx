@@ -3,6 +3,7 @@
 import { FitList, type FitRow } from "~/components/season";
 import { groupFits } from "~/domain/fit/summary";
 import { VerdictMark, VerdictWords, type VerdictName } from "~/components/verdict-mark";
+import { MonthStripKey } from "~/components/month-strip";
 
 const listNames = (names: string[], max = 4) => {
   const short = names.map((n) => n.split(" (")[0]);
@@ -74,6 +75,11 @@ export function GroupedFits({ fits, top = 3, unit, siteId }: { fits: FitRow[]; t
   const rest = groupFits(fits, top);
   return (
     <div data-testid="fit-list">
+      {fits.some((f) => f.reasons.some((r) => r.strip)) ? (
+        <div className="mb-2">
+          <MonthStripKey />
+        </div>
+      ) : null}
       <FitList fits={fits.slice(0, top)} unit={unit} siteId={siteId} testId="fit-top" />
       {rest.length ? (
         <ul className="mt-2 space-y-2 border-t border-line pt-3" data-testid="fit-groups">

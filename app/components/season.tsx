@@ -1,6 +1,7 @@
 import type { SlimProfile } from "~/.server/profiles";
 import { formatDelta, formatTemp, type TempUnit } from "~/lib/units";
 import { VerdictWords } from "~/components/verdict-mark";
+import { MonthStrip } from "~/components/month-strip";
 
 /**
  * A verdict as words first with Nichewise's niche mark after it (docs/design.md), no pill. `likely`:
@@ -16,7 +17,8 @@ export type FitRow = {
   category: string | null;
   verdict: string;
   level?: string;
-  reasons: { rule: string; level: string; message: string }[];
+  /** `strip`: the reason's twelve months (fit/month-strip.ts), where it names them. */
+  reasons: { rule: string; level: string; message: string; strip?: string | null }[];
   okReasons: string[];
   missingMonths: string[];
   missingAdvice: string | null;
@@ -42,14 +44,22 @@ export function FitList({ fits, testId = "fit-list" }: { fits: FitRow[]; unit: T
               {f.verdictText.replace(/^likely [^—]+— /, "")}. Projected months are estimates from past weather.
             </p>
           ) : null}
-          {f.reasons.length > 0 ? <p className="mt-1.5 text-sm">{f.reasons[0].message}</p> : null}
+          {f.reasons.length > 0 ? (
+            <div className="mt-1.5 text-sm">
+              <p>{f.reasons[0].message}</p>
+              {f.reasons[0].strip ? <MonthStrip rule={f.reasons[0].rule} code={f.reasons[0].strip} /> : null}
+            </div>
+          ) : null}
           {f.missingAdvice ? <p className="mt-1 text-sm text-muted">{f.missingAdvice}</p> : null}
           {f.reasons.length > 1 ? (
             <details className="mt-1 text-sm">
               <summary className="cursor-pointer text-muted">{f.reasons.length - 1} more {f.reasons.length === 2 ? "reason" : "reasons"}</summary>
               <ul className="mt-1 list-disc space-y-0.5 pl-5">
                 {f.reasons.slice(1).map((r) => (
-                  <li key={r.rule}>{r.message}</li>
+                  <li key={r.rule}>
+                    {r.message}
+                    {r.strip ? <MonthStrip rule={r.rule} code={r.strip} /> : null}
+                  </li>
                 ))}
               </ul>
             </details>

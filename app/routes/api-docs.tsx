@@ -23,17 +23,52 @@ export async function loader({ request }: Route.LoaderArgs) {
   };
 }
 
-function Code({ children }: { children: string }) {
-  return <pre tabIndex={0} className="overflow-x-auto rounded-lg bg-ink p-3 text-xs leading-relaxed text-paper">{children}</pre>;
+/** A command and what Nichewise answers, split into labelled parts (docs/design.md: no dark terminal boxes). */
+function chunks(text: string) {
+  const out: { kind: "ask" | "answer"; lines: string[] }[] = [];
+  let continued = false;
+  for (const line of text.split("\n")) {
+    if (line.trim() === "") {
+      continued = false;
+      continue;
+    }
+    // A shell comment ("# A spot with three weeks of readings") belongs with the command under it.
+    const kind: "ask" | "answer" = continued || /^(curl|mosquitto_pub|#)/.test(line) ? "ask" : "answer";
+    const last = out.at(-1);
+    if (last && last.kind === kind && (kind === "answer" || continued || last.lines.at(-1)!.startsWith("#"))) last.lines.push(line);
+    else out.push({ kind, lines: [line] });
+    continued = kind === "ask" && line.endsWith("\\");
+  }
+  return out;
 }
+
+function Code({ children }: { children: string }) {
+  return (
+    <div className="api-sample" data-testid="api-sample">
+      {chunks(children).map((c, i) => (
+        <figure key={i} className={c.kind === "ask" ? "api-ask" : "api-answer"}>
+          <figcaption className="eyebrow">{c.kind === "ask" ? "You send" : "Nichewise answers"}</figcaption>
+          <pre tabIndex={0} className="overflow-x-auto text-xs leading-relaxed">
+            {c.lines.join("\n")}
+          </pre>
+        </figure>
+      ))}
+    </div>
+  );
+}
+
+/** What a method does, in words; the method itself stays beside it for scripts. */
+const VERB: Record<string, string> = { GET: "Read", POST: "Send", MQTT: "Publish" };
 
 function Endpoint({ method, path, who, children }: { method: string; path: string; who: string; children: React.ReactNode }) {
   return (
-    <div className="space-y-2 border-t border-line pt-4 first:border-t-0 first:pt-0">
-      <p className="font-mono text-sm break-all">
-        <span className="mr-2 rounded bg-accent-soft px-1.5 py-0.5 font-semibold text-accent-dark">{method}</span>
-        {path}
-      </p>
+    <div className="space-y-2 border-t border-stone-line pt-4 first:border-t-0 first:pt-0">
+      <h3 className="api-endpoint">
+        <span className="eyebrow text-ink">
+          {VERB[method] ?? method} <span className="font-mono font-medium tracking-normal normal-case">({method})</span>
+        </span>
+        <code className="block font-mono text-sm font-semibold break-all">{path}</code>
+      </h3>
       <p className="text-sm text-muted">{who}</p>
       {children}
     </div>

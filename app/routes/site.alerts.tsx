@@ -12,6 +12,7 @@ import { formatDuration, formatValue } from "~/domain/alerts/messages";
 import { clockToMinute, minuteToClock } from "~/domain/alerts/quiet";
 import { ALERT_KINDS, KINDS, type AlertKind } from "~/domain/alerts/rules";
 import { formatInZone, timeAgo } from "~/lib/time";
+import { WatchMark } from "~/components/watch-state";
 import type { Route } from "./+types/site.alerts";
 
 export const meta: Route.MetaFunction = () => [{ title: "Alerts · Nichewise" }];
@@ -76,7 +77,13 @@ export default function SiteAlerts({ loaderData, actionData }: Route.ComponentPr
     <li key={e.id} className="card space-y-1" aria-label={`${KINDS[e.kind].label} at ${e.spotName}`}>
       <div className="flex flex-wrap items-baseline justify-between gap-2">
         <p className="font-semibold">
-          {e.endedAt ? "Over: " : <span className="text-poor">Now: </span>}
+          {e.endedAt ? (
+            "Over: "
+          ) : (
+            <span className="inline-flex items-center gap-1 text-poor">
+              <WatchMark state="open" /> Now:{" "}
+            </span>
+          )}
           {KINDS[e.kind].label} at <Link className="link" to={`/sites/${site.id}/spots/${e.spotId}`}>{e.spotName}</Link>
         </p>
         <p className="text-sm text-muted">
@@ -91,7 +98,8 @@ export default function SiteAlerts({ loaderData, actionData }: Route.ComponentPr
         {e.notifiedAt ? "E-mailed." : "Not e-mailed yet."}
       </p>
       {e.acknowledgedAt ? (
-        <p className="text-sm text-good">✓ Acknowledged by {e.acknowledgedBy ?? "a former member"} · {formatInZone(e.acknowledgedAt, site.timeZone)}</p>
+        <p className="inline-flex items-center gap-1.5 text-sm text-ink">
+          <WatchMark state="acknowledged" /> Acknowledged by {e.acknowledgedBy ?? "a former member"} · {formatInZone(e.acknowledgedAt, site.timeZone)}</p>
       ) : e.endedAt ? null : role !== "mentor" ? (
         <Form method="post">
           <input type="hidden" name="eventId" value={e.id} />
@@ -126,7 +134,13 @@ export default function SiteAlerts({ loaderData, actionData }: Route.ComponentPr
               <span className="text-sm text-muted">
                 {w.rules.length === 0
                   ? "no watches"
-                  : w.rules.map((r) => `${KINDS[r.kind].label.toLowerCase()}${r.paused ? " (paused)" : ""}`).join(", ")}
+                  : w.rules.map((r, i) => (
+                      <span key={`${r.kind}-${i}`} className={`inline-flex items-center gap-1 ${i ? "ml-3" : ""} ${r.paused ? "text-care" : ""}`}>
+                        <WatchMark state={r.paused ? "paused" : "watching"} size={14} />
+                        {KINDS[r.kind].label.toLowerCase()}
+                        {r.paused ? " (paused)" : ""}
+                      </span>
+                    ))}
               </span>
             </li>
           ))}

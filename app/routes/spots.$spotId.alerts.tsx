@@ -7,6 +7,7 @@ import { addWatch, deleteWatch, setWatchPaused, suggestedColdWatch, updateWatch 
 import type { AlertRule } from "~/db/schema.server";
 import { describeCondition, formatDuration } from "~/domain/alerts/messages";
 import { ALERT_KINDS, KINDS, type AlertKind } from "~/domain/alerts/rules";
+import { WatchState } from "~/components/watch-state";
 import type { Route } from "./+types/spots.$spotId.alerts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Alerts for ${data?.spot.name ?? "spot"} · Nichewise` }];
@@ -175,8 +176,8 @@ export default function SpotAlerts({ loaderData, actionData }: Route.ComponentPr
                   {info.label}: {describeCondition({ kind: r.kind, threshold: r.threshold, unit })}
                   {r.kind !== "silent" && r.durationMinutes > 0 ? ` for ${formatDuration(r.durationMinutes)}` : ""}
                 </h3>
-                <span className={r.paused ? "text-sm font-medium text-care" : "text-sm font-medium text-good"}>{r.paused ? "⏸ Paused" : "● Watching"}</span>
               </div>
+              <WatchState paused={r.paused} />
               {r.reason ? <p className="hint">Why this line: {r.reason}</p> : null}
               {info.urgent ? <p className="hint">Sent even during quiet hours.</p> : null}
               {role === "owner" ? (

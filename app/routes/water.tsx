@@ -68,11 +68,24 @@ export async function action({ request, params }: Route.ActionArgs) {
   return { intent, ok: true, source };
 }
 
-const VERDICT: Record<WaterVerdict, { word: string; icon: string; cls: string }> = {
-  good: { word: "Good for routine watering", icon: "✓", cls: "text-good" },
-  adjust: { word: "Needs attention", icon: "!", cls: "text-care" },
-  avoid: { word: "Not for routine watering", icon: "✕", cls: "text-poor" },
+// Water verdicts in Nichewise's own marks (docs/design.md): a drop, filled when the water suits
+// routine watering, filled to half when it needs attention, crossed when it does not suit. Beside the words.
+const VERDICT: Record<WaterVerdict, { word: string; cls: string }> = {
+  good: { word: "Good for routine watering", cls: "text-v-thrives" },
+  adjust: { word: "Needs attention", cls: "text-v-care" },
+  avoid: { word: "Not for routine watering", cls: "text-v-struggles" },
 };
+
+const DROP = "M8 1.8C5.6 5 3.5 7.6 3.5 10.2a4.5 4.5 0 0 0 9 0C12.5 7.6 10.4 5 8 1.8z";
+function DropMark({ verdict }: { verdict: WaterVerdict }) {
+  return (
+    <svg viewBox="0 0 16 16" width="14" height="14" className="mr-1 inline-block align-[-0.1em]" aria-hidden="true" data-water={verdict}>
+      <path d={DROP} fill={verdict === "good" ? "currentColor" : "none"} stroke="currentColor" strokeWidth="1.4" />
+      {verdict === "adjust" ? <path d="M3.6 10.2h8.8a4.4 4.4 0 0 1-8.8 0z" fill="currentColor" /> : null}
+      {verdict === "avoid" ? <path d="M5.8 8l4.4 4.4M10.2 8l-4.4 4.4" stroke="currentColor" strokeWidth="1.5" strokeLinecap="round" /> : null}
+    </svg>
+  );
+}
 
 const SOURCE_COLOURS = ["#3b6ea8", "#a9502b", "#3f7a4a", "#a87514", "#6f4fa0", "#2f8a8a"];
 
@@ -167,7 +180,7 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
                 <h3 className="h2">{sourceName(c.source)}</h3>
                 <p className="text-sm text-muted">Last checked {day(c.checkedOn)}</p>
                 <p className={`mt-2 font-semibold ${v.cls}`}>
-                  <span aria-hidden="true">{v.icon} </span>
+                  <DropMark verdict={c.verdict} />
                   {v.word}
                 </p>
                 <ul className="mt-2 list-disc space-y-1 pl-5 text-sm">
@@ -225,7 +238,7 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
                       {c.ph != null && c.buffered === false ? <span className="text-xs text-muted"> (no buffer: not judged)</span> : null}
                     </td>
                     <td className={VERDICT[c.verdict].cls}>
-                      <span aria-hidden="true">{VERDICT[c.verdict].icon} </span>
+                      <DropMark verdict={c.verdict} />
                       {c.verdict === "good" ? "good" : c.verdict === "adjust" ? "needs attention" : "not for routine use"}
                     </td>
                     <td className="hidden sm:table-cell">{c.byName ?? "–"}</td>

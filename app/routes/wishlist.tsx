@@ -259,8 +259,9 @@ export default function Wishlist({ loaderData, actionData }: Route.ComponentProp
       {spots.length > 0 ? (
         <section className="card">
           <h3 className="h2 mb-3">Room in each spot</h3>
-          <div className="-mx-5 overflow-x-auto px-5" tabIndex={0} role="region" aria-label="Room in each spot">
-            <table className="table" data-testid="wishlist-room">
+          {/* Under `sm` each spot is a card of label–value pairs (.stack-table), so "Left" is on a phone's screen. */}
+          <div className="sm:-mx-5 sm:overflow-x-auto sm:px-5" tabIndex={0} role="region" aria-label="Room in each spot">
+            <table className="table stack-table" data-testid="wishlist-room">
               <thead>
                 <tr>
                   <th>Spot</th>
@@ -274,12 +275,16 @@ export default function Wishlist({ loaderData, actionData }: Route.ComponentProp
               <tbody>
                 {spots.map((s) => (
                   <tr key={s.id}>
-                    <td className="font-medium">{s.name}</td>
-                    <td>{s.capacity || "not set"}</td>
-                    <td>{s.standingPots}</td>
-                    <td>{s.mustHavePots}</td>
-                    <td>{s.otherPots}</td>
-                    <td className={s.free != null && s.free <= 0 ? "font-semibold text-care" : ""}>{s.free == null ? "–" : s.free <= 0 ? `none (${s.free})` : s.free}</td>
+                    <th scope="row" className="font-medium text-ink">
+                      {s.name}
+                    </th>
+                    <td data-label="Room for">{s.capacity || "not set"}</td>
+                    <td data-label="Standing now">{s.standingPots}</td>
+                    <td data-label="Must-haves planned">{s.mustHavePots}</td>
+                    <td data-label="Others planned">{s.otherPots}</td>
+                    <td data-label="Left" data-testid="room-left" className={s.free != null && s.free <= 0 ? "font-semibold text-care" : "font-semibold"}>
+                      {s.free == null ? "–" : s.free <= 0 ? `none (${s.free})` : s.free}
+                    </td>
                   </tr>
                 ))}
               </tbody>

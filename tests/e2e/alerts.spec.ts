@@ -68,7 +68,7 @@ test("the owner sees the caution and the default watch with its reason; the care
   const silent = page.getByRole("listitem", { name: "Silent sensor watch" });
   await expect(silent.getByRole("button", { name: "Save" })).toHaveCount(0);
   await silent.getByRole("button", { name: /Pause/ }).click();
-  await expect(silent).toContainText("Paused");
+  await expect(silent.getByTestId("watch-state")).toContainText("Paused");
   await silent.getByRole("button", { name: "Resume watching" }).click();
-  await expect(silent).toContainText("Watching");
+  await expect(silent.getByTestId("watch-state")).toContainText("Keeping watch");
 });
