@@ -21,7 +21,14 @@ export function VerdictSummary({ fits, period, days, pastPeriod = false }: { fit
     { verdict: "not enough data yet", label: "Not judged yet", names: by("not enough data yet") },
     { verdict: "struggles here", label: "Not here", names: by("struggles here") },
   ];
-  const shown = parts.filter((p) => p.names.length > 0);
+  // A group whose verdicts all rest on projected months says so: "Likely possible with care".
+  const projected = (v: string) => {
+    const of = fits.filter((f) => f.verdict === v);
+    return of.length > 0 && of.every((f) => f.confidence !== undefined && f.confidence !== "measured");
+  };
+  const shown = parts
+    .filter((p) => p.names.length > 0)
+    .map((p) => (p.verdict !== "not enough data yet" && projected(p.verdict) ? { ...p, label: `Likely ${p.label.toLowerCase()}` } : p));
   const allUnknown = fits.length > 0 && shown.length === 1 && shown[0].verdict === "not enough data yet";
   if (days === 0)
     return (
