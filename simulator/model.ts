@@ -6,6 +6,7 @@
 // same instants — exactly what ingest deduplication must cope with.
 import * as SunCalc from "suncalc";
 import { zoneClock } from "~/domain/season/local-time";
+import { mulberry32 } from "~/lib/random";
 
 export type SpotKind = "outdoor" | "windowsill" | "bathroom" | "heated-room" | "room";
 export type Facing = "N" | "NE" | "E" | "SE" | "S" | "SW" | "W" | "NW" | "none";
@@ -90,16 +91,6 @@ function triangular(seed: number, key: number, salt: number): number {
   return unit(seed, key, salt) + unit(seed, key, salt + 1) - 1;
 }
 
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 const SALT = {
   front: 11,

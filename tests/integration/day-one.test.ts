@@ -4,18 +4,16 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { createSession, generateSessionToken } from "~/.server/auth";
 import { pool } from "~/.server/db";
-import { ReadingWriter } from "~/.server/ingest/writer";
 import { WeatherJob } from "~/.server/weather/job";
 import { loadHours } from "~/.server/weather/store";
 import { saveWish } from "~/.server/plants";
-import type { Reading } from "~/domain/ingest/payload";
 import { loader as spotLoader } from "~/routes/spots.$spotId";
 import { loader as plantLoader } from "~/routes/plants.$plantKey";
 import { loader as wishlistLoader } from "~/routes/wishlist";
 import type { DayOneView } from "~/components/day-one";
-import { DEMO_SCENARIO, DEMO_SITE, generate, type SimSpot } from "../../simulator/model";
+import { DEMO_SITE, type SimSpot } from "../../simulator/model";
 import { startWeatherFake, type WeatherFake } from "../../simulator/weather-fake";
-import { makeSensor, makeSite, makeSpot, makeUser } from "./helpers";
+import { makeSite, makeUser, simulatedSpot } from "./helpers";
 
 const DAY = 86_400_000;
 const NOW = new Date();
@@ -26,17 +24,7 @@ let token: string;
 type Args = { request: Request; params: Record<string, string>; context: unknown };
 
 async function spotWithDays(sim: SimSpot, days: number, seed: number, name: string) {
-  const spot = await makeSpot(site, { indoor: true, name });
-  await pool().query(`UPDATE spots SET facing = $2 WHERE id = $1`, [spot.id, sim.facing]);
-  if (days === 0) return spot;
-  const from = new Date(NOW.getTime() - days * DAY);
-  const sensor = await makeSensor(site, spot, new Date(from.getTime() - DAY));
-  const rows: Reading[] = [];
-  for (const r of generate(DEMO_SITE, sim, DEMO_SCENARIO, { from, to: NOW, intervalMs: 600_000, sensorSeed: seed })) {
-    rows.push({ sensorId: sensor.id, measuredAt: r.measuredAt, temperature: r.temperature, humidity: r.humidity, lux: null, battery: r.battery });
-  }
-  await new ReadingWriter().write(rows);
-  return spot;
+  return simulatedSpot(site, sim, { days, seed, name, now: NOW });
 }
 
 const call = async <T,>(loader: (a: never) => unknown, url: string, params: Record<string, string>) =>

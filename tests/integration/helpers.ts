@@ -1,9 +1,12 @@
 // Test data made through the same tables the app uses.
-import { sql } from "drizzle-orm";
+import { eq, sql } from "drizzle-orm";
 import { beforeAll, afterAll } from "vitest";
 import { hashPassword } from "~/.server/auth";
 import { db } from "~/.server/db";
+import { ReadingWriter } from "~/.server/ingest/writer";
 import { configureMailer, startMailSink } from "~/.server/mail";
+import type { Reading } from "~/domain/ingest/payload";
+import { DEMO_SCENARIO, DEMO_SITE, generate, type SimSpot } from "../../simulator/model";
 import { hashSensorSecret, newSensorSecret } from "~/.server/secrets";
 import { memberships, placements, sensors, sites, spots, users, type Role } from "~/db/schema.server";
 
@@ -88,4 +91,22 @@ export function useMailSink() {
       return sink!.port;
     },
   };
+}
+
+/**
+ * A spot of `site` whose sensor has `days` of the demo's simulated readings up to `now` (ten-minute
+ * steps, the demo's weather), placed a day before the first; no sensor when `days` is 0.
+ */
+export async function simulatedSpot(site: { id: number }, sim: SimSpot, opts: { days: number; seed: number; now: Date; indoor?: boolean; name?: string }) {
+  const spot = await makeSpot(site, { indoor: opts.indoor ?? true, name: opts.name });
+  await db().update(spots).set({ facing: sim.facing }).where(eq(spots.id, spot.id));
+  if (opts.days === 0) return spot;
+  const from = new Date(opts.now.getTime() - opts.days * 86_400_000);
+  const sensor = await makeSensor(site, spot, new Date(from.getTime() - 86_400_000));
+  const rows: Reading[] = [];
+  for (const r of generate(DEMO_SITE, sim, DEMO_SCENARIO, { from, to: opts.now, intervalMs: 600_000, sensorSeed: opts.seed })) {
+    rows.push({ sensorId: sensor.id, measuredAt: r.measuredAt, temperature: r.temperature, humidity: r.humidity, lux: null, battery: r.battery });
+  }
+  await new ReadingWriter().write(rows);
+  return spot;
 }

@@ -4,19 +4,17 @@
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { createSession, generateSessionToken } from "~/.server/auth";
 import { pool } from "~/.server/db";
-import { ReadingWriter } from "~/.server/ingest/writer";
 import { WeatherJob } from "~/.server/weather/job";
 import { fitProjections } from "~/.server/projections";
 import { spotProfiles, windowOf } from "~/.server/profiles";
 import { rankSpotsForPlant } from "~/domain/fit/verdict";
 import { plantByKey } from "~/domain/plants/library";
 import type { Fact } from "~/domain/fit/rules";
-import type { Reading } from "~/domain/ingest/payload";
 import { loader as fitsLoader } from "~/routes/api.fits";
 import { loader as spotLoader } from "~/routes/spots.$spotId";
-import { DEMO_SCENARIO, DEMO_SITE, generate, type SimSpot } from "../../simulator/model";
+import { DEMO_SITE, type SimSpot } from "../../simulator/model";
 import { startWeatherFake, type WeatherFake } from "../../simulator/weather-fake";
-import { makeSensor, makeSite, makeSpot, makeUser } from "./helpers";
+import { makeSite, makeUser, simulatedSpot } from "./helpers";
 
 const DAY = 86_400_000;
 const NOW = new Date();
@@ -31,16 +29,7 @@ type FitJson = { key: string; level: string; verdict: string; confidence: string
 type Body = { basis: { confidence: string; measuredMonths: number[]; projectedMonths: number[]; blendedMonths: number[]; years: number; firmBy: string | null }; fits: FitJson[] };
 
 async function spotWithDays(sim: SimSpot, indoor: boolean, days: number, seed: number) {
-  const spot = await makeSpot(site, { indoor });
-  await pool().query(`UPDATE spots SET facing = $2 WHERE id = $1`, [spot.id, sim.facing]);
-  const from = new Date(NOW.getTime() - days * DAY);
-  const sensor = await makeSensor(site, spot, new Date(from.getTime() - DAY));
-  const rows: Reading[] = [];
-  for (const r of generate(DEMO_SITE, sim, DEMO_SCENARIO, { from, to: NOW, intervalMs: 600_000, sensorSeed: seed })) {
-    rows.push({ sensorId: sensor.id, measuredAt: r.measuredAt, temperature: r.temperature, humidity: r.humidity, lux: null, battery: r.battery });
-  }
-  await new ReadingWriter().write(rows);
-  return spot;
+  return simulatedSpot(site, sim, { indoor, days, seed, now: NOW });
 }
 
 const fitsOf = async (spotId: number, query = ""): Promise<Body> => {

@@ -2,13 +2,11 @@
 // writer like real readings, against the outdoor weather the job fetched from the local fake.
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { pool } from "~/.server/db";
-import { ReadingWriter } from "~/.server/ingest/writer";
 import { projectedProfile, spotForecast } from "~/.server/projections";
 import { WeatherJob } from "~/.server/weather/job";
-import type { Reading } from "~/domain/ingest/payload";
-import { DEMO_SCENARIO, DEMO_SITE, generate, type SimSpot } from "../../simulator/model";
+import { DEMO_SITE, type SimSpot } from "../../simulator/model";
 import { startWeatherFake, type WeatherFake } from "../../simulator/weather-fake";
-import { makeSensor, makeSite, makeSpot, makeUser } from "./helpers";
+import { makeSite, makeSpot, makeUser, simulatedSpot } from "./helpers";
 
 const DAY = 86_400_000;
 const NOW = new Date();
@@ -16,16 +14,7 @@ let fake: WeatherFake;
 let site: Awaited<ReturnType<typeof makeSite>>;
 
 async function spotWithDays(sim: SimSpot, indoor: boolean, days: number, seed: number) {
-  const spot = await makeSpot(site, { indoor });
-  await pool().query(`UPDATE spots SET facing = $2 WHERE id = $1`, [spot.id, sim.facing]);
-  const from = new Date(NOW.getTime() - days * DAY);
-  const sensor = await makeSensor(site, spot, new Date(from.getTime() - DAY));
-  const rows: Reading[] = [];
-  for (const r of generate(DEMO_SITE, sim, DEMO_SCENARIO, { from, to: NOW, intervalMs: 600_000, sensorSeed: seed })) {
-    rows.push({ sensorId: sensor.id, measuredAt: r.measuredAt, temperature: r.temperature, humidity: r.humidity, lux: null, battery: r.battery });
-  }
-  await new ReadingWriter().write(rows);
-  return spot;
+  return simulatedSpot(site, sim, { indoor, days, seed, now: NOW });
 }
 
 beforeAll(async () => {

@@ -4,7 +4,9 @@
 // partly measured blends the two and says so. Pure: no I/O.
 import type { MonthOfYearProfile, Site } from "~/domain/season/types";
 import { DEFAULT_THRESHOLDS_C, MIN_HOURS_FOR_DAY, NIGHT_END_HOUR, NIGHT_START_HOUR } from "~/domain/season/profile";
-import { drivers, HOUR_MS, predictHour, saturationHpa, type Drivers, type OutdoorSeries, type ResponseModel } from "./response";
+import { drivers, HOUR_MS, predictHour, type Drivers, type OutdoorSeries, type ResponseModel } from "./response";
+import { saturationVapourPressure } from "~/domain/climate/psychro";
+import { mulberry32 } from "~/lib/random";
 
 /** A figure and its 80 % interval. */
 export type Figure = { value: number; low: number; high: number };
@@ -42,16 +44,6 @@ const Z80 = 1.2816;
 // (chosen on the simulator's spots so that about 80 % of months fall inside; see the accuracy test).
 const EXTRAPOLATION_ERROR_PER_C = 0.3;
 
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 function quantile(sorted: number[], q: number): number {
   if (sorted.length === 1) return sorted[0];
@@ -144,7 +136,7 @@ export function projectYear(model: ResponseModel, weather: OutdoorSeries | Drive
     acc.outdoorSum += d.now[i];
     if (model.vapourExcessHpa !== null) {
       const e = d.outdoorVapour[i] + model.vapourExcessHpa;
-      const rh = Math.max(1, Math.min(100, (100 * e) / saturationHpa(p)));
+      const rh = Math.max(1, Math.min(100, (100 * e) / saturationVapourPressure(p)));
       acc.rhSum += rh;
       acc.rhN++;
       if (rh < acc.rhLow) acc.rhLow = rh;

@@ -12,6 +12,7 @@
 import type { HourlyRollup } from "~/domain/season/types";
 import { zoneClock } from "~/domain/season/local-time";
 import { FACING_AZIMUTH, type SpotFacing } from "~/domain/climate/sun";
+import { saturationVapourPressure } from "~/domain/climate/psychro";
 
 export const HOUR_MS = 3_600_000;
 const DAY_MS = 86_400_000;
@@ -89,10 +90,6 @@ export type Drivers = {
   wind: Float64Array;
 };
 
-export function saturationHpa(t: number): number {
-  return 6.1094 * Math.exp((17.625 * t) / (243.04 + t));
-}
-
 /** Where the spot is and which way its window faces, for the sun on the glass. */
 export type Place = { latitude: number; longitude: number; facing: SpotFacing };
 
@@ -155,7 +152,7 @@ export function drivers(w: OutdoorSeries, timeZone: string, place?: Place): Driv
     if (Number.isFinite(rh)) lastRh = rh;
     cloud[i] = w.cloud ? w.cloud[i] : NaN;
     wind[i] = w.wind ? w.wind[i] : NaN;
-    outdoorVapour[i] = (saturationHpa(now[i]) * lastRh) / 100;
+    outdoorVapour[i] = (saturationVapourPressure(now[i]) * lastRh) / 100;
     const day = Math.floor(t / DAY_MS);
     if (day !== offsetDay) {
       offsetDay = day;
@@ -491,7 +488,7 @@ function fitOn(data: Sample[], d: Drivers, opts: FitOptions): ResponseModel {
       e.hiMean = Math.max(e.hiMean, s.y);
       e.n++;
     }
-    if (s.rh !== null) excess.push((saturationHpa(s.y) * s.rh) / 100 - d.outdoorVapour[s.i]);
+    if (s.rh !== null) excess.push((saturationVapourPressure(s.y) * s.rh) / 100 - d.outdoorVapour[s.i]);
     const dm = d.dailyMean[s.i];
     if (dm < partial.outdoorRange[0]) partial.outdoorRange[0] = dm;
     if (dm > partial.outdoorRange[1]) partial.outdoorRange[1] = dm;
