@@ -307,6 +307,7 @@ export default function Import({ loaderData }: Route.ComponentProps) {
           <p className="mt-2">
             {imported.stored.toLocaleString("en")} new readings stored of {imported.rows.toLocaleString("en")} rows
             {imported.duplicates > 0 ? `; ${imported.duplicates.toLocaleString("en")} were already stored` : ""}
+            {imported.conflicts > 0 ? `; ${imported.conflicts.toLocaleString("en")} had a different value already stored for their time, which was kept` : ""}
             {imported.failed > 0 ? `; ${imported.failed.toLocaleString("en")} rows skipped` : ""}.
           </p>
           {imported.outsideSpots > 0 ? (

@@ -70,6 +70,16 @@ describe("the import page's action", () => {
     expect(audit).toMatchObject([{ action: "csv.import", actorId: owner.id, detail: { sensorId: sensor.id, rows: 5, stored: 4, outsideSpots: 1 } }]);
   });
 
+  it("a second file with other values for the same times counts them as conflicts, not as already stored", async () => {
+    const { site, sensor, token } = await setup();
+    const form = { intent: "import", sensorId: String(sensor.id), dateFormat: "iso", timeZone: "Europe/Madrid" };
+    answer(await post(site.id, token, CSV, form));
+    const again = answer(await post(site.id, token, CSV, form)).body.imported;
+    expect(again).toMatchObject({ stored: 0, duplicates: 4, conflicts: 0 });
+    const other = CSV.replace(",15\n", ",17\n").replace("02:30,13\n", "02:30,12\n");
+    expect(answer(await post(site.id, token, other, form)).body.imported).toMatchObject({ stored: 0, duplicates: 2, conflicts: 2 });
+  });
+
   it("answers 429 while the same grower's other preview or import runs", async () => {
     const { owner, site, sensor, token } = await setup();
     const release = csvSlot(String(owner.id))!;

@@ -284,6 +284,7 @@ export async function importCsv(source: CsvSource, mapping: CsvMapping, sensorId
   let valid = 0;
   let written = 0; // valid rows in batches that committed
   let stored = 0;
+  let conflicts = 0;
   let stopped = null as { line: number; reason: string } | null;
   let writing: { result: Promise<WriteResult>; rows: number; line: number } | null = null;
   const settle = async () => {
@@ -291,7 +292,9 @@ export async function importCsv(source: CsvSource, mapping: CsvMapping, sensorId
     const w = writing;
     writing = null;
     try {
-      stored += (await w.result).inserted;
+      const result = await w.result;
+      stored += result.inserted;
+      conflicts += result.conflicts;
       written += w.rows;
     } catch (err) {
       console.error(`[csv] import for sensor ${sensorId} stopped at line ${w.line}:`, err);
@@ -343,7 +346,9 @@ export async function importCsv(source: CsvSource, mapping: CsvMapping, sensorId
     rows,
     valid,
     stored,
-    duplicates: written - stored,
+    duplicates: written - stored - conflicts,
+    /** Rows whose time already held a different value for this sensor: the stored one is kept. */
+    conflicts,
     failed,
     firstFailures: firstFailures.slice(0, 20),
     stopped,
