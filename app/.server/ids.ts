@@ -46,3 +46,12 @@ export function oneLine(s: string, max = 60) {
   const flat = s.replace(/[\u0000-\u001F\u007F\u2028\u2029]+/g, " ").replace(/\s+/g, " ").trim();
   return flat.length > max ? `${flat.slice(0, max - 1).trimEnd()}…` : flat;
 }
+
+/** The posted form, or a 400 when the body is not one (a broken multipart upload, a wrong content type). */
+export async function readForm(request: Request): Promise<FormData> {
+  try {
+    return await request.formData();
+  } catch {
+    throw data("The form could not be read: send it again from the page.", { status: 400 });
+  }
+}

@@ -2,7 +2,7 @@
 // POST adds (mentors and owners), resolves or reopens (owners).
 import { data } from "react-router";
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
-import { cleanText, toId } from "~/.server/ids";
+import { cleanText, toId, readForm } from "~/.server/ids";
 import { addNote, listNotes, NoteError, setNoteResolved, type NoteTarget } from "~/.server/notes";
 import type { Route } from "./+types/api.notes";
 
@@ -30,7 +30,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 export async function action({ request, params }: Route.ActionArgs) {
   // Members only, before the body is read; the role the intent needs is checked below.
   await requireSiteRole(request, params.siteId, ALL_ROLES);
-  const form = await request.formData();
+  const form = await readForm(request);
   const intent = String(form.get("intent") ?? "");
   const { siteId, user } = await requireSiteRole(request, params.siteId, intent === "resolve" || intent === "reopen" ? ["owner"] : ["owner", "mentor"]);
   try {

@@ -1,6 +1,7 @@
 import { data, useFetcher } from "react-router";
 import { useState } from "react";
 import { requireSiteRole, WRITERS } from "~/.server/auth";
+import { readForm } from "~/.server/ids";
 import { auditCsvImport, CsvLimitError, isCsvFileError, csvSlot, importCsv, previewCsv, readCsvHead, type CsvHead } from "~/.server/ingest/csv-import";
 import { getSensor, getSite, listSensors } from "~/.server/sites";
 import { CSV_MAX_BYTES, CSV_MAX_ROWS, DATE_FORMATS, guessMapping, type CsvMapping, type DateFormat } from "~/domain/ingest/csv";
@@ -34,7 +35,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   const { siteId, user } = await requireSiteRole(request, params.siteId, WRITERS);
   const site = await getSite(siteId);
   // The body is already bounded by the web adapter (IMPORT_MAX_BYTES) before this runs.
-  const form = await request.formData();
+  const form = await readForm(request);
   const file = form.get("file");
   if (!(file instanceof File) || file.size === 0) return data({ error: "Choose a CSV file." }, { status: 400 });
   const sensor = await getSensor(siteId, String(form.get("sensorId") ?? ""));

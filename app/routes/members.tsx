@@ -14,7 +14,7 @@ import {
   removeMember,
   revokeInvitation,
 } from "~/.server/members";
-import { cleanText, formId, toId } from "~/.server/ids";
+import { cleanText, formId, toId, readForm } from "~/.server/ids";
 import { listMembers } from "~/.server/sites";
 import { useNow } from "~/components/use-now";
 import { describeChange, type ChangeDetail } from "~/domain/sharing/changes";
@@ -49,7 +49,7 @@ const inviteSchema = z.object({
 export async function action({ request, params }: Route.ActionArgs) {
   // Members only, before the body is read; the role the intent needs is checked below.
   await requireSiteRole(request, params.siteId, ALL_ROLES);
-  const form = await request.formData();
+  const form = await readForm(request);
   const intent = String(form.get("intent") ?? "");
   const { siteId, user } = await requireSiteRole(request, params.siteId, intent === "leave" ? ALL_ROLES : ["owner"]);
   try {

@@ -1,5 +1,6 @@
 import { data, Form, Link, redirect, useNavigation } from "react-router";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
+import { readForm } from "~/.server/ids";
 import { deleteCustomProfile, findSitePlant, parseWish, saveWish, siteInventory, sitePlant, sitePlants, siteWishlist } from "~/.server/plants";
 import { fitSummary, judgedPeriods, parsePeriod, pickableMonths, spotProfiles, windowOf } from "~/.server/profiles";
 import { periodLabel, PeriodPicker } from "~/components/period-picker";
@@ -60,7 +61,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 export async function action({ request, params }: Route.ActionArgs) {
   const { siteId, role, user } = await requireSiteRole(request, params.siteId, WRITERS);
   const plant = await sitePlant(siteId, params.plantKey);
-  const form = await request.formData();
+  const form = await readForm(request);
   const intent = form.get("intent");
   if (intent === "wish") {
     const parsed = parseWish(form, plant.key);

@@ -1,6 +1,7 @@
 import { parseWithZod } from "@conform-to/zod/v4";
 import { data, Form, Link, redirect, useNavigation } from "react-router";
 import { requireSiteRole } from "~/.server/auth";
+import { readForm } from "~/.server/ids";
 import { freeOwnKey, saveCustomProfile, sitePlants } from "~/.server/plants";
 import { PLANT_LIBRARY } from "~/domain/plants/library";
 import { plantFormSchema, profileFromForm, slugOf } from "~/lib/plant-form";
@@ -21,7 +22,7 @@ const TEMP_FIELDS = ["minNightC", "maxDayC", "coolNightC"];
 export async function action({ request, params }: Route.ActionArgs) {
   const { siteId, user } = await requireSiteRole(request, params.siteId, ["owner"]);
   const unit = user.temperatureUnit;
-  const raw = await request.formData();
+  const raw = await readForm(request);
   // The form is typed in the grower's unit; the profile is stored in °C.
   const form = new FormData();
   for (const [k, v] of raw) {

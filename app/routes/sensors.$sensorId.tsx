@@ -2,6 +2,7 @@ import { parseWithZod } from "@conform-to/zod/v4";
 import { useEffect, useState } from "react";
 import { data, Form, redirect, useFetcher, useNavigation } from "react-router";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
+import { readForm } from "~/.server/ids";
 import { env } from "~/.server/env";
 import { runningBroker } from "~/.server/ingest/broker";
 import {
@@ -54,7 +55,7 @@ const PLACEMENT_EDITS = new Set(["move-start", "split", "assign"]);
 export async function action({ request, params }: Route.ActionArgs) {
   // Members only, before the body is read; the role the intent needs is checked below.
   await requireSiteRole(request, params.siteId, ALL_ROLES);
-  const form = await request.formData();
+  const form = await readForm(request);
   const intent = String(form.get("intent") ?? "");
   const owner = intent === "save" || intent === "rotate" || intent === "delete";
   const { siteId, user } = await requireSiteRole(request, params.siteId, owner ? ["owner"] : WRITERS);

@@ -3,6 +3,7 @@ import { parseWithZod } from "@conform-to/zod/v4";
 import { useState } from "react";
 import { Form, redirect, useNavigation } from "react-router";
 import { requireSiteRole } from "~/.server/auth";
+import { readForm } from "~/.server/ids";
 import { createSensor, PlacementError } from "~/.server/sensors.server";
 import { getSite, getSpot, listSpots } from "~/.server/sites";
 import { FormErrors, SelectField, TextField } from "~/components/field";
@@ -19,7 +20,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 export async function action({ request, params }: Route.ActionArgs) {
   const { siteId, user } = await requireSiteRole(request, params.siteId, ["owner"]);
-  const submission = parseWithZod(await request.formData(), { schema: sensorSchema });
+  const submission = parseWithZod(await readForm(request), { schema: sensorSchema });
   if (submission.status !== "success") return { result: submission.reply() };
   const { name, channels, spotId, since, sinceAt } = submission.value;
   if (spotId) await getSpot(siteId, spotId);

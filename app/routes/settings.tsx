@@ -1,6 +1,7 @@
 import { and, eq, ne } from "drizzle-orm";
 import { data, Form } from "react-router";
 import { getSession, hashPassword, requireUser, verifyPassword } from "~/.server/auth";
+import { readForm } from "~/.server/ids";
 import { db } from "~/.server/db";
 import { sessions, users } from "~/db/schema.server";
 import type { Route } from "./+types/settings";
@@ -13,7 +14,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 
 export async function action({ request }: Route.ActionArgs) {
   const user = await requireUser(request);
-  const form = await request.formData();
+  const form = await readForm(request);
   if (form.get("intent") === "unit") {
     const unit = form.get("unit") === "F" ? "F" : "C";
     await db().update(users).set({ temperatureUnit: unit }).where(eq(users.id, user.id));

@@ -2,6 +2,7 @@ import { getFormProps, useForm } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
 import { Form, Link, redirect, useNavigation } from "react-router";
 import { getUser, sessionCookie, signIn } from "~/.server/auth";
+import { readForm } from "~/.server/ids";
 import { AuthFrame } from "~/components/auth-frame";
 import { FormErrors, TextField } from "~/components/field";
 import { safeNext, signInSchema } from "~/lib/forms";
@@ -17,7 +18,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 }
 
 export async function action({ request, context }: Route.ActionArgs) {
-  const submission = parseWithZod(await request.formData(), { schema: signInSchema });
+  const submission = parseWithZod(await readForm(request), { schema: signInSchema });
   if (submission.status !== "success") return { result: submission.reply({ hideFields: ["password"] }) };
   const { email, password, next } = submission.value;
   const result = await signIn(email, password, context.clientAddress);

@@ -2,6 +2,7 @@ import { getFormProps, useForm } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
 import { Form, Link, redirect, useNavigation } from "react-router";
 import { createSession, generateSessionToken, getUser, hashPassword, sessionCookie } from "~/.server/auth";
+import { readForm } from "~/.server/ids";
 import { db } from "~/.server/db";
 import { publicUrl } from "~/.server/env";
 import { sendMail } from "~/.server/mail";
@@ -21,7 +22,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 }
 
 export async function action({ request }: Route.ActionArgs) {
-  const submission = parseWithZod(await request.formData(), { schema: signUpSchema });
+  const submission = parseWithZod(await readForm(request), { schema: signUpSchema });
   if (submission.status !== "success") return { result: submission.reply({ hideFields: ["password"] }) };
   const { name, email, password, next } = submission.value;
   // Hashed either way, so that the answer takes as long for a taken address as for a new one.

@@ -2,7 +2,7 @@ import { data, Form, Link, useFetcher } from "react-router";
 import { useEffect } from "react";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
 import { acknowledge, getPreferences, savePreferences, siteEvents } from "~/.server/alerts/queries";
-import { cleanText } from "~/.server/ids";
+import { cleanText, readForm } from "~/.server/ids";
 import { getSite, listSpots } from "~/.server/sites";
 import { db } from "~/.server/db";
 import { alertRules } from "~/db/schema.server";
@@ -30,7 +30,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 export async function action({ request, params }: Route.ActionArgs) {
   // Members only, before the body is read; the role the intent needs is checked below.
   await requireSiteRole(request, params.siteId, ALL_ROLES);
-  const form = await request.formData();
+  const form = await readForm(request);
   const intent = form.get("intent");
   if (intent === "acknowledge") {
     const { siteId, user } = await requireSiteRole(request, params.siteId, WRITERS);

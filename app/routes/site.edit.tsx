@@ -2,6 +2,7 @@ import { parseWithZod } from "@conform-to/zod/v4";
 import { eq } from "drizzle-orm";
 import { redirect } from "react-router";
 import { requireSiteRole } from "~/.server/auth";
+import { readForm } from "~/.server/ids";
 import { db } from "~/.server/db";
 import { getSite } from "~/.server/sites";
 import { SiteForm } from "~/components/site-form";
@@ -18,7 +19,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 export async function action({ request, params }: Route.ActionArgs) {
   const { siteId, user } = await requireSiteRole(request, params.siteId, ["owner"]);
-  const submission = parseWithZod(await request.formData(), { schema: siteSchema });
+  const submission = parseWithZod(await readForm(request), { schema: siteSchema });
   if (submission.status !== "success") return { result: submission.reply() };
   await db().update(sites).set(submission.value).where(eq(sites.id, siteId));
   await db().insert(auditLog).values({ siteId, actorId: user.id, action: "site.update", detail: submission.value });

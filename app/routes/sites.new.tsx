@@ -1,6 +1,7 @@
 import { parseWithZod } from "@conform-to/zod/v4";
 import { redirect } from "react-router";
 import { requireUser } from "~/.server/auth";
+import { readForm } from "~/.server/ids";
 import { db } from "~/.server/db";
 import { SiteForm } from "~/components/site-form";
 import { auditLog, memberships, sites } from "~/db/schema.server";
@@ -16,7 +17,7 @@ export async function loader({ request }: Route.LoaderArgs) {
 
 export async function action({ request }: Route.ActionArgs) {
   const user = await requireUser(request);
-  const submission = parseWithZod(await request.formData(), { schema: siteSchema });
+  const submission = parseWithZod(await readForm(request), { schema: siteSchema });
   if (submission.status !== "success") return { result: submission.reply() };
   const siteId = await db().transaction(async (tx) => {
     const [site] = await tx.insert(sites).values(submission.value).returning({ id: sites.id });

@@ -1,6 +1,7 @@
 import { data, Form, Link, useNavigation } from "react-router";
 import * as units from "~/lib/units";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
+import { readForm } from "~/.server/ids";
 import { getRule, listRules } from "~/.server/alerts/queries";
 import { getSpot } from "~/.server/sites";
 import { addWatch, deleteWatch, setWatchPaused, suggestedColdWatch, updateWatch } from "~/.server/watches";
@@ -58,7 +59,7 @@ function parseRule(form: FormData, kind: AlertKind, unit: "C" | "F") {
 export async function action({ request, params }: Route.ActionArgs) {
   // Members only, before the body is read; the role the intent needs is checked below.
   await requireSiteRole(request, params.siteId, ALL_ROLES);
-  const form = await request.formData();
+  const form = await readForm(request);
   const intent = String(form.get("intent") ?? "");
   // Carers may pause and resume a watch (plants brought in); everything else is the owner's.
   const { siteId, user } = await requireSiteRole(request, params.siteId, intent === "pause" || intent === "resume" ? WRITERS : ["owner"]);

@@ -1,6 +1,7 @@
 import { parseWithZod } from "@conform-to/zod/v4";
 import { Form, redirect } from "react-router";
 import { requireSiteRole } from "~/.server/auth";
+import { readForm } from "~/.server/ids";
 import { getSpot } from "~/.server/sites";
 import { deleteSpot, updateSpot } from "~/.server/spots";
 import { SpotForm } from "~/components/spot-form";
@@ -17,7 +18,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 export async function action({ request, params }: Route.ActionArgs) {
   const { siteId, user } = await requireSiteRole(request, params.siteId, ["owner"]);
   const spot = await getSpot(siteId, params.spotId);
-  const formData = await request.formData();
+  const formData = await readForm(request);
   if (formData.get("intent") === "delete") {
     if (formData.get("confirm") !== spot.name) {
       return { deleteError: `Type the spot's name, “${spot.name}”, to delete it.` };

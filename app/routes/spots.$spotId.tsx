@@ -1,6 +1,7 @@
 import { useEffect } from "react";
 import { data, Link, useFetcher, useNavigation } from "react-router";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
+import { readForm } from "~/.server/ids";
 import { latestReading } from "~/.server/series";
 import { getSite, getSpot, listSensors, listSpots, placementHistory } from "~/.server/sites";
 import { placeFromForm } from "~/.server/sensors.server";
@@ -125,7 +126,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   const { siteId, user } = await requireSiteRole(request, params.siteId, WRITERS);
   const spot = await getSpot(siteId, params.spotId);
   const site = await getSite(siteId);
-  const form = await request.formData();
+  const form = await readForm(request);
   if (form.get("intent") === "place") {
     const placed = await placeFromForm(form, { siteId, spotId: spot.id, timeZone: site.timeZone, actorId: user.id });
     return "placeError" in placed ? data(placed, { status: 400 }) : placed;

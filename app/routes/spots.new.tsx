@@ -1,6 +1,7 @@
 import { parseWithZod } from "@conform-to/zod/v4";
 import { redirect } from "react-router";
 import { requireSiteRole } from "~/.server/auth";
+import { readForm } from "~/.server/ids";
 import { createSpot } from "~/.server/spots";
 import { SpotForm } from "~/components/spot-form";
 import { spotSchema } from "~/lib/forms";
@@ -15,7 +16,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 export async function action({ request, params }: Route.ActionArgs) {
   const { siteId, user } = await requireSiteRole(request, params.siteId, ["owner"]);
-  const submission = parseWithZod(await request.formData(), { schema: spotSchema });
+  const submission = parseWithZod(await readForm(request), { schema: spotSchema });
   if (submission.status !== "success") return { result: submission.reply() };
   const { indoor, notes, glazing, ...rest } = submission.value;
   const spot = await createSpot({ siteId, actorId: user.id, values: { ...rest, indoor: indoor === "indoor", notes: notes ?? "", glazing: glazing ?? null } });

@@ -2,7 +2,7 @@ import { useMemo, useRef, useEffect } from "react";
 import { data, Form, useNavigation } from "react-router";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
 import { getSite } from "~/.server/sites";
-import { formId } from "~/.server/ids";
+import { formId, readForm } from "~/.server/ids";
 import { addWaterCheck, deleteWaterCheck, listWaterChecks } from "~/.server/water";
 import { Chart, type ChartSpec } from "~/components/chart";
 import { parseSource, ppmLabel, sourceName, STANDARD_SOURCES } from "~/domain/water/checks";
@@ -28,7 +28,7 @@ const num = (v: FormDataEntryValue | null) => {
 
 export async function action({ request, params }: Route.ActionArgs) {
   const { siteId, user } = await requireSiteRole(request, params.siteId, WRITERS);
-  const form = await request.formData();
+  const form = await readForm(request);
   const intent = String(form.get("intent") ?? "");
   if (intent === "delete") {
     await deleteWaterCheck(siteId, user.id, formId(form, "checkId"));

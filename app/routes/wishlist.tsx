@@ -1,6 +1,7 @@
 import { useEffect, useRef } from "react";
 import { data, Form, Link, useNavigation } from "react-router";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
+import { readForm } from "~/.server/ids";
 import { ConfirmRemoval, parseWish, removeWish, saveWish, siteInventory, sitePlants, siteWishlist } from "~/.server/plants";
 import { fitSummary, judgedPeriods, parsePeriod, pickableMonths, spotProfiles, windowOf } from "~/.server/profiles";
 import { periodLabel, PeriodPicker } from "~/components/period-picker";
@@ -75,7 +76,7 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 export async function action({ request, params }: Route.ActionArgs) {
   const { siteId, user } = await requireSiteRole(request, params.siteId, WRITERS);
-  const form = await request.formData();
+  const form = await readForm(request);
   const intent = form.get("intent");
   const plants = await sitePlants(siteId);
   if (intent === "save") {

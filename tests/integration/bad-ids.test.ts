@@ -19,6 +19,7 @@ import { action as spotEditAction } from "~/routes/spots.$spotId.edit";
 import { action as spotAction, loader as spotLoader } from "~/routes/spots.$spotId";
 import { loader as sensorLoader } from "~/routes/sensors.$sensorId";
 import { action as waterAction } from "~/routes/water";
+import { action as importAction } from "~/routes/import";
 import { addMember, makeSensor, makeSite, makeSpot, makeUser } from "./helpers";
 
 type Fn = (a: never) => unknown;
@@ -130,5 +131,15 @@ describe("a NUL in free text", () => {
     expect(saved).toMatchObject({ name: "Bench by the wall", notes: "Shade after noon" });
     expect(await statusOf(membersAction as Fn, req(`/sites/${s}/members`, { intent: "invite", email: "a\u0000b@example.test", role: "carer" }), { siteId: s })).toBe(400);
     expect(await statusOf(siteAlertsAction as Fn, req(`/sites/${s}/alerts`, { intent: "preferences", email: "on", quietFrom: "22:\u000000", quietTo: "" }), { siteId: s })).toBe(400);
+  });
+});
+
+describe("a body that is not a form", () => {
+  it("gets 400, not 500: a broken multipart upload to the import and a wrong content type to a notes post", async () => {
+    const s = String(site.id);
+    const broken = (path: string, contentType: string) =>
+      new Request(`http://127.0.0.1${path}`, { method: "POST", headers: { Cookie: `nw_session=${token}`, Origin: "http://127.0.0.1", "Content-Type": contentType }, body: "x".repeat(5000) });
+    expect(await statusOf(importAction as Fn, broken(`/sites/${s}/import`, "multipart/form-data; boundary=x"), { siteId: s })).toBe(400);
+    expect(await statusOf(notesAction as Fn, broken(`/api/sites/${s}/notes`, "application/json"), { siteId: s })).toBe(400);
   });
 });
