@@ -131,6 +131,8 @@ describe("faulty values", () => {
     expect(await answer(await post(auth, [{ time: t, temperature: 20, humidity: 50 }]))).toMatchObject({ stored: 1, duplicates: 0, conflicts: 0 });
     const again = await answer(await post(auth, [{ time: t, temperature: 20, humidity: 50 }, { time: t, temperature: 21.5, humidity: 50 }, { time: t2, temperature: 20.5 }]));
     expect(again).toMatchObject({ received: 3, stored: 1, duplicates: 1, conflicts: 1 });
+    // Every reading received is accepted or rejected: the one that conflicts within the request was valid.
+    expect(again.accepted + again.rejected.length).toBe(again.received);
     expect(again.conflicting).toEqual([{ index: 1, time: t, reason: expect.stringMatching(/different reading for the same time earlier in this request/) }]);
     const third = await answer(await post(auth, [{ time: t, temperature: 19 }]));
     expect(third).toMatchObject({ stored: 0, duplicates: 0, conflicts: 1 });

@@ -130,7 +130,8 @@ export async function handleHttpIngest(request: Request): Promise<Response> {
   // `stored` counts rows new to the database; a resent batch stores nothing and that is fine.
   return json({
     received: items.length,
-    accepted: ok.length,
+    // A reading that conflicts with another of the same request was valid: accepted, not stored.
+    accepted: ok.length + conflicts.filter((c) => c.reason === SAME_REQUEST).length,
     stored,
     duplicates: Math.max(0, ok.length - stored - result.conflicts),
     conflicts: conflicts.length,
