@@ -1,4 +1,4 @@
-// Alert watches (alert_rules) of a spot: every change is one function with one transaction that
+// Alert watches (the watches table) of a spot: every change is one function with one transaction that
 // writes the audit row beside it. Pausing a cold-snap or silent-sensor watch also e-mails the site's
 // owners (after the commit), so a watch cannot be switched off unseen. The default cold watch comes
 // with the plants: when a plant is placed in an outdoor spot, the spot gets a cold-snap watch set
@@ -8,7 +8,7 @@ import { db, type Db } from "~/.server/db";
 import { publicUrl } from "~/.server/env";
 import { oneLine } from "~/.server/ids";
 import { sendMail } from "~/.server/mail";
-import { alertEvents, alertRules, auditLog, customPlants, memberships, sites, spotPlants, spots, users, type AlertRule } from "~/db/schema.server";
+import { alertEvents, watches, auditLog, customPlants, memberships, sites, spotPlants, spots, users, type Watch } from "~/db/schema.server";
 import { defaultColdWatch, type DefaultWatch } from "~/domain/alerts/default-watch";
 import { KINDS, type AlertKind } from "~/domain/alerts/rules";
 import { PLANT_LIBRARY } from "~/domain/plants/library";
@@ -50,19 +50,19 @@ export async function ensureColdWatch(opts: { siteId: number; spotId: number; ac
   if (!spot || spot.indoor) return [];
   const w = await suggestedColdWatch(spot.id, opts.siteId, q);
   if (!w) return [];
-  const existing = await q.select().from(alertRules).where(eq(alertRules.spotId, spot.id)).for("update");
+  const existing = await q.select().from(watches).where(eq(watches.spotId, spot.id)).for("update");
   const added: AlertKind[] = [];
   const cold = existing.find((r) => r.kind === "cold");
   const d = KINDS.cold.defaults;
   if (!cold) {
     const [rule] = await q
-      .insert(alertRules)
+      .insert(watches)
       .values({ spotId: spot.id, kind: "cold", threshold: w.threshold, durationMinutes: d.durationMinutes, hysteresis: d.hysteresis, clearMinutes: d.clearMinutes, earlyWarning: true, reason: w.reason })
-      .returning({ id: alertRules.id });
+      .returning({ id: watches.id });
     await audit(q, opts.siteId, opts.actorId, "watch.add", { spotId: spot.id, spot: spot.name, ruleId: rule.id, kind: "cold", threshold: w.threshold, automatic: true });
     added.push("cold");
   } else if (cold.reason && w.threshold > cold.threshold) {
-    await q.update(alertRules).set({ threshold: w.threshold, reason: w.reason }).where(eq(alertRules.id, cold.id));
+    await q.update(watches).set({ threshold: w.threshold, reason: w.reason }).where(eq(watches.id, cold.id));
     await audit(q, opts.siteId, opts.actorId, "watch.update", {
       spotId: spot.id,
       spot: spot.name,
@@ -74,9 +74,9 @@ export async function ensureColdWatch(opts: { siteId: number; spotId: number; ac
   }
   if (!existing.some((r) => r.kind === "silent")) {
     const [rule] = await q
-      .insert(alertRules)
+      .insert(watches)
       .values({ spotId: spot.id, kind: "silent", threshold: KINDS.silent.defaults.threshold, durationMinutes: 0, hysteresis: 0, clearMinutes: 0, reason: "A sensor that stops sending hides a cold night." })
-      .returning({ id: alertRules.id });
+      .returning({ id: watches.id });
     await audit(q, opts.siteId, opts.actorId, "watch.add", { spotId: spot.id, spot: spot.name, ruleId: rule.id, kind: "silent", automatic: true });
     added.push("silent");
   }
@@ -86,7 +86,7 @@ export async function ensureColdWatch(opts: { siteId: number; spotId: number; ac
 export async function addWatch(opts: { siteId: number; spot: { id: number; name: string }; actorId: number; kind: AlertKind; settings: WatchSettings; reason?: string }) {
   return db().transaction(async (tx) => {
     const [rule] = await tx
-      .insert(alertRules)
+      .insert(watches)
       .values({ spotId: opts.spot.id, kind: opts.kind, ...opts.settings, reason: opts.reason ?? "" })
       .returning();
     await audit(tx, opts.siteId, opts.actorId, "watch.add", { spotId: opts.spot.id, spot: opts.spot.name, ruleId: rule.id, kind: opts.kind, ...opts.settings });
@@ -95,24 +95,24 @@ export async function addWatch(opts: { siteId: number; spot: { id: number; name:
 }
 
 /** Saves new settings; a changed threshold is the owner's own, so the default's reason goes. */
-export async function updateWatch(opts: { siteId: number; spot: { id: number; name: string }; actorId: number; rule: AlertRule; settings: WatchSettings }) {
+export async function updateWatch(opts: { siteId: number; spot: { id: number; name: string }; actorId: number; rule: Watch; settings: WatchSettings }) {
   const { rule, settings } = opts;
   const changes: Record<string, [unknown, unknown]> = {};
   for (const k of SETTING_KEYS) if (rule[k] !== settings[k]) changes[k] = [rule[k], settings[k]];
   await db().transaction(async (tx) => {
     const changedThreshold = settings.threshold !== rule.threshold;
     await tx
-      .update(alertRules)
+      .update(watches)
       .set({ ...settings, reason: changedThreshold ? "" : rule.reason, pendingSince: null, clearingSince: null })
-      .where(eq(alertRules.id, rule.id));
+      .where(eq(watches.id, rule.id));
     await audit(tx, opts.siteId, opts.actorId, "watch.update", { spotId: opts.spot.id, spot: opts.spot.name, ruleId: rule.id, kind: rule.kind, changes });
   });
   return changes;
 }
 
-export async function deleteWatch(opts: { siteId: number; spot: { id: number; name: string }; actorId: number; rule: AlertRule }) {
+export async function deleteWatch(opts: { siteId: number; spot: { id: number; name: string }; actorId: number; rule: Watch }) {
   await db().transaction(async (tx) => {
-    await tx.delete(alertRules).where(eq(alertRules.id, opts.rule.id));
+    await tx.delete(watches).where(eq(watches.id, opts.rule.id));
     await audit(tx, opts.siteId, opts.actorId, "watch.delete", { spotId: opts.spot.id, spot: opts.spot.name, ruleId: opts.rule.id, kind: opts.rule.kind, threshold: opts.rule.threshold });
   });
 }
@@ -122,14 +122,14 @@ export async function deleteWatch(opts: { siteId: number; spot: { id: number; na
  * any more) and resets the state. The change is audited; pausing a cold-snap or silent-sensor watch
  * e-mails every owner of the site but the one who paused it.
  */
-export async function setWatchPaused(opts: { siteId: number; spot: { id: number; name: string }; actor: Actor; rule: AlertRule; paused: boolean; now?: Date }) {
+export async function setWatchPaused(opts: { siteId: number; spot: { id: number; name: string }; actor: Actor; rule: Watch; paused: boolean; now?: Date }) {
   const now = opts.now ?? new Date();
   const changed = await db().transaction(async (tx) => {
     const [row] = await tx
-      .update(alertRules)
+      .update(watches)
       .set({ paused: opts.paused, pendingSince: null, clearingSince: null, warnedAt: null })
-      .where(and(eq(alertRules.id, opts.rule.id), eq(alertRules.paused, !opts.paused)))
-      .returning({ id: alertRules.id });
+      .where(and(eq(watches.id, opts.rule.id), eq(watches.paused, !opts.paused)))
+      .returning({ id: watches.id });
     if (!row) return null; // already in that state: nothing to record or tell
     const closed = opts.paused
       ? await tx
@@ -157,7 +157,7 @@ const PAUSE_EFFECT: Partial<Record<AlertKind, string>> = {
   silent: "Silent-sensor alerts for this spot are off until someone resumes the watch: if its sensor stops sending, nobody will be told, and a cold night can pass unseen.",
 };
 
-async function tellOwnersOfPause(opts: { siteId: number; spot: { id: number; name: string }; actor: Actor; rule: AlertRule }, closedEvents: number) {
+async function tellOwnersOfPause(opts: { siteId: number; spot: { id: number; name: string }; actor: Actor; rule: Watch }, closedEvents: number) {
   const owners = await db()
     .select({ email: users.email })
     .from(memberships)

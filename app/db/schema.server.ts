@@ -281,8 +281,9 @@ export const alertKindEnum = pgEnum("alert_kind", [
   "battery",
 ]);
 
-export const alertRules = pgTable(
-  "alert_rules",
+// A watch: what the grower set on a spot (kind, threshold, how long) and its streaming state.
+export const watches = pgTable(
+  "watches",
   {
     id: serial().primaryKey(),
     spotId: integer()
@@ -315,7 +316,7 @@ export const alertEvents = pgTable(
     id: serial().primaryKey(),
     ruleId: integer()
       .notNull()
-      .references(() => alertRules.id, { onDelete: "cascade" }),
+      .references(() => watches.id, { onDelete: "cascade" }),
     spotId: integer()
       .notNull()
       .references(() => spots.id, { onDelete: "cascade" }),
@@ -388,7 +389,7 @@ export type Placement = typeof placements.$inferSelect;
 export type Role = (typeof roleEnum.enumValues)[number];
 export type Facing = (typeof facingEnum.enumValues)[number];
 export type HourlyRollupRow = typeof hourlyRollups.$inferSelect;
-export type AlertRule = typeof alertRules.$inferSelect;
+export type Watch = typeof watches.$inferSelect;
 export type AlertEvent = typeof alertEvents.$inferSelect;
 
 // Which alerts a member wants by e-mail, per site. Cold-snap alerts ignore quiet hours.
@@ -419,7 +420,7 @@ export const alertDeliveries = pgTable(
     userId: integer()
       .notNull()
       .references(() => users.id, { onDelete: "cascade" }),
-    message: text({ enum: ["open", "clear", "early"] }).notNull(),
+    message: text({ enum: ["open", "clear"] }).notNull(),
     sentAt: createdAt(),
   },
   (t) => [primaryKey({ columns: [t.eventId, t.userId, t.message] })],

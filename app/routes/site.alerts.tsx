@@ -1,12 +1,9 @@
 import { data, Form, Link, useFetcher } from "react-router";
 import { useEffect } from "react";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
-import { acknowledge, getPreferences, savePreferences, siteEvents } from "~/.server/alerts/queries";
+import { acknowledge, getPreferences, savePreferences, siteEvents, watchMarks } from "~/.server/alerts/queries";
 import { cleanText, readForm } from "~/.server/ids";
 import { getSite, listSpots } from "~/.server/sites";
-import { db } from "~/.server/db";
-import { alertRules } from "~/db/schema.server";
-import { inArray } from "drizzle-orm";
 import { useNow } from "~/components/use-now";
 import { formatDuration, formatValue } from "~/domain/alerts/messages";
 import { clockToMinute, minuteToClock } from "~/domain/alerts/quiet";
@@ -20,9 +17,7 @@ export const meta: Route.MetaFunction = () => [{ title: "Alerts · Nichewise" }]
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { siteId, role, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
   const [site, events, prefs, spotList] = await Promise.all([getSite(siteId), siteEvents(siteId, { limit: 50 }), getPreferences(user.id, siteId, role), listSpots(siteId)]);
-  const rules = spotList.length
-    ? await db().select({ spotId: alertRules.spotId, kind: alertRules.kind, paused: alertRules.paused }).from(alertRules).where(inArray(alertRules.spotId, spotList.map((s) => s.id)))
-    : [];
+  const rules = await watchMarks(spotList.map((s) => s.id));
   const watches = spotList.map((s) => ({ id: s.id, name: s.name, indoor: s.indoor, rules: rules.filter((r) => r.spotId === s.id) }));
   return { now: Date.now(), site, role, watches, unit: user.temperatureUnit, events, prefs: { ...prefs, quietFrom: minuteToClock(prefs.quietFrom), quietTo: minuteToClock(prefs.quietTo) } };
 }

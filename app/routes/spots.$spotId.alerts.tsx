@@ -5,7 +5,7 @@ import { readForm } from "~/.server/ids";
 import { getRule, listRules } from "~/.server/alerts/queries";
 import { getSpot } from "~/.server/sites";
 import { addWatch, deleteWatch, setWatchPaused, suggestedColdWatch, updateWatch } from "~/.server/watches";
-import type { AlertRule } from "~/db/schema.server";
+import type { Watch } from "~/db/schema.server";
 import { describeCondition, formatDuration } from "~/domain/alerts/messages";
 import { ALERT_KINDS, KINDS, type AlertKind } from "~/domain/alerts/rules";
 import { WatchState } from "~/components/watch-state";
@@ -99,7 +99,7 @@ export async function action({ request, params }: Route.ActionArgs) {
 const UNIT_LABEL = (k: AlertKind, unit: "C" | "F") =>
   ({ temperature: `°${unit}`, kelvin: `°${unit} above the dew point`, percent: "%", minutes: "minutes without a reading" })[KINDS[k].unit];
 
-function RuleFields({ kind, unit, rule, values, idPrefix }: { kind: AlertKind; unit: "C" | "F"; rule?: Pick<AlertRule, "threshold" | "durationMinutes" | "hysteresis" | "clearMinutes" | "earlyWarning">; values?: Values; idPrefix: string }) {
+function RuleFields({ kind, unit, rule, values, idPrefix }: { kind: AlertKind; unit: "C" | "F"; rule?: Pick<Watch, "threshold" | "durationMinutes" | "hysteresis" | "clearMinutes" | "earlyWarning">; values?: Values; idPrefix: string }) {
   const d = KINDS[kind].defaults;
   const v = (k: "threshold" | "durationMinutes" | "hysteresis" | "clearMinutes", fallback: number) => values?.[k] ?? String(fallback);
   const threshold = round1(toUnitValue(kind, rule?.threshold ?? d.threshold, unit));

@@ -580,7 +580,7 @@ async function startAlertsIfPresent(
     }
     for (const [kind, threshold] of [["cold", median(t)], ["dry", median(h)]] as const) {
       const res = await pool().query<{ id: number }>(
-        `INSERT INTO alert_rules (spot_id, kind, threshold, duration_minutes, hysteresis, clear_minutes) VALUES ($1, $2, $3, 20, 0.5, 20) RETURNING id`,
+        `INSERT INTO watches (spot_id, kind, threshold, duration_minutes, hysteresis, clear_minutes) VALUES ($1, $2, $3, 20, 0.5, 20) RETURNING id`,
         [spots[i].id, kind, threshold],
       );
       ruleIds.push(res.rows[0].id);
@@ -637,7 +637,7 @@ async function startAlertsIfPresent(
         let without = 0;
         let extra = 0;
         const defs = await q<{ id: number; spot_id: number; kind: "cold" | "dry"; threshold: number; duration_minutes: number; hysteresis: number; clear_minutes: number }>(
-          `SELECT id, spot_id, kind, threshold, duration_minutes, hysteresis, clear_minutes FROM alert_rules WHERE id = ANY($1::int[])`,
+          `SELECT id, spot_id, kind, threshold, duration_minutes, hysteresis, clear_minutes FROM watches WHERE id = ANY($1::int[])`,
           [ruleIds],
         );
         for (const d of defs) {

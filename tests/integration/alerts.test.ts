@@ -58,7 +58,7 @@ async function household() {
 
 async function coldWatch(spotId: number, extra: Partial<{ kind: string; threshold: number; duration: number; early: boolean }> = {}) {
   const res = await pool().query<{ id: number }>(
-    `INSERT INTO alert_rules (spot_id, kind, threshold, duration_minutes, hysteresis, clear_minutes, early_warning)
+    `INSERT INTO watches (spot_id, kind, threshold, duration_minutes, hysteresis, clear_minutes, early_warning)
      VALUES ($1, $2, $3, $4, 1, 30, $5) RETURNING id`,
     [spotId, extra.kind ?? "cold", extra.threshold ?? 10, extra.duration ?? 10, extra.early ?? true],
   );
@@ -168,7 +168,7 @@ describe("cold snap from the simulated front", () => {
     alerts = await start();
     const resent = mailsFor(spot.name).filter((m) => m.subject.startsWith("Silent"));
     expect(resent.map((m) => m.to[0])).toEqual([carer.email]);
-    await pool().query(`DELETE FROM alert_rules WHERE id = $1`, [silentRule]);
+    await pool().query(`DELETE FROM watches WHERE id = $1`, [silentRule]);
 
     await feed(sensor.id, series(from + 60 * MIN, Array(10).fill(12)));
     const clear = mailsFor(spot.name).filter((m) => m.subject.startsWith("All clear"));
@@ -249,7 +249,7 @@ describe("cold snap from the simulated front", () => {
     alerts = await start();
     await alerts.engine.idle();
     expect(mailsFor(spot.name).filter((m) => m.subject.startsWith("Cold snap"))).toHaveLength(2);
-    const rule = await pool().query<{ evaluated_to: Date }>(`SELECT evaluated_to FROM alert_rules WHERE id = $1`, [ruleId]);
+    const rule = await pool().query<{ evaluated_to: Date }>(`SELECT evaluated_to FROM watches WHERE id = $1`, [ruleId]);
     expect(rule.rows[0].evaluated_to.getTime()).toBe(from + 35 * MIN);
   });
 

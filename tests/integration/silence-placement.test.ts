@@ -31,7 +31,7 @@ async function watchedBench() {
   const site = await makeSite(user);
   const spot = await makeSpot(site, { indoor: false });
   await pool().query(
-    `INSERT INTO alert_rules (spot_id, kind, threshold, duration_minutes, hysteresis, clear_minutes) VALUES ($1, 'silent', 60, 0, 0, 0)`,
+    `INSERT INTO watches (spot_id, kind, threshold, duration_minutes, hysteresis, clear_minutes) VALUES ($1, 'silent', 60, 0, 0, 0)`,
     [spot.id],
   );
   return { user, site, spot };

@@ -11,7 +11,7 @@ import { invalidateSensorCache, sensorInfo } from "~/.server/ingest/sensors";
 import { sunkMail } from "~/.server/mail";
 import { seedAlerts } from "~/.server/seed-alerts";
 import { deleteSpot, updateSpot } from "~/.server/spots";
-import { alertEvents, alertRules, auditLog, spotPlants, users } from "~/db/schema.server";
+import { alertEvents, watches, auditLog, spotPlants, users } from "~/db/schema.server";
 import { PLANT_LIBRARY } from "~/domain/plants/library";
 import { action as siteAlertsAction } from "~/routes/site.alerts";
 import { action as spotAlertsAction, loader as spotAlertsLoader } from "~/routes/spots.$spotId.alerts";
@@ -65,7 +65,7 @@ async function household() {
 
 const placePlant = (h: { site: { id: number }; spot: { id: number } }, token: string, plantKey: string, spotId = h.spot.id) =>
   call(spotAction as Fn, post(token, `/sites/${h.site.id}/spots/${spotId}`, { intent: "plant-add", plantKey, nickname: "", pots: "1" }), { siteId: String(h.site.id), spotId: String(spotId) });
-const rulesOf = (spotId: number) => db().select().from(alertRules).where(eq(alertRules.spotId, spotId)).orderBy(alertRules.kind);
+const rulesOf = (spotId: number) => db().select().from(watches).where(eq(watches.spotId, spotId)).orderBy(watches.kind);
 const auditOf = async (siteId: number, prefix: string) =>
   (await db().select().from(auditLog).where(eq(auditLog.siteId, siteId)).orderBy(auditLog.id)).filter((a) => a.action.startsWith(prefix));
 

@@ -50,7 +50,7 @@ type RuleRow = {
 };
 
 const RULE_SELECT = `SELECT r.*, sp.name AS spot_name, sp.site_id, si.name AS site_name, si.time_zone
-  FROM alert_rules r JOIN spots sp ON sp.id = r.spot_id JOIN sites si ON si.id = sp.site_id`;
+  FROM watches r JOIN spots sp ON sp.id = r.spot_id JOIN sites si ON si.id = sp.site_id`;
 
 type Notice = { eventId: number; message: "open" | "clear" };
 
@@ -132,7 +132,7 @@ export class AlertEngine {
     if (this.retryTimer) return; // a retry is scheduled; it takes everything pending
     try {
       if (this.catchUpAll) {
-        const spots = await pool().query<{ spot_id: number }>(`SELECT DISTINCT spot_id FROM alert_rules WHERE NOT paused AND kind <> 'silent' AND evaluated_to IS NOT NULL`);
+        const spots = await pool().query<{ spot_id: number }>(`SELECT DISTINCT spot_id FROM watches WHERE NOT paused AND kind <> 'silent' AND evaluated_to IS NOT NULL`);
         for (const { spot_id } of spots.rows) this.markRederive(spot_id, null);
         this.catchUpAll = false;
       }
@@ -303,7 +303,7 @@ export class AlertEngine {
       if (next.open && openId != null) await c.query(`UPDATE alert_events SET peak = $2 WHERE id = $1`, [openId, next.open.peak]);
       stillOpen = next.open != null;
       await c.query(
-        `UPDATE alert_rules SET pending_since = $2, clearing_since = $3, evaluated_to = $5, warned_at = CASE WHEN $4 THEN NULL ELSE warned_at END WHERE id = $1`,
+        `UPDATE watches SET pending_since = $2, clearing_since = $3, evaluated_to = $5, warned_at = CASE WHEN $4 THEN NULL ELSE warned_at END WHERE id = $1`,
         [rule.id, next.pendingSince, next.clearingSince, cleared, next.cursor ?? null],
       );
       if (cleared) rule.warned_at = null;
@@ -348,13 +348,13 @@ export class AlertEngine {
       // Re-arm once the spot is clearly back and the line no longer points at the threshold.
       const settled = Date.now() - rule.warned_at.getTime() > rule.clear_minutes * this.minuteMs;
       if (!projection && settled && isBack(rule.kind, rule.threshold, rule.hysteresis, latest.value)) {
-        await pool().query(`UPDATE alert_rules SET warned_at = NULL WHERE id = $1 AND pending_since IS NULL`, [rule.id]);
+        await pool().query(`UPDATE watches SET warned_at = NULL WHERE id = $1 AND pending_since IS NULL`, [rule.id]);
       }
       return;
     }
     if (!projection) return;
     // The claim is the guard against a second warning: whoever sets warned_at sends it.
-    const claimed = await pool().query(`UPDATE alert_rules SET warned_at = now() WHERE id = $1 AND warned_at IS NULL AND NOT paused RETURNING id`, [rule.id]);
+    const claimed = await pool().query(`UPDATE watches SET warned_at = now() WHERE id = $1 AND warned_at IS NULL AND NOT paused RETURNING id`, [rule.id]);
     if (claimed.rowCount === 0) return;
     const open = await pool().query(`SELECT 1 FROM alert_events WHERE rule_id = $1 AND ended_at IS NULL`, [rule.id]);
     if ((open.rowCount ?? 0) > 0) return;
@@ -372,7 +372,7 @@ export class AlertEngine {
     // the moment that placement was made: a placement dated back (a logger's past year) or a last
     // reading from before the sensor came here is not silence in this spot.
     const rules = (await pool().query<RuleRow & { quiet_since: Date | null }>(
-      `${RULE_SELECT.replace("FROM alert_rules r", ", x.quiet_since FROM alert_rules r")}
+      `${RULE_SELECT.replace("FROM watches r", ", x.quiet_since FROM watches r")}
        JOIN LATERAL (SELECT max(greatest(s.last_seen_at, p.from_at, p.created_at)) AS quiet_since
          FROM placements p JOIN sensors s ON s.id = p.sensor_id WHERE p.spot_id = r.spot_id AND p.to_at IS NULL) x ON true
        WHERE r.kind = 'silent' AND NOT r.paused AND x.quiet_since IS NOT NULL`,
@@ -383,7 +383,7 @@ export class AlertEngine {
       if (minutes < rule.threshold) continue;
       let opened: number | null = null;
       await this.transaction(async (c) => {
-        await c.query(`SELECT id FROM alert_rules WHERE id = $1 FOR UPDATE`, [rule.id]);
+        await c.query(`SELECT id FROM watches WHERE id = $1 FOR UPDATE`, [rule.id]);
         const open = (await c.query<{ id: number }>(`SELECT id FROM alert_events WHERE rule_id = $1 AND ended_at IS NULL`, [rule.id])).rows[0];
         if (open) {
           await c.query(`UPDATE alert_events SET peak = $2 WHERE id = $1`, [open.id, minutes]);

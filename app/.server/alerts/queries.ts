@@ -1,22 +1,28 @@
 // What the alert pages read and change: rules of a spot, events of a site, the banner, preferences.
-import { and, desc, eq, isNull, sql } from "drizzle-orm";
+import { and, desc, eq, inArray, isNull, sql } from "drizzle-orm";
 import { data } from "react-router";
 import { notFound } from "~/.server/auth";
 import { openForecastWarnings } from "~/.server/alerts/forecast";
 import { defaultKinds } from "~/.server/alerts/store";
 import { db } from "~/.server/db";
 import { toId } from "~/.server/ids";
-import { alertEvents, alertPreferences, alertRules, spots, users, type Role } from "~/db/schema.server";
+import { alertEvents, alertPreferences, watches, spots, users, type Role } from "~/db/schema.server";
+
+/** Kind and pause of every watch of the spots, for the site's alerts page. */
+export async function watchMarks(spotIds: number[]) {
+  if (spotIds.length === 0) return [];
+  return db().select({ spotId: watches.spotId, kind: watches.kind, paused: watches.paused }).from(watches).where(inArray(watches.spotId, spotIds));
+}
 
 export async function listRules(spotId: number) {
-  return db().select().from(alertRules).where(eq(alertRules.spotId, spotId)).orderBy(alertRules.kind, alertRules.id);
+  return db().select().from(watches).where(eq(watches.spotId, spotId)).orderBy(watches.kind, watches.id);
 }
 
 /** The watch named by a form's ruleId: 400 when the field is malformed, 404 when not this spot's. */
 export async function getRule(spotId: number, ruleId: unknown) {
   const id = toId(ruleId);
   if (id === null) throw data("Choose a watch; reload the page and try again.", { status: 400 });
-  const [rule] = await db().select().from(alertRules).where(and(eq(alertRules.id, id), eq(alertRules.spotId, spotId)));
+  const [rule] = await db().select().from(watches).where(and(eq(watches.id, id), eq(watches.spotId, spotId)));
   if (!rule) notFound();
   return rule;
 }
@@ -33,14 +39,14 @@ export async function siteEvents(siteId: number, opts: { openOnly?: boolean; lim
       startedAt: alertEvents.startedAt,
       endedAt: alertEvents.endedAt,
       peak: alertEvents.peak,
-      threshold: alertRules.threshold,
+      threshold: watches.threshold,
       acknowledgedAt: alertEvents.acknowledgedAt,
       acknowledgedBy: users.name,
       notifiedAt: alertEvents.notifiedAt,
     })
     .from(alertEvents)
     .innerJoin(spots, eq(spots.id, alertEvents.spotId))
-    .innerJoin(alertRules, eq(alertRules.id, alertEvents.ruleId))
+    .innerJoin(watches, eq(watches.id, alertEvents.ruleId))
     .leftJoin(users, eq(users.id, alertEvents.acknowledgedBy))
     .where(and(eq(spots.siteId, siteId), opts.openOnly ? isNull(alertEvents.endedAt) : undefined))
     .orderBy(sql`${alertEvents.endedAt} IS NULL DESC`, desc(alertEvents.startedAt))
@@ -64,10 +70,10 @@ export async function acknowledge(siteId: number, eventId: unknown, userId: numb
 export async function alertBanner(siteId: number, now = new Date()) {
   const open = await siteEvents(siteId, { openOnly: true, limit: 10 });
   const warned = await db()
-    .select({ ruleId: alertRules.id, kind: alertRules.kind, spotId: spots.id, spotName: spots.name, threshold: alertRules.threshold, warnedAt: alertRules.warnedAt })
-    .from(alertRules)
-    .innerJoin(spots, eq(spots.id, alertRules.spotId))
-    .where(and(eq(spots.siteId, siteId), eq(alertRules.paused, false), sql`${alertRules.warnedAt} > now() - interval '3 hours'`));
+    .select({ ruleId: watches.id, kind: watches.kind, spotId: spots.id, spotName: spots.name, threshold: watches.threshold, warnedAt: watches.warnedAt })
+    .from(watches)
+    .innerJoin(spots, eq(spots.id, watches.spotId))
+    .where(and(eq(spots.siteId, siteId), eq(watches.paused, false), sql`${watches.warnedAt} > now() - interval '3 hours'`));
   const openRules = new Set(open.map((e) => `${e.spotId}:${e.kind}`));
   return {
     open: open.map((e) => ({ id: e.id, kind: e.kind, spotId: e.spotId, spotName: e.spotName, startedAt: e.startedAt.toISOString(), peak: e.peak, threshold: e.threshold, acknowledgedBy: e.acknowledgedBy })),
