@@ -6,7 +6,7 @@
 // Three windows: the hour (a front), the half hour (a front's first minutes, stricter), and three
 // hours with a lower rate and a longer horizon (a clear night's slow, steady drift to the line).
 import { linearRegression, linearRegressionLine, rSquared } from "simple-statistics";
-import type { AlertKind, Point } from "~/domain/alerts/rules";
+import { isPast, type AlertKind, type Point } from "~/domain/alerts/rules";
 
 export type Projection = { minutes: number; ratePerHour: number; fittedNow: number };
 
@@ -71,6 +71,25 @@ function fitWindow(kind: AlertKind, threshold: number, points: Point[], minuteMs
   const minutes = (threshold - fittedNow) / fit.m;
   if (!(minutes >= 0) || minutes > cfg.horizonMinutes) return null;
   return { minutes, ratePerHour, fittedNow };
+}
+
+/**
+ * The early warning a batch of fresh readings calls for: each reading of the batch in turn, as if
+ * they had come one by one, the newest projection winning, counted from the batch's last reading.
+ * Null when none projects a crossing, or the latest reading is already past the threshold (that is
+ * the alert's business, not a warning's). `history` sorted by time and covering the batch.
+ */
+export function projectBatch(kind: AlertKind, threshold: number, history: Point[], batch: Point[], minuteMs = 60_000): Projection | null {
+  if (batch.length === 0) return null;
+  const latest = batch[batch.length - 1];
+  let projection: Projection | null = null;
+  for (const b of batch) {
+    const upTo = history.filter((p) => p.at.getTime() <= b.at.getTime());
+    const p = projectCrossing(kind, threshold, upTo, minuteMs);
+    if (p) projection = { ...p, minutes: p.minutes - (latest.at.getTime() - b.at.getTime()) / minuteMs };
+  }
+  if (projection && (projection.minutes < 0 || isPast(kind, threshold, latest.value))) return null;
+  return projection;
 }
 
 /** "about 40 minutes": to the nearest 5 minutes past a quarter of an hour, never "0"; hours past 90 minutes. */
