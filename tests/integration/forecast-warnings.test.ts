@@ -2,6 +2,7 @@
 // night in its forecast), two weeks of simulated readings go through the real writer, the warning
 // pass runs the forecast through each spot's model and e-mails through nodemailer to the SMTP sink.
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
+import { fixedClock } from "~/.server/alerts/clock";
 import { ForecastWarnings, openForecastWarnings } from "~/.server/alerts/forecast";
 import { alertBanner } from "~/.server/alerts/queries";
 import { pool } from "~/.server/db";
@@ -87,7 +88,7 @@ const mailsAbout = (spotName: string) => sunkMail().filter((m) => m.subject.incl
 
 describe("forecast warnings", () => {
   it("warns owner and carer once, by e-mail and in the app, of a frost night 30 h ahead on a bench with a Cymbidium; a heated room gets none", async () => {
-    const runner = new ForecastWarnings({ now: () => NOW });
+    const runner = new ForecastWarnings({ clock: fixedClock(NOW) });
     const result = await runner.run(site.id);
     expect(result.warned).toBe(1);
 
@@ -126,8 +127,8 @@ describe("forecast warnings", () => {
 
   it("sends nothing new when run again on the same forecast, or an hour later", async () => {
     const before = sunkMail().length;
-    expect((await new ForecastWarnings({ now: () => NOW }).run(site.id)).warned).toBe(0);
-    expect((await new ForecastWarnings({ now: () => NOW + HOUR }).run()).warned).toBe(0);
+    expect((await new ForecastWarnings({ clock: fixedClock(NOW) }).run(site.id)).warned).toBe(0);
+    expect((await new ForecastWarnings({ clock: fixedClock(NOW + HOUR) }).run()).warned).toBe(0);
     expect(sunkMail().length).toBe(before);
   });
 
@@ -136,7 +137,7 @@ describe("forecast warnings", () => {
     const mild = await startWeatherFake({ now: () => later });
     try {
       await new WeatherJob({ endpoints: endpoints(mild), years: 1, perRound: 50, now: () => later }).untilIdle();
-      const result = await new ForecastWarnings({ now: () => later }).run(site.id);
+      const result = await new ForecastWarnings({ clock: fixedClock(later) }).run(site.id);
       expect(result.cleared).toBe(1);
       expect(result.warned).toBe(0);
     } finally {
@@ -152,7 +153,7 @@ describe("forecast warnings", () => {
     expect((await alertBanner(site.id, new Date(later))).forecast).toHaveLength(0);
     // And again: nothing more.
     const before = sunkMail().length;
-    await new ForecastWarnings({ now: () => later }).run(site.id);
+    await new ForecastWarnings({ clock: fixedClock(later) }).run(site.id);
     expect(sunkMail().length).toBe(before);
   });
 
@@ -167,7 +168,7 @@ describe("forecast warnings", () => {
       const room = await spotWithDays("Winter study", { kind: "heated-room", facing: "S", hasLight: false }, true, 104, "phalaenopsis", winter, home);
       expect((await projectedProfile(room.id, { now: new Date(winter) }))?.model?.heatingFloor).toBe(true);
       const before = sunkMail().length;
-      await new ForecastWarnings({ now: () => winter }).run(home.id);
+      await new ForecastWarnings({ clock: fixedClock(winter) }).run(home.id);
       expect(sunkMail().length).toBe(before);
       expect((await pool().query(`SELECT 1 FROM forecast_warnings WHERE spot_id = $1`, [room.id])).rowCount).toBe(0);
     } finally {

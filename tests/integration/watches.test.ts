@@ -5,7 +5,7 @@
 import { and, eq } from "drizzle-orm";
 import { describe, expect, it } from "vitest";
 import { createSession, generateSessionToken } from "~/.server/auth";
-import { siteRecipients } from "~/.server/alerts/store";
+import { siteRecipients } from "~/.server/alerts/recipients";
 import { db } from "~/.server/db";
 import { invalidateSensorCache, sensorInfo } from "~/.server/ingest/sensors";
 import { sunkMail } from "~/.server/mail";

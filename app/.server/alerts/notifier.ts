@@ -3,8 +3,9 @@
 // claim back when the send fails so the retry sends it. Alert events, early warnings and forecast
 // warnings all post their letters here.
 import { systemClock, type Clock } from "~/.server/alerts/clock";
+import { siteRecipients, type Recipient } from "~/.server/alerts/recipients";
 import * as store from "~/.server/alerts/store";
-import type { DeliveryMessage, Recipient, WatchInContext } from "~/.server/alerts/store";
+import type { DeliveryMessage, WatchInContext } from "~/.server/alerts/store";
 import { publicUrl } from "~/.server/env";
 import { sendMail } from "~/.server/mail";
 import { latestReading } from "~/.server/series";
@@ -70,7 +71,7 @@ export class Notifier {
   /** Sends the letter to each member it is for; true when no send failed. */
   async post(letter: Letter): Promise<boolean> {
     let failed = false;
-    for (const r of await store.siteRecipients(letter.siteId)) {
+    for (const r of await siteRecipients(letter.siteId)) {
       if (!r.wantsEmail || !letter.for(r)) continue;
       if (letter.claim && !(await letter.claim(r))) continue;
       const mail = letter.compose(r);

@@ -3,7 +3,7 @@ import { and, desc, eq, inArray, isNull, sql } from "drizzle-orm";
 import { data } from "react-router";
 import { notFound } from "~/.server/auth";
 import { openForecastWarnings } from "~/.server/alerts/forecast";
-import { defaultKinds } from "~/.server/alerts/store";
+import { defaultKinds } from "~/.server/alerts/recipients";
 import { db } from "~/.server/db";
 import { toId } from "~/.server/ids";
 import { alertEvents, alertPreferences, watches, spots, users, type Role } from "~/db/schema.server";

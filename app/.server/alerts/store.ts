@@ -1,26 +1,25 @@
-// The alert engine's one store: every read and write of the evaluator, the notifier, the silence
-// watcher and the forecast warnings' outbox, on the schema's own tables and inferred types. Drizzle's
+// The alerts' one store: every read and write of the evaluator, the notifier, the silence watcher
+// and the forecast warnings (watches, events, deliveries, forecast warnings, a spot's readings), on
+// the schema's own tables and inferred types (who gets the e-mails: recipients.ts). Drizzle's
 // query builder throughout; raw `sql` only for what it cannot say (calibrated values, greatest(),
 // epoch arithmetic). Times come from the caller's clock: nothing here reads the database's now().
-import { and, asc, eq, getTableColumns, gt, gte, inArray, isNotNull, isNull, lt, lte, ne, or, sql } from "drizzle-orm";
+import { and, asc, desc, eq, exists, getTableColumns, gt, gte, inArray, isNotNull, isNull, lt, lte, ne, or, sql } from "drizzle-orm";
 import { db, type Db } from "~/.server/db";
 import { calibratedSql } from "~/.server/ingest/calibrated";
 import {
   alertDeliveries,
   alertEvents,
-  alertPreferences,
-  memberships,
+  customPlants,
+  forecastWarnings,
   placements,
   readings,
   sensors,
   sites,
+  spotPlants,
   spots,
-  users,
   watches,
-  type Role,
   type Watch,
 } from "~/db/schema.server";
-import { ALERT_KINDS } from "~/domain/alerts/rules";
 
 /** The database or a transaction of it: every function reads and writes through either. */
 export type Tx = Db | Parameters<Parameters<Db["transaction"]>[0]>[0];
@@ -68,20 +67,14 @@ export async function evaluatedSpots(q: Tx = db()): Promise<number[]> {
 export type WatchState = { pendingSince: Date | null; clearingSince: Date | null; evaluatedTo: Date | null; clearWarning: boolean };
 
 export async function saveWatchState(q: Tx, id: number, s: WatchState) {
-  await q
-    .update(watches)
-    .set({ pendingSince: s.pendingSince, clearingSince: s.clearingSince, evaluatedTo: s.evaluatedTo, ...(s.clearWarning ? { warnedAt: null } : {}) })
-    .where(eq(watches.id, id));
+  const { clearWarning, ...state } = s;
+  await q.update(watches).set({ ...state, ...(clearWarning ? { warnedAt: null } : {}) }).where(eq(watches.id, id));
 }
 
 /** Claims the watch's early warning: whoever sets warnedAt sends it, so it goes once. */
 export async function claimWarning(id: number, now: Date, q: Tx = db()): Promise<boolean> {
-  const rows = await q
-    .update(watches)
-    .set({ warnedAt: now })
-    .where(and(eq(watches.id, id), isNull(watches.warnedAt), eq(watches.paused, false)))
-    .returning({ id: watches.id });
-  return rows.length > 0;
+  const claimed = and(eq(watches.id, id), isNull(watches.warnedAt), eq(watches.paused, false));
+  return (await q.update(watches).set({ warnedAt: now }).where(claimed).returning({ id: watches.id })).length > 0;
 }
 
 /** Re-arms the early warning, unless the condition has started holding meanwhile. */
@@ -92,12 +85,8 @@ export async function rearmWarning(id: number, q: Tx = db()) {
 // ---- events
 
 export async function openEvent(q: Tx, watchId: number): Promise<OpenEvent | undefined> {
-  const rows = await q
-    .select({ id: alertEvents.id, startedAt: alertEvents.startedAt, peak: alertEvents.peak })
-    .from(alertEvents)
-    .where(and(eq(alertEvents.ruleId, watchId), isNull(alertEvents.endedAt)))
-    .orderBy(sql`${alertEvents.startedAt} DESC`)
-    .limit(1);
+  const open = and(eq(alertEvents.ruleId, watchId), isNull(alertEvents.endedAt));
+  const rows = await q.select({ id: alertEvents.id, startedAt: alertEvents.startedAt, peak: alertEvents.peak }).from(alertEvents).where(open).orderBy(desc(alertEvents.startedAt)).limit(1);
   return rows[0];
 }
 
@@ -117,11 +106,8 @@ export async function closeEvent(q: Tx, id: number, endedAt: Date, peak: number)
 /** Closes the watch's open silence, if any, its peak at least the minutes it lasted. */
 export async function closeSilence(watchId: number, now: Date, q: Tx = db()): Promise<number[]> {
   const lasted = sql`extract(epoch FROM ${now.toISOString()}::timestamptz - ${alertEvents.startedAt}) / 60`;
-  const rows = await q
-    .update(alertEvents)
-    .set({ endedAt: now, peak: sql`greatest(${alertEvents.peak}, ${lasted})` })
-    .where(and(eq(alertEvents.ruleId, watchId), isNull(alertEvents.endedAt)))
-    .returning({ id: alertEvents.id });
+  const open = and(eq(alertEvents.ruleId, watchId), isNull(alertEvents.endedAt));
+  const rows = await q.update(alertEvents).set({ endedAt: now, peak: sql`greatest(${alertEvents.peak}, ${lasted})` }).where(open).returning({ id: alertEvents.id });
   return rows.map((r) => r.id);
 }
 
@@ -145,31 +131,22 @@ export async function undeliveredEvents(since: Date, q: Tx = db()): Promise<{ id
 }
 
 export async function markNotified(id: number, message: DeliveryMessage, now: Date, q: Tx = db()) {
-  await q
-    .update(alertEvents)
-    .set(message === "open" ? { notifiedAt: now } : { clearNotifiedAt: now })
-    .where(eq(alertEvents.id, id));
+  await q.update(alertEvents).set(message === "open" ? { notifiedAt: now } : { clearNotifiedAt: now }).where(eq(alertEvents.id, id));
 }
 
 // ---- deliveries: one row per event, member and message, claimed before the e-mail goes
 
 export async function claimDelivery(eventId: number, userId: number, message: DeliveryMessage, q: Tx = db()): Promise<boolean> {
-  const rows = await q.insert(alertDeliveries).values({ eventId, userId, message }).onConflictDoNothing().returning({ eventId: alertDeliveries.eventId });
-  return rows.length > 0;
+  return (await q.insert(alertDeliveries).values({ eventId, userId, message }).onConflictDoNothing().returning({ eventId: alertDeliveries.eventId })).length > 0;
 }
 
 export async function releaseDelivery(eventId: number, userId: number, message: DeliveryMessage, q: Tx = db()) {
-  await q
-    .delete(alertDeliveries)
-    .where(and(eq(alertDeliveries.eventId, eventId), eq(alertDeliveries.userId, userId), eq(alertDeliveries.message, message)));
+  await q.delete(alertDeliveries).where(and(eq(alertDeliveries.eventId, eventId), eq(alertDeliveries.userId, userId), eq(alertDeliveries.message, message)));
 }
 
 /** Members who were sent the event's opening: the only ones to get its all-clear. */
 export async function heardOpen(eventId: number, q: Tx = db()): Promise<Set<number>> {
-  const rows = await q
-    .select({ userId: alertDeliveries.userId })
-    .from(alertDeliveries)
-    .where(and(eq(alertDeliveries.eventId, eventId), eq(alertDeliveries.message, "open")));
+  const rows = await q.select({ userId: alertDeliveries.userId }).from(alertDeliveries).where(and(eq(alertDeliveries.eventId, eventId), eq(alertDeliveries.message, "open")));
   return new Set(rows.map((r) => r.userId));
 }
 
@@ -226,53 +203,88 @@ export async function silentWatches(q: Tx = db()): Promise<(WatchInContext & { q
   return rows.map((r) => ({ ...r, quietSince: new Date(r.quietSince) }));
 }
 
-// ---- recipients
+// ---- forecast warnings: one row per spot and night, the e-mails claimed on the row
 
-export type Recipient = {
-  userId: number;
-  email: string;
-  unit: "C" | "F";
-  wantsEmail: boolean;
-  kinds: string[];
-  quietFrom: number | null;
-  quietTo: number | null;
-};
+export type ForecastWarning = typeof forecastWarnings.$inferSelect;
+export type ForecastSpot = { id: number; name: string; indoor: boolean; siteId: number; siteName: string; timeZone: string };
+/** A night's figures as stored: the plant's line and the forecast's lows. */
+export type NightFigures = Pick<ForecastWarning, "plantName" | "damageC" | "likelyC" | "expectedLowC" | "lowerBoundC" | "leafLowC" | "lowAt" | "forecastAt">;
 
-/**
- * What a member who never chose gets by e-mail. Owners and carers look after the plants, so they
- * get every kind; a mentor advises from afar and hears of cold snaps and silent sensors only when
- * they tick them (the alerts page's e-mail settings): otherwise a mentor far away is woken for a
- * frost nobody asked them to act on.
- */
-export function defaultKinds(role: Role): string[] {
-  return role === "mentor" ? ALERT_KINDS.filter((k) => k !== "cold" && k !== "silent") : ALERT_KINDS;
+const fw = forecastWarnings;
+const stillWarned = (spotId: number) => and(eq(fw.spotId, spotId), isNull(fw.endedAt), isNull(fw.clearedAt));
+
+/** Spots of the site (or every site) with placed plants or a warning still standing. */
+export function forecastSpots(siteId: number | null, q: Tx = db()): Promise<ForecastSpot[]> {
+  const planted = q.select({ one: sql`1` }).from(spotPlants).where(eq(spotPlants.spotId, spots.id));
+  const warned = q.select({ one: sql`1` }).from(fw).where(and(eq(fw.spotId, spots.id), isNull(fw.endedAt)));
+  return q
+    .select({ id: spots.id, name: spots.name, indoor: spots.indoor, siteId: spots.siteId, siteName: sites.name, timeZone: sites.timeZone })
+    .from(spots)
+    .innerJoin(sites, eq(sites.id, spots.siteId))
+    .where(and(siteId === null ? undefined : eq(spots.siteId, siteId), or(exists(planted), exists(warned))))
+    .orderBy(asc(spots.id));
 }
 
-/** Every member of the site with their alert preferences (defaults for their role when they never saved any). */
-export async function siteRecipients(siteId: number, q: Tx = db()): Promise<Recipient[]> {
-  const rows = await q
-    .select({
-      userId: users.id,
-      email: users.email,
-      unit: users.temperatureUnit,
-      role: memberships.role,
-      wants: alertPreferences.email,
-      kinds: alertPreferences.kinds,
-      quietFrom: alertPreferences.quietFrom,
-      quietTo: alertPreferences.quietTo,
+export async function plantsOfSpot(spotId: number, siteId: number, q: Tx = db()) {
+  const placed = await q.select({ plantKey: spotPlants.plantKey }).from(spotPlants).where(eq(spotPlants.spotId, spotId));
+  if (placed.length === 0) return { placed: [], custom: [] };
+  const custom = await q.select({ key: customPlants.key, profile: customPlants.profile }).from(customPlants).where(eq(customPlants.siteId, siteId));
+  return { placed: placed.map((p) => p.plantKey), custom };
+}
+
+/** Ends the spot's standing warnings (all, or those whose low came before `lowBefore`): no longer shown, no all-clear. */
+export async function endForecastWarnings(spotId: number, at: Date, lowBefore?: Date, q: Tx = db()) {
+  await q.update(fw).set({ endedAt: at }).where(and(eq(fw.spotId, spotId), isNull(fw.endedAt), lowBefore ? lt(fw.lowAt, lowBefore) : undefined));
+}
+
+export function standingWarnings(spotId: number, q: Tx = db()): Promise<ForecastWarning[]> {
+  return q.select().from(fw).where(stillWarned(spotId));
+}
+
+/** A new warned night, or one cleared (or ended) that crosses again; null when it stands already. */
+export async function openForecastWarning(spotId: number, night: string, f: NightFigures, at: Date, q: Tx = db()): Promise<number | null> {
+  const [row] = await q
+    .insert(fw)
+    .values({ spotId, night, ...f, openedAt: at })
+    .onConflictDoUpdate({
+      target: [fw.spotId, fw.night],
+      set: { ...f, openedAt: at, notifiedAt: null, clearedAt: null, clearNotifiedAt: null, endedAt: null },
+      setWhere: or(isNotNull(fw.clearedAt), isNotNull(fw.endedAt)),
     })
-    .from(memberships)
-    .innerJoin(users, eq(users.id, memberships.userId))
-    .leftJoin(alertPreferences, and(eq(alertPreferences.userId, memberships.userId), eq(alertPreferences.siteId, memberships.siteId)))
-    .where(eq(memberships.siteId, siteId))
-    .orderBy(asc(users.id));
-  return rows.map((r) => ({
-    userId: r.userId,
-    email: r.email,
-    unit: r.unit,
-    wantsEmail: r.wants ?? true,
-    kinds: r.kinds ?? defaultKinds(r.role),
-    quietFrom: r.quietFrom,
-    quietTo: r.quietTo,
-  }));
+    .returning({ id: fw.id });
+  return row?.id ?? null;
+}
+
+/** Updates a standing warning's figures (cleared too when `clearedAt` is given); false when none stands. */
+export async function updateForecastWarning(spotId: number, night: string, f: Partial<NightFigures> & { clearedAt?: Date }, q: Tx = db()): Promise<boolean> {
+  return (await q.update(fw).set(f).where(and(stillWarned(spotId), eq(fw.night, night))).returning({ id: fw.id })).length > 0;
+}
+
+/** Warnings and all-clears of the spot not yet e-mailed, oldest first. */
+export async function unsentForecastMessages(spotId: number, q: Tx = db()): Promise<(ForecastWarning & { message: "warn" | "clear" })[]> {
+  const unsent = or(and(isNull(fw.clearedAt), isNull(fw.notifiedAt)), and(isNotNull(fw.clearedAt), isNull(fw.clearNotifiedAt)));
+  const rows = await q.select().from(fw).where(and(eq(fw.spotId, spotId), isNull(fw.endedAt), unsent)).orderBy(asc(fw.id));
+  return rows.map((r) => ({ ...r, message: r.clearedAt ? "clear" : "warn" }));
+}
+
+/** Claims the warning's e-mail (or its all-clear's): whoever sets the column sends it. */
+export async function claimForecastMessage(id: number, message: "warn" | "clear", at: Date, q: Tx = db()): Promise<boolean> {
+  const [column, set] = message === "warn" ? [fw.notifiedAt, { notifiedAt: at }] : [fw.clearNotifiedAt, { clearNotifiedAt: at }];
+  return (await q.update(fw).set(set).where(and(eq(fw.id, id), isNull(column))).returning({ id: fw.id })).length > 0;
+}
+
+/** Gives the claim back after a failed send: the next pass sends it again. */
+export async function releaseForecastMessage(id: number, message: "warn" | "clear", q: Tx = db()) {
+  await q.update(fw).set(message === "warn" ? { notifiedAt: null } : { clearNotifiedAt: null }).where(eq(fw.id, id));
+}
+
+/** Standing warnings of a site whose night is still to come or under way (low after `lowAfter`). */
+export function siteForecastWarnings(siteId: number, lowAfter: Date, q: Tx = db()) {
+  return q
+    .select({ ...getTableColumns(fw), spotName: spots.name })
+    .from(fw)
+    .innerJoin(spots, eq(spots.id, fw.spotId))
+    .where(and(eq(spots.siteId, siteId), isNull(fw.endedAt), isNull(fw.clearedAt), gt(fw.lowAt, lowAfter)))
+    .orderBy(asc(fw.lowAt))
+    .limit(10);
 }
