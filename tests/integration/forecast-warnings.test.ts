@@ -3,6 +3,7 @@
 // pass runs the forecast through each spot's model and e-mails through nodemailer to the SMTP sink.
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { fixedClock } from "~/.server/alerts/clock";
+import { Notifier } from "~/.server/alerts/notifier";
 import { ForecastWarnings, openForecastWarnings } from "~/.server/alerts/forecast";
 import { alertBanner } from "~/.server/alerts/queries";
 import { pool } from "~/.server/db";
@@ -88,11 +89,18 @@ const mailsAbout = (spotName: string) => sunkMail().filter((m) => m.subject.incl
 
 describe("forecast warnings", () => {
   it("warns owner and carer once, by e-mail and in the app, of a frost night 30 h ahead on a bench with a Cymbidium; a heated room gets none", async () => {
-    const runner = new ForecastWarnings({ clock: fixedClock(NOW) });
+    // The e-mails go through the alerts' one outbox, the notifier the engine's events use.
+    const posted: { source: string; to: string; subject: string }[] = [];
+    const notifier = new Notifier({ clock: fixedClock(NOW), onSent: (letter, to, mail) => posted.push({ source: letter.source, to: to.email, subject: mail.subject }) });
+    const runner = new ForecastWarnings({ notifier });
     const result = await runner.run(site.id);
     expect(result.warned).toBe(1);
 
     const mails = mailsAbout(bench.name);
+    expect(posted.map((p) => ({ ...p, to: [p.to] }))).toEqual(mails.map((m) => ({ source: "forecast", to: m.to, subject: m.subject })));
+    // Claimed on the row at the outbox clock's instant.
+    const claimed = await pool().query<{ notified_at: Date }>(`SELECT notified_at FROM forecast_warnings WHERE spot_id = $1`, [bench.id]);
+    expect(claimed.rows[0].notified_at).toEqual(new Date(NOW));
     // Owner, carer and the mentor who opted in; not the mentor who left cold-snap alerts unticked (the default for mentors).
     expect(mails.map((m) => m.to[0]).sort()).toEqual([owner.email, carer.email, keenMentor.email].sort());
     const text = plain(mails[0]);

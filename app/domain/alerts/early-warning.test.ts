@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { coldFrontScenario, DEMO_SITE, generate } from "../../../simulator/model";
-import { projectCrossing, roundMinutes } from "./early-warning";
+import { projectBatch, projectCrossing, roundMinutes } from "./early-warning";
 import type { Point } from "./rules";
 
 const MIN = 60_000;
@@ -114,3 +114,21 @@ describe("projectCrossing", () => {
   });
 });
 
+
+describe("projectBatch", () => {
+  const fall = (from: number, n: number) => Array.from({ length: n }, (_, i) => ({ at: new Date(from + i * 5 * MIN), value: 13 - (3 * i * 5) / 60 }));
+
+  it("counts the crossing from the batch's last reading, however the readings were batched", () => {
+    const pts = fall(T0, 13); // 13 °C falling 3 °C an hour: 10 °C after an hour
+    const oneByOne = projectCrossing("cold", 8, pts)!;
+    const batched = projectBatch("cold", 8, pts, pts.slice(-4))!;
+    expect(batched.minutes).toBeCloseTo(oneByOne.minutes, 6);
+    expect(batched.minutes).toBeCloseTo(40, 0);
+  });
+
+  it("gives nothing once the latest reading is past the line: that is the alert's business", () => {
+    const pts = fall(T0, 25); // down to 7 °C
+    expect(projectBatch("cold", 8, pts, pts.slice(-3))).toBeNull();
+    expect(projectBatch("cold", 8, pts, [])).toBeNull();
+  });
+});
