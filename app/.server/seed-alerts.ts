@@ -1,6 +1,6 @@
 // Demo alerts: the default cold watch (and a silent-sensor watch) on every outdoor spot of the demo
 // site that has plants in it, as placing them would have made. Empty spots get none.
-import { outdoorSpotIds } from "~/.server/alerts/queries";
+import { outdoorSpotIds } from "~/.server/alerts/pages";
 import { ensureColdWatch } from "~/.server/watches";
 
 export async function seedAlerts(siteId: number, log: (s: string) => void = console.log) {

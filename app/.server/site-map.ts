@@ -6,7 +6,7 @@ import { db } from "~/.server/db";
 import { fitsFor, judgedPeriods, parseGlazing, spotProfiles, windowOf, glassContextFor } from "~/.server/profiles";
 import { siteInventory, siteWishlist, sitePlants } from "~/.server/plants";
 import { listSpots } from "~/.server/sites";
-import { siteEvents } from "~/.server/alerts/queries";
+import { siteEvents } from "~/.server/alerts/pages";
 import { listNotes } from "~/.server/notes";
 import { GLAZING_U } from "~/domain/climate/glass";
 import type { GlassContext } from "~/domain/fit/cold-glass";

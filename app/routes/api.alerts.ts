@@ -1,5 +1,5 @@
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
-import { alertBanner } from "~/.server/alerts/queries";
+import { alertBanner } from "~/.server/alerts/pages";
 import type { Route } from "./+types/api.alerts";
 
 export async function loader({ request, params }: Route.LoaderArgs) {

@@ -1,7 +1,7 @@
 import { data, Form, Link, useFetcher } from "react-router";
 import { useEffect } from "react";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
-import { acknowledge, getPreferences, savePreferences, siteEvents, watchMarks } from "~/.server/alerts/queries";
+import { acknowledge, getPreferences, savePreferences, siteEvents, watchMarks } from "~/.server/alerts/pages";
 import { cleanText, readForm } from "~/.server/ids";
 import { getSite, listSpots } from "~/.server/sites";
 import { useNow } from "~/components/use-now";

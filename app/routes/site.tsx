@@ -1,7 +1,7 @@
 import { Link, Outlet, useLocation } from "react-router";
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
 import { getSite } from "~/.server/sites";
-import { alertBanner } from "~/.server/alerts/queries";
+import { alertBanner } from "~/.server/alerts/pages";
 import { AlertBanner } from "~/components/alert-banner";
 import type { Route } from "./+types/site";
 

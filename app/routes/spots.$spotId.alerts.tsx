@@ -2,7 +2,7 @@ import { data, Form, Link, useNavigation } from "react-router";
 import * as units from "~/lib/units";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
 import { readForm } from "~/.server/ids";
-import { getRule, listRules } from "~/.server/alerts/queries";
+import { getRule, listRules } from "~/.server/alerts/pages";
 import { getSpot } from "~/.server/sites";
 import { addWatch, deleteWatch, setWatchPaused, suggestedColdWatch, updateWatch } from "~/.server/watches";
 import type { Watch } from "~/db/schema.server";

@@ -5,7 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { fixedClock } from "~/.server/alerts/clock";
 import { Notifier } from "~/.server/alerts/notifier";
 import { ForecastWarnings, openForecastWarnings } from "~/.server/alerts/forecast";
-import { alertBanner } from "~/.server/alerts/queries";
+import { alertBanner } from "~/.server/alerts/pages";
 import { pool } from "~/.server/db";
 import { projectedProfile } from "~/.server/projections";
 import { ReadingWriter } from "~/.server/ingest/writer";

@@ -1,5 +1,6 @@
-// What the alert pages read and change: rules of a spot, events of a site, the banner, preferences.
-import { and, desc, eq, inArray, isNull, sql } from "drizzle-orm";
+// What the alert pages read and change: watches of a spot, events of a site, the banner on every
+// site page, members' alert e-mail preferences. (The engine's own reads and writes: store.ts.)
+import { and, desc, eq, gt, inArray, isNull, sql } from "drizzle-orm";
 import { data } from "react-router";
 import { notFound } from "~/.server/auth";
 import { openForecastWarnings } from "~/.server/alerts/forecast";
@@ -66,6 +67,9 @@ export async function acknowledge(siteId: number, eventId: unknown, userId: numb
   if (!ev.acknowledgedAt) await db().update(alertEvents).set({ acknowledgedBy: userId, acknowledgedAt: new Date() }).where(eq(alertEvents.id, id));
 }
 
+/** How long an early warning stays on the banner. */
+const WARNING_SHOWN_MS = 3 * 3_600_000;
+
 /** Open events and live early warnings of a site, for the banner. */
 export async function alertBanner(siteId: number, now = new Date()) {
   const open = await siteEvents(siteId, { openOnly: true, limit: 10 });
@@ -73,7 +77,7 @@ export async function alertBanner(siteId: number, now = new Date()) {
     .select({ ruleId: watches.id, kind: watches.kind, spotId: spots.id, spotName: spots.name, threshold: watches.threshold, warnedAt: watches.warnedAt })
     .from(watches)
     .innerJoin(spots, eq(spots.id, watches.spotId))
-    .where(and(eq(spots.siteId, siteId), eq(watches.paused, false), sql`${watches.warnedAt} > now() - interval '3 hours'`));
+    .where(and(eq(spots.siteId, siteId), eq(watches.paused, false), gt(watches.warnedAt, new Date(now.getTime() - WARNING_SHOWN_MS))));
   const openRules = new Set(open.map((e) => `${e.spotId}:${e.kind}`));
   return {
     open: open.map((e) => ({ id: e.id, kind: e.kind, spotId: e.spotId, spotName: e.spotName, startedAt: e.startedAt.toISOString(), peak: e.peak, threshold: e.threshold, acknowledgedBy: e.acknowledgedBy })),
