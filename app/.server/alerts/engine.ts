@@ -131,7 +131,7 @@ export class AlertEngine {
       this.settled = [];
       waiting.forEach((f) => f());
     } catch (err) {
-      console.error(`[alerts] evaluation failed, ${this.pendingCount} readings kept; retrying in ${this.retryDelay} ms:`, err instanceof Error ? err.message : err);
+      console.error(`[alerts] evaluation failed, ${this.pendingCount} readings kept; retrying in ${this.retryDelay} ms:`, store.failure(err));
       this.retryTimer = setTimeout(() => {
         this.retryTimer = null;
         void this.enqueue(() => this.flush());

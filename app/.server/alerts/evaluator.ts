@@ -131,7 +131,7 @@ export class Evaluator {
       for (const n of notices) await this.o.notifier.deliverEvent(n.eventId, n.message);
       if (!stillOpen && fresh.length > 0) await this.earlyWarning(watch, fresh);
     } catch (err) {
-      console.error("[alerts] notice not sent (the timer retries it):", err instanceof Error ? err.message : err);
+      console.error("[alerts] notice not sent (the timer retries it):", store.failure(err));
     }
   }
 

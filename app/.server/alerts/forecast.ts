@@ -97,7 +97,7 @@ export class ForecastWarnings {
         result.warned += r.warned;
         result.cleared += r.cleared;
       } catch (err) {
-        console.error(`[forecast] spot ${spot.id} not checked:`, err instanceof Error ? err.message : err);
+        console.error(`[forecast] spot ${spot.id} not checked:`, store.failure(err));
       }
     }
     return result;
@@ -204,7 +204,7 @@ export async function openForecastWarnings(siteId: number, now = new Date()) {
 export function startForecastWarnings(opts: ForecastWarningsOptions & { everyMs?: number } = {}) {
   const runner = new ForecastWarnings(opts);
   const tick = () => {
-    runner.run().catch((err) => console.error("[forecast] pass failed:", err instanceof Error ? err.message : err));
+    runner.run().catch((err) => console.error("[forecast] pass failed:", store.failure(err)));
   };
   const timer = setInterval(tick, opts.everyMs ?? 30 * 60_000);
   timer.unref();

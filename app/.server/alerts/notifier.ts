@@ -81,7 +81,7 @@ export class Notifier {
       } catch (err) {
         failed = true;
         await letter.release?.(r);
-        console.error(`[alerts] ${letter.source} e-mail to ${r.email} not sent${letter.release ? " (will retry)" : ""}:`, err instanceof Error ? err.message : err);
+        console.error(`[alerts] ${letter.source} e-mail to ${r.email} not sent${letter.release ? " (will retry)" : ""}:`, store.failure(err));
       }
     }
     return !failed;

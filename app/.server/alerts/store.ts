@@ -288,3 +288,9 @@ export function siteForecastWarnings(siteId: number, lowAfter: Date, q: Tx = db(
     .orderBy(asc(fw.lowAt))
     .limit(10);
 }
+
+/** What went wrong, for the log: the driver's own message (Drizzle wraps it with the whole statement). */
+export function failure(err: unknown): unknown {
+  if (!(err instanceof Error)) return err;
+  return err.cause instanceof Error ? err.cause.message : err.message;
+}
