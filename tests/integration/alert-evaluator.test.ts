@@ -49,7 +49,7 @@ const evaluator = (clock: Clock) => new Evaluator({ clock, notifier: new Notifie
 const mailsAbout = (spotName: string) => sunkMail().filter((m) => m.subject.includes(spotName));
 
 describe("evaluator", () => {
-  it("opens one event at the start of a cold spell and clears it once back for the watch's minutes, e-mailing both members each time, on its clock", async () => {
+  it("opens one event at a cold spell's start, clears it once back for the watch's minutes, e-mails both members each time, on its clock", async () => {
     const h = await household();
     const w = await watch(h.spot.id, { threshold: 10, early: false });
     // 12 °C for 25 minutes, 8 °C for 40, then 13 °C for an hour: below the line from BASE + 25 min.

@@ -26,7 +26,8 @@ describe("silence watcher", () => {
     const sensor = await makeSensor(site, spot);
     const quietSince = new Date(Math.floor(Date.now() / MIN) * MIN);
     await db().update(sensors).set({ lastSeenAt: quietSince }).where(eq(sensors.id, sensor.id));
-    const [w] = await db().insert(watches).values({ spotId: spot.id, kind: "silent", threshold: 60, durationMinutes: 0, hysteresis: 0, clearMinutes: 0 }).returning();
+    const silent = { spotId: spot.id, kind: "silent" as const, threshold: 60, durationMinutes: 0, hysteresis: 0, clearMinutes: 0 };
+    const [w] = await db().insert(watches).values(silent).returning();
 
     const clock = fixedClock(quietSince.getTime() + 59 * MIN);
     const watcher = new SilenceWatcher({ clock, notifier: new Notifier({ clock }) });

@@ -78,7 +78,8 @@ describe("watches migration", () => {
       `SELECT conname AS name FROM pg_constraint WHERE conrelid IN ('watches'::regclass, 'alert_events'::regclass)
        UNION SELECT indexname FROM pg_indexes WHERE tablename = 'watches' ORDER BY 1`,
     )).map((r) => r.name);
-    expect(names).toEqual(expect.arrayContaining(["watches_pkey", "watches_spot_id_spots_id_fk", "alert_events_rule_id_watches_id_fk", "watches_spot_id_index"]));
+    const expected = ["watches_pkey", "watches_spot_id_spots_id_fk", "alert_events_rule_id_watches_id_fk", "watches_spot_id_index"];
+    expect(names).toEqual(expect.arrayContaining(expected));
     expect(names.filter((n) => n.includes("alert_rules"))).toEqual([]);
     // Deleting a watch still removes its events (the foreign key kept its cascade).
     await q(`DELETE FROM watches WHERE id = $1`, [rule.id]);

@@ -121,7 +121,8 @@ export class Evaluator {
       }
       if (next.open && openId != null) await store.setEventPeak(tx, openId, next.open.peak);
       stillOpen = next.open != null;
-      await store.saveWatchState(tx, w.id, { pendingSince: next.pendingSince, clearingSince: next.clearingSince, evaluatedTo: next.cursor ?? null, clearWarning: cleared });
+      const saved = { pendingSince: next.pendingSince, clearingSince: next.clearingSince, evaluatedTo: next.cursor ?? null, clearWarning: cleared };
+      await store.saveWatchState(tx, w.id, saved);
       if (cleared) w.warnedAt = null;
     });
     if (!watch) return;

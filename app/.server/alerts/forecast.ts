@@ -149,7 +149,8 @@ export class ForecastWarnings {
     for (const key of plan.clear) {
       const n = forecast.nights.find((x) => x.key === key)!;
       const likely = Math.min(n.lowerBound, n.leafLow ?? Number.POSITIVE_INFINITY);
-      const night = { clearedAt: at, likelyC: likely, expectedLowC: n.expectedLow, lowerBoundC: n.lowerBound, leafLowC: n.leafLow, lowAt: n.at, forecastAt: forecast.forecastAt };
+      const lows = { likelyC: likely, expectedLowC: n.expectedLow, lowerBoundC: n.lowerBound, leafLowC: n.leafLow };
+      const night = { clearedAt: at, ...lows, lowAt: n.at, forecastAt: forecast.forecastAt };
       if (await store.updateForecastWarning(spot.id, key, night)) {
         cleared++;
         this.log(`Forecast all-clear for ${spot.name}: night of ${key} now likely ${likely.toFixed(1)} °C`);

@@ -86,8 +86,8 @@ export async function rearmWarning(id: number, q: Tx = db()) {
 
 export async function openEvent(q: Tx, watchId: number): Promise<OpenEvent | undefined> {
   const open = and(eq(alertEvents.ruleId, watchId), isNull(alertEvents.endedAt));
-  const rows = await q.select({ id: alertEvents.id, startedAt: alertEvents.startedAt, peak: alertEvents.peak }).from(alertEvents).where(open).orderBy(desc(alertEvents.startedAt)).limit(1);
-  return rows[0];
+  const columns = { id: alertEvents.id, startedAt: alertEvents.startedAt, peak: alertEvents.peak };
+  return (await q.select(columns).from(alertEvents).where(open).orderBy(desc(alertEvents.startedAt)).limit(1))[0];
 }
 
 export async function insertEvent(q: Tx, w: Pick<Watch, "id" | "spotId" | "kind">, startedAt: Date, peak: number): Promise<number> {
@@ -107,7 +107,8 @@ export async function closeEvent(q: Tx, id: number, endedAt: Date, peak: number)
 export async function closeSilence(watchId: number, now: Date, q: Tx = db()): Promise<number[]> {
   const lasted = sql`extract(epoch FROM ${now.toISOString()}::timestamptz - ${alertEvents.startedAt}) / 60`;
   const open = and(eq(alertEvents.ruleId, watchId), isNull(alertEvents.endedAt));
-  const rows = await q.update(alertEvents).set({ endedAt: now, peak: sql`greatest(${alertEvents.peak}, ${lasted})` }).where(open).returning({ id: alertEvents.id });
+  const peak = sql<number>`greatest(${alertEvents.peak}, ${lasted})`;
+  const rows = await q.update(alertEvents).set({ endedAt: now, peak }).where(open).returning({ id: alertEvents.id });
   return rows.map((r) => r.id);
 }
 
@@ -137,7 +138,8 @@ export async function markNotified(id: number, message: DeliveryMessage, now: Da
 // ---- deliveries: one row per event, member and message, claimed before the e-mail goes
 
 export async function claimDelivery(eventId: number, userId: number, message: DeliveryMessage, q: Tx = db()): Promise<boolean> {
-  return (await q.insert(alertDeliveries).values({ eventId, userId, message }).onConflictDoNothing().returning({ eventId: alertDeliveries.eventId })).length > 0;
+  const rows = await q.insert(alertDeliveries).values({ eventId, userId, message }).onConflictDoNothing().returning({ eventId: alertDeliveries.eventId });
+  return rows.length > 0;
 }
 
 export async function releaseDelivery(eventId: number, userId: number, message: DeliveryMessage, q: Tx = db()) {
@@ -146,7 +148,8 @@ export async function releaseDelivery(eventId: number, userId: number, message: 
 
 /** Members who were sent the event's opening: the only ones to get its all-clear. */
 export async function heardOpen(eventId: number, q: Tx = db()): Promise<Set<number>> {
-  const rows = await q.select({ userId: alertDeliveries.userId }).from(alertDeliveries).where(and(eq(alertDeliveries.eventId, eventId), eq(alertDeliveries.message, "open")));
+  const opened = and(eq(alertDeliveries.eventId, eventId), eq(alertDeliveries.message, "open"));
+  const rows = await q.select({ userId: alertDeliveries.userId }).from(alertDeliveries).where(opened);
   return new Set(rows.map((r) => r.userId));
 }
 
