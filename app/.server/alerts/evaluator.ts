@@ -6,7 +6,6 @@ import type { Clock } from "~/.server/alerts/clock";
 import type { Notifier } from "~/.server/alerts/notifier";
 import * as store from "~/.server/alerts/store";
 import type { SpotPoint, Tx, WatchInContext } from "~/.server/alerts/store";
-import { db } from "~/.server/db";
 import { EARLY_WARNING_HISTORY_MINUTES, projectBatch } from "~/domain/alerts/early-warning";
 import { evaluate, isBack, valueFor, worse, type AlertKind, type Point, type RuleSettings, type Transition } from "~/domain/alerts/rules";
 
@@ -90,11 +89,11 @@ export class Evaluator {
     let watch: WatchInContext | undefined;
     let stillOpen = false;
     let fresh: Point[] = [];
-    await db().transaction(async (tx) => {
+    await store.inTransaction(async (tx) => {
       const w = await store.lockWatch(tx, watchId);
       if (!w || w.paused) return;
       watch = w;
-      const open = await store.openEvent(tx, watchId);
+      const open = await store.openEvent(watchId, tx);
       const state = {
         pendingSince: w.pendingSince,
         clearingSince: w.clearingSince,
@@ -158,7 +157,7 @@ export class Evaluator {
     }
     if (!projection) return;
     if (!(await store.claimWarning(w.id, now))) return;
-    if (await store.openEvent(db(), w.id)) return;
+    if (await store.openEvent(w.id)) return;
     await this.o.notifier.earlyWarning(w, projection, latest.value);
   }
 }

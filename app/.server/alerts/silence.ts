@@ -5,7 +5,6 @@ import type { Clock } from "~/.server/alerts/clock";
 import type { Notifier } from "~/.server/alerts/notifier";
 import * as store from "~/.server/alerts/store";
 import type { WatchInContext } from "~/.server/alerts/store";
-import { db } from "~/.server/db";
 
 const MINUTE = 60_000;
 
@@ -30,9 +29,9 @@ export class SilenceWatcher {
       const minutes = silentMinutes(w.threshold, w.quietSince, now);
       if (minutes === null) continue;
       let opened: number | null = null;
-      await db().transaction(async (tx) => {
+      await store.inTransaction(async (tx) => {
         await store.lockWatch(tx, w.id);
-        const open = await store.openEvent(tx, w.id);
+        const open = await store.openEvent(w.id, tx);
         if (open) await store.setEventPeak(tx, open.id, minutes);
         else opened = await store.insertEvent(tx, w, w.quietSince, minutes);
       });

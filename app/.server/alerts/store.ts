@@ -24,6 +24,11 @@ import {
 /** The database or a transaction of it: every function reads and writes through either. */
 export type Tx = Db | Parameters<Parameters<Db["transaction"]>[0]>[0];
 
+/** Runs `work` in one transaction: its row locks hold until it commits. */
+export function inTransaction(work: (tx: Tx) => Promise<void>): Promise<void> {
+  return db().transaction(work);
+}
+
 /** A watch with what its messages name: its spot and site. */
 export type WatchInContext = Watch & { spotName: string; siteId: number; siteName: string; timeZone: string };
 export type OpenEvent = { id: number; startedAt: Date; peak: number | null };
@@ -84,7 +89,7 @@ export async function rearmWarning(id: number, q: Tx = db()) {
 
 // ---- events
 
-export async function openEvent(q: Tx, watchId: number): Promise<OpenEvent | undefined> {
+export async function openEvent(watchId: number, q: Tx = db()): Promise<OpenEvent | undefined> {
   const open = and(eq(alertEvents.ruleId, watchId), isNull(alertEvents.endedAt));
   const columns = { id: alertEvents.id, startedAt: alertEvents.startedAt, peak: alertEvents.peak };
   return (await q.select(columns).from(alertEvents).where(open).orderBy(desc(alertEvents.startedAt)).limit(1))[0];
