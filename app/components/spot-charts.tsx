@@ -1,6 +1,6 @@
-// The spot page's year charts: daily lows and highs as a band, the dew-point margin, and the monthly
-// envelope. Each has a readable table behind a details/summary for screen readers and for checking
-// a number exactly. Values arrive in °C and are shown in the grower's unit.
+// The spot page's year charts (daily lows and highs as a band, the dew-point margin) and Compare's
+// monthly envelopes. Each has a readable table behind a details/summary for screen readers and for
+// checking a number exactly. Values arrive in °C and are shown in the grower's unit.
 import { useMemo } from "react";
 import type uPlot from "uplot";
 import { Chart, SITE_LOCALE, TEMP_COLOURS, useSeries, type ChartSpec } from "~/components/chart";
