@@ -12,7 +12,7 @@ export default defineConfig({
         resolve: { alias },
         test: {
           name: "unit",
-          include: ["app/**/*.test.ts", "simulator/**/*.test.ts"],
+          include: ["app/**/*.test.ts", "simulator/**/*.test.ts", "tests/docs/**/*.test.ts"],
         },
       },
       {

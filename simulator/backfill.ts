@@ -19,7 +19,6 @@ export async function backfill(opts: {
   const batchSize = opts.batchSize ?? 10_000;
   const perSensor = Math.ceil((opts.to.getTime() - opts.from.getTime()) / opts.intervalMs);
   const total = perSensor * opts.targets.length;
-  let done = 0;
   let written = 0;
   let lastReport = 0;
   // Two batches in flight keep PostgreSQL busy while the next batch is generated.
@@ -50,10 +49,9 @@ export async function backfill(opts: {
       });
       if (batch.length >= batchSize) {
         await flush();
-        done = written;
-        if (opts.progress && done - lastReport >= total / 20) {
-          lastReport = done;
-          opts.progress(done, total);
+        if (opts.progress && written - lastReport >= total / 20) {
+          lastReport = written;
+          opts.progress(written, total);
         }
       }
     }

@@ -1,6 +1,7 @@
 #!/usr/bin/env bash
-# `npm test`: type check, Vitest (unit + integration against a fresh PostgreSQL), then Playwright
-# against the built app in Debian's Chromium. Installs Debian's packages it needs when run as root.
+# `npm test`: lint and format check, type check, Vitest (unit + integration against a fresh
+# PostgreSQL), then Playwright against the built app in Debian's Chromium. Installs Debian's
+# packages it needs when run as root.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 
@@ -20,6 +21,8 @@ if [ ${#need[@]} -gt 0 ]; then
 fi
 [ -d node_modules ] || npm ci --no-audit --no-fund
 
+echo "== lint (ESLint) and format (Prettier)"
+npm run --silent lint
 echo "== type check"
 npm run --silent typecheck
 echo "== unit and integration tests (Vitest)"

@@ -91,10 +91,6 @@ export async function invalidateSession(sessionId: string) {
   await db().delete(sessions).where(eq(sessions.id, sessionId));
 }
 
-export async function invalidateUserSessions(userId: number) {
-  await db().delete(sessions).where(eq(sessions.userId, userId));
-}
-
 // Secure whenever the app is reached over https (PUBLIC_URL); a plain-http install on a home network
 // could not keep the cookie otherwise.
 const secureCookies = () => publicUrl().startsWith("https:");

@@ -10,7 +10,6 @@ import type { Site, Spot } from "~/db/schema.server";
 export const EXPORT_BATCH = 5000;
 
 export type ExportFormat = "csv" | "json";
-export type ExportKind = "raw" | "hourly" | "profile";
 
 type Cell = string | number | null;
 type Batch = { rows: Cell[][]; done: boolean };

@@ -32,7 +32,6 @@ export async function listNotes(siteId: number, target?: NoteTarget) {
     .limit(100);
   return rows.map((r) => ({ ...r, authorName: r.authorName ?? "A former member" }));
 }
-export type NoteRow = Awaited<ReturnType<typeof listNotes>>[number];
 
 /** What the note is on, in words, checked to belong to the site. */
 async function targetLabel(siteId: number, target: NoteTarget) {

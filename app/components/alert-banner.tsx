@@ -8,12 +8,13 @@ import { KINDS } from "~/domain/alerts/rules";
 
 export function AlertBanner({ siteId, initial, unit }: { siteId: number; initial: AlertBannerData; unit: "C" | "F" }) {
   const live = useFetcher<AlertBannerData>();
+  const { load } = live;
   useEffect(() => {
     const t = setInterval(() => {
-      if (document.visibilityState === "visible") live.load(`/api/sites/${siteId}/alerts`);
+      if (document.visibilityState === "visible") load(`/api/sites/${siteId}/alerts`);
     }, 15_000);
     return () => clearInterval(t);
-  }, [siteId]);
+  }, [siteId, load]);
   const { open, warnings, forecast = [] } = live.data ?? initial;
   if (open.length === 0 && warnings.length === 0 && forecast.length === 0) return null;
   return (

@@ -1,6 +1,6 @@
 import { getInputProps, getSelectProps, getTextareaProps, type FieldMetadata } from "@conform-to/react";
 
-type Meta = FieldMetadata<any, any, string[]>;
+type Meta = FieldMetadata<unknown, Record<string, unknown>, string[]>;
 
 export function FieldError({ meta }: { meta: Meta }) {
   return meta.errors?.length ? (

@@ -49,8 +49,11 @@ export function SiteForm({
     const tz = browserTimeZone();
     if (tz) {
       form.update({ name: fields.timeZone.name, value: tz });
+      // eslint-disable-next-line react-hooks/set-state-in-effect -- the browser's zone is known only once hydrated
       setZoneFrom(tz);
     }
+    // Once, on mount: later renders must not overwrite the zone the grower picked.
+    // eslint-disable-next-line react-hooks/exhaustive-deps -- see above
   }, []);
 
   function fillFromDevice() {

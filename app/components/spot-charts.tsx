@@ -1,6 +1,6 @@
-// The spot page's year charts: daily lows and highs as a band, the dew-point margin, and the monthly
-// envelope. Each has a readable table behind a details/summary for screen readers and for checking
-// a number exactly. Values arrive in °C and are shown in the grower's unit.
+// The spot page's year charts (daily lows and highs as a band, the dew-point margin) and Compare's
+// monthly envelopes. Each has a readable table behind a details/summary for screen readers and for
+// checking a number exactly. Values arrive in °C and are shown in the grower's unit.
 import { useMemo } from "react";
 import type uPlot from "uplot";
 import { Chart, SITE_LOCALE, TEMP_COLOURS, useSeries, type ChartSpec } from "~/components/chart";
@@ -181,13 +181,6 @@ export function YearCharts({ url, unit, timeZone }: { url: string; unit: TempUni
   );
 }
 
-export type EnvelopeMonth = {
-  key: string;
-  name: string;
-  temperature: { lowest: number | null; highest: number | null; p05: number | null; p95: number | null };
-  coverage: { enough: boolean; daysObserved: number };
-};
-
 // On a narrow chart, label every second or third month so the labels don't run into each other.
 const monthAxis = (labels: string[]): uPlot.Axis => ({
   ...AXIS,
@@ -198,79 +191,6 @@ const monthAxis = (labels: string[]): uPlot.Axis => ({
     return splits.map((v) => (v % every === 0 ? (labels[v] ?? "") : ""));
   },
 });
-
-function envelopeSpec(months: EnvelopeMonth[], unit: TempUnit): ChartSpec {
-  return {
-    title: "Monthly envelope: lowest to highest, with the middle 90 % of hours",
-    unit,
-    xLabel: (x) => months[x]?.name ?? "",
-    build: (d, u) => ({
-      data: [d.x as number[], conv(d.highest, u), conv(d.p95, u), conv(d.p05, u), conv(d.lowest, u)] as never,
-      series: [
-        { label: `Highest °${u}`, stroke: TEMP_COLOURS.hot, width: 2, value: fmt(u) },
-        { label: `95 % °${u}`, stroke: TEMP_COLOURS.warm, width: 1, value: fmt(u) },
-        { label: `5 % °${u}`, stroke: TEMP_COLOURS.cool, width: 1, value: fmt(u) },
-        { label: `Lowest °${u}`, stroke: TEMP_COLOURS.cold, width: 2, value: fmt(u) },
-      ],
-      bands: [
-        { series: [1, 4], fill: "rgba(205, 191, 154, 0.28)" },
-        { series: [2, 3], fill: "rgba(224, 160, 74, 0.30)" },
-      ],
-      scales: { x: { time: false, range: [-0.4, months.length - 0.6] } },
-      axes: [monthAxis(months.map((m) => m.name.slice(0, 3))), { ...AXIS, label: `°${u}`, size: 50 }],
-    }),
-  };
-}
-
-export function EnvelopeChart({ months, unit }: { months: EnvelopeMonth[]; unit: TempUnit }) {
-  const spec = useMemo(() => envelopeSpec(months, unit), [months, unit]);
-  const data = useMemo(
-    () => ({
-      x: months.map((_, i) => i),
-      highest: months.map((m) => m.temperature.highest),
-      p95: months.map((m) => m.temperature.p95),
-      p05: months.map((m) => m.temperature.p05),
-      lowest: months.map((m) => m.temperature.lowest),
-    }),
-    [months],
-  );
-  return (
-    <section className="card space-y-3">
-      <Chart spec={spec} data={data} testId="chart-envelope" />
-      <p className="text-xs text-muted">
-        Light band: the month's lowest to highest. Darker band: 5–95 % of hourly mean temperatures, the range a plant lives in most of the time.
-      </p>
-      <details className="text-sm">
-        <summary className="cursor-pointer font-medium">The envelope as a table</summary>
-        <table className="table mt-2" data-testid="envelope-table">
-          <thead>
-            <tr>
-              <th>Month</th>
-              <th>Lowest</th>
-              <th>5 %</th>
-              <th>95 %</th>
-              <th>Highest</th>
-            </tr>
-          </thead>
-          <tbody>
-            {months.map((m) => (
-              <tr key={m.key} className={m.coverage.enough ? "" : "text-muted"}>
-                <td>
-                  {m.name}
-                  {m.coverage.enough ? "" : ` (only ${m.coverage.daysObserved} days)`}
-                </td>
-                <td>{formatTemp(m.temperature.lowest, unit)}</td>
-                <td>{formatTemp(m.temperature.p05, unit)}</td>
-                <td>{formatTemp(m.temperature.p95, unit)}</td>
-                <td>{formatTemp(m.temperature.highest, unit)}</td>
-              </tr>
-            ))}
-          </tbody>
-        </table>
-      </details>
-    </section>
-  );
-}
 
 /**
  * One colour per spot for overlays, from the Okabe–Ito palette (Okabe & Ito 2008, "Color Universal

@@ -118,6 +118,7 @@ function useSecretFromFragment() {
   useEffect(() => {
     const m = /secret=([a-z2-7]+)/.exec(window.location.hash);
     if (m) {
+      // eslint-disable-next-line react-hooks/set-state-in-effect -- read once hydrated: the server never sees a fragment
       setSecret(m[1]);
       // Keep it out of the history and of anything copied from the address bar.
       window.history.replaceState(window.history.state, "", window.location.pathname + window.location.search);
@@ -135,18 +136,20 @@ export default function SensorPage({ loaderData, actionData }: Route.ComponentPr
   const status = useFetcher<{ lastSeenAt: string | null; battery: number | null; latest: { measuredAt: string; temperature: number | null; humidity: number | null } | null }>();
   const [firstSeenLive, setFirstSeenLive] = useState(false);
   const lastSeenAt = status.data?.lastSeenAt ?? sensor.lastSeenAt;
+  const { load } = status;
+  const seen = Boolean(lastSeenAt);
 
   useEffect(() => {
     const poll = () => {
-      if (document.visibilityState === "visible") status.load(`/api/sites/${site.id}/sensors/${sensor.id}/status`);
+      if (document.visibilityState === "visible") load(`/api/sites/${site.id}/sensors/${sensor.id}/status`);
     };
-    const t = setInterval(poll, lastSeenAt ? 15000 : 3000);
+    const t = setInterval(poll, seen ? 15000 : 3000);
     return () => clearInterval(t);
-  }, [site.id, sensor.id, Boolean(lastSeenAt)]);
+  }, [site.id, sensor.id, seen, load]);
 
-  useEffect(() => {
-    if (!sensor.lastSeenAt && status.data?.lastSeenAt) setFirstSeenLive(true);
-  }, [sensor.lastSeenAt, status.data?.lastSeenAt]);
+  // Latched while rendering (React's pattern for state that follows a change), so the notice stays
+  // after a revalidation brings the first reading into the loader's data too.
+  if (!firstSeenLive && !sensor.lastSeenAt && status.data?.lastSeenAt) setFirstSeenLive(true);
 
   const shownSecret = secret ?? "YOUR-SENSOR-SECRET";
   const topic = `nichewise/sensors/${sensor.id}/reading`;

@@ -54,13 +54,14 @@ export default function SiteAlerts({ loaderData, actionData }: Route.ComponentPr
   const { site, role, unit, events, prefs } = loaderData;
   const now = useNow(loaderData.now);
   const live = useFetcher<typeof loader>();
+  const { load } = live;
   // The list refreshes itself like the banner, so a new event shows up without a reload.
   useEffect(() => {
     const t = setInterval(() => {
-      if (document.visibilityState === "visible") live.load(`/sites/${site.id}/alerts`);
+      if (document.visibilityState === "visible") load(`/sites/${site.id}/alerts`);
     }, 15_000);
     return () => clearInterval(t);
-  }, [site.id]);
+  }, [site.id, load]);
   const list = live.data?.events ?? events;
   const open = list.filter((e) => !e.endedAt);
   const recent = list.filter((e) => e.endedAt);

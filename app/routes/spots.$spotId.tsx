@@ -162,12 +162,13 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
   const navigation = useNavigation();
   const now = useNow(loaderData.now);
   const live = useFetcher<{ latest: typeof loaderData.latest }>();
+  const { load } = live;
   useEffect(() => {
     const t = setInterval(() => {
-      if (document.visibilityState === "visible") live.load(`/api/sites/${site.id}/spots/${spot.id}/latest`);
+      if (document.visibilityState === "visible") load(`/api/sites/${site.id}/spots/${spot.id}/latest`);
     }, 20_000);
     return () => clearInterval(t);
-  }, [site.id, spot.id]);
+  }, [site.id, spot.id, load]);
   const latest = live.data?.latest ?? loaderData.latest;
 
   const days = loaderData.profile.year.reduce((n, m) => n + m.coverage.daysObserved, 0);

@@ -55,8 +55,13 @@ export async function phonePages(opts: { chromiumPath: string; log: (s: string) 
     return out;
   } finally {
     await browser?.close();
-    server.kill("SIGTERM");
-    await new Promise((resolve) => server.once("exit", resolve));
+    // A server that already died (its error is what the caller sees) sends no second "exit": waiting
+    // for one left nothing on the event loop, and the whole run ended silently with code 0 and no table.
+    if (server.exitCode === null && server.signalCode === null) {
+      const exited = new Promise((resolve) => server.once("exit", resolve));
+      server.kill("SIGTERM");
+      await exited;
+    }
   }
 }
 

@@ -475,7 +475,7 @@ async function bench() {
   // 3 ms once it had; the forced collection comes first because it also shrinks the young
   // generation, and the loads straight after it paid for that with extra scavenges (6–13 ms).
   settle();
-  let [viaRollups, firstMs] = await timed(() => fromRollups(year.from, year.to));
+  const [, firstMs] = await timed(() => fromRollups(year.from, year.to));
   for (let i = 0; i < 20; i++) await fromRollups(year.from, year.to);
   for (let i = 0; i < 9; i++) profileTimes.push((await timed(() => fromRollups(year.from, year.to)))[1]);
   const rawTimes: number[] = [];
@@ -485,7 +485,7 @@ async function bench() {
     viaRaw = v;
     rawTimes.push(ms);
   }
-  viaRollups = await fromRollups(year.from, year.to);
+  const viaRollups = await fromRollups(year.from, year.to);
   let maxDiff = 0;
   viaRollups.months.forEach((m, i) => {
     const o = viaRaw.months[i];

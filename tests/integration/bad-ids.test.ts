@@ -42,7 +42,6 @@ async function statusOf(fn: Fn, request: Request, params: Record<string, string>
 let token: string;
 let site: { id: number };
 let spot: { id: number };
-let sensor: { id: number };
 
 const req = (path: string, form?: Record<string, string>) =>
   new Request(`http://127.0.0.1${path}`, {
@@ -55,7 +54,7 @@ beforeAll(async () => {
   const owner = await makeUser();
   site = await makeSite(owner);
   spot = await makeSpot(site, { indoor: false });
-  sensor = await makeSensor(site, spot);
+  await makeSensor(site, spot);
   const mentor = await makeUser();
   await addMember(site, mentor, "mentor");
   token = generateSessionToken();

@@ -2,17 +2,12 @@ import { describe, it, expect } from "vitest";
 import fc from "fast-check";
 import psychrolib from "psychrolib";
 import {
-  MAGNUS_ICE,
   MAGNUS_WATER,
   cToF,
   dewPoint,
   dewPointMargin,
   fToC,
-  frostPoint,
   saturationVapourPressure,
-  saturationVapourPressureIce,
-  vapourPressure,
-  vpd,
 } from "~/domain/climate/psychro";
 
 // Reference library: psychrolib 1.1.1, the ASHRAE Handbook — Fundamentals (2017) ch. 1 equations
@@ -23,9 +18,8 @@ const temperatures = Array.from({ length: 80 }, (_, i) => 0.5 + i * 0.5); // 0.5
 const humidities = Array.from({ length: 19 }, (_, i) => 10 + i * 5); // 10 … 100 %
 
 describe("constants", () => {
-  it("are the Alduchov & Eskridge (1996) sets over water and over ice", () => {
+  it("is the Alduchov & Eskridge (1996) set over water", () => {
     expect(MAGNUS_WATER).toEqual({ c: 6.1094, a: 17.625, b: 243.04 });
-    expect(MAGNUS_ICE).toEqual({ c: 6.1121, a: 22.587, b: 273.86 });
   });
 });
 
@@ -60,22 +54,6 @@ describe("saturationVapourPressure", () => {
   });
 });
 
-describe("saturationVapourPressureIce", () => {
-  // psychrolib uses the ice curve at and below 0.01 °C, so the two are directly comparable there.
-  it("agrees with psychrolib within 0.25 % from −40 to −1 °C", () => {
-    for (let t = -40; t <= -1; t += 1) {
-      const ours = saturationVapourPressureIce(t) * 100;
-      expect(Math.abs(ours / psychrolib.GetSatVapPres(t) - 1), `${t} °C`).toBeLessThan(0.0025);
-    }
-  });
-
-  it("lies below the curve over water when below freezing (why frost forms before dew)", () => {
-    for (let t = -30; t < 0; t += 5) {
-      expect(saturationVapourPressureIce(t)).toBeLessThan(saturationVapourPressure(t));
-    }
-  });
-});
-
 describe("dewPoint", () => {
   // Check values computed with the Alduchov–Eskridge set (shared/REFERENCES.md).
   it.each([
@@ -91,7 +69,7 @@ describe("dewPoint", () => {
   // (d ln e_s/dT ≈ 0.06 K⁻¹) and largely cancels in the ratio; 0.1 °C is also a tenth of what a
   // ±2 % RH hobby sensor is good for, so it cannot change what a grower is told.
   // psychrolib inverts the ice curve when the dew point falls below 0.01 °C (it returns a frost
-  // point), so those grid points are compared through vapour pressure against frostPoint instead.
+  // point), so those grid points are left out: the dew point here is always over liquid water.
   it("agrees with psychrolib within 0.1 °C on a grid of 0.5–40 °C × 10–100 % RH", () => {
     let compared = 0;
     for (const t of temperatures) {
@@ -133,41 +111,6 @@ describe("dewPoint", () => {
   });
 });
 
-describe("frostPoint", () => {
-  // Trap (shared/REFERENCES.md): below 0.01 °C psychrolib reads RH relative to ice, while sensors
-  // report RH relative to water. So the comparison goes through vapour pressure: our vapour pressure
-  // from the sensor's RH is handed to psychrolib, which returns the frost point for it.
-  it("agrees with psychrolib through vapour pressure within 0.1 °C below freezing", () => {
-    for (let t = -20; t <= -1; t += 1) {
-      for (const h of [30, 50, 70, 90, 100]) {
-        const e = vapourPressure(t, h) * 100;
-        const ashrae = psychrolib.GetTDewPointFromVapPres(t, e);
-        expect(Math.abs(frostPoint(t, h) - ashrae), `${t} °C, ${h} %`).toBeLessThan(0.1);
-      }
-    }
-  });
-
-  it("agrees with psychrolib on the grid points whose dew point is below freezing", () => {
-    let compared = 0;
-    for (const t of temperatures) {
-      for (const h of humidities) {
-        if (psychrolib.GetTDewPointFromRelHum(t, h / 100) > 0.01) continue;
-        const ashrae = psychrolib.GetTDewPointFromVapPres(t, vapourPressure(t, h) * 100);
-        expect(Math.abs(frostPoint(t, h) - ashrae), `${t} °C, ${h} %`).toBeLessThan(0.1);
-        compared++;
-      }
-    }
-    expect(compared).toBeGreaterThan(20);
-  });
-
-  it("lies between the dew point and the air temperature below freezing", () => {
-    // Ice holds less vapour than supercooled water at the same temperature, so the frost point is
-    // reached before the (over-water) dew point as a surface cools.
-    expect(frostPoint(-5, 80)).toBeGreaterThan(dewPoint(-5, 80));
-    expect(frostPoint(-5, 80)).toBeLessThan(-5);
-  });
-});
-
 describe("dewPointMargin", () => {
   it("is the air temperature minus the dew point", () => {
     expect(dewPointMargin(20, 50)).toBeCloseTo(20 - 9.26, 2);
@@ -186,30 +129,6 @@ describe("dewPointMargin", () => {
         (t, h) => dewPointMargin(t, h) >= 0,
       ),
     );
-  });
-});
-
-describe("vpd", () => {
-  // 25 °C, 60 % → about 1.27 kPa (computed, shared/REFERENCES.md; Prenger & Ling, OSU AEX-804,
-  // define VPD this way). Tolerance 0.01 kPa: with the Magnus e_s we get 1.265, with the ASHRAE
-  // e_s 1.268 — the same 0.24 % as above.
-  it("is about 1.27 kPa at 25 °C and 60 %", () => {
-    expect(Math.abs(vpd(25, 60) - 1.27)).toBeLessThan(0.01);
-  });
-
-  it("agrees with e_s·(1 − RH) from psychrolib within 0.25 %", () => {
-    for (const t of temperatures) {
-      for (const h of [10, 40, 70, 95]) {
-        const ashraeKPa = (psychrolib.GetSatVapPres(t) * (1 - h / 100)) / 1000;
-        expect(Math.abs(vpd(t, h) / ashraeKPa - 1)).toBeLessThan(0.0025);
-      }
-    }
-  });
-
-  it("is zero at saturation and NaN for a 0 % reading", () => {
-    expect(vpd(22, 100)).toBe(0);
-    expect(vpd(22, 104)).toBe(0);
-    expect(vpd(22, 0)).toBeNaN();
   });
 });
 

@@ -11,26 +11,14 @@ export interface MagnusConstants {
 }
 
 export const MAGNUS_WATER: MagnusConstants = { c: 6.1094, a: 17.625, b: 243.04 };
-export const MAGNUS_ICE: MagnusConstants = { c: 6.1121, a: 22.587, b: 273.86 };
 
 function magnus(tC: number, k: MagnusConstants): number {
   return k.c * Math.exp((k.a * tC) / (k.b + tC));
 }
 
-// Inverse of the Magnus form: the temperature at which `hPa` is the saturation pressure.
-function magnusInverse(hPa: number, k: MagnusConstants): number {
-  const gamma = Math.log(hPa / k.c);
-  return (k.b * gamma) / (k.a - gamma);
-}
-
 /** Saturation vapour pressure over liquid water, hPa. */
 export function saturationVapourPressure(tC: number): number {
   return magnus(tC, MAGNUS_WATER);
-}
-
-/** Saturation vapour pressure over ice, hPa (meaningful below 0 °C). */
-export function saturationVapourPressureIce(tC: number): number {
-  return magnus(tC, MAGNUS_ICE);
 }
 
 /**
@@ -45,11 +33,6 @@ function usableRh(rh: number): number {
   return Math.min(rh, 100);
 }
 
-/** Actual water-vapour pressure, hPa, from RH relative to water (what sensors report). */
-export function vapourPressure(tC: number, rh: number): number {
-  return (usableRh(rh) / 100) * saturationVapourPressure(tC);
-}
-
 /**
  * Dew point over liquid water, °C. RH above 100 counts as 100; RH ≤ 0 or non-finite gives NaN.
  * Never above the air temperature (guards against rounding at 100 %).
@@ -61,32 +44,11 @@ export function dewPoint(tC: number, rh: number): number {
 }
 
 /**
- * Frost point, °C: the temperature at which the air's vapour would deposit as frost on a surface
- * below freezing. Takes RH relative to water, as sensors report it, converts it to vapour pressure
- * and inverts the ice curve. It is only meaningful when the result is below 0 °C (on a surface
- * that cold, frost forms instead of dew), so it is defined for any air temperature — cold glass can
- * sit below freezing while the room air does not.
- */
-export function frostPoint(tC: number, rh: number): number {
-  return Math.min(magnusInverse(vapourPressure(tC, rh), MAGNUS_ICE), tC);
-}
-
-/**
  * Air temperature minus dew point, K. A small margin means condensation on cold glass and leaves.
  * NaN where dewPoint is NaN (RH ≤ 0): the reading says nothing about condensation.
  */
 export function dewPointMargin(tC: number, rh: number): number {
   return tC - dewPoint(tC, rh);
-}
-
-/**
- * Vapour pressure deficit, kPa: e_s(T)·(1 − RH/100). Unlike dew point, 0 % RH has a value here,
- * but it keeps the same rule as the other functions (NaN for RH ≤ 0) so one faulty reading
- * cannot look like a very dry hour in one chart and a gap in another.
- */
-export function vpd(tC: number, rh: number): number {
-  const hPa = saturationVapourPressure(tC) * (1 - usableRh(rh) / 100);
-  return hPa / 10;
 }
 
 export function cToF(tC: number): number {

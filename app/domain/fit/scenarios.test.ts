@@ -110,7 +110,7 @@ const SCENARIOS: Scenario[] = [
   },
   {
     name: "Masdevallia through 15 days at 28 °C: past its heat damage line",
-    season: () => spotYear({ month: byMonth((m) => ({ night: 13, day: 20, rh: 80, lux: 5000 })), patches: Array.from({ length: 15 }, (_, i) => dip(7, i + 1, 13, 28)) }),
+    season: () => spotYear({ month: byMonth(() => ({ night: 13, day: 20, rh: 80, lux: 5000 })), patches: Array.from({ length: 15 }, (_, i) => dip(7, i + 1, 13, 28)) }),
     plant: "masdevallia",
     verdict: "struggles here",
     source: "library profile (memory): heat above about 27 °C kills Masdevallia",

@@ -16,7 +16,6 @@ export type Reading = {
   partial?: boolean;
 };
 
-export type Rejection = { reason: string };
 export type ParseResult = { ok: true; reading: Reading } | { ok: false; reason: string };
 
 // How far ahead of the receiver's clock a timestamp may be (sensor clocks drift).
