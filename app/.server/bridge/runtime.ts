@@ -19,11 +19,21 @@ import type { ReadingWriter } from "~/.server/ingest/writer";
 import { PacketSizeGuard } from "./packet-guard";
 import { enabledBridges, getBridge, listLinks, type BridgeConfig, type BridgeLink } from "./store";
 
-/** Largest packet taken from a bridged broker: a payload the presets read, its topic and headers, with room. */
-export const MAX_BRIDGE_PACKET_BYTES = 64 * 1024;
-/** Per topic: a burst of this many messages, then this many a second. Readings are kept per second. */
-export const TOPIC_BURST = 60;
-export const TOPIC_PER_SECOND = 20;
+/**
+ * Largest packet read from a bridged broker. Over MAX_BRIDGED_PAYLOAD_BYTES a message is still read,
+ * acknowledged and recorded with its reason (refusing it would have the broker send it again
+ * forever); over this the connection is closed. MQTT 5 tells the broker the smaller
+ * MAX_BRIDGE_V5_PACKET_BYTES, and the broker drops what is bigger (MQTT 5 §3.1.2.11.4).
+ */
+export const MAX_BRIDGE_PACKET_BYTES = 1024 * 1024;
+export const MAX_BRIDGE_V5_PACKET_BYTES = 64 * 1024;
+/**
+ * Per topic: a burst of this many messages, then this many a second. A topic over it is not
+ * dropped (a backlog the broker kept for us is real readings) but held back: the bridge waits
+ * before reading on, so the broker holds the rest (its queue, its limits).
+ */
+export const TOPIC_BURST = 100;
+export const TOPIC_PER_SECOND = 50;
 /** MQTT 5: how long the broker keeps the session (and unacknowledged messages) while we are away. */
 export const SESSION_EXPIRY_S = 7 * 24 * 3600;
 /** The same reason is recorded at most once in this long per topic and device, so a chatty topic cannot fill the record. */
@@ -42,8 +52,8 @@ export type BridgeCounts = {
   unattached: number;
   /** Devices in a shared topic that are not attached (a BLE gateway hears the neighbours' too). */
   otherDevices: number;
-  /** Messages dropped because their topic sent more than TOPIC_PER_SECOND. */
-  overRate: number;
+  /** Messages held back because their topic sent more than TOPIC_PER_SECOND. */
+  heldBack: number;
   /** Retained messages without a time of their own: their value is old, their time unknown. */
   staleRetained: number;
   /** Commits that failed: the message was not acknowledged and comes again. */
@@ -61,7 +71,7 @@ export type BridgeState = {
 type Deps = { writer: ReadingWriter; log?: (s: string) => void; reconnectMs?: number; maxReconnectMs?: number };
 type Bucket = { tokens: number; at: number };
 
-const zeroCounts = (): BridgeCounts => ({ received: 0, stored: 0, rejected: 0, unattached: 0, otherDevices: 0, overRate: 0, staleRetained: 0, writeFailures: 0, reconnects: 0 });
+const zeroCounts = (): BridgeCounts => ({ received: 0, stored: 0, rejected: 0, unattached: 0, otherDevices: 0, heldBack: 0, staleRetained: 0, writeFailures: 0, reconnects: 0 });
 
 /** The socket options for a bridge's broker address. */
 export function endpoint(config: Pick<BridgeConfig, "url" | "caCert">) {
@@ -138,7 +148,7 @@ export class SiteBridge {
       resubscribe: true,
       // MQTT 5: keep the session while we are away, hold at most 20 unacknowledged messages in
       // flight to us, and send nothing bigger than we take.
-      ...(v5 ? { properties: { sessionExpiryInterval: SESSION_EXPIRY_S, receiveMaximum: 20, maximumPacketSize: MAX_BRIDGE_PACKET_BYTES } } : {}),
+      ...(v5 ? { properties: { sessionExpiryInterval: SESSION_EXPIRY_S, receiveMaximum: 20, maximumPacketSize: MAX_BRIDGE_V5_PACKET_BYTES } } : {}),
     };
     const client = new MqttClient(build as never, options);
     this.client = client;
@@ -207,7 +217,8 @@ export class SiteBridge {
     );
   }
 
-  private allowed(key: string, now: number): boolean {
+  /** Takes a token of the topic's bucket: 0, or how many ms until there is one. */
+  private take(key: string, now: number): number {
     let b = this.buckets.get(key);
     if (!b) {
       if (this.buckets.size >= MAX_THROTTLE_KEYS) this.buckets.clear();
@@ -215,9 +226,20 @@ export class SiteBridge {
     }
     b.tokens = Math.min(TOPIC_BURST, b.tokens + ((now - b.at) / 1000) * TOPIC_PER_SECOND);
     b.at = now;
-    if (b.tokens < 1) return false;
+    if (b.tokens < 1) return Math.ceil(((1 - b.tokens) * 1000) / TOPIC_PER_SECOND);
     b.tokens--;
-    return true;
+    return 0;
+  }
+
+  /** Waits while the topic is over its rate: nothing further is read meanwhile (backpressure). */
+  private async pace(key: string) {
+    let wait = this.take(key, Date.now());
+    if (wait === 0) return;
+    this.state.counts.heldBack++;
+    while (wait > 0) {
+      await new Promise((r) => setTimeout(r, wait));
+      wait = this.take(key, Date.now());
+    }
   }
 
   /** Whether a reason for this key is due to be recorded again. */
@@ -248,16 +270,11 @@ export class SiteBridge {
       if (this.due(key, now)) rejections.push({ sensorId, source: "mqtt", topic, reason: `home broker: ${reason}`, payload: preview() });
     };
     try {
-      if (!this.allowed(topic, now)) {
-        this.state.counts.overRate++;
-        if (this.due(`${topic}|rate`, now)) {
-          rejections.push({ sensorId: links[0].sensorId, source: "mqtt", topic, reason: `home broker: over ${TOPIC_PER_SECOND} messages a second on this topic; dropped`, payload: "" });
-        }
-        return;
-      }
+      await this.pace(topic);
       if (payload.length > MAX_BRIDGED_PAYLOAD_BYTES) return reject(links[0].sensorId, `payload over ${MAX_BRIDGED_PAYLOAD_BYTES} bytes`);
       const readings: Reading[] = [];
       let matched = false;
+      let read = false;
       for (const link of links) {
         const info = await sensorInfo(link.sensorId);
         if (!info) {
@@ -269,6 +286,7 @@ export class SiteBridge {
           reject(link.sensorId, decoded.reason);
           continue;
         }
+        read = true;
         for (const item of decoded.items) {
           if (link.device && item.device !== link.device) continue;
           matched = true;
@@ -286,7 +304,7 @@ export class SiteBridge {
           readings.push(partial ? { ...r.reading, partial } : r.reading);
         }
       }
-      if (!matched && links.every((l) => l.device)) {
+      if (read && !matched && links.every((l) => l.device)) {
         this.state.counts.otherDevices++;
         return;
       }
@@ -295,7 +313,7 @@ export class SiteBridge {
       this.state.counts.stored += readings.length - result.conflicts;
       if (result.conflicts > 0) {
         this.state.counts.rejected += result.conflicts;
-        rejections.push({ sensorId: readings[0].sensorId, source: "mqtt", topic, reason: CONFLICT_REASON, payload: preview() });
+        if (this.due(`${topic}|conflict`, now)) rejections.push({ sensorId: readings[0].sensorId, source: "mqtt", topic, reason: CONFLICT_REASON, payload: preview() });
       }
       for (const r of readings) if (r.temperature !== null) noteTemperature(r.sensorId, r.measuredAt.getTime(), r.temperature);
     } finally {
