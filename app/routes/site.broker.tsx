@@ -366,7 +366,8 @@ export default function SiteBroker({ loaderData, actionData }: Route.ComponentPr
       {owner ? (
         <section className="card space-y-3" aria-labelledby="connection">
           <h2 id="connection" className="h2">Your broker</h2>
-          <Form method="post" className="grid gap-3 sm:grid-cols-2" autoComplete="off">
+          {/* Remounted after each save, so a typed password does not stay in the page. */}
+          <Form key={String(bridge?.updatedAt ?? "new")} method="post" className="grid gap-3 sm:grid-cols-2" autoComplete="off">
             <div className="sm:col-span-2">
               <label className="label" htmlFor="url">Address</label>
               <input className="field w-full" id="url" name="url" required placeholder="mqtt://192.168.1.20:1883" defaultValue={bridge?.url ?? ""} />

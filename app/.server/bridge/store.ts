@@ -15,6 +15,7 @@ export type BridgeConfig = {
   protocolVersion: 4 | 5;
   clientId: string;
   enabled: boolean;
+  updatedAt: Date;
 };
 export type BridgeLink = { id: number; sensorId: number; topic: string; device: string; mapping: Mapping };
 
