@@ -4,7 +4,7 @@ import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
 import { readForm, toId } from "~/.server/ids";
 import { getSite, listSensors } from "~/.server/sites";
 import { bridgeState, reloadBridge } from "~/.server/bridge/runtime";
-import { foundTopics, listeningFor, startListening } from "~/.server/bridge/discovery";
+import { foundTopics, ListenRefused, listeningFor, startListening } from "~/.server/bridge/discovery";
 import { attachTopic, detachTopic, getBridge, LinkError, listLinks, saveBridge, viewOf } from "~/.server/bridge/store";
 import { BRIDGE_CHANNELS, PRESET_LABELS, PRESETS, type Mapping, type Values } from "~/domain/payloads/presets";
 import { bridgeSettingsSchema, listenSchema, mappingSchema, topicSchema } from "~/domain/payloads/schema";
@@ -73,7 +73,12 @@ export async function action({ request, params }: Route.ActionArgs) {
     if (!config) return data({ intent, errors: { prefix: "Save the broker's address first." } }, { status: 400 });
     const parsed = listenSchema.safeParse({ prefix: text("prefix") ?? "" });
     if (!parsed.success) return data({ intent, errors: issues(parsed.error) }, { status: 400 });
-    startListening(config, parsed.data.prefix);
+    try {
+      startListening(config, parsed.data.prefix);
+    } catch (err) {
+      if (err instanceof ListenRefused) return data({ intent, errors: { prefix: err.message } }, { status: 503 });
+      throw err;
+    }
     return { intent, listening: true };
   }
 

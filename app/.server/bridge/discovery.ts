@@ -44,10 +44,26 @@ export type Found = {
 type Holder = { listening: Map<number, Listening> };
 const holder = ((globalThis as Record<string, unknown>).__nichewiseListening ??= { listening: new Map() }) as Holder;
 
-export const listeningFor = (siteId: number) => holder.listening.get(siteId) ?? null;
+/** Sites listening at once in this server, and how long what was heard is kept after. */
+export const MAX_LISTENING = 5;
+export const KEEP_HEARD_MS = 15 * 60_000;
+
+export class ListenRefused extends Error {}
+
+export function listeningFor(siteId: number): Listening | null {
+  const l = holder.listening.get(siteId);
+  if (l && l.status !== "listening" && Date.now() - l.endsAt > KEEP_HEARD_MS) {
+    holder.listening.delete(siteId);
+    return null;
+  }
+  return l ?? null;
+}
 
 export function startListening(config: BridgeConfig, prefix: string, opts: { durationMs?: number } = {}): Listening {
   holder.listening.get(config.siteId)?.stop();
+  for (const [siteId, other] of holder.listening) if (other.status !== "listening" && Date.now() - other.endsAt > KEEP_HEARD_MS) holder.listening.delete(siteId);
+  const busy = [...holder.listening.values()].filter((o) => o.status === "listening").length;
+  if (busy >= MAX_LISTENING) throw new ListenRefused(`${MAX_LISTENING} sites are listening right now: try again in a minute.`);
   const { tls, host, port, ca } = endpoint(config);
   const now = Date.now();
   const l: Listening = { prefix, startedAt: now, endsAt: now + Math.min(opts.durationMs ?? LISTEN_MS, LISTEN_MS), status: "listening", note: null, topics: new Map(), hints: new Map(), bytes: 0, stop: () => {} };
