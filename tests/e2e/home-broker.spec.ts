@@ -1,6 +1,7 @@
 // The site's home-broker page against a real Mosquitto on loopback (the grower's own broker): the
 // owner connects, listens, and attaches a recognised Zigbee2MQTT topic to a sensor in two clicks
 // (choose the sensor, Attach), and the next message is stored.
+import AxeBuilder from "@axe-core/playwright";
 import { connectAsync, type MqttClient } from "mqtt";
 import { test, expect, signIn, DEMO } from "./fixtures";
 import { startMosquitto, removeMosquittoDir, type Mosquitto } from "../integration/mosquitto";
@@ -56,6 +57,18 @@ test("the owner connects a home broker, hears a Zigbee2MQTT sensor and attaches 
   await expect(page.getByRole("status").filter({ hasText: "Attached zigbee2mqtt/windowsill" })).toBeVisible();
   await expect(page.getByRole("heading", { name: "Attached topics" })).toBeVisible();
   await expect(page.getByRole("button", { name: "Detach zigbee2mqtt/windowsill" })).toBeVisible();
+
+  // With its lists filled: no serious or critical WCAG 2.2 AA violation (axe-core), and it fits a
+  // 390 px phone (as tests/e2e/accessibility.spec.ts and phone-width.spec.ts check every page).
+  for (const width of [390, 1280]) {
+    await page.setViewportSize({ width, height: 900 });
+    await page.reload();
+    await expect(page.getByTestId("heard")).toBeVisible();
+    const axe = await new AxeBuilder({ page }).withTags(["wcag2a", "wcag2aa", "wcag21a", "wcag21aa", "wcag22aa"]).analyze();
+    expect(axe.violations.filter((v) => v.impact === "serious" || v.impact === "critical").map((v) => `${v.id}: ${v.nodes[0]?.target.join(" ")}`)).toEqual([]);
+    const [scroll, client] = await page.evaluate(() => [document.documentElement.scrollWidth, document.documentElement.clientWidth]);
+    expect(scroll, `${width} px`).toBeLessThanOrEqual(client);
+  }
 
   await expect(async () => {
     await report(21.5);
