@@ -192,6 +192,7 @@ export default function SiteBroker({ loaderData, actionData }: Route.ComponentPr
             <p className="text-sm">
               Last message: {state?.lastMessageAt ? timeAgo(new Date(state.lastMessageAt), now) : "none yet"}
               {state ? ` · ${state.counts.stored} readings stored, ${state.counts.rejected} refused (see each sensor's page for why)` : null}
+              {state && state.counts.outsideSpot ? ` · ${state.counts.outsideSpot} fall outside any spot (place their sensor on its page)` : null}
               {state && state.counts.otherDevices ? ` · ${state.counts.otherDevices} messages from devices not attached` : null}
               {state && state.counts.heldBack ? ` · ${state.counts.heldBack} times a topic sent too fast and was slowed` : null}
               {state && state.counts.staleRetained ? ` · ${state.counts.staleRetained} old kept values skipped (they carry no time)` : null}

@@ -132,6 +132,18 @@ describe("bridge mode through a real Mosquitto", () => {
     expect(bridge.state.lastMessageAt).not.toBeNull();
   });
 
+  it("counts readings of a sensor placed nowhere as outside any spot, as HTTP ingest does", async () => {
+    const user = await makeUser();
+    const site = await makeSite(user, { timeZone: TZ });
+    await saveBridge({ siteId: site.id, actorId: user.id, url: `mqtt://127.0.0.1:${broker.port}`, username: "nichewise", password: "bridge pass 1", clearPassword: false, caCert: null, protocolVersion: 4, enabled: true });
+    const unplaced = await makeSensor(site);
+    await attachTopic({ siteId: site.id, actorId: user.id, sensorId: unplaced.id, topic: "zigbee2mqtt/in a drawer", mapping: { preset: "zigbee2mqtt" } });
+    const bridge = await run((await getBridge(site.id))!);
+    await gateway.publishAsync("zigbee2mqtt/in a drawer", '{"temperature":20,"humidity":50}', { qos: 1 });
+    await until("the reading", async () => (await rows(unplaced.id)).length === 1);
+    await until("the count", async () => bridge.state.counts.outsideSpot === 1);
+  });
+
   it("records bad payloads and unit mix-ups with their reason, acknowledges them, and carries on", async () => {
     const { sensors, config } = await setUp([
       { topic: "zigbee2mqtt/bad", mapping: { preset: "zigbee2mqtt" } },

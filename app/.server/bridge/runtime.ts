@@ -46,6 +46,8 @@ export type BridgeCounts = {
   received: number;
   /** Readings committed (new or already stored). */
   stored: number;
+  /** Of those, new readings that fall in no placement of their sensor: no spot shows them until it is placed. */
+  outsideSpot: number;
   /** Messages refused with a reason (bad payload, unit mix-up, out of range…). */
   rejected: number;
   /** Messages on topics nothing is attached to (left over from an earlier subscription). */
@@ -71,7 +73,7 @@ export type BridgeState = {
 type Deps = { writer: ReadingWriter; log?: (s: string) => void; reconnectMs?: number; maxReconnectMs?: number };
 type Bucket = { tokens: number; at: number };
 
-const zeroCounts = (): BridgeCounts => ({ received: 0, stored: 0, rejected: 0, unattached: 0, otherDevices: 0, heldBack: 0, staleRetained: 0, writeFailures: 0, reconnects: 0 });
+const zeroCounts = (): BridgeCounts => ({ received: 0, stored: 0, outsideSpot: 0, rejected: 0, unattached: 0, otherDevices: 0, heldBack: 0, staleRetained: 0, writeFailures: 0, reconnects: 0 });
 
 /** The socket options for a bridge's broker address. */
 export function endpoint(config: Pick<BridgeConfig, "url" | "caCert">) {
@@ -309,8 +311,10 @@ export class SiteBridge {
         return;
       }
       if (readings.length === 0) return;
-      const result = await this.deps.writer.store(readings);
+      // write(), not store(): the bridge is told how many fell outside any spot, as HTTP ingest is.
+      const result = await this.deps.writer.write(readings);
       this.state.counts.stored += readings.length - result.conflicts;
+      this.state.counts.outsideSpot += result.outsideSpot;
       if (result.conflicts > 0) {
         this.state.counts.rejected += result.conflicts;
         if (this.due(`${topic}|conflict`, now)) rejections.push({ sensorId: readings[0].sensorId, source: "mqtt", topic, reason: CONFLICT_REASON, payload: preview() });
