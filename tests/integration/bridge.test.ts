@@ -129,6 +129,9 @@ describe("bridge mode through a real Mosquitto", () => {
       expect(series.t.length).toBe(1);
     }
     expect(bridge.state.counts).toMatchObject({ stored: 6, rejected: 0, otherDevices: 1 });
+    const other = await until("the unattached device to be recorded", async () =>
+      (await pool().query<{ reason: string }>("SELECT reason FROM rejected_messages WHERE topic = 'home/OMG_ESP32_BLE/BTtoMQTT'")).rows[0]);
+    expect(other.reason).toBe("home broker: device 11:22:33:44:55:66 in this topic is not attached to a sensor (others may be too)");
     expect(bridge.state.lastMessageAt).not.toBeNull();
   });
 

@@ -245,9 +245,9 @@ export class SiteBridge {
   }
 
   /** Whether a reason for this key is due to be recorded again. */
-  private due(key: string, now: number): boolean {
+  private due(key: string, now: number, every = RECORD_EVERY_MS): boolean {
     const at = this.recorded.get(key);
-    if (at !== undefined && now - at < RECORD_EVERY_MS) return false;
+    if (at !== undefined && now - at < every) return false;
     if (this.recorded.size >= MAX_THROTTLE_KEYS) this.recorded.clear();
     this.recorded.set(key, now);
     return true;
@@ -277,6 +277,7 @@ export class SiteBridge {
       const readings: Reading[] = [];
       let matched = false;
       let read = false;
+      let unattached: string | null = null;
       for (const link of links) {
         const info = await sensorInfo(link.sensorId);
         if (!info) {
@@ -290,7 +291,10 @@ export class SiteBridge {
         }
         read = true;
         for (const item of decoded.items) {
-          if (link.device && item.device !== link.device) continue;
+          if (link.device && item.device !== link.device) {
+            if (item.device) unattached ??= item.device;
+            continue;
+          }
           matched = true;
           if (packet.retain && !item.values.at) {
             // Sent again by the broker on subscribing: the value is old and says not when it was measured.
@@ -308,6 +312,11 @@ export class SiteBridge {
       }
       if (read && !matched && links.every((l) => l.device)) {
         this.state.counts.otherDevices++;
+        // Recorded like an unknown sensor, but once an hour per topic: a gateway hears every
+        // neighbour's tags, and a row for each would push the real refusals out of the record.
+        if (unattached && this.due(`${topic}|other`, now, 3_600_000)) {
+          rejections.push({ sensorId: null, source: "mqtt", topic, reason: `home broker: device ${unattached} in this topic is not attached to a sensor (others may be too)`, payload: preview() });
+        }
         return;
       }
       if (readings.length === 0) return;
