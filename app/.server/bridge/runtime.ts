@@ -88,6 +88,8 @@ export class SiteBridge {
   /** Bumped whenever a connection is given up: a commit that finishes after that must not ack on the next one. */
   private generation = 0;
   private byTopic = new Map<string, BridgeLink[]>();
+  /** Topics the broker's session for us holds (confirmed by its SUBACK). */
+  private subscribed = new Set<string>();
   private buckets = new Map<string, Bucket>();
   private recorded = new Map<string, number>();
   private reconnectMs: number;
@@ -116,11 +118,31 @@ export class SiteBridge {
     }
     this.buckets.clear();
     const c = this.client;
-    if (!c?.connected) return;
-    const added = this.topics.filter((t) => !before.has(t));
+    if (!c?.connected) return; // the next connect subscribes what is missing
     const removed = [...before].filter((t) => !this.byTopic.has(t));
-    if (added.length) c.subscribe(added, { qos: 1 }, (err) => err && this.fail(`Could not subscribe: ${err.message}`));
-    if (removed.length) c.unsubscribe(removed);
+    if (removed.length) {
+      for (const t of removed) this.subscribed.delete(t);
+      c.unsubscribe(removed);
+    }
+    this.subscribeMissing(c);
+  }
+
+  /**
+   * Subscribes the attached topics the session does not hold yet. Not all of them on every
+   * reconnect: subscribing again makes the broker send its retained messages again (MQTT 3.1.1
+   * §3.8.4).
+   */
+  private subscribeMissing(c: MqttClient) {
+    const missing = this.topics.filter((t) => !this.subscribed.has(t));
+    if (missing.length === 0) return;
+    c.subscribe(missing, { qos: 1 }, (err, granted) => {
+      if (err) return this.fail(`Could not subscribe: ${err.message}`);
+      for (const g of granted ?? []) {
+        // 0x80 (3.1.1) or a reason code of 0x80 and over (5): the broker refused this topic to our user.
+        if (g.qos >= 0x80) this.fail(`The broker refused the subscription to ${g.topic}: check the user's access to it`);
+        else this.subscribed.add(g.topic);
+      }
+    });
   }
 
   start() {
@@ -147,7 +169,7 @@ export class SiteBridge {
       keepalive: 60,
       connectTimeout: 15_000,
       reconnectPeriod: this.reconnectMs,
-      resubscribe: true,
+      resubscribe: false,
       // MQTT 5: keep the session while we are away, hold at most 20 unacknowledged messages in
       // flight to us, and send nothing bigger than we take.
       ...(v5 ? { properties: { sessionExpiryInterval: SESSION_EXPIRY_S, receiveMaximum: 20, maximumPacketSize: MAX_BRIDGE_V5_PACKET_BYTES } } : {}),
@@ -161,9 +183,10 @@ export class SiteBridge {
       this.state.connectedSince = Date.now();
       this.reconnectMs = this.deps.reconnectMs ?? 2000;
       client.options.reconnectPeriod = this.reconnectMs;
-      // A resumed session still has the subscriptions; subscribing again is harmless and covers
-      // a broker that lost the session (connack.sessionPresent false).
-      if (this.topics.length) client.subscribe(this.topics, { qos: 1 }, (err) => err && this.fail(`Could not subscribe: ${err.message}`));
+      // A resumed session holds our subscriptions; a new one (first connect, or a broker that lost
+      // it) holds none.
+      if (!connack.sessionPresent) this.subscribed.clear();
+      this.subscribeMissing(client);
       this.deps.log?.(`[bridge ${this.config.siteId}] connected to ${this.config.url}${connack.sessionPresent ? " (session resumed)" : ""}`);
     });
     client.on("reconnect", () => {
