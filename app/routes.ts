@@ -31,6 +31,7 @@ export default [
       route("plants/new", "routes/plants.new.tsx"),
       route("plants/:plantKey", "routes/plants.$plantKey.tsx"),
       route("wishlist", "routes/wishlist.tsx"),
+      route("broker", "routes/site.broker.tsx"),
     ]),
   ]),
 

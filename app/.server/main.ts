@@ -63,6 +63,9 @@ async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[],
     await broker.close();
     await writer().drain();
   });
+  // Bridges to the growers' own brokers (stopped before the writer drains: unacknowledged messages come again).
+  const { startBridges } = await import("~/.server/bridge/runtime");
+  stops.push(await startBridges({ writer: writer(), log }));
 
   // Outdoor weather: the hosted service when configured, else the local fake (the simulator's
   // climate, with the demo's forecast front under NW_COLD_FRONT). The job never blocks start-up.

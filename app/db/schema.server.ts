@@ -514,3 +514,46 @@ export const forecastWarnings = pgTable(
   },
   (t) => [uniqueIndex().on(t.spotId, t.night)],
 );
+
+// Bridge mode (issue 19): a site's connection, as an MQTT client, to a broker the grower already
+// runs, and the topics (or devices inside a shared topic) attached to the site's sensors. The
+// password is kept so the bridge can reconnect, and never sent back to a page.
+export const bridges = pgTable("bridges", {
+  id: serial().primaryKey(),
+  siteId: integer()
+    .notNull()
+    .unique()
+    .references(() => sites.id, { onDelete: "cascade" }),
+  url: text().notNull(),
+  username: text(),
+  password: text(),
+  /** PEM of a private CA for mqtts://, or null for the system's. */
+  caCert: text(),
+  /** 4 (MQTT 3.1.1) or 5. */
+  protocolVersion: smallint().notNull().default(4),
+  /** Stable, so the broker keeps the session (and what was not acknowledged) across reconnects. */
+  clientId: text().notNull(),
+  enabled: boolean().notNull().default(true),
+  createdAt: createdAt(),
+  updatedAt: createdAt(),
+});
+
+export const bridgeLinks = pgTable(
+  "bridge_links",
+  {
+    id: serial().primaryKey(),
+    bridgeId: integer()
+      .notNull()
+      .references(() => bridges.id, { onDelete: "cascade" }),
+    sensorId: integer()
+      .notNull()
+      .references(() => sensors.id, { onDelete: "cascade" }),
+    topic: text().notNull(),
+    /** The device inside a shared topic (a BLE address, a Tasmota sensor name), or '' for the whole topic. */
+    device: text().notNull().default(""),
+    /** How the messages are read: app/domain/payloads/presets.ts `Mapping`. */
+    mapping: jsonb().$type<import("~/domain/payloads/presets").Mapping>().notNull(),
+    createdAt: createdAt(),
+  },
+  (t) => [uniqueIndex().on(t.bridgeId, t.topic, t.device), index().on(t.sensorId)],
+);

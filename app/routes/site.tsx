@@ -32,6 +32,7 @@ export default function SiteLayout({ loaderData }: Route.ComponentProps) {
     { to: `${base}/water`, label: "Water" },
     { to: `${base}/alerts`, label: "Alerts" },
     { to: `${base}/members`, label: "People" },
+    { to: `${base}/broker`, label: "Home broker" },
     ...(role === "owner" ? [{ to: `${base}/edit`, label: "Site details" }] : []),
   ];
   // The section you are in: the tab whose address starts this page's (a spot's pages belong to Spots).

@@ -21,6 +21,7 @@ export const OWNER_PAGES = [
   "/sites/1/import",
   "/sites/1/water",
   "/sites/1/alerts",
+  "/sites/1/broker",
   "/sites/1/members",
   "/sites/1/edit",
   "/settings",

@@ -51,6 +51,7 @@ const EXPECT: Record<string, Expect> = {
   "/sites/:siteId/plants/:plantKey": { get: member, post: refuse(["owner", "carer"]) },
   "/sites/:siteId/wishlist": { get: member, post: refuse(["owner", "carer"]) },
   "/sites/:siteId/alerts": { get: member, post: refuse(["owner", "carer", "mentor"]) },
+  "/sites/:siteId/broker": { get: member, post: refuse(["owner"]) },
   "/sites/:siteId/spots/:spotId/alerts": { get: member, post: refuse(["owner"]) },
   "/api/sites/:siteId/alerts": { get: member },
   "/api/ingest": { get: all(405), post: all(401) },
