@@ -6,7 +6,7 @@ import { useEffect, useMemo, useRef, useState } from "react";
 import type uPlot from "uplot";
 import "uplot/dist/uPlot.min.css";
 import { DEFAULT_FORMAT } from "~/domain/fit/describe";
-import { timeTickLabels } from "~/lib/chart-scale";
+import { calendarTicks, timeTickLabels } from "~/lib/chart-scale";
 
 export const TEMP_COLOURS = { cold: "#3b6ea8", cool: "#6aa3c8", mild: "#cdbf9a", warm: "#e0a04a", hot: "#c4472f" };
 
@@ -21,6 +21,8 @@ export type ChartSpec = {
   legend?: boolean;
   /** How the pointer's x reads in the legend when x is not time (a month's name, say). */
   xLabel?: (x: number) => string;
+  /** Ticks on whole months (or days over a short range) for scattered dates, such as water checks. */
+  calendarAxis?: boolean;
   build: (
     data: Record<string, (number | null)[]>,
     unit: "C" | "F",
@@ -113,7 +115,18 @@ export function Chart({
       const axisStyle = { stroke: "#5f584e", grid: { stroke: "#e4dccd" }, ticks: { stroke: "#e4dccd" } };
       const axes = built.axes ?? [axisStyle, { ...axisStyle, label: `°${spec.unit}`, size: 50 }];
       const el = ref.current;
-      if (timeAxis && axes[0])
+      if (timeAxis && axes[0] && spec.calendarAxis) {
+        let ticks: { splits: number[]; labels: string[] } = { splits: [], labels: [] };
+        axes[0] = {
+          ...axes[0],
+          splits: (_u, _i, min, max) => (ticks = calendarTicks(min, max, loc, tz)).splits,
+          values: (_u, splits) => {
+            const labels = splits.map((s) => ticks.labels[ticks.splits.indexOf(s)] ?? "");
+            el.dataset.xTicks = labels.join("|");
+            return labels;
+          },
+        };
+      } else if (timeAxis && axes[0])
         axes[0] = {
           ...axes[0],
           values: (_u, splits) => {

@@ -124,6 +124,7 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
       title: "Dissolved solids over time (conductivity, µS/cm)",
       unit: "C",
       height: 220,
+      calendarAxis: true,
       build: (d) => ({
         data: [d.t, ...sources.map((_s, i) => d[`s${i}`]), d.limit] as never,
         series: [
