@@ -34,11 +34,14 @@ export default function SiteLayout({ loaderData }: Route.ComponentProps) {
     { to: `${base}/members`, label: "People" },
     ...(role === "owner" ? [{ to: `${base}/edit`, label: "Site details" }] : []),
   ];
-  // The section you are in: the tab whose address starts this page's (a spot's pages belong to Spots).
-  const current =
-    tabs
-      .filter((t) => (t.end ? location.pathname === t.to : location.pathname === t.to || location.pathname.startsWith(`${t.to}/`)))
-      .sort((a, b) => b.to.length - a.to.length)[0] ?? (location.pathname.startsWith(`${base}/spots`) ? tabs[0] : undefined);
+  // The section you are in: the tab whose address starts this page's. A spot's pages belong to Spots,
+  // except its alert watches, which belong to Alerts (the site's alerts page links to them).
+  const spotWatches = new RegExp(`^${base}/spots/[^/]+/alerts/?$`).test(location.pathname);
+  const current = spotWatches
+    ? tabs.find((t) => t.to === `${base}/alerts`)
+    : (tabs
+        .filter((t) => (t.end ? location.pathname === t.to : location.pathname === t.to || location.pathname.startsWith(`${t.to}/`)))
+        .sort((a, b) => b.to.length - a.to.length)[0] ?? (location.pathname.startsWith(`${base}/spots`) ? tabs[0] : undefined));
   // The tab's own page is the current page; a page under it (a spot of Spots) is its current location.
   const here = (t: (typeof tabs)[number]) =>
     t === current ? { "data-here": "", "aria-current": location.pathname === t.to ? ("page" as const) : ("location" as const) } : {};
