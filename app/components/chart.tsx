@@ -52,7 +52,7 @@ type LegendRow = { label: string; colour: string; dash?: number[]; latest: numbe
 
 function legendRows(built: ReturnType<ChartSpec["build"]>): LegendRow[] {
   return built.series.flatMap((s, i) => {
-    const stroke = typeof s.stroke === "string" ? s.stroke : "#2b2722";
+    const stroke = typeof s.stroke === "string" ? s.stroke : "#182338";
     if (stroke === "transparent" || !s.label) return [];
     const values = (built.data[i + 1] ?? []) as (number | null | undefined)[];
     const present = values.filter((v): v is number => v != null && Number.isFinite(v));
@@ -112,7 +112,7 @@ export function Chart({
       const timeAxis = built.scales?.x?.time !== false;
       // A fixed span (48 hours, a year) from the route, so a few minutes of data still sit on the right scale.
       const xRange = timeAxis && typeof meta.from === "number" && typeof meta.to === "number" ? ([meta.from, meta.to] as [number, number]) : undefined;
-      const axisStyle = { stroke: "#5f584e", grid: { stroke: "#e4dccd" }, ticks: { stroke: "#e4dccd" } };
+      const axisStyle = { stroke: "#4a5767", grid: { stroke: "#d4dcdb" }, ticks: { stroke: "#d4dcdb" } };
       const axes = built.axes ?? [axisStyle, { ...axisStyle, label: `°${spec.unit}`, size: 50 }];
       const el = ref.current;
       if (timeAxis && axes[0] && spec.calendarAxis) {

@@ -9,6 +9,7 @@ import { PlaceSensorForm, PlacementHistory, PlacingTips } from "~/components/pla
 import { SeasonTable } from "~/components/season";
 import { GroupedFits, VerdictSummary } from "~/components/fit-groups";
 import { useNow } from "~/components/use-now";
+import { SpotKindIcon, WatchIcon } from "~/components/icons";
 import { YearStrip } from "~/components/year-strip";
 import { NotesPanel } from "~/components/notes-panel";
 import { SpotExports } from "~/components/spot-exports";
@@ -177,16 +178,22 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
   return (
     <div className="space-y-6">
       <div className="flex flex-wrap items-end justify-between gap-3">
-        <div>
-          <h2 className="text-xl font-semibold">{spot.name}</h2>
+        <div className="flex items-start gap-3">
+          <span className="mt-0.5 grid size-11 shrink-0 place-items-center rounded-t-full rounded-b-[0.2rem] bg-stone text-ink">
+            <SpotKindIcon name={spot.name} indoor={spot.indoor} size={24} />
+          </span>
+          <div>
+          <h2 className="text-title font-semibold">{spot.name}</h2>
           <p className="text-sm text-muted">
             {spot.indoor ? "Indoors" : "Outdoors"}
             {spot.facing !== "none" ? ` · window faces ${spot.facing}` : ""}
             {spot.capacity ? ` · room for ${spot.capacity} pots` : ""}
           </p>
+          </div>
         </div>
         <div className="flex flex-wrap gap-2">
           <Link to="alerts" className="btn-quiet">
+            <WatchIcon size={16} />
             Alert watches
           </Link>
           {role === "owner" ? (
