@@ -159,7 +159,7 @@ export default function PlantPage({ loaderData, actionData }: Route.ComponentPro
                   {sourcesFor(plant, n.fields).map((s) => (
                     <li key={s.field + s.source}>
                       Source: {s.source}
-                      {s.memory ? <span className="ml-1 rounded bg-accent-soft px-1.5 text-xs font-medium text-ink">from memory</span> : null}
+                      {s.memory ? <span className="tag ml-1">from memory</span> : null}
                     </li>
                   ))}
                   {sourcesFor(plant, n.fields).length === 0 ? <li>No source recorded.</li> : null}

@@ -149,7 +149,7 @@ function LightNotes({ profile, lightSource }: { profile: { luxPerPpfd: number; l
         </p>
       ) : null}
       {clipped ? (
-        <p className="mt-2 rounded-lg border border-care/40 bg-care/5 p-2 text-sm" role="note" data-testid="lux-clipped">
+        <p className="caution mt-2 p-2 text-sm" role="note" data-testid="lux-clipped">
           Your light sensor tops out at about {(Math.round(clipped.ceilingLux / 1000) * 1000).toLocaleString("en")} lux: the sunniest hours read low,
           so the DLI{months.length ? ` of ${months.join(", ")}` : ""} is a lower bound.
         </p>

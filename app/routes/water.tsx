@@ -9,6 +9,7 @@ import { parseSource, ppmLabel, sourceName, STANDARD_SOURCES } from "~/domain/wa
 import { PH_MAX, PH_MIN, ROUTINE_WATERING_MAX_EC, routineLimitPpm, UNBUFFERED_MAX_EC, type WaterVerdict } from "~/domain/water/water";
 import { formatInZone, toLocalInputValue, zonedToUtc } from "~/lib/time";
 import type { Route } from "./+types/water";
+import { WaterIcon } from "~/components/icons";
 
 export const meta: Route.MetaFunction = () => [{ title: "Water checks · Nichewise" }];
 
@@ -150,7 +151,10 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
   return (
     <div className="space-y-6">
       <div>
-        <h2 className="text-xl font-semibold">Water checks</h2>
+        <h2 className="flex items-center gap-2 text-title font-semibold">
+          <WaterIcon size={22} />
+          Water checks
+        </h2>
         <p className="max-w-3xl text-sm text-muted">
           Check each water source before it goes on the plants: dissolved solids (a TDS meter in ppm, or an EC meter in µS/cm) and pH.
           The rules of thumb:
@@ -167,7 +171,7 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
         </ul>
       </div>
 
-      <p className="rounded-xl border border-care/40 bg-care/5 p-3 text-sm" role="note">
+      <p className="caution text-sm" role="note">
         <span className="font-semibold">These are hobby rules of thumb</span> (common practice among orchid growers), not a laboratory test or a
         drinking-water standard. Cheap meters drift: calibrate yours as its manual says, and ask your mentor or club when a result surprises you.
       </p>
