@@ -119,7 +119,8 @@ export function Chart({
         let ticks: { splits: number[]; labels: string[] } = { splits: [], labels: [] };
         axes[0] = {
           ...axes[0],
-          splits: (_u, _i, min, max) => (ticks = calendarTicks(min, max, loc, tz)).splits,
+          // About one label per 80 px, so "Jul 2026" never runs into "Aug" on a phone.
+          splits: (u, _i, min, max) => (ticks = calendarTicks(min, max, loc, tz, Math.max(2, Math.floor(u.width / 80)))).splits,
           values: (_u, splits) => {
             const labels = splits.map((s) => ticks.labels[ticks.splits.indexOf(s)] ?? "");
             el.dataset.xTicks = labels.join("|");
