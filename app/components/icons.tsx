@@ -73,13 +73,13 @@ export function BalconyIcon(props: IconProps) {
   );
 }
 
-/** An outdoor bench under a tree's crown. */
+/** An outdoor bench: two back slats, a seat and legs, with a leaf blowing over it. */
 export function BenchIcon(props: IconProps) {
   return (
     <Icon {...props}>
-      <path d="M3 13h14M4.5 13v4M15.5 13v4" />
-      <path d="M13 13V9" />
-      <path d="M13 9c-2.6 0-3.6-1.4-3.6-3.2S11 2.5 13 2.5s3.6 1.5 3.6 3.3S15.6 9 13 9z" />
+      <path d="M4 7.5h12M4 10h12M2.5 13h15" />
+      <path d="M4.5 7.5V17M15.5 7.5V17" />
+      <path d="M12.5 4.8c1.2-1.9 3.2-2.4 5-2-.3 2-2 3.3-5 2zM12.5 4.8l2.3-1" />
     </Icon>
   );
 }
