@@ -6,7 +6,7 @@ import { useEffect, useMemo, useRef, useState } from "react";
 import type uPlot from "uplot";
 import "uplot/dist/uPlot.min.css";
 import { DEFAULT_FORMAT } from "~/domain/fit/describe";
-import { timeTickLabels } from "~/lib/chart-scale";
+import { calendarTicks, timeTickLabels } from "~/lib/chart-scale";
 
 export const TEMP_COLOURS = { cold: "#3b6ea8", cool: "#6aa3c8", mild: "#cdbf9a", warm: "#e0a04a", hot: "#c4472f" };
 
@@ -21,6 +21,8 @@ export type ChartSpec = {
   legend?: boolean;
   /** How the pointer's x reads in the legend when x is not time (a month's name, say). */
   xLabel?: (x: number) => string;
+  /** Ticks on whole months (or days over a short range) for scattered dates, such as water checks. */
+  calendarAxis?: boolean;
   build: (
     data: Record<string, (number | null)[]>,
     unit: "C" | "F",
@@ -50,7 +52,7 @@ type LegendRow = { label: string; colour: string; dash?: number[]; latest: numbe
 
 function legendRows(built: ReturnType<ChartSpec["build"]>): LegendRow[] {
   return built.series.flatMap((s, i) => {
-    const stroke = typeof s.stroke === "string" ? s.stroke : "#2b2722";
+    const stroke = typeof s.stroke === "string" ? s.stroke : "#182338";
     if (stroke === "transparent" || !s.label) return [];
     const values = (built.data[i + 1] ?? []) as (number | null | undefined)[];
     const present = values.filter((v): v is number => v != null && Number.isFinite(v));
@@ -110,10 +112,22 @@ export function Chart({
       const timeAxis = built.scales?.x?.time !== false;
       // A fixed span (48 hours, a year) from the route, so a few minutes of data still sit on the right scale.
       const xRange = timeAxis && typeof meta.from === "number" && typeof meta.to === "number" ? ([meta.from, meta.to] as [number, number]) : undefined;
-      const axisStyle = { stroke: "#5f584e", grid: { stroke: "#e4dccd" }, ticks: { stroke: "#e4dccd" } };
+      const axisStyle = { stroke: "#4a5767", grid: { stroke: "#d4dcdb" }, ticks: { stroke: "#d4dcdb" } };
       const axes = built.axes ?? [axisStyle, { ...axisStyle, label: `°${spec.unit}`, size: 50 }];
       const el = ref.current;
-      if (timeAxis && axes[0])
+      if (timeAxis && axes[0] && spec.calendarAxis) {
+        let ticks: { splits: number[]; labels: string[] } = { splits: [], labels: [] };
+        axes[0] = {
+          ...axes[0],
+          // About one label per 80 px, so "Jul 2026" never runs into "Aug" on a phone.
+          splits: (u, _i, min, max) => (ticks = calendarTicks(min, max, loc, tz, Math.max(2, Math.floor(u.width / 80)))).splits,
+          values: (_u, splits) => {
+            const labels = splits.map((s) => ticks.labels[ticks.splits.indexOf(s)] ?? "");
+            el.dataset.xTicks = labels.join("|");
+            return labels;
+          },
+        };
+      } else if (timeAxis && axes[0])
         axes[0] = {
           ...axes[0],
           values: (_u, splits) => {

@@ -3,6 +3,7 @@
 // first days against the outdoor weather, the site's outdoor climate and the direct sun by month.
 // Words first; the month-by-month figures one fold down. Dates come formatted from the loader.
 import type { DirectSunEstimate } from "~/domain/climate/sun";
+import { SpotsAndSeasons } from "~/components/illustration";
 import { formatDelta, formatTemp, type TempUnit } from "~/lib/units";
 
 const MONTHS = ["Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"];
@@ -46,9 +47,12 @@ export function DayOne({ view, sun, unit }: { view: DayOneView; sun: DirectSunEs
   const warmest = climate?.months.reduce((a, b) => (b.meanDailyHighC > a.meanDailyHighC ? b : a));
   return (
     <section id="day-one" className="card space-y-2.5 text-sm" aria-labelledby="day-one-heading" data-testid="day-one">
-      <h3 id="day-one-heading" className="h2">
-        What is known already
-      </h3>
+      <div className="flex items-end justify-between gap-4">
+        <h3 id="day-one-heading" className="h2">
+          What is known already
+        </h3>
+        <SpotsAndSeasons className="h-auto w-32 shrink-0 sm:w-44" />
+      </div>
 
       <p className="text-base" data-testid="day-one-model">
         {view.daysWithReadings === 0 ? (

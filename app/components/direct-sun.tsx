@@ -78,8 +78,8 @@ function SunBars({ months }: { months: SunMonth[] }) {
       <svg viewBox={`0 0 ${W} ${H}`} className="h-auto w-full max-w-xl" role="img" aria-label={label} data-testid="direct-sun-bars">
         {ticks.map((t) => (
           <g key={t}>
-            <line x1={left} x2={W - 4} y1={y(t)} y2={y(t)} stroke="#e4dccd" />
-            <text x={left - 4} y={y(t) + 3.5} textAnchor="end" fontSize="10" fill="#5f584e">
+            <line x1={left} x2={W - 4} y1={y(t)} y2={y(t)} stroke="#d4dcdb" />
+            <text x={left - 4} y={y(t) + 3.5} textAnchor="end" fontSize="10" fill="#4a5767">
               {t} h
             </text>
           </g>
@@ -90,8 +90,8 @@ function SunBars({ months }: { months: SunMonth[] }) {
           return (
             <g key={m.month}>
               {h > 0 ? <rect x={x + colW * 0.18} width={colW * 0.64} y={y(h)} height={y(0) - y(h)} rx="2" fill="#b7791f" /> : null}
-              {h === 0 ? <line x1={x + colW * 0.3} x2={x + colW * 0.7} y1={y(0) - 1} y2={y(0) - 1} stroke="#5f584e" strokeWidth="2" /> : null}
-              <text x={x + colW / 2} y={H - 6} textAnchor="middle" fontSize="10" fill="#2b2722">
+              {h === 0 ? <line x1={x + colW * 0.3} x2={x + colW * 0.7} y1={y(0) - 1} y2={y(0) - 1} stroke="#4a5767" strokeWidth="2" /> : null}
+              <text x={x + colW / 2} y={H - 6} textAnchor="middle" fontSize="10" fill="#182338">
                 {MONTHS[m.month - 1]}
               </text>
             </g>

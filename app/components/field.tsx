@@ -82,7 +82,7 @@ export function TextAreaField({ meta, label, hint }: { meta: Meta; label: string
 
 export function FormErrors({ errors }: { errors?: string[] }) {
   return errors?.length ? (
-    <div role="alert" className="rounded-lg border border-poor/30 bg-poor/5 px-3 py-2 text-sm font-medium text-poor">
+    <div role="alert" className="rounded-[0.2rem] border border-l-4 border-poor/30 border-l-poor bg-card px-3 py-2 text-sm font-medium text-poor">
       {errors.join(" ")}
     </div>
   ) : null;

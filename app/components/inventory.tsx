@@ -1,6 +1,7 @@
 // The plants standing in a spot now: add, move to another spot, remove (owner and carer).
 import { Form } from "react-router";
 import { VerdictBadge } from "~/components/season";
+import { PlantIcon } from "~/components/icons";
 import { formatTemp, type TempUnit } from "~/lib/units";
 
 export type StandingPlant = { id: number; plantKey: string; plantName: string; nickname: string; pots: number; verdict: string | null };
@@ -30,7 +31,10 @@ export function Inventory({
   return (
     <section className="card space-y-4" data-testid="inventory">
       <div>
-        <h3 className="h2">Plants here now</h3>
+        <h3 className="h2 flex items-center gap-2">
+          <PlantIcon size={20} />
+          Plants here now
+        </h3>
         <p className="text-sm text-muted">
           {standing.length === 0 ? "Nothing recorded in this spot yet." : `${pots} ${pots === 1 ? "pot" : "pots"}${capacity ? ` of room for ${capacity}` : ""}.`}
           {tender ? ` Most tender: ${tender.name}, which wants nights of ${formatTemp(tender.minNightC, unit, 0)} or more — cold alerts for this spot start from it.` : ""}

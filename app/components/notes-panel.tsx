@@ -5,6 +5,7 @@ import { useEffect, useRef } from "react";
 import { useFetcher } from "react-router";
 import type { Role } from "~/db/schema.server";
 import { formatInZone } from "~/lib/time";
+import { NoteIcon } from "~/components/icons";
 
 export type PanelNote = {
   id: number;
@@ -45,7 +46,8 @@ export function NotesPanel({
   return (
     <section className="card space-y-4" data-testid="notes-panel" aria-labelledby="notes-heading">
       <div>
-        <h3 id="notes-heading" className="h2">
+        <h3 id="notes-heading" className="h2 flex items-center gap-2">
+          <NoteIcon size={20} />
           Notes from your mentor
         </h3>
         <p className="text-sm text-muted">Advice left on {about} by the site's mentor or owner, newest first.</p>
@@ -104,7 +106,7 @@ function NoteItem({ note, action, canResolve, timeZone }: { note: PanelNote; act
   const resolved = note.resolvedAt != null;
   const day = (d: Date | string) => formatInZone(d, timeZone, { hour: undefined, minute: undefined });
   return (
-    <li className={`rounded-xl border border-line p-3 ${resolved ? "bg-paper text-muted" : "bg-white"}`}>
+    <li className={`rounded-t-[1rem] rounded-b-[0.2rem] border border-b-[3px] border-stone-line p-3 ${resolved ? "bg-paper text-muted" : "bg-white"}`}>
       <p className="text-sm whitespace-pre-line">{note.body}</p>
       <div className="mt-2 flex flex-wrap items-center justify-between gap-2 text-xs text-muted">
         <p>

@@ -158,7 +158,7 @@ export function PlacementEditor({
   return (
     <div className="space-y-4">
       {unplaced.length > 0 ? (
-        <div className="space-y-3 rounded-lg border border-care/40 bg-care/10 p-3" data-testid="unplaced">
+        <div className="caution space-y-3" data-testid="unplaced">
           {unplaced.map((u) => (
             <div key={`${String(u.from)}-${String(u.to)}`} className="space-y-2">
               <p className="text-sm">

@@ -6,6 +6,7 @@ import { tempColour } from "~/components/year-strip";
 import { VerdictMark, VerdictWords, VERDICT_SHORT, type VerdictName } from "~/components/verdict-mark";
 import { formatTemp, toUnit, type TempUnit } from "~/lib/units";
 import { timeAgo } from "~/lib/time";
+import { NoteIcon, PlantIcon, SensorIcon, SpotKindIcon, WatchIcon } from "~/components/icons";
 
 export type CardMonth = { key: string; name: string; lowest: number | null; highest: number | null; meanDailyLow: number | null; meanDailyHigh: number | null; enough: boolean };
 
@@ -83,28 +84,35 @@ export function SpotCard({ spot, siteId, unit, now, periodText }: { spot: SpotCa
   const hourAge = spot.latest ? now - new Date(spot.latest.hour).getTime() : 0;
   return (
     <article className={`niche flex h-full flex-col gap-3 ${openAlerts ? "border-v-struggles border-2" : ""}`} aria-labelledby={`spot-${spot.id}`} data-testid="spot-card">
-      <header>
-        <p className="eyebrow">
-          {spot.indoor ? "indoors" : "outdoors"}
-          {spot.facing !== "none" ? ` · window ${spot.facing}` : ""}
-        </p>
-        <h3 id={`spot-${spot.id}`} className="text-lg leading-snug font-semibold">
-          <Link to={href} className="hover:underline">
-            {spot.name}
-          </Link>
-        </h3>
+      <header className="flex items-start gap-3">
+        <span className="mt-0.5 grid size-10 shrink-0 place-items-center rounded-t-full rounded-b-[0.2rem] bg-stone text-ink">
+          <SpotKindIcon name={spot.name} indoor={spot.indoor} size={22} />
+        </span>
+        <div>
+          <p className="eyebrow">
+            {spot.indoor ? "indoors" : "outdoors"}
+            {spot.facing !== "none" ? ` · window ${spot.facing}` : ""}
+          </p>
+          <h3 id={`spot-${spot.id}`} className="text-lg leading-snug font-semibold">
+            <Link to={href} className="hover:underline">
+              {spot.name}
+            </Link>
+          </h3>
+        </div>
       </header>
 
       {spot.alerts.length || spot.openNotes ? (
         <p className="flex flex-wrap gap-x-3 text-sm">
           {spot.alerts.length ? (
-            <Link to={`/sites/${siteId}/alerts`} className="font-semibold text-v-struggles underline underline-offset-2" data-testid="card-alerts">
+            <Link to={`/sites/${siteId}/alerts`} className="inline-flex items-center gap-1 font-semibold text-v-struggles underline underline-offset-2" data-testid="card-alerts">
+              <WatchIcon size={16} />
               {spot.alerts.length === 1 ? "1 open alert" : `${spot.alerts.length} open alerts`}
               {openAlerts < spot.alerts.length ? ` (${spot.alerts.length - openAlerts} acknowledged)` : ""}
             </Link>
           ) : null}
           {spot.openNotes ? (
-            <Link to={`${href}#notes`} className="link" data-testid="card-notes">
+            <Link to={`${href}#notes`} className="link inline-flex items-center gap-1" data-testid="card-notes">
+              <NoteIcon size={16} />
               {spot.openNotes === 1 ? "1 open note" : `${spot.openNotes} open notes`}
             </Link>
           ) : null}
@@ -149,7 +157,10 @@ export function SpotCard({ spot, siteId, unit, now, periodText }: { spot: SpotCa
       </figure>
 
       <div>
-        <p className="eyebrow mb-1">Standing here</p>
+        <p className="eyebrow mb-1 inline-flex items-center gap-1">
+          <PlantIcon size={14} />
+          Standing here
+        </p>
         {spot.standing.length ? (
           <ul className="space-y-0.5 text-sm" data-testid="card-plants">
             {spot.standing.map((p) => (
@@ -170,7 +181,8 @@ export function SpotCard({ spot, siteId, unit, now, periodText }: { spot: SpotCa
         )}
       </div>
 
-      <p className="mt-auto border-t border-stone-line pt-2 text-xs text-muted tabular-nums">
+      <p className="mt-auto flex items-start gap-1.5 border-t border-stone-line pt-2 text-xs text-muted tabular-nums">
+        <SensorIcon size={14} className="mt-px" />
         {spot.latest
           ? `Latest hour: ${spot.latest.t != null ? formatTemp(spot.latest.t, unit) : "–"}${spot.latest.h != null ? `, ${Math.round(spot.latest.h)} % RH` : ""}${
               hourAge < 3_600_000 ? " (so far this hour)" : ` · nothing heard for ${timeAgo(new Date(new Date(spot.latest.hour).getTime() + 3_600_000), now).replace(" ago", "")}`

@@ -6,7 +6,7 @@ import type uPlot from "uplot";
 import { Chart, SITE_LOCALE, TEMP_COLOURS, useSeries, type ChartSpec } from "~/components/chart";
 import { deltaToUnit, formatDelta, formatTemp, toUnit, type TempUnit } from "~/lib/units";
 
-const AXIS = { stroke: "#5f584e", grid: { stroke: "#e4dccd" }, ticks: { stroke: "#e4dccd" } };
+const AXIS = { stroke: "#4a5767", grid: { stroke: "#d4dcdb" }, ticks: { stroke: "#d4dcdb" } };
 export const MONTHS_SHORT = ["Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"];
 /** Dew-point margin under which glass and leaves are taken to be wet (the brief; same as the season profile). */
 const WET_MARGIN_C = 2;
@@ -59,7 +59,7 @@ export function HoursCharts({ url, unit, timeZone }: { url: string; unit: TempUn
       height: 200,
       build: (d, u) => ({
         data: [d.t as number[], conv(d.temp, u)] as never,
-        series: [{ label: `Temperature °${u}`, stroke: "#9a4725", width: 2, value: fmt(u) }],
+        series: [{ label: `Temperature °${u}`, stroke: "#182338", width: 2, value: fmt(u) }],
         axes: [AXIS, { ...AXIS, label: `°${u}`, size: 50 }],
       }),
     }),

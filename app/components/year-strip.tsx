@@ -117,8 +117,8 @@ function Strip({
     <svg viewBox={`0 0 ${W} ${H}`} className={className} role="img" aria-label={title} data-testid={testId}>
         {ticks.map((t) => (
           <g key={t.label}>
-            <line x1={left} x2={W - 8} y1={y(t.c)} y2={y(t.c)} stroke="#e4dccd" />
-            <text x={left - 6} y={y(t.c) + 4} textAnchor="end" fontSize={font} fill="#5f584e" data-tick={t.label}>
+            <line x1={left} x2={W - 8} y1={y(t.c)} y2={y(t.c)} stroke="#d4dcdb" />
+            <text x={left - 6} y={y(t.c) + 4} textAnchor="end" fontSize={font} fill="#4a5767" data-tick={t.label}>
               {t.label}°
             </text>
           </g>
@@ -138,22 +138,22 @@ function Strip({
             <g key={m.key} opacity={faint ? 0.45 : 1}>
               {t.lowest != null && t.highest != null ? (
                 <>
-                  <line x1={cx} x2={cx} y1={y(t.highest)} y2={y(t.lowest)} stroke="#5f584e" strokeWidth="2" />
+                  <line x1={cx} x2={cx} y1={y(t.highest)} y2={y(t.lowest)} stroke="#4a5767" strokeWidth="2" />
                   {t.p05 != null && t.p95 != null ? (
                     <rect x={cx - colW * 0.22} width={colW * 0.44} y={y(t.p95)} height={Math.max(2, y(t.p05) - y(t.p95))} rx="4" fill={tempColour((t.p05 + t.p95) / 2)} />
                   ) : null}
-                  {t.meanDailyLow != null ? <line x1={cx - colW * 0.32} x2={cx + colW * 0.32} y1={y(t.meanDailyLow)} y2={y(t.meanDailyLow)} stroke="#2b2722" strokeWidth="2" /> : null}
-                  {t.meanDailyHigh != null ? <line x1={cx - colW * 0.32} x2={cx + colW * 0.32} y1={y(t.meanDailyHigh)} y2={y(t.meanDailyHigh)} stroke="#2b2722" strokeWidth="2" /> : null}
+                  {t.meanDailyLow != null ? <line x1={cx - colW * 0.32} x2={cx + colW * 0.32} y1={y(t.meanDailyLow)} y2={y(t.meanDailyLow)} stroke="#182338" strokeWidth="2" /> : null}
+                  {t.meanDailyHigh != null ? <line x1={cx - colW * 0.32} x2={cx + colW * 0.32} y1={y(t.meanDailyHigh)} y2={y(t.meanDailyHigh)} stroke="#182338" strokeWidth="2" /> : null}
                   {band && (t.lowest < band.low || t.highest > band.high) ? (
                     <circle cx={cx} cy={t.lowest < band.low ? y(t.lowest) : y(t.highest)} r="4" fill="#a53a2c" />
                   ) : null}
                 </>
               ) : null}
-              <text x={cx} y={H - bottom + 16} textAnchor="middle" fontSize={font} fill="#2b2722">
+              <text x={cx} y={H - bottom + 16} textAnchor="middle" fontSize={font} fill="#182338">
                 {m.name.slice(0, 3)}
               </text>
               {faint ? (
-                <text x={cx} y={H - bottom + 29} textAnchor="middle" fontSize={font - 2} fill="#5f584e">
+                <text x={cx} y={H - bottom + 29} textAnchor="middle" fontSize={font - 2} fill="#4a5767">
                   {coverageLabel(m.coverage)}
                 </text>
               ) : null}

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { coverageLabel, stripTicks, timeTickLabels } from "~/lib/chart-scale";
+import { calendarTicks, coverageLabel, stripTicks, timeTickLabels } from "~/lib/chart-scale";
 
 const at = (iso: string) => Date.parse(iso) / 1000;
 
@@ -34,5 +34,27 @@ describe("thin months", () => {
     expect(coverageLabel({ daysObserved: 0, hoursObserved: 24 })).toBe("24 h");
     expect(coverageLabel({ daysObserved: 3, hoursObserved: 80 })).toBe("3 d");
     expect(coverageLabel({ daysObserved: 0, hoursObserved: 0 })).toBe("–");
+  });
+});
+
+describe("calendar ticks for occasional checks (the water page; Intl, CLDR en-GB)", () => {
+  it("puts one tick per month over a few months, never the same month twice ('Jan Jan Feb')", () => {
+    const { splits, labels } = calendarTicks(at("2025-11-18T00:00:00Z"), at("2026-03-02T00:00:00Z"), "en-GB", "Europe/London");
+    expect(labels).toEqual(["Dec 2025", "Jan 2026", "Feb", "Mar"]);
+    expect(new Set(labels).size).toBe(labels.length);
+    // At local midnight on the 1st in the site's zone.
+    expect(splits[0]).toBe(at("2025-12-01T00:00:00Z"));
+    expect(calendarTicks(at("2026-03-15T00:00:00Z"), at("2026-06-15T00:00:00Z"), "en-GB", "Europe/Madrid").splits[0]).toBe(at("2026-03-31T22:00:00Z"));
+  });
+  it("thins months over years to at most the ticks asked for, on round months", () => {
+    const { labels } = calendarTicks(at("2024-01-10T00:00:00Z"), at("2026-01-10T00:00:00Z"), "en-GB", "UTC", 8);
+    expect(labels.length).toBeLessThanOrEqual(8);
+    expect(labels).toEqual(["May 2024", "Sept", "Jan 2025", "May", "Sept", "Jan 2026"]);
+  });
+  it("puts one tick per day over a short range, in the site's locale", () => {
+    const { labels } = calendarTicks(at("2026-06-05T09:00:00Z"), at("2026-06-09T18:00:00Z"), "en-GB", "UTC");
+    expect(labels).toEqual(["6 Jun", "7 Jun", "8 Jun", "9 Jun"]);
+    const us = calendarTicks(at("2026-06-05T09:00:00Z"), at("2026-06-09T18:00:00Z"), "en-US", "UTC").labels;
+    expect(us[0]).toBe("Jun 6");
   });
 });

@@ -73,7 +73,7 @@ export default function Admin({ loaderData }: Route.ComponentProps) {
         <h3 className="mt-6 mb-2 font-semibold">Latest examples</h3>
         <ul className="space-y-2 text-sm" data-testid="rejections">
           {health.latest.map((r) => (
-            <li key={r.id} className="rounded-lg bg-paper p-2">
+            <li key={r.id} className="rounded-[0.2rem] bg-paper p-2">
               <p>
                 <span className="font-medium">{r.reason}</span> · {r.source}
                 {r.sensor_id ? ` · sensor ${r.sensor_id}` : ""} · {timeAgo(r.at, now)}

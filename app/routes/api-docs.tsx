@@ -3,6 +3,7 @@ import { requireUser } from "~/.server/auth";
 import { env } from "~/.server/env";
 import { listSpots, mySites } from "~/.server/sites";
 import type { Route } from "./+types/api-docs";
+import { IntoIcon, OutOfIcon } from "~/components/icons";
 
 export const meta: Route.MetaFunction = () => [{ title: "API · Nichewise" }];
 
@@ -63,11 +64,16 @@ const VERB: Record<string, string> = { GET: "Read", POST: "Send", MQTT: "Publish
 function Endpoint({ method, path, who, children }: { method: string; path: string; who: string; children: React.ReactNode }) {
   return (
     <div className="space-y-2 border-t border-stone-line pt-4 first:border-t-0 first:pt-0">
-      <h3 className="api-endpoint">
-        <span className="eyebrow text-ink">
-          {VERB[method] ?? method} <span className="font-mono font-medium tracking-normal normal-case">({method})</span>
+      <h3 className="api-endpoint flex items-start gap-3">
+        <span className="mt-0.5 grid size-9 shrink-0 place-items-center rounded-t-full rounded-b-[0.2rem] bg-stone text-ink">
+          {method === "GET" ? <OutOfIcon size={20} /> : <IntoIcon size={20} />}
         </span>
-        <code className="block font-mono text-sm font-semibold break-all">{path}</code>
+        <span className="min-w-0">
+          <span className="eyebrow block text-ink">
+            {VERB[method] ?? method} <span className="font-mono font-medium tracking-normal normal-case">({method})</span>
+          </span>
+          <code className="block font-mono text-sm font-semibold break-all">{path}</code>
+        </span>
       </h3>
       <p className="text-sm text-muted">{who}</p>
       {children}

@@ -223,7 +223,7 @@ export default function Import({ loaderData }: Route.ComponentProps) {
             </button>
           ) : null}
         </div>
-        {importing ? <div className="h-1.5 w-full animate-pulse rounded bg-accent/40" role="progressbar" aria-label="Importing" /> : null}
+        {importing ? <div className="h-1.5 w-full animate-pulse rounded-[0.2rem] bg-accent/40" role="progressbar" aria-label="Importing" /> : null}
       </fetcher.Form>
 
       {preview ? (

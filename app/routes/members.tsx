@@ -125,7 +125,7 @@ export default function Members({ loaderData, actionData }: Route.ComponentProps
       <div className="space-y-6">
         <section>
           <p className="mb-4 text-muted">Who shares this site, and what each can do.</p>
-          <ul className="divide-y divide-line rounded-2xl border border-line bg-card" data-testid="members">
+          <ul className="shelf-list" data-testid="members">
             {members.map((m) => (
               <li key={m.userId} className="flex flex-wrap items-start justify-between gap-3 p-4">
                 <div className="min-w-0">

@@ -6,6 +6,7 @@ import { fitSummary, judgedPeriods, parsePeriod, pickableMonths, spotProfiles, w
 import { periodLabel, PeriodPicker } from "~/components/period-picker";
 import { getSite, listSpots } from "~/.server/sites";
 import { VerdictBadge } from "~/components/season";
+import { MonthStrip, MonthStripKey } from "~/components/month-strip";
 import { NotesPanel } from "~/components/notes-panel";
 import { listNotes } from "~/.server/notes";
 import { rankSpotsForPlant } from "~/domain/fit/verdict";
@@ -112,6 +113,13 @@ function needsOf(p: PlantProfile, unit: TempUnit): Need[] {
 
 const sourcesFor = (p: PlantProfile, fields: string[]) => p.sources.filter((s) => fields.some((f) => s.field === f || s.field.startsWith(`${f}.`)));
 
+/** A reason's twelve months (passes, care, fails), for the reasons judged month by month. */
+const stripOf = (r: { rule: string }) => ("strip" in r && typeof r.strip === "string" ? r.strip : null);
+function ReasonStrip({ reason }: { reason: { rule: string } }) {
+  const code = stripOf(reason);
+  return code ? <MonthStrip rule={reason.rule} code={code} /> : null;
+}
+
 export default function PlantPage({ loaderData, actionData }: Route.ComponentProps) {
   const { plant, unit, role, spots, wish, standing } = loaderData;
   const navigation = useNavigation();
@@ -151,7 +159,7 @@ export default function PlantPage({ loaderData, actionData }: Route.ComponentPro
                   {sourcesFor(plant, n.fields).map((s) => (
                     <li key={s.field + s.source}>
                       Source: {s.source}
-                      {s.memory ? <span className="ml-1 rounded bg-accent-soft px-1.5 text-xs font-medium text-ink">from memory</span> : null}
+                      {s.memory ? <span className="tag ml-1">from memory</span> : null}
                     </li>
                   ))}
                   {sourcesFor(plant, n.fields).length === 0 ? <li>No source recorded.</li> : null}
@@ -168,6 +176,11 @@ export default function PlantPage({ loaderData, actionData }: Route.ComponentPro
           This site's spots, best fit first, judged on{" "}
           {loaderData.period.chosen === "latest" ? "each spot's latest twelve months with readings" : "the months below"}.
         </p>
+        {spots.some((s) => s.reasons.some((r) => stripOf(r))) ? (
+          <div className="mb-3">
+            <MonthStripKey />
+          </div>
+        ) : null}
         <div className="mb-3">
           <PeriodPicker chosen={loaderData.period.chosen} months={loaderData.period.months} problem={loaderData.period.problem} />
         </div>
@@ -193,14 +206,22 @@ export default function PlantPage({ loaderData, actionData }: Route.ComponentPro
                     {s.basisText}. Projected months are estimates from past weather.
                   </p>
                 ) : null}
-                {s.reasons[0] ? <p className="mt-1.5 text-sm">{s.reasons[0].message}</p> : null}
+                {s.reasons[0] ? (
+                  <div className="mt-1.5 text-sm">
+                    <p>{s.reasons[0].message}</p>
+                    <ReasonStrip reason={s.reasons[0]} />
+                  </div>
+                ) : null}
                 {s.missingAdvice ? <p className="mt-1 text-sm text-muted">{s.missingAdvice}</p> : null}
                 {s.reasons.length > 1 ? (
                   <details className="mt-1 text-sm">
                     <summary className="cursor-pointer text-muted">{s.reasons.length - 1} more</summary>
                     <ul className="mt-1 list-disc space-y-0.5 pl-5">
                       {s.reasons.slice(1).map((r) => (
-                        <li key={r.rule}>{r.message}</li>
+                        <li key={r.rule}>
+                          {r.message}
+                          <ReasonStrip reason={r} />
+                        </li>
                       ))}
                     </ul>
                   </details>

@@ -120,7 +120,7 @@ export default function Plants({ loaderData }: Route.ComponentProps) {
                 <Link to={p.key} className="link font-semibold">
                   {p.name}
                 </Link>
-                {p.own ? <span className="rounded-full bg-accent-soft px-2 text-xs font-medium">own profile</span> : null}
+                {p.own ? <span className="tag">own profile</span> : null}
                 {p.wanted ? <span className="text-xs text-muted">on the wishlist</span> : null}
               </div>
               <p className="text-sm">{p.summary}</p>

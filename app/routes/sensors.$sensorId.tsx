@@ -167,7 +167,7 @@ export default function SensorPage({ loaderData, actionData }: Route.ComponentPr
           </div>
           <div aria-live="polite" className="mt-4">
             {firstSeenLive ? (
-              <p className="rounded-lg bg-good/10 px-3 py-2 font-medium text-good" data-testid="first-reading">
+              <p className="rounded-[0.2rem] border border-l-4 border-good/30 border-l-good bg-card px-3 py-2 font-medium text-good" data-testid="first-reading">
                 First reading received — the sensor is connected.
                 {status.data?.latest?.temperature != null ? ` ${status.data.latest.temperature.toFixed(1)} °C` : ""}
                 {status.data?.latest?.humidity != null ? `, ${Math.round(status.data.latest.humidity)} % RH` : ""}
@@ -178,7 +178,7 @@ export default function SensorPage({ loaderData, actionData }: Route.ComponentPr
                 {(status.data?.battery ?? sensor.battery) != null ? ` · battery ${Math.round((status.data?.battery ?? sensor.battery)!)} %` : ""}
               </p>
             ) : (
-              <p className="rounded-lg bg-paper px-3 py-2 text-sm text-muted" data-testid="waiting">
+              <p className="rounded-[0.2rem] bg-paper px-3 py-2 text-sm text-muted" data-testid="waiting">
                 Waiting for the first reading… this page notices it without a reload.
               </p>
             )}
@@ -189,7 +189,7 @@ export default function SensorPage({ loaderData, actionData }: Route.ComponentPr
           <section className="card space-y-4">
             <h2 className="h2">Connect it</h2>
             {secret ? (
-              <div className="rounded-lg border border-care/40 bg-care/10 p-3">
+              <div className="caution">
                 <p className="text-sm font-semibold">The sensor's secret — shown this once:</p>
                 <code className="mt-1 block text-base break-all" data-testid="secret">
                   {secret}
@@ -329,7 +329,7 @@ function CopyBlock({ label, text, testId }: { label: string; text: string; testI
           {copied ? "Copied" : "Copy"}
         </button>
       </div>
-      <pre tabIndex={0} className="overflow-x-auto rounded-lg bg-ink p-3 text-xs leading-relaxed text-paper" data-testid={testId}>
+      <pre tabIndex={0} className="command" data-testid={testId}>
         {text}
       </pre>
     </div>

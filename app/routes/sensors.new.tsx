@@ -63,7 +63,7 @@ export default function NewSensor({ loaderData, actionData }: Route.ComponentPro
             <legend className="label">What it reports</legend>
             <div className="mt-1 flex flex-wrap gap-3">
               {CHANNELS.map((c) => (
-                <label key={c} className="inline-flex items-center gap-2 rounded-lg border border-line bg-white px-3 py-2 text-sm">
+                <label key={c} className="inline-flex items-center gap-2 rounded-[0.2rem] border border-stone-line bg-white px-3 py-2 text-sm">
                   <input type="checkbox" name={channelList.name} value={c} defaultChecked={c === "temperature" || c === "humidity"} />
                   {c === "lux" ? "light (lux)" : c}
                 </label>

@@ -4,6 +4,7 @@ import { sensorsWithUnplaced } from "~/.server/sensors.server";
 import { listSensors } from "~/.server/sites";
 import { timeAgo } from "~/lib/time";
 import type { Route } from "./+types/sensors";
+import { SensorIcon } from "~/components/icons";
 
 export const meta: Route.MetaFunction = () => [{ title: "Sensors · Nichewise" }];
 
@@ -27,14 +28,17 @@ export default function Sensors({ loaderData, params }: Route.ComponentProps) {
           </Link>
         ) : null}
       </div>
-      <ul className="divide-y divide-line rounded-2xl border border-line bg-card">
+      <ul className="shelf-list">
         {sensors.length === 0 ? <li className="p-5 text-muted">No sensors yet.</li> : null}
         {sensors.map((s) => {
           const quiet = !s.lastSeenAt || now - new Date(s.lastSeenAt).getTime() > QUIET_AFTER_MS;
           return (
             <li key={s.id}>
               <Link to={`/sites/${params.siteId}/sensors/${s.id}${s.unplaced ? "#placements" : ""}`} className="flex flex-wrap items-center gap-x-4 gap-y-1 p-4 hover:bg-paper">
-                <span className="font-semibold">{s.name}</span>
+                <span className="inline-flex items-center gap-2 font-semibold">
+                  <SensorIcon size={18} />
+                  {s.name}
+                </span>
                 <span className="text-sm text-muted">{s.spotName ? `in ${s.spotName}` : "not placed"}</span>
                 {s.unplaced ? <span className="text-sm font-medium text-care">some readings are in no spot</span> : null}
                 <span className={`ml-auto text-sm ${quiet ? "font-medium text-care" : "text-muted"}`}>

@@ -1,6 +1,7 @@
 import { Form, Link, NavLink, Outlet } from "react-router";
 import { requireUser } from "~/.server/auth";
 import type { Route } from "./+types/shell";
+import { NichewiseMark } from "~/components/icons";
 
 export async function loader({ request }: Route.LoaderArgs) {
   const user = await requireUser(request);
@@ -11,9 +12,11 @@ export default function Shell({ loaderData }: Route.ComponentProps) {
   const { user } = loaderData;
   return (
     <div className="min-h-dvh">
-      <header className="border-b border-line bg-card/80 backdrop-blur">
+      <header className="border-b border-stone-line bg-card">
+        <div className="day-band" aria-hidden="true" />
         <div className="mx-auto flex max-w-6xl items-center gap-4 px-4 py-3 sm:px-6">
-          <Link to="/" className="text-lg font-semibold tracking-tight text-accent">
+          <Link to="/" className="inline-flex items-center gap-2 text-lg font-bold tracking-[-0.02em] text-ink">
+            <NichewiseMark size={24} />
             Nichewise
           </Link>
           <nav className="ml-auto flex items-center gap-1 text-sm">

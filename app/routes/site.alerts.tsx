@@ -11,6 +11,7 @@ import { ALERT_KINDS, KINDS, type AlertKind } from "~/domain/alerts/rules";
 import { formatInZone, timeAgo } from "~/lib/time";
 import { WatchMark } from "~/components/watch-state";
 import type { Route } from "./+types/site.alerts";
+import { SpotKindIcon } from "~/components/icons";
 
 export const meta: Route.MetaFunction = () => [{ title: "Alerts · Nichewise" }];
 
@@ -123,7 +124,8 @@ export default function SiteAlerts({ loaderData, actionData }: Route.ComponentPr
         <ul className="card divide-y divide-line p-0">
           {loaderData.watches.map((w) => (
             <li key={w.id} className="flex flex-wrap items-baseline justify-between gap-2 px-4 py-2.5">
-              <span>
+              <span className="inline-flex flex-wrap items-baseline gap-x-1">
+                <SpotKindIcon name={w.name} indoor={w.indoor} size={16} className="self-center text-muted" />
                 <Link className="link font-medium" to={`/sites/${site.id}/spots/${w.id}/alerts`}>{w.name}</Link>{" "}
                 <span className="text-sm text-muted">{w.indoor ? "indoors" : "outdoors"}</span>
               </span>

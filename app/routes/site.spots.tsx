@@ -5,6 +5,7 @@ import { siteMap } from "~/.server/site-map";
 import { useNow } from "~/components/use-now";
 import { SpotCard, WhereMatrix } from "~/components/spot-card";
 import { VerdictKey } from "~/components/verdict-mark";
+import { SpotsAndSeasons } from "~/components/illustration";
 import { periodLabel } from "~/components/period-picker";
 import type { Route } from "./+types/site.spots";
 
@@ -24,7 +25,7 @@ export default function SiteSpots({ loaderData, params }: Route.ComponentProps) 
       <section aria-labelledby="where-heading" className="space-y-3">
         <div className="flex flex-wrap items-end justify-between gap-3">
           <div>
-            <h2 id="where-heading" className="text-xl font-semibold tracking-tight">
+            <h2 id="where-heading" className="text-title font-semibold">
               Where what grows
             </h2>
             <p className="text-sm text-muted">
@@ -39,6 +40,7 @@ export default function SiteSpots({ loaderData, params }: Route.ComponentProps) 
             </Link>
           ) : null}
         </div>
+        {cards.length === 0 ? <SpotsAndSeasons className="mx-auto h-auto w-full max-w-md py-4" /> : null}
         {matrix.length ? (
           <div className="niche space-y-3">
             <VerdictKey />
@@ -48,7 +50,7 @@ export default function SiteSpots({ loaderData, params }: Route.ComponentProps) 
       </section>
 
       <section aria-labelledby="spots-heading">
-        <h2 id="spots-heading" className="text-xl font-semibold tracking-tight">
+        <h2 id="spots-heading" className="text-title font-semibold">
           The spots
         </h2>
         <p className="mb-3 text-sm text-muted">

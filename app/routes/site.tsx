@@ -35,11 +35,14 @@ export default function SiteLayout({ loaderData }: Route.ComponentProps) {
     { to: `${base}/broker`, label: "Home broker" },
     ...(role === "owner" ? [{ to: `${base}/edit`, label: "Site details" }] : []),
   ];
-  // The section you are in: the tab whose address starts this page's (a spot's pages belong to Spots).
-  const current =
-    tabs
-      .filter((t) => (t.end ? location.pathname === t.to : location.pathname === t.to || location.pathname.startsWith(`${t.to}/`)))
-      .sort((a, b) => b.to.length - a.to.length)[0] ?? (location.pathname.startsWith(`${base}/spots`) ? tabs[0] : undefined);
+  // The section you are in: the tab whose address starts this page's. A spot's pages belong to Spots,
+  // except its alert watches, which belong to Alerts (the site's alerts page links to them).
+  const spotWatches = new RegExp(`^${base}/spots/[^/]+/alerts/?$`).test(location.pathname);
+  const current = spotWatches
+    ? tabs.find((t) => t.to === `${base}/alerts`)
+    : (tabs
+        .filter((t) => (t.end ? location.pathname === t.to : location.pathname === t.to || location.pathname.startsWith(`${t.to}/`)))
+        .sort((a, b) => b.to.length - a.to.length)[0] ?? (location.pathname.startsWith(`${base}/spots`) ? tabs[0] : undefined));
   // The tab's own page is the current page; a page under it (a spot of Spots) is its current location.
   const here = (t: (typeof tabs)[number]) =>
     t === current ? { "data-here": "", "aria-current": location.pathname === t.to ? ("page" as const) : ("location" as const) } : {};
@@ -53,7 +56,7 @@ export default function SiteLayout({ loaderData }: Route.ComponentProps) {
         {/* A phone gets a menu that names the section you are in (closed again after each move);
             a wider screen gets every tab, wrapping rather than scrolling out of sight. */}
         <details key={location.pathname} className="group sm:hidden" data-testid="site-menu">
-          <summary className="flex cursor-pointer items-center justify-between gap-3 rounded-md border border-stone-line bg-card px-4 py-3">
+          <summary className="flex cursor-pointer items-center justify-between gap-3 rounded-t-[1.1rem] rounded-b-[0.2rem] border border-b-[3px] border-stone-line bg-card px-4 py-3">
             <span>
               <span className="eyebrow block">Section</span>
               <span className="font-semibold">{current?.label ?? "Choose a section"}</span>
@@ -65,23 +68,23 @@ export default function SiteLayout({ loaderData }: Route.ComponentProps) {
               </span>
             </span>
           </summary>
-          <ul className="mt-1 grid grid-cols-2 gap-1 rounded-md border border-stone-line bg-card p-2">
+          <ul className="mt-1 grid grid-cols-2 gap-1 rounded-[0.2rem] border border-stone-line bg-card p-2">
             {tabs.map((t) => (
               <li key={t.to}>
-                <Link to={t.to} {...here(t)} className="block rounded px-3 py-2.5 text-sm font-medium data-[here]:bg-stone data-[here]:font-semibold">
+                <Link to={t.to} {...here(t)} className="block rounded-t-[0.8rem] rounded-b-[0.2rem] px-3 py-2.5 text-sm font-medium data-[here]:bg-stone data-[here]:font-semibold">
                   {t.label}
                 </Link>
               </li>
             ))}
           </ul>
         </details>
-        <ul className="hidden flex-wrap gap-x-1 border-b border-line sm:flex">
+        <ul className="hidden flex-wrap gap-x-1 border-b-2 border-stone-line sm:flex">
           {tabs.map((t) => (
             <li key={t.to}>
               <Link
                 to={t.to}
                 {...here(t)}
-                className="block border-b-2 border-transparent px-3 py-2.5 text-sm font-medium text-muted hover:text-ink data-[here]:border-accent data-[here]:text-ink"
+                className="-mb-0.5 block rounded-t-[1.1rem] border-2 border-transparent px-3.5 pt-2.5 pb-2 text-sm font-medium text-muted hover:text-ink data-[here]:border-stone-line data-[here]:border-b-card data-[here]:bg-card data-[here]:font-semibold data-[here]:text-ink"
               >
                 {t.label}
               </Link>

@@ -220,7 +220,7 @@ export default function SpotAlerts({ loaderData, actionData }: Route.ComponentPr
             </p>
           ) : null}
           {!hasCold && suggestion ? (
-            <Form method="post" className="space-y-2 rounded border border-line p-3">
+            <Form method="post" className="space-y-2 rounded-[0.2rem] border border-stone-line p-3">
               <input type="hidden" name="intent" value="add" />
               <input type="hidden" name="kind" value="cold" />
               <input type="hidden" name="useSuggestion" value="1" />
@@ -235,7 +235,7 @@ export default function SpotAlerts({ loaderData, actionData }: Route.ComponentPr
             <summary className="cursor-pointer text-sm font-medium">Another kind of watch</summary>
             <div className="mt-3 space-y-4">
               {ALERT_KINDS.filter((k) => k !== "cold" || hasCold || !suggestion).map((k) => (
-                <Form key={k} method="post" className="space-y-2 rounded border border-line p-3">
+                <Form key={k} method="post" className="space-y-2 rounded-[0.2rem] border border-stone-line p-3">
                   <input type="hidden" name="intent" value="add" />
                   <input type="hidden" name="kind" value={k} />
                   <p className="text-sm font-medium">{KINDS[k].label}</p>

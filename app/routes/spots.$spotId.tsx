@@ -9,6 +9,7 @@ import { PlaceSensorForm, PlacementHistory, PlacingTips } from "~/components/pla
 import { SeasonTable } from "~/components/season";
 import { GroupedFits, VerdictSummary } from "~/components/fit-groups";
 import { useNow } from "~/components/use-now";
+import { SpotKindIcon, WatchIcon } from "~/components/icons";
 import { YearStrip } from "~/components/year-strip";
 import { NotesPanel } from "~/components/notes-panel";
 import { SpotExports } from "~/components/spot-exports";
@@ -148,7 +149,7 @@ function LightNotes({ profile, lightSource }: { profile: { luxPerPpfd: number; l
         </p>
       ) : null}
       {clipped ? (
-        <p className="mt-2 rounded-lg border border-care/40 bg-care/5 p-2 text-sm" role="note" data-testid="lux-clipped">
+        <p className="caution mt-2 p-2 text-sm" role="note" data-testid="lux-clipped">
           Your light sensor tops out at about {(Math.round(clipped.ceilingLux / 1000) * 1000).toLocaleString("en")} lux: the sunniest hours read low,
           so the DLI{months.length ? ` of ${months.join(", ")}` : ""} is a lower bound.
         </p>
@@ -178,16 +179,22 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
   return (
     <div className="space-y-6">
       <div className="flex flex-wrap items-end justify-between gap-3">
-        <div>
-          <h2 className="text-xl font-semibold">{spot.name}</h2>
+        <div className="flex items-start gap-3">
+          <span className="mt-0.5 grid size-11 shrink-0 place-items-center rounded-t-full rounded-b-[0.2rem] bg-stone text-ink">
+            <SpotKindIcon name={spot.name} indoor={spot.indoor} size={24} />
+          </span>
+          <div>
+          <h2 className="text-title font-semibold">{spot.name}</h2>
           <p className="text-sm text-muted">
             {spot.indoor ? "Indoors" : "Outdoors"}
             {spot.facing !== "none" ? ` · window faces ${spot.facing}` : ""}
             {spot.capacity ? ` · room for ${spot.capacity} pots` : ""}
           </p>
+          </div>
         </div>
         <div className="flex flex-wrap gap-2">
           <Link to="alerts" className="btn-quiet">
+            <WatchIcon size={16} />
             Alert watches
           </Link>
           {role === "owner" ? (

@@ -9,6 +9,7 @@ import { parseSource, ppmLabel, sourceName, STANDARD_SOURCES } from "~/domain/wa
 import { PH_MAX, PH_MIN, ROUTINE_WATERING_MAX_EC, routineLimitPpm, UNBUFFERED_MAX_EC, type WaterVerdict } from "~/domain/water/water";
 import { formatInZone, toLocalInputValue, zonedToUtc } from "~/lib/time";
 import type { Route } from "./+types/water";
+import { WaterIcon } from "~/components/icons";
 
 export const meta: Route.MetaFunction = () => [{ title: "Water checks · Nichewise" }];
 
@@ -124,6 +125,7 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
       title: "Dissolved solids over time (conductivity, µS/cm)",
       unit: "C",
       height: 220,
+      calendarAxis: true,
       build: (d) => ({
         data: [d.t, ...sources.map((_s, i) => d[`s${i}`]), d.limit] as never,
         series: [
@@ -135,11 +137,11 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
             points: { show: true, size: 6 },
             value: (_u: unknown, v: number | null) => (v == null ? "–" : `${v} µS/cm`),
           })),
-          { label: `${ROUTINE_WATERING_MAX_EC} µS/cm rule of thumb`, stroke: "#6f675c", dash: [6, 4], width: 1, points: { show: false } },
+          { label: `${ROUTINE_WATERING_MAX_EC} µS/cm rule of thumb`, stroke: "#4a5767", dash: [6, 4], width: 1, points: { show: false } },
         ],
         axes: [
-          { stroke: "#6f675c", grid: { stroke: "#e4dccd" } },
-          { stroke: "#6f675c", grid: { stroke: "#e4dccd" }, label: "µS/cm", size: 50 },
+          { stroke: "#4a5767", grid: { stroke: "#d4dcdb" } },
+          { stroke: "#4a5767", grid: { stroke: "#d4dcdb" }, label: "µS/cm", size: 50 },
         ],
       }),
     }),
@@ -149,7 +151,10 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
   return (
     <div className="space-y-6">
       <div>
-        <h2 className="text-xl font-semibold">Water checks</h2>
+        <h2 className="flex items-center gap-2 text-title font-semibold">
+          <WaterIcon size={22} />
+          Water checks
+        </h2>
         <p className="max-w-3xl text-sm text-muted">
           Check each water source before it goes on the plants: dissolved solids (a TDS meter in ppm, or an EC meter in µS/cm) and pH.
           The rules of thumb:
@@ -166,7 +171,7 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
         </ul>
       </div>
 
-      <p className="rounded-xl border border-care/40 bg-care/5 p-3 text-sm" role="note">
+      <p className="caution text-sm" role="note">
         <span className="font-semibold">These are hobby rules of thumb</span> (common practice among orchid growers), not a laboratory test or a
         drinking-water standard. Cheap meters drift: calibrate yours as its manual says, and ask your mentor or club when a result surprises you.
       </p>

@@ -189,7 +189,7 @@ export default function Wishlist({ loaderData, actionData }: Route.ComponentProp
                   <Link to={`/sites/${siteId}/plants/${r.plantKey}`} className="link font-semibold">
                     {r.name}
                   </Link>
-                  {r.mustHave ? <span className="rounded-full bg-accent-soft px-2 text-xs font-semibold">must-have</span> : null}
+                  {r.mustHave ? <span className="tag">must-have</span> : null}
                   <span className="text-sm text-muted">
                     {r.pots} {r.pots === 1 ? "pot" : "pots"}
                   </span>
