@@ -1,5 +1,5 @@
 // A stateless ingest worker: consumes the engine's replicated queue (a RabbitMQ quorum queue fed by
-// its MQTT plugin) and writes each reading through the product's one writer, acknowledging a
+// its MQTT plugin; one worker active at a time, the others standing by) and writes each reading through the product's one writer, acknowledging a
 // delivery only after its reading is committed. A worker that dies leaves its unacknowledged
 // deliveries to the engine, which hands them to another worker; a reading stored twice that way is
 // one row (the writer deduplicates on sensor and time, as for an MQTT resend).
@@ -27,9 +27,15 @@ const RECONNECT_MS = 500;
  * Declares the queue (quorum: replicated on every node, a majority confirms each message) and binds
  * it to the sensors' topics. It must exist before sensors publish: the MQTT plugin acknowledges a
  * message that no queue takes.
+ *
+ * Single active consumer: one worker at a time takes deliveries and the others wait, taking over
+ * when it goes. Competing consumers would commit a sensor's readings out of order (each holds a
+ * prefetch of deliveries) and could write two channel topics of one sensor and instant at once,
+ * which the writer's merging statement assumes never happens (app/.server/ingest/writer.ts); see
+ * docs/scaling.md for partitioning by sensor.
  */
 export async function declareReadingsQueue(ch: Channel, queue: string) {
-  await ch.assertQueue(queue, { durable: true, arguments: { "x-queue-type": "quorum" } });
+  await ch.assertQueue(queue, { durable: true, arguments: { "x-queue-type": "quorum", "x-single-active-consumer": true } });
   await ch.bindQueue(queue, MQTT_EXCHANGE, "nichewise.sensors.#");
 }
 
@@ -72,8 +78,13 @@ export async function startIngestWorker(opts: {
     }, RETRY_MS).unref();
   }
 
+  let active = false;
   function handle(ch: Channel, msg: ConsumeMessage | null) {
     if (!msg) return; // the queue was deleted; the channel closes and we reconnect
+    if (!active) {
+      active = true; // the engine made this worker the queue's active consumer
+      log("ingest worker: taking deliveries");
+    }
     try {
       const match = parseTopic(topicOf(msg));
       // The engine let only the sensor itself publish here (see auth.ts); anything else is not a reading.
@@ -126,6 +137,7 @@ export async function startIngestWorker(opts: {
         log(`ingest worker: consuming ${opts.queue} on ${url.replace(/\/\/[^@]*@/, "//")}`);
         c.once("close", () => {
           conn = null;
+          active = false;
           connectedTo = null;
           if (closing) return;
           stats.reconnects++;
