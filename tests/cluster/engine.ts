@@ -42,6 +42,7 @@ export async function startEngineCluster(o: {
   authUrls: string[];
   authKey: string;
   tag?: string;
+  maxMessageBytes?: number;
   log?: (s: string) => void;
 }): Promise<EngineCluster> {
   const log = o.log ?? (() => {});
@@ -91,6 +92,9 @@ export async function startEngineCluster(o: {
       `listeners.tcp.default = 127.0.0.1:${amqpPort}`,
       `mqtt.listeners.tcp.default = 127.0.0.1:${mqttPort}`,
       "mqtt.allow_anonymous = false",
+      // A reading's payload is at most 4 KB (MAX_PAYLOAD_BYTES); the engine refuses larger
+      // messages instead of queueing them (its default is 128 MB).
+      `max_message_size = ${o.maxMessageBytes ?? 8192}`,
       // Sensors: Nichewise checks their secrets (app/.server/cluster/auth.ts); the workers' user is internal.
       "auth_backends.1 = internal",
       "auth_backends.2 = http",

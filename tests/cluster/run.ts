@@ -90,6 +90,7 @@ async function main() {
       workers.push(w);
     }
     log("two ingest workers consuming the quorum queue");
+    await checkOversize(engine);
 
     let takeoverMs: number | null = null;
     let workerTakeoverMs: number | null = null;
@@ -143,10 +144,38 @@ async function main() {
   } finally {
     await stopAll();
     stopEmbeddedPostgres(pgDir);
-    if (!failed) rmSync(dir, { recursive: true, force: true });
+    if (!failed && !process.env.NW_CLUSTER_KEEP) rmSync(dir, { recursive: true, force: true });
     else console.log(`logs kept in ${path.relative(process.cwd(), logDir)}`);
   }
   process.exitCode = failed ? 1 : 0;
+}
+
+/**
+ * A sensor sending a 1 MB message (a reading is at most 4 KB): the engine must not queue it, and
+ * the node must stay up. Nothing is stored for it; the sensor's connection may be closed.
+ */
+async function checkOversize(engine: EngineCluster) {
+  const { makeSensor, makeSite, makeSpot, makeUser } = await import("../integration/helpers");
+  const { pool } = await import("~/.server/db");
+  const mqtt = (await import("mqtt")).default;
+  const site = await makeSite(await makeUser());
+  const sensor = await makeSensor(site, await makeSpot(site));
+  const node = engine.nodes[0];
+  const client = await mqtt.connectAsync(`mqtt://127.0.0.1:${node.mqttPort}`, { protocolVersion: 4, username: String(sensor.id), password: sensor.secret, reconnectPeriod: 0 });
+  client.on("error", () => {});
+  const big = JSON.stringify({ time: new Date().toISOString(), temperature: 20, humidity: 50, pad: "x".repeat(1024 * 1024) });
+  const outcome = await Promise.race([
+    client.publishAsync(`nichewise/sensors/${sensor.id}/reading`, big, { qos: 1 }).then(() => "acknowledged", (err: Error) => `refused (${err.message})`),
+    new Promise<string>((r) => client.once("close", () => r("connection closed by the engine"))),
+    new Promise<string>((r) => setTimeout(() => r("no answer in 10 s"), 10_000)),
+  ]);
+  await client.endAsync(true).catch(() => {});
+  await new Promise((r) => setTimeout(r, 2000)); // a worker would have taken it by now
+  const stored = (await pool().query("SELECT count(*)::int AS n FROM readings WHERE sensor_id = $1", [sensor.id])).rows[0].n;
+  const rejected = (await pool().query("SELECT count(*)::int AS n FROM rejected_messages WHERE sensor_id = $1", [sensor.id])).rows[0].n;
+  const alive = engine.pid(0) !== undefined && rssMb(engine.pid(0)) !== null;
+  log(`a 1 MB message: ${outcome}; stored ${stored}, recorded as rejected ${rejected}; node 1 ${alive ? "up" : "DOWN"} (${rssMb(engine.pid(0)) ?? "?"} MB)`);
+  if (stored !== 0 || !alive) throw new Error("an oversized message was stored or took the engine node down");
 }
 
 /** Web instances share nothing but PostgreSQL: a session made on one is served by the other, and ended on one it is gone on both. */

@@ -22,7 +22,8 @@ export async function startIngestRole(stops: (() => Promise<void>)[], stopAll: (
   const { closeDb } = await import("~/.server/db");
   stops.push(closeDb);
   const { writer } = await import("~/.server/ingest/writer");
-  stops.push(announceCommits(writer()) as unknown as () => Promise<void>);
+  const stopAnnouncing = announceCommits(writer());
+  stops.push(async () => stopAnnouncing());
   const worker = await startIngestWorker({ urls: amqpUrls(), queue: c.NW_AMQP_QUEUE, prefetch: c.NW_AMQP_PREFETCH, writer: writer(), log });
   stops.push(worker.close);
   log(`ingest role: writing to ${url.replace(/\/\/[^@]*@/, "//")}`);
