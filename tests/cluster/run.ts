@@ -94,6 +94,7 @@ async function main() {
 
     let takeoverMs: number | null = null;
     let workerTakeoverMs: number | null = null;
+    let engineMs: number | null = null;
     const memory: string[] = [];
     const fault = async (kind: ClusterFault) => {
       if (memory.length === 0) {
@@ -114,11 +115,14 @@ async function main() {
         other.active = true;
         log(`killed the active ingest worker (${victim.proc.name}, SIGKILL); ${other.proc.name} took deliveries ${workerTakeoverMs} ms later`);
       } else {
-        const taken = web[1].waitFor(/holds the alert lease/, 60_000);
+        // The lock is taken first; the engine then catches up from each rule's cursor before it runs.
+        const taken = web[1].waitFor(/lease \d+: held/, 60_000);
+        const running = web[1].waitFor(/holds the alert lease/, 60_000);
         const killedAt = Date.now();
         await web[0].kill("SIGKILL");
         takeoverMs = (await taken) - killedAt;
-        log(`killed the alert lease holder (web A, SIGKILL); web B took the lease ${takeoverMs} ms later`);
+        engineMs = (await running) - killedAt;
+        log(`killed the alert lease holder (web A, SIGKILL); web B took the lease ${takeoverMs} ms later, its engine ran ${engineMs} ms after the kill`);
       }
     };
     const report = await runSoak({
@@ -138,7 +142,7 @@ async function main() {
       log,
     });
     console.log(`\ncluster mode: 3 RabbitMQ nodes, 2 ingest workers, 2 web instances\n${formatReport(report)}`);
-    console.log(`engine start ${engine.startSeconds.toFixed(1)} s; ingest takeover ${workerTakeoverMs ?? "-"} ms; alert lease takeover ${takeoverMs ?? "-"} ms; resident memory before the faults: ${memory.join(", ")}`);
+    console.log(`engine start ${engine.startSeconds.toFixed(1)} s; ingest takeover ${workerTakeoverMs ?? "-"} ms; alert lease takeover ${takeoverMs ?? "-"} ms (engine running after ${engineMs ?? "-"} ms); resident memory before the faults: ${memory.join(", ")}`);
     failed = soakFailed(report) || takeoverMs === null || workerTakeoverMs === null;
     console.log(failed ? "FAILED: readings lost, counted twice, alert events wrong or no takeover" : "OK: 0 lost, 0 double-counted, alert events consistent, alert lease taken over");
   } finally {
