@@ -30,6 +30,11 @@ export async function main(opts: { dev?: boolean } = {}): Promise<Running> {
 
 async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[], stopAll: () => Promise<void>): Promise<Running> {
   const e = env();
+  // Cluster mode (app/.server/cluster; docs/decisions/0004-cluster-engine.md): NW_ROLE=web or ingest.
+  const { clusterRole } = await import("~/.server/cluster/config");
+  const role = clusterRole();
+  const cluster = role === "all" ? null : await import("~/.server/cluster/roles");
+  if (role === "ingest") return cluster!.startIngestRole(stops, stopAll, log);
 
   let pg: EmbeddedPostgres | undefined;
   if (!process.env.DATABASE_URL) {
@@ -55,12 +60,14 @@ async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[],
   const { writer } = await import("~/.server/ingest/writer");
   const { startAlerts } = await import("~/.server/alerts/engine");
   // With the compressed demo front a rule minute lasts a second, matching the simulator's 60×.
-  stops.push(await startAlerts(writer(), { minuteMs: e.NW_COLD_FRONT ? 1000 : 60_000, log }));
+  const alertOptions = { minuteMs: e.NW_COLD_FRONT ? 1000 : 60_000, log };
+  stops.push(cluster ? cluster.startWebAlerts(writer(), alertOptions) : await startAlerts(writer(), alertOptions));
 
   const { startBroker } = await import("~/.server/ingest/broker");
-  const broker = await startBroker({ host: e.MQTT_HOST, port: e.MQTT_PORT, wsPort: e.MQTT_WS_PORT, writer: writer(), log });
+  // A web instance of cluster mode takes no MQTT: sensors talk to the engine.
+  const broker = cluster ? null : await startBroker({ host: e.MQTT_HOST, port: e.MQTT_PORT, wsPort: e.MQTT_WS_PORT, writer: writer(), log });
   stops.push(async () => {
-    await broker.close();
+    await broker?.close();
     await writer().drain();
   });
   // Bridges to the growers' own brokers (stopped before the writer drains: unacknowledged messages come again).
@@ -125,6 +132,7 @@ async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[],
   app.use(securityHeaders({ dev: !!opts.dev, https: publicUrl().startsWith("https:") }));
   app.use(compression());
   app.use(refuseCrossOrigin);
+  cluster?.mountEngineAuth(app);
 
   if (opts.dev) {
     const vite = await import("vite");
@@ -158,7 +166,7 @@ async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[],
   const url = e.PORT === 0 && !e.PUBLIC_URL ? publicUrl().replace(/:0$/, `:${port}`) : publicUrl();
   log(`Web app on ${url}`);
 
-  if (demo.seed && e.NW_SIMULATOR) {
+  if (demo.seed && e.NW_SIMULATOR && broker) {
     const { startLiveSimulator } = await import("../../simulator/live");
     const coldFrontAt = e.NW_COLD_FRONT ? new Date(Date.now() + 30_000) : null;
     const { DEMO_HOUSEHOLD } = await import("../../simulator/demo");
@@ -168,7 +176,7 @@ async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[],
     stops.splice(stops.length, 0, sim.stop);
   }
 
-  return { stop: stopAll, url, mqttPort: broker.port, port };
+  return { stop: stopAll, url, mqttPort: broker?.port ?? 0, port };
 }
 
 // Actions refuse posts from other origins (CSRF). Sensors posting to the ingest API carry a bearer

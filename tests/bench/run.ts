@@ -267,6 +267,13 @@ async function projectionBench(siteId: number) {
   }
 }
 
+/** Cluster mode's ingest rate with one and two workers beside the embedded broker's (tests/cluster/bench.ts). */
+async function clusterRows(creds: { id: number; secret: string }[]) {
+  const { clusterBench } = await import("../cluster/bench");
+  const basePort = Number(process.env.NW_BENCH_CLUSTER_BASE_PORT ?? 26400);
+  return clusterBench({ dir: path.resolve(DIR), basePort, creds, total: N(100_000, 30_000), nodeFlags: serverNodeFlags(), postgresTicks, postgresCpuMsSince, log });
+}
+
 async function bench() {
   const p = pool();
   const started = new Date();
@@ -308,6 +315,10 @@ async function bench() {
   }
   if (ONLY === "phone") {
     await phoneBench();
+    return output(started);
+  }
+  if (ONLY === "cluster") {
+    rows.push(...(await clusterRows(creds)));
     return output(started);
   }
 
@@ -376,6 +387,7 @@ async function bench() {
   rows.push({ figure: "Ingest process peak memory (RSS, MB)", ours: fmt(peakRss / 2 ** 20), baseline: "—", ratio: "—", target: "≤ 200 MB", note: "the broker + writer process, over all MQTT runs" });
   ingest.send({ cmd: "stop" });
   await new Promise((r) => ingest.once("exit", r));
+  rows.push(...(await clusterRows(creds)));
 
   // ---------- Bulk paths: backfill (simulator), CSV import, HTTP batches ----------
   log(`autovacuum settled after ${fmt(await quietDb(), 1)} s`);

@@ -21,7 +21,9 @@ import { embeddedPid, startEmbeddedPostgres } from "~/.server/postgres";
 import { DEMO_SCENARIO, DEMO_SITE, DEMO_SPOTS, generate } from "../../simulator/model";
 import { makeSensor, makeSite, makeSpot, makeUser } from "../integration/helpers";
 
-export type FaultKind = "kill-postgres" | "restart-broker" | "cut-connections" | "lock-rollups" | "lock-readings" | "kill-server";
+export type FaultKind = "kill-postgres" | "restart-broker" | "cut-connections" | "lock-rollups" | "lock-readings" | "kill-server" | ClusterFault;
+/** Faults of cluster mode (tests/cluster/run.ts), run by the caller's `cluster.fault`. */
+export type ClusterFault = "kill-engine-node" | "kill-ingest-worker" | "kill-alert-holder";
 
 export type SoakOptions = {
   databaseUrl: string;
@@ -37,10 +39,16 @@ export type SoakOptions = {
   ratePerSecond?: number;
   /** Run the broker and writer in a child process (needed by "kill-server"; no alert engine then). */
   serverProcess?: boolean;
+  /**
+   * Cluster mode (tests/cluster/run.ts): the sensors connect to any of these MQTT servers (the
+   * engine's nodes), the ingest workers and the alert engine run in other processes, and the
+   * caller runs the cluster's faults.
+   */
+  cluster?: { servers: { host: string; port: number }[]; fault: (kind: ClusterFault) => Promise<void> };
   log?: (s: string) => void;
 };
 
-export type Check = { after: string; acked: number; stored: number; lost: number; unexpected: number; doubleCounted: number; rollupHoursDiffering: number; alerts?: AlertCheck };
+export type Check = { after: string; acked: number; stored: number; lost: number; unexpected: number; doubleCounted: number; rollupHoursDiffering: number; alerts?: AlertCheck; keys?: Set<string> };
 /** `inFlight`: readings published and not yet acknowledged when the fault struck. */
 export type FaultFigure = { kind: FaultKind; at: number; inFlight: number; outageMs: number; firstAckMs: number | null; recoveredMs: number; check: Check };
 
@@ -252,6 +260,8 @@ export async function runSoak(o: SoakOptions): Promise<SoakReport> {
   let port: number;
   if (o.serverProcess) {
     ({ child: server, port } = await startServerProcess(o, 0));
+  } else if (o.cluster) {
+    port = o.cluster.servers[0].port;
   } else {
     writer = new ReadingWriter();
     broker = await startBroker({ host: "127.0.0.1", port: 0, wsPort: null, writer, log: () => {} });
@@ -259,7 +269,7 @@ export async function runSoak(o: SoakOptions): Promise<SoakReport> {
   }
   let writeFailures = 0;
   let rejectedByBroker = 0;
-  const alerts = writer ? await startAlertsIfPresent(writer, spots, expected, sims) : null;
+  const alerts = writer || o.cluster ? await startAlertsIfPresent(writer, spots, expected, sims) : null;
 
   const acked = new Set<string>();
   let ackedMessages = 0;
@@ -303,6 +313,8 @@ export async function runSoak(o: SoakOptions): Promise<SoakReport> {
             clientId: `soak-${sim.sensorId}`,
             reconnectPeriod: 100,
             connectTimeout: 5000,
+            // Spread over the engine's nodes: each client starts at its own and moves on when it dies.
+            ...(o.cluster ? { servers: o.cluster.servers.map((_s, j, all) => all[(j + sims.indexOf(sim)) % all.length]) } : {}),
           });
           sim.client.on("error", () => {});
           sim.client.on("reconnect", () => reconnects++);
@@ -341,7 +353,7 @@ export async function runSoak(o: SoakOptions): Promise<SoakReport> {
       for (const k of keys) if (!stored.has(k)) lost++;
       const d = diff.rows[0];
       const overcount = Math.max(0, Number(d.rollup_n) - Number(d.raw_n));
-      return { after, acked: keys.size, stored: stored.size, lost, unexpected, doubleCounted: duplicates + overcount, rollupHoursDiffering: d.differing };
+      return { after, acked: keys.size, stored: stored.size, lost, unexpected, doubleCounted: duplicates + overcount, rollupHoursDiffering: d.differing, keys };
     } finally {
       await c.end().catch(() => {});
     }
@@ -361,7 +373,9 @@ export async function runSoak(o: SoakOptions): Promise<SoakReport> {
 
   const runFault = async (kind: FaultKind): Promise<{ outageMs: number; restoredAt: number }> => {
     const started = Date.now();
-    if (kind === "kill-postgres") {
+    if (kind === "kill-engine-node" || kind === "kill-ingest-worker" || kind === "kill-alert-holder") {
+      await o.cluster!.fault(kind);
+    } else if (kind === "kill-postgres") {
       const pid = embeddedPid(o.pgDataDir);
       if (!pid) throw new Error("no postmaster.pid for the soak's PostgreSQL");
       process.kill(pid, "SIGKILL");
@@ -422,7 +436,13 @@ export async function runSoak(o: SoakOptions): Promise<SoakReport> {
     const recoveredMs = Date.now() - restoredAt;
     const firstAck = ackTimes.find((t) => t >= restoredAt); // acks are in time order; few faults, so a scan is fine
     const firstAckMs = firstAck === undefined ? null : firstAck - restoredAt;
-    const c = await check(`${f.kind} at ${Math.round(f.at * 100)} %`, new Set(acked));
+    let c = await check(`${f.kind} at ${Math.round(f.at * 100)} %`, new Set(acked));
+    // In cluster mode the engine acknowledges once its replicated queue holds a reading; the
+    // workers store it after that. Acknowledged readings must all be stored within a minute.
+    for (const until = Date.now() + 60_000; o.cluster && c.lost > 0 && Date.now() < until; ) {
+      await sleep(500);
+      c = await check(c.after, new Set(c.keys));
+    }
     if (alerts) c.alerts = await alerts.check(openBefore);
     figures.push({ kind: f.kind, at: f.at, inFlight, outageMs, firstAckMs, recoveredMs, check: c });
     log(`${c.after}: down ${outageMs} ms, recovered ${recoveredMs} ms after; acked ${c.acked}, stored ${c.stored}, lost ${c.lost}, double-counted ${c.doubleCounted}, rollup hours differing ${c.rollupHoursDiffering}` +
@@ -446,7 +466,11 @@ export async function runSoak(o: SoakOptions): Promise<SoakReport> {
     rejectedByBroker = res.rows[0].n;
   }
   const seconds = (Date.now() - startedAt) / 1000;
-  const final = await check("end", new Set(expected.keys()));
+  let final = await check("end", new Set(expected.keys()));
+  for (const until = Date.now() + 60_000; o.cluster && final.lost > 0 && Date.now() < until; ) {
+    await sleep(500);
+    final = await check("end", new Set(expected.keys()));
+  }
 
   // Values as sent (stored as real, so compared to float precision).
   let valueMismatches = 0;
@@ -547,7 +571,7 @@ type AlertsHarness = {
 };
 
 async function startAlertsIfPresent(
-  w: ReadingWriter,
+  w: ReadingWriter | null, // null: the engine runs in other processes (cluster mode)
   spots: { id: number }[],
   expected: Map<string, Expected>,
   sims: Sim[],
@@ -592,7 +616,7 @@ async function startAlertsIfPresent(
   mail.configureMailer(`smtp://127.0.0.1:${sink.port}`);
   // The readings are historic (so the run is fast): let the engine treat them as live.
   const opts = { maxLagMs: 3 * 365 * 86_400_000, checkEveryMs: 3_600_000 };
-  let handle = await mod.startAlerts(w, opts);
+  let handle = w ? await mod.startAlerts(w, opts) : null;
   const stopping: Promise<void>[] = [];
   const q = async <T extends pg.QueryResultRow>(text: string, values: unknown[]) => {
     for (let attempt = 0; ; attempt++) {
@@ -604,17 +628,31 @@ async function startAlertsIfPresent(
       }
     }
   };
+  // An engine elsewhere is idle once every rule has evaluated its spot's latest reading (two minutes at most).
+  const evaluatedElsewhere = async () => {
+    const until = Date.now() + 120_000;
+    while (Date.now() < until) {
+      const [behind] = await q<{ n: number }>(
+        `SELECT count(*)::int AS n FROM alert_rules r WHERE r.id = ANY($1::int[]) AND r.evaluated_to IS DISTINCT FROM (
+           SELECT max(rd.measured_at) FROM placements p JOIN readings rd ON rd.sensor_id = p.sensor_id AND rd.measured_at >= p.from_at
+           WHERE p.spot_id = r.spot_id)`,
+        [ruleIds],
+      );
+      if (behind.n === 0) return;
+      await sleep(500);
+    }
+  };
   return {
-    idle: () => handle.engine.idle(),
+    idle: () => (handle ? handle.engine.idle() : evaluatedElsewhere()),
     restart: async (next) => {
       // The new engine starts at once; the old one finishes its queue meanwhile (both lock rule rows).
       const old = handle;
       handle = await mod.startAlerts(next, opts);
-      stopping.push(old());
+      if (old) stopping.push(old());
     },
     stop: async () => {
       await Promise.all(stopping);
-      await handle();
+      await handle?.();
       await sink.close();
     },
     openIds: async () => (await q<{ id: number }>(`SELECT id FROM alert_events WHERE rule_id = ANY($1::int[]) AND ended_at IS NULL`, [ruleIds])).map((r) => r.id),

@@ -1,0 +1,48 @@
+// The process modes of cluster mode, chosen by NW_ROLE in app/.server/main.ts. Both are stateless:
+// readings, sessions and alert state live in PostgreSQL (DATABASE_URL, required), sensors talk to
+// the engine's nodes, and any instance can die and be started again, or be one of several.
+import type { Express } from "express";
+import type { AlertEngineOptions } from "~/.server/alerts/engine";
+import { announceCommits, startAlertsUnderLease } from "~/.server/cluster/alerts";
+import { engineAuthRouter } from "~/.server/cluster/auth";
+import { amqpUrls, clusterEnv } from "~/.server/cluster/config";
+import { startIngestWorker } from "~/.server/cluster/worker";
+import type { ReadingWriter } from "~/.server/ingest/writer";
+
+function databaseUrl() {
+  const url = process.env.DATABASE_URL;
+  if (!url) throw new Error("NW_ROLE=web and NW_ROLE=ingest share one PostgreSQL: set DATABASE_URL");
+  return url;
+}
+
+/** NW_ROLE=ingest: a queue consumer and the writer, nothing else. */
+export async function startIngestRole(stops: (() => Promise<void>)[], stopAll: () => Promise<void>, log: (s: string) => void) {
+  const url = databaseUrl();
+  const c = clusterEnv();
+  const { closeDb } = await import("~/.server/db");
+  stops.push(closeDb);
+  const { writer } = await import("~/.server/ingest/writer");
+  const stopAnnouncing = announceCommits(writer());
+  stops.push(async () => stopAnnouncing());
+  const worker = await startIngestWorker({ urls: amqpUrls(), queue: c.NW_AMQP_QUEUE, prefetch: c.NW_AMQP_PREFETCH, writer: writer(), log });
+  stops.push(worker.close);
+  log(`ingest role: writing to ${url.replace(/\/\/[^@]*@/, "//")}`);
+  return { stop: stopAll, url: "", mqttPort: 0, port: 0 };
+}
+
+/** NW_ROLE=web: the alert engine only while this instance holds the alert lease. */
+export function startWebAlerts(w: ReadingWriter, opts: AlertEngineOptions): () => Promise<void> {
+  const lag = clusterEnv().NW_ALERT_MAX_LAG_MS;
+  const stopAnnouncing = announceCommits(w);
+  const lease = startAlertsUnderLease(w, { ...opts, ...(lag ? { maxLagMs: lag } : {}), connectionString: databaseUrl() });
+  return async () => {
+    stopAnnouncing();
+    await lease.stop();
+  };
+}
+
+/** NW_ROLE=web with NW_CLUSTER_AUTH_KEY: the engine's auth endpoint at /cluster/auth. */
+export function mountEngineAuth(app: Express) {
+  const key = clusterEnv().NW_CLUSTER_AUTH_KEY;
+  if (key) app.use("/cluster/auth", engineAuthRouter(key));
+}
