@@ -14,7 +14,7 @@ import type pg from "pg";
 import { pool } from "~/.server/db";
 import { runningBroker } from "~/.server/ingest/broker";
 import { rebuildRollupsIn } from "~/.server/ingest/rollups";
-import { invalidateSensorCache } from "~/.server/ingest/sensors";
+import { invalidateSensorCache } from "~/.server/ingest/sensor-cache";
 import { hashSensorSecret, newSensorSecret } from "~/.server/secrets";
 import * as schema from "~/db/schema.server";
 import { auditLog, placements, sensors, spots, type Calibration, type Channel, type Placement } from "~/db/schema.server";

@@ -5,7 +5,7 @@
 import { and, eq, isNull } from "drizzle-orm";
 import { db } from "~/.server/db";
 import { cleanText } from "~/.server/ids";
-import { invalidateSensorCache } from "~/.server/ingest/sensors";
+import { invalidateSensorCache } from "~/.server/ingest/sensor-cache";
 import { ensureColdWatch } from "~/.server/watches";
 import { auditLog, placements, spots, type Spot } from "~/db/schema.server";
 import type { LightSource } from "~/domain/climate/light";

@@ -16,7 +16,7 @@ import { WallClockReader, type DstChange } from "~/lib/time";
 import { db, pool } from "~/.server/db";
 import { auditLog } from "~/db/schema.server";
 import { recordRejectionsSoon } from "~/.server/ingest/rejections";
-import { sensorInfo } from "~/.server/ingest/sensors";
+import { sensorInfo } from "~/.server/ingest/sensor-cache";
 import { writer, type WriteResult } from "~/.server/ingest/writer";
 
 export class CsvLimitError extends Error {}

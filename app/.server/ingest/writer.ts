@@ -3,7 +3,7 @@
 // and the hourly rollups of the spot each sensor was placed in, counting only rows really inserted.
 // A caller's promise resolves only after COMMIT, which is what lets MQTT ack after commit.
 import { calibratedSql } from "~/.server/ingest/calibrated";
-import { sensorInfo } from "~/.server/ingest/sensors";
+import { sensorInfo } from "~/.server/ingest/sensor-cache";
 import type pg from "pg";
 import { pool } from "~/.server/db";
 import type { Reading } from "~/domain/ingest/payload";
