@@ -13,7 +13,7 @@ import { drizzle } from "drizzle-orm/node-postgres";
 import type pg from "pg";
 import { pool } from "~/.server/db";
 import { runningBroker } from "~/.server/ingest/broker";
-import { rebuildRollupsIn } from "~/.server/ingest/rollups";
+import { rebuildRollupsIn } from "~/.server/rollups/rebuild";
 import { invalidateSensorCache } from "~/.server/ingest/sensor-cache";
 import { hashSensorSecret, newSensorSecret } from "~/.server/secrets";
 import * as schema from "~/db/schema.server";

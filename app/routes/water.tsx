@@ -5,8 +5,8 @@ import { getSite } from "~/.server/sites";
 import { formId, readForm } from "~/.server/ids";
 import { addWaterCheck, deleteWaterCheck, listWaterChecks } from "~/.server/water";
 import { Chart, type ChartSpec } from "~/components/chart";
-import { parseSource, ppmLabel, sourceName, STANDARD_SOURCES } from "~/domain/water/checks";
-import { PH_MAX, PH_MIN, ROUTINE_WATERING_MAX_EC, routineLimitPpm, UNBUFFERED_MAX_EC, type WaterVerdict } from "~/domain/water/water";
+import { parseSource, ppmLabel, sourceName, STANDARD_SOURCES } from "~/domain/water/logged-check";
+import { PH_MAX, PH_MIN, ROUTINE_WATERING_MAX_EC, routineLimitPpm, UNBUFFERED_MAX_EC, type WaterVerdict } from "~/domain/water/verdict";
 import { formatInZone, toLocalInputValue, zonedToUtc } from "~/lib/time";
 import type { Route } from "./+types/water";
 

@@ -18,7 +18,7 @@ import { aptInstall, isRoot } from "../../app/.server/debian";
 import { hashSensorSecret } from "../../app/.server/secrets";
 import { importCsv, parseCsv } from "../../app/.server/ingest/csv-import";
 import { handleHttpIngest } from "../../app/.server/ingest/http";
-import { REBUILD_SQL } from "../../app/.server/ingest/rollups";
+import { REBUILD_SQL } from "../../app/.server/rollups/rebuild";
 import { ReadingWriter, writer as sharedWriter } from "../../app/.server/ingest/writer";
 import { fetchRollups, loadRollups } from "../../app/.server/profiles";
 import { spotSeries } from "../../app/.server/series";

@@ -4,7 +4,7 @@
 import { afterAll, describe, expect, it } from "vitest";
 import { db, pool } from "~/.server/db";
 import { auditCsvImport, csvSlot, importCsv, previewCsv, readCsvHead } from "~/.server/ingest/csv-import";
-import { rebuildRollups } from "~/.server/ingest/rollups";
+import { rebuildRollups } from "~/.server/rollups/rebuild";
 import { ReadingWriter } from "~/.server/ingest/writer";
 import { auditLog } from "~/db/schema.server";
 import { guessMapping, type CsvMapping } from "~/domain/ingest/csv";

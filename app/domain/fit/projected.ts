@@ -3,8 +3,8 @@
 // comfort and damage lines as the measured nights and days. Facts, not sentences (describe.ts
 // words them). A projection never rules a plant out with the certainty of a measurement: what
 // would be poor on projected months alone is a warning at care level, worded as likely.
-import type { Fact, FitThresholds, RuleLevel, RuleName, RuleResult } from "~/domain/fit/rules";
-import { cyclicOrder, hemisphereMonths, linesOf, monthKeyOf } from "~/domain/fit/rules";
+import type { Fact, FitThresholds, RuleLevel, RuleName, RuleResult } from "~/domain/fit/checks";
+import { cyclicOrder, hemisphereMonths, linesOf, monthKeyOf } from "~/domain/fit/checks";
 import type { PlantProfile } from "~/domain/plants/library";
 import type { Figure, ProjectedMonth } from "~/domain/projection/project";
 import type { SeasonProfile } from "~/domain/season/types";
@@ -222,7 +222,7 @@ function merge(measured: RuleResult, projected: Judged, rule: RuleName): RuleRes
   };
 }
 
-// A fit table judges many plants alike in what a rule reads (fit/rules.ts RULE_INPUTS): each
+// A fit table judges many plants alike in what a rule reads (fit/checks.ts RULE_INPUTS): each
 // projection's judgement is kept per rule and plant inputs, and each merge per pair of results.
 type JudgeKey = (p: PlantProfile) => string;
 const JUDGES: { rule: RuleName; key: JudgeKey; judge: (p: PlantProfile, months: ProjectedMonth[], years: number, t: FitThresholds, season: SeasonProfile) => Judged | null }[] = [

@@ -1,4 +1,4 @@
-import { DEFAULT_FIT_THRESHOLDS, judgeAll, linesOf, type FitThresholds, type RuleLevel, type RuleResult } from "~/domain/fit/rules";
+import { DEFAULT_FIT_THRESHOLDS, judgeAll, linesOf, type FitThresholds, type RuleLevel, type RuleResult } from "~/domain/fit/checks";
 import type { PlantProfile } from "~/domain/plants/library";
 import { MONTH_NAMES, MIN_DAYS_FOR_MONTH } from "~/domain/season/profile";
 import type { SeasonProfile } from "~/domain/season/types";

@@ -3,7 +3,7 @@ import fc from "fast-check";
 import * as SunCalc from "suncalc";
 import { seasonProfile, MIN_DAYS_FOR_MONTH, MIN_HOURS_FOR_DAY } from "~/domain/season/profile";
 import type { HourlyRollup, Site } from "~/domain/season/types";
-import { coldNights, DEFAULT_FIT_THRESHOLDS } from "~/domain/fit/rules";
+import { coldNights, DEFAULT_FIT_THRESHOLDS } from "~/domain/fit/checks";
 import { PLANT_LIBRARY } from "~/domain/plants/library";
 
 const HOUR = 3_600_000;

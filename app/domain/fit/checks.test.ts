@@ -13,7 +13,7 @@ import {
   lightBand,
   linesOf,
   warmNights,
-} from "~/domain/fit/rules";
+} from "~/domain/fit/checks";
 import { day, describeFact, describeMonths, describeReason, formatNumber, temp } from "~/domain/fit/describe";
 import { coldSnaps, hotAfternoons, spotYear, steadyRoom, type HourPatch } from "~/domain/fit/season-fixture";
 import { PLANT_LIBRARY, plantByKey, type PlantProfile } from "~/domain/plants/library";
