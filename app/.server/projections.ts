@@ -3,7 +3,7 @@
 // spot and refitted daily, or sooner when a day's worth of new hours or new weather has come in.
 // Reads only what is stored: a site whose weather is not fetched yet gets `weather-not-fetched`.
 import { pool } from "~/.server/db";
-import { loadRollups } from "~/.server/profiles";
+import { loadRollups } from "~/.server/rollups/read";
 import { weatherStatus, loadHours, type WeatherStatus } from "~/.server/weather/store";
 import type { SpotFacing } from "~/domain/climate/sun";
 import { combineMonths, projectYear, type ProjectedMonth } from "~/domain/projection/project";

@@ -20,7 +20,7 @@ import { importCsv, parseCsv } from "../../app/.server/ingest/csv-import";
 import { handleHttpIngest } from "../../app/.server/ingest/http";
 import { REBUILD_SQL } from "../../app/.server/rollups/rebuild";
 import { ReadingWriter, writer as sharedWriter } from "../../app/.server/ingest/writer";
-import { fetchRollups, loadRollups } from "../../app/.server/profiles";
+import { fetchRollups, loadRollups } from "../../app/.server/rollups/read";
 import { spotSeries } from "../../app/.server/series";
 import { startEmbeddedPostgres } from "../../app/.server/postgres";
 import { rankPlantsForSpot } from "../../app/domain/fit/verdict";

@@ -2,7 +2,7 @@
 import { describe, expect, it, vi } from "vitest";
 import { ReadingWriter } from "~/.server/ingest/writer";
 import { rebuildRollups } from "~/.server/rollups/rebuild";
-import { fetchRollups, loadRollups } from "~/.server/profiles";
+import { fetchRollups, loadRollups } from "~/.server/rollups/read";
 import { pool } from "~/.server/db";
 import { makeSensor, makeSite, makeSpot, makeUser } from "./helpers";
 
