@@ -5,7 +5,7 @@ import { sql } from "drizzle-orm";
 import { db } from "~/.server/db";
 import { fitsFor, judgedPeriods, parseGlazing, spotProfiles, windowOf, glassContextFor } from "~/.server/profiles";
 import { siteInventory, siteWishlist, sitePlants } from "~/.server/plants";
-import { listSpots } from "~/.server/sites";
+import { listSpots } from "~/.server/spots";
 import { siteEvents } from "~/.server/alerts/queries";
 import { listNotes } from "~/.server/notes";
 import { GLAZING_U } from "~/domain/climate/glass";

@@ -3,7 +3,7 @@ import * as units from "~/lib/units";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
 import { readForm } from "~/.server/ids";
 import { getRule, listRules } from "~/.server/alerts/queries";
-import { getSpot } from "~/.server/sites";
+import { getSpot } from "~/.server/spots";
 import { addWatch, deleteWatch, setWatchPaused, suggestedColdWatch, updateWatch } from "~/.server/watches";
 import type { AlertRule } from "~/db/schema.server";
 import { describeCondition, formatDuration } from "~/domain/alerts/messages";

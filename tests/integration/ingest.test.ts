@@ -9,7 +9,7 @@ import { startBroker, type RunningBroker } from "~/.server/ingest/broker";
 import { importCsv, parseCsv } from "~/.server/ingest/csv-import";
 import { handleHttpIngest, MAX_HTTP_BYTES } from "~/.server/ingest/http";
 import { ReadingWriter, type CommittedReading } from "~/.server/ingest/writer";
-import { placeSensor } from "~/.server/sensors.server";
+import { placeSensor } from "~/.server/placements";
 import { guessMapping } from "~/domain/ingest/csv";
 import type { Reading } from "~/domain/ingest/payload";
 import { DEMO_SCENARIO, DEMO_SITE, generate } from "../../simulator/model";
