@@ -12,7 +12,7 @@ import { GLAZING_U } from "~/domain/climate/glass";
 import type { GlassContext } from "~/domain/fit/cold-glass";
 import { VERDICT_ORDER } from "~/domain/fit/verdict";
 import type { Site } from "~/db/schema.server";
-import type { TempUnit } from "~/lib/units";
+import type { TempUnit } from "~/domain/units";
 
 /** How many groups the matrix shows at most: the grower's own first, then the best of the rest. */
 export const MATRIX_ROWS = 10;

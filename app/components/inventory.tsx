@@ -1,7 +1,7 @@
 // The plants standing in a spot now: add, move to another spot, remove (owner and carer).
 import { Form } from "react-router";
 import { VerdictBadge } from "~/components/season";
-import { formatTemp, type TempUnit } from "~/lib/units";
+import { formatTemp, type TempUnit } from "~/domain/units";
 
 export type StandingPlant = { id: number; plantKey: string; plantName: string; nickname: string; pots: number; verdict: string | null };
 

@@ -9,7 +9,7 @@ import { compareSpec, MONTHS_SHORT, SPOT_COLOURS, SPOT_DASH } from "~/components
 import { compareHeadlines, describeHeadline, seasonsOfYear, type SeasonFigures } from "~/domain/season/compare";
 import { monthKey } from "~/domain/season/local-time";
 import { toLocalInputValue, zonedToUtc } from "~/lib/time";
-import { formatDelta, formatTemp, type TempUnit } from "~/lib/units";
+import { formatDelta, formatTemp, type TempUnit } from "~/domain/units";
 import type { Route } from "./+types/compare";
 
 export const meta: Route.MetaFunction = () => [{ title: "Compare spots · Nichewise" }];

@@ -12,7 +12,7 @@ import { listNotes } from "~/.server/notes";
 import { rankSpotsForPlant } from "~/domain/fit/verdict";
 import { fitProjections } from "~/.server/projections";
 import { PLANT_LIBRARY, type PlantProfile } from "~/domain/plants/library";
-import { deltaToUnit, formatTemp, type TempUnit } from "~/lib/units";
+import { deltaToUnit, formatTemp, type TempUnit } from "~/domain/units";
 import type { Route } from "./+types/plants.$plantKey";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.plant.name ?? "Plant"} · Nichewise` }];

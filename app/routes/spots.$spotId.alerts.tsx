@@ -1,5 +1,5 @@
 import { data, Form, Link, useNavigation } from "react-router";
-import * as units from "~/lib/units";
+import * as units from "~/domain/units";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
 import { readForm } from "~/.server/ids";
 import { getRule, listRules } from "~/.server/alerts/queries";

@@ -27,7 +27,7 @@ import { dayOne } from "~/.server/day-one";
 import { DayOne, type DayOneView } from "~/components/day-one";
 import { VERDICT_RULES } from "~/domain/fit/verdict";
 import { timeAgo } from "~/lib/time";
-import { formatTemp } from "~/lib/units";
+import { formatTemp } from "~/domain/units";
 import { LIGHT_SOURCE_LABELS, type LightSource } from "~/domain/climate/light";
 import type { SeasonProfile } from "~/domain/season/types";
 import type { Route } from "./+types/spots.$spotId";

@@ -2,7 +2,7 @@
 // dates only (checks.ts); this is the one place that turns them into sentences.
 import { cyclicOrder, type Fact, type RuleResult } from "~/domain/fit/checks";
 import { MONTH_NAMES } from "~/domain/season/profile";
-import { deltaToUnit, toUnit, type TempUnit } from "~/lib/units";
+import { deltaToUnit, toUnit, type TempUnit } from "~/domain/units";
 
 export type Format = { unit: TempUnit; locale?: string };
 export const DEFAULT_FORMAT: Format = { unit: "C", locale: "en-GB" };
