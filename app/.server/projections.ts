@@ -10,7 +10,8 @@ import { combineMonths, projectYear, type ProjectedMonth } from "~/domain/projec
 import { forecastSpot, type ForecastHour, type ForecastNight } from "~/domain/projection/forecast";
 import { drivers, fitResponse, type ModelQuality, type Place, type ResponseModel } from "~/domain/projection/response";
 import { dateOfDayNumber, zoneClock } from "~/domain/season/local-time";
-import { DEFAULT_THRESHOLDS_C, MIN_DAYS_FOR_MONTH, seasonProfile } from "~/domain/season/profile";
+import { DEFAULT_THRESHOLDS_C, MIN_DAYS_FOR_MONTH } from "~/domain/season/thresholds";
+import { seasonProfile } from "~/domain/season/profile";
 import type { SeasonProfile } from "~/domain/season/types";
 import type { FitProjection } from "~/domain/fit/projected";
 

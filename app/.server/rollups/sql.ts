@@ -1,6 +1,6 @@
 // The SQL pieces that file readings into hourly rollups, shared by the writer's statement
 // (ingest/write-sql.ts) and the rebuild (rollups/rebuild.ts), so both put a reading in the same hour.
-import { CONDENSATION_MARGIN_C } from "~/domain/season/profile";
+import { CONDENSATION_MARGIN_C } from "~/domain/season/thresholds";
 
 /**
  * SQL for the instant the local hour containing `at` began: `at` minus the minutes and seconds past

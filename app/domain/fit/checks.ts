@@ -6,7 +6,7 @@
 // line (the plant is harmed past it), and what counts is how long and how far the spot goes past
 // each: degree-hours, nights, and whether it is a brief snap or a season of weeks.
 import type { PlantProfile } from "~/domain/plants/library";
-import { CONDENSATION_MARGIN_C } from "~/domain/season/profile";
+import { CONDENSATION_MARGIN_C } from "~/domain/season/thresholds";
 import type { MonthOfYearProfile, NightSummary, SeasonProfile } from "~/domain/season/types";
 
 /** A rule's level: `unknown` when it had nothing to judge (no sensor for it, no readings yet). */

@@ -1,6 +1,7 @@
 import { DEFAULT_FIT_THRESHOLDS, judgeAll, linesOf, type FitThresholds, type RuleLevel, type RuleResult } from "~/domain/fit/checks";
 import type { PlantProfile } from "~/domain/plants/library";
-import { MONTH_NAMES, MIN_DAYS_FOR_MONTH } from "~/domain/season/profile";
+import { MONTH_NAMES } from "~/domain/season/profile";
+import { MIN_DAYS_FOR_MONTH } from "~/domain/season/thresholds";
 import type { SeasonProfile } from "~/domain/season/types";
 import { windowLight, type SpotWindow } from "~/domain/fit/window-light";
 import { coldGlass, type GlassContext } from "~/domain/fit/cold-glass";

@@ -4,7 +4,7 @@
 // On clear, still nights leaves and flowers radiate to the sky and run a few degrees below the air
 // a sensor in the shade measures: radiation frost (common practice: 1–3 °C below screen
 // temperature; we take 2 °C for an outdoor spot with under 25 % cloud and wind under 8 km/h).
-import { NIGHT_END_HOUR, NIGHT_START_HOUR } from "~/domain/season/profile";
+import { NIGHT_END_HOUR, NIGHT_START_HOUR } from "~/domain/season/thresholds";
 import { HOUR_MS, predictHour, type Drivers, type ResponseModel } from "./response";
 
 export const RADIATIVE_FROST = { maxCloudPercent: 25, maxWindKmh: 8, leafBelowAirC: 2 } as const;

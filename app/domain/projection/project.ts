@@ -3,7 +3,7 @@
 // both the year-to-year weather and the model's own error. Measured months always win; a month
 // partly measured blends the two and says so. Pure: no I/O.
 import type { MonthOfYearProfile, Site } from "~/domain/season/types";
-import { DEFAULT_THRESHOLDS_C, MIN_HOURS_FOR_DAY, NIGHT_END_HOUR, NIGHT_START_HOUR } from "~/domain/season/profile";
+import { DEFAULT_THRESHOLDS_C, MIN_HOURS_FOR_DAY, NIGHT_END_HOUR, NIGHT_START_HOUR } from "~/domain/season/thresholds";
 import { drivers, HOUR_MS, predictHour, type Drivers, type OutdoorSeries, type ResponseModel } from "./response";
 import { saturationVapourPressure } from "~/domain/climate/psychro";
 import { mulberry32 } from "~/lib/random";

@@ -1,7 +1,8 @@
 import { describe, expect, it } from "vitest";
 import fc from "fast-check";
 import * as SunCalc from "suncalc";
-import { seasonProfile, MIN_DAYS_FOR_MONTH, MIN_HOURS_FOR_DAY } from "~/domain/season/profile";
+import { seasonProfile } from "~/domain/season/profile";
+import { MIN_DAYS_FOR_MONTH, MIN_HOURS_FOR_DAY } from "~/domain/season/thresholds";
 import type { HourlyRollup, Site } from "~/domain/season/types";
 import { coldNights, DEFAULT_FIT_THRESHOLDS } from "~/domain/fit/checks";
 import { PLANT_LIBRARY } from "~/domain/plants/library";
