@@ -3,7 +3,7 @@
 // mean daily low (an outdoor spot of the same site), against the room air's dew point.
 import { dewPoint } from "~/domain/climate/psychro";
 import { paneInsideC } from "~/domain/climate/glass";
-import type { RuleResult } from "~/domain/fit/checks";
+import type { RuleResult } from "~/domain/fit/facts";
 import type { SeasonProfile } from "~/domain/season/types";
 
 export type GlassContext = {

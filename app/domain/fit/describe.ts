@@ -1,6 +1,6 @@
 // Words for the fit rules' facts, in the grower's unit and locale. The rules return numbers and
 // dates only (checks.ts); this is the one place that turns them into sentences.
-import { cyclicOrder, type Fact, type RuleResult } from "~/domain/fit/checks";
+import { cyclicOrder, type Fact, type RuleResult } from "~/domain/fit/facts";
 import { MONTH_NAMES } from "~/domain/season/profile";
 import { deltaToUnit, toUnit, type TempUnit } from "~/domain/units";
 

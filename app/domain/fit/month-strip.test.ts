@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { decodeStrip, encodeStrip, monthStrip, stripLabel } from "~/domain/fit/month-strip";
-import type { RuleResult } from "~/domain/fit/checks";
+import type { RuleResult } from "~/domain/fit/facts";
 
 const all = [1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12];
 

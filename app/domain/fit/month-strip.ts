@@ -2,7 +2,7 @@
 // passes the rule, asks for care, fails it, or has not been measured — and whether that month's
 // state rests on the projection (fit/projected.ts) rather than on readings. Pure: the summary
 // (.server/profiles.ts) derives it from a rule's result and the fit's basis; the page draws it.
-import type { Fact, RuleResult } from "~/domain/fit/checks";
+import type { Fact, RuleResult } from "~/domain/fit/facts";
 
 export type MonthState = "pass" | "care" | "fail" | "unmeasured";
 export type StripCell = { month: number; state: MonthState; projected: boolean };

@@ -3,8 +3,7 @@
 // comfort and damage lines as the measured nights and days. Facts, not sentences (describe.ts
 // words them). A projection never rules a plant out with the certainty of a measurement: what
 // would be poor on projected months alone is a warning at care level, worded as likely.
-import type { Fact, FitThresholds, RuleLevel, RuleName, RuleResult } from "~/domain/fit/checks";
-import { cyclicOrder, hemisphereMonths, linesOf, monthKeyOf } from "~/domain/fit/checks";
+import { type Fact, type FitThresholds, type RuleLevel, type RuleName, type RuleResult, cyclicOrder, hemisphereMonths, linesOf, monthKeyOf } from "~/domain/fit/facts";
 import type { PlantProfile } from "~/domain/plants/library";
 import type { Figure, ProjectedMonth } from "~/domain/projection/project";
 import type { SeasonProfile } from "~/domain/season/types";

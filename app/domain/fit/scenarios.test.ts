@@ -2,7 +2,7 @@
 // the verdict an experienced grower would give and the source of that judgement beside it.
 import { describe, expect, it } from "vitest";
 import { describeReason, describeSeasonal } from "~/domain/fit/describe";
-import type { RuleResult } from "~/domain/fit/checks";
+import type { RuleResult } from "~/domain/fit/facts";
 import { spotYear, type HourPatch, type MonthSpec } from "~/domain/fit/season-fixture";
 import { fitPlant, rankPlantsForSpot, type FitContext, type Verdict } from "~/domain/fit/verdict";
 import { PLANT_LIBRARY, plantByKey } from "~/domain/plants/library";

@@ -1,4 +1,5 @@
-import { DEFAULT_FIT_THRESHOLDS, judgeAll, linesOf, type FitThresholds, type RuleLevel, type RuleResult } from "~/domain/fit/checks";
+import { DEFAULT_FIT_THRESHOLDS, linesOf, type FitThresholds, type RuleLevel, type RuleResult } from "~/domain/fit/facts";
+import { judgeAll } from "~/domain/fit/checks";
 import type { PlantProfile } from "~/domain/plants/library";
 import { MONTH_NAMES } from "~/domain/season/profile";
 import { MIN_DAYS_FOR_MONTH } from "~/domain/season/thresholds";

@@ -2,7 +2,7 @@
 // facing (directSunMonths) against the group's light class. Walls, trees and frosted glass can only
 // take light away from the estimate, so only a low-light group behind a window without hot sun is
 // judged fine from it; for the rest the estimate says what the sun's path allows and what is not known.
-import type { RuleResult } from "~/domain/fit/checks";
+import type { RuleResult } from "~/domain/fit/facts";
 import type { PlantProfile } from "~/domain/plants/library";
 import { directSunMonths, type SpotFacing } from "~/domain/climate/sun";
 
