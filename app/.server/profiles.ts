@@ -195,26 +195,3 @@ export const parseGlazing = (v: string | null | undefined): Glazing | null => (v
 
 /** How a spot's window is described to the fit rules (used for light when it has no light sensor). */
 export const windowOf = (site: Site, spot: { facing: SpotWindow["facing"]; indoor: boolean }): SpotWindow => ({ latitude: site.latitude, facing: spot.facing, indoor: spot.indoor });
-
-/** The figures a page needs from a season profile, without the per-day detail. */
-export function slimProfile(season: ReturnType<typeof seasonProfile>) {
-  return {
-    hemisphere: season.hemisphere,
-    luxPerPpfd: season.luxPerPpfd,
-    luxClipped: season.luxClipped,
-    year: season.year.map(({ key, month, name, temperature, humidity, below, condensationHours, light, luxClipped, coverage }) => ({
-      key, month, name, temperature, humidity, below, condensationHours, light, luxClipped, coverage,
-    })),
-    seasons: season.seasons.map(({ key, label, season: name, temperature, humidity, below, condensationHours, light, luxClipped, coverage }) => ({
-      key, label, season: name, temperature, humidity, below, condensationHours, light, luxClipped, coverage,
-    })),
-  };
-}
-export type SlimProfile = ReturnType<typeof slimProfile>;
-
-/** Calendar months of the period (for a period shorter or longer than a year), same figures as the year. */
-export function slimMonths(season: ReturnType<typeof seasonProfile>) {
-  return season.months.map(({ key, year, month, temperature, humidity, below, condensationHours, light, coverage }) => ({
-    key, year, month, temperature, humidity, below, condensationHours, light, coverage,
-  }));
-}

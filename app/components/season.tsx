@@ -1,4 +1,4 @@
-import type { SlimProfile } from "~/.server/profiles";
+import type { SlimProfile } from "~/domain/season/slim";
 import { formatDelta, formatTemp, type TempUnit } from "~/domain/units";
 import { VerdictWords } from "~/components/verdict-mark";
 import { MonthStrip } from "~/components/month-strip";

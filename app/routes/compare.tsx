@@ -1,7 +1,8 @@
 import { useMemo } from "react";
 import { Form } from "react-router";
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
-import { slimMonths, slimProfile, spotProfiles } from "~/.server/profiles";
+import { slimMonths, slimProfile } from "~/domain/season/slim";
+import { spotProfiles } from "~/.server/profiles";
 import { getSite } from "~/.server/sites";
 import { listSpots } from "~/.server/spots";
 import { Chart } from "~/components/chart";
