@@ -246,7 +246,7 @@ function newMonth(nThresholds: number): MonthAcc {
   };
 }
 
-// The season profile's rules (domain/season/profile.ts): a day counts with MIN_HOURS_FOR_DAY
+// The season profile's rules (domain/season/thresholds.ts): a day counts with MIN_HOURS_FOR_DAY
 // hours; an hour is day when the sun is up; a night is counted below a line when any hour of it is.
 function finishDay(day: DayAcc, acc: MonthAcc) {
   if (day.hours === 0) return;
