@@ -7,20 +7,20 @@
 // line (the plant is harmed past it), and what counts is how long and how far the spot goes past
 // each: degree-hours, nights, and whether it is a brief snap or a season of weeks.
 import { condensation } from "~/domain/fit/condensation";
-import { linesOf, type FitRule, type FitThresholds, type RuleResult } from "~/domain/fit/facts";
+import { linesOf, type FitCheck, type FitThresholds, type CheckResult } from "~/domain/fit/facts";
 import { floweringNeeds } from "~/domain/fit/flowering";
 import { humidityBand, lightBand } from "~/domain/fit/humidity-light";
 import { coldNights, hotDays, warmNights } from "~/domain/fit/temperature";
 import type { PlantProfile } from "~/domain/plants/library";
 import type { SeasonProfile } from "~/domain/season/types";
 
-export const FIT_RULES: FitRule[] = [coldNights, warmNights, hotDays, humidityBand, lightBand, floweringNeeds, condensation];
+export const FIT_CHECKS: FitCheck[] = [coldNights, warmNights, hotDays, humidityBand, lightBand, floweringNeeds, condensation];
 
 /**
  * What each rule reads of a plant profile. Plants alike in these get the same result in the same
  * season, so a fit table judges each distinct case once. A rule added without an entry is never shared.
  */
-const RULE_INPUTS = new Map<FitRule, (p: PlantProfile) => string>([
+const CHECK_INPUTS = new Map<FitCheck, (p: PlantProfile) => string>([
   [coldNights, (p) => `${p.minNightC}|${linesOf(p).damageNightC}`],
   [warmNights, (p) => `${p.maxNightC}`],
   [hotDays, (p) => `${p.maxDayC}|${linesOf(p).damageDayC}|${p.flowering.coolPeriod?.maxDayC !== undefined}`],
@@ -30,16 +30,16 @@ const RULE_INPUTS = new Map<FitRule, (p: PlantProfile) => string>([
   [condensation, (p) => `${p.humidityMax >= 88}`],
 ]);
 
-const judged = new WeakMap<SeasonProfile, WeakMap<FitThresholds, Map<string, RuleResult>>>();
+const judged = new WeakMap<SeasonProfile, WeakMap<FitThresholds, Map<string, CheckResult>>>();
 
-/** Every rule's result for a plant in a season, in FIT_RULES order. Results are shared: don't mutate them. */
-export function judgeAll(profile: PlantProfile, season: SeasonProfile, t: FitThresholds): RuleResult[] {
+/** Every rule's result for a plant in a season, in FIT_CHECKS order. Results are shared: don't mutate them. */
+export function judgeAll(profile: PlantProfile, season: SeasonProfile, t: FitThresholds): CheckResult[] {
   let byThresholds = judged.get(season);
   if (!byThresholds) judged.set(season, (byThresholds = new WeakMap()));
   let known = byThresholds.get(t);
   if (!known) byThresholds.set(t, (known = new Map()));
-  return FIT_RULES.map((rule, i) => {
-    const inputs = RULE_INPUTS.get(rule);
+  return FIT_CHECKS.map((rule, i) => {
+    const inputs = CHECK_INPUTS.get(rule);
     if (!inputs) return rule(profile, season, t);
     const key = `${i}|${inputs(profile)}`;
     let result = known.get(key);

@@ -1,6 +1,6 @@
 // The fit's condensation check: hours within the condensation margin of the dew point, where
 // water stands on leaves.
-import { cyclicOrder, monthKeys, round1, unknown, type FitRule } from "~/domain/fit/facts";
+import { cyclicOrder, monthKeys, round1, unknown, type FitCheck } from "~/domain/fit/facts";
 import { CONDENSATION_MARGIN_C } from "~/domain/season/thresholds";
 import type { MonthOfYearProfile } from "~/domain/season/types";
 
@@ -9,7 +9,7 @@ import type { MonthOfYearProfile } from "~/domain/season/types";
  * time under the margin). A 2 K margin is about 88 % RH, so for a group whose own range reaches that
  * (Masdevallia, Nepenthes) damp air is expected and the advice is air movement, not a warning.
  */
-export const condensation: FitRule = (profile, season, t) => {
+export const condensation: FitCheck = (profile, season, t) => {
   const months = season.year.filter((m) => m.coverage.hoursObserved > 0);
   if (months.length === 0) return unknown("condensation");
   const total = round1(months.reduce((n, m) => n + m.condensationHours, 0));

@@ -4,8 +4,8 @@
 import type { PlantProfile } from "~/domain/plants/library";
 import type { SeasonProfile } from "~/domain/season/types";
 
-/** A rule's level: `unknown` when it had nothing to judge (no sensor for it, no readings yet). */
-export type RuleLevel = "good" | "care" | "poor" | "unknown";
+/** A check's level: `unknown` when it had nothing to judge (no sensor for it, no readings yet). */
+export type CheckLevel = "good" | "care" | "poor" | "unknown";
 
 /** One night or day past a line: its local date ("2026-01-17"), the extreme, and hours past the line. */
 export type Episode = { date: string; valueC: number; hours: number };
@@ -52,9 +52,9 @@ export type Fact =
   | { kind: "projected-ok"; side: "cold" | "heat"; months: number[]; valueC: number; lineC: number; years: number }
   | { kind: "projected-cue"; cue: "cool" | "dif"; months: number[]; years: number };
 
-export type RuleResult = {
-  rule: RuleName;
-  level: RuleLevel;
+export type CheckResult = {
+  rule: CheckName;
+  level: CheckLevel;
   facts: Fact[];
   /** Months of the year concerned, as month-of-year keys "01"–"12" (the year strip's columns). */
   months?: string[];
@@ -68,7 +68,7 @@ export type RuleResult = {
   likely?: "poor";
 };
 
-export type RuleName = "cold-nights" | "warm-nights" | "hot-days" | "humidity" | "light" | "flowering" | "condensation";
+export type CheckName = "cold-nights" | "warm-nights" | "hot-days" | "humidity" | "light" | "flowering" | "condensation";
 
 /** Where each rule turns; our own choices (common practice) unless noted. Kept as data so a page can show them. */
 export type FitThresholds = {
@@ -112,11 +112,11 @@ export const DEFAULT_FIT_THRESHOLDS: FitThresholds = {
   difMinDays: 10,
 };
 
-export type FitRule = (profile: PlantProfile, season: SeasonProfile, thresholds: FitThresholds) => RuleResult;
+export type FitCheck = (profile: PlantProfile, season: SeasonProfile, thresholds: FitThresholds) => CheckResult;
 
-const LEVEL_RANK: Record<RuleLevel, number> = { good: 0, unknown: 1, care: 2, poor: 3 };
-export const worstLevel = (levels: RuleLevel[]): RuleLevel =>
-  levels.reduce<RuleLevel>((w, l) => (LEVEL_RANK[l] > LEVEL_RANK[w] ? l : w), "good");
+const LEVEL_RANK: Record<CheckLevel, number> = { good: 0, unknown: 1, care: 2, poor: 3 };
+export const worstLevel = (levels: CheckLevel[]): CheckLevel =>
+  levels.reduce<CheckLevel>((w, l) => (LEVEL_RANK[l] > LEVEL_RANK[w] ? l : w), "good");
 
 /** The group's lines, with defaults for profiles that don't name them (a site's own profiles). */
 export function linesOf(p: PlantProfile) {
@@ -165,4 +165,4 @@ export const round1 = (x: number) => Math.round(x * 10) / 10;
 export const hemisphereMonths = (months: number[], season: SeasonProfile) =>
   season.hemisphere === "southern" ? months.map((m) => ((m + 5) % 12) + 1) : months;
 
-export const unknown = (rule: RuleName): RuleResult => ({ rule, level: "unknown", noData: true, facts: [] });
+export const unknown = (rule: CheckName): CheckResult => ({ rule, level: "unknown", noData: true, facts: [] });

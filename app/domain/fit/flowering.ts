@@ -1,6 +1,6 @@
 // The fit's flowering check: the cues a group needs to flower (cool autumn nights, a wide
 // day–night difference), in their season, for long enough.
-import { cyclicOrder, hemisphereMonths, median, monthKeys, round1, unknown, worstLevel, type Fact, type FitRule, type RuleLevel } from "~/domain/fit/facts";
+import { cyclicOrder, hemisphereMonths, median, monthKeys, round1, unknown, worstLevel, type Fact, type FitCheck, type CheckLevel } from "~/domain/fit/facts";
 import type { SeasonProfile } from "~/domain/season/types";
 
 /**
@@ -57,14 +57,14 @@ function monthlySwings(season: SeasonProfile, minDays: number) {
  * counts) and the day–night difference as the day's high minus its low, month by month. Missing
  * them costs flowers, not the plant: care at worst.
  */
-export const floweringNeeds: FitRule = (profile, season, t) => {
+export const floweringNeeds: FitCheck = (profile, season, t) => {
   const days = season.days.filter((d) => d.low !== null && d.high !== null);
   const cool = profile.flowering.coolPeriod;
   const need = profile.flowering.difC;
   if (!cool && need === undefined) return { rule: "flowering", level: "good", facts: [{ kind: "cue-none" }] };
   if (days.length === 0) return unknown("flowering");
   const facts: Fact[] = [];
-  const levels: RuleLevel[] = [];
+  const levels: CheckLevel[] = [];
   const months: number[] = [];
   if (cool) {
     const cond = (d: { low: number; high: number }) => (cool.maxNightC === undefined || d.low <= cool.maxNightC) && (cool.maxDayC === undefined || d.high <= cool.maxDayC);

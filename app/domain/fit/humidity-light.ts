@@ -1,6 +1,6 @@
 // The fit's humidity and light checks: the group's humidity band by its dry hours, and its light
 // band by month.
-import { cyclicOrder, hemisphereMonths, median, monthKeys, round1, unknown, type Fact, type FitRule, type RuleLevel } from "~/domain/fit/facts";
+import { cyclicOrder, hemisphereMonths, median, monthKeys, round1, unknown, type Fact, type FitCheck, type CheckLevel } from "~/domain/fit/facts";
 import type { SeasonProfile } from "~/domain/season/types";
 
 /** Each month's daily humidity minimums, sorted, once per season. */
@@ -28,7 +28,7 @@ function dailyHumidity(season: SeasonProfile) {
  * hide a heated room's 30 % afternoons behind its 70 % nights. Dry air is fixable (a tray, grouping,
  * a humidifier), so never worse than care. Damp air: the monthly mean over the group's maximum.
  */
-export const humidityBand: FitRule = (profile, season, t) => {
+export const humidityBand: FitCheck = (profile, season, t) => {
   const { byMonth, lowest: lowestDaily, count } = dailyHumidity(season);
   const months = season.year.filter((m) => m.humidity.mean !== null);
   if (months.length === 0 && count === 0) return unknown("humidity");
@@ -77,7 +77,7 @@ export const humidityBand: FitRule = (profile, season, t) => {
  * several months scorch (poor); the rest asks for care (a grow light, a sheer curtain). Light that
  * isn't measured is `unknown`, never fine.
  */
-export const lightBand: FitRule = (profile, season, t) => {
+export const lightBand: FitCheck = (profile, season, t) => {
   const measured = season.year.filter((m) => m.light.meanDli !== null && m.light.daysWithLight > 0);
   if (measured.length === 0) return { rule: "light", level: "unknown", noData: true, facts: [] };
   const months = measured.map((m) => ({ month: m.month, dli: round1(m.light.meanDli!) }));
@@ -93,7 +93,7 @@ export const lightBand: FitRule = (profile, season, t) => {
   const unmeasured = [1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12].filter((m) => !measured.some((x) => x.month === m));
   const facts: Fact[] = [{ kind: "light-months", minDli: profile.dliMin, maxDli: profile.dliMax, months, dim, bright, scorch, unmeasured }];
   if (clipped.length) facts.push({ kind: "light-clipped", months: clipped });
-  const level: RuleLevel =
+  const level: CheckLevel =
     (profile.light === "low" && scorch.length >= t.scorchPoorMonths) || farDim.length >= 4
       ? "poor"
       : dim.length || bright.length

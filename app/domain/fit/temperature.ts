@@ -1,7 +1,7 @@
 // The fit's temperature checks: cold nights, warm nights (for cool growers) and hot days, each
 // against the group's comfort line and damage line, by nights or days, degree-hours, and whether
 // it is a brief snap or a season of weeks.
-import { cyclicOrder, linesOf, median, monthKeys, round1, unknown, type Episode, type FitRule } from "~/domain/fit/facts";
+import { cyclicOrder, linesOf, median, monthKeys, round1, unknown, type Episode, type FitCheck } from "~/domain/fit/facts";
 import type { NightSummary, SeasonProfile } from "~/domain/season/types";
 
 
@@ -46,7 +46,7 @@ function lowestOf(season: SeasonProfile): number {
  * season (many nights within weeks) → care, or poor when the season's typical night sits nearer the
  * damage line than the comfort line. A few nights past comfort (a snap) → care, naming the nights.
  */
-export const coldNights: FitRule = (profile, season, t) => {
+export const coldNights: FitCheck = (profile, season, t) => {
   if (season.nights.length === 0) return unknown("cold-nights");
   const { comfortNightC: comfort, damageNightC: damage } = linesOf(profile);
   const lowest = lowestOf(season);
@@ -96,7 +96,7 @@ export const coldNights: FitRule = (profile, season, t) => {
  * Warm nights for groups with a maximum night (cool growers): a season of nights above it stops
  * growth or flowering — poor when the season's typical night is 2 °C or more above it, else care.
  */
-export const warmNights: FitRule = (profile, season, t) => {
+export const warmNights: FitCheck = (profile, season, t) => {
   const { maxNightC } = linesOf(profile);
   if (maxNightC === undefined) return { rule: "warm-nights", level: "good", facts: [] };
   if (season.nights.length === 0) return unknown("warm-nights");
@@ -117,7 +117,7 @@ export const warmNights: FitRule = (profile, season, t) => {
 };
 
 /** Days against the comfortable day and the heat damage line, as for nights. */
-export const hotDays: FitRule = (profile, season, t) => {
+export const hotDays: FitCheck = (profile, season, t) => {
   const days = season.days.filter((d) => d.high !== null);
   if (days.length === 0) return unknown("hot-days");
   const { comfortDayC: comfort, damageDayC: damage } = linesOf(profile);
