@@ -10,7 +10,8 @@ import type { HourlyRollup } from "~/domain/season/types";
 import { DEMO_HOUSEHOLD } from "./demo";
 import { generate, outdoorWeather, DEMO_SCENARIO } from "./model";
 import { WEATHER_VARIABLES } from "./weather-fake";
-import { drivers, fitResponse, median } from "~/domain/projection/response";
+import { drivers } from "~/domain/projection/drivers";
+import { fitResponse, median } from "~/domain/projection/response";
 import { projectYear } from "~/domain/projection/project";
 
 const HOUR = 3_600_000;

@@ -2,7 +2,7 @@
 // from its stored past weather, the spot's first days against the outdoor weather of the same hours,
 // and where its response model stands (waiting for days, or fitted, with the date of a firm answer).
 // Reads only what is stored; never waits on the weather service.
-import { loadRollups } from "~/.server/profiles";
+import { loadRollups } from "~/.server/rollups/read";
 import { projectedProfile } from "~/.server/projections";
 import { loadHours, weatherStatus } from "~/.server/weather/store";
 import { MIN_DAYS } from "~/domain/projection/response";

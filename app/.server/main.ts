@@ -101,7 +101,7 @@ async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[],
   stops.push(weatherJob.stop);
 
   const { pruneRejections } = await import("~/.server/ingest/rejections");
-  const { pruneRollupChanges } = await import("~/.server/profiles");
+  const { pruneRollupChanges } = await import("~/.server/rollups/read");
   const housekeeping = setInterval(() => {
     pruneRejections().catch(() => {});
     pool()

@@ -2,13 +2,23 @@
 // written to audit_log in the same transaction. The last owner can neither leave nor be demoted or
 // removed: the owner rows of the site are locked first, so two owners demoting each other at once
 // cannot both succeed.
-import { and, desc, eq, gt, isNull, sql } from "drizzle-orm";
+import { and, asc, desc, eq, gt, isNull, sql } from "drizzle-orm";
 import { db, type Db } from "~/.server/db";
 import { publicUrl } from "~/.server/env";
 import { sendMail } from "~/.server/mail";
 import { oneLine } from "~/.server/ids";
 import { randomToken, sha256Hex } from "~/.server/secrets";
 import { auditLog, invitations, memberships, sites, users, type Role } from "~/db/schema.server";
+
+/** The site's members, owners first. */
+export async function listMembers(siteId: number) {
+  return db()
+    .select({ userId: users.id, name: users.name, email: users.email, role: memberships.role, since: memberships.createdAt })
+    .from(memberships)
+    .innerJoin(users, eq(users.id, memberships.userId))
+    .where(eq(memberships.siteId, siteId))
+    .orderBy(asc(memberships.role), asc(users.name));
+}
 
 export const INVITATION_DAYS = 7;
 export const INVITABLE_ROLES = ["carer", "mentor"] as const satisfies readonly Role[];

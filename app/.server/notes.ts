@@ -3,7 +3,7 @@
 import { and, desc, eq, isNull, sql } from "drizzle-orm";
 import { db } from "~/.server/db";
 import { cleanText } from "~/.server/ids";
-import { getSpot } from "~/.server/sites";
+import { getSpot } from "~/.server/spots";
 import { PLANT_LIBRARY } from "~/domain/plants/library";
 import { auditLog, customPlants, notes, users } from "~/db/schema.server";
 

@@ -8,7 +8,7 @@ import { ensureColdWatch } from "~/.server/watches";
 import { auditLog, customPlants, spotPlants, spots, wishlist } from "~/db/schema.server";
 import { PLANT_LIBRARY, type PlantProfile } from "~/domain/plants/library";
 import { z } from "zod";
-import { storedProfileSchema } from "~/lib/plant-form";
+import { storedProfileSchema } from "~/forms/plant";
 
 export type SitePlant = PlantProfile & { own: boolean; basedOn: string | null };
 

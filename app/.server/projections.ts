@@ -3,14 +3,17 @@
 // spot and refitted daily, or sooner when a day's worth of new hours or new weather has come in.
 // Reads only what is stored: a site whose weather is not fetched yet gets `weather-not-fetched`.
 import { pool } from "~/.server/db";
-import { loadRollups } from "~/.server/profiles";
+import { loadRollups } from "~/.server/rollups/read";
 import { weatherStatus, loadHours, type WeatherStatus } from "~/.server/weather/store";
 import type { SpotFacing } from "~/domain/climate/sun";
-import { combineMonths, projectYear, type ProjectedMonth } from "~/domain/projection/project";
+import { combineMonths } from "~/domain/projection/combine";
+import { projectYear, type ProjectedMonth } from "~/domain/projection/project";
 import { forecastSpot, type ForecastHour, type ForecastNight } from "~/domain/projection/forecast";
-import { drivers, fitResponse, type ModelQuality, type Place, type ResponseModel } from "~/domain/projection/response";
+import { drivers, type Place } from "~/domain/projection/drivers";
+import { fitResponse, type ModelQuality, type ResponseModel } from "~/domain/projection/response";
 import { dateOfDayNumber, zoneClock } from "~/domain/season/local-time";
-import { DEFAULT_THRESHOLDS_C, MIN_DAYS_FOR_MONTH, seasonProfile } from "~/domain/season/profile";
+import { DEFAULT_THRESHOLDS_C, MIN_DAYS_FOR_MONTH } from "~/domain/season/thresholds";
+import { seasonProfile } from "~/domain/season/profile";
 import type { SeasonProfile } from "~/domain/season/types";
 import type { FitProjection } from "~/domain/fit/projected";
 

@@ -5,14 +5,14 @@ import { sql } from "drizzle-orm";
 import { db } from "~/.server/db";
 import { fitsFor, judgedPeriods, parseGlazing, spotProfiles, windowOf, glassContextFor } from "~/.server/profiles";
 import { siteInventory, siteWishlist, sitePlants } from "~/.server/plants";
-import { listSpots } from "~/.server/sites";
+import { listSpots } from "~/.server/spots";
 import { siteEvents } from "~/.server/alerts/pages";
 import { listNotes } from "~/.server/notes";
 import { GLAZING_U } from "~/domain/climate/glass";
 import type { GlassContext } from "~/domain/fit/cold-glass";
 import { VERDICT_ORDER } from "~/domain/fit/verdict";
 import type { Site } from "~/db/schema.server";
-import type { TempUnit } from "~/lib/units";
+import type { TempUnit } from "~/domain/units";
 
 /** How many groups the matrix shows at most: the grower's own first, then the best of the rest. */
 export const MATRIX_ROWS = 10;

@@ -1,7 +1,8 @@
 // What the spot page shows about growing there, beyond the season: the plants standing in it now
 // (with the most tender one, for alerts), the other spots they could move to, and the direct-sun
 // estimate for its window.
-import { listSpots, type listSensors } from "~/.server/sites";
+import { listSpots } from "~/.server/spots";
+import { type listSensors } from "~/.server/sensors.server";
 import { mostTender, spotInventory, type SitePlant } from "~/.server/plants";
 import { directSunMonths } from "~/domain/climate/sun";
 import type { Site, Spot } from "~/db/schema.server";

@@ -1,15 +1,28 @@
-// Spots: adding, changing and deleting one. Each change is one transaction with its audit row; the
+// Spots: listing and finding a site's spots, and adding, changing and deleting one. Each change is one transaction with its audit row; the
 // sensor cache (which knows whether a sensor's spot is indoor or outdoor, for ingest's plausibility
 // limits) forgets the spot's sensors once the change is committed, and a spot that becomes outdoor
 // gets the cold watch its plants call for, in the same transaction.
-import { and, eq, isNull } from "drizzle-orm";
+import { and, asc, eq, isNull } from "drizzle-orm";
+import { notFound } from "~/.server/auth";
 import { db } from "~/.server/db";
-import { cleanText } from "~/.server/ids";
-import { invalidateSensorCache } from "~/.server/ingest/sensors";
+import { cleanText, paramId } from "~/.server/ids";
+import { invalidateSensorCache } from "~/.server/ingest/sensor-cache";
 import { ensureColdWatch } from "~/.server/watches";
 import { auditLog, placements, spots, type Spot } from "~/db/schema.server";
 import type { LightSource } from "~/domain/climate/light";
 import type { FACINGS, Glazing } from "~/lib/forms";
+
+export async function listSpots(siteId: number) {
+  return db().select().from(spots).where(eq(spots.siteId, siteId)).orderBy(asc(spots.name));
+}
+
+/** The spot, if it belongs to the site in the URL; otherwise a 404. */
+export async function getSpot(siteId: number, spotId: number | string | undefined) {
+  const id = paramId(spotId);
+  const [spot] = await db().select().from(spots).where(and(eq(spots.id, id), eq(spots.siteId, siteId)));
+  if (!spot) notFound();
+  return spot;
+}
 
 /**
  * `lightSource` (default sun) sets the lux → PPFD factor of the spot's DLI; `glazing` is kept only

@@ -1,8 +1,8 @@
 // Water checks per site: logged by carers and owners, read by everyone in the site.
 import { and, asc, eq } from "drizzle-orm";
 import { db } from "~/.server/db";
-import { checkEc, checkPpm, checkSample } from "~/domain/water/checks";
-import { waterVerdict } from "~/domain/water/water";
+import { checkEc, checkPpm, checkSample } from "~/domain/water/logged-check";
+import { waterVerdict } from "~/domain/water/verdict";
 import { auditLog, users, waterChecks } from "~/db/schema.server";
 
 export async function listWaterChecks(siteId: number) {

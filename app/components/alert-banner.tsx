@@ -1,7 +1,7 @@
 // The site's open alerts and early warnings above every site page, refreshed every 15 s.
 import { useEffect } from "react";
 import { Link, useFetcher } from "react-router";
-import type { AlertBannerData } from "~/.server/alerts/pages";
+import type { AlertBannerData } from "~/domain/alerts/banner";
 import { forecastHeadline } from "~/domain/alerts/forecast-warning";
 import { formatValue } from "~/domain/alerts/messages";
 import { KINDS } from "~/domain/alerts/rules";

@@ -6,7 +6,7 @@ import { useEffect, useMemo, useRef, useState } from "react";
 import type uPlot from "uplot";
 import "uplot/dist/uPlot.min.css";
 import { DEFAULT_FORMAT } from "~/domain/fit/describe";
-import { calendarTicks, timeTickLabels } from "~/lib/chart-scale";
+import { calendarTicks, timeTickLabels } from "~/components/chart-scale";
 
 export const TEMP_COLOURS = { cold: "#3b6ea8", cool: "#6aa3c8", mild: "#cdbf9a", warm: "#e0a04a", hot: "#c4472f" };
 

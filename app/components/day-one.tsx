@@ -4,7 +4,7 @@
 // Words first; the month-by-month figures one fold down. Dates come formatted from the loader.
 import type { DirectSunEstimate } from "~/domain/climate/sun";
 import { SpotsAndSeasons } from "~/components/illustration";
-import { formatDelta, formatTemp, type TempUnit } from "~/lib/units";
+import { formatDelta, formatTemp, type TempUnit } from "~/domain/units";
 
 const MONTHS = ["Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"];
 const MONTH_NAMES = ["January", "February", "March", "April", "May", "June", "July", "August", "September", "October", "November", "December"];

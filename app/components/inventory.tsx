@@ -2,7 +2,7 @@
 import { Form } from "react-router";
 import { VerdictBadge } from "~/components/season";
 import { PlantIcon } from "~/components/icons";
-import { formatTemp, type TempUnit } from "~/lib/units";
+import { formatTemp, type TempUnit } from "~/domain/units";
 
 export type StandingPlant = { id: number; plantKey: string; plantName: string; nickname: string; pots: number; verdict: string | null };
 

@@ -1,5 +1,5 @@
-import type { SlimProfile } from "~/.server/profiles";
-import { formatDelta, formatTemp, type TempUnit } from "~/lib/units";
+import type { SlimProfile } from "~/domain/season/slim";
+import { formatDelta, formatTemp, type TempUnit } from "~/domain/units";
 import { VerdictWords } from "~/components/verdict-mark";
 import { MonthStrip } from "~/components/month-strip";
 

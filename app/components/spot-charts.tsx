@@ -4,7 +4,7 @@
 import { useMemo } from "react";
 import type uPlot from "uplot";
 import { Chart, SITE_LOCALE, TEMP_COLOURS, useSeries, type ChartSpec } from "~/components/chart";
-import { deltaToUnit, formatDelta, formatTemp, toUnit, type TempUnit } from "~/lib/units";
+import { deltaToUnit, formatDelta, formatTemp, toUnit, type TempUnit } from "~/domain/units";
 
 const AXIS = { stroke: "#4a5767", grid: { stroke: "#d4dcdb" }, ticks: { stroke: "#d4dcdb" } };
 export const MONTHS_SHORT = ["Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"];

@@ -1,7 +1,7 @@
 // The year strip: twelve months side by side, each a bar from the month's lowest to highest with the
 // 5–95 % band and the mean daily low and high marked, and a plant's comfortable band laid over it.
-import { coverageLabel, stripTicks } from "~/lib/chart-scale";
-import { toUnit, type TempUnit } from "~/lib/units";
+import { coverageLabel, stripTicks } from "~/components/chart-scale";
+import { toUnit, type TempUnit } from "~/domain/units";
 
 export type StripMonth = {
   key: string;

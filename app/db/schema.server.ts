@@ -198,7 +198,7 @@ export const hourlyRollups = pgTable(
 
 // Spots whose past hours' rollups changed (late readings, a rebuild after a move or a calibration,
 // deletions). Rows are written by statement triggers on hourly_rollups (drizzle/0004), so no path
-// can forget; the rollup cache in app/.server/profiles.ts compares a spot's rows here to know when
+// can forget; the rollup cache in app/.server/rollups/read.ts compares a spot's rows here to know when
 // it must read the spot again. No foreign key: a deleted spot's rollups still log their deletion.
 export const rollupChanges = pgTable(
   "rollup_changes",

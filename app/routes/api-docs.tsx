@@ -1,7 +1,8 @@
 // The API, documented with examples filled in for the reader's own first site and spot.
 import { requireUser } from "~/.server/auth";
 import { env } from "~/.server/env";
-import { listSpots, mySites } from "~/.server/sites";
+import { listSpots } from "~/.server/spots";
+import { mySites } from "~/.server/sites";
 import type { Route } from "./+types/api-docs";
 import { IntoIcon, OutOfIcon } from "~/components/icons";
 

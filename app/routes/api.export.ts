@@ -2,7 +2,8 @@
 // Streamed from PostgreSQL; see app/.server/exports.ts.
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
 import { exportProfile, exportReadings, parsePeriod } from "~/.server/exports";
-import { getSite, getSpot } from "~/.server/sites";
+import { getSite } from "~/.server/sites";
+import { getSpot } from "~/.server/spots";
 import type { Route } from "./+types/api.export";
 
 const WHAT = ["raw", "hourly", "profile"] as const;

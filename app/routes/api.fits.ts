@@ -6,7 +6,8 @@
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
 import { sitePlants } from "~/.server/plants";
 import { describeSeasonal, glassContextFor, judgedPeriods, parseGlazing, parsePeriod, spotProfiles, windowOf } from "~/.server/profiles";
-import { getSite, getSpot, listSpots } from "~/.server/sites";
+import { getSite } from "~/.server/sites";
+import { getSpot, listSpots } from "~/.server/spots";
 import { GLAZING_U } from "~/domain/climate/glass";
 import { describeReason, describeVerdict, type Format } from "~/domain/fit/describe";
 import { fitProjection } from "~/.server/projections";

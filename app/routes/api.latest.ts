@@ -1,6 +1,6 @@
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
 import { latestReading } from "~/.server/series";
-import { getSpot } from "~/.server/sites";
+import { getSpot } from "~/.server/spots";
 import type { Route } from "./+types/api.latest";
 
 export async function loader({ request, params }: Route.LoaderArgs) {

@@ -1,7 +1,7 @@
 import { desc, eq } from "drizzle-orm";
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
 import { db } from "~/.server/db";
-import { getSensor } from "~/.server/sites";
+import { getSensor } from "~/.server/sensors.server";
 import { readings } from "~/db/schema.server";
 import type { Route } from "./+types/api.sensor-status";
 

@@ -1,7 +1,8 @@
 import { data } from "react-router";
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
 import { spotSeries } from "~/.server/series";
-import { getSite, getSpot } from "~/.server/sites";
+import { getSite } from "~/.server/sites";
+import { getSpot } from "~/.server/spots";
 import { DEFAULT_FORMAT } from "~/domain/fit/describe";
 import type { Route } from "./+types/api.series";
 

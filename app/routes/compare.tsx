@@ -1,14 +1,16 @@
 import { useMemo } from "react";
 import { Form } from "react-router";
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
-import { slimMonths, slimProfile, spotProfiles } from "~/.server/profiles";
-import { getSite, listSpots } from "~/.server/sites";
+import { slimMonths, slimProfile } from "~/domain/season/slim";
+import { spotProfiles } from "~/.server/profiles";
+import { getSite } from "~/.server/sites";
+import { listSpots } from "~/.server/spots";
 import { Chart } from "~/components/chart";
 import { compareSpec, MONTHS_SHORT, SPOT_COLOURS, SPOT_DASH } from "~/components/spot-charts";
 import { compareHeadlines, describeHeadline, seasonsOfYear, type SeasonFigures } from "~/domain/season/compare";
 import { monthKey } from "~/domain/season/local-time";
 import { toLocalInputValue, zonedToUtc } from "~/lib/time";
-import { formatDelta, formatTemp, type TempUnit } from "~/lib/units";
+import { formatDelta, formatTemp, type TempUnit } from "~/domain/units";
 import type { Route } from "./+types/compare";
 
 export const meta: Route.MetaFunction = () => [{ title: "Compare spots · Nichewise" }];

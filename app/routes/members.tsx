@@ -2,20 +2,8 @@ import { useEffect, useRef } from "react";
 import { data, Form, redirect, useNavigation } from "react-router";
 import { z } from "zod";
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
-import {
-  changeRole,
-  INVITABLE_ROLES,
-  InvitationLimitError,
-  INVITES_PER_SITE_PER_HOUR,
-  inviteMember,
-  listInvitations,
-  MembershipError,
-  recentChanges,
-  removeMember,
-  revokeInvitation,
-} from "~/.server/members";
+import { changeRole, INVITABLE_ROLES, InvitationLimitError, INVITES_PER_SITE_PER_HOUR, inviteMember, listInvitations, MembershipError, recentChanges, removeMember, revokeInvitation, listMembers } from "~/.server/members";
 import { cleanText, formId, toId, readForm } from "~/.server/ids";
-import { listMembers } from "~/.server/sites";
 import { useNow } from "~/components/use-now";
 import { describeChange, type ChangeDetail } from "~/domain/sharing/changes";
 import { formatInZone, timeAgo } from "~/lib/time";

@@ -4,7 +4,8 @@ import { readForm } from "~/.server/ids";
 import { deleteCustomProfile, findSitePlant, parseWish, saveWish, siteInventory, sitePlant, sitePlants, siteWishlist } from "~/.server/plants";
 import { fitSummary, judgedPeriods, parsePeriod, pickableMonths, spotProfiles, windowOf } from "~/.server/profiles";
 import { periodLabel, PeriodPicker } from "~/components/period-picker";
-import { getSite, listSpots } from "~/.server/sites";
+import { getSite } from "~/.server/sites";
+import { listSpots } from "~/.server/spots";
 import { VerdictBadge } from "~/components/season";
 import { MonthStrip, MonthStripKey } from "~/components/month-strip";
 import { NotesPanel } from "~/components/notes-panel";
@@ -12,7 +13,7 @@ import { listNotes } from "~/.server/notes";
 import { rankSpotsForPlant } from "~/domain/fit/verdict";
 import { fitProjections } from "~/.server/projections";
 import { PLANT_LIBRARY, type PlantProfile } from "~/domain/plants/library";
-import { deltaToUnit, formatTemp, type TempUnit } from "~/lib/units";
+import { deltaToUnit, formatTemp, type TempUnit } from "~/domain/units";
 import type { Route } from "./+types/plants.$plantKey";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.plant.name ?? "Plant"} · Nichewise` }];

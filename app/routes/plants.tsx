@@ -1,7 +1,7 @@
 import { Form, Link } from "react-router";
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
 import { sitePlants, siteWishlist } from "~/.server/plants";
-import { formatTemp } from "~/lib/units";
+import { formatTemp } from "~/domain/units";
 import type { Route } from "./+types/plants";
 
 export const meta: Route.MetaFunction = () => [{ title: "Plants · Nichewise" }];

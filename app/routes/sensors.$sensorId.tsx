@@ -5,19 +5,10 @@ import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
 import { readForm } from "~/.server/ids";
 import { env } from "~/.server/env";
 import { runningBroker } from "~/.server/ingest/broker";
-import {
-  assignUnplaced,
-  deleteSensor,
-  movePlacementStart,
-  PlacementError,
-  placeFromForm,
-  removeSensorFromSpot,
-  rotateSensorSecret,
-  saveSensor,
-  splitPlacement,
-  unplacedReadings,
-} from "~/.server/sensors.server";
-import { getSensor, getSite, listSpots, placementHistory } from "~/.server/sites";
+import { assignUnplaced, movePlacementStart, placeFromForm, removeSensorFromSpot, splitPlacement, unplacedReadings, placementHistory } from "~/.server/placements";
+import { deleteSensor, PlacementError, rotateSensorSecret, saveSensor, getSensor } from "~/.server/sensors.server";
+import { getSite } from "~/.server/sites";
+import { listSpots } from "~/.server/spots";
 import { PlaceSensorForm, PlacementEditor, PlacingTips } from "~/components/placement";
 import { useNow } from "~/components/use-now";
 import { calibrationSchema } from "~/lib/forms";

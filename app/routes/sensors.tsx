@@ -1,7 +1,7 @@
 import { Link } from "react-router";
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
-import { sensorsWithUnplaced } from "~/.server/sensors.server";
-import { listSensors } from "~/.server/sites";
+import { sensorsWithUnplaced } from "~/.server/placements";
+import { listSensors } from "~/.server/sensors.server";
 import { timeAgo } from "~/lib/time";
 import type { Route } from "./+types/sensors";
 import { SensorIcon } from "~/components/icons";

@@ -2,14 +2,15 @@ import { data, Form, useFetcher } from "react-router";
 import { useEffect } from "react";
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
 import { readForm, toId } from "~/.server/ids";
-import { getSite, listSensors } from "~/.server/sites";
+import { getSite } from "~/.server/sites";
+import { listSensors } from "~/.server/sensors.server";
 import { bridgeState, reloadBridge } from "~/.server/bridge/runtime";
 import { foundTopics, ListenRefused, listeningFor, startListening } from "~/.server/bridge/discovery";
 import { attachTopic, detachTopic, getBridge, LinkError, listLinks, saveBridge, viewOf } from "~/.server/bridge/store";
 import { BRIDGE_CHANNELS, PRESET_LABELS, PRESETS, type Mapping, type Values } from "~/domain/payloads/presets";
 import { bridgeSettingsSchema, listenSchema, mappingSchema, topicSchema } from "~/domain/payloads/schema";
 import { formatInZone, timeAgo } from "~/lib/time";
-import { formatTemp, type TempUnit } from "~/lib/units";
+import { formatTemp, type TempUnit } from "~/domain/units";
 import { useNow } from "~/components/use-now";
 import type { Route } from "./+types/site.broker";
 

@@ -1,9 +1,9 @@
 import { data, Form, Link, useNavigation } from "react-router";
-import * as units from "~/lib/units";
+import * as units from "~/domain/units";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
 import { readForm } from "~/.server/ids";
 import { getRule, listRules } from "~/.server/alerts/pages";
-import { getSpot } from "~/.server/sites";
+import { getSpot } from "~/.server/spots";
 import { addWatch, deleteWatch, setWatchPaused, suggestedColdWatch, updateWatch } from "~/.server/watches";
 import type { Watch } from "~/db/schema.server";
 import { describeCondition, formatDuration } from "~/domain/alerts/messages";

@@ -3,8 +3,9 @@
 // hourly rollups' count of readings near the dew point.
 import { afterAll, describe, expect, it } from "vitest";
 import { db, pool } from "~/.server/db";
-import { auditCsvImport, csvSlot, importCsv, previewCsv, readCsvHead } from "~/.server/ingest/csv-import";
-import { rebuildRollups } from "~/.server/ingest/rollups";
+import { auditCsvImport, csvSlot, importCsv, previewCsv } from "~/.server/ingest/csv-import";
+import { readCsvHead } from "~/.server/ingest/csv-file";
+import { rebuildRollups } from "~/.server/rollups/rebuild";
 import { ReadingWriter } from "~/.server/ingest/writer";
 import { auditLog } from "~/db/schema.server";
 import { guessMapping, type CsvMapping } from "~/domain/ingest/csv";

@@ -4,7 +4,8 @@
 import fc from "fast-check";
 import { describe, expect, it } from "vitest";
 import { pool } from "~/.server/db";
-import { convertRows, CsvLimitError, importCsv, parseCsv } from "~/.server/ingest/csv-import";
+import { convertRows, importCsv } from "~/.server/ingest/csv-import";
+import { CsvLimitError, parseCsv } from "~/.server/ingest/csv-file";
 import { handleHttpIngest, MAX_HTTP_BATCH, MAX_HTTP_BYTES } from "~/.server/ingest/http";
 import { CSV_MAX_BYTES, CSV_MAX_ROWS, DATE_FORMATS, guessMapping, type CsvMapping } from "~/domain/ingest/csv";
 import { makeSensor, makeSite, makeSpot, makeUser } from "./helpers";

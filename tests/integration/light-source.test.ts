@@ -6,7 +6,7 @@ import { describe, expect, it } from "vitest";
 import { createSession, generateSessionToken } from "~/.server/auth";
 import { db, pool } from "~/.server/db";
 import { ReadingWriter } from "~/.server/ingest/writer";
-import { rebuildRollups } from "~/.server/ingest/rollups";
+import { rebuildRollups } from "~/.server/rollups/rebuild";
 import { spotProfiles } from "~/.server/profiles";
 import { createSpot, updateSpot } from "~/.server/spots";
 import { auditLog, spots } from "~/db/schema.server";

@@ -4,20 +4,8 @@
 import { describe, expect, it } from "vitest";
 import { pool } from "~/.server/db";
 import { ReadingWriter } from "~/.server/ingest/writer";
-import {
-  assignUnplaced,
-  createSensor,
-  deleteSensor,
-  movePlacementStart,
-  PlacementError,
-  placeFromForm,
-  placeSensor,
-  removeSensorFromSpot,
-  saveSensor,
-  sensorsWithUnplaced,
-  splitPlacement,
-  unplacedReadings,
-} from "~/.server/sensors.server";
+import { assignUnplaced, movePlacementStart, placeFromForm, placeSensor, removeSensorFromSpot, sensorsWithUnplaced, splitPlacement, unplacedReadings } from "~/.server/placements";
+import { createSensor, deleteSensor, PlacementError, saveSensor } from "~/.server/sensors.server";
 import type { Reading } from "~/domain/ingest/payload";
 import { freshRollups, makeSensor, makeSite, makeSpot, makeUser, storedRollups } from "./helpers";
 

@@ -9,7 +9,7 @@ import { fitProjections } from "~/.server/projections";
 import { spotProfiles, windowOf } from "~/.server/profiles";
 import { rankSpotsForPlant } from "~/domain/fit/verdict";
 import { plantByKey } from "~/domain/plants/library";
-import type { Fact } from "~/domain/fit/rules";
+import type { Fact } from "~/domain/fit/facts";
 import { loader as fitsLoader } from "~/routes/api.fits";
 import { loader as spotLoader } from "~/routes/spots.$spotId";
 import { DEMO_SITE, type SimSpot } from "../../simulator/model";

@@ -1,8 +1,8 @@
 // The in-memory rollup cache behind season profiles must never serve stale hours.
 import { describe, expect, it, vi } from "vitest";
 import { ReadingWriter } from "~/.server/ingest/writer";
-import { rebuildRollups } from "~/.server/ingest/rollups";
-import { fetchRollups, loadRollups } from "~/.server/profiles";
+import { rebuildRollups } from "~/.server/rollups/rebuild";
+import { fetchRollups, loadRollups } from "~/.server/rollups/read";
 import { pool } from "~/.server/db";
 import { makeSensor, makeSite, makeSpot, makeUser } from "./helpers";
 

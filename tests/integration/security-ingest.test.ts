@@ -8,7 +8,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { createSession, generateSessionToken, hashPassword, validateSessionToken } from "~/.server/auth";
 import { pool } from "~/.server/db";
 import { startBroker, type RunningBroker } from "~/.server/ingest/broker";
-import { invalidateSensorCache } from "~/.server/ingest/sensors";
+import { invalidateSensorCache } from "~/.server/ingest/sensor-cache";
 import { hashSensorSecret } from "~/.server/secrets";
 import { ReadingWriter } from "~/.server/ingest/writer";
 import { action as sensorAction } from "~/routes/sensors.$sensorId";

@@ -5,7 +5,7 @@ import { startAlerts, type RunningAlerts } from "~/.server/alerts/engine";
 import { pool } from "~/.server/db";
 import { ReadingWriter } from "~/.server/ingest/writer";
 import { configureMailer, startMailSink } from "~/.server/mail";
-import { placeSensor } from "~/.server/sensors.server";
+import { placeSensor } from "~/.server/placements";
 import { makeSensor, makeSite, makeSpot, makeUser } from "./helpers";
 
 const HOUR = 3_600_000;

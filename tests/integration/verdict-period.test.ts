@@ -2,7 +2,8 @@
 // logger is judged on that year, not on the twelve months before today; a picker chooses another.
 import { describe, expect, it } from "vitest";
 import { ReadingWriter } from "~/.server/ingest/writer";
-import { fetchRollups, fitsFor, judgedPeriods, loadRollups, parsePeriod, spotProfiles } from "~/.server/profiles";
+import { fetchRollups, loadRollups } from "~/.server/rollups/read";
+import { fitsFor, judgedPeriods, parsePeriod, spotProfiles } from "~/.server/profiles";
 import { makeSensor, makeSite, makeSpot, makeUser } from "./helpers";
 
 const HOUR = 3_600_000;

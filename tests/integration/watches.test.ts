@@ -7,7 +7,7 @@ import { describe, expect, it } from "vitest";
 import { createSession, generateSessionToken } from "~/.server/auth";
 import { siteRecipients } from "~/.server/alerts/recipients";
 import { db } from "~/.server/db";
-import { invalidateSensorCache, sensorInfo } from "~/.server/ingest/sensors";
+import { invalidateSensorCache, sensorInfo } from "~/.server/ingest/sensor-cache";
 import { sunkMail } from "~/.server/mail";
 import { seedAlerts } from "~/.server/seed-alerts";
 import { deleteSpot, updateSpot } from "~/.server/spots";

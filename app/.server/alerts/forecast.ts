@@ -19,7 +19,7 @@ import {
   type NightWarning,
   type TenderPlant,
 } from "~/domain/alerts/forecast-warning";
-import { linesOf, shortName } from "~/domain/fit/rules";
+import { linesOf, shortName } from "~/domain/fit/facts";
 import { plantByKey, type PlantProfile } from "~/domain/plants/library";
 
 const HOUR = 3_600_000;

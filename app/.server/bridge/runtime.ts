@@ -13,7 +13,7 @@ import { isIP } from "node:net";
 import { validateReading, type Reading } from "~/domain/ingest/payload";
 import { decodePayload, MAX_BRIDGED_PAYLOAD_BYTES, type Values } from "~/domain/payloads/presets";
 import { recordRejectionsSoon, type Rejected } from "~/.server/ingest/rejections";
-import { lastTemperature, noteTemperature, sensorInfo } from "~/.server/ingest/sensors";
+import { lastTemperature, noteTemperature, sensorInfo } from "~/.server/ingest/sensor-cache";
 import { CONFLICT_REASON } from "~/.server/ingest/broker";
 import type { ReadingWriter } from "~/.server/ingest/writer";
 import { PacketSizeGuard } from "./packet-guard";

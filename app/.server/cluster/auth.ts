@@ -11,7 +11,7 @@ import { timingSafeEqual } from "node:crypto";
 import express from "express";
 import { isSensorId } from "~/domain/ingest/payload";
 import { CHANNEL_TOPICS } from "~/domain/ingest/payload";
-import { verifySensorSecret } from "~/.server/ingest/sensors";
+import { verifySensorSecret } from "~/.server/ingest/sensor-cache";
 
 /** The exchange RabbitMQ's MQTT plugin publishes to (its default, `mqtt.exchange`). */
 export const MQTT_EXCHANGE = "amq.topic";

@@ -11,7 +11,7 @@ import amqp, { type Channel, type ChannelModel, type ConsumeMessage } from "amqp
 import { decodeMessage, parseTopic, validateReading } from "~/domain/ingest/payload";
 import { CONFLICT_REASON } from "~/.server/ingest/broker";
 import { recordRejectionsSoon } from "~/.server/ingest/rejections";
-import { cachedSensorInfo, lastTemperature, noteTemperature, sensorInfo, type SensorInfo } from "~/.server/ingest/sensors";
+import { cachedSensorInfo, lastTemperature, noteTemperature, sensorInfo, type SensorInfo } from "~/.server/ingest/sensor-cache";
 import type { ReadingWriter } from "~/.server/ingest/writer";
 import { MQTT_EXCHANGE } from "~/.server/cluster/auth";
 import { routingKeyToTopic } from "~/.server/cluster/config";

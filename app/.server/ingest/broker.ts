@@ -13,7 +13,7 @@ import { WebSocketServer, createWebSocketStream } from "ws";
 import { decodeMessage, isSensorId, MAX_PAYLOAD_BYTES, parseTopic, TOPIC_PREFIX, validateReading } from "~/domain/ingest/payload";
 import { env, publicUrl } from "~/.server/env";
 import { recordRejectionsSoon } from "~/.server/ingest/rejections";
-import { cachedSensorInfo, lastTemperature, noteTemperature, sensorInfo, verifySensorSecret, type SensorInfo } from "~/.server/ingest/sensors";
+import { cachedSensorInfo, lastTemperature, noteTemperature, sensorInfo, verifySensorSecret, type SensorInfo } from "~/.server/ingest/sensor-cache";
 import type { ReadingWriter, WriteResult } from "~/.server/ingest/writer";
 
 /**

@@ -2,7 +2,7 @@
 // the sensor's secret as a bearer token; same validation and writer as MQTT; 2xx only after COMMIT.
 import { isSensorId, validateReading, type Reading } from "~/domain/ingest/payload";
 import { recordRejectionsSoon, type Rejected } from "~/.server/ingest/rejections";
-import { lastTemperature, noteTemperature, verifySensorSecret } from "~/.server/ingest/sensors";
+import { lastTemperature, noteTemperature, verifySensorSecret } from "~/.server/ingest/sensor-cache";
 import { writer, type WriteResult } from "~/.server/ingest/writer";
 
 export const MAX_HTTP_BATCH = 10_000;

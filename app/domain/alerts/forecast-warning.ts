@@ -9,7 +9,7 @@
 // warning take over. The all-clear needs the night to come back above the line by a margin, so a
 // forecast hovering at the line warns once and does not flap.
 import type { ForecastNight } from "~/domain/projection/forecast";
-import { formatDelta, formatTemp } from "~/lib/units";
+import { formatDelta, formatTemp } from "~/domain/units";
 
 export type Unit = "C" | "F";
 const HOUR = 3_600_000;

@@ -1,7 +1,7 @@
 // The words of alert e-mails, in the reader's temperature unit and the site's time zone. Plain text
 // and HTML carry the same facts: where, the numbers, what to do, and the link straight to the spot.
 import { KINDS, type AlertKind } from "~/domain/alerts/rules";
-import { formatDelta, formatTemp } from "~/lib/units";
+import { formatDelta, formatTemp } from "~/domain/units";
 
 export type Unit = "C" | "F";
 export type MessageContext = {

@@ -29,48 +29,15 @@ export function sunTimes(lat: number, lon: number, date: Date): SunTimes {
   return { sunrise, sunset, polar };
 }
 
-function isLeapYear(year: number): boolean {
-  return (year % 4 === 0 && year % 100 !== 0) || year % 400 === 0;
-}
-
-function dayOfYearUtc(date: Date): number {
-  return (Date.UTC(date.getUTCFullYear(), date.getUTCMonth(), date.getUTCDate()) -
-    Date.UTC(date.getUTCFullYear(), 0, 1)) / 86_400_000 + 1;
-}
-
 /**
- * Solar declination, degrees, at the given instant: the Fourier series of Spencer (1971),
- * "Fourier series representation of the position of the sun", Search 2(5), 172, in the form
- * NOAA's solar calculator documents (fractional year γ with the hour, 366 days in leap years).
- * Spencer states 0.0006 rad (0.035°), but the fit dates from mid-20th-century ephemerides: against
- * suncalc's present-day positions it drifts to about 0.5° near the 2025 equinoxes (about 1.3 days
- * of phase), and stays within 0.1° near the solstices. Plenty for telling a grower how high the
- * sun gets; use suncalc where positions must be exact.
- */
-export function solarDeclination(date: Date): number {
-  const year = date.getUTCFullYear();
-  const daysInYear = isLeapYear(year) ? 366 : 365;
-  const hour = date.getUTCHours() + date.getUTCMinutes() / 60 + date.getUTCSeconds() / 3600;
-  const g = ((2 * Math.PI) / daysInYear) * (dayOfYearUtc(date) - 1 + (hour - 12) / 24);
-  const rad =
-    0.006918 -
-    0.399912 * Math.cos(g) +
-    0.070257 * Math.sin(g) -
-    0.006758 * Math.cos(2 * g) +
-    0.000907 * Math.sin(2 * g) -
-    0.002697 * Math.cos(3 * g) +
-    0.00148 * Math.sin(3 * g);
-  return rad / DEG;
-}
-
-/**
- * Geometric noon elevation of the sun, degrees: 90 − |φ − δ|, with δ taken at 12:00 UTC of the
- * date's UTC day (the site's own noon is at most half a day away, worth under 0.2° of δ even at an
- * equinox). No refraction; negative in polar night.
+ * The sun's elevation at solar noon, degrees, as suncalc gives it (its Meeus positions, altitude
+ * corrected for refraction), on the Greenwich meridian on the date's UTC day: the site's own noon
+ * is at most half a day away, worth under 0.2° of declination even at an equinox. Negative in
+ * polar night.
  */
 export function noonElevation(lat: number, date: Date): number {
-  const noonUtc = new Date(Date.UTC(date.getUTCFullYear(), date.getUTCMonth(), date.getUTCDate(), 12));
-  return 90 - Math.abs(lat - solarDeclination(noonUtc));
+  const midday = new Date(Date.UTC(date.getUTCFullYear(), date.getUTCMonth(), date.getUTCDate(), 12));
+  return SunCalc.getPosition(SunCalc.getTimes(midday, lat, 0).solarNoon, lat, 0).altitude;
 }
 
 export interface MonthNoonElevation {

@@ -3,7 +3,7 @@
 // mean daily low (an outdoor spot of the same site), against the room air's dew point.
 import { dewPoint } from "~/domain/climate/psychro";
 import { paneInsideC } from "~/domain/climate/glass";
-import type { RuleResult } from "~/domain/fit/rules";
+import type { CheckResult } from "~/domain/fit/facts";
 import type { SeasonProfile } from "~/domain/season/types";
 
 export type GlassContext = {
@@ -28,7 +28,7 @@ export function paneMonths(season: SeasonProfile, glass: GlassContext) {
 }
 
 /** Adds the cold-glass fact (and care) to the condensation result when the pane runs wet. */
-export function coldGlass(r: RuleResult, season: SeasonProfile, glass: GlassContext): RuleResult {
+export function coldGlass(r: CheckResult, season: SeasonProfile, glass: GlassContext): CheckResult {
   const months = paneMonths(season, glass);
   if (months.length === 0) return r;
   const keys = months.map((m) => String(m.month).padStart(2, "0"));

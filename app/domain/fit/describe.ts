@@ -1,8 +1,8 @@
 // Words for the fit rules' facts, in the grower's unit and locale. The rules return numbers and
-// dates only (rules.ts); this is the one place that turns them into sentences.
-import { cyclicOrder, type Fact, type RuleResult } from "~/domain/fit/rules";
+// dates only (checks.ts); this is the one place that turns them into sentences.
+import { cyclicOrder, type Fact, type CheckResult } from "~/domain/fit/facts";
 import { MONTH_NAMES } from "~/domain/season/profile";
-import { deltaToUnit, toUnit, type TempUnit } from "~/lib/units";
+import { deltaToUnit, toUnit, type TempUnit } from "~/domain/units";
 
 export type Format = { unit: TempUnit; locale?: string };
 export const DEFAULT_FORMAT: Format = { unit: "C", locale: "en-GB" };
@@ -228,7 +228,7 @@ export function describeVerdict(
 }
 
 /** A rule's result in words: its facts joined, or what is not known. */
-export function describeReason(r: RuleResult, f: Format = DEFAULT_FORMAT, name?: string): string {
+export function describeReason(r: CheckResult, f: Format = DEFAULT_FORMAT, name?: string): string {
   if (r.facts.length === 0) {
     return r.rule === "light"
       ? "Light isn't measured here, so it isn't known whether it suits."

@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { decodeStrip, encodeStrip, monthStrip, stripLabel } from "~/domain/fit/month-strip";
-import type { RuleResult } from "~/domain/fit/rules";
+import type { CheckResult } from "~/domain/fit/facts";
 
 const all = [1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12];
 
@@ -8,7 +8,7 @@ const all = [1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12];
 // common practice for Phalaenopsis) and a spot measured for part of the year with the rest projected.
 describe("a fit reason's month strip (issue 17)", () => {
   it("fails the months a poor cold-nights rule names, passes the measured rest, wrapping Dec–Feb in the label", () => {
-    const r: RuleResult = {
+    const r: CheckResult = {
       rule: "cold-nights",
       level: "poor",
       months: ["12", "01", "02"],
@@ -20,7 +20,7 @@ describe("a fit reason's month strip (issue 17)", () => {
   });
 
   it("marks a damaging episode as a fail even when the rule as a whole asks for care, and unread months as not measured", () => {
-    const r: RuleResult = {
+    const r: CheckResult = {
       rule: "cold-nights",
       level: "care",
       months: ["11", "01"],
@@ -36,7 +36,7 @@ describe("a fit reason's month strip (issue 17)", () => {
   });
 
   it("marks projected months as projected: a likely warning from the projection, passes filled in", () => {
-    const r: RuleResult = {
+    const r: CheckResult = {
       rule: "hot-days",
       level: "care",
       likely: "poor",
@@ -50,7 +50,7 @@ describe("a fit reason's month strip (issue 17)", () => {
   });
 
   it("light counts the months the light sensor read; flowering, no data and month-less reasons get no strip", () => {
-    const light: RuleResult = {
+    const light: CheckResult = {
       rule: "light",
       level: "care",
       months: ["12"],

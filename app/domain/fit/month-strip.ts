@@ -2,7 +2,7 @@
 // passes the rule, asks for care, fails it, or has not been measured — and whether that month's
 // state rests on the projection (fit/projected.ts) rather than on readings. Pure: the summary
 // (.server/profiles.ts) derives it from a rule's result and the fit's basis; the page draws it.
-import type { Fact, RuleResult } from "~/domain/fit/rules";
+import type { Fact, CheckResult } from "~/domain/fit/facts";
 
 export type MonthState = "pass" | "care" | "fail" | "unmeasured";
 export type StripCell = { month: number; state: MonthState; projected: boolean };
@@ -43,7 +43,7 @@ const monthsOfFact = (f: Fact): number[] => {
  * passes if it is measured (or projected), else it is not measured.
  */
 export function monthStrip(
-  reason: Pick<RuleResult, "rule" | "level" | "facts" | "months" | "noData">,
+  reason: Pick<CheckResult, "rule" | "level" | "facts" | "months" | "noData">,
   basis: { measured: number[]; projected?: number[] },
 ): StripCell[] | null {
   if (!STRIP_RULES.has(reason.rule) || reason.noData || reason.level === "unknown") return null;

@@ -3,8 +3,7 @@
 // comfort and damage lines as the measured nights and days. Facts, not sentences (describe.ts
 // words them). A projection never rules a plant out with the certainty of a measurement: what
 // would be poor on projected months alone is a warning at care level, worded as likely.
-import type { Fact, FitThresholds, RuleLevel, RuleName, RuleResult } from "~/domain/fit/rules";
-import { cyclicOrder, hemisphereMonths, linesOf, monthKeyOf } from "~/domain/fit/rules";
+import { type Fact, type FitThresholds, type CheckLevel, type CheckName, type CheckResult, cyclicOrder, hemisphereMonths, linesOf, monthKeyOf } from "~/domain/fit/facts";
 import type { PlantProfile } from "~/domain/plants/library";
 import type { Figure, ProjectedMonth } from "~/domain/projection/project";
 import type { SeasonProfile } from "~/domain/season/types";
@@ -37,7 +36,7 @@ export type FitBasis = {
 const round1 = (x: number) => Math.round(x * 10) / 10;
 const range = (f: Figure): [number, number] => [round1(f.low), round1(f.high)];
 
-type Judged = { level: RuleLevel; facts: Fact[]; months: number[]; monthKeys?: string[] };
+type Judged = { level: CheckLevel; facts: Fact[]; months: number[]; monthKeys?: string[] };
 
 /** Cold side: a projected month whose lowest falls past the damage line, or whose nights typically sit under comfort. */
 function cold(p: PlantProfile, months: ProjectedMonth[], years: number, t: FitThresholds): Judged | null {
@@ -186,8 +185,8 @@ function flowering(p: PlantProfile, months: ProjectedMonth[], years: number, sea
   return cues > 0 && facts.length === cues ? { level: "good", months: met, facts } : null;
 }
 
-const ORDER: RuleLevel[] = ["good", "unknown", "care", "poor"];
-const worse = (a: RuleLevel, b: RuleLevel) => (ORDER.indexOf(b) > ORDER.indexOf(a) ? b : a);
+const ORDER: CheckLevel[] = ["good", "unknown", "care", "poor"];
+const worse = (a: CheckLevel, b: CheckLevel) => (ORDER.indexOf(b) > ORDER.indexOf(a) ? b : a);
 
 /**
  * One rule's measured result merged with its judgement on the projected months. Measured poor
@@ -195,9 +194,9 @@ const worse = (a: RuleLevel, b: RuleLevel) => (ORDER.indexOf(b) > ORDER.indexOf(
  * reason's confidence to projected when it is what sets the level; a good reason judged on both
  * measured and projected months is mixed.
  */
-function merge(measured: RuleResult, projected: Judged, rule: RuleName): RuleResult {
+function merge(measured: CheckResult, projected: Judged, rule: CheckName): CheckResult {
   const m = measured.noData ? null : measured;
-  const pLevel: RuleLevel = projected.level === "poor" ? "care" : projected.level;
+  const pLevel: CheckLevel = projected.level === "poor" ? "care" : projected.level;
   // Month keys in reading order, once per judgement (a fit table merges each judgement many times).
   const own = (projected.monthKeys ??= cyclicOrder(projected.months).map(monthKeyOf));
   if (rule === "flowering") {
@@ -222,10 +221,10 @@ function merge(measured: RuleResult, projected: Judged, rule: RuleName): RuleRes
   };
 }
 
-// A fit table judges many plants alike in what a rule reads (fit/rules.ts RULE_INPUTS): each
+// A fit table judges many plants alike in what a rule reads (fit/checks.ts CHECK_INPUTS): each
 // projection's judgement is kept per rule and plant inputs, and each merge per pair of results.
 type JudgeKey = (p: PlantProfile) => string;
-const JUDGES: { rule: RuleName; key: JudgeKey; judge: (p: PlantProfile, months: ProjectedMonth[], years: number, t: FitThresholds, season: SeasonProfile) => Judged | null }[] = [
+const JUDGES: { rule: CheckName; key: JudgeKey; judge: (p: PlantProfile, months: ProjectedMonth[], years: number, t: FitThresholds, season: SeasonProfile) => Judged | null }[] = [
   { rule: "cold-nights", key: (p) => `${p.minNightC}|${linesOf(p).damageNightC}`, judge: (p, m, y, t) => cold(p, m, y, t) },
   { rule: "hot-days", key: (p) => `${p.maxDayC}|${linesOf(p).damageDayC}`, judge: (p, m, y, t) => heat(p, m, y, t) },
   { rule: "warm-nights", key: (p) => `${p.maxNightC}`, judge: (p, m, y, t) => warm(p, m, y, t) },
@@ -233,12 +232,12 @@ const JUDGES: { rule: RuleName; key: JudgeKey; judge: (p: PlantProfile, months: 
   { rule: "flowering", key: (p) => JSON.stringify(p.flowering), judge: (p, m, y, t, s) => flowering(p, m, y, s, t) },
 ];
 const judgedCache = new WeakMap<FitProjection, WeakMap<FitThresholds, Map<string, Judged | null>>>();
-const mergedCache = new WeakMap<RuleResult, Map<Judged, RuleResult>>();
+const mergedCache = new WeakMap<CheckResult, Map<Judged, CheckResult>>();
 /** Each plant's key per judge, built once per plant profile. */
 const plantKeys = new WeakMap<PlantProfile, string[]>();
 
 /** Each measured rule result joined with the projected months' judgement of the same rule. */
-export function withProjection(profile: PlantProfile, season: SeasonProfile, reasons: RuleResult[], projection: FitProjection, t: FitThresholds): RuleResult[] {
+export function withProjection(profile: PlantProfile, season: SeasonProfile, reasons: CheckResult[], projection: FitProjection, t: FitThresholds): CheckResult[] {
   let byT = judgedCache.get(projection);
   if (!byT) judgedCache.set(projection, (byT = new WeakMap()));
   let known = byT.get(t);

@@ -2,7 +2,7 @@
 // the verdict an experienced grower would give and the source of that judgement beside it.
 import { describe, expect, it } from "vitest";
 import { describeReason, describeSeasonal } from "~/domain/fit/describe";
-import type { RuleResult } from "~/domain/fit/rules";
+import type { CheckResult } from "~/domain/fit/facts";
 import { spotYear, type HourPatch, type MonthSpec } from "~/domain/fit/season-fixture";
 import { fitPlant, rankPlantsForSpot, type FitContext, type Verdict } from "~/domain/fit/verdict";
 import { PLANT_LIBRARY, plantByKey } from "~/domain/plants/library";
@@ -27,11 +27,11 @@ type Scenario = {
   verdict: Verdict;
   source: string;
   /** Extra checks on the fit's reasons. */
-  check?: (reasons: RuleResult[]) => void;
+  check?: (reasons: CheckResult[]) => void;
 };
 
-const rule = (reasons: RuleResult[], name: string) => reasons.find((r) => r.rule === name)!;
-const kinds = (reasons: RuleResult[]) => reasons.flatMap((r) => r.facts.map((f) => f.kind));
+const rule = (reasons: CheckResult[], name: string) => reasons.find((r) => r.rule === name)!;
+const kinds = (reasons: CheckResult[]) => reasons.flatMap((r) => r.facts.map((f) => f.kind));
 
 const SCENARIOS: Scenario[] = [
   {

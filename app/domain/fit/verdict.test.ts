@@ -3,7 +3,7 @@ import { coldSnaps, spotYear, steadyRoom } from "~/domain/fit/season-fixture";
 import { describeReason } from "~/domain/fit/describe";
 import { VERDICT_ORDER, VERDICT_RULES, fitPlant, rankPlantsForSpot, rankSpotsForPlant } from "~/domain/fit/verdict";
 import { PLANT_LIBRARY, plantByKey } from "~/domain/plants/library";
-import { MIN_DAYS_FOR_MONTH } from "~/domain/season/profile";
+import { MIN_DAYS_FOR_MONTH } from "~/domain/season/thresholds";
 
 const phal = plantByKey("phalaenopsis")!;
 const cymbidium = plantByKey("cymbidium")!;

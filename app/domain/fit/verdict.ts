@@ -1,6 +1,8 @@
-import { DEFAULT_FIT_THRESHOLDS, judgeAll, linesOf, type FitThresholds, type RuleLevel, type RuleResult } from "~/domain/fit/rules";
+import { DEFAULT_FIT_THRESHOLDS, linesOf, type FitThresholds, type CheckLevel, type CheckResult } from "~/domain/fit/facts";
+import { judgeAll } from "~/domain/fit/checks";
 import type { PlantProfile } from "~/domain/plants/library";
-import { MONTH_NAMES, MIN_DAYS_FOR_MONTH } from "~/domain/season/profile";
+import { MONTH_NAMES } from "~/domain/season/profile";
+import { MIN_DAYS_FOR_MONTH } from "~/domain/season/thresholds";
 import type { SeasonProfile } from "~/domain/season/types";
 import { windowLight, type SpotWindow } from "~/domain/fit/window-light";
 import { coldGlass, type GlassContext } from "~/domain/fit/cold-glass";
@@ -26,7 +28,7 @@ export type PlantFit = {
   verdict: Verdict;
   level: FitLevel;
   /** Every rule's result, the most serious first. */
-  reasons: RuleResult[];
+  reasons: CheckResult[];
   /** Set when the spot suits the group for a run of months though not all year (a summer bench). */
   seasonal: SeasonalUse | null;
   /** How far the spot misses the group, summed over the temperature rules: degree-hours past damage and past comfort. */
@@ -67,10 +69,10 @@ export const VERDICT_RULES: { verdict: Verdict; when: string }[] = [
 /** Best first; used to rank. */
 export const VERDICT_ORDER: Verdict[] = ["thrives here", "possible with care", "good for part of the year", "not enough data yet", "struggles here"];
 
-const LEVEL_ORDER: Record<RuleLevel, number> = { poor: 0, care: 1, unknown: 2, good: 3 };
+const LEVEL_ORDER: Record<CheckLevel, number> = { poor: 0, care: 1, unknown: 2, good: 3 };
 /** Within a level, what a grower needs to hear first: what harms, then what stops flowering, then what a tray or a blind fixes. */
 const RULE_ORDER = ["cold-nights", "hot-days", "warm-nights", "flowering", "light", "humidity", "condensation"];
-const ruleRank = (r: RuleResult) => {
+const ruleRank = (r: CheckResult) => {
   const i = RULE_ORDER.indexOf(r.rule);
   return i < 0 ? RULE_ORDER.length : i;
 };

@@ -2,7 +2,7 @@
 // facing (directSunMonths) against the group's light class. Walls, trees and frosted glass can only
 // take light away from the estimate, so only a low-light group behind a window without hot sun is
 // judged fine from it; for the rest the estimate says what the sun's path allows and what is not known.
-import type { RuleResult } from "~/domain/fit/rules";
+import type { CheckResult } from "~/domain/fit/facts";
 import type { PlantProfile } from "~/domain/plants/library";
 import { directSunMonths, type SpotFacing } from "~/domain/climate/sun";
 
@@ -24,7 +24,7 @@ export const SCORCH_MIN_ELEVATION = 35;
 export const SCORCH_MIN_MONTHS = 3;
 const HOT_FACINGS = new Set(["SE", "S", "SW", "W"]);
 
-export function windowLight(profile: PlantProfile, window: SpotWindow): RuleResult {
+export function windowLight(profile: PlantProfile, window: SpotWindow): CheckResult {
   const need = profile.light;
   if (!window.indoor) {
     return { rule: "light", level: "unknown", noData: true, facts: [{ kind: "light-unknown", need, minDli: profile.dliMin, maxDli: profile.dliMax, reason: "outdoor" }] };

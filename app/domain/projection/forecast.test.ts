@@ -5,7 +5,8 @@ import type { HourlyRollup } from "~/domain/season/types";
 import { DEMO_SCENARIO, DEMO_SITE, forecastColdFront, generate, outdoorWeather } from "../../../simulator/model";
 import { WEATHER_VARIABLES } from "../../../simulator/weather-fake";
 import { forecastSpot, RADIATIVE_FROST } from "./forecast";
-import { drivers, fitResponse } from "./response";
+import { drivers } from "~/domain/projection/drivers";
+import { fitResponse } from "~/domain/projection/response";
 
 const HOUR = 3_600_000;
 const DAY = 86_400_000;

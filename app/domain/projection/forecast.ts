@@ -4,8 +4,9 @@
 // On clear, still nights leaves and flowers radiate to the sky and run a few degrees below the air
 // a sensor in the shade measures: radiation frost (common practice: 1–3 °C below screen
 // temperature; we take 2 °C for an outdoor spot with under 25 % cloud and wind under 8 km/h).
-import { NIGHT_END_HOUR, NIGHT_START_HOUR } from "~/domain/season/profile";
-import { HOUR_MS, predictHour, type Drivers, type ResponseModel } from "./response";
+import { NIGHT_END_HOUR, NIGHT_START_HOUR } from "~/domain/season/thresholds";
+import { HOUR_MS, type Drivers } from "~/domain/projection/drivers";
+import { predictHour, type ResponseModel } from "~/domain/projection/response";
 
 export const RADIATIVE_FROST = { maxCloudPercent: 25, maxWindKmh: 8, leafBelowAirC: 2 } as const;
 

@@ -1,6 +1,7 @@
 import { describe, expect, it } from "vitest";
 import type { MonthOfYearProfile } from "~/domain/season/types";
-import { combineMonths, type ProjectedMonth } from "./project";
+import { combineMonths } from "~/domain/projection/combine";
+import type { ProjectedMonth } from "~/domain/projection/project";
 
 const fig = (value: number, spread = 1) => ({ value, low: value - spread, high: value + spread });
 const projected = (month: number): ProjectedMonth => ({

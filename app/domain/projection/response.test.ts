@@ -2,7 +2,8 @@
 import { describe, expect, it } from "vitest";
 import { DEMO_HOUSEHOLD } from "../../../simulator/demo";
 import { demoWeather, yearRollups } from "../../../simulator/projection-accuracy";
-import { drivers, fitResponse } from "./response";
+import { drivers } from "~/domain/projection/drivers";
+import { fitResponse } from "~/domain/projection/response";
 
 const site = DEMO_HOUSEHOLD.site;
 const FROM = Date.UTC(2025, 0, 12);

@@ -1,19 +1,10 @@
 import { describe, expect, it } from "vitest";
-import {
-  DEFAULT_FIT_THRESHOLDS as T,
-  coldNights,
-  condensation,
-  cyclicOrder,
-  FIT_RULES,
-  floweringNeeds,
-  hemisphereMonths,
-  hotDays,
-  humidityBand,
-  judgeAll,
-  lightBand,
-  linesOf,
-  warmNights,
-} from "~/domain/fit/rules";
+import { DEFAULT_FIT_THRESHOLDS as T, cyclicOrder, hemisphereMonths, linesOf } from "~/domain/fit/facts";
+import { coldNights, hotDays, warmNights } from "~/domain/fit/temperature";
+import { condensation } from "~/domain/fit/condensation";
+import { FIT_CHECKS, judgeAll } from "~/domain/fit/checks";
+import { floweringNeeds } from "~/domain/fit/flowering";
+import { humidityBand, lightBand } from "~/domain/fit/humidity-light";
 import { day, describeFact, describeMonths, describeReason, formatNumber, temp } from "~/domain/fit/describe";
 import { coldSnaps, hotAfternoons, spotYear, steadyRoom, type HourPatch } from "~/domain/fit/season-fixture";
 import { PLANT_LIBRARY, plantByKey, type PlantProfile } from "~/domain/plants/library";
@@ -241,7 +232,7 @@ describe("shared rule results (judgeAll)", () => {
     for (const season of seasons) {
       for (const plant of PLANT_LIBRARY) {
         for (const p of [plant, ...variants(plant)]) {
-          expect(judgeAll(p, season, T)).toEqual(FIT_RULES.map((rule) => rule(p, season, T)));
+          expect(judgeAll(p, season, T)).toEqual(FIT_CHECKS.map((rule) => rule(p, season, T)));
         }
       }
     }

@@ -1,6 +1,6 @@
 // Scales and labels for the charts, kept free of the browser so they can be tested plainly.
 import { localNaiveMs, zonedToUtc } from "~/lib/time";
-import { fromUnit, toUnit, type TempUnit } from "~/lib/units";
+import { fromUnit, toUnit, type TempUnit } from "~/domain/units";
 
 const DAY_S = 86_400;
 

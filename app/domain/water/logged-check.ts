@@ -1,6 +1,6 @@
 // One logged water check in the units the grower's meter gives, turned into the figure the rules
 // of thumb use (conductivity, µS/cm) with a label saying where it came from.
-import { ecToPpm, ppmToEc, sampleEc, type TdsScale, type WaterSample } from "~/domain/water/water";
+import { ecToPpm, ppmToEc, sampleEc, type TdsScale, type WaterSample } from "~/domain/water/verdict";
 
 export const STANDARD_SOURCES = ["tap", "rain", "filtered"] as const;
 

@@ -3,7 +3,7 @@
 // and holds new ones back until the rebuild commits, so no reading is counted twice or lost.
 import { calibratedSql } from "~/.server/ingest/calibrated";
 import { pool } from "~/.server/db";
-import { DP_COUNTS, LOCAL_HOUR_START } from "~/.server/ingest/writer";
+import { DP_COUNTS, LOCAL_HOUR_START } from "~/.server/rollups/sql";
 
 export const REBUILD_SQL = `
 INSERT INTO hourly_rollups (spot_id, hour, t_n, t_min, t_max, t_sum, h_n, h_min, h_max, h_sum, dp_margin_min, lux_n, lux_sum, lux_max, dp_n, dp_under_n)

@@ -1,6 +1,6 @@
 import { describe, it, expect } from "vitest";
-import { checkEc, checkPpm, checkSample, parseSource, ppmLabel, sourceName } from "~/domain/water/checks";
-import { waterVerdict } from "~/domain/water/water";
+import { checkEc, checkPpm, checkSample, parseSource, ppmLabel, sourceName } from "~/domain/water/logged-check";
+import { waterVerdict } from "~/domain/water/verdict";
 
 // Meter scales are common practice: ppm ≈ µS/cm × 0.5 on the NaCl scale, × 0.7 on the 442 scale
 // (shared/REFERENCES.md; the meter's manual says which).

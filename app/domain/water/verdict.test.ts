@@ -11,7 +11,7 @@ import {
   ppmToEc,
   routineLimitPpm,
   waterVerdict,
-} from "~/domain/water/water";
+} from "~/domain/water/verdict";
 
 // All thresholds and scales here are growers' rules of thumb (common practice, shared/REFERENCES.md):
 // "over 100 ppm TDS is not for routine watering of orchids", stated here as 200 µS/cm (100 ppm on

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { calendarTicks, coverageLabel, stripTicks, timeTickLabels } from "~/lib/chart-scale";
+import { calendarTicks, coverageLabel, stripTicks, timeTickLabels } from "~/components/chart-scale";
 
 const at = (iso: string) => Date.parse(iso) / 1000;
 
