@@ -1,4 +1,4 @@
-// The web edge, through the real server: main() starts it (Vite's development build of the routes,
+// The web edge, through the real server: startDev() starts it as `npm run dev` does (Vite's development build of the routes,
 // since the production build comes later in `npm test`) on a free port, with its broker and mail
 // sink, against the test database. Requests go over real sockets; every one is bounded by a timeout
 // so that a hang fails rather than stalls the run.
@@ -26,8 +26,8 @@ let running: { stop: () => Promise<void>; port: number };
 let port = 0;
 
 beforeAll(async () => {
-  const { main } = await import("~/.server/main");
-  running = await main({ dev: true });
+  const { startDev } = await import("~/.server/serve");
+  running = await startDev();
   port = running.port;
   // The first request builds the routes in Vite.
   expect((await send({ path: "/sign-in" })).status).toBe(200);
