@@ -11,8 +11,11 @@ import type { Running } from "./main";
 
 const log = (s: string) => console.log(`[nichewise] ${s}`);
 
-/** Vite's dev server, and main() loaded through it (the routes' graph). */
-export async function startDev(): Promise<Running> {
+/**
+ * Vite's dev server, and main() loaded through it (the routes' graph). `load` reads a module of that
+ * graph, the one the running server uses (tests).
+ */
+export async function startDev(): Promise<Running & { load: (id: string) => Promise<Record<string, unknown>> }> {
   const { createServer } = await import("vite");
   const server = http.createServer();
   // Vite's HMR socket shares our server rather than opening a port of its own.
@@ -20,7 +23,7 @@ export async function startDev(): Promise<Running> {
   try {
     const { main } = (await vite.ssrLoadModule("/app/.server/main.ts")) as typeof import("./main");
     const running = await main({ dev: { vite, server } });
-    return { ...running, stop: () => running.stop().finally(() => vite.close()) };
+    return { ...running, stop: () => running.stop().finally(() => vite.close()), load: (id) => vite.ssrLoadModule(id) };
   } catch (err) {
     await vite.close();
     throw err;
