@@ -62,7 +62,7 @@ export async function bodyLimit(pathname: string, headers: IncomingMessage["head
   pathname = pathname.replace(/(.)\/+$/, "$1");
   if (pathname === "/api/ingest" && /^Bearer \S/.test(headers.authorization ?? "")) return { limit: MAX_HTTP_BYTES, budget: BODY_BUDGETS.ingest };
   if (IMPORT_PATH.test(pathname)) {
-    const token = readSessionToken(headers.cookie);
+    const token = await readSessionToken(headers.cookie);
     if (token && (await sessionIsLive(token).catch(() => false))) return { limit: IMPORT_MAX_BYTES, budget: BODY_BUDGETS.import };
   }
   return { limit: FORM_MAX_BYTES, budget: BODY_BUDGETS.form };
@@ -195,7 +195,7 @@ export function reactRouterAdapter(getBuild: () => ServerBuild | Promise<ServerB
       // A session renewed while serving this request is sent again with its new expiry, unless the
       // response sets the session cookie itself (sign-in, sign-out).
       if (scope.renewedSession && !cookies.some((c) => c.startsWith(`${SESSION_COOKIE}=`))) {
-        cookies.push(sessionCookie(scope.renewedSession.token, scope.renewedSession.expiresAt));
+        cookies.push(await sessionCookie(scope.renewedSession.token, scope.renewedSession.expiresAt));
       }
       await sendResponse(req, res, response, cookies);
     } catch (err) {
