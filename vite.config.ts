@@ -6,4 +6,6 @@ export default defineConfig({
   plugins: [tailwindcss(), reactRouter()],
   resolve: { tsconfigPaths: true },
   server: { host: "127.0.0.1" },
+  // The server is built into the SSR build with the routes (app/.server/server.ts): one module graph.
+  environments: { ssr: { build: { rollupOptions: { input: "app/.server/server.ts" } } } },
 });

@@ -3,7 +3,7 @@
 // a 30-day expiry renewed when less than half remains, and deletion on sign-out.
 import { hash, verify } from "@node-rs/argon2";
 import { and, eq, gt, sql } from "drizzle-orm";
-import { data } from "react-router";
+import { createCookie, data } from "react-router";
 import { db } from "~/.server/db";
 import { publicUrl } from "~/.server/env";
 import { paramId } from "~/.server/ids";
@@ -95,29 +95,39 @@ export async function invalidateSession(sessionId: string) {
 // could not keep the cookie otherwise.
 const secureCookies = () => publicUrl().startsWith("https:");
 
-export function sessionCookie(token: string, expiresAt: Date): string {
-  const parts = [`${SESSION_COOKIE}=${token}`, "HttpOnly", "SameSite=Lax", "Path=/", `Expires=${expiresAt.toUTCString()}`];
-  if (secureCookies()) parts.push("Secure");
-  return parts.join("; ");
+/**
+ * The session cookie, through React Router's cookie helper: HttpOnly, SameSite=Lax, Path=/, Secure
+ * over https. Its value is the opaque token (the helper writes it as base64 JSON); the database holds
+ * only the token's SHA-256. Made per use, so that it follows PUBLIC_URL as read now.
+ */
+const sessionCookieJar = () => createCookie(SESSION_COOKIE, { httpOnly: true, sameSite: "lax", path: "/", secure: secureCookies() });
+
+export function sessionCookie(token: string, expiresAt: Date): Promise<string> {
+  return sessionCookieJar().serialize(token, { expires: expiresAt });
 }
 
-export function blankSessionCookie(): string {
-  const parts = [`${SESSION_COOKIE}=`, "HttpOnly", "SameSite=Lax", "Path=/", "Max-Age=0"];
-  if (secureCookies()) parts.push("Secure");
-  return parts.join("; ");
+export function blankSessionCookie(): Promise<string> {
+  return sessionCookieJar().serialize("", { maxAge: 0 });
 }
 
-export function readSessionToken(cookieHeader: string | null | undefined): string | null {
+/** A bare token, as cookies set before the helper carried it (and as tests send it). */
+const BARE_TOKEN = /^[a-z2-7]{32}$/;
+
+export async function readSessionToken(cookieHeader: string | null | undefined): Promise<string | null> {
   if (!cookieHeader) return null;
+  const value: unknown = await sessionCookieJar().parse(cookieHeader);
+  if (typeof value === "string" && value) return value;
+  // A cookie from before the helper holds the bare token: read it still, so that no one is signed
+  // out by the change (it is written the helper's way at the next renewal).
   for (const part of cookieHeader.split(";")) {
     const [name, ...rest] = part.trim().split("=");
-    if (name === SESSION_COOKIE) return rest.join("=") || null;
+    if (name === SESSION_COOKIE && BARE_TOKEN.test(rest.join("="))) return rest.join("=");
   }
   return null;
 }
 
 export async function getSession(request: Request): Promise<ValidSession | null> {
-  const token = readSessionToken(request.headers.get("Cookie"));
+  const token = await readSessionToken(request.headers.get("Cookie"));
   return token ? validateSessionToken(token) : null;
 }
 

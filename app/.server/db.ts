@@ -1,14 +1,14 @@
-// One pool per process, kept on globalThis: the server build and the process entry load their own
-// copies of this module, and the dev server reloads it, but they must share one pool.
+// One pool per process, opened on first use after the process entry has set DATABASE_URL.
 import { drizzle, type NodePgDatabase } from "drizzle-orm/node-postgres";
 import { migrate } from "drizzle-orm/node-postgres/migrator";
 import pg from "pg";
+import { kept } from "~/.server/kept";
 import * as schema from "~/db/schema.server";
 
 export type Db = NodePgDatabase<typeof schema> & { $client: pg.Pool };
 
 type Holder = { pool?: pg.Pool; db?: Db };
-const holder: Holder = ((globalThis as Record<string, unknown>).__nichewiseDb ??= {}) as Holder;
+const holder = kept<Holder>("db", () => ({}));
 
 export function pool(): pg.Pool {
   if (!holder.pool) {

@@ -7,14 +7,25 @@ import { randomBytes } from "node:crypto";
 import type { IncomingMessage } from "node:http";
 import type { NextFunction, Request as ExpressRequest, Response as ExpressResponse } from "express";
 import { writeReadableStreamToWritable } from "@react-router/node";
-import { createRequestHandler, type ServerBuild } from "react-router";
+import { createRequestHandler, type AppLoadContext, type ServerBuild } from "react-router";
 import { readSessionToken, SESSION_COOKIE, sessionCookie, sessionIsLive } from "~/.server/auth";
+import type { RunningBroker } from "~/.server/ingest/broker";
 import { MAX_HTTP_BYTES } from "~/.server/ingest/http";
+import type { ReadingWriter } from "~/.server/ingest/writer";
 import { requestScope, type RequestScope } from "~/.server/request-scope";
 import { CSV_MAX_BYTES } from "~/domain/ingest/csv";
 
+/** The long-lived services main() starts, for loaders and actions. */
+export type Services = {
+  /** The process's one reading writer (HTTP ingest, CSV import, the broker). */
+  writer: ReadingWriter;
+  /** The embedded MQTT broker, for its ports; none in a cluster web instance (sensors talk to the engine). */
+  broker: RunningBroker | null;
+};
+
 declare module "react-router" {
   interface AppLoadContext {
+    services: Services;
     /** The client's address: the socket's, or the one a trusted proxy forwarded (TRUST_PROXY). */
     clientAddress: string;
     /** This response's Content-Security-Policy nonce, for the inline scripts React Router writes. */
@@ -51,7 +62,7 @@ export async function bodyLimit(pathname: string, headers: IncomingMessage["head
   pathname = pathname.replace(/(.)\/+$/, "$1");
   if (pathname === "/api/ingest" && /^Bearer \S/.test(headers.authorization ?? "")) return { limit: MAX_HTTP_BYTES, budget: BODY_BUDGETS.ingest };
   if (IMPORT_PATH.test(pathname)) {
-    const token = readSessionToken(headers.cookie);
+    const token = await readSessionToken(headers.cookie);
     if (token && (await sessionIsLive(token).catch(() => false))) return { limit: IMPORT_MAX_BYTES, budget: BODY_BUDGETS.import };
   }
   return { limit: FORM_MAX_BYTES, budget: BODY_BUDGETS.form };
@@ -147,7 +158,7 @@ const handlers = new WeakMap<ServerBuild, ReturnType<typeof createRequestHandler
  * The Express handler that serves the app. `getBuild` is the production build, or in development
  * Vite's current one (loaded again per request so that edits show).
  */
-export function reactRouterAdapter(getBuild: () => ServerBuild | Promise<ServerBuild>, mode: "development" | "production") {
+export function reactRouterAdapter(getBuild: () => ServerBuild | Promise<ServerBuild>, mode: "development" | "production", services: Services) {
   return async (req: ExpressRequest, res: ExpressResponse, next: NextFunction) => {
     let release = () => {};
     try {
@@ -178,13 +189,13 @@ export function reactRouterAdapter(getBuild: () => ServerBuild | Promise<ServerB
       let handle = handlers.get(build);
       if (!handle) handlers.set(build, (handle = createRequestHandler(build, mode)));
       const scope: RequestScope = {};
-      const context = { clientAddress: req.ip ?? req.socket.remoteAddress ?? "unknown", nonce: String(res.locals.nonce ?? "") };
+      const context = getLoadContext(req, res, services);
       const response = await requestScope.run(scope, () => handle(request, context));
       const cookies = response.headers.getSetCookie();
       // A session renewed while serving this request is sent again with its new expiry, unless the
       // response sets the session cookie itself (sign-in, sign-out).
       if (scope.renewedSession && !cookies.some((c) => c.startsWith(`${SESSION_COOKIE}=`))) {
-        cookies.push(sessionCookie(scope.renewedSession.token, scope.renewedSession.expiresAt));
+        cookies.push(await sessionCookie(scope.renewedSession.token, scope.renewedSession.expiresAt));
       }
       await sendResponse(req, res, response, cookies);
     } catch (err) {
@@ -193,6 +204,11 @@ export function reactRouterAdapter(getBuild: () => ServerBuild | Promise<ServerB
       else next(err);
     }
   };
+}
+
+/** What every loader and action gets besides the request (React Router's load context). */
+function getLoadContext(req: ExpressRequest, res: ExpressResponse, services: Services): AppLoadContext {
+  return { clientAddress: req.ip ?? req.socket.remoteAddress ?? "unknown", nonce: String(res.locals.nonce ?? ""), services };
 }
 
 async function sendResponse(req: IncomingMessage, res: ExpressResponse, response: Response, cookies: string[]) {

@@ -7,11 +7,12 @@
 import nodemailer, { type Transporter } from "nodemailer";
 import { SMTPServer } from "smtp-server";
 import { env } from "~/.server/env";
+import { kept } from "~/.server/kept";
 
 export type SunkMail = { id: number; at: Date; from: string; to: string[]; subject: string; raw: string };
 
 type Holder = { transport?: Transporter; sunk: SunkMail[]; nextId: number; bytes?: number };
-const holder = ((globalThis as Record<string, unknown>).__nichewiseMail ??= { sunk: [], nextId: 1 }) as Holder;
+const holder = kept<Holder>("mail", () => ({ sunk: [], nextId: 1 }));
 export const SINK_KEEP = 500;
 export const SINK_MAX_MESSAGE_BYTES = 256 * 1024;
 export const SINK_MAX_TOTAL_BYTES = 32 * 1024 * 1024;

@@ -1,20 +1,30 @@
-// The process entry: PostgreSQL (embedded unless DATABASE_URL is given), migrations, demo data,
-// the mail sink, the MQTT broker and writer, the web server and the simulator, with one shutdown
-// path. Nothing long-lived starts from a module the dev server reloads.
+// The server: PostgreSQL (embedded unless DATABASE_URL is given), migrations, demo data, the mail
+// sink, the MQTT broker and writer, the web server and the simulator, with one shutdown path. It is
+// part of the routes' module graph: in production app/.server/server.ts (this plus the routes) is
+// the SSR build's entry, and in development Vite loads it (app/.server/serve.ts, the process entry).
+// The services it starts reach loaders and actions through the load context (http-adapter.ts).
 import compression from "compression";
 import express from "express";
-import { existsSync } from "node:fs";
 import http from "node:http";
 import path from "node:path";
 import type { ServerBuild } from "react-router";
+import type { ViteDevServer } from "vite";
 import { demoPolicy, env, publicUrl } from "~/.server/env";
+import { startBroker } from "~/.server/ingest/broker";
 import { startEmbeddedPostgres, type EmbeddedPostgres } from "~/.server/postgres";
 
 const log = (s: string) => console.log(`[nichewise] ${s}`);
 
 export type Running = { stop: () => Promise<void>; url: string; mqttPort: number; port: number };
 
-export async function main(opts: { dev?: boolean } = {}): Promise<Running> {
+export type MainOptions = {
+  /** Development: Vite's dev server (its middleware, and each request's current build) and the HTTP server its HMR socket shares. */
+  dev?: { vite: ViteDevServer; server: http.Server };
+  /** Production: the routes, built into the same bundle as this module. */
+  build?: ServerBuild;
+};
+
+export async function main(opts: MainOptions = {}): Promise<Running> {
   const stops: (() => Promise<void>)[] = [];
   const stopAll = async () => {
     for (const s of stops.reverse()) await s().catch((err) => console.error(err));
@@ -28,7 +38,7 @@ export async function main(opts: { dev?: boolean } = {}): Promise<Running> {
   }
 }
 
-async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[], stopAll: () => Promise<void>): Promise<Running> {
+async function startAll(opts: MainOptions, stops: (() => Promise<void>)[], stopAll: () => Promise<void>): Promise<Running> {
   const e = env();
   // Cluster mode (app/.server/cluster; docs/decisions/0004-cluster-engine.md): NW_ROLE=web or ingest.
   const { clusterRole } = await import("~/.server/cluster/config");
@@ -63,7 +73,6 @@ async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[],
   const alertOptions = { minuteMs: e.NW_COLD_FRONT ? 1000 : 60_000, log };
   stops.push(cluster ? cluster.startWebAlerts(writer(), alertOptions) : await startAlerts(writer(), alertOptions));
 
-  const { startBroker } = await import("~/.server/ingest/broker");
   // A web instance of cluster mode takes no MQTT: sensors talk to the engine.
   const broker = cluster ? null : await startBroker({ host: e.MQTT_HOST, port: e.MQTT_PORT, wsPort: e.MQTT_WS_PORT, writer: writer(), log });
   stops.push(async () => {
@@ -124,8 +133,10 @@ async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[],
   }
 
   const { reactRouterAdapter, securityHeaders } = await import("~/.server/http-adapter");
+  const services = { writer: writer(), broker };
   const app = express();
-  const server = http.createServer(app);
+  const server = opts.dev?.server ?? http.createServer();
+  server.on("request", app);
   app.disable("x-powered-by");
   // The client's address for the sign-in rate limit: the socket's, or what trusted proxies forwarded.
   app.set("trust proxy", e.TRUST_PROXY);
@@ -135,19 +146,16 @@ async function startAll(opts: { dev?: boolean }, stops: (() => Promise<void>)[],
   cluster?.mountEngineAuth(app);
 
   if (opts.dev) {
-    const vite = await import("vite");
-    // Vite's HMR socket shares our server rather than opening a port of its own.
-    const viteServer = await vite.createServer({ server: { middlewareMode: true, ws: { server } } });
-    stops.push(() => viteServer.close());
-    app.use(viteServer.middlewares);
-    app.all("*", reactRouterAdapter(() => viteServer.ssrLoadModule("virtual:react-router/server-build") as Promise<ServerBuild>, "development"));
+    const { vite } = opts.dev;
+    app.use(vite.middlewares);
+    app.all("*", reactRouterAdapter(() => vite.ssrLoadModule("virtual:react-router/server-build") as Promise<ServerBuild>, "development", services));
   } else {
+    const { build } = opts;
+    if (!build) throw new Error("No build given: start the server with `node build/nichewise-server.mjs` after `npm run build`");
     const buildDir = path.resolve("build");
-    if (!existsSync(path.join(buildDir, "server/index.js"))) throw new Error("No build found: run `npm run build` first");
     app.use("/assets", express.static(path.join(buildDir, "client/assets"), { immutable: true, maxAge: "1y" }));
     app.use(express.static(path.join(buildDir, "client"), { maxAge: "1h" }));
-    const build = (await import(path.join(buildDir, "server/index.js"))) as ServerBuild;
-    app.all("*", reactRouterAdapter(() => build, "production"));
+    app.all("*", reactRouterAdapter(() => build, "production", services));
   }
 
   await new Promise<void>((resolve, reject) => {
@@ -204,41 +212,4 @@ function originHost(origin: string) {
   } catch {
     return null;
   }
-}
-
-const isEntry = process.argv[1] && path.resolve(process.argv[1]) === path.resolve(import.meta.filename);
-if (isEntry) {
-  const dev = process.argv.includes("--dev");
-  // React, React Router and Express pick their production code at import, from NODE_ENV: too early
-  // to set it here, so the start scripts and the supervisor set it.
-  if (!dev && process.env.NODE_ENV !== "production") log(`NODE_ENV is ${process.env.NODE_ENV ?? "unset"}: running React's development code (slower, more memory); npm start sets NODE_ENV=production`);
-  main({ dev }).then(
-    (running) => {
-      let stopping = false;
-      const shutdown = (signal: string) => {
-        // A second signal, or a stop still waiting after 20 s (PostgreSQL already gone, say), ends
-        // the process: anything unacknowledged is resent by the sensors.
-        if (stopping) {
-          log(`${signal} again: exiting now`);
-          process.exit(1);
-        }
-        stopping = true;
-        log(`${signal}: shutting down…`);
-        setTimeout(() => {
-          log("shutdown still waiting after 20 s: exiting");
-          process.exit(1);
-        }, 20_000).unref();
-        running.stop().then(() => process.exit(0));
-      };
-      // In development a Vite server that React Router's plugin starts registers a SIGTERM handler
-      // that exits at once, skipping this shutdown (PostgreSQL was left running): ours only.
-      process.removeAllListeners("SIGTERM");
-      process.on("SIGINT", () => shutdown("SIGINT"));
-      process.on("SIGTERM", () => shutdown("SIGTERM"));
-    },
-    (err) => {
-      console.error(`[nichewise] could not start: ${err instanceof Error ? err.message : err}`);
-      process.exit(1);
-    },
-  );
 }

@@ -6,6 +6,6 @@ export async function loader() {
   return Response.json({ error: "POST readings here with Authorization: Bearer <sensor id>.<secret>" }, { status: 405 });
 }
 
-export async function action({ request }: Route.ActionArgs) {
-  return handleHttpIngest(request);
+export async function action({ request, context }: Route.ActionArgs) {
+  return handleHttpIngest(request, context.services.writer);
 }

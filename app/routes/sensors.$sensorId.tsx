@@ -4,7 +4,6 @@ import { data, Form, redirect, useFetcher, useNavigation } from "react-router";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
 import { readForm } from "~/.server/ids";
 import { env } from "~/.server/env";
-import { runningBroker } from "~/.server/ingest/broker";
 import { assignUnplaced, movePlacementStart, placeFromForm, removeSensorFromSpot, splitPlacement, unplacedReadings, placementHistory } from "~/.server/placements";
 import { deleteSensor, PlacementError, rotateSensorSecret, saveSensor, getSensor } from "~/.server/sensors.server";
 import { getSite } from "~/.server/sites";
@@ -18,7 +17,7 @@ import type { Route } from "./+types/sensors.$sensorId";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.sensor.name ?? "Sensor"} · Nichewise` }];
 
-export async function loader({ request, params }: Route.LoaderArgs) {
+export async function loader({ request, params, context }: Route.LoaderArgs) {
   const { siteId, role } = await requireSiteRole(request, params.siteId, ALL_ROLES);
   const sensor = await getSensor(siteId, params.sensorId);
   const site = await getSite(siteId);
@@ -34,8 +33,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     unplaced: await unplacedReadings(sensor.id),
     connect: {
       host: e.MQTT_PUBLIC_HOST ?? (e.MQTT_HOST === "0.0.0.0" ? new URL(request.url).hostname : e.MQTT_HOST),
-      port: runningBroker()?.port ?? e.MQTT_PORT,
-      wsPort: runningBroker()?.wsPort ?? e.MQTT_WS_PORT,
+      port: context.services.broker?.port ?? e.MQTT_PORT,
+      wsPort: context.services.broker?.wsPort ?? e.MQTT_WS_PORT,
       httpUrl: `${origin}/api/ingest`,
     },
   };

@@ -1,4 +1,5 @@
-import { Form, Link, NavLink, Outlet } from "react-router";
+import { Form, Link, NavLink, Outlet, useRouteLoaderData } from "react-router";
+import { RouteError } from "~/components/route-error";
 import { requireUser } from "~/.server/auth";
 import type { Route } from "./+types/shell";
 import { NichewiseMark } from "~/components/icons";
@@ -9,7 +10,25 @@ export async function loader({ request }: Route.LoaderArgs) {
 }
 
 export default function Shell({ loaderData }: Route.ComponentProps) {
-  const { user } = loaderData;
+  return (
+    <ShellFrame user={loaderData.user}>
+      <Outlet />
+    </ShellFrame>
+  );
+}
+
+/** A page of the shell that failed keeps the header (when the shell itself loaded) around its error. */
+export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {
+  const data = useRouteLoaderData<typeof loader>("routes/shell");
+  const message = (
+    <div className="mx-auto max-w-xl px-5 py-16">
+      <RouteError error={error} />
+    </div>
+  );
+  return data ? <ShellFrame user={data.user}>{message}</ShellFrame> : <main id="main">{message}</main>;
+}
+
+function ShellFrame({ user, children }: { user: { name: string; isAdmin: boolean }; children: React.ReactNode }) {
   return (
     <div className="min-h-dvh">
       <header className="border-b border-stone-line bg-card">
@@ -35,7 +54,7 @@ export default function Shell({ loaderData }: Route.ComponentProps) {
         </div>
       </header>
       <div id="main" tabIndex={-1} className="outline-none">
-        <Outlet />
+        {children}
       </div>
     </div>
   );

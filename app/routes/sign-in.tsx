@@ -23,7 +23,7 @@ export async function action({ request, context }: Route.ActionArgs) {
   const { email, password, next } = submission.value;
   const result = await signIn(email, password, context.clientAddress);
   if (!result.ok) return { result: submission.reply({ formErrors: [result.error], hideFields: ["password"] }) };
-  return redirect(safeNext(next), { headers: { "Set-Cookie": sessionCookie(result.token, result.expiresAt) } });
+  return redirect(safeNext(next), { headers: { "Set-Cookie": await sessionCookie(result.token, result.expiresAt) } });
 }
 
 export default function SignIn({ loaderData, actionData }: Route.ComponentProps) {

@@ -9,5 +9,5 @@ export async function loader() {
 export async function action({ request }: Route.ActionArgs) {
   const session = await getSession(request);
   if (session) await invalidateSession(session.id);
-  return redirect("/sign-in", { headers: { "Set-Cookie": blankSessionCookie() } });
+  return redirect("/sign-in", { headers: { "Set-Cookie": await blankSessionCookie() } });
 }

@@ -37,7 +37,7 @@ export async function action({ request }: Route.ActionArgs) {
   }
   const token = generateSessionToken();
   const session = await createSession(token, user.id);
-  return redirect(safeNext(next), { headers: { "Set-Cookie": sessionCookie(token, session.expiresAt) } });
+  return redirect(safeNext(next), { headers: { "Set-Cookie": await sessionCookie(token, session.expiresAt) } });
 }
 
 function tellOwnerOfSignUpAttempt(email: string) {

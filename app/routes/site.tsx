@@ -1,11 +1,14 @@
-import { Link, Outlet, useLocation } from "react-router";
+import { Link, Outlet, useLocation, useRouteLoaderData } from "react-router";
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
 import { getSite } from "~/.server/sites";
 import { alertBanner } from "~/.server/alerts/pages";
 import { AlertBanner } from "~/components/alert-banner";
+import { describeRouteError, RouteError } from "~/components/route-error";
 import type { Route } from "./+types/site";
 
-export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.site.name ?? "Site"} · Nichewise` }];
+export const meta: Route.MetaFunction = ({ data, error }) => [
+  { title: `${error ? `${describeRouteError(error).title} · ` : ""}${data?.site.name ?? "Site"} · Nichewise` },
+];
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { siteId, role, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
@@ -19,8 +22,37 @@ const roleNote = {
 };
 
 export default function SiteLayout({ loaderData }: Route.ComponentProps) {
+  return (
+    <SiteFrame data={loaderData}>
+      <AlertBanner siteId={loaderData.site.id} initial={loaderData.alerts} unit={loaderData.unit} />
+      <Outlet />
+    </SiteFrame>
+  );
+}
+
+/**
+ * A page of the site that failed (a spot id that is not there, a server error) keeps the site's name
+ * and menu around its error; a site that did not load (not a member) shows the error alone.
+ */
+export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {
+  const data = useRouteLoaderData<typeof loader>("routes/site");
+  if (!data) {
+    return (
+      <main className="mx-auto max-w-xl px-5 py-16">
+        <RouteError error={error} />
+      </main>
+    );
+  }
+  return (
+    <SiteFrame data={data}>
+      <RouteError error={error} level={2} home={`/sites/${data.site.id}`} />
+    </SiteFrame>
+  );
+}
+
+function SiteFrame({ data, children }: { data: Pick<Route.ComponentProps["loaderData"], "site" | "role">; children: React.ReactNode }) {
   const location = useLocation();
-  const { site, role } = loaderData;
+  const { site, role } = data;
   const base = `/sites/${site.id}`;
   const tabs = [
     { to: base, label: "Spots", end: true },
@@ -92,8 +124,7 @@ export default function SiteLayout({ loaderData }: Route.ComponentProps) {
           ))}
         </ul>
       </nav>
-      <AlertBanner siteId={site.id} initial={loaderData.alerts} unit={loaderData.unit} />
-      <Outlet />
+      {children}
     </main>
   );
 }

@@ -97,8 +97,8 @@ describe("sign-in and sessions", () => {
     expect(await validateSessionToken(token)).toBeNull();
   });
 
-  it("sets HttpOnly and SameSite=Lax on the cookie; Secure only when PUBLIC_URL is https (app/.server/auth-cookie.test.ts)", () => {
-    const c = sessionCookie("abc", new Date(Date.now() + 1000));
+  it("sets HttpOnly and SameSite=Lax on the cookie; Secure only when PUBLIC_URL is https (app/.server/auth-cookie.test.ts)", async () => {
+    const c = await sessionCookie("abc", new Date(Date.now() + 1000));
     expect(c).toContain("HttpOnly");
     expect(c).toContain("SameSite=Lax");
     // Here PUBLIC_URL is unset: the app is reached over plain http, where a Secure cookie is not kept.

@@ -2,7 +2,7 @@
 import { describe, expect, it, vi } from "vitest";
 import { ReadingWriter } from "~/.server/ingest/writer";
 import { rebuildRollups } from "~/.server/rollups/rebuild";
-import { fetchRollups, loadRollups } from "~/.server/rollups/read";
+import { fetchRollups, loadRollups, rollupCacheState } from "~/.server/rollups/read";
 import { pool } from "~/.server/db";
 import { makeSensor, makeSite, makeSpot, makeUser } from "./helpers";
 
@@ -25,7 +25,12 @@ describe("rollup cache", () => {
     const to = new Date(now);
     const same = async () => expect((await loadRollups([spot.id], from, to)).get(spot.id)).toEqual((await fetchRollups([spot.id], from, to)).get(spot.id));
     await same();
-    await same(); // served from the cache
+    // Served from the cache: the second load finds the spot's rows there and reads none again.
+    const before = rollupCacheState.counts();
+    await same();
+    const after = rollupCacheState.counts();
+    expect(after.hits - before.hits).toBe(1);
+    expect(after.read - before.read).toBe(0);
     // A late reading two days ago (a logger catching up) changes an old hour.
     await w.write([{ sensorId: sensor.id, measuredAt: new Date(start + 24 * HOUR + 7_000), temperature: -3, humidity: 90, lux: null, battery: null }]);
     await same();
@@ -55,8 +60,8 @@ describe("rollup cache", () => {
     try {
       const rolledFrom = new Date(start + 6 * HOUR);
       await sameFor(rolledFrom, new Date(rolled));
-      const cached = (globalThis as { __nichewiseRollupCache?: { rollups: Map<number, { rows: { hour: Date }[] }> } }).__nichewiseRollupCache!.rollups.get(spot.id)!;
-      expect(cached.rows[0].hour.getTime()).toBeGreaterThanOrEqual(rolledFrom.getTime());
+      const cached = rollupCacheState.rows(spot.id)!;
+      expect(cached[0].hour.getTime()).toBeGreaterThanOrEqual(rolledFrom.getTime());
       await sameFor(from, new Date(rolled));
     } finally {
       vi.useRealTimers();

@@ -2,7 +2,7 @@
 // logger is judged on that year, not on the twelve months before today; a picker chooses another.
 import { describe, expect, it } from "vitest";
 import { ReadingWriter } from "~/.server/ingest/writer";
-import { fetchRollups, loadRollups } from "~/.server/rollups/read";
+import { fetchRollups, loadRollups, rollupCacheState } from "~/.server/rollups/read";
 import { fitsFor, judgedPeriods, parsePeriod, spotProfiles } from "~/.server/profiles";
 import { makeSensor, makeSite, makeSpot, makeUser } from "./helpers";
 
@@ -75,7 +75,7 @@ describe("the period a verdict judges", () => {
     for (let i = 0; i < 2; i++) {
       for (const p of [past, rolling]) expect((await loadRollups([spot.id], p.from, p.to)).get(spot.id)).toEqual((await fetchRollups([spot.id], p.from, p.to)).get(spot.id));
     }
-    const keys = [...(globalThis as { __nichewiseRollupCache?: { rollups: Map<unknown, unknown> } }).__nichewiseRollupCache!.rollups.keys()];
+    const keys = rollupCacheState.keys();
     expect(keys).toContain(spot.id);
     expect(keys).toContain(`${spot.id}:${past.from.getTime()}:${past.to.getTime()}`);
   });

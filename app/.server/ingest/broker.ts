@@ -12,6 +12,7 @@ import http from "node:http";
 import { WebSocketServer, createWebSocketStream } from "ws";
 import { decodeMessage, isSensorId, MAX_PAYLOAD_BYTES, parseTopic, TOPIC_PREFIX, validateReading } from "~/domain/ingest/payload";
 import { env, publicUrl } from "~/.server/env";
+import { kept } from "~/.server/kept";
 import { recordRejectionsSoon } from "~/.server/ingest/rejections";
 import { cachedSensorInfo, lastTemperature, noteTemperature, sensorInfo, verifySensorSecret, type SensorInfo } from "~/.server/ingest/sensor-cache";
 import type { ReadingWriter, WriteResult } from "~/.server/ingest/writer";
@@ -45,7 +46,7 @@ export type RunningBroker = {
 export const CONFLICT_REASON = "conflicting duplicate: a different value is already stored for this sensor and time (kept the stored one)";
 
 type Holder = { running?: RunningBroker };
-const holder = ((globalThis as Record<string, unknown>).__nichewiseBroker ??= {}) as Holder;
+const holder = kept<Holder>("broker", () => ({}));
 export const runningBroker = () => holder.running;
 
 function authError(message: string, code: 3 | 4 | 5) {

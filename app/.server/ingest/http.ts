@@ -3,7 +3,7 @@
 import { isSensorId, validateReading, type Reading } from "~/domain/ingest/payload";
 import { recordRejectionsSoon, type Rejected } from "~/.server/ingest/rejections";
 import { lastTemperature, noteTemperature, verifySensorSecret } from "~/.server/ingest/sensor-cache";
-import { writer, type WriteResult } from "~/.server/ingest/writer";
+import { writer, type ReadingWriter, type WriteResult } from "~/.server/ingest/writer";
 
 export const MAX_HTTP_BATCH = 10_000;
 export const MAX_HTTP_BYTES = 4 * 1024 * 1024;
@@ -52,7 +52,7 @@ const disagree = (a: Reading, b: Reading) =>
   (a.humidity !== null && b.humidity !== null && a.humidity !== b.humidity) ||
   (a.lux !== null && b.lux !== null && a.lux !== b.lux);
 
-export async function handleHttpIngest(request: Request): Promise<Response> {
+export async function handleHttpIngest(request: Request, w: ReadingWriter = writer()): Promise<Response> {
   if (request.method !== "POST") return json({ error: "POST readings here" }, 405);
   const auth = request.headers.get("Authorization") ?? "";
   const m = /^Bearer (\d+)\.([A-Za-z0-9]+)$/.exec(auth.trim());
@@ -115,7 +115,7 @@ export async function handleHttpIngest(request: Request): Promise<Response> {
   recordRejectionsSoon(toRecord.slice(0, 100));
   let result: WriteResult;
   try {
-    result = await writer().write(ok);
+    result = await w.write(ok);
   } catch {
     return json({ error: "Storage unavailable: nothing was stored, send the same batch again" }, 503);
   }

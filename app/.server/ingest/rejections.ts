@@ -8,8 +8,8 @@ export const MAX_PAYLOAD_CHARS = 500;
 
 export type Rejected = { sensorId: number | null; source: "mqtt" | "http" | "csv"; topic?: string; reason: string; payload: string };
 
-type Holder = { counts: Map<string, number> };
-const holder = ((globalThis as Record<string, unknown>).__nichewiseRejections ??= { counts: new Map() }) as Holder;
+/** Rejections by reason since the process started (the health page). */
+const counts = new Map<string, number>();
 
 /**
  * Text as PostgreSQL's text takes it: a NUL byte (which it refuses, failing the whole INSERT)
@@ -41,7 +41,7 @@ export async function recordRejections(items: Rejected[]) {
     items.map((i) => storable(i.reason, MAX_REASON_CHARS)),
     items.map((i) => storable(i.payload, MAX_PAYLOAD_CHARS)),
   ]);
-  for (const i of items) holder.counts.set(i.reason, (holder.counts.get(i.reason) ?? 0) + 1);
+  for (const i of items) counts.set(i.reason, (counts.get(i.reason) ?? 0) + 1);
 }
 
 /** Logs and swallows: recording a rejection must never take ingest down. */

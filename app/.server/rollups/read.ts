@@ -1,5 +1,6 @@
 // Reading a spot's hourly rollups: straight from PostgreSQL (fetchRollups), or through the
 // in-memory cache of past hours (loadRollups), which every page that judges a season uses.
+import { LRUCache } from "lru-cache";
 import { pool } from "~/.server/db";
 import type { HourlyRollup } from "~/domain/season/types";
 
@@ -45,13 +46,21 @@ export async function fetchRollups(spotIds: number[], from: Date, to: Date): Pro
 // pages judging different periods of one spot don't push each other's rows out.
 type CachedRollups = { from: number; edge: number; check: string; rows: HourlyRollup[] };
 type CacheKey = number | string;
-type CacheHolder = { rollups: Map<CacheKey, CachedRollups>; rowCount?: number };
-const cacheHolder = ((globalThis as Record<string, unknown>).__nichewiseRollupCache ??= { rollups: new Map() }) as CacheHolder;
 /**
  * Bounded by rows, not spots: a spot-year is 8,760 rows, about 1.5 MB, so this holds 64 spot-years
  * (about 100 MB) and more spots with less history. Least recently used spots go first.
  */
 const MAX_CACHED_ROWS = 64 * 8760;
+const rollupCache = new LRUCache<CacheKey, CachedRollups>({ maxSize: MAX_CACHED_ROWS, sizeCalculation: (e) => Math.max(1, e.rows.length) });
+/** What the cache did since the process started: spots served from it whole, appended to, read afresh. */
+const rollupCacheCounts = { hits: 0, appended: 0, read: 0 };
+
+/** The cache's counts and keys, and a cached entry's rows (tests, the health page). */
+export const rollupCacheState = {
+  counts: (): Readonly<typeof rollupCacheCounts> => ({ ...rollupCacheCounts }),
+  keys: (): CacheKey[] => [...rollupCache.keys()],
+  rows: (key: CacheKey): HourlyRollup[] | undefined => rollupCache.peek(key)?.rows,
+};
 
 /** Forget week-old entries of the change log; the cache's check notices the pruning as a change. */
 export async function pruneRollupChanges() {
@@ -83,36 +92,32 @@ export async function loadRollups(spotIds: number[], fromAsked: Date, to: Date):
      FROM unnest($1::int[]) s`,
     [spotIds],
   );
-  const cache = cacheHolder.rollups;
   const stale: { spotId: number; check: string }[] = [];
   const behind = new Map<number, { spotId: number; hit: CachedRollups }[]>(); // by the edge they were read to
+  const whole = new Map<number, CachedRollups>(); // served from the cache as they are
   for (const { spot_id: spotId, check } of checks.rows) {
-    const hit = cache.get(keyOf(spotId));
+    const hit = rollupCache.get(keyOf(spotId));
     if (!hit || hit.check !== check || hit.from > from || hit.edge <= from) stale.push({ spotId, check });
     else if (hit.edge < edge) behind.set(hit.edge, [...(behind.get(hit.edge) ?? []), { spotId, hit }]);
+    else whole.set(spotId, hit);
   }
   const used = new Map<number, CachedRollups>();
+  // The spot just used is in `used` even if the cache would not take it (alone over the bound): this
+  // request reads it.
   const remember = (spotId: number, entry: CachedRollups) => {
     used.set(spotId, entry);
-    const key = keyOf(spotId);
-    const before = cache.get(key);
-    cache.delete(key); // re-inserted last: the Map's order is the order of use
-    cache.set(key, entry);
-    let rowCount = (cacheHolder.rowCount ?? 0) - (before?.rows.length ?? 0) + entry.rows.length;
-    // The spot just used stays even when it alone is over the bound: this request reads it.
-    while (rowCount > MAX_CACHED_ROWS && cache.size > 1) {
-      const [oldest, evicted] = cache.entries().next().value!;
-      cache.delete(oldest);
-      rowCount -= evicted.rows.length;
-    }
-    cacheHolder.rowCount = rowCount;
+    rollupCache.set(keyOf(spotId), entry);
   };
-  for (const id of spotIds) if (!stale.some((c) => c.spotId === id)) remember(id, cache.get(keyOf(id))!);
+  for (const [id, hit] of whole) remember(id, hit);
+  rollupCacheCounts.hits += whole.size;
+  for (const list of behind.values()) for (const { spotId, hit } of list) used.set(spotId, hit);
   if (stale.length > 0) {
+    rollupCacheCounts.read += stale.length;
     const fresh = await fetchRollups(stale.map((c) => c.spotId), new Date(from), new Date(edge));
     for (const c of stale) remember(c.spotId, { from, edge, check: c.check, rows: fresh.get(c.spotId)! });
   }
   for (const [readTo, list] of behind) {
+    rollupCacheCounts.appended += list.length;
     const more = await fetchRollups(list.map((l) => l.spotId), new Date(readTo), new Date(edge));
     // Appending newly past hours also drops those before this period: a rolling window would
     // otherwise keep every hour since the server started.
