@@ -10,6 +10,7 @@ import { isDiscoveryConfigTopic, MAX_BRIDGED_PAYLOAD_BYTES, parseDiscoveryConfig
 import { PacketSizeGuard } from "./packet-guard";
 import { endpoint, MAX_BRIDGE_PACKET_BYTES } from "./runtime";
 import type { BridgeConfig } from "./store";
+import { kept } from "~/.server/kept";
 
 export const LISTEN_MS = 60_000;
 export const MAX_TOPICS = 300;
@@ -42,7 +43,7 @@ export type Found = {
 };
 
 type Holder = { listening: Map<number, Listening> };
-const holder = ((globalThis as Record<string, unknown>).__nichewiseListening ??= { listening: new Map() }) as Holder;
+const holder = kept<Holder>("bridge-listening", () => ({ listening: new Map() }));
 
 /** Sites listening at once in this server, and how long what was heard is kept after. */
 export const MAX_LISTENING = 5;

@@ -18,6 +18,7 @@ import { CONFLICT_REASON } from "~/.server/ingest/broker";
 import type { ReadingWriter } from "~/.server/ingest/writer";
 import { PacketSizeGuard } from "./packet-guard";
 import { enabledBridges, getBridge, listLinks, type BridgeConfig, type BridgeLink } from "./store";
+import { kept } from "~/.server/kept";
 
 /**
  * Largest packet read from a bridged broker. Over MAX_BRIDGED_PAYLOAD_BYTES a message is still read,
@@ -364,11 +365,10 @@ export function toPayload(v: Values) {
 }
 
 // ---------------------------------------------------------------------------------------------
-// The process's bridges, one per site with an enabled configuration. Kept on globalThis because
-// the server build and the process entry each load their own copy of app/.server (DEVELOPERS.md).
+// The process's bridges, one per site with an enabled configuration (kept across dev reloads).
 
 type Holder = { deps?: Deps; bridges: Map<number, SiteBridge> };
-const holder = ((globalThis as Record<string, unknown>).__nichewiseBridges ??= { bridges: new Map() }) as Holder;
+const holder = kept<Holder>("bridges", () => ({ bridges: new Map() }));
 
 /** Starts every enabled bridge; returns the stop for the process's shutdown path. */
 export async function startBridges(deps: Deps): Promise<() => Promise<void>> {
