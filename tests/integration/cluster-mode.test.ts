@@ -135,7 +135,7 @@ describe("the lease holder's alert engine", () => {
     const spot = await makeSpot(site, { indoor: false });
     const sensor = await makeSensor(site, spot);
     const rule = await pool().query<{ id: number }>(
-      `INSERT INTO alert_rules (spot_id, kind, threshold, duration_minutes, hysteresis, clear_minutes, early_warning)
+      `INSERT INTO watches (spot_id, kind, threshold, duration_minutes, hysteresis, clear_minutes, early_warning)
        VALUES ($1, 'cold', 10, 10, 1, 30, false) RETURNING id`,
       [spot.id],
     );
