@@ -8,8 +8,7 @@ import { cleanText } from "~/.server/ids";
 import { invalidateSensorCache } from "~/.server/ingest/sensors";
 import { ensureColdWatch } from "~/.server/watches";
 import { auditLog, placements, spots, type Spot } from "~/db/schema.server";
-import type { LightSource } from "~/domain/climate/light";
-import type { FACINGS, Glazing } from "~/lib/forms";
+import type { Glazing, LightSource, SpotFacing } from "~/domain/vocabulary";
 
 /**
  * `lightSource` (default sun) sets the lux → PPFD factor of the spot's DLI; `glazing` is kept only
@@ -18,7 +17,7 @@ import type { FACINGS, Glazing } from "~/lib/forms";
 export type SpotValues = {
   name: string;
   indoor: boolean;
-  facing: (typeof FACINGS)[number];
+  facing: SpotFacing;
   capacity: number;
   notes: string;
   lightSource?: LightSource;

@@ -1,11 +1,6 @@
 // Shared form schemas: the same zod schema validates in the browser (through conform) and in the action.
 import { z } from "zod";
-import { LIGHT_SOURCES } from "~/domain/climate/light";
-
-export const FACINGS = ["N", "NE", "E", "SE", "S", "SW", "W", "NW", "none"] as const;
-/** A windowsill's glazing ("old_double": an older double unit, U ≈ 2.8), for the cold-glass rule. */
-export const GLAZINGS = ["single", "double", "old_double", "triple", "none"] as const;
-export type Glazing = (typeof GLAZINGS)[number];
+import { GLAZINGS, LIGHT_SOURCES, SPOT_FACINGS, SPOT_PLACES } from "~/domain/vocabulary";
 
 const email = z.string({ error: "Enter your e-mail address" }).trim().toLowerCase().pipe(z.email("That is not an e-mail address"));
 
@@ -54,8 +49,8 @@ export function isTimeZone(tz: string) {
 
 export const spotSchema = z.object({
   name: z.string({ error: "Name the spot" }).trim().min(1, "Name the spot").max(80),
-  indoor: z.enum(["indoor", "outdoor"], { error: "Is it indoors or outdoors?" }),
-  facing: z.enum(FACINGS, { error: "Choose the window facing, or no window" }),
+  indoor: z.enum(SPOT_PLACES, { error: "Is it indoors or outdoors?" }),
+  facing: z.enum(SPOT_FACINGS, { error: "Choose the window facing, or no window" }),
   capacity: z
     .number({ error: "How many pots fit? (0 if you don't know yet)" })
     .int("Whole pots only")

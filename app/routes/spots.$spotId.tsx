@@ -26,7 +26,8 @@ import { DayOne, type DayOneView } from "~/components/day-one";
 import { VERDICT_RULES } from "~/domain/fit/verdict";
 import { timeAgo } from "~/lib/time";
 import { formatTemp } from "~/lib/units";
-import { LIGHT_SOURCE_LABELS, type LightSource } from "~/domain/climate/light";
+import { LIGHT_SOURCE_LABELS } from "~/domain/climate/light";
+import type { LightSource } from "~/domain/vocabulary";
 import type { SeasonProfile } from "~/domain/season/types";
 import type { Route } from "./+types/spots.$spotId";
 

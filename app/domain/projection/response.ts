@@ -11,7 +11,8 @@
 // two-day mean plus a few degrees), so directions the two weeks never showed fall back on physics.
 import type { HourlyRollup } from "~/domain/season/types";
 import { zoneClock } from "~/domain/season/local-time";
-import { FACING_AZIMUTH, type SpotFacing } from "~/domain/climate/sun";
+import { FACING_AZIMUTH } from "~/domain/climate/sun";
+import type { SpotFacing } from "~/domain/vocabulary";
 import { saturationVapourPressure } from "~/domain/climate/psychro";
 
 export const HOUR_MS = 3_600_000;
