@@ -9,7 +9,7 @@ import { publicUrl } from "~/.server/env";
 import { paramId } from "~/.server/ids";
 import { requestScope } from "~/.server/request-scope";
 import { randomToken, sha256Hex } from "~/.server/secrets";
-import { MAX_PASSWORD_LENGTH } from "~/lib/forms";
+import { MAX_PASSWORD_LENGTH } from "~/forms/auth";
 import { ROLES } from "~/domain/vocabulary";
 import { memberships, sessions, signInFailures, users, type Role, type User } from "~/db/schema.server";
 

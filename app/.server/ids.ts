@@ -4,8 +4,9 @@
 // (and the other C0 control characters a keyboard cannot type) before it is stored.
 import { data } from "react-router";
 import { z } from "zod";
+import { cleanText, INT4_MAX } from "~/forms/fields";
 
-export const INT4_MAX = 2_147_483_647;
+export { cleanText, INT4_MAX };
 
 const idSchema = z
   .string()
@@ -34,12 +35,6 @@ export function formId(form: FormData | URLSearchParams, name: string, message =
   if (id === null) throw data(message, { status: 400 });
   return id;
 }
-
-// NUL and the C0 controls other than tab, line feed and carriage return; DEL too.
-const CONTROL = /[\u0000-\u0008\u000B\u000C\u000E-\u001F\u007F]/g;
-
-/** Free text (notes, names) without the control characters nobody types, NUL above all. */
-export const cleanText = (s: string) => s.replace(CONTROL, "");
 
 /** One line of text for a mail header or a subject: no line breaks or controls, at most `max` characters. */
 export function oneLine(s: string, max = 60) {

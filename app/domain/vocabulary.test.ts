@@ -2,7 +2,7 @@ import { describe, expect, it } from "vitest";
 import { alertKindEnum, facingEnum, glazingEnum, lightSourceEnum, roleEnum, users } from "~/db/schema.server";
 import { ALERT_KINDS } from "~/domain/alerts/rules";
 import { GLAZINGS, LIGHT_SOURCES, ROLES, SPOT_FACINGS, TEMPERATURE_UNITS, WATCH_KINDS } from "~/domain/vocabulary";
-import { spotSchema } from "~/lib/forms";
+import { spotSchema } from "~/forms/spot";
 
 // One definition per closed list (issue 18): the database enums and the forms use the same arrays.
 describe("each closed list is defined once", () => {

@@ -5,7 +5,7 @@ import { readForm } from "~/.server/ids";
 import { auditCsvImport, CsvLimitError, isCsvFileError, csvSlot, importCsv, previewCsv, readCsvHead, type CsvHead } from "~/.server/ingest/csv-import";
 import { getSensor, getSite, listSensors } from "~/.server/sites";
 import { CSV_MAX_BYTES, CSV_MAX_ROWS, DATE_FORMATS, guessMapping, type CsvMapping, type DateFormat } from "~/domain/ingest/csv";
-import { isTimeZone } from "~/lib/forms";
+import { isTimeZone } from "~/forms/site";
 import { describeDstChange, formatInZone } from "~/lib/time";
 import type { Route } from "./+types/import";
 

@@ -20,7 +20,7 @@ import {
 import { getSensor, getSite, listSpots, placementHistory } from "~/.server/sites";
 import { PlaceSensorForm, PlacementEditor, PlacingTips } from "~/components/placement";
 import { useNow } from "~/components/use-now";
-import { calibrationSchema } from "~/lib/forms";
+import { calibrationSchema } from "~/forms/sensor";
 import { placementEditSchema } from "~/lib/placements";
 import { formatInZone, parseLocalDateTime, timeAgo } from "~/lib/time";
 import type { Route } from "./+types/sensors.$sensorId";

@@ -7,7 +7,7 @@ import { readForm } from "~/.server/ids";
 import { createSensor, PlacementError } from "~/.server/sensors.server";
 import { getSite, getSpot, listSpots } from "~/.server/sites";
 import { FormErrors, SelectField, TextField } from "~/components/field";
-import { CHANNELS, sensorSchema } from "~/lib/forms";
+import { CHANNELS, sensorSchema } from "~/forms/sensor";
 import { parseLocalDateTime } from "~/lib/time";
 import type { Route } from "./+types/sensors.new";
 

@@ -5,7 +5,7 @@ import { readForm } from "~/.server/ids";
 import { getSpot } from "~/.server/sites";
 import { deleteSpot, updateSpot } from "~/.server/spots";
 import { SpotForm } from "~/components/spot-form";
-import { spotSchema } from "~/lib/forms";
+import { spotSchema } from "~/forms/spot";
 import type { Route } from "./+types/spots.$spotId.edit";
 
 export const meta: Route.MetaFunction = () => [{ title: "Edit spot · Nichewise" }];
