@@ -12,13 +12,14 @@ export const signInSchema = z.object({
   next: z.string().optional(),
 });
 
+/** A password being chosen: 10 to 200 characters. */
+export const newPassword = (missing: string) =>
+  z.string({ error: missing }).min(10, "Use at least 10 characters").max(200, "That is longer than we accept (200 characters)");
+
 export const signUpSchema = z.object({
   name: z.string({ error: "Tell us what to call you" }).trim().min(1, "Tell us what to call you").max(80),
   email,
-  password: z
-    .string({ error: "Choose a password" })
-    .min(10, "Use at least 10 characters")
-    .max(200, "That is longer than we accept (200 characters)"),
+  password: newPassword("Choose a password"),
   next: z.string().optional(),
 });
 
