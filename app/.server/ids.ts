@@ -50,3 +50,12 @@ export async function readForm(request: Request): Promise<FormData> {
     throw data("The form could not be read: send it again from the page.", { status: 400 });
   }
 }
+
+/**
+ * A form that failed on fields the page writes itself (an id, the intent) came from a stale or
+ * altered page, where a field error would show nowhere: a 400 with the first message.
+ */
+export function refuseForm(error: Record<string, string[] | null> | null | undefined, fallback = "Unknown action"): never {
+  const first = Object.values(error ?? {}).find((m) => m?.length)?.[0];
+  throw data(first ?? fallback, { status: 400 });
+}

@@ -3,8 +3,10 @@
 // (passwords never), and takes good input as before.
 import { describe, expect, it } from "vitest";
 import { createSession, generateSessionToken } from "~/.server/auth";
+import { getPreferences } from "~/.server/alerts/queries";
 import { action as settingsAction } from "~/routes/settings";
-import { makeUser } from "./helpers";
+import { action as siteAlertsAction } from "~/routes/site.alerts";
+import { makeSite, makeUser } from "./helpers";
 
 type Fn = (a: never) => unknown;
 type Reply = { status?: string; initialValue?: Record<string, unknown> | null; error?: Record<string, string[] | null> | null };
@@ -57,5 +59,25 @@ describe("settings", () => {
     expect((kelvin.body as { result: Reply }).result.error?.unit).toEqual(["Choose °C or °F"]);
     expect((await call(settingsAction as Fn, post(token, "/settings", { intent: "unit", unit: "F" }))).body).toEqual({ saved: "unit" });
     expect((await call(settingsAction as Fn, post(token, "/settings", { intent: "nonsense" }))).status).toBe(400);
+  });
+});
+
+describe("alert e-mails", () => {
+  it("a quiet hour like 25:99 is an error on its field with every box and time typed sent back; good values are saved", async () => {
+    const { user, token } = await signedIn();
+    const site = await makeSite(user);
+    const params = { siteId: String(site.id) };
+    const typed = { intent: "preferences", email: "on", kinds: ["cold", "dry"], quietFrom: "25:99", quietTo: "07:00" };
+    const bad = await call(siteAlertsAction as Fn, post(token, "/", typed), params);
+    expect(bad.status).toBe(400);
+    const reply = (bad.body as { result: Reply }).result;
+    expect(reply.error?.quietFrom).toEqual(["Enter quiet hours as times like 22:30."]);
+    expect(reply.initialValue).toMatchObject({ email: "on", kinds: ["cold", "dry"], quietFrom: "25:99", quietTo: "07:00" });
+
+    const oneEnd = await call(siteAlertsAction as Fn, post(token, "/", { ...typed, quietFrom: "22:30", quietTo: "" }), params);
+    expect((oneEnd.body as { result: Reply }).result.error?.quietTo).toEqual(["Give both ends of the quiet hours, or neither."]);
+
+    expect((await call(siteAlertsAction as Fn, post(token, "/", { ...typed, quietFrom: "22:30" }), params)).body).toEqual({ savedPrefs: true });
+    expect(await getPreferences(user.id, site.id, "owner")).toMatchObject({ email: true, kinds: ["cold", "dry"], quietFrom: 22 * 60 + 30, quietTo: 7 * 60 });
   });
 });
