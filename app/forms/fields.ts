@@ -23,14 +23,23 @@ export const rowId = (message = "That choice is not valid; reload the page and t
     .transform(Number)
     .pipe(z.number().int().positive().max(INT4_MAX, message));
 
-/** A number as a grower types it: a decimal comma reads as a point. */
-export const decimal = (message: string) =>
+/** A number as a grower types it (a decimal comma reads as a point), from `min` to `max`. */
+export const decimal = (message: string, min = -Infinity, max = Infinity) =>
   z
     .string({ error: message })
     .trim()
     .max(40, message)
-    .transform((s) => Number(s.replace(",", ".")))
-    .pipe(z.number().refine(Number.isFinite, message));
+    .transform((s) => (s === "" ? NaN : Number(s.replace(",", "."))))
+    .pipe(z.number().refine((n) => Number.isFinite(n) && n >= min && n <= max, message));
+
+/** A whole number typed in a field, from `min` to `max`. */
+export const whole = (message: string, min: number, max: number) =>
+  z
+    .string({ error: message })
+    .trim()
+    .max(12, message)
+    .transform((s) => (s === "" ? NaN : Number(s)))
+    .pipe(z.number().refine((n) => Number.isInteger(n) && n >= min && n <= max, message));
 
 /** A checkbox: on when ticked, absent when not. */
 export const checkbox = () =>

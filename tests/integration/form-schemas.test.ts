@@ -6,6 +6,8 @@ import { createSession, generateSessionToken } from "~/.server/auth";
 import { getPreferences } from "~/.server/alerts/queries";
 import { action as settingsAction } from "~/routes/settings";
 import { action as siteAlertsAction } from "~/routes/site.alerts";
+import { action as waterAction } from "~/routes/water";
+import { listWaterChecks } from "~/.server/water";
 import { makeSite, makeUser } from "./helpers";
 
 type Fn = (a: never) => unknown;
@@ -79,5 +81,27 @@ describe("alert e-mails", () => {
 
     expect((await call(siteAlertsAction as Fn, post(token, "/", { ...typed, quietFrom: "22:30" }), params)).body).toEqual({ savedPrefs: true });
     expect(await getPreferences(user.id, site.id, "owner")).toMatchObject({ email: true, kinds: ["cold", "dry"], quietFrom: 22 * 60 + 30, quietTo: 7 * 60 });
+  });
+});
+
+describe("water checks", () => {
+  it("an own source without a name and a pH of 15 are errors on their fields, every value typed is sent back and nothing is stored; a decimal comma still reads", async () => {
+    const { user, token } = await signedIn();
+    const site = await makeSite(user);
+    const params = { siteId: String(site.id) };
+    const typed = { intent: "log", source: "other", ownSource: "", checkedOn: "2025-05-01", measure: "ec", value: "150", scale: "0.7", ph: "15" };
+    const bad = await call(waterAction as Fn, post(token, "/", typed), params);
+    expect(bad.status).toBe(400);
+    const reply = (bad.body as { result: Reply }).result;
+    expect(reply.error?.ph).toEqual(["pH is between 0 and 14."]);
+    expect(reply.initialValue).toMatchObject({ source: "other", checkedOn: "2025-05-01", measure: "ec", value: "150", scale: "0.7", ph: "15" });
+    const noName = await call(waterAction as Fn, post(token, "/", { ...typed, ph: "6,5" }), params);
+    expect((noName.body as { result: Reply }).result.error?.ownSource).toEqual(["Name the water source (up to 40 characters), or choose tap, rain or filtered."]);
+    const future = await call(waterAction as Fn, post(token, "/", { ...typed, ownSource: "Water butt", ph: "6,5", checkedOn: "2999-01-01" }), params);
+    expect((future.body as { result: Reply }).result.error?.checkedOn).toEqual(["The date cannot be in the future."]);
+    expect(await listWaterChecks(site.id)).toHaveLength(0);
+
+    expect((await call(waterAction as Fn, post(token, "/", { ...typed, ownSource: "Water butt", ph: "6,5" }), params)).body).toMatchObject({ ok: true, source: "Water butt" });
+    expect((await listWaterChecks(site.id)).map((c) => [c.source, c.ec, c.ecScale, c.ph])).toEqual([["Water butt", 150, 0.7, 6.5]]);
   });
 });
