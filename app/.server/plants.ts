@@ -159,13 +159,6 @@ export async function removeWish(siteId: number, actorId: number, plantKey: stri
 
 const potsSchema = z.coerce.number().int("Whole pots only").min(1, "At least one pot").max(100, "Up to 100 pots");
 
-/** A wish as the wishlist and plant pages post it: must-have and pots; the plant from the form or the page. */
-const wishSchema = z.object({ plantKey: z.string().min(1, "Choose a plant"), mustHave: z.literal("on").optional(), pots: potsSchema });
-
-export function parseWish(form: FormData, plantKey: string) {
-  return wishSchema.safeParse({ plantKey, mustHave: form.get("mustHave") ?? undefined, pots: form.get("pots") || 1 });
-}
-
 const addSchema = z.object({
   plantKey: z.string().min(1).max(120),
   nickname: z.string().transform(cleanText).pipe(z.string().trim().max(60, "Keep the name under 60 characters")).default(""),

@@ -8,6 +8,9 @@ import { action as settingsAction } from "~/routes/settings";
 import { action as siteAlertsAction } from "~/routes/site.alerts";
 import { action as waterAction } from "~/routes/water";
 import { listWaterChecks } from "~/.server/water";
+import { action as wishlistAction } from "~/routes/wishlist";
+import { action as plantAction } from "~/routes/plants.$plantKey";
+import { siteWishlist } from "~/.server/plants";
 import { makeSite, makeUser } from "./helpers";
 
 type Fn = (a: never) => unknown;
@@ -103,5 +106,31 @@ describe("water checks", () => {
 
     expect((await call(waterAction as Fn, post(token, "/", { ...typed, ownSource: "Water butt", ph: "6,5" }), params)).body).toMatchObject({ ok: true, source: "Water butt" });
     expect((await listWaterChecks(site.id)).map((c) => [c.source, c.ec, c.ecScale, c.ph])).toEqual([["Water butt", 150, 0.7, 6.5]]);
+  });
+});
+
+describe("wishes", () => {
+  it("0 pots on the wishlist or a plant's page is an error on the pots with the plant and must-have kept; an unknown plant is refused on its field", async () => {
+    const { user, token } = await signedIn();
+    const site = await makeSite(user);
+    const params = { siteId: String(site.id) };
+    const bad = await call(wishlistAction as Fn, post(token, "/", { intent: "save", plantKey: "hoya", pots: "0", mustHave: "on" }), params);
+    expect(bad.status).toBe(400);
+    const reply = bad.body as { plantKey: string; result: Reply };
+    expect(reply.plantKey).toBe("hoya");
+    expect(reply.result.error?.pots).toEqual(["At least one pot"]);
+    expect(reply.result.initialValue).toMatchObject({ plantKey: "hoya", pots: "0", mustHave: "on" });
+    const unknown = await call(wishlistAction as Fn, post(token, "/", { intent: "save", plantKey: "no-such-plant", pots: "1" }), params);
+    expect((unknown.body as { result: Reply }).result.error?.plantKey).toEqual(["Choose a plant from the list."]);
+    expect(await siteWishlist(site.id)).toHaveLength(0);
+
+    const onPage = await call(plantAction as Fn, post(token, "/", { intent: "wish", pots: "1.5" }), { ...params, plantKey: "hoya" });
+    expect(onPage.status).toBe(400);
+    expect((onPage.body as { result: Reply }).result.error?.pots).toEqual(["Whole pots only"]);
+
+    expect((await call(wishlistAction as Fn, post(token, "/", { intent: "save", plantKey: "hoya", pots: "3", mustHave: "on" }), params)).body).toEqual({ saved: "hoya", restored: null });
+    expect((await call(plantAction as Fn, post(token, "/", { intent: "wish", pots: "2" }), { ...params, plantKey: "hoya" })).body).toEqual({ saved: true });
+    expect((await siteWishlist(site.id)).map((w) => [w.plantKey, w.mustHave, w.pots])).toEqual([["hoya", false, 2]]);
+    expect((await call(wishlistAction as Fn, post(token, "/", { intent: "remove", plantKey: "x".repeat(500) }), params)).status).toBe(400);
   });
 });
