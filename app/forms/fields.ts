@@ -30,7 +30,7 @@ export const decimal = (message: string, min = -Infinity, max = Infinity) =>
     .trim()
     .max(40, message)
     .transform((s) => (s === "" ? NaN : Number(s.replace(",", "."))))
-    .pipe(z.number().refine((n) => Number.isFinite(n) && n >= min && n <= max, message));
+    .pipe(z.number({ error: message }).refine((n) => Number.isFinite(n) && n >= min && n <= max, message));
 
 /** A whole number typed in a field, from `min` to `max`. */
 export const whole = (message: string, min: number, max: number) =>
@@ -39,7 +39,7 @@ export const whole = (message: string, min: number, max: number) =>
     .trim()
     .max(12, message)
     .transform((s) => (s === "" ? NaN : Number(s)))
-    .pipe(z.number().refine((n) => Number.isInteger(n) && n >= min && n <= max, message));
+    .pipe(z.number({ error: message }).refine((n) => Number.isInteger(n) && n >= min && n <= max, message));
 
 /** A checkbox: on when ticked, absent when not. */
 export const checkbox = () =>

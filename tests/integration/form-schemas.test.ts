@@ -11,7 +11,9 @@ import { listWaterChecks } from "~/.server/water";
 import { action as wishlistAction } from "~/routes/wishlist";
 import { action as plantAction } from "~/routes/plants.$plantKey";
 import { siteWishlist } from "~/.server/plants";
-import { makeSite, makeUser } from "./helpers";
+import { action as watchAction } from "~/routes/spots.$spotId.alerts";
+import { listRules } from "~/.server/alerts/queries";
+import { makeSite, makeSpot, makeUser } from "./helpers";
 
 type Fn = (a: never) => unknown;
 type Reply = { status?: string; initialValue?: Record<string, unknown> | null; error?: Record<string, string[] | null> | null };
@@ -132,5 +134,36 @@ describe("wishes", () => {
     expect((await call(plantAction as Fn, post(token, "/", { intent: "wish", pots: "2" }), { ...params, plantKey: "hoya" })).body).toEqual({ saved: true });
     expect((await siteWishlist(site.id)).map((w) => [w.plantKey, w.mustHave, w.pots])).toEqual([["hoya", false, 2]]);
     expect((await call(wishlistAction as Fn, post(token, "/", { intent: "remove", plantKey: "x".repeat(500) }), params)).status).toBe(400);
+  });
+});
+
+describe("watches", () => {
+  it("a threshold that is not a number and a dry-air line of 120 % are errors on their fields with the typed values kept; a change keeps the stored kind", async () => {
+    const { user, token } = await signedIn();
+    const site = await makeSite(user);
+    const spot = await makeSpot(site);
+    const params = { siteId: String(site.id), spotId: String(spot.id) };
+    const typed = { intent: "add", kind: "dry", threshold: "forty", durationMinutes: "30", hysteresis: "5", clearMinutes: "30" };
+    const bad = await call(watchAction as Fn, post(token, "/", typed), params);
+    expect(bad.status).toBe(400);
+    const reply = bad.body as { ruleId: string; kind: string; result: Reply };
+    expect([reply.ruleId, reply.kind]).toEqual(["new", "dry"]);
+    expect(reply.result.error?.threshold).toEqual(["Enter the threshold as a number."]);
+    expect(reply.result.initialValue).toMatchObject({ kind: "dry", threshold: "forty", durationMinutes: "30" });
+    const over = await call(watchAction as Fn, post(token, "/", { ...typed, threshold: "120" }), params);
+    expect((over.body as { result: Reply }).result.error?.threshold).toEqual(["Enter a percentage between 0 and 100."]);
+    const noDuration = await call(watchAction as Fn, post(token, "/", { ...typed, threshold: "40", durationMinutes: "" }), params);
+    expect((noDuration.body as { result: Reply }).result.error?.durationMinutes).toEqual(["Minutes before the alert: a whole number from 0 to 1,440."]);
+    expect(await listRules(spot.id)).toHaveLength(0);
+
+    expect((await call(watchAction as Fn, post(token, "/", { ...typed, threshold: "40,5" }), params)).status).toBe(200);
+    const [dry] = await listRules(spot.id);
+    expect([dry.kind, dry.threshold]).toEqual(["dry", 40.5]);
+    // The page cannot turn a dry-air watch into a silent one: the stored kind's limits apply.
+    const change = await call(watchAction as Fn, post(token, "/", { intent: "update", ruleId: String(dry.id), kind: "silent", threshold: "500", durationMinutes: "30", hysteresis: "5", clearMinutes: "30" }), params);
+    expect(change.status).toBe(400);
+    expect((change.body as { ruleId: string; result: Reply }).ruleId).toBe(String(dry.id));
+    expect((change.body as { result: Reply }).result.error?.threshold).toEqual(["Enter a percentage between 0 and 100."]);
+    expect((await call(watchAction as Fn, post(token, "/", { intent: "pause", ruleId: "0" }), params)).status).toBe(400);
   });
 });
