@@ -46,3 +46,7 @@ export type Glazing = (typeof GLAZINGS)[number];
 /** What a watch (an alert rule of one spot) looks out for. */
 export const WATCH_KINDS = ["cold", "heat", "dry", "condensation", "silent", "battery"] as const;
 export type WatchKind = (typeof WATCH_KINDS)[number];
+
+/** The roles an invitation can carry: an owner is made from a member, never invited. */
+export const INVITABLE_ROLES = ["carer", "mentor"] as const satisfies readonly Role[];
+export type InvitableRole = (typeof INVITABLE_ROLES)[number];

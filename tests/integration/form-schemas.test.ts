@@ -13,7 +13,10 @@ import { action as plantAction } from "~/routes/plants.$plantKey";
 import { siteWishlist } from "~/.server/plants";
 import { action as watchAction } from "~/routes/spots.$spotId.alerts";
 import { listRules } from "~/.server/alerts/queries";
-import { makeSite, makeSpot, makeUser } from "./helpers";
+import { action as membersAction } from "~/routes/members";
+import { addMember, makeSite, makeSpot, makeUser, useMailSink } from "./helpers";
+
+useMailSink();
 
 type Fn = (a: never) => unknown;
 type Reply = { status?: string; initialValue?: Record<string, unknown> | null; error?: Record<string, string[] | null> | null };
@@ -165,5 +168,27 @@ describe("watches", () => {
     expect((change.body as { ruleId: string; result: Reply }).ruleId).toBe(String(dry.id));
     expect((change.body as { result: Reply }).result.error?.threshold).toEqual(["Enter a percentage between 0 and 100."]);
     expect((await call(watchAction as Fn, post(token, "/", { intent: "pause", ruleId: "0" }), params)).status).toBe(400);
+  });
+});
+
+describe("members", () => {
+  it("an invitation to a broken address is an error on the address with the address and role typed sent back; a role that does not exist is refused beside the member", async () => {
+    const { user, token } = await signedIn();
+    const site = await makeSite(user);
+    const carer = await makeUser();
+    await addMember(site, carer, "carer");
+    const params = { siteId: String(site.id) };
+    const bad = await call(membersAction as Fn, post(token, "/", { intent: "invite", email: "someone@", role: "mentor" }), params);
+    expect(bad.status).toBe(400);
+    const reply = (bad.body as { result: Reply }).result;
+    expect(reply.error?.email).toEqual(["That is not an e-mail address"]);
+    expect(reply.initialValue).toMatchObject({ email: "someone@", role: "mentor" });
+    const owner = await call(membersAction as Fn, post(token, "/", { intent: "invite", email: "friend@example.test", role: "owner" }), params);
+    expect((owner.body as { result: Reply }).result.error?.role).toEqual(["Choose carer or mentor"]);
+
+    const role = await call(membersAction as Fn, post(token, "/", { intent: "role", userId: String(carer.id), role: "gardener" }), params);
+    expect(role).toEqual({ status: 400, body: { intent: "role", error: "Choose a role.", userId: carer.id } });
+    expect((await call(membersAction as Fn, post(token, "/", { intent: "role", userId: String(carer.id), role: "mentor" }), params)).body).toEqual({ intent: "role", ok: true, userId: carer.id });
+    expect((await call(membersAction as Fn, post(token, "/", { intent: "invite", email: " Friend@Example.test ", role: "carer" }), params)).body).toEqual({ intent: "invite", invited: "friend@example.test" });
   });
 });
