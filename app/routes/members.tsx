@@ -115,6 +115,8 @@ export default function Members({ loaderData, actionData }: Route.ComponentProps
     defaultValue: { role: "carer" },
     onValidate: ({ formData }) => parseWithZod(formData, { schema: inviteSchema }),
     shouldValidate: "onBlur",
+    // An error clears while the field is corrected, so the button does not move under the pointer.
+    shouldRevalidate: "onInput",
   });
   const inviteForm = useRef<HTMLFormElement>(null);
   useEffect(() => {

@@ -125,6 +125,8 @@ export default function PlantPage({ loaderData, actionData }: Route.ComponentPro
     defaultValue: { pots: String(wish?.pots ?? 1), mustHave: wish?.mustHave ? "on" : undefined },
     onValidate: ({ formData }) => parseWithZod(formData, { schema: plantWishSchema }),
     shouldValidate: "onBlur",
+    // An error clears while the field is corrected, so the button does not move under the pointer.
+    shouldRevalidate: "onInput",
   });
   return (
     <div className="space-y-6">

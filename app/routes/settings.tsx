@@ -57,6 +57,8 @@ export default function Settings({ loaderData, actionData }: Route.ComponentProp
     lastResult: failed("password"),
     onValidate: ({ formData }) => parseWithZod(formData, { schema: passwordSchema }),
     shouldValidate: "onBlur",
+    // An error clears while the field is corrected, so the button does not move under the pointer.
+    shouldRevalidate: "onInput",
   });
   return (
     <main className="mx-auto max-w-xl space-y-6 px-4 py-8 sm:px-6">

@@ -71,6 +71,8 @@ export default function SiteAlerts({ loaderData, actionData }: Route.ComponentPr
     defaultValue: { email: prefs.email ? "on" : undefined, kinds: prefs.kinds, quietFrom: prefs.quietFrom, quietTo: prefs.quietTo },
     onValidate: ({ formData }) => parseWithZod(formData, { schema: alertEmailsSchema }),
     shouldValidate: "onBlur",
+    // An error clears while the field is corrected, so the button does not move under the pointer.
+    shouldRevalidate: "onInput",
   });
   const worst = (k: AlertKind) => (KINDS[k].direction === "below" ? "lowest" : "highest");
 

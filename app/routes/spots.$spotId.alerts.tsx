@@ -124,6 +124,8 @@ function WatchForm({
     // The whole union: the same form's buttons also pause or remove the watch.
     onValidate: ({ formData }) => parseWithZod(formData, { schema: watchSchema }),
     shouldValidate: "onBlur",
+    // An error clears while the field is corrected, so the button does not move under the pointer.
+    shouldRevalidate: "onInput",
   });
   const word = KINDS[kind].direction === "below" ? "Below" : "Above";
   const field = (meta: (typeof fields)["threshold"], label: string, inputMode: "decimal" | "numeric") => (

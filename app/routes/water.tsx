@@ -90,6 +90,8 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
     defaultValue: { source: "tap", checkedOn: today, measure: "ppm" },
     onValidate: ({ formData }) => parseWithZod(formData, { schema: waterCheckSchema }),
     shouldValidate: "onBlur",
+    // An error clears while the field is corrected, so the button does not move under the pointer.
+    shouldRevalidate: "onInput",
   });
   const formRef = useRef<HTMLFormElement>(null);
   useEffect(() => {

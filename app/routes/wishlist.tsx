@@ -120,6 +120,8 @@ export default function Wishlist({ loaderData, actionData }: Route.ComponentProp
     defaultValue: { pots: "1" },
     onValidate: ({ formData }) => parseWithZod(formData, { schema: saveWishSchema }),
     shouldValidate: "onBlur",
+    // An error clears while the field is corrected, so the button does not move under the pointer.
+    shouldRevalidate: "onInput",
   });
   const removed = actionData && "removed" in actionData ? actionData.removed : null;
   const confirm = actionData && "confirm" in actionData ? actionData.confirm : null;
