@@ -38,7 +38,7 @@ test("the water form: a pH of 15 is refused at its field before sending, a futur
   await expect(page.getByTestId("water-sources")).not.toContainText("Water butt");
 });
 
-test("settings: a short new password is refused at its field, a wrong current one by the server, and neither comes back", async ({ page }) => {
+test("settings: a short new password is refused at its field, and a wrong current one by the server (the answer carries neither: tests/integration/form-schemas.test.ts)", async ({ page }) => {
   await signIn(page, DEMO.owner);
   await page.goto("/settings");
   const form = page.locator("form#password");
@@ -49,5 +49,4 @@ test("settings: a short new password is refused at its field, a wrong current on
   await form.getByLabel("New password (at least 10 characters)").fill("a long enough new one");
   await form.getByRole("button", { name: "Change password" }).click();
   await expect(form.getByText("Your current password is not right.")).toBeVisible();
-  await expect(form.getByLabel("Current password")).toHaveValue("");
 });
