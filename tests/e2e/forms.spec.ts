@@ -50,3 +50,16 @@ test("settings: a short new password is refused at its field, and a wrong curren
   await form.getByRole("button", { name: "Change password" }).click();
   await expect(form.getByText("Your current password is not right.")).toBeVisible();
 });
+
+test("a watch: minutes that are not a whole number are refused at that field of that watch only, and the line typed stays", async ({ page }) => {
+  await signIn(page, DEMO.owner);
+  await page.goto("/sites/1/alerts");
+  await page.getByRole("link", { name: "Bench under the pear tree" }).last().click();
+  const cold = page.getByRole("listitem", { name: "Cold snap watch" });
+  await cold.getByLabel(/^Below/).fill("7,5");
+  await cold.getByLabel("For at least (minutes)").fill("ten");
+  await cold.getByRole("button", { name: "Save" }).click();
+  await expect(cold.getByText("Minutes before the alert: a whole number from 0 to 1,440.")).toBeVisible();
+  await expect(cold.getByLabel(/^Below/)).toHaveValue("7,5");
+  await expect(page.getByRole("listitem", { name: "Silent sensor watch" }).getByRole("alert")).toHaveCount(0);
+});
