@@ -2,7 +2,7 @@
 import { z } from "zod";
 import { checkbox } from "~/forms/fields";
 
-const plantKey = z.string({ error: "Choose a plant" }).trim().min(1, "Choose a plant").max(120, "Choose a plant from the list.");
+export const plantKey = z.string({ error: "Choose a plant" }).trim().min(1, "Choose a plant").max(120, "Choose a plant from the list.");
 export const pots = z.number({ error: "Whole pots only" }).int("Whole pots only").min(1, "At least one pot").max(100, "Up to 100 pots");
 
 /** A wish's settings, as the plant page posts them (the plant is the page's). */

@@ -14,6 +14,8 @@ import { siteWishlist } from "~/.server/plants";
 import { action as watchAction } from "~/routes/spots.$spotId.alerts";
 import { listRules } from "~/.server/alerts/queries";
 import { action as membersAction } from "~/routes/members";
+import { action as spotAction } from "~/routes/spots.$spotId";
+import { siteInventory } from "~/.server/plants";
 import { addMember, makeSite, makeSpot, makeUser, useMailSink } from "./helpers";
 
 useMailSink();
@@ -190,5 +192,28 @@ describe("members", () => {
     expect(role).toEqual({ status: 400, body: { intent: "role", error: "Choose a role.", userId: carer.id } });
     expect((await call(membersAction as Fn, post(token, "/", { intent: "role", userId: String(carer.id), role: "mentor" }), params)).body).toEqual({ intent: "role", ok: true, userId: carer.id });
     expect((await call(membersAction as Fn, post(token, "/", { intent: "invite", email: " Friend@Example.test ", role: "carer" }), params)).body).toEqual({ intent: "invite", invited: "friend@example.test" });
+  });
+});
+
+describe("plants in a spot", () => {
+  it("a nickname of 61 characters is an error on it with the plant and pots typed sent back, a NUL in one is dropped, and a move without a spot is refused", async () => {
+    const { user, token } = await signedIn();
+    const site = await makeSite(user);
+    const spot = await makeSpot(site);
+    const params = { siteId: String(site.id), spotId: String(spot.id) };
+    const bad = await call(spotAction as Fn, post(token, "/", { intent: "plant-add", plantKey: "hoya", nickname: "n".repeat(61), pots: "3" }), params);
+    expect(bad.status).toBe(400);
+    const reply = (bad.body as { plantResult: Reply }).plantResult;
+    expect(reply.error?.nickname).toEqual(["Keep the name under 60 characters"]);
+    expect(reply.initialValue).toMatchObject({ plantKey: "hoya", pots: "3" });
+    const unknown = await call(spotAction as Fn, post(token, "/", { intent: "plant-add", plantKey: "no-such-plant", pots: "1" }), params);
+    expect((unknown.body as { plantResult: Reply }).plantResult.error?.plantKey).toEqual(["Choose a plant from the list."]);
+    expect(await siteInventory(site.id)).toHaveLength(0);
+
+    expect((await call(spotAction as Fn, post(token, "/", { intent: "plant-add", plantKey: "hoya", nickname: "the pink\u0000 one", pots: "3" }), params)).status).toBe(200);
+    const [row] = await siteInventory(site.id);
+    expect([row.plantKey, row.nickname, row.pots]).toEqual(["hoya", "the pink one", 3]);
+    const move = await call(spotAction as Fn, post(token, "/", { intent: "plant-move", id: String(row.id), toSpotId: "" }), params);
+    expect(move).toEqual({ status: 400, body: { plantError: "Choose the spot to move it to." } });
   });
 });
