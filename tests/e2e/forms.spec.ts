@@ -63,3 +63,24 @@ test("a watch: minutes that are not a whole number are refused at that field of 
   await expect(cold.getByLabel(/^Below/)).toHaveValue("7,5");
   await expect(page.getByRole("listitem", { name: "Silent sensor watch" }).getByRole("alert")).toHaveCount(0);
 });
+
+test("adding a plant to a spot: 0 pots is refused at the field with the name typed kept, then it goes in", async ({ page }) => {
+  await signIn(page, DEMO.owner);
+  await page.goto("/sites/1/spots/1");
+  const inventory = page.getByTestId("inventory");
+  await inventory.getByText("Add a plant here").click();
+  const form = inventory.locator("form#plant-add");
+  await form.getByLabel("Plant").selectOption("hoya");
+  await form.getByLabel("Its name (optional)").fill("Form check hoya");
+  await form.getByLabel("Pots").fill("0");
+  await form.getByRole("button", { name: "Add here" }).click();
+  await expect(form.getByText("At least one pot")).toBeVisible();
+  await expect(form.getByLabel("Its name (optional)")).toHaveValue("Form check hoya");
+  await form.getByLabel("Pots").fill("2");
+  await form.getByRole("button", { name: "Add here" }).click();
+  const added = inventory.getByRole("listitem").filter({ hasText: "Form check hoya" });
+  await expect(added).toContainText("2 pots");
+  // Leave the demo as it was for the specs after this one.
+  await added.getByRole("button", { name: "Remove Form check hoya from this spot" }).click();
+  await expect(added).toHaveCount(0);
+});
