@@ -6,7 +6,7 @@ import { db } from "~/.server/db";
 import { ensureColdWatch } from "~/.server/watches";
 import { auditLog, customPlants, spotPlants, spots, wishlist } from "~/db/schema.server";
 import { PLANT_LIBRARY, type PlantProfile } from "~/domain/plants/library";
-import { storedProfileSchema } from "~/lib/plant-form";
+import { storedProfileSchema } from "~/forms/plant";
 import type { InventoryChange } from "~/forms/inventory";
 
 export type SitePlant = PlantProfile & { own: boolean; basedOn: string | null };

@@ -4,7 +4,7 @@ import { requireSiteRole } from "~/.server/auth";
 import { readForm } from "~/.server/ids";
 import { freeOwnKey, saveCustomProfile, sitePlants } from "~/.server/plants";
 import { PLANT_LIBRARY } from "~/domain/plants/library";
-import { plantFormSchema, profileFromForm, slugOf } from "~/lib/plant-form";
+import { plantFormSchema, profileFromForm, slugOf } from "~/forms/plant";
 import { deltaFromUnit, deltaToUnit, fromUnit, toUnit } from "~/lib/units";
 import type { Route } from "./+types/plants.new";
 
