@@ -10,7 +10,7 @@ import { z } from "zod";
 import { hashPassword } from "~/.server/auth";
 import { db } from "~/.server/db";
 import { users } from "~/db/schema.server";
-import { MAX_PASSWORD_LENGTH } from "~/lib/forms";
+import { MAX_PASSWORD_LENGTH } from "~/forms/auth";
 
 export type AdminCreated = { email: string; created: boolean; generatedPassword: string | null };
 

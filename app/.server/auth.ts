@@ -9,7 +9,8 @@ import { publicUrl } from "~/.server/env";
 import { paramId } from "~/.server/ids";
 import { requestScope } from "~/.server/request-scope";
 import { randomToken, sha256Hex } from "~/.server/secrets";
-import { MAX_PASSWORD_LENGTH } from "~/lib/forms";
+import { MAX_PASSWORD_LENGTH } from "~/forms/auth";
+import { ROLES } from "~/domain/vocabulary";
 import { memberships, sessions, signInFailures, users, type Role, type User } from "~/db/schema.server";
 
 // OWASP Password Storage Cheat Sheet, argon2id minimum: m = 19 MiB, t = 2, p = 1.
@@ -151,7 +152,7 @@ export function notFound(): never {
   throw data("Not found", { status: 404 });
 }
 
-export const ALL_ROLES: Role[] = ["owner", "carer", "mentor"];
+export const ALL_ROLES: Role[] = [...ROLES];
 export const WRITERS: Role[] = ["owner", "carer"];
 
 // A non-member gets 404 for anything in a site, so that site ids reveal nothing; a member whose

@@ -4,8 +4,9 @@
 // (and the other C0 control characters a keyboard cannot type) before it is stored.
 import { data } from "react-router";
 import { z } from "zod";
+import { cleanText, INT4_MAX } from "~/forms/fields";
 
-export const INT4_MAX = 2_147_483_647;
+export { cleanText, INT4_MAX };
 
 const idSchema = z
   .string()
@@ -35,12 +36,6 @@ export function formId(form: FormData | URLSearchParams, name: string, message =
   return id;
 }
 
-// NUL and the C0 controls other than tab, line feed and carriage return; DEL too.
-const CONTROL = /[\u0000-\u0008\u000B\u000C\u000E-\u001F\u007F]/g;
-
-/** Free text (notes, names) without the control characters nobody types, NUL above all. */
-export const cleanText = (s: string) => s.replace(CONTROL, "");
-
 /** One line of text for a mail header or a subject: no line breaks or controls, at most `max` characters. */
 export function oneLine(s: string, max = 60) {
   const flat = s.replace(/[\u0000-\u001F\u007F\u2028\u2029]+/g, " ").replace(/\s+/g, " ").trim();
@@ -54,4 +49,13 @@ export async function readForm(request: Request): Promise<FormData> {
   } catch {
     throw data("The form could not be read: send it again from the page.", { status: 400 });
   }
+}
+
+/**
+ * A form that failed on fields the page writes itself (an id, the intent) came from a stale or
+ * altered page, where a field error would show nowhere: a 400 with the first message.
+ */
+export function refuseForm(error: Record<string, string[] | null> | null | undefined, fallback = "Unknown action"): never {
+  const first = Object.values(error ?? {}).find((m) => m?.length)?.[0];
+  throw data(first ?? fallback, { status: 400 });
 }

@@ -9,6 +9,9 @@ import { sendMail } from "~/.server/mail";
 import { oneLine } from "~/.server/ids";
 import { randomToken, sha256Hex } from "~/.server/secrets";
 import { auditLog, invitations, memberships, sites, users, type Role } from "~/db/schema.server";
+import { INVITABLE_ROLES, type InvitableRole } from "~/domain/vocabulary";
+
+export { INVITABLE_ROLES, type InvitableRole };
 
 /** The site's members, owners first. */
 export async function listMembers(siteId: number) {
@@ -21,8 +24,6 @@ export async function listMembers(siteId: number) {
 }
 
 export const INVITATION_DAYS = 7;
-export const INVITABLE_ROLES = ["carer", "mentor"] as const satisfies readonly Role[];
-export type InvitableRole = (typeof INVITABLE_ROLES)[number];
 
 export class MembershipError extends Error {}
 /** Too many invitations in the window; `retryAt` is when the oldest counted one leaves it. */

@@ -3,12 +3,12 @@
 import { and, asc, eq, inArray, sql } from "drizzle-orm";
 import { notFound } from "~/.server/auth";
 import { db } from "~/.server/db";
-import { cleanText, toId } from "~/.server/ids";
 import { ensureColdWatch } from "~/.server/watches";
 import { auditLog, customPlants, spotPlants, spots, wishlist } from "~/db/schema.server";
 import { PLANT_LIBRARY, type PlantProfile } from "~/domain/plants/library";
 import { z } from "zod";
 import { storedProfileSchema } from "~/forms/plant";
+import type { InventoryChange } from "~/forms/inventory";
 
 export type SitePlant = PlantProfile & { own: boolean; basedOn: string | null };
 
@@ -157,47 +157,23 @@ export async function removeWish(siteId: number, actorId: number, plantKey: stri
   });
 }
 
-const potsSchema = z.coerce.number().int("Whole pots only").min(1, "At least one pot").max(100, "Up to 100 pots");
-
-/** A wish as the wishlist and plant pages post it: must-have and pots; the plant from the form or the page. */
-const wishSchema = z.object({ plantKey: z.string().min(1, "Choose a plant"), mustHave: z.literal("on").optional(), pots: potsSchema });
-
-export function parseWish(form: FormData, plantKey: string) {
-  return wishSchema.safeParse({ plantKey, mustHave: form.get("mustHave") ?? undefined, pots: form.get("pots") || 1 });
-}
-
-const addSchema = z.object({
-  plantKey: z.string().min(1).max(120),
-  nickname: z.string().transform(cleanText).pipe(z.string().trim().max(60, "Keep the name under 60 characters")).default(""),
-  pots: potsSchema.default(1),
-});
-
 /**
- * The spot page's inventory intents (plant-add, plant-move, plant-remove); null for any other
- * intent. The caller has checked WRITERS and that the spot belongs to the site.
+ * The spot page's inventory changes (plant-add, plant-move, plant-remove), parsed with
+ * app/forms/inventory.ts. The caller has checked WRITERS and that the spot belongs to the site.
  */
-export async function inventoryAction(form: FormData, ctx: { siteId: number; spotId: number; actorId: number }) {
-  const intent = form.get("intent");
-  if (intent === "plant-add") {
-    const parsed = addSchema.safeParse({ plantKey: form.get("plantKey") ?? "", nickname: form.get("nickname") ?? "", pots: form.get("pots") || 1 });
-    if (!parsed.success) return { status: 400 as const, error: parsed.error.issues[0]?.message ?? "Check the plant and pots." };
+export async function inventoryAction(change: InventoryChange, ctx: { siteId: number; spotId: number; actorId: number }) {
+  if (change.intent === "plant-add") {
     const plants = await sitePlants(ctx.siteId);
-    if (!plants.some((p) => p.key === parsed.data.plantKey)) return { status: 400 as const, error: "Choose a plant from the list." };
-    await addToSpot(ctx.siteId, ctx.actorId, ctx.spotId, parsed.data);
+    if (!plants.some((p) => p.key === change.plantKey)) return { status: 400 as const, error: "Choose a plant from the list." };
+    await addToSpot(ctx.siteId, ctx.actorId, ctx.spotId, { plantKey: change.plantKey, nickname: change.nickname, pots: change.pots });
     return { status: 200 as const, error: null };
   }
-  if (intent === "plant-move" || intent === "plant-remove") {
-    const id = toId(form.get("id"));
-    if (id === null) return { status: 400 as const, error: "Choose a plant." };
-    if (intent === "plant-remove") {
-      await removeFromSpot(ctx.siteId, ctx.actorId, id);
-      return { status: 200 as const, error: null };
-    }
-    const to = toId(form.get("toSpotId"));
-    const [target] = to !== null ? await db().select({ id: spots.id }).from(spots).where(and(eq(spots.id, to), eq(spots.siteId, ctx.siteId))) : [];
-    if (!target) return { status: 400 as const, error: "Choose the spot to move it to." };
-    await moveToSpot(ctx.siteId, ctx.actorId, id, target.id);
+  if (change.intent === "plant-remove") {
+    await removeFromSpot(ctx.siteId, ctx.actorId, change.id);
     return { status: 200 as const, error: null };
   }
-  return null;
+  const [target] = await db().select({ id: spots.id }).from(spots).where(and(eq(spots.id, change.toSpotId), eq(spots.siteId, ctx.siteId)));
+  if (!target) return { status: 400 as const, error: "Choose the spot to move it to." };
+  await moveToSpot(ctx.siteId, ctx.actorId, change.id, target.id);
+  return { status: 200 as const, error: null };
 }

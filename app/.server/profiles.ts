@@ -8,7 +8,7 @@ import type { SpotWindow } from "~/domain/fit/window-light";
 import type { GlassContext } from "~/domain/fit/cold-glass";
 import { GLAZING_U, type Glazing } from "~/domain/climate/glass";
 import { PLANT_LIBRARY, type PlantProfile } from "~/domain/plants/library";
-import type { LightSource } from "~/domain/climate/light";
+import type { LightSource } from "~/domain/vocabulary";
 import { MONTH_NAMES, seasonProfile } from "~/domain/season/profile";
 import { encodeStrip, monthStrip } from "~/domain/fit/month-strip";
 import type { Site } from "~/db/schema.server";

@@ -5,7 +5,7 @@
 import { pool } from "~/.server/db";
 import { loadRollups } from "~/.server/rollups/read";
 import { weatherStatus, loadHours, type WeatherStatus } from "~/.server/weather/store";
-import type { SpotFacing } from "~/domain/climate/sun";
+import type { SpotFacing } from "~/domain/vocabulary";
 import { combineMonths } from "~/domain/projection/combine";
 import { projectYear, type ProjectedMonth } from "~/domain/projection/project";
 import { forecastSpot, type ForecastHour, type ForecastNight } from "~/domain/projection/forecast";

@@ -9,8 +9,7 @@ import { cleanText, paramId } from "~/.server/ids";
 import { invalidateSensorCache } from "~/.server/ingest/sensor-cache";
 import { ensureColdWatch } from "~/.server/watches";
 import { auditLog, placements, spots, type Spot } from "~/db/schema.server";
-import type { LightSource } from "~/domain/climate/light";
-import type { FACINGS, Glazing } from "~/lib/forms";
+import type { Glazing, LightSource, SpotFacing } from "~/domain/vocabulary";
 
 export async function listSpots(siteId: number) {
   return db().select().from(spots).where(eq(spots.siteId, siteId)).orderBy(asc(spots.name));
@@ -31,7 +30,7 @@ export async function getSpot(siteId: number, spotId: number | string | undefine
 export type SpotValues = {
   name: string;
   indoor: boolean;
-  facing: (typeof FACINGS)[number];
+  facing: SpotFacing;
   capacity: number;
   notes: string;
   lightSource?: LightSource;

@@ -1,5 +1,9 @@
 // The plants standing in a spot now: add, move to another spot, remove (owner and carer).
+import { getFormProps, getInputProps, getSelectProps, useForm, type SubmissionResult } from "@conform-to/react";
+import { parseWithZod } from "@conform-to/zod/v4";
 import { Form } from "react-router";
+import { FieldError, FormErrors } from "~/components/field";
+import { addPlantSchema } from "~/forms/inventory";
 import { VerdictBadge } from "~/components/season";
 import { PlantIcon } from "~/components/icons";
 import { formatTemp, type TempUnit } from "~/domain/units";
@@ -15,6 +19,7 @@ export function Inventory({
   unit,
   capacity,
   error,
+  lastResult,
   busy,
 }: {
   standing: StandingPlant[];
@@ -25,9 +30,20 @@ export function Inventory({
   unit: TempUnit;
   capacity: number;
   error?: string;
+  /** The server's answer to a refused add, with what was typed. */
+  lastResult?: SubmissionResult<string[]>;
   busy: boolean;
 }) {
   const pots = standing.reduce((s, p) => s + p.pots, 0);
+  const [addForm, addFields] = useForm({
+    id: "plant-add",
+    lastResult,
+    defaultValue: { pots: "1" },
+    onValidate: ({ formData }) => parseWithZod(formData, { schema: addPlantSchema }),
+    shouldValidate: "onBlur",
+    // An error clears while the field is corrected, so the button does not move under the pointer.
+    shouldRevalidate: "onInput",
+  });
   return (
     <section className="card space-y-4" data-testid="inventory">
       <div>
@@ -90,15 +106,15 @@ export function Inventory({
         </ul>
       ) : null}
       {canEdit ? (
-        <details open={Boolean(error)} className="group">
+        <details open={Boolean(error || lastResult)} className="group">
         <summary className="btn-quiet cursor-pointer list-none">Add a plant here</summary>
-        <Form method="post" className="mt-3 grid gap-3 sm:grid-cols-[2fr_2fr_1fr_auto] sm:items-end">
+        <Form method="post" className="mt-3 grid gap-3 sm:grid-cols-[2fr_2fr_1fr_auto] sm:items-end" {...getFormProps(addForm)}>
           <input type="hidden" name="intent" value="plant-add" />
           <div>
-            <label className="label" htmlFor="add-plantKey">
+            <label className="label" htmlFor={addFields.plantKey.id}>
               Plant
             </label>
-            <select id="add-plantKey" name="plantKey" className="field" required>
+            <select className="field" {...getSelectProps(addFields.plantKey)}>
               {plants.map((p) => (
                 <option key={p.key} value={p.key}>
                   {p.name}
@@ -107,25 +123,31 @@ export function Inventory({
             </select>
           </div>
           <div>
-            <label className="label" htmlFor="add-nickname">
+            <label className="label" htmlFor={addFields.nickname.id}>
               Its name (optional)
             </label>
-            <input id="add-nickname" name="nickname" className="field" maxLength={60} placeholder="e.g. the pink one from the fair" />
+            <input className="field" maxLength={60} placeholder="e.g. the pink one from the fair" {...getInputProps(addFields.nickname, { type: "text" })} />
           </div>
           <div>
-            <label className="label" htmlFor="add-pots">
+            <label className="label" htmlFor={addFields.pots.id}>
               Pots
             </label>
-            <input id="add-pots" name="pots" type="number" min={1} max={100} defaultValue={1} className="field" />
+            <input min={1} max={100} className="field" {...getInputProps(addFields.pots, { type: "number" })} />
           </div>
           <button className="btn" disabled={busy}>
             Add here
           </button>
-          {error ? (
-            <p className="error sm:col-span-4" role="alert">
-              {error}
-            </p>
-          ) : null}
+          <div className="sm:col-span-4">
+            <FieldError meta={addFields.plantKey} />
+            <FieldError meta={addFields.nickname} />
+            <FieldError meta={addFields.pots} />
+            <FormErrors errors={addForm.errors} />
+            {error ? (
+              <p className="error" role="alert">
+                {error}
+              </p>
+            ) : null}
+          </div>
         </Form>
         </details>
       ) : null}

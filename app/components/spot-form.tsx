@@ -1,8 +1,8 @@
 import { getFormProps, useForm, type SubmissionResult } from "@conform-to/react";
 import { Form, useNavigation } from "react-router";
 import { FormErrors, SelectField, TextAreaField, TextField } from "~/components/field";
-import { LIGHT_SOURCE_LABELS, LIGHT_SOURCES } from "~/domain/climate/light";
-import { FACINGS, GLAZINGS, type Glazing } from "~/lib/forms";
+import { LIGHT_SOURCE_LABELS } from "~/domain/climate/light";
+import { FACING_WORDS, GLAZINGS, LIGHT_SOURCES, SPOT_FACINGS, type Glazing, type SpotFacing } from "~/domain/vocabulary";
 
 const glazingLabel: Record<Glazing, string> = {
   single: "Single glazing",
@@ -12,17 +12,7 @@ const glazingLabel: Record<Glazing, string> = {
   none: "No glass (open window or frame)",
 };
 
-const facingLabel: Record<(typeof FACINGS)[number], string> = {
-  N: "North",
-  NE: "North-east",
-  E: "East",
-  SE: "South-east",
-  S: "South",
-  SW: "South-west",
-  W: "West",
-  NW: "North-west",
-  none: "No window / not by a window",
-};
+const facingLabel = (f: SpotFacing) => (f === "none" ? "No window / not by a window" : FACING_WORDS[f].charAt(0).toUpperCase() + FACING_WORDS[f].slice(1));
 
 export function SpotForm({
   lastResult,
@@ -56,7 +46,7 @@ export function SpotForm({
         <SelectField
           meta={fields.facing}
           label="Window facing"
-          options={FACINGS.map((f) => ({ value: f, label: facingLabel[f] }))}
+          options={SPOT_FACINGS.map((f) => ({ value: f, label: facingLabel(f) }))}
           hint="The way the glass looks out; it sets when direct sun can reach the spot."
         />
       </div>

@@ -20,6 +20,8 @@ import {
   timestamp,
   uniqueIndex,
 } from "drizzle-orm/pg-core";
+// Relative: drizzle-kit loads this file without the app's path aliases.
+import { GLAZINGS, LIGHT_SOURCES, ROLES, SPOT_FACINGS, TEMPERATURE_UNITS, WATCH_KINDS } from "../domain/vocabulary";
 
 const createdAt = () => timestamp({ withTimezone: true }).notNull().defaultNow();
 
@@ -29,7 +31,7 @@ export const users = pgTable("users", {
   name: text().notNull(),
   passwordHash: text().notNull(),
   isAdmin: boolean().notNull().default(false),
-  temperatureUnit: text({ enum: ["C", "F"] }).notNull().default("C"),
+  temperatureUnit: text({ enum: TEMPERATURE_UNITS }).notNull().default("C"),
   createdAt: createdAt(),
 });
 
@@ -67,7 +69,7 @@ export const sites = pgTable("sites", {
   createdAt: createdAt(),
 });
 
-export const roleEnum = pgEnum("site_role", ["owner", "carer", "mentor"]);
+export const roleEnum = pgEnum("site_role", ROLES);
 
 export const memberships = pgTable(
   "memberships",
@@ -84,12 +86,12 @@ export const memberships = pgTable(
   (t) => [primaryKey({ columns: [t.userId, t.siteId] }), index().on(t.siteId)],
 );
 
-export const facingEnum = pgEnum("window_facing", ["N", "NE", "E", "SE", "S", "SW", "W", "NW", "none"]);
+export const facingEnum = pgEnum("window_facing", SPOT_FACINGS);
 
 /** What lights a spot: picks the lux → PPFD factor of its DLI (app/domain/climate/light.ts). */
-export const lightSourceEnum = pgEnum("light_source", ["sun", "led", "fluorescent", "mixed"]);
+export const lightSourceEnum = pgEnum("light_source", LIGHT_SOURCES);
 /** A windowsill's glazing, for the cold-glass rule; null when not given. */
-export const glazingEnum = pgEnum("glazing", ["single", "double", "old_double", "triple", "none"]);
+export const glazingEnum = pgEnum("glazing", GLAZINGS);
 
 export const spots = pgTable(
   "spots",
@@ -272,14 +274,7 @@ export const wishlist = pgTable(
   (t) => [uniqueIndex().on(t.siteId, t.plantKey)],
 );
 
-export const alertKindEnum = pgEnum("alert_kind", [
-  "cold",
-  "heat",
-  "dry",
-  "condensation",
-  "silent",
-  "battery",
-]);
+export const alertKindEnum = pgEnum("alert_kind", WATCH_KINDS);
 
 // A watch: what the grower set on a spot (kind, threshold, how long) and its streaming state.
 export const watches = pgTable(

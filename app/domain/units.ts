@@ -1,7 +1,8 @@
 // Display units. Values are stored in °C; the user's preference only changes what is shown.
 import { cToF, fToC } from "~/domain/climate/psychro";
 
-export type TempUnit = "C" | "F";
+import type { TempUnit } from "~/domain/vocabulary";
+export type { TempUnit };
 
 export const toUnit = (c: number, unit: TempUnit) => (unit === "F" ? cToF(c) : c);
 export const fromUnit = (v: number, unit: TempUnit) => (unit === "F" ? fToC(v) : v);

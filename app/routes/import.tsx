@@ -1,3 +1,5 @@
+import { getFormProps, useForm } from "@conform-to/react";
+import { parseWithZod } from "@conform-to/zod/v4";
 import { data, useFetcher } from "react-router";
 import { useState } from "react";
 import { requireSiteRole, WRITERS } from "~/.server/auth";
@@ -6,8 +8,9 @@ import { auditCsvImport, csvSlot, importCsv, previewCsv } from "~/.server/ingest
 import { CsvLimitError, isCsvFileError, readCsvHead, type CsvHead } from "~/.server/ingest/csv-file";
 import { getSensor, listSensors } from "~/.server/sensors.server";
 import { getSite } from "~/.server/sites";
-import { CSV_MAX_BYTES, CSV_MAX_ROWS, DATE_FORMATS, guessMapping, type CsvMapping, type DateFormat } from "~/domain/ingest/csv";
-import { isTimeZone } from "~/lib/forms";
+import { CSV_MAX_BYTES, CSV_MAX_ROWS, guessMapping, type CsvMapping } from "~/domain/ingest/csv";
+import { FieldError, FormErrors } from "~/components/field";
+import { CSV_COLUMNS, csvImportSchema } from "~/forms/csv-import";
 import { describeDstChange, formatInZone } from "~/lib/time";
 import type { Route } from "./+types/import";
 
@@ -37,13 +40,14 @@ export async function action({ request, params }: Route.ActionArgs) {
   const { siteId, user } = await requireSiteRole(request, params.siteId, WRITERS);
   const site = await getSite(siteId);
   // The body is already bounded by the web adapter (IMPORT_MAX_BYTES) before this runs.
-  const form = await readForm(request);
-  const file = form.get("file");
-  if (!(file instanceof File) || file.size === 0) return data({ error: "Choose a CSV file." }, { status: 400 });
-  const sensor = await getSensor(siteId, String(form.get("sensorId") ?? ""));
-  const timeZone = String(form.get("timeZone") || site.timeZone);
-  if (!isTimeZone(timeZone)) return data({ error: "Choose a time zone from the list." }, { status: 400 });
-  const dateFormat = (DATE_FORMATS as readonly string[]).includes(String(form.get("dateFormat"))) ? (String(form.get("dateFormat")) as DateFormat) : "iso";
+  const submission = parseWithZod(await readForm(request), { schema: csvImportSchema });
+  if (submission.status !== "success") return data({ result: submission.reply() }, { status: 400 });
+  const form = submission.value;
+  const sensor = await getSensor(siteId, form.sensorId);
+  const timeZone = form.timeZone ?? site.timeZone;
+  const dateFormat = form.dateFormat;
+  const file = form.file;
+  if (file.size === 0) return data({ error: "Choose a CSV file." }, { status: 400 });
   const bytes = new Uint8Array(await file.arrayBuffer());
   let head: CsvHead;
   try {
@@ -54,19 +58,15 @@ export async function action({ request, params }: Route.ActionArgs) {
   }
   if (head.headers.length === 0) return data({ error: "The file has no rows." }, { status: 400 });
   const guess = guessMapping(head.headers);
-  const col = (name: string, fallback: number | null) => {
-    const v = form.get(name);
-    if (v === null) return fallback;
-    if (v === "") return null;
-    const n = Number(v);
-    return Number.isInteger(n) && n >= 0 && n < head.headers.length ? n : fallback;
-  };
+  // A column the file does not have (a preview of another file) falls back to the guess.
+  const col = (v: (typeof form)[(typeof CSV_COLUMNS)[number]], fallback: number | null) =>
+    v === undefined ? fallback : v === "none" ? null : v < head.headers.length ? v : fallback;
   const mapping: CsvMapping = {
-    timestamp: col("timestamp", guess.timestamp) ?? guess.timestamp,
-    temperature: col("temperature", guess.temperature),
-    humidity: col("humidity", guess.humidity),
-    lux: col("lux", guess.lux),
-    unit: form.get("unit") === "F" ? "F" : form.get("unit") === "C" ? "C" : guess.unit,
+    timestamp: col(form.timestamp, guess.timestamp) ?? guess.timestamp,
+    temperature: col(form.temperature, guess.temperature),
+    humidity: col(form.humidity, guess.humidity),
+    lux: col(form.lux, guess.lux),
+    unit: form.unit ?? guess.unit,
     dateFormat,
     timeZone,
   };
@@ -75,7 +75,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   if (!release) return data({ error: "Another preview or import is running; try again when it has finished." }, { status: 429 });
   try {
     const sensorPage = `/sites/${siteId}/sensors/${sensor.id}#placements`;
-    if (form.get("intent") === "import") {
+    if (form.intent === "import") {
       const result = await importCsv(bytes, mapping, sensor.id, { head });
       // An import stopped by the database going away still gets its answer, audited or not.
       await auditCsvImport({ siteId, actorId: user.id, sensorId: sensor.id, sensorName: sensor.name, result }).catch((err) =>
@@ -128,18 +128,24 @@ export default function Import({ loaderData }: Route.ComponentProps) {
   const imported = result && "imported" in result ? result.imported : undefined;
   const busy = fetcher.state !== "idle";
   const importing = busy && fetcher.formData?.get("intent") === "import";
+  const [form, fields] = useForm({
+    id: "csv-import",
+    lastResult: result && "result" in result ? result.result : undefined,
+    onValidate: ({ formData }) => parseWithZod(formData, { schema: csvImportSchema }),
+  });
   return (
     <div className="max-w-4xl space-y-6">
       <p className="text-muted">
         Many loggers export CSV. Up to {CSV_MAX_BYTES / 1024 / 1024} MB and {CSV_MAX_ROWS.toLocaleString("en")} rows per file; a file imported twice
         adds nothing the second time.
       </p>
-      <fetcher.Form method="post" encType="multipart/form-data" className="card space-y-5" key={key}>
+      <fetcher.Form method="post" encType="multipart/form-data" className="card space-y-5" key={key} {...getFormProps(form)}>
         <div>
           <label className="label" htmlFor="file">
             CSV file
           </label>
           <input id="file" name="file" type="file" accept=".csv,.txt,text/csv" className="field" required />
+          <FieldError meta={fields.file} />
         </div>
         <div className="grid gap-4 sm:grid-cols-2">
           <div>
@@ -155,6 +161,7 @@ export default function Import({ loaderData }: Route.ComponentProps) {
               ))}
             </select>
             <p className="hint">Readings go to the spot the sensor was in at each timestamp.</p>
+            <FieldError meta={fields.sensorId} />
           </div>
           <div>
             <label className="label" htmlFor="dateFormat">
@@ -166,6 +173,7 @@ export default function Import({ loaderData }: Route.ComponentProps) {
               <option value="mdy">03/01/2026 6:30 PM (month first)</option>
               <option value="epoch">Seconds since 1970</option>
             </select>
+            <FieldError meta={fields.dateFormat} />
           </div>
           <div>
             <label className="label" htmlFor="timeZone">
@@ -178,6 +186,7 @@ export default function Import({ loaderData }: Route.ComponentProps) {
                 </option>
               ))}
             </select>
+            <FieldError meta={fields.timeZone} />
           </div>
           <div>
             <label className="label" htmlFor="unit">
@@ -188,28 +197,31 @@ export default function Import({ loaderData }: Route.ComponentProps) {
               <option value="C">°C</option>
               <option value="F">°F</option>
             </select>
+            <FieldError meta={fields.unit} />
           </div>
         </div>
         {preview ? (
           <fieldset className="grid gap-4 sm:grid-cols-4">
             <legend className="label mb-2">Columns</legend>
-            {(["timestamp", "temperature", "humidity", "lux"] as const).map((c) => (
+            {CSV_COLUMNS.map((c) => (
               <div key={c}>
                 <label className="text-sm text-muted" htmlFor={`col-${c}`}>
                   {c === "lux" ? "light (lux)" : c}
                 </label>
-                <select id={`col-${c}`} name={c} className="field" defaultValue={preview.mapping[c] ?? ""}>
-                  {c !== "timestamp" ? <option value="">none</option> : null}
+                <select id={`col-${c}`} name={c} className="field" defaultValue={preview.mapping[c] ?? "none"}>
+                  {c !== "timestamp" ? <option value="none">none</option> : null}
                   {preview.headers.map((h, i) => (
                     <option key={i} value={i}>
                       {h}
                     </option>
                   ))}
                 </select>
+                <FieldError meta={fields[c]} />
               </div>
             ))}
           </fieldset>
         ) : null}
+        <FormErrors errors={form.errors} />
         {result && "error" in result ? (
           <p className="error" role="alert">
             {result.error}

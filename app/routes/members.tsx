@@ -1,12 +1,26 @@
 import { useEffect, useRef } from "react";
+import { getFormProps, getInputProps, useForm } from "@conform-to/react";
+import { parseWithZod } from "@conform-to/zod/v4";
 import { data, Form, redirect, useNavigation } from "react-router";
-import { z } from "zod";
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
-import { changeRole, INVITABLE_ROLES, InvitationLimitError, INVITES_PER_SITE_PER_HOUR, inviteMember, listInvitations, MembershipError, recentChanges, removeMember, revokeInvitation, listMembers } from "~/.server/members";
-import { cleanText, formId, toId, readForm } from "~/.server/ids";
+import {
+  changeRole,
+  InvitationLimitError,
+  INVITES_PER_SITE_PER_HOUR,
+  inviteMember,
+  listInvitations,
+  listMembers,
+  MembershipError,
+  recentChanges,
+  removeMember,
+  revokeInvitation,
+} from "~/.server/members";
+import { readForm, refuseForm, toId } from "~/.server/ids";
 import { useNow } from "~/components/use-now";
 import { describeChange, type ChangeDetail } from "~/domain/sharing/changes";
 import { formatInZone, timeAgo } from "~/lib/time";
+import { FieldError, FormErrors } from "~/components/field";
+import { inviteSchema, membersSchema } from "~/forms/members";
 import type { Route } from "./+types/members";
 
 export const meta: Route.MetaFunction = () => [{ title: "People · Nichewise" }];
@@ -29,61 +43,50 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   };
 }
 
-const inviteSchema = z.object({
-  email: z.string().trim().toLowerCase().pipe(z.email()),
-  role: z.enum(INVITABLE_ROLES),
-});
-
 export async function action({ request, params }: Route.ActionArgs) {
   // Members only, before the body is read; the role the intent needs is checked below.
   await requireSiteRole(request, params.siteId, ALL_ROLES);
-  const form = await readForm(request);
-  const intent = String(form.get("intent") ?? "");
+  const submission = parseWithZod(await readForm(request), { schema: membersSchema });
+  const intent = submission.payload.intent;
   const { siteId, user } = await requireSiteRole(request, params.siteId, intent === "leave" ? ALL_ROLES : ["owner"]);
+  if (submission.status !== "success") {
+    if (intent === "invite") return data({ intent, result: submission.reply() }, { status: 400 });
+    if (intent === "role" || intent === "remove") {
+      const error = Object.values(submission.error ?? {}).flat()[0] ?? "Choose a member.";
+      return data({ intent, error, userId: toId(submission.payload.userId) }, { status: 400 });
+    }
+    refuseForm(submission.error);
+  }
+  const form = submission.value;
   try {
-    if (intent === "invite") {
-      // Not cleaned: an address with a control character in it is refused by the schema, not changed.
-      const email = String(form.get("email") ?? "").slice(0, 320);
-      const parsed = inviteSchema.safeParse({ email, role: form.get("role") });
-      if (!parsed.success) {
-        return data({ intent, error: "Enter an e-mail address and choose carer or mentor.", email, role: String(form.get("role") ?? "").slice(0, 20) }, { status: 400 });
-      }
-      await inviteMember({ siteId, actor: user, email: parsed.data.email, role: parsed.data.role });
-      return { intent, invited: parsed.data.email };
-    }
-    if (intent === "revoke") {
-      await revokeInvitation({ siteId, actorId: user.id, invitationId: formId(form, "invitationId", "Choose an invitation; reload the page and try again.") });
-      return { intent, ok: true };
-    }
-    if (intent === "role") {
-      const parsed = z.object({ role: z.enum(["owner", "carer", "mentor"]) }).safeParse({ role: form.get("role") });
-      const userId = toId(form.get("userId"));
-      if (!parsed.success || userId === null) return data({ intent, error: "Choose a role." }, { status: 400 });
-      await changeRole({ siteId, actorId: user.id, userId, role: parsed.data.role });
-      return { intent, ok: true, userId };
-    }
-    if (intent === "remove") {
-      const userId = toId(form.get("userId"));
-      if (userId === null) return data({ intent, error: "Choose a member." }, { status: 400 });
-      await removeMember({ siteId, actorId: user.id, userId });
-      if (userId === user.id) throw redirect("/");
-      return { intent, ok: true, userId };
-    }
-    if (intent === "leave") {
-      await removeMember({ siteId, actorId: user.id, userId: user.id });
-      throw redirect("/");
+    switch (form.intent) {
+      case "invite":
+        await inviteMember({ siteId, actor: user, email: form.email, role: form.role });
+        return { intent: form.intent, invited: form.email };
+      case "revoke":
+        await revokeInvitation({ siteId, actorId: user.id, invitationId: form.invitationId });
+        return { intent: form.intent, ok: true };
+      case "role":
+        await changeRole({ siteId, actorId: user.id, userId: form.userId, role: form.role });
+        return { intent: form.intent, ok: true, userId: form.userId };
+      case "remove":
+        await removeMember({ siteId, actorId: user.id, userId: form.userId });
+        if (form.userId === user.id) throw redirect("/");
+        return { intent: form.intent, ok: true, userId: form.userId };
+      case "leave":
+        await removeMember({ siteId, actorId: user.id, userId: user.id });
+        throw redirect("/");
     }
   } catch (err) {
     if (err instanceof MembershipError) {
       const status = err instanceof InvitationLimitError ? 429 : 400;
-      return data(
-        { intent, error: err.message, userId: toId(form.get("userId")), email: cleanText(String(form.get("email") ?? "")).slice(0, 320), role: String(form.get("role") ?? "").slice(0, 20) },
-        { status, headers: err instanceof InvitationLimitError ? { "Retry-After": String(Math.max(1, Math.ceil((err.retryAt.getTime() - Date.now()) / 1000))) } : undefined },
-      );
+      const headers = err instanceof InvitationLimitError ? { "Retry-After": String(Math.max(1, Math.ceil((err.retryAt.getTime() - Date.now()) / 1000))) } : undefined;
+      // An invitation's refusal goes back with the address and role typed.
+      const result = form.intent === "invite" ? submission.reply({ formErrors: [err.message] }) : undefined;
+      return data({ intent: form.intent, error: err.message, userId: "userId" in form ? form.userId : null, result }, { status, headers });
     }
     throw err;
   }
-  throw data("Unknown action", { status: 400 });
 }
 
 const roleWords = {
@@ -102,10 +105,22 @@ export default function Members({ loaderData, actionData }: Route.ComponentProps
   const owner = role === "owner";
   const soleOwner = members.filter((m) => m.role === "owner").length === 1;
   const lastOwnerNote = "The only owner: make someone else an owner before stepping down or leaving.";
-  const ad = actionData as { intent?: string; error?: string; invited?: string; userId?: number | null; email?: string; role?: string } | undefined;
+  const ad = actionData;
+  const invited = ad && "invited" in ad ? ad.invited : null;
+  // A refused role change, removal or leave, shown beside that member (or the leave button).
+  const refused = ad && "error" in ad ? ad : null;
+  const [invite, inviteFields] = useForm({
+    id: "invite",
+    lastResult: ad && "result" in ad ? ad.result : undefined,
+    defaultValue: { role: "carer" },
+    onValidate: ({ formData }) => parseWithZod(formData, { schema: inviteSchema }),
+    shouldValidate: "onBlur",
+    // An error clears while the field is corrected, so the button does not move under the pointer.
+    shouldRevalidate: "onInput",
+  });
   const inviteForm = useRef<HTMLFormElement>(null);
   useEffect(() => {
-    if (ad?.invited) inviteForm.current?.reset();
+    if (invited) inviteForm.current?.reset();
   }, [ad]);
 
   return (
@@ -128,9 +143,9 @@ export default function Members({ loaderData, actionData }: Route.ComponentProps
                       {lastOwnerNote}
                     </p>
                   ) : null}
-                  {ad?.error && ad.userId === m.userId && (ad.intent === "role" || ad.intent === "remove") ? (
+                  {refused && refused.userId === m.userId && (refused.intent === "role" || refused.intent === "remove") ? (
                     <p className="error" role="alert">
-                      {ad.error}
+                      {refused.error}
                     </p>
                   ) : null}
                 </div>
@@ -189,9 +204,9 @@ export default function Members({ loaderData, actionData }: Route.ComponentProps
               Leave this site
             </button>
             {owner && soleOwner ? <p className="hint">You are the only owner, so you cannot leave yet: make someone else an owner first.</p> : null}
-            {ad?.error && ad.intent === "leave" ? (
+            {refused && refused.intent === "leave" ? (
               <p className="error" role="alert">
-                {ad.error}
+                {refused.error}
               </p>
             ) : null}
           </Form>
@@ -229,37 +244,35 @@ export default function Members({ loaderData, actionData }: Route.ComponentProps
               They get an e-mail with a link that works once, for 7 days, and only for that address. Opening it lets them sign in or create an account
               with it, then join. At most {loaderData.invitesPerHour} invitations an hour for a site.
             </p>
-            <Form method="post" className="space-y-3" ref={inviteForm}>
+            <Form method="post" className="space-y-3" ref={inviteForm} {...getFormProps(invite)}>
               <input type="hidden" name="intent" value="invite" />
               <div>
-                <label className="label" htmlFor="invite-email">
+                <label className="label" htmlFor={inviteFields.email.id}>
                   E-mail
                 </label>
-                <input id="invite-email" name="email" type="email" required autoComplete="off" className="field" defaultValue={ad?.intent === "invite" && !ad.invited ? ad.email : ""} />
+                <input autoComplete="off" className="field" {...getInputProps(inviteFields.email, { type: "email" })} />
+                <FieldError meta={inviteFields.email} />
               </div>
               <fieldset>
                 <legend className="label">Role</legend>
                 <label className="flex items-start gap-2 text-sm">
-                  <input type="radio" name="role" value="carer" defaultChecked={ad?.role !== "mentor"} className="mt-1" />
+                  <input {...getInputProps(inviteFields.role, { type: "radio", value: "carer" })} className="mt-1" />
                   <span>
                     <span className="font-medium">Carer</span> — waters while you are away, logs water checks, moves sensors and plants
                   </span>
                 </label>
                 <label className="mt-2 flex items-start gap-2 text-sm">
-                  <input type="radio" name="role" value="mentor" defaultChecked={ad?.role === "mentor"} className="mt-1" />
+                  <input {...getInputProps(inviteFields.role, { type: "radio", value: "mentor" })} className="mt-1" />
                   <span>
                     <span className="font-medium">Mentor</span> — reads everything and leaves notes; changes nothing else
                   </span>
                 </label>
+                <FieldError meta={inviteFields.role} />
               </fieldset>
-              {ad?.intent === "invite" && ad.error ? (
-                <p className="error" role="alert">
-                  {ad.error}
-                </p>
-              ) : null}
-              {ad?.invited ? (
+              <FormErrors errors={invite.errors} />
+              {invited ? (
                 <p className="text-sm text-good" role="status">
-                  ✓ Invitation sent to {ad.invited}.
+                  ✓ Invitation sent to {invited}.
                 </p>
               ) : null}
               <button className="btn w-full" disabled={busy}>

@@ -1,7 +1,9 @@
+import { getFormProps, getInputProps, useForm } from "@conform-to/react";
+import { parseWithZod } from "@conform-to/zod/v4";
 import { data, Form, Link, redirect, useNavigation } from "react-router";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
-import { readForm } from "~/.server/ids";
-import { deleteCustomProfile, findSitePlant, parseWish, saveWish, siteInventory, sitePlant, sitePlants, siteWishlist } from "~/.server/plants";
+import { readForm, refuseForm } from "~/.server/ids";
+import { deleteCustomProfile, findSitePlant, saveWish, siteInventory, sitePlant, sitePlants, siteWishlist } from "~/.server/plants";
 import { fitSummary, judgedPeriods, parsePeriod, pickableMonths, spotProfiles, windowOf } from "~/.server/profiles";
 import { periodLabel, PeriodPicker } from "~/components/period-picker";
 import { getSite } from "~/.server/sites";
@@ -14,6 +16,8 @@ import { rankSpotsForPlant } from "~/domain/fit/verdict";
 import { fitProjections } from "~/.server/projections";
 import { PLANT_LIBRARY, type PlantProfile } from "~/domain/plants/library";
 import { deltaToUnit, formatTemp, type TempUnit } from "~/domain/units";
+import { FieldError, FormErrors } from "~/components/field";
+import { plantPageSchema, plantWishSchema } from "~/forms/wishlist";
 import type { Route } from "./+types/plants.$plantKey";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.plant.name ?? "Plant"} · Nichewise` }];
@@ -63,21 +67,20 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 export async function action({ request, params }: Route.ActionArgs) {
   const { siteId, role, user } = await requireSiteRole(request, params.siteId, WRITERS);
   const plant = await sitePlant(siteId, params.plantKey);
-  const form = await readForm(request);
-  const intent = form.get("intent");
-  if (intent === "wish") {
-    const parsed = parseWish(form, plant.key);
-    if (!parsed.success) return data({ error: parsed.error.issues[0]?.message ?? "Check the pots." }, { status: 400 });
-    await saveWish(siteId, user.id, { plantKey: plant.key, mustHave: parsed.data.mustHave === "on", pots: parsed.data.pots });
+  const submission = parseWithZod(await readForm(request), { schema: plantPageSchema });
+  if (submission.status !== "success") {
+    if (submission.payload.intent !== "wish") refuseForm(submission.error);
+    return data({ result: submission.reply() }, { status: 400 });
+  }
+  if (submission.value.intent === "wish") {
+    const { mustHave, pots } = submission.value;
+    await saveWish(siteId, user.id, { plantKey: plant.key, mustHave, pots });
     return { saved: true };
   }
-  if (intent === "delete") {
-    if (role !== "owner") throw data("Only the owner can delete a profile", { status: 403 });
-    if (!plant.own) return data({ error: "Library profiles can't be deleted; copy one to change it." }, { status: 400 });
-    await deleteCustomProfile(siteId, user.id, plant.key);
-    return redirect(`/sites/${siteId}/plants`);
-  }
-  throw data("Unknown action", { status: 400 });
+  if (role !== "owner") throw data("Only the owner can delete a profile", { status: 403 });
+  if (!plant.own) return data({ error: "Library profiles can't be deleted; copy one to change it." }, { status: 400 });
+  await deleteCustomProfile(siteId, user.id, plant.key);
+  return redirect(`/sites/${siteId}/plants`);
 }
 
 type Need = { label: string; value: string; fields: string[] };
@@ -125,6 +128,15 @@ export default function PlantPage({ loaderData, actionData }: Route.ComponentPro
   const { plant, unit, role, spots, wish, standing } = loaderData;
   const navigation = useNavigation();
   const canWrite = role !== "mentor";
+  const [wishForm, wishFields] = useForm({
+    id: "plant-wish",
+    lastResult: actionData && "result" in actionData ? actionData.result : undefined,
+    defaultValue: { pots: String(wish?.pots ?? 1), mustHave: wish?.mustHave ? "on" : undefined },
+    onValidate: ({ formData }) => parseWithZod(formData, { schema: plantWishSchema }),
+    shouldValidate: "onBlur",
+    // An error clears while the field is corrected, so the button does not move under the pointer.
+    shouldRevalidate: "onInput",
+  });
   return (
     <div className="space-y-6">
       <p className="text-sm">
@@ -251,25 +263,29 @@ export default function PlantPage({ loaderData, actionData }: Route.ComponentPro
           <p className="text-sm text-muted">Not on the wishlist.</p>
         )}
         {canWrite ? (
-          <Form method="post" className="flex flex-wrap items-end gap-3">
+          <Form method="post" className="flex flex-wrap items-end gap-3" {...getFormProps(wishForm)}>
             <input type="hidden" name="intent" value="wish" />
             <div>
-              <label className="label" htmlFor="pots">
+              <label className="label" htmlFor={wishFields.pots.id}>
                 Pots
               </label>
-              <input id="pots" name="pots" type="number" min={1} max={100} defaultValue={wish?.pots ?? 1} className="field w-24" />
+              <input min={1} max={100} className="field w-24" {...getInputProps(wishFields.pots, { type: "number" })} />
             </div>
             <label className="inline-flex items-center gap-2 pb-2 text-sm">
-              <input type="checkbox" name="mustHave" defaultChecked={wish?.mustHave ?? false} /> Must-have
+              <input {...getInputProps(wishFields.mustHave, { type: "checkbox" })} /> Must-have
             </label>
             <button className="btn" disabled={navigation.state !== "idle"}>
               {wish ? "Update the wishlist" : "Add to the wishlist"}
             </button>
-            {actionData && "error" in actionData ? (
-              <p className="error w-full" role="alert">
-                {actionData.error}
-              </p>
-            ) : null}
+            <div className="w-full">
+              <FieldError meta={wishFields.pots} />
+              <FormErrors errors={wishForm.errors} />
+              {actionData && "error" in actionData ? (
+                <p className="error" role="alert">
+                  {actionData.error}
+                </p>
+              ) : null}
+            </div>
           </Form>
         ) : null}
       </section>

@@ -10,7 +10,7 @@ import { getSite } from "~/.server/sites";
 import { listSpots } from "~/.server/spots";
 import { PlaceSensorForm, PlacementEditor, PlacingTips } from "~/components/placement";
 import { useNow } from "~/components/use-now";
-import { calibrationSchema } from "~/lib/forms";
+import { calibrationSchema } from "~/forms/sensor";
 import { placementEditSchema } from "~/lib/placements";
 import { formatInZone, parseLocalDateTime, timeAgo } from "~/lib/time";
 import type { Route } from "./+types/sensors.$sensorId";

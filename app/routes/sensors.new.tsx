@@ -8,7 +8,7 @@ import { createSensor, PlacementError } from "~/.server/sensors.server";
 import { getSite } from "~/.server/sites";
 import { getSpot, listSpots } from "~/.server/spots";
 import { FormErrors, SelectField, TextField } from "~/components/field";
-import { CHANNELS, sensorSchema } from "~/lib/forms";
+import { CHANNELS, sensorSchema } from "~/forms/sensor";
 import { parseLocalDateTime } from "~/lib/time";
 import type { Route } from "./+types/sensors.new";
 

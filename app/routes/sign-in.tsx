@@ -5,7 +5,7 @@ import { getUser, sessionCookie, signIn } from "~/.server/auth";
 import { readForm } from "~/.server/ids";
 import { AuthFrame } from "~/components/auth-frame";
 import { FormErrors, TextField } from "~/components/field";
-import { safeNext, signInSchema } from "~/lib/forms";
+import { safeNext, signInSchema } from "~/forms/auth";
 import type { Route } from "./+types/sign-in";
 
 export const meta: Route.MetaFunction = () => [{ title: "Sign in · Nichewise" }];

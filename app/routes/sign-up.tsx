@@ -9,7 +9,7 @@ import { sendMail } from "~/.server/mail";
 import { AuthFrame } from "~/components/auth-frame";
 import { FormErrors, TextField } from "~/components/field";
 import { users } from "~/db/schema.server";
-import { safeNext, signUpSchema } from "~/lib/forms";
+import { safeNext, signUpSchema } from "~/forms/auth";
 import type { Route } from "./+types/sign-up";
 
 export const meta: Route.MetaFunction = () => [{ title: "Create an account · Nichewise" }];

@@ -1,13 +1,17 @@
+import { getCollectionProps, getFormProps, getInputProps, useForm } from "@conform-to/react";
+import { parseWithZod } from "@conform-to/zod/v4";
 import { data, Form, Link, useFetcher } from "react-router";
 import { useEffect } from "react";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
 import { acknowledge, getPreferences, savePreferences, siteEvents, watchMarks } from "~/.server/alerts/pages";
-import { cleanText, readForm } from "~/.server/ids";
+import { readForm, refuseForm } from "~/.server/ids";
 import { getSite } from "~/.server/sites";
 import { listSpots } from "~/.server/spots";
 import { useNow } from "~/components/use-now";
 import { formatDuration, formatValue } from "~/domain/alerts/messages";
-import { clockToMinute, minuteToClock } from "~/domain/alerts/quiet";
+import { minuteToClock } from "~/domain/alerts/quiet";
+import { FieldError, FormErrors } from "~/components/field";
+import { alertEmailsSchema, siteAlertsSchema } from "~/forms/alert-emails";
 import { ALERT_KINDS, KINDS, type AlertKind } from "~/domain/alerts/rules";
 import { formatInZone, timeAgo } from "~/lib/time";
 import { WatchMark } from "~/components/watch-state";
@@ -27,29 +31,21 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 export async function action({ request, params }: Route.ActionArgs) {
   // Members only, before the body is read; the role the intent needs is checked below.
   await requireSiteRole(request, params.siteId, ALL_ROLES);
-  const form = await readForm(request);
-  const intent = form.get("intent");
-  if (intent === "acknowledge") {
+  const submission = parseWithZod(await readForm(request), { schema: siteAlertsSchema });
+  if (submission.status !== "success") {
+    if (submission.payload.intent !== "preferences") refuseForm(submission.error);
+    return data({ intent: "preferences" as const, result: submission.reply() }, { status: 400 });
+  }
+  const form = submission.value;
+  if (form.intent === "acknowledge") {
     const { siteId, user } = await requireSiteRole(request, params.siteId, WRITERS);
-    await acknowledge(siteId, form.get("eventId"), user.id);
+    await acknowledge(siteId, form.eventId, user.id);
     return { acknowledged: true };
   }
-  if (intent === "preferences") {
-    // Every member chooses their own e-mails, mentors included.
-    const { siteId, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
-    const kinds = form.getAll("kinds").map(String).filter((k): k is AlertKind => ALERT_KINDS.includes(k as AlertKind));
-    const fromText = cleanText(String(form.get("quietFrom") ?? "")).trim().slice(0, 10);
-    const toText = cleanText(String(form.get("quietTo") ?? "")).trim().slice(0, 10);
-    const quietFrom = fromText ? clockToMinute(fromText) : null;
-    const quietTo = toText ? clockToMinute(toText) : null;
-    const values = { email: form.get("email") === "on", kinds, quietFrom: fromText, quietTo: toText };
-    if ((fromText && quietFrom == null) || (toText && quietTo == null)) return data({ error: "Enter quiet hours as times like 22:30.", values }, { status: 400 });
-    if ((quietFrom == null) !== (quietTo == null)) return data({ error: "Give both ends of the quiet hours, or neither.", values }, { status: 400 });
-    await savePreferences({ userId: user.id, siteId, email: values.email, kinds, quietFrom, quietTo });
-    return { savedPrefs: true };
-  }
-  await requireSiteRole(request, params.siteId, ALL_ROLES);
-  throw data("Unknown action", { status: 400 });
+  // Every member chooses their own e-mails, mentors included.
+  const { siteId, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
+  await savePreferences({ userId: user.id, siteId, email: form.email, kinds: form.kinds, quietFrom: form.quietFrom, quietTo: form.quietTo });
+  return { savedPrefs: true };
 }
 
 export default function SiteAlerts({ loaderData, actionData }: Route.ComponentProps) {
@@ -67,8 +63,15 @@ export default function SiteAlerts({ loaderData, actionData }: Route.ComponentPr
   const list = live.data?.events ?? events;
   const open = list.filter((e) => !e.endedAt);
   const recent = list.filter((e) => e.endedAt);
-  const err = actionData && "error" in actionData ? actionData : null;
-  const p = err ? { ...prefs, ...err.values } : prefs;
+  const [prefsForm, prefsFields] = useForm({
+    id: "alert-emails",
+    lastResult: actionData && "result" in actionData ? actionData.result : undefined,
+    defaultValue: { email: prefs.email ? "on" : undefined, kinds: prefs.kinds, quietFrom: prefs.quietFrom, quietTo: prefs.quietTo },
+    onValidate: ({ formData }) => parseWithZod(formData, { schema: alertEmailsSchema }),
+    shouldValidate: "onBlur",
+    // An error clears while the field is corrected, so the button does not move under the pointer.
+    shouldRevalidate: "onInput",
+  });
   const worst = (k: AlertKind) => (KINDS[k].direction === "below" ? "lowest" : "highest");
 
   const row = (e: (typeof list)[number]) => (
@@ -148,9 +151,10 @@ export default function SiteAlerts({ loaderData, actionData }: Route.ComponentPr
 
       <section className="card space-y-3">
         <h2 className="h2">Your e-mail alerts for {site.name}</h2>
-        <Form method="post" className="space-y-3">
+        <Form method="post" className="space-y-3" {...getFormProps(prefsForm)}>
+          <input type="hidden" name="intent" value="preferences" />
           <label className="inline-flex items-center gap-2">
-            <input type="checkbox" name="email" defaultChecked={p.email} /> Send me alerts by e-mail
+            <input {...getInputProps(prefsFields.email, { type: "checkbox" })} /> Send me alerts by e-mail
           </label>
           <fieldset>
             <legend className="label">Which kinds</legend>
@@ -160,30 +164,33 @@ export default function SiteAlerts({ loaderData, actionData }: Route.ComponentPr
               </p>
             ) : null}
             <div className="flex flex-wrap gap-x-5 gap-y-2">
-              {ALERT_KINDS.map((k) => (
-                <label key={k} className="inline-flex items-center gap-2 text-sm">
-                  <input type="checkbox" name="kinds" value={k} defaultChecked={p.kinds.includes(k)} /> {KINDS[k].label}
+              {getCollectionProps(prefsFields.kinds, { type: "checkbox", options: [...ALERT_KINDS] }).map(({ key, ...props }) => (
+                <label key={key} className="inline-flex items-center gap-2 text-sm">
+                  <input {...props} /> {KINDS[props.value as AlertKind].label}
                 </label>
               ))}
             </div>
+            <FieldError meta={prefsFields.kinds} />
           </fieldset>
           <div className="flex flex-wrap items-end gap-3">
             <div>
-              <label className="label" htmlFor="quietFrom">Quiet hours from</label>
-              <input className="field w-28" id="quietFrom" name="quietFrom" placeholder="22:30" defaultValue={p.quietFrom} />
+              <label className="label" htmlFor={prefsFields.quietFrom.id}>Quiet hours from</label>
+              <input className="field w-28" placeholder="22:30" {...getInputProps(prefsFields.quietFrom, { type: "text" })} />
             </div>
             <div>
-              <label className="label" htmlFor="quietTo">to</label>
-              <input className="field w-28" id="quietTo" name="quietTo" placeholder="07:00" defaultValue={p.quietTo} />
+              <label className="label" htmlFor={prefsFields.quietTo.id}>to</label>
+              <input className="field w-28" placeholder="07:00" {...getInputProps(prefsFields.quietTo, { type: "text" })} />
             </div>
           </div>
+          <FieldError meta={prefsFields.quietFrom} />
+          <FieldError meta={prefsFields.quietTo} />
           <p className="hint">
             Times are the site's ({site.timeZone}). During quiet hours, heat, dry-air, condensation and battery alerts are not e-mailed (they still show
             here). <strong>Cold-snap and silent-sensor alerts are always sent, quiet hours or not</strong> — they are the ones that cannot wait until morning.
           </p>
-          {err ? <p className="error" role="alert">{err.error}</p> : null}
+          <FormErrors errors={prefsForm.errors} />
           <div className="flex items-center gap-3">
-            <button className="btn" name="intent" value="preferences">Save my alert e-mails</button>
+            <button className="btn">Save my alert e-mails</button>
             {actionData && "savedPrefs" in actionData ? <span className="text-sm text-good">Saved</span> : null}
           </div>
         </Form>

@@ -7,7 +7,7 @@ import { db } from "~/.server/db";
 import { getSite } from "~/.server/sites";
 import { SiteForm } from "~/components/site-form";
 import { auditLog, sites } from "~/db/schema.server";
-import { siteSchema } from "~/lib/forms";
+import { siteSchema } from "~/forms/site";
 import type { Route } from "./+types/site.edit";
 
 export const meta: Route.MetaFunction = () => [{ title: "Edit site · Nichewise" }];

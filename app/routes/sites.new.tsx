@@ -5,7 +5,7 @@ import { readForm } from "~/.server/ids";
 import { db } from "~/.server/db";
 import { SiteForm } from "~/components/site-form";
 import { auditLog, memberships, sites } from "~/db/schema.server";
-import { siteSchema } from "~/lib/forms";
+import { siteSchema } from "~/forms/site";
 import type { Route } from "./+types/sites.new";
 
 export const meta: Route.MetaFunction = () => [{ title: "New site · Nichewise" }];

@@ -1,7 +1,10 @@
+import { getFormProps, getInputProps, useForm, type SubmissionResult } from "@conform-to/react";
+import { parseWithZod } from "@conform-to/zod/v4";
 import { data, Form, Link, useNavigation } from "react-router";
+import type { z } from "zod";
 import * as units from "~/domain/units";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
-import { readForm } from "~/.server/ids";
+import { readForm, refuseForm } from "~/.server/ids";
 import { getRule, listRules } from "~/.server/alerts/pages";
 import { getSpot } from "~/.server/spots";
 import { addWatch, deleteWatch, setWatchPaused, suggestedColdWatch, updateWatch } from "~/.server/watches";
@@ -9,6 +12,8 @@ import type { Watch } from "~/db/schema.server";
 import { describeCondition, formatDuration } from "~/domain/alerts/messages";
 import { ALERT_KINDS, KINDS, type AlertKind } from "~/domain/alerts/rules";
 import { WatchState } from "~/components/watch-state";
+import { FieldError, FormErrors } from "~/components/field";
+import { addWatchSchema, watchSchema } from "~/forms/watch";
 import type { Route } from "./+types/spots.$spotId.alerts";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `Alerts for ${data?.spot.name ?? "spot"} · Nichewise` }];
@@ -20,7 +25,6 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   return { siteId, spot, role, unit: user.temperatureUnit, rules, suggestion };
 }
 
-type Values = Record<string, string>;
 const isTemp = (k: AlertKind) => KINDS[k].unit === "temperature" || KINDS[k].unit === "kelvin";
 // Form values are in the member's unit; stored values are °C (and kelvin for margins).
 const fromUnit = (k: AlertKind, v: number, unit: "C" | "F") =>
@@ -31,111 +35,133 @@ const deltaFromUnit = (k: AlertKind, v: number, unit: "C" | "F") => (isTemp(k) ?
 const deltaToUnit = (k: AlertKind, v: number, unit: "C" | "F") => (isTemp(k) ? units.deltaToUnit(v, unit) : v);
 const round1 = (v: number) => Math.round(v * 10) / 10;
 
-function parseRule(form: FormData, kind: AlertKind, unit: "C" | "F") {
-  const values: Values = {};
-  for (const k of ["threshold", "durationMinutes", "hysteresis", "clearMinutes"]) values[k] = String(form.get(k) ?? "").trim();
-  const num = (k: string) => (values[k] === "" ? NaN : Number(values[k].replace(",", ".")));
-  const threshold = num("threshold");
-  const durationMinutes = kind === "silent" ? 0 : num("durationMinutes");
-  const hysteresis = kind === "silent" ? 0 : num("hysteresis");
-  const clearMinutes = kind === "silent" ? 0 : num("clearMinutes");
-  if (!Number.isFinite(threshold)) return { error: "Enter the threshold as a number.", values };
-  if (kind === "silent" && !(threshold >= 5 && threshold <= 1440)) return { error: "A sensor may be silent for 5 to 1,440 minutes before the alert.", values };
-  if ((kind === "dry" || kind === "battery") && !(threshold > 0 && threshold < 100)) return { error: "Enter a percentage between 0 and 100.", values };
-  if (!(Number.isInteger(durationMinutes) && durationMinutes >= 0 && durationMinutes <= 1440)) return { error: "Minutes before the alert: a whole number from 0 to 1,440.", values };
-  if (!(Number.isInteger(clearMinutes) && clearMinutes >= 0 && clearMinutes <= 1440)) return { error: "Minutes before the all-clear: a whole number from 0 to 1,440.", values };
-  if (!(hysteresis >= 0 && hysteresis <= 20)) return { error: "The margin for the all-clear must be between 0 and 20.", values };
+/** The stored settings (°C) from a parsed form (the member's unit). */
+function storedSettings(v: z.output<typeof addWatchSchema>, unit: "C" | "F") {
+  const silent = v.kind === "silent";
   return {
-    ok: {
-      threshold: round1(fromUnit(kind, threshold, unit) * 100) / 100,
-      durationMinutes,
-      hysteresis: Math.round(deltaFromUnit(kind, hysteresis, unit) * 100) / 100,
-      clearMinutes,
-      earlyWarning: (kind === "cold" || kind === "heat") && form.get("earlyWarning") === "on",
-    },
+    threshold: round1(fromUnit(v.kind, v.threshold, unit) * 100) / 100,
+    durationMinutes: silent ? 0 : v.durationMinutes!,
+    hysteresis: silent ? 0 : Math.round(deltaFromUnit(v.kind, v.hysteresis!, unit) * 100) / 100,
+    clearMinutes: silent ? 0 : v.clearMinutes!,
+    earlyWarning: (v.kind === "cold" || v.kind === "heat") && v.earlyWarning,
   };
 }
 
 export async function action({ request, params }: Route.ActionArgs) {
   // Members only, before the body is read; the role the intent needs is checked below.
   await requireSiteRole(request, params.siteId, ALL_ROLES);
-  const form = await readForm(request);
-  const intent = String(form.get("intent") ?? "");
+  const raw = await readForm(request);
+  const intent = String(raw.get("intent") ?? "");
   // Carers may pause and resume a watch (plants brought in); everything else is the owner's.
   const { siteId, user } = await requireSiteRole(request, params.siteId, intent === "pause" || intent === "resume" ? WRITERS : ["owner"]);
   const spot = await getSpot(siteId, params.spotId);
   const unit = user.temperatureUnit;
-  if (intent === "pause" || intent === "resume") {
-    const rule = await getRule(spot.id, form.get("ruleId"));
-    const done = await setWatchPaused({ siteId, spot, actor: user, rule, paused: intent === "pause" });
-    return { saved: rule.id, notified: done.notified.length };
+  // A change keeps its watch's kind: the stored one, whatever the page sent.
+  const changed = intent === "update" ? await getRule(spot.id, raw.get("ruleId")) : null;
+  if (changed) raw.set("kind", changed.kind);
+  const submission = parseWithZod(raw, { schema: watchSchema });
+  if (submission.status !== "success") {
+    if (intent !== "add" && intent !== "update") refuseForm(submission.error);
+    return data({ intent, ruleId: changed ? String(changed.id) : "new", kind: String(submission.payload.kind ?? ""), result: submission.reply() }, { status: 400 });
   }
-  if (intent === "add") {
-    const kind = String(form.get("kind")) as AlertKind;
-    if (!ALERT_KINDS.includes(kind)) return data({ error: "Choose what to watch for.", ruleId: "new", values: {} as Values }, { status: 400 });
-    const parsed = parseRule(form, kind, unit);
-    if (!parsed.ok) return data({ error: parsed.error, ruleId: "new", values: { ...parsed.values, kind } }, { status: 400 });
-    const suggestion = kind === "cold" && form.get("useSuggestion") === "1" ? await suggestedColdWatch(spot.id, siteId) : null;
+  const form = submission.value;
+  if (form.intent === "add") {
+    const settings = storedSettings(form, unit);
+    const suggestion = form.kind === "cold" && form.useSuggestion ? await suggestedColdWatch(spot.id, siteId) : null;
     // The suggestion's reason stays only while its line is the one saved.
-    const reason = suggestion && Math.abs(suggestion.threshold - parsed.ok.threshold) < 0.1 ? suggestion.reason : "";
-    const rule = await addWatch({ siteId, spot, actorId: user.id, kind, settings: parsed.ok, reason });
+    const reason = suggestion && Math.abs(suggestion.threshold - settings.threshold) < 0.1 ? suggestion.reason : "";
+    const rule = await addWatch({ siteId, spot, actorId: user.id, kind: form.kind, settings, reason });
     return { saved: rule.id };
   }
-  if (intent === "update") {
-    const rule = await getRule(spot.id, form.get("ruleId"));
-    const parsed = parseRule(form, rule.kind, unit);
-    if (!parsed.ok) return data({ error: parsed.error, ruleId: String(rule.id), values: parsed.values }, { status: 400 });
-    await updateWatch({ siteId, spot, actorId: user.id, rule, settings: parsed.ok });
-    return { saved: rule.id };
+  if (form.intent === "update") {
+    await updateWatch({ siteId, spot, actorId: user.id, rule: changed!, settings: storedSettings({ ...form, intent: "add" }, unit) });
+    return { saved: changed!.id };
   }
-  if (intent === "delete") {
-    const rule = await getRule(spot.id, form.get("ruleId"));
+  const rule = await getRule(spot.id, form.ruleId);
+  if (form.intent === "delete") {
     await deleteWatch({ siteId, spot, actorId: user.id, rule });
     return { deleted: true };
   }
-  throw data("Unknown action", { status: 400 });
+  const done = await setWatchPaused({ siteId, spot, actor: user, rule, paused: form.intent === "pause" });
+  return { saved: rule.id, notified: done.notified.length };
 }
 
 const UNIT_LABEL = (k: AlertKind, unit: "C" | "F") =>
   ({ temperature: `°${unit}`, kelvin: `°${unit} above the dew point`, percent: "%", minutes: "minutes without a reading" })[KINDS[k].unit];
 
-function RuleFields({ kind, unit, rule, values, idPrefix }: { kind: AlertKind; unit: "C" | "F"; rule?: Pick<Watch, "threshold" | "durationMinutes" | "hysteresis" | "clearMinutes" | "earlyWarning">; values?: Values; idPrefix: string }) {
-  const d = KINDS[kind].defaults;
-  const v = (k: "threshold" | "durationMinutes" | "hysteresis" | "clearMinutes", fallback: number) => values?.[k] ?? String(fallback);
-  const threshold = round1(toUnitValue(kind, rule?.threshold ?? d.threshold, unit));
-  const hysteresis = round1(deltaToUnit(kind, rule?.hysteresis ?? d.hysteresis, unit));
+type Initial = Pick<Watch, "threshold" | "durationMinutes" | "hysteresis" | "clearMinutes" | "earlyWarning">;
+
+/** One watch's form (a change or a new watch), its fields in the member's unit; `children` are its buttons. */
+function WatchForm({
+  id,
+  kind,
+  unit,
+  initial,
+  lastResult,
+  hidden,
+  className,
+  children,
+}: {
+  id: string;
+  kind: AlertKind;
+  unit: "C" | "F";
+  initial: Initial;
+  lastResult?: SubmissionResult<string[]>;
+  hidden: Record<string, string>;
+  className?: string;
+  children: React.ReactNode;
+}) {
+  const [form, fields] = useForm({
+    id,
+    lastResult,
+    defaultValue: {
+      threshold: String(round1(toUnitValue(kind, initial.threshold, unit))),
+      durationMinutes: String(initial.durationMinutes),
+      hysteresis: String(round1(deltaToUnit(kind, initial.hysteresis, unit))),
+      clearMinutes: String(initial.clearMinutes),
+      earlyWarning: initial.earlyWarning ? "on" : undefined,
+    },
+    // The whole union: the same form's buttons also pause or remove the watch.
+    onValidate: ({ formData }) => parseWithZod(formData, { schema: watchSchema }),
+    shouldValidate: "onBlur",
+    // An error clears while the field is corrected, so the button does not move under the pointer.
+    shouldRevalidate: "onInput",
+  });
   const word = KINDS[kind].direction === "below" ? "Below" : "Above";
-  return (
-    <div className="grid gap-3 sm:grid-cols-2">
-      <div>
-        <label className="label" htmlFor={`${idPrefix}-threshold`}>
-          {kind === "silent" ? "Silent for" : word} ({UNIT_LABEL(kind, unit)})
-        </label>
-        <input className="field" id={`${idPrefix}-threshold`} name="threshold" inputMode="decimal" defaultValue={v("threshold", threshold)} />
-      </div>
-      {kind !== "silent" ? (
-        <>
-          <div>
-            <label className="label" htmlFor={`${idPrefix}-duration`}>For at least (minutes)</label>
-            <input className="field" id={`${idPrefix}-duration`} name="durationMinutes" inputMode="numeric" defaultValue={v("durationMinutes", rule?.durationMinutes ?? d.durationMinutes)} />
-          </div>
-          <div>
-            <label className="label" htmlFor={`${idPrefix}-hysteresis`}>All-clear once back by ({isTemp(kind) ? `°${unit}` : "%"})</label>
-            <input className="field" id={`${idPrefix}-hysteresis`} name="hysteresis" inputMode="decimal" defaultValue={v("hysteresis", hysteresis)} />
-          </div>
-          <div>
-            <label className="label" htmlFor={`${idPrefix}-clear`}>…and stayed back for (minutes)</label>
-            <input className="field" id={`${idPrefix}-clear`} name="clearMinutes" inputMode="numeric" defaultValue={v("clearMinutes", rule?.clearMinutes ?? d.clearMinutes)} />
-          </div>
-        </>
-      ) : null}
-      {kind === "cold" || kind === "heat" ? (
-        <label className="inline-flex items-center gap-2 text-sm sm:col-span-2">
-          <input type="checkbox" name="earlyWarning" defaultChecked={rule?.earlyWarning ?? true} />
-          Early warning: e-mail when the last hour's trend reaches the line within an hour
-        </label>
-      ) : null}
+  const field = (meta: (typeof fields)["threshold"], label: string, inputMode: "decimal" | "numeric") => (
+    <div>
+      <label className="label" htmlFor={meta.id}>
+        {label}
+      </label>
+      <input className="field" inputMode={inputMode} {...getInputProps(meta, { type: "text" })} />
+      <FieldError meta={meta} />
     </div>
+  );
+  return (
+    <Form method="post" className={className} {...getFormProps(form)}>
+      <input type="hidden" name="kind" value={kind} />
+      {Object.entries(hidden).map(([name, value]) => (
+        <input key={name} type="hidden" name={name} value={value} />
+      ))}
+      <div className="grid gap-3 sm:grid-cols-2">
+        {field(fields.threshold, `${kind === "silent" ? "Silent for" : word} (${UNIT_LABEL(kind, unit)})`, "decimal")}
+        {kind !== "silent" ? (
+          <>
+            {field(fields.durationMinutes, "For at least (minutes)", "numeric")}
+            {field(fields.hysteresis, `All-clear once back by (${isTemp(kind) ? `°${unit}` : "%"})`, "decimal")}
+            {field(fields.clearMinutes, "…and stayed back for (minutes)", "numeric")}
+          </>
+        ) : null}
+        {kind === "cold" || kind === "heat" ? (
+          <label className="inline-flex items-center gap-2 text-sm sm:col-span-2">
+            <input {...getInputProps(fields.earlyWarning, { type: "checkbox" })} />
+            Early warning: e-mail when the last hour's trend reaches the line within an hour
+          </label>
+        ) : null}
+      </div>
+      <FormErrors errors={form.errors} />
+      {children}
+    </Form>
   );
 }
 
@@ -143,7 +169,8 @@ export default function SpotAlerts({ loaderData, actionData }: Route.ComponentPr
   const { siteId, spot, role, unit, rules, suggestion } = loaderData;
   const navigation = useNavigation();
   const busy = navigation.state !== "idle";
-  const err = actionData && "error" in actionData ? actionData : null;
+  const failed = actionData && "result" in actionData ? actionData : null;
+  const failedNew = (kind: AlertKind) => (failed && failed.ruleId === "new" && failed.kind === kind ? failed.result : undefined);
   const hasCold = rules.some((r) => r.kind === "cold");
   return (
     <div className="space-y-6">
@@ -163,13 +190,10 @@ export default function SpotAlerts({ loaderData, actionData }: Route.ComponentPr
         when this spot stops sending — the dangerous case on a cold night.
       </p>
 
-      {err ? <p className="error" role="alert">{err.error}</p> : null}
-
       {rules.length === 0 ? <p className="text-muted">No watches on this spot yet.</p> : null}
       <ul className="space-y-4">
         {rules.map((r) => {
           const info = KINDS[r.kind];
-          const mine = err && err.ruleId === String(r.id) ? err.values : undefined;
           return (
             <li key={r.id} className="card space-y-3" aria-label={`${info.label} watch`}>
               <div className="flex flex-wrap items-baseline justify-between gap-2">
@@ -182,14 +206,20 @@ export default function SpotAlerts({ loaderData, actionData }: Route.ComponentPr
               {r.reason ? <p className="hint">Why this line: {r.reason}</p> : null}
               {info.urgent ? <p className="hint">Sent even during quiet hours.</p> : null}
               {role === "owner" ? (
-                <Form method="post" className="space-y-3">
-                  <input type="hidden" name="ruleId" value={r.id} />
-                  <RuleFields kind={r.kind} unit={unit} rule={r} values={mine} idPrefix={`rule-${r.id}`} />
+                <WatchForm
+                  id={`watch-${r.id}`}
+                  kind={r.kind}
+                  unit={unit}
+                  initial={r}
+                  lastResult={failed && failed.ruleId === String(r.id) ? failed.result : undefined}
+                  hidden={{ ruleId: String(r.id) }}
+                  className="space-y-3"
+                >
                   <div className="flex flex-wrap gap-2">
                     <button className="btn" name="intent" value="update" disabled={busy}>Save</button>
                     <button className="btn-danger" name="intent" value="delete" disabled={busy}>Remove watch</button>
                   </div>
-                </Form>
+                </WatchForm>
               ) : null}
               {role !== "mentor" ? (
                 <Form method="post">
@@ -220,28 +250,33 @@ export default function SpotAlerts({ loaderData, actionData }: Route.ComponentPr
             </p>
           ) : null}
           {!hasCold && suggestion ? (
-            <Form method="post" className="space-y-2 rounded-[0.2rem] border border-stone-line p-3">
-              <input type="hidden" name="intent" value="add" />
-              <input type="hidden" name="kind" value="cold" />
-              <input type="hidden" name="useSuggestion" value="1" />
+            <div className="space-y-2 rounded-[0.2rem] border border-stone-line p-3">
               <p className="text-sm">
                 Suggested cold-snap watch: <strong>below {round1(toUnitValue("cold", suggestion.threshold, unit))} °{unit}</strong>. {suggestion.reason}
               </p>
-              <RuleFields kind="cold" unit={unit} rule={{ ...KINDS.cold.defaults, threshold: suggestion.threshold, earlyWarning: true }} values={err?.ruleId === "new" && err.values.kind === "cold" ? err.values : undefined} idPrefix="suggested" />
-              <button className="btn" disabled={busy}>Add this cold watch</button>
-            </Form>
+              <WatchForm
+                id="watch-suggested"
+                kind="cold"
+                unit={unit}
+                initial={{ ...KINDS.cold.defaults, threshold: suggestion.threshold, earlyWarning: true }}
+                lastResult={failedNew("cold")}
+                hidden={{ intent: "add", useSuggestion: "1" }}
+                className="space-y-2"
+              >
+                <button className="btn" disabled={busy}>Add this cold watch</button>
+              </WatchForm>
+            </div>
           ) : null}
           <details>
             <summary className="cursor-pointer text-sm font-medium">Another kind of watch</summary>
             <div className="mt-3 space-y-4">
               {ALERT_KINDS.filter((k) => k !== "cold" || hasCold || !suggestion).map((k) => (
-                <Form key={k} method="post" className="space-y-2 rounded-[0.2rem] border border-stone-line p-3">
-                  <input type="hidden" name="intent" value="add" />
-                  <input type="hidden" name="kind" value={k} />
+                <div key={k} className="space-y-2 rounded-[0.2rem] border border-stone-line p-3">
                   <p className="text-sm font-medium">{KINDS[k].label}</p>
-                  <RuleFields kind={k} unit={unit} values={err?.ruleId === "new" && err.values.kind === k ? err.values : undefined} idPrefix={`new-${k}`} />
-                  <button className="btn-quiet" disabled={busy}>Add {KINDS[k].label.toLowerCase()} watch</button>
-                </Form>
+                  <WatchForm id={`watch-new-${k}`} kind={k} unit={unit} initial={{ ...KINDS[k].defaults, earlyWarning: true }} lastResult={failedNew(k)} hidden={{ intent: "add" }} className="space-y-2">
+                    <button className="btn-quiet" disabled={busy}>Add {KINDS[k].label.toLowerCase()} watch</button>
+                  </WatchForm>
+                </div>
               ))}
             </div>
           </details>

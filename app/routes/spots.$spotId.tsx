@@ -1,7 +1,7 @@
 import { useEffect } from "react";
 import { data, Link, useFetcher, useNavigation } from "react-router";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
-import { readForm } from "~/.server/ids";
+import { readForm, refuseForm } from "~/.server/ids";
 import { latestReading } from "~/.server/series";
 import { getSite } from "~/.server/sites";
 import { getSpot, listSpots } from "~/.server/spots";
@@ -20,6 +20,8 @@ import { DirectSun } from "~/components/direct-sun";
 import { Inventory } from "~/components/inventory";
 import { HoursCharts, YearCharts } from "~/components/spot-charts";
 import { inventoryAction, sitePlants } from "~/.server/plants";
+import { inventorySchema } from "~/forms/inventory";
+import { parseWithZod } from "@conform-to/zod/v4";
 import { spotGrowing } from "~/.server/spot-growing";
 import { fitsFor, glassContextFor, judgedPeriods, parseGlazing, parsePeriod, pickableMonths, spotProfiles, windowOf } from "~/.server/profiles";
 import { slimProfile } from "~/domain/season/slim";
@@ -30,7 +32,8 @@ import { DayOne, type DayOneView } from "~/components/day-one";
 import { VERDICT_RULES } from "~/domain/fit/verdict";
 import { timeAgo } from "~/lib/time";
 import { formatTemp } from "~/domain/units";
-import { LIGHT_SOURCE_LABELS, type LightSource } from "~/domain/climate/light";
+import { LIGHT_SOURCE_LABELS } from "~/domain/climate/light";
+import type { LightSource } from "~/domain/vocabulary";
 import type { SeasonProfile } from "~/domain/season/types";
 import type { Route } from "./+types/spots.$spotId";
 
@@ -135,9 +138,18 @@ export async function action({ request, params }: Route.ActionArgs) {
     const placed = await placeFromForm(form, { siteId, spotId: spot.id, timeZone: site.timeZone, actorId: user.id });
     return "placeError" in placed ? data(placed, { status: 400 }) : placed;
   }
-  const planted = await inventoryAction(form, { siteId, spotId: spot.id, actorId: user.id });
-  if (planted) return data({ plantError: planted.error }, { status: planted.status });
-  throw data("Unknown action", { status: 400 });
+  const submission = parseWithZod(form, { schema: inventorySchema });
+  if (submission.status !== "success") {
+    const intent = submission.payload.intent;
+    if (intent === "plant-add") return data({ plantResult: submission.reply() }, { status: 400 });
+    if (intent !== "plant-move" && intent !== "plant-remove") refuseForm(submission.error);
+    return data({ plantError: Object.values(submission.error ?? {}).flat()[0] ?? "Choose a plant." }, { status: 400 });
+  }
+  const planted = await inventoryAction(submission.value, { siteId, spotId: spot.id, actorId: user.id });
+  if (planted.error && submission.value.intent === "plant-add") {
+    return data({ plantResult: submission.reply({ fieldErrors: { plantKey: [planted.error] } }) }, { status: planted.status });
+  }
+  return data({ plantError: planted.error }, { status: planted.status });
 }
 
 /** Beside the DLI figures: which lux factor they use, and a light sensor that clips. */
@@ -317,6 +329,7 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
             unit={unit}
             capacity={spot.capacity}
             error={actionData && "plantError" in actionData ? (actionData.plantError ?? undefined) : undefined}
+            lastResult={actionData && "plantResult" in actionData ? actionData.plantResult : undefined}
             busy={navigation.state !== "idle"}
           />
         </div>

@@ -4,7 +4,7 @@ import { requireSiteRole } from "~/.server/auth";
 import { readForm } from "~/.server/ids";
 import { createSpot } from "~/.server/spots";
 import { SpotForm } from "~/components/spot-form";
-import { spotSchema } from "~/lib/forms";
+import { spotSchema } from "~/forms/spot";
 import type { Route } from "./+types/spots.new";
 
 export const meta: Route.MetaFunction = () => [{ title: "Add a spot · Nichewise" }];

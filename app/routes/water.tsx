@@ -1,10 +1,14 @@
 import { useMemo, useRef, useEffect } from "react";
+import { getCollectionProps, getFormProps, getInputProps, getSelectProps, useForm } from "@conform-to/react";
+import { parseWithZod } from "@conform-to/zod/v4";
 import { data, Form, useNavigation } from "react-router";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
 import { getSite } from "~/.server/sites";
-import { formId, readForm } from "~/.server/ids";
+import { readForm, refuseForm } from "~/.server/ids";
 import { addWaterCheck, deleteWaterCheck, listWaterChecks } from "~/.server/water";
 import { Chart, type ChartSpec } from "~/components/chart";
+import { FieldError, FormErrors } from "~/components/field";
+import { MEASURES, waterCheckSchema, waterSchema } from "~/forms/water";
 import { parseSource, ppmLabel, sourceName, STANDARD_SOURCES } from "~/domain/water/logged-check";
 import { PH_MAX, PH_MIN, ROUTINE_WATERING_MAX_EC, routineLimitPpm, UNBUFFERED_MAX_EC, type WaterVerdict } from "~/domain/water/verdict";
 import { formatInZone, toLocalInputValue, zonedToUtc } from "~/lib/time";
@@ -20,53 +24,38 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   return { role, timeZone: site.timeZone, today: toLocalInputValue(new Date(), site.timeZone).slice(0, 10), checks };
 }
 
-const num = (v: FormDataEntryValue | null) => {
-  const s = String(v ?? "").trim().replace(",", ".");
-  if (s === "") return null;
-  const n = Number(s);
-  return Number.isFinite(n) ? n : Number.NaN;
-};
-
 export async function action({ request, params }: Route.ActionArgs) {
   const { siteId, user } = await requireSiteRole(request, params.siteId, WRITERS);
-  const form = await readForm(request);
-  const intent = String(form.get("intent") ?? "");
-  if (intent === "delete") {
-    await deleteWaterCheck(siteId, user.id, formId(form, "checkId"));
-    return { intent, ok: true };
+  const submission = parseWithZod(await readForm(request), { schema: waterSchema });
+  if (submission.status !== "success") {
+    if (submission.payload.intent !== "log") refuseForm(submission.error);
+    return data({ intent: "log" as const, result: submission.reply() }, { status: 400 });
   }
-  if (intent !== "log") throw data("Unknown action", { status: 400 });
+  const form = submission.value;
+  if (form.intent === "delete") {
+    await deleteWaterCheck(siteId, user.id, form.checkId);
+    return { intent: form.intent, ok: true as const };
+  }
   const site = await getSite(siteId);
-  const typed = Object.fromEntries([...form.entries()].map(([k, v]) => [k, String(v)]));
-  const fail = (error: string) => data({ intent, error, typed }, { status: 400 });
-
-  const source = parseSource(typed.source ?? "", typed.ownSource ?? "");
-  if (!source) return fail("Name the water source (up to 40 characters), or choose tap, rain or filtered.");
-  const m = /^(\d{4})-(\d{2})-(\d{2})$/.exec(typed.checkedOn ?? "");
-  if (!m) return fail("Enter the date of the check.");
+  const [year, month, day] = form.checkedOn.split("-").map(Number);
   // Noon local time, so the date reads the same in every time zone of the site's members.
-  const checkedOn = zonedToUtc({ year: +m[1], month: +m[2], day: +m[3], hour: 12 }, site.timeZone);
-  if (Number.isNaN(checkedOn.getTime()) || checkedOn.getTime() > Date.now() + 36 * 3_600_000) return fail("The date cannot be in the future.");
-  const value = num(form.get("value"));
-  const ph = num(form.get("ph"));
-  const measure = typed.measure === "ec" ? "ec" : "ppm";
-  const scaleValue = Number(typed.scale);
-  const scale = scaleValue === 0.5 || scaleValue === 0.7 ? scaleValue : null;
-  if (value != null && !(value >= 0 && value <= (measure === "ec" ? 20000 : 10000))) {
-    return fail(measure === "ec" ? "EC is a number of µS/cm, 0 to 20,000." : "TDS is a number of ppm, 0 to 10,000.");
+  const checkedOn = zonedToUtc({ year, month, day, hour: 12 }, site.timeZone);
+  if (Number.isNaN(checkedOn.getTime()) || checkedOn.getTime() > Date.now() + 36 * 3_600_000) {
+    return data({ intent: form.intent, result: submission.reply({ fieldErrors: { checkedOn: ["The date cannot be in the future."] } }) }, { status: 400 });
   }
-  if (ph != null && !(ph >= 0 && ph <= 14)) return fail("pH is between 0 and 14.");
-  if (value == null && ph == null) return fail("Enter a TDS/EC reading, a pH, or both.");
+  const source = parseSource(form.source, form.ownSource ?? "")!;
+  const value = form.value ?? null;
+  const scale = form.scale === "0.5" ? 0.5 : form.scale === "0.7" ? 0.7 : null;
   await addWaterCheck(siteId, user.id, {
     source,
     checkedOn,
-    ppm: measure === "ppm" ? value : null,
-    ec: measure === "ec" ? value : null,
+    ppm: form.measure === "ppm" ? value : null,
+    ec: form.measure === "ec" ? value : null,
     // The scale of a TDS meter turns its ppm into conductivity; an EC meter's is kept for its ppm.
     ecScale: value != null ? scale : null,
-    ph,
+    ph: form.ph ?? null,
   });
-  return { intent, ok: true, source };
+  return { intent: form.intent, ok: true as const, source };
 }
 
 // Water verdicts in Nichewise's own marks (docs/design.md): a drop, filled when the water suits
@@ -95,12 +84,20 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
   const canLog = role !== "mentor";
   const navigation = useNavigation();
   const busy = navigation.state !== "idle";
-  const ad = actionData as { intent?: string; error?: string; typed?: Record<string, string>; ok?: boolean } | undefined;
-  const typed = ad?.error ? (ad.typed ?? {}) : {};
+  const logged = actionData && "ok" in actionData && actionData.intent === "log";
+  const [logForm, logFields] = useForm({
+    id: "water-check",
+    lastResult: actionData && "result" in actionData ? actionData.result : undefined,
+    defaultValue: { source: "tap", checkedOn: today, measure: "ppm" },
+    onValidate: ({ formData }) => parseWithZod(formData, { schema: waterCheckSchema }),
+    shouldValidate: "onBlur",
+    // An error clears while the field is corrected, so the button does not move under the pointer.
+    shouldRevalidate: "onInput",
+  });
   const formRef = useRef<HTMLFormElement>(null);
   useEffect(() => {
-    if (ad?.ok && ad.intent === "log") formRef.current?.reset();
-  }, [ad]);
+    if (logged) formRef.current?.reset();
+  }, [actionData]);
 
   const sources = useMemo(() => [...new Set(checks.map((c) => c.source))], [checks]);
   const latest = sources.map((s) => checks.filter((c) => c.source === s).at(-1)!);
@@ -273,13 +270,13 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
         {canLog ? (
           <section className="card">
             <h3 className="h2 mb-3">Log a check</h3>
-            <Form method="post" className="space-y-3" ref={formRef}>
+            <Form method="post" className="space-y-3" ref={formRef} {...getFormProps(logForm)}>
               <input type="hidden" name="intent" value="log" />
               <div>
-                <label className="label" htmlFor="source">
+                <label className="label" htmlFor={logFields.source.id}>
                   Source
                 </label>
-                <select id="source" name="source" className="field" defaultValue={typed.source ?? "tap"}>
+                <select className="field" {...getSelectProps(logFields.source)}>
                   {STANDARD_SOURCES.map((s) => (
                     <option key={s} value={s}>
                       {sourceName(s)}
@@ -289,62 +286,62 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
                 </select>
               </div>
               <div>
-                <label className="label" htmlFor="ownSource">
+                <label className="label" htmlFor={logFields.ownSource.id}>
                   Its name, for another source
                 </label>
-                <input id="ownSource" name="ownSource" className="field" list="own-sources" maxLength={40} defaultValue={typed.ownSource} placeholder="e.g. Water butt, RO unit" />
+                <input className="field" list="own-sources" maxLength={40} placeholder="e.g. Water butt, RO unit" {...getInputProps(logFields.ownSource, { type: "text" })} />
                 <datalist id="own-sources">
                   {ownSources.map((s) => (
                     <option key={s} value={s} />
                   ))}
                 </datalist>
+                <FieldError meta={logFields.ownSource} />
               </div>
               <div>
-                <label className="label" htmlFor="checkedOn">
+                <label className="label" htmlFor={logFields.checkedOn.id}>
                   Date
                 </label>
-                <input id="checkedOn" name="checkedOn" type="date" className="field" max={today} defaultValue={typed.checkedOn ?? today} required />
+                <input className="field" max={today} required {...getInputProps(logFields.checkedOn, { type: "date" })} />
+                <FieldError meta={logFields.checkedOn} />
               </div>
               <fieldset>
                 <legend className="label">The meter reads</legend>
                 <div className="flex flex-wrap gap-4 text-sm">
-                  <label className="flex items-center gap-2">
-                    <input type="radio" name="measure" value="ppm" defaultChecked={typed.measure !== "ec"} /> TDS in ppm
-                  </label>
-                  <label className="flex items-center gap-2">
-                    <input type="radio" name="measure" value="ec" defaultChecked={typed.measure === "ec"} /> EC in µS/cm
-                  </label>
+                  {getCollectionProps(logFields.measure, { type: "radio", options: [...MEASURES] }).map(({ key, ...props }) => (
+                    <label key={key} className="flex items-center gap-2">
+                      <input {...props} /> {props.value === "ec" ? "EC in µS/cm" : "TDS in ppm"}
+                    </label>
+                  ))}
                 </div>
               </fieldset>
               <div>
-                <label className="label" htmlFor="value">
+                <label className="label" htmlFor={logFields.value.id}>
                   Reading
                 </label>
-                <input id="value" name="value" inputMode="decimal" className="field" defaultValue={typed.value} placeholder="e.g. 280" />
+                <input inputMode="decimal" className="field" placeholder="e.g. 280" {...getInputProps(logFields.value, { type: "text" })} />
+                <FieldError meta={logFields.value} />
               </div>
               <div>
-                <label className="label" htmlFor="scale">
+                <label className="label" htmlFor={logFields.scale.id}>
                   Meter's ppm scale
                 </label>
-                <select id="scale" name="scale" className="field" defaultValue={typed.scale ?? ""}>
+                <select className="field" {...getSelectProps(logFields.scale)}>
                   <option value="">Not sure</option>
                   <option value="0.5">0.5 — NaCl scale (ppm = µS/cm × 0.5)</option>
                   <option value="0.7">0.7 — 442 scale (ppm = µS/cm × 0.7)</option>
                 </select>
                 <p className="hint">The meter's manual says which. It matters for a TDS reading in ppm: the same water reads 1.4 times higher on a 0.7 meter.</p>
+                <FieldError meta={logFields.scale} />
               </div>
               <div>
-                <label className="label" htmlFor="ph">
+                <label className="label" htmlFor={logFields.ph.id}>
                   pH
                 </label>
-                <input id="ph" name="ph" inputMode="decimal" className="field" defaultValue={typed.ph} placeholder="e.g. 6.2" />
+                <input inputMode="decimal" className="field" placeholder="e.g. 6.2" {...getInputProps(logFields.ph, { type: "text" })} />
+                <FieldError meta={logFields.ph} />
               </div>
-              {ad?.error ? (
-                <p className="error" role="alert">
-                  {ad.error}
-                </p>
-              ) : null}
-              {ad?.ok && ad.intent === "log" ? (
+              <FormErrors errors={logForm.errors} />
+              {logged ? (
                 <p className="text-sm text-good" role="status">
                   ✓ Check saved.
                 </p>

@@ -1,8 +1,10 @@
 import { useEffect, useRef } from "react";
+import { getFormProps, getInputProps, getSelectProps, useForm } from "@conform-to/react";
+import { parseWithZod } from "@conform-to/zod/v4";
 import { data, Form, Link, useNavigation } from "react-router";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
-import { readForm } from "~/.server/ids";
-import { ConfirmRemoval, parseWish, removeWish, saveWish, siteInventory, sitePlants, siteWishlist } from "~/.server/plants";
+import { readForm, refuseForm } from "~/.server/ids";
+import { ConfirmRemoval, removeWish, saveWish, siteInventory, sitePlants, siteWishlist } from "~/.server/plants";
 import { fitSummary, judgedPeriods, parsePeriod, pickableMonths, spotProfiles, windowOf } from "~/.server/profiles";
 import { periodLabel, PeriodPicker } from "~/components/period-picker";
 import { getSite } from "~/.server/sites";
@@ -11,6 +13,8 @@ import { VerdictBadge } from "~/components/season";
 import { rankSpotsForPlant, VERDICT_ORDER } from "~/domain/fit/verdict";
 import { planWishlist } from "~/domain/fit/wishlist";
 import { fitProjections } from "~/.server/projections";
+import { FieldError, FormErrors } from "~/components/field";
+import { saveWishSchema, wishlistSchema } from "~/forms/wishlist";
 import type { Route } from "./+types/wishlist";
 
 export const meta: Route.MetaFunction = () => [{ title: "Wishlist · Nichewise" }];
@@ -77,29 +81,27 @@ export async function loader({ request, params }: Route.LoaderArgs) {
 
 export async function action({ request, params }: Route.ActionArgs) {
   const { siteId, user } = await requireSiteRole(request, params.siteId, WRITERS);
-  const form = await readForm(request);
-  const intent = form.get("intent");
+  const submission = parseWithZod(await readForm(request), { schema: wishlistSchema });
+  if (submission.status !== "success") {
+    if (submission.payload.intent !== "save") refuseForm(submission.error);
+    return data({ intent: "save" as const, plantKey: String(submission.payload.plantKey ?? "").slice(0, 120), result: submission.reply() }, { status: 400 });
+  }
+  const form = submission.value;
   const plants = await sitePlants(siteId);
-  if (intent === "save") {
-    const parsed = parseWish(form, String(form.get("plantKey") ?? ""));
-    if (!parsed.success) return data({ error: parsed.error.issues[0]?.message ?? "Check the plant and pots." }, { status: 400 });
-    const plant = plants.find((p) => p.key === parsed.data.plantKey);
-    if (!plant) return data({ error: "Choose a plant from the list." }, { status: 400 });
-    await saveWish(siteId, user.id, { plantKey: plant.key, mustHave: parsed.data.mustHave === "on", pots: parsed.data.pots }, plant.name);
-    return { error: null, saved: plant.key, restored: form.get("restore") === "1" ? plant.name : null };
+  if (form.intent === "save") {
+    const plant = plants.find((p) => p.key === form.plantKey);
+    if (!plant) return data({ intent: form.intent, plantKey: "", result: submission.reply({ fieldErrors: { plantKey: ["Choose a plant from the list."] } }) }, { status: 400 });
+    await saveWish(siteId, user.id, { plantKey: plant.key, mustHave: form.mustHave, pots: form.pots }, plant.name);
+    return { saved: plant.key, restored: form.restore ? plant.name : null };
   }
-  if (intent === "remove") {
-    const plantKey = String(form.get("plantKey") ?? "").slice(0, 120);
-    const plantName = plants.find((p) => p.key === plantKey)?.name ?? plantKey;
-    try {
-      const removed = await removeWish(siteId, user.id, plantKey, { confirmed: form.get("confirm") === "yes", plantName });
-      return { error: null, removed };
-    } catch (e) {
-      if (e instanceof ConfirmRemoval) return { error: null, confirm: { plantKey, name: plantName } };
-      throw e;
-    }
+  const plantName = plants.find((p) => p.key === form.plantKey)?.name ?? form.plantKey;
+  try {
+    const removed = await removeWish(siteId, user.id, form.plantKey, { confirmed: form.confirm === "yes", plantName });
+    return { removed };
+  } catch (e) {
+    if (e instanceof ConfirmRemoval) return { confirm: { plantKey: form.plantKey, name: plantName } };
+    throw e;
   }
-  throw data("Unknown action", { status: 400 });
 }
 
 export default function Wishlist({ loaderData, actionData }: Route.ComponentProps) {
@@ -110,6 +112,18 @@ export default function Wishlist({ loaderData, actionData }: Route.ComponentProp
   useEffect(() => {
     if (actionData && "saved" in actionData && actionData.saved) addForm.current?.reset();
   }, [actionData]);
+  // A refused change of a listed plant shows at its row; anything else at the add form.
+  const failed = actionData && "result" in actionData ? actionData : null;
+  const rowError = (plantKey: string) => (failed && failed.plantKey === plantKey ? Object.values(failed.result.error ?? {}).flat()[0] : undefined);
+  const [wishForm, addFields] = useForm({
+    id: "wish-add",
+    lastResult: failed && !rows.some((r) => r.plantKey === failed.plantKey) ? failed.result : undefined,
+    defaultValue: { pots: "1" },
+    onValidate: ({ formData }) => parseWithZod(formData, { schema: saveWishSchema }),
+    shouldValidate: "onBlur",
+    // An error clears while the field is corrected, so the button does not move under the pointer.
+    shouldRevalidate: "onInput",
+  });
   const removed = actionData && "removed" in actionData ? actionData.removed : null;
   const confirm = actionData && "confirm" in actionData ? actionData.confirm : null;
   const full = spots.filter((s) => s.filledByMustHaves);
@@ -242,6 +256,11 @@ export default function Wishlist({ loaderData, actionData }: Route.ComponentProp
                       <button className="btn-quiet py-1 text-sm" disabled={busy}>
                         Save
                       </button>
+                      {rowError(r.plantKey) ? (
+                        <p className="error w-full" role="alert">
+                          {rowError(r.plantKey)}
+                        </p>
+                      ) : null}
                     </Form>
                     <Form method="post">
                       <input type="hidden" name="intent" value="remove" />
@@ -296,13 +315,13 @@ export default function Wishlist({ loaderData, actionData }: Route.ComponentProp
       ) : null}
 
       {canEdit ? (
-        <Form ref={addForm} method="post" className="card grid gap-3 sm:grid-cols-[3fr_1fr_auto_auto] sm:items-end" aria-label="Add to the wishlist">
+        <Form ref={addForm} method="post" className="card grid gap-3 sm:grid-cols-[3fr_1fr_auto_auto] sm:items-end" aria-label="Add to the wishlist" {...getFormProps(wishForm)}>
           <input type="hidden" name="intent" value="save" />
           <div>
-            <label className="label" htmlFor="wish-plant">
+            <label className="label" htmlFor={addFields.plantKey.id}>
               Plant
             </label>
-            <select id="wish-plant" name="plantKey" className="field">
+            <select className="field" {...getSelectProps(addFields.plantKey)}>
               {choices.map((p) => (
                 <option key={p.key} value={p.key}>
                   {p.name}
@@ -311,22 +330,22 @@ export default function Wishlist({ loaderData, actionData }: Route.ComponentProp
             </select>
           </div>
           <div>
-            <label className="label" htmlFor="wish-pots">
+            <label className="label" htmlFor={addFields.pots.id}>
               Pots
             </label>
-            <input id="wish-pots" name="pots" type="number" min={1} max={100} defaultValue={1} className="field" />
+            <input min={1} max={100} className="field" {...getInputProps(addFields.pots, { type: "number" })} />
           </div>
           <label className="inline-flex items-center gap-2 pb-2 text-sm">
-            <input type="checkbox" name="mustHave" /> Must-have
+            <input {...getInputProps(addFields.mustHave, { type: "checkbox" })} /> Must-have
           </label>
           <button className="btn" disabled={busy}>
             Add to the wishlist
           </button>
-          {actionData?.error ? (
-            <p className="error sm:col-span-4" role="alert">
-              {actionData.error}
-            </p>
-          ) : null}
+          <div className="sm:col-span-4">
+            <FieldError meta={addFields.plantKey} />
+            <FieldError meta={addFields.pots} />
+            <FormErrors errors={wishForm.errors} />
+          </div>
         </Form>
       ) : null}
     </div>

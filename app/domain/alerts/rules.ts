@@ -7,8 +7,10 @@
 // event and never flaps it.
 import { dewPointMargin } from "~/domain/climate/psychro";
 
-export type AlertKind = "cold" | "heat" | "dry" | "condensation" | "silent" | "battery";
-export const ALERT_KINDS: AlertKind[] = ["cold", "heat", "dry", "condensation", "silent", "battery"];
+import { WATCH_KINDS, type WatchKind } from "~/domain/vocabulary";
+
+export type AlertKind = WatchKind;
+export const ALERT_KINDS: AlertKind[] = [...WATCH_KINDS];
 
 export type KindInfo = {
   label: string;

@@ -1,7 +1,7 @@
 import { describe, it, expect } from "vitest";
 import fc from "fast-check";
+import { LIGHT_SOURCES } from "~/domain/vocabulary";
 import {
-  LIGHT_SOURCES,
   LIGHT_SOURCE_LABELS,
   LIGHT_SOURCE_LUX_PER_PPFD,
   LUX_PER_FOOT_CANDLE,

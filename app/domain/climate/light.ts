@@ -1,5 +1,6 @@
 // Light arithmetic for hobby lux sensors. A lux meter weighs light by the human eye, plants count
 // photons in 400–700 nm, so the conversion depends on the light source's spectrum.
+import { LIGHT_SOURCES, type LightSource } from "~/domain/vocabulary";
 
 /**
  * Lux per µmol m⁻² s⁻¹ of PPFD (400–700 nm), from Thimijan & Heins (1983), "Photometric,
@@ -19,13 +20,6 @@ export const LUX_PER_PPFD = {
   metalHalide: 71,
   incandescent: 50,
 } as const;
-
-/**
- * What lights a spot, as the grower sets it per spot: it picks the lux → PPFD factor that the
- * spot's daily light integral uses.
- */
-export const LIGHT_SOURCES = ["sun", "led", "fluorescent", "mixed"] as const;
-export type LightSource = (typeof LIGHT_SOURCES)[number];
 
 /**
  * White LEDs are not in Thimijan & Heins' table. Ordinary white LEDs (about 2,700–6,500 K) come to

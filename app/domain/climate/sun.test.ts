@@ -7,8 +7,8 @@ import {
   noonElevationByMonth,
   sunTimes,
   type DirectSunMonth,
-  type WindowFacing,
 } from "~/domain/climate/sun";
+import type { WindowFacing } from "~/domain/vocabulary";
 
 // Reference library: suncalc 2.0.2 (degrees; altitude corrected for refraction).
 

@@ -3,6 +3,7 @@
 // from north).
 import * as SunCalc from "suncalc";
 import { median } from "simple-statistics";
+import { FACING_WORDS, type SpotFacing, type WindowFacing } from "~/domain/vocabulary";
 
 const DEG = Math.PI / 180;
 
@@ -61,8 +62,6 @@ export function noonElevationByMonth(lat: number, year: number = DEFAULT_YEAR): 
   return sampleDates(year).map((date, m) => ({ month: m + 1, date, elevation: noonElevation(lat, date) }));
 }
 
-export type WindowFacing = "N" | "NE" | "E" | "SE" | "S" | "SW" | "W" | "NW";
-export type SpotFacing = WindowFacing | "none";
 
 /** Azimuth of the outward normal of a window, degrees clockwise from north. */
 export const FACING_AZIMUTH: Readonly<Record<WindowFacing, number>> = {
@@ -157,11 +156,6 @@ const MONTH_NAMES = [
   "January", "February", "March", "April", "May", "June",
   "July", "August", "September", "October", "November", "December",
 ];
-
-const FACING_WORDS: Record<WindowFacing, string> = {
-  N: "north", NE: "north-east", E: "east", SE: "south-east",
-  S: "south", SW: "south-west", W: "west", NW: "north-west",
-};
 
 function formatLatitude(lat: number): string {
   return `${Number(Math.abs(lat).toFixed(1))}° ${lat >= 0 ? "N" : "S"}`;

@@ -3,6 +3,7 @@
 import { cyclicOrder, type Fact, type CheckResult } from "~/domain/fit/facts";
 import { MONTH_NAMES } from "~/domain/season/profile";
 import { deltaToUnit, toUnit, type TempUnit } from "~/domain/units";
+import { FACING_WORDS, type WindowFacing } from "~/domain/vocabulary";
 
 export type Format = { unit: TempUnit; locale?: string };
 export const DEFAULT_FORMAT: Format = { unit: "C", locale: "en-GB" };
@@ -59,7 +60,6 @@ export function describeMonths(months: number[]): string {
 const episodes = (list: { date: string; valueC: number; hours: number }[], f: Format) =>
   joinAnd(list.map((e) => `${day(e.date, f)}: ${temp(e.valueC, f)} for ${count(e.hours, "hour", "hours", f)}`));
 
-const FACING_WORDS: Record<string, string> = { N: "north", NE: "north-east", E: "east", SE: "south-east", S: "south", SW: "south-west", W: "west", NW: "north-west" };
 
 const pct = (x: number) => `${Math.round(x)} %`;
 const DLI = "mol m⁻² d⁻¹";
@@ -125,7 +125,7 @@ export function describeFact(fact: Fact, f: Format = DEFAULT_FORMAT, name = "thi
     case "light-clipped":
       return `The light sensor hit its ceiling ${describeMonths(fact.months)}: direct sun reads lower than it is, so those months may be brighter than shown.`;
     case "light-window": {
-      const where = `a ${FACING_WORDS[fact.facing] ?? fact.facing}-facing window`;
+      const where = `a ${FACING_WORDS[fact.facing as WindowFacing] ?? fact.facing}-facing window`;
       if (fact.verdict === "scorch")
         return `No light sensor; by the sun's path ${where} gets hot direct sun ${describeMonths(fact.strongSunMonths)} — ${name} wants little or no direct sun, so shade it then (a sheer curtain) or it scorches.`;
       if (fact.verdict === "shade")

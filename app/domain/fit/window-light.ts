@@ -4,7 +4,8 @@
 // judged fine from it; for the rest the estimate says what the sun's path allows and what is not known.
 import type { CheckResult } from "~/domain/fit/facts";
 import type { PlantProfile } from "~/domain/plants/library";
-import { directSunMonths, type SpotFacing } from "~/domain/climate/sun";
+import { directSunMonths } from "~/domain/climate/sun";
+import type { SpotFacing } from "~/domain/vocabulary";
 
 export type SpotWindow = { latitude: number; facing: SpotFacing; indoor: boolean };
 

@@ -1,7 +1,8 @@
 // The outdoor weather turned into the response model's inputs, hour by hour: the air now and
 // smoothed over 3, 12 and 48 hours, the sun (through the spot's window when it faces a known way),
 // local hour and day, the daily mean, outdoor vapour pressure, cloud and wind. Pure: no I/O.
-import { FACING_AZIMUTH, type SpotFacing } from "~/domain/climate/sun";
+import { FACING_AZIMUTH } from "~/domain/climate/sun";
+import type { SpotFacing } from "~/domain/vocabulary";
 import { saturationVapourPressure } from "~/domain/climate/psychro";
 import { zoneClock } from "~/domain/season/local-time";
 

@@ -10,7 +10,8 @@ import {
   monthKey,
   zoneClock,
 } from "~/domain/season/local-time";
-import { luxPerPpfdFor, type LightSource } from "~/domain/climate/light";
+import { luxPerPpfdFor } from "~/domain/climate/light";
+import type { LightSource } from "~/domain/vocabulary";
 import { resolveWall } from "~/lib/time";
 import type {
   DaySummary,

@@ -3,7 +3,7 @@
 // (dropped from URLs by the WHATWG URL parser), backslashes (read as slashes), protocol-relative
 // and absolute URLs.
 import { describe, expect, it } from "vitest";
-import { safeNext } from "~/lib/forms";
+import { safeNext } from "~/forms/auth";
 
 describe("safeNext", () => {
   it("sends off-site targets home", () => {
