@@ -24,13 +24,10 @@ function offending(dir: string, forbidden: RegExp): string[] {
   return sources(dir).flatMap((f) => importsOf(f).filter((m) => forbidden.test(m)).map((m) => `${relative(".", f)} -> ${m}`));
 }
 
-// Form schemas moved out of lib into app/forms/ in the same issue (one schema per form); until that
-// move lands, lib/forms.ts still reads the light sources from domain.
-const MOVING = /^lib\/forms\.ts -> /;
 
 describe("arrows run one way", () => {
   it("lib imports nothing of domain, the server, components, forms or routes", () => {
-    expect(offending("lib", /^~\/(domain|\.server|db|components|forms|routes)\//).filter((x) => !MOVING.test(x))).toEqual([]);
+    expect(offending("lib", /^~\/(domain|\.server|db|components|forms|routes)\//)).toEqual([]);
   });
 
   it("domain imports nothing of the server, the database schema, components, forms or routes", () => {
