@@ -6,7 +6,6 @@ import { db } from "~/.server/db";
 import { ensureColdWatch } from "~/.server/watches";
 import { auditLog, customPlants, spotPlants, spots, wishlist } from "~/db/schema.server";
 import { PLANT_LIBRARY, type PlantProfile } from "~/domain/plants/library";
-import { z } from "zod";
 import { storedProfileSchema } from "~/forms/plant";
 import type { InventoryChange } from "~/forms/inventory";
 

@@ -121,7 +121,7 @@ export default function Members({ loaderData, actionData }: Route.ComponentProps
   const inviteForm = useRef<HTMLFormElement>(null);
   useEffect(() => {
     if (invited) inviteForm.current?.reset();
-  }, [ad]);
+  }, [ad, invited]);
 
   return (
     <div className="grid grid-cols-1 gap-6 lg:grid-cols-[minmax(0,1fr)_minmax(0,22rem)]">

@@ -97,7 +97,7 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
   const formRef = useRef<HTMLFormElement>(null);
   useEffect(() => {
     if (logged) formRef.current?.reset();
-  }, [actionData]);
+  }, [actionData, logged]);
 
   const sources = useMemo(() => [...new Set(checks.map((c) => c.source))], [checks]);
   const latest = sources.map((s) => checks.filter((c) => c.source === s).at(-1)!);

@@ -88,7 +88,7 @@ export async function startMosquitto(opts: { users: Record<string, string>; tls?
       if (tlsPort) await waitForPort(tlsPort, until);
     } catch (err) {
       child.kill("SIGKILL");
-      throw new Error(`${(err as Error).message}: ${stderr}`);
+      throw new Error(`${(err as Error).message}: ${stderr}`, { cause: err });
     }
   };
   const stop = async () => {

@@ -15,7 +15,7 @@ import { auditLog } from "~/db/schema.server";
 import { recordRejectionsSoon } from "~/.server/ingest/rejections";
 import { sensorInfo } from "~/.server/ingest/sensor-cache";
 import { writer, type WriteResult } from "~/.server/ingest/writer";
-import { readCsvHead, rowsOf, type CsvHead, type CsvRow, type CsvSource } from "~/.server/ingest/csv-file";
+import { rowsOf, type CsvHead, type CsvRow, type CsvSource } from "~/.server/ingest/csv-file";
 
 type Failure = { line: number; reason: string; row: string[] };
 type Conversion = { now: Date; kind: SpotKindForLimits; clock: WallClockReader };

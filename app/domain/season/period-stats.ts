@@ -1,7 +1,7 @@
 // The statistics of a period (a month, a season, a month of the year across years) from its days:
 // lowest and highest, percentiles of the hourly means, mean daily low and high, day–night
 // difference, humidity, hours under the lines, light, and the light sensor's ceiling.
-import { mean, quantileSorted } from "simple-statistics";
+import { quantileSorted } from "simple-statistics";
 import { dayDli, dayNightDifference, finiteOrNull, meanOrNull, type DayAgg } from "~/domain/season/days";
 import { CLIP_MIN_DAYS, CLIP_MIN_HOURS, CLIP_MIN_LUX, CLIP_TOLERANCE, MIN_HOURS_FOR_DAY } from "~/domain/season/thresholds";
 import type { LuxClipping, PeriodStats } from "~/domain/season/types";

@@ -2,7 +2,7 @@ import { describe, expect, it } from "vitest";
 import * as SunCalc from "suncalc";
 import { seasonProfile } from "~/domain/season/profile";
 import { MIN_DAYS_FOR_MONTH, MIN_HOURS_FOR_DAY } from "~/domain/season/thresholds";
-import type { HourlyRollup, Site } from "~/domain/season/types";
+import type { Site } from "~/domain/season/types";
 import { coldNights } from "~/domain/fit/temperature";
 import { DEFAULT_FIT_THRESHOLDS } from "~/domain/fit/facts";
 import { PLANT_LIBRARY } from "~/domain/plants/library";
