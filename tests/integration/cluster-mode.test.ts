@@ -139,6 +139,8 @@ describe("the lease holder's alert engine", () => {
        VALUES ($1, 'cold', 10, 10, 1, 30, false) RETURNING id`,
       [spot.id],
     );
+    // Other files' watches share this database: paused, so the new holder's catch-up is this spot's alone.
+    await pool().query(`UPDATE watches SET paused = true WHERE spot_id <> $1`, [spot.id]);
     // This process's writer commits nothing; the ingest worker's writer (another process in
     // cluster mode) commits the readings and announces them.
     lease = startAlertsUnderLease(new ReadingWriter(), { connectionString: process.env.DATABASE_URL!, maxLagMs: Number.POSITIVE_INFINITY, checkEveryMs: 3_600_000, retryMs: 100 });
