@@ -27,14 +27,12 @@ import { fitsFor, glassContextFor, judgedPeriods, parseGlazing, parsePeriod, pic
 import { slimProfile } from "~/domain/season/slim";
 import { periodLabel, PeriodPicker } from "~/components/period-picker";
 import { fitProjection } from "~/.server/projections";
-import { dayOne } from "~/.server/day-one";
-import { DayOne, type DayOneView } from "~/components/day-one";
+import { dayOneFor } from "~/.server/day-one-view";
+import { DayOne } from "~/components/day-one";
 import { VERDICT_RULES } from "~/domain/fit/verdict";
 import { timeAgo } from "~/lib/time";
 import { formatTemp } from "~/domain/units";
-import { LIGHT_SOURCE_LABELS } from "~/domain/climate/light";
-import type { LightSource } from "~/domain/vocabulary";
-import type { SeasonProfile } from "~/domain/season/types";
+import { LightNotes } from "~/components/light-notes";
 import type { Route } from "./+types/spots.$spotId";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.spot.name ?? "Spot"} · Nichewise` }];
@@ -96,39 +94,6 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   };
 }
 
-const dateIn = (d: Date, timeZone: string, year = true) =>
-  d.toLocaleDateString("en-GB", { day: "numeric", month: "short", ...(year ? { year: "numeric" } : {}), timeZone });
-
-async function dayOneFor(site: { id: number; timeZone: string }, spotId: number, season: SeasonProfile, fits: ReturnType<typeof fitsFor>, now: Date): Promise<DayOneView> {
-  const d = await dayOne(site, spotId, { now });
-  const likelyFits = fits.filter((f) => f.confidence && f.confidence !== "measured" && f.verdict !== "not enough data yet");
-  const likely = (["thrives here", "possible with care", "good for part of the year", "struggles here"] as const)
-    .map((verdict) => ({ verdict, names: likelyFits.filter((f) => f.verdict === verdict).map((f) => f.name) }))
-    .filter((l) => l.names.length > 0);
-  const basisOf = likelyFits[0]?.verdictText;
-  // A date-only string ("YYYY-MM-DD"), read as a calendar day.
-  const day = (iso: string) => new Date(`${iso}T12:00:00Z`).toLocaleDateString("en-GB", { day: "numeric", month: "short", year: "numeric", timeZone: "UTC" });
-  const m = d.model;
-  const firm = fits.find((f) => f.basis?.firmBy)?.basis?.firmBy;
-  return {
-    measuredMonths: season.year.filter((x) => x.coverage.enough).length,
-    daysWithReadings: season.year.reduce((n, x) => n + x.coverage.daysObserved, 0),
-    weather: d.weather,
-    climate: d.climate,
-    versus: d.versus
-      ? { ...d.versus, from: dateIn(d.versus.from, site.timeZone, false), to: dateIn(d.versus.to, site.timeZone, false) }
-      : null,
-    model:
-      m.state === "fitted"
-        ? { ...m, firmBy: firm ? day(firm) : m.firmBy ? dateIn(m.firmBy, "UTC") : null }
-        : m.state === "waiting"
-          ? { state: "waiting", expected: m.expected ? dateIn(m.expected, site.timeZone) : null }
-          : m,
-    likely,
-    basis: basisOf?.startsWith("likely ") ? basisOf.replace(/^likely [^—]+— /, "").replace(/; firm by .*$/, "").replace(/^./, (c) => c.toUpperCase()) : null,
-  };
-}
-
 export async function action({ request, params }: Route.ActionArgs) {
   const { siteId, user } = await requireSiteRole(request, params.siteId, WRITERS);
   const spot = await getSpot(siteId, params.spotId);
@@ -150,27 +115,6 @@ export async function action({ request, params }: Route.ActionArgs) {
     return data({ plantResult: submission.reply({ fieldErrors: { plantKey: [planted.error] } }) }, { status: planted.status });
   }
   return data({ plantError: planted.error }, { status: planted.status });
-}
-
-/** Beside the DLI figures: which lux factor they use, and a light sensor that clips. */
-function LightNotes({ profile, lightSource }: { profile: { luxPerPpfd: number; luxClipped: { ceilingLux: number } | null; year: { name: string; luxClipped: unknown }[] }; lightSource: LightSource }) {
-  const clipped = profile.luxClipped;
-  const months = profile.year.filter((m) => m.luxClipped).map((m) => m.name);
-  return (
-    <>
-      {lightSource !== "sun" ? (
-        <p className="mt-2 text-xs text-muted" data-testid="light-source-note">
-          DLI here counts {profile.luxPerPpfd} lux as 1 µmol m⁻² s⁻¹ of plant light: {LIGHT_SOURCE_LABELS[lightSource].toLowerCase()}, as set for this spot.
-        </p>
-      ) : null}
-      {clipped ? (
-        <p className="caution mt-2 p-2 text-sm" role="note" data-testid="lux-clipped">
-          Your light sensor tops out at about {(Math.round(clipped.ceilingLux / 1000) * 1000).toLocaleString("en")} lux: the sunniest hours read low,
-          so the DLI{months.length ? ` of ${months.join(", ")}` : ""} is a lower bound.
-        </p>
-      ) : null}
-    </>
-  );
 }
 
 export default function SpotPage({ loaderData, actionData }: Route.ComponentProps) {

@@ -10,10 +10,11 @@ import { Chart, type ChartSpec } from "~/components/chart";
 import { FieldError, FormErrors } from "~/components/field";
 import { MEASURES, waterCheckSchema, waterSchema } from "~/forms/water";
 import { parseSource, ppmLabel, sourceName, STANDARD_SOURCES } from "~/domain/water/logged-check";
-import { PH_MAX, PH_MIN, ROUTINE_WATERING_MAX_EC, routineLimitPpm, UNBUFFERED_MAX_EC, type WaterVerdict } from "~/domain/water/verdict";
+import { PH_MAX, PH_MIN, ROUTINE_WATERING_MAX_EC, routineLimitPpm, UNBUFFERED_MAX_EC } from "~/domain/water/verdict";
 import { formatInZone, toLocalInputValue, zonedToUtc } from "~/lib/time";
 import type { Route } from "./+types/water";
 import { WaterIcon } from "~/components/icons";
+import { DropMark, WATER_SOURCE_COLOURS, WATER_VERDICT } from "~/components/water-marks";
 
 export const meta: Route.MetaFunction = () => [{ title: "Water checks · Nichewise" }];
 
@@ -57,27 +58,6 @@ export async function action({ request, params }: Route.ActionArgs) {
   });
   return { intent: form.intent, ok: true as const, source };
 }
-
-// Water verdicts in Nichewise's own marks (docs/design.md): a drop, filled when the water suits
-// routine watering, filled to half when it needs attention, crossed when it does not suit. Beside the words.
-const VERDICT: Record<WaterVerdict, { word: string; cls: string }> = {
-  good: { word: "Good for routine watering", cls: "text-v-thrives" },
-  adjust: { word: "Needs attention", cls: "text-v-care" },
-  avoid: { word: "Not for routine watering", cls: "text-v-struggles" },
-};
-
-const DROP = "M8 1.8C5.6 5 3.5 7.6 3.5 10.2a4.5 4.5 0 0 0 9 0C12.5 7.6 10.4 5 8 1.8z";
-function DropMark({ verdict }: { verdict: WaterVerdict }) {
-  return (
-    <svg viewBox="0 0 16 16" width="14" height="14" className="mr-1 inline-block align-[-0.1em]" aria-hidden="true" data-water={verdict}>
-      <path d={DROP} fill={verdict === "good" ? "currentColor" : "none"} stroke="currentColor" strokeWidth="1.4" />
-      {verdict === "adjust" ? <path d="M3.6 10.2h8.8a4.4 4.4 0 0 1-8.8 0z" fill="currentColor" /> : null}
-      {verdict === "avoid" ? <path d="M5.8 8l4.4 4.4M10.2 8l-4.4 4.4" stroke="currentColor" strokeWidth="1.5" strokeLinecap="round" /> : null}
-    </svg>
-  );
-}
-
-const SOURCE_COLOURS = ["#3b6ea8", "#a9502b", "#3f7a4a", "#a87514", "#6f4fa0", "#2f8a8a"];
 
 export default function Water({ loaderData, actionData }: Route.ComponentProps) {
   const { role, checks, timeZone, today } = loaderData;
@@ -128,7 +108,7 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
         series: [
           ...sources.map((s, i) => ({
             label: sourceName(s),
-            stroke: SOURCE_COLOURS[i % SOURCE_COLOURS.length],
+            stroke: WATER_SOURCE_COLOURS[i % WATER_SOURCE_COLOURS.length],
             width: 2,
             spanGaps: true,
             points: { show: true, size: 6 },
@@ -176,7 +156,7 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
       {latest.length ? (
         <div className="grid gap-4 sm:grid-cols-2 lg:grid-cols-3" data-testid="water-sources">
           {latest.map((c) => {
-            const v = VERDICT[c.verdict];
+            const v = WATER_VERDICT[c.verdict];
             return (
               <section key={c.source} className="card">
                 <h3 className="h2">{sourceName(c.source)}</h3>
@@ -239,7 +219,7 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
                       {c.ph ?? "–"}
                       {c.ph != null && c.buffered === false ? <span className="text-xs text-muted"> (no buffer: not judged)</span> : null}
                     </td>
-                    <td className={VERDICT[c.verdict].cls}>
+                    <td className={WATER_VERDICT[c.verdict].cls}>
                       <DropMark verdict={c.verdict} />
                       {c.verdict === "good" ? "good" : c.verdict === "adjust" ? "needs attention" : "not for routine use"}
                     </td>
