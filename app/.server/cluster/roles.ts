@@ -24,7 +24,7 @@ export async function startIngestRole(stops: (() => Promise<void>)[], stopAll: (
   const { writer } = await import("~/.server/ingest/writer");
   const stopAnnouncing = announceCommits(writer());
   stops.push(async () => stopAnnouncing());
-  const worker = await startIngestWorker({ urls: amqpUrls(), queue: c.NW_AMQP_QUEUE, prefetch: c.NW_AMQP_PREFETCH, writer: writer(), log });
+  const worker = await startIngestWorker({ urls: amqpUrls(), queue: c.NW_AMQP_QUEUE, shards: c.NW_AMQP_SHARDS, connectionString: url, prefetch: c.NW_AMQP_PREFETCH, writer: writer(), log });
   stops.push(worker.close);
   log(`ingest role: writing to ${url.replace(/\/\/[^@]*@/, "//")}`);
   return { stop: stopAll, url: "", mqttPort: 0, port: 0 };
