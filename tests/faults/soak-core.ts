@@ -633,7 +633,7 @@ async function startAlertsIfPresent(
     const until = Date.now() + 120_000;
     while (Date.now() < until) {
       const [behind] = await q<{ n: number }>(
-        `SELECT count(*)::int AS n FROM alert_rules r WHERE r.id = ANY($1::int[]) AND r.evaluated_to IS DISTINCT FROM (
+        `SELECT count(*)::int AS n FROM watches r WHERE r.id = ANY($1::int[]) AND r.evaluated_to IS DISTINCT FROM (
            SELECT max(rd.measured_at) FROM placements p JOIN readings rd ON rd.sensor_id = p.sensor_id AND rd.measured_at >= p.from_at
            WHERE p.spot_id = r.spot_id)`,
         [ruleIds],
