@@ -71,8 +71,11 @@ async function main() {
       const p = startServerProc(name, logDir, webEnv(base + 20 + i));
       stops.push(() => p.kill("SIGKILL"));
       web.push(p);
+      // The lease may be taken before the web server listens: both waits start now.
+      const leased = i === 0 ? p.waitFor(/holds the alert lease/, 60_000) : null;
+      leased?.catch(() => {}); // awaited below
       await p.waitFor(/Web app on/);
-      if (i === 0) await p.waitFor(/holds the alert lease/, 30_000);
+      await leased;
     }
     log(`web instances on :${base + 20} (alert lease holder) and :${base + 21}`);
     await checkStatelessWeb(base + 20, base + 21);
