@@ -298,6 +298,8 @@ export async function startIngestWorker(opts: {
       try {
         session.on("error", () => {});
         await session.connect();
+        // The server drops a silent peer's session (and its shard locks) within about 15 s, as the alert lease's.
+        await session.query("SET tcp_keepalives_idle = 5; SET tcp_keepalives_interval = 5; SET tcp_keepalives_count = 2");
         const c = await amqp.connect(url, { timeout: 5000 });
         c.on("error", () => {}); // "close" follows
         const setup = await c.createChannel();
