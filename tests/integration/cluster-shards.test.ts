@@ -48,7 +48,14 @@ describe("ingest workers sharing the stream (sharded by sensor)", () => {
     await new Promise((r) => server.once("listening", r));
     closeAuth = () => server.close();
     const authUrl = `http://127.0.0.1:${(server.address() as AddressInfo).port}/cluster/auth`;
-    engine = await startEngineCluster({ dir, basePort: Number(process.env.NW_CLUSTER_TEST_BASE_PORT ?? 26340), nodes: 1, authUrls: [authUrl], authKey: KEY, tag: "nwshards" });
+    engine = await startEngineCluster({
+      dir,
+      basePort: Number(process.env.NW_CLUSTER_TEST_BASE_PORT ?? 26340),
+      nodes: 1,
+      authUrls: [authUrl],
+      authKey: KEY,
+      tag: "nwshards",
+    });
   }, 300_000);
 
   afterAll(async () => {
@@ -72,7 +79,16 @@ describe("ingest workers sharing the stream (sharded by sensor)", () => {
           committed.set(r.sensorId, list);
         }
       });
-      return startIngestWorker({ urls: engine!.amqpUrls(), queue: "nichewise.readings", shards: SHARDS, prefetch: 400, writer, rebalanceMs: 200, log: (s) => void logs.push(`${name}: ${s}`), connectionString: process.env.DATABASE_URL });
+      return startIngestWorker({
+        urls: engine!.amqpUrls(),
+        queue: "nichewise.readings",
+        shards: SHARDS,
+        prefetch: 400,
+        writer,
+        rebalanceMs: 200,
+        log: (s) => void logs.push(`${name}: ${s}`),
+        connectionString: process.env.DATABASE_URL,
+      });
     };
     // The first worker alone registers first on every shard, so it starts active on all of them;
     // the second takes shards over as the first hands them on.
@@ -84,7 +100,12 @@ describe("ingest workers sharing the stream (sharded by sensor)", () => {
     const sensors = [];
     for (let i = 0; i < SENSORS; i++) sensors.push(await makeSensor(site, await makeSpot(site)));
     for (const s of sensors) {
-      const c = await mqtt.connectAsync(`mqtt://127.0.0.1:${engine!.nodes[0].mqttPort}`, { protocolVersion: 4, username: String(s.id), password: s.secret, reconnectPeriod: 0 });
+      const c = await mqtt.connectAsync(`mqtt://127.0.0.1:${engine!.nodes[0].mqttPort}`, {
+        protocolVersion: 4,
+        username: String(s.id),
+        password: s.secret,
+        reconnectPeriod: 0,
+      });
       c.on("error", () => {});
       clients.push(c);
     }
@@ -94,14 +115,24 @@ describe("ingest workers sharing the stream (sharded by sensor)", () => {
     let sent = 0;
     let round = 0;
     // Until the shards have spread (two each), or 300 rounds.
-    const spread = () => a.stats.accepted > 0 && b.stats.accepted > 0 && a.activeShards().length === SHARDS / 2 && b.activeShards().length === SHARDS / 2;
+    const spread = () =>
+      a.stats.accepted > 0 &&
+      b.stats.accepted > 0 &&
+      a.activeShards().length === SHARDS / 2 &&
+      b.activeShards().length === SHARDS / 2;
     while (round < 300 && !(round >= 5 && spread())) {
       await Promise.all(
         sensors.map((s, i) => {
           const sends = [];
           for (let j = 0; j < PER_ROUND; j++) {
             const at = new Date(from + (round * PER_ROUND + j) * MIN).toISOString();
-            sends.push(clients[i].publishAsync(`nichewise/sensors/${s.id}/reading`, JSON.stringify({ time: at, temperature: 20 + (j % 3) * 0.1, humidity: 60 }), { qos: 1 }));
+            sends.push(
+              clients[i].publishAsync(
+                `nichewise/sensors/${s.id}/reading`,
+                JSON.stringify({ time: at, temperature: 20 + (j % 3) * 0.1, humidity: 60 }),
+                { qos: 1 },
+              ),
+            );
           }
           return Promise.all(sends);
         }),
@@ -110,10 +141,14 @@ describe("ingest workers sharing the stream (sharded by sensor)", () => {
       round++;
     }
     const ids = sensors.map((s) => s.id);
-    const stored = async () => (await pool().query<{ n: number }>("SELECT count(*)::int AS n FROM readings WHERE sensor_id = ANY($1)", [ids])).rows[0].n;
+    const stored = async () =>
+      (await pool().query<{ n: number }>("SELECT count(*)::int AS n FROM readings WHERE sensor_id = ANY($1)", [ids]))
+        .rows[0].n;
     expect(await eventually(async () => (await stored()) >= sent)).toBe(true);
 
-    console.log(`${round} rounds, ${sent} readings; worker a stored ${a.stats.accepted} (shards [${a.activeShards()}]), b ${b.stats.accepted} (shards [${b.activeShards()}])\n${logs.join("\n")}`);
+    console.log(
+      `${round} rounds, ${sent} readings; worker a stored ${a.stats.accepted} (shards [${a.activeShards()}]), b ${b.stats.accepted} (shards [${b.activeShards()}])\n${logs.join("\n")}`,
+    );
     // Both workers wrote readings: the stream is shared, not one active worker and a standby.
     expect(a.stats.accepted).toBeGreaterThan(0);
     expect(b.stats.accepted).toBeGreaterThan(0);

@@ -20,12 +20,24 @@ import pg from "pg";
 import { CHANNEL_TOPICS, decodeMessage, parseTopic, validateReading } from "~/domain/ingest/payload";
 import { CONFLICT_REASON } from "~/.server/ingest/broker";
 import { recordRejectionsSoon } from "~/.server/ingest/rejections";
-import { cachedSensorInfo, lastTemperature, noteTemperature, sensorInfo, type SensorInfo } from "~/.server/ingest/sensors";
+import {
+  cachedSensorInfo,
+  lastTemperature,
+  noteTemperature,
+  sensorInfo,
+  type SensorInfo,
+} from "~/.server/ingest/sensors";
 import type { ReadingWriter } from "~/.server/ingest/writer";
 import { MQTT_EXCHANGE } from "~/.server/cluster/auth";
 import { routingKeyToTopic } from "~/.server/cluster/config";
 
-export type WorkerStats = { accepted: number; rejected: number; writeFailures: number; reconnects: number; handovers: number };
+export type WorkerStats = {
+  accepted: number;
+  rejected: number;
+  writeFailures: number;
+  reconnects: number;
+  handovers: number;
+};
 export type RunningWorker = {
   stats: WorkerStats;
   connectedTo: () => string | null;
@@ -49,7 +61,9 @@ const LOCK_SESSION_NAME = "nichewise-ingest-shards";
 const sessionQueues = new WeakMap<pg.Client, Promise<unknown>>();
 function ask<T extends pg.QueryResultRow>(session: pg.Client | null, text: string, params: unknown[]): Promise<T[]> {
   if (!session) return Promise.reject(new Error("no lock session"));
-  const run = (sessionQueues.get(session) ?? Promise.resolve()).catch(() => {}).then(() => session.query<T>(text, params));
+  const run = (sessionQueues.get(session) ?? Promise.resolve())
+    .catch(() => {})
+    .then(() => session.query<T>(text, params));
   sessionQueues.set(session, run);
   return run.then((r) => r.rows);
 }
@@ -74,10 +88,14 @@ export async function declareReadingsShards(ch: Channel, queue: string, shards: 
   await ch.bindExchange(exchange, MQTT_EXCHANGE, "nichewise.sensors.*.reading");
   for (let k = 0; k < shards; k++) {
     const q = shardQueue(queue, k);
-    await ch.assertQueue(q, { durable: true, arguments: { "x-queue-type": "quorum", "x-single-active-consumer": true } });
+    await ch.assertQueue(q, {
+      durable: true,
+      arguments: { "x-queue-type": "quorum", "x-single-active-consumer": true },
+    });
     await ch.bindQueue(q, exchange, RING_WEIGHT);
   }
-  for (const channel of CHANNEL_TOPICS) await ch.bindQueue(shardQueue(queue, 0), MQTT_EXCHANGE, `nichewise.sensors.*.${channel}`);
+  for (const channel of CHANNEL_TOPICS)
+    await ch.bindQueue(shardQueue(queue, 0), MQTT_EXCHANGE, `nichewise.sensors.*.${channel}`);
 }
 
 type Shard = {
@@ -131,7 +149,9 @@ export async function startIngestWorker(opts: {
 
   function reject(s: Shard, msg: ConsumeMessage, sensorId: number | null, reason: string) {
     stats.rejected++;
-    recordRejectionsSoon([{ sensorId, source: "mqtt", topic: topicOf(msg), reason, payload: msg.content.subarray(0, 500).toString("utf8") }]);
+    recordRejectionsSoon([
+      { sensorId, source: "mqtt", topic: topicOf(msg), reason, payload: msg.content.subarray(0, 500).toString("utf8") },
+    ]);
     ack(s, msg);
   }
 
@@ -139,7 +159,9 @@ export async function startIngestWorker(opts: {
   const ack = (s: Shard, msg: ConsumeMessage) => {
     try {
       s.ch.ack(msg);
-    } catch {}
+    } catch {
+      // closed: the engine has it back
+    }
     settled(s);
   };
 
@@ -148,7 +170,9 @@ export async function startIngestWorker(opts: {
     setTimeout(() => {
       try {
         s.ch.nack(msg, false, true);
-      } catch {}
+      } catch {
+        // closed: the engine has it back
+      }
       settled(s);
     }, RETRY_MS).unref();
   }
@@ -173,7 +197,9 @@ export async function startIngestWorker(opts: {
     const session = locks;
     try {
       while (!closing && session === locks && session) {
-        const got = (await ask<{ ok: boolean }>(session, "SELECT pg_try_advisory_lock($1, $2) AS ok", [SHARD_LOCK_CLASS, s.k]))[0].ok;
+        const got = (
+          await ask<{ ok: boolean }>(session, "SELECT pg_try_advisory_lock($1, $2) AS ok", [SHARD_LOCK_CLASS, s.k])
+        )[0].ok;
         if (got) {
           s.locked = true;
           for (const msg of s.waiting.splice(0)) handle(s, msg);
@@ -210,9 +236,20 @@ export async function startIngestWorker(opts: {
     }
   }
 
-  function write(s: Shard, msg: ConsumeMessage, sensorId: number, info: SensorInfo | null, payload: unknown, partial: boolean) {
+  function write(
+    s: Shard,
+    msg: ConsumeMessage,
+    sensorId: number,
+    info: SensorInfo | null,
+    payload: unknown,
+    partial: boolean,
+  ) {
     if (!info) return reject(s, msg, sensorId, "unknown sensor (deleted?)");
-    const parsed = validateReading(sensorId, payload as never, { now: new Date(), kind: info.kind, previous: lastTemperature(sensorId) });
+    const parsed = validateReading(sensorId, payload as never, {
+      now: new Date(),
+      kind: info.kind,
+      previous: lastTemperature(sensorId),
+    });
     if (!parsed.ok) return reject(s, msg, sensorId, parsed.reason);
     const reading = parsed.reading;
     opts.writer.store([partial ? { ...reading, partial } : reading]).then(
@@ -243,7 +280,9 @@ export async function startIngestWorker(opts: {
     for (const msg of s.waiting.splice(0)) {
       try {
         s.ch.nack(msg, false, true);
-      } catch {}
+      } catch {
+        // closed: the engine has it back
+      }
       s.outstanding--;
     }
     if (s.outstanding > 0) await new Promise<void>((r) => s.drained.push(r));
@@ -263,7 +302,16 @@ export async function startIngestWorker(opts: {
     handingOver = true;
     try {
       // The queues count only their active consumers, so the workers are counted by their lock sessions.
-      const workers = Math.max(1, (await ask<{ n: number }>(locks, "SELECT count(*)::int AS n FROM pg_stat_activity WHERE application_name = $1 AND datname = current_database()", [LOCK_SESSION_NAME]))[0].n);
+      const workers = Math.max(
+        1,
+        (
+          await ask<{ n: number }>(
+            locks,
+            "SELECT count(*)::int AS n FROM pg_stat_activity WHERE application_name = $1 AND datname = current_database()",
+            [LOCK_SESSION_NAME],
+          )
+        )[0].n,
+      );
       const active = shards.filter((s) => s.active);
       if (active.length > Math.ceil(opts.shards / workers)) await handOver(active[active.length - 1]);
     } catch {
@@ -294,12 +342,18 @@ export async function startIngestWorker(opts: {
   async function connect(): Promise<void> {
     while (!closing) {
       const url = opts.urls[next++ % opts.urls.length];
-      const session = new pg.Client({ connectionString: opts.connectionString ?? process.env.DATABASE_URL, keepAlive: true, application_name: LOCK_SESSION_NAME });
+      const session = new pg.Client({
+        connectionString: opts.connectionString ?? process.env.DATABASE_URL,
+        keepAlive: true,
+        application_name: LOCK_SESSION_NAME,
+      });
       try {
         session.on("error", () => {});
         await session.connect();
         // The server drops a silent peer's session (and its shard locks) within about 15 s, as the alert lease's.
-        await session.query("SET tcp_keepalives_idle = 5; SET tcp_keepalives_interval = 5; SET tcp_keepalives_count = 2");
+        await session.query(
+          "SET tcp_keepalives_idle = 5; SET tcp_keepalives_interval = 5; SET tcp_keepalives_count = 2",
+        );
         const c = await amqp.connect(url, { timeout: 5000 });
         c.on("error", () => {}); // "close" follows
         const setup = await c.createChannel();
@@ -315,7 +369,17 @@ export async function startIngestWorker(opts: {
           const ch = await c.createChannel();
           ch.on("error", () => {});
           await ch.prefetch(perShardPrefetch);
-          list.push({ k, ch, tag: null, active: false, locked: false, locking: false, waiting: [], outstanding: 0, drained: [] });
+          list.push({
+            k,
+            ch,
+            tag: null,
+            active: false,
+            locked: false,
+            locking: false,
+            waiting: [],
+            outstanding: 0,
+            drained: [],
+          });
         }
         shards = list;
         for (const s of list) await consume(s);
@@ -325,7 +389,9 @@ export async function startIngestWorker(opts: {
       } catch (err) {
         await session.end().catch(() => {});
         if (closing) return;
-        log(`ingest worker: ${url.replace(/\/\/[^@]*@/, "//")} refused (${err instanceof Error ? err.message : err}); trying the next node`);
+        log(
+          `ingest worker: ${url.replace(/\/\/[^@]*@/, "//")} refused (${err instanceof Error ? err.message : err}); trying the next node`,
+        );
         await new Promise((r) => setTimeout(r, RECONNECT_MS));
       }
     }
