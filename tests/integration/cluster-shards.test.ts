@@ -163,4 +163,23 @@ describe("ingest workers sharing the stream (sharded by sensor)", () => {
       expect(outOfOrder, `sensor ${id}: reading ${outOfOrder} committed after a later one`).toBe(-1);
     }
   }, 300_000);
+
+  it("routes a sensor's plain-number channel topics (to shard 0) and stores them", async () => {
+    const site = await makeSite(await makeUser());
+    const sensor = await makeSensor(site, await makeSpot(site));
+    const c = await mqtt.connectAsync(`mqtt://127.0.0.1:${engine!.nodes[0].mqttPort}`, {
+      protocolVersion: 4,
+      username: String(sensor.id),
+      password: sensor.secret,
+      reconnectPeriod: 0,
+    });
+    c.on("error", () => {});
+    clients.push(c);
+    await c.publishAsync(`nichewise/sensors/${sensor.id}/temperature`, "21.5", { qos: 1 });
+    const row = async () =>
+      (await pool().query<{ t: number }>("SELECT temperature AS t FROM readings WHERE sensor_id = $1", [sensor.id]))
+        .rows;
+    expect(await eventually(async () => (await row()).length === 1)).toBe(true);
+    expect((await row())[0].t).toBeCloseTo(21.5);
+  }, 120_000);
 });
