@@ -106,6 +106,7 @@ async function startAll(opts: MainOptions, stops: (() => Promise<void>)[], stopA
     log,
     onStored: (siteId) => void forecastWarnings.runner.run(siteId).catch((err) => console.error("[forecast]", err)),
   });
+  if (cluster) cluster.onlyInLeaseHolder(weatherJob, forecastWarnings); // NW_ROLE=web: the lease holder alone
   stops.push(forecastWarnings.stop);
   stops.push(weatherJob.stop);
 

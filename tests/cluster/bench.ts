@@ -1,6 +1,7 @@
 // The benchmark's cluster section (tests/bench/run.ts): the same closed-loop MQTT load (QoS 1, 20
 // clients × 50 in flight) first through the embedded broker (ack after commit), then through a
-// three-node RabbitMQ cluster (tests/cluster/engine.ts) to one ingest worker, then to two. The
+// three-node RabbitMQ cluster (tests/cluster/engine.ts) to one ingest worker, then to two sharing its
+// four shards (app/.server/cluster/worker.ts). The
 // cluster's figure is the rate readings were *stored* at (the engine acks once its quorum queue
 // holds a reading; the workers commit after), beside the rate the engine acked at; CPU seconds per
 // part say where the time goes.
@@ -126,8 +127,16 @@ export async function clusterBench(o: {
     };
     await startWorker(0);
     await measure("1 ingest worker", 1);
+    const spread = async () => {
+      const lists: string[] = [];
+      for (const w of workers) lists.push(`[${(await ipc<{ active: number[] }>(w, "stats")).active.join(",")}]`);
+      return lists.join(" / ");
+    };
+    o.log(`cluster section: 1 worker active on shards ${await spread()}`);
     await startWorker(1);
-    await measure("2 ingest workers (one active: single-active-consumer queue)", 2);
+    await measure("2 ingest workers (4 shards spread over both)", 2);
+    o.log(`cluster section: 2 workers active on shards ${await spread()} (each hands shards on while it is active on more than half)`);
+    rows[rows.length - 1].note += `; active shards at the end ${await spread()}`;
     rows.push({ figure: "Cluster mode: RabbitMQ start, three nodes to one cluster (s)", ours: fmt(engine.startSeconds, 1), baseline: "—", ratio: "—", target: "—", note: `resident memory after the runs: ${engine.nodes.map((n) => `${fmt(Number(/VmRSS:\s+(\d+)/.exec(safeRead(`/proc/${engine.pid(n.index)}/status`))?.[1] ?? 0) / 1024)} MB`).join(", ")}` });
   } finally {
     for (const w of workers) {

@@ -108,7 +108,7 @@ export async function startEngineCluster(o: {
     writeFileSync(path.join(d, "rabbitmq.conf"), conf);
     writeFileSync(path.join(d, "advanced.config"), "[].\n");
     writeFileSync(path.join(d, "rabbitmq-env.conf"), "");
-    writeFileSync(path.join(d, "enabled_plugins"), "[rabbitmq_mqtt,rabbitmq_auth_backend_http].\n");
+    writeFileSync(path.join(d, "enabled_plugins"), "[rabbitmq_mqtt,rabbitmq_auth_backend_http,rabbitmq_consistent_hash_exchange].\n");
     nodes.push({ index: i, name: names[i], amqpPort, mqttPort, process: null, alive: false });
   }
   const t0 = performance.now();

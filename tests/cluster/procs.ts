@@ -14,6 +14,8 @@ export type Proc = {
   /** Resolves with the time the first line matching `re` appeared (from now on, or already). */
   waitFor: (re: RegExp, timeoutMs?: number) => Promise<number>;
   kill: (signal?: NodeJS.Signals) => Promise<void>;
+  /** The last line so far matching `re`. */
+  lastLine: (re: RegExp) => string | undefined;
   alive: () => boolean;
   rssMb: () => number | null;
 };
@@ -31,7 +33,7 @@ export function startServerProc(name: string, logDir: string, env: Record<string
   const onLine = (text: string) => {
     const at = Date.now();
     out.write(`${new Date(at).toISOString()} ${text}\n`);
-    if (lines.length < 10_000) lines.push({ at, text });
+    if (lines.length < 10_000 || /active on shards/.test(text)) lines.push({ at, text });
     for (const w of [...waiters]) {
       if (w.re.test(text)) {
         waiters.splice(waiters.indexOf(w), 1);
@@ -70,6 +72,7 @@ export function startServerProc(name: string, logDir: string, env: Record<string
         child.kill(signal);
       }),
     alive: () => !exited,
+    lastLine: (re) => lines.findLast((l) => re.test(l.text))?.text,
     rssMb: () => rssMb(child.pid),
   };
 }

@@ -71,8 +71,11 @@ async function main() {
       const p = startServerProc(name, logDir, webEnv(base + 20 + i));
       stops.push(() => p.kill("SIGKILL"));
       web.push(p);
+      // The lease may be taken before the web server listens: both waits start now.
+      const leased = i === 0 ? p.waitFor(/holds the alert lease/, 60_000) : null;
+      leased?.catch(() => {}); // awaited below
       await p.waitFor(/Web app on/);
-      if (i === 0) await p.waitFor(/holds the alert lease/, 30_000);
+      await leased;
     }
     log(`web instances on :${base + 20} (alert lease holder) and :${base + 21}`);
     await checkStatelessWeb(base + 20, base + 21);
@@ -80,16 +83,17 @@ async function main() {
     const engine: EngineCluster = await startEngineCluster({ dir: path.join(dir, "engine"), basePort: base, authUrls: [`http://127.0.0.1:${base + 21}/cluster/auth`], authKey, log });
     stops.push(engine.stop);
 
-    const workers: { proc: Proc; active: boolean }[] = [];
+    const workers: Proc[] = [];
     for (let i = 0; i < 2; i++) {
       const p = startServerProc(`ingest-${i + 1}`, logDir, { NW_ROLE: "ingest", DATABASE_URL: pg.url, NW_AMQP_URLS: engine.amqpUrls(i).join(",") });
       stops.push(() => p.kill("SIGKILL"));
-      const w = { proc: p, active: false };
-      void p.waitFor(/taking deliveries/, 3_600_000).then(() => (w.active = true), () => {});
       await p.waitFor(/ingest worker: consuming/);
-      workers.push(w);
+      workers.push(p);
     }
-    log("two ingest workers consuming the quorum queue");
+    // Each worker logs the shards it takes deliveries from ("active on shards [0,2] of 4").
+    const shardsOf = (p: Proc) => /active on shards \[([\d,]*)\]/.exec(p.lastLine(/active on shards/) ?? "")?.[1] ?? "";
+    const shardReport = () => workers.map((p) => `${p.name} [${shardsOf(p)}]${p.alive() ? "" : " (killed)"}`).join(", ");
+    log("two ingest workers consuming every shard of the readings");
     await checkOversize(engine);
 
     let takeoverMs: number | null = null;
@@ -99,21 +103,22 @@ async function main() {
     const fault = async (kind: ClusterFault) => {
       if (memory.length === 0) {
         memory.push(...engine.nodes.map((n) => `${n.name} ${rssMb(engine.pid(n.index)) ?? "?"} MB`));
-        memory.push(...[...web, ...workers.map((w) => w.proc)].map((p) => `${p.name} ${p.rssMb() ?? "?"} MB`));
+        memory.push(...[...web, ...workers].map((p) => `${p.name} ${p.rssMb() ?? "?"} MB`));
       }
       if (kind === "kill-engine-node") {
+        spreadAtStart.text = shardReport();
         await engine.kill(2);
         log("killed engine node 3 (SIGKILL)");
       } else if (kind === "kill-ingest-worker") {
-        // The active one (the queue has a single active consumer); the other takes over.
-        const victim = workers.find((w) => w.active)!;
+        // The one active on more shards; the other takes its shards over.
+        const before = shardReport();
+        const victim = [...workers].sort((x, y) => shardsOf(y).length - shardsOf(x).length)[0];
         const other = workers.find((w) => w !== victim)!;
-        const taken = other.proc.waitFor(/taking deliveries/, 60_000);
+        const taken = other.waitFor(/taking deliveries from/, 60_000);
         const killedAt = Date.now();
-        await victim.proc.kill("SIGKILL");
+        await victim.kill("SIGKILL");
         workerTakeoverMs = (await taken) - killedAt;
-        other.active = true;
-        log(`killed the active ingest worker (${victim.proc.name}, SIGKILL); ${other.proc.name} took deliveries ${workerTakeoverMs} ms later`);
+        log(`active shards before: ${before}; killed ${victim.name} (SIGKILL); ${other.name} took deliveries from one of its shards ${workerTakeoverMs} ms later`);
       } else {
         // The lock is taken first; the engine then catches up from each rule's cursor before it runs.
         const taken = web[1].waitFor(/lease \d+: held/, 60_000);
@@ -125,6 +130,7 @@ async function main() {
         log(`killed the alert lease holder (web A, SIGKILL); web B took the lease ${takeoverMs} ms later, its engine ran ${engineMs} ms after the kill`);
       }
     };
+    const spreadAtStart = { text: "" };
     const report = await runSoak({
       databaseUrl: pg.url,
       pgDataDir: pgDir,
@@ -142,6 +148,7 @@ async function main() {
       log,
     });
     console.log(`\ncluster mode: 3 RabbitMQ nodes, 2 ingest workers, 2 web instances\n${formatReport(report)}`);
+    console.log(`active shards (of 4) at the first fault: ${spreadAtStart.text}; at the end: ${shardReport()}`);
     console.log(`engine start ${engine.startSeconds.toFixed(1)} s; ingest takeover ${workerTakeoverMs ?? "-"} ms; alert lease takeover ${takeoverMs ?? "-"} ms (engine running after ${engineMs ?? "-"} ms); resident memory before the faults: ${memory.join(", ")}`);
     failed = soakFailed(report) || takeoverMs === null || workerTakeoverMs === null;
     console.log(failed ? "FAILED: readings lost, counted twice, alert events wrong or no takeover" : "OK: 0 lost, 0 double-counted, alert events consistent, alert lease taken over");

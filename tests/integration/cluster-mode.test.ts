@@ -9,6 +9,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { announceCommits, startAlertsUnderLease } from "~/.server/cluster/alerts";
 import { engineAuthRouter } from "~/.server/cluster/auth";
 import { startLease, type Lease } from "~/.server/cluster/lease";
+import { onlyInLeaseHolder } from "~/.server/cluster/roles";
 import { pool } from "~/.server/db";
 import { ReadingWriter } from "~/.server/ingest/writer";
 import { configureMailer, startMailSink } from "~/.server/mail";
@@ -158,5 +159,39 @@ describe("the lease holder's alert engine", () => {
     expect(events.rows).toHaveLength(1);
     expect(events.rows[0].ended_at).toBeNull();
     expect(events.rows[0].started_at.getTime()).toBe(from);
+  });
+});
+
+describe("the weather job and forecast warnings in cluster mode", () => {
+  const leases: Lease[] = [];
+  afterAll(async () => {
+    for (const l of leases) await l.stop();
+  });
+
+  // Issue 19: web instances are several; each site's weather is fetched and its forecast checked by one of them.
+  it("run only in the instance holding the lease, and in the next holder once it dies", async () => {
+    const key = 434_343;
+    const calls = { a: 0, b: 0 };
+    const instance = (name: "a" | "b") => {
+      const lease = startLease({ connectionString: process.env.DATABASE_URL!, key, retryMs: 100, onAcquire: async () => async () => {} });
+      leases.push(lease);
+      const weather = { job: { round: async () => ++calls[name] } };
+      const warnings = { runner: { run: async () => (calls[name]++, { spots: 1, warned: 0, cleared: 0 }) } };
+      onlyInLeaseHolder(weather, warnings, lease);
+      return { lease, tick: async () => (await weather.job.round(), await warnings.runner.run()) };
+    };
+    const a = instance("a");
+    expect(await eventually(() => a.lease.holding())).toBe(true);
+    const b = instance("b");
+    await sleep(300);
+    await a.tick();
+    await b.tick();
+    expect(calls).toEqual({ a: 2, b: 0 });
+
+    await pool().query(`SELECT pg_terminate_backend(pid) FROM pg_locks WHERE locktype = 'advisory' AND objid = $1 AND granted`, [key]);
+    expect(await eventually(() => b.lease.holding())).toBe(true);
+    await a.tick();
+    await b.tick();
+    expect(calls).toEqual({ a: 2, b: 2 });
   });
 });

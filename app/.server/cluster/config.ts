@@ -8,8 +8,11 @@ const schema = z.object({
   NW_ROLE: z.enum(["all", "web", "ingest"]).default("all"),
   // AMQP URLs of the engine's nodes, comma-separated; a worker tries them in turn.
   NW_AMQP_URLS: z.string().default("amqp://127.0.0.1:5672"),
+  // The readings' shards are the quorum queues <NW_AMQP_QUEUE>.0 … .<NW_AMQP_SHARDS - 1>. Fixed for a
+  // cluster's life: changing it moves sensors between shards (docs/cluster.md).
   NW_AMQP_QUEUE: z.string().min(1).max(200).default("nichewise.readings"),
-  // Unacknowledged deliveries a worker holds: enough to fill two group commits of the writer.
+  NW_AMQP_SHARDS: z.coerce.number().int().min(1).max(64).default(4),
+  // Unacknowledged deliveries a worker holds over all its shards: enough to fill two group commits of the writer.
   NW_AMQP_PREFETCH: z.coerce.number().int().min(1).max(20_000).default(2000),
   // The shared secret in the engine's auth URLs (?key=…); unset: the auth endpoint is off.
   NW_CLUSTER_AUTH_KEY: z.string().min(16).max(200).optional(),
