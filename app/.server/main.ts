@@ -11,6 +11,7 @@ import type { ServerBuild } from "react-router";
 import type { ViteDevServer } from "vite";
 import { demoPolicy, env, publicUrl } from "~/.server/env";
 import { startBroker } from "~/.server/ingest/broker";
+import { startBridges } from "~/.server/bridge/runtime";
 import { startEmbeddedPostgres, type EmbeddedPostgres } from "~/.server/postgres";
 
 const log = (s: string) => console.log(`[nichewise] ${s}`);
@@ -80,7 +81,6 @@ async function startAll(opts: MainOptions, stops: (() => Promise<void>)[], stopA
     await writer().drain();
   });
   // Bridges to the growers' own brokers (stopped before the writer drains: unacknowledged messages come again).
-  const { startBridges } = await import("~/.server/bridge/runtime");
   stops.push(await startBridges({ writer: writer(), log }));
 
   // Outdoor weather: the hosted service when configured, else the local fake (the simulator's
