@@ -72,6 +72,7 @@ export async function action({ request, params }: Route.ActionArgs) {
   if (intent === "listen") {
     const config = await getBridge(siteId);
     if (!config) return data({ intent, errors: { prefix: "Save the broker's address first." } }, { status: 400 });
+    if (config.passwordError) return data({ intent, errors: { prefix: config.passwordError } }, { status: 400 });
     const parsed = listenSchema.safeParse({ prefix: text("prefix") ?? "" });
     if (!parsed.success) return data({ intent, errors: issues(parsed.error) }, { status: 400 });
     try {
@@ -388,6 +389,7 @@ export default function SiteBroker({ loaderData, actionData }: Route.ComponentPr
             <div>
               <label className="label" htmlFor="password">Password</label>
               <input className="field w-full" id="password" name="password" type="password" autoComplete="new-password" placeholder={bridge?.hasPassword ? "(kept — type to change)" : ""} />
+              {bridge?.passwordError ? <p className="error" role="alert">{bridge.passwordError}</p> : null}
               {bridge?.hasPassword ? (
                 <label className="mt-1 inline-flex items-center gap-2 text-sm">
                   <input type="checkbox" name="clearPassword" /> Remove the stored password
