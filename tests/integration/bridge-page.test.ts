@@ -161,4 +161,32 @@ describe("the home-broker page", () => {
     await post(site.id, token, { ...SETTINGS, password: "typed-again" });
     expect(await getBridge(site.id)).toMatchObject({ password: "typed-again", passwordError: null });
   });
+
+  it("attaches a heard topic to a new sensor made in the same step, named after the device and placed in the chosen spot", async () => {
+    const owner = await makeUser();
+    const site = await makeSite(owner);
+    const spot = await makeSpot(site);
+    const token = await sessionOf(owner);
+    const attach = (sensorId: string, topic: string) =>
+      post(site.id, token, { intent: "attach", topic, sensorId, mapping: JSON.stringify({ preset: "zigbee2mqtt" }) });
+    // Not before a broker is connected: no sensor is made for nothing.
+    expect(await attach(`new:${spot.id}`, "zigbee2mqtt/orchid_shelf")).toMatchObject({ status: 400, body: { errors: { form: "Connect the home broker first." } } });
+    expect((await load(site.id, token)).body).toMatchObject({ sensors: [] });
+    await post(site.id, token, SETTINGS);
+
+    const ok = await attach(`new:${spot.id}`, "zigbee2mqtt/orchid_shelf");
+    expect(ok).toMatchObject({ status: 200, body: { attached: "zigbee2mqtt/orchid_shelf", created: "orchid shelf" } });
+    const page = await load(site.id, token);
+    expect(page.body).toMatchObject({
+      sensors: [{ name: "orchid shelf", spotName: spot.name }],
+      links: [{ topic: "zigbee2mqtt/orchid_shelf", sensorName: "orchid shelf" }],
+    });
+    // Not placed, and another site's spot refused with its reason.
+    const other = await makeSite(owner);
+    const theirs = await makeSpot(other);
+    expect(await attach("new:", "zigbee2mqtt/window_sill")).toMatchObject({ status: 200, body: { created: "window sill" } });
+    expect(await attach(`new:${theirs.id}`, "zigbee2mqtt/porch")).toMatchObject({ status: 400, body: { errors: { form: "That spot is not in this site." } } });
+    expect(await attach("new:abc", "zigbee2mqtt/porch")).toMatchObject({ status: 400, body: { errors: { sensorId: expect.any(String) } } });
+    expect(((await load(site.id, token)).body as { sensors: unknown[] }).sensors).toHaveLength(2);
+  });
 });

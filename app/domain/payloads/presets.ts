@@ -15,3 +15,4 @@ export { normaliseMac } from "./ble-gateway";
 export { decodePayload } from "./decode";
 export { isDiscoveryConfigTopic, parseDiscoveryConfig, type DiscoveryHint } from "./home-assistant";
 export { recognise, type Recognised } from "./recognise";
+export { sensorChannelsFor, sensorNameFor } from "./new-sensor";
