@@ -13,6 +13,8 @@ export type HeardTopic = {
   mapping: Mapping | null;
   preview: Values[];
   note?: string | null;
+  /** The sensor it is attached to already, or null. */
+  attachedTo: string | null;
 };
 export type Listening = { prefix: string; status: string; note: string | null; found: HeardTopic[] };
 
@@ -50,11 +52,13 @@ export function BrokerListen(props: {
           <label className="label" htmlFor="prefix">
             Prefix
           </label>
-          <input className="field w-64" id="prefix" name="prefix" aria-describedby="prefix-hint" />
-          <p id="prefix-hint" className="hint">
-            The start of your sensors' topics, often <code>zigbee2mqtt</code> or <code>tele</code>; empty hears
-            everything.
-          </p>
+          <input
+            className="field w-64"
+            id="prefix"
+            name="prefix"
+            aria-describedby="prefix-hint"
+            defaultValue={listening?.prefix ?? ""}
+          />
         </div>
         <button className="btn" name="intent" value="listen">
           Listen for a minute
@@ -65,6 +69,9 @@ export function BrokerListen(props: {
           </button>
         ) : null}
       </Form>
+      <p id="prefix-hint" className="hint">
+        The start of your sensors' topics, often <code>zigbee2mqtt</code> or <code>tele</code>; empty hears everything.
+      </p>
       {props.error ? (
         <p className="error" role="alert">
           {props.error}
@@ -105,7 +112,11 @@ function Heard(props: {
           {f.count} messages{f.mapping ? ` · ${PRESET_LABELS[f.mapping.preset]}` : ""}
         </span>
       </p>
-      {f.mapping ? (
+      {f.attachedTo ? (
+        <p className="text-sm">
+          Attached to <strong>{f.attachedTo}</strong>.
+        </p>
+      ) : f.mapping ? (
         <>
           <p className="text-sm">
             Would store: {f.preview.map((v) => preview(v, props.unit, props.timeZone)).join("; ")}

@@ -4,7 +4,7 @@ import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
 import { readForm, toId } from "~/.server/ids";
 import { getSite } from "~/.server/sites";
 import { createSensor, listSensors, PlacementError } from "~/.server/sensors.server";
-import { listSpots } from "~/.server/spots";
+import { getSpot, listSpots } from "~/.server/spots";
 import { bridgeState, reloadBridge } from "~/.server/bridge/runtime";
 import { foundTopics, ListenRefused, listeningFor, startListening } from "~/.server/bridge/discovery";
 import { attachTopic, detachTopic, getBridge, LinkError, listLinks, saveBridge, viewOf } from "~/.server/bridge/store";
@@ -39,7 +39,19 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     sensors: sensors.map((s) => ({ id: s.id, name: s.name, spotName: s.spotName })),
     spots: spots.map((s) => ({ id: s.id, name: s.name })),
     listening: l
-      ? { prefix: l.prefix, status: l.status, note: l.note, endsAt: l.endsAt, found: foundTopics(l, site.timeZone).slice(0, 200) }
+      ? {
+          prefix: l.prefix,
+          status: l.status,
+          note: l.note,
+          endsAt: l.endsAt,
+          // A topic already attached says to which sensor, rather than offering to attach it again.
+          found: foundTopics(l, site.timeZone)
+            .slice(0, 200)
+            .map((f) => {
+              const link = links.find((k) => k.topic === f.topic && k.device === (f.mapping?.device ?? ""));
+              return { ...f, attachedTo: link ? (names.get(link.sensorId) ?? "?") : null };
+            }),
+        }
       : null,
   };
 }
@@ -129,11 +141,13 @@ export async function action({ request, params }: Route.ActionArgs) {
     if (!mapping.success) Object.assign(errors, issues(mapping.error));
     if (!topic.success || !chosen || !mapping.success) return data({ intent, errors, topic: text("topic") ?? "" }, { status: 400 });
     let created: string | null = null;
+    let placedIn: string | null = null;
     try {
       let id = sensorId;
       if (id === null) {
         if (!(await getBridge(siteId))) throw new LinkError("Connect the home broker first.");
         created = sensorNameFor(topic.data, mapping.data.device);
+        if (spotId) placedIn = (await getSpot(siteId, spotId).catch(() => null))?.name ?? null;
         const channels = sensorChannelsFor(mapping.data);
         id = (await createSensor({ siteId, name: created, channels, spotId: spotId ?? undefined, since: "first", actorId: user.id })).id;
       }
@@ -143,7 +157,7 @@ export async function action({ request, params }: Route.ActionArgs) {
       throw err;
     }
     await reloadBridge(siteId, { restart: false });
-    return { intent, attached: topic.data + (mapping.data.device ? ` · ${mapping.data.device}` : ""), created };
+    return { intent, attached: topic.data + (mapping.data.device ? ` · ${mapping.data.device}` : ""), created, placedIn };
   }
 
   if (intent === "detach") {
@@ -233,7 +247,12 @@ export default function SiteBroker({ loaderData, actionData }: Route.ComponentPr
           {actionData && "attached" in actionData ? (
             <p className="text-sm text-good" role="status">
               Attached {actionData.attached}
-              {actionData.created ? ` to the new sensor “${actionData.created}” (rename it or place it on the Sensors tab)` : ""}.
+              {actionData.created
+                ? actionData.placedIn
+                  ? ` to the new sensor “${actionData.created}” in ${actionData.placedIn}, from its first reading (rename it on the Sensors tab)`
+                  : ` to the new sensor “${actionData.created}”, not placed yet: place it on the Sensors tab so its readings count for a spot`
+                : ""}
+              .
             </p>
           ) : null}
           {errorFor("attach").form ? <p className="error" role="alert">{errorFor("attach").form}</p> : null}

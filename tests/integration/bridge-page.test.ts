@@ -175,7 +175,7 @@ describe("the home-broker page", () => {
     await post(site.id, token, SETTINGS);
 
     const ok = await attach(`new:${spot.id}`, "zigbee2mqtt/orchid_shelf");
-    expect(ok).toMatchObject({ status: 200, body: { attached: "zigbee2mqtt/orchid_shelf", created: "orchid shelf" } });
+    expect(ok).toMatchObject({ status: 200, body: { attached: "zigbee2mqtt/orchid_shelf", created: "orchid shelf", placedIn: spot.name } });
     const page = await load(site.id, token);
     expect(page.body).toMatchObject({
       sensors: [{ name: "orchid shelf", spotName: spot.name }],
