@@ -60,7 +60,7 @@ export function BrokerSettings(props: {
           name="password"
           type="password"
           autoComplete="new-password"
-          aria-describedby={bridge?.hasPassword ? "password-hint" : undefined}
+          aria-describedby={bridge?.hasPassword && !bridge.passwordError ? "password-hint" : undefined}
         />
         {bridge?.passwordError ? (
           <p className="error" role="alert">
@@ -69,9 +69,11 @@ export function BrokerSettings(props: {
         ) : null}
         {bridge?.hasPassword ? (
           <>
-            <p id="password-hint" className="hint">
-              A password is kept: leave this empty to keep it, or type a new one.
-            </p>
+            {bridge.passwordError ? null : (
+              <p id="password-hint" className="hint">
+                A password is kept: leave this empty to keep it, or type a new one.
+              </p>
+            )}
             <label className="mt-1 inline-flex items-center gap-2 text-sm">
               <input type="checkbox" name="clearPassword" /> Remove the stored password
             </label>
