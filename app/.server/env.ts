@@ -39,6 +39,13 @@ const schema = z.object({
   DATABASE_URL: z.url().optional(),
   NW_PG_PORT: port.default(54329),
   NW_PG_DATA: z.string().min(1).default(".data/postgres"),
+  // The key that encrypts stored secrets (a home broker's password): 32 bytes as 64 hex digits or
+  // base64. Unset: a key file made once beside NW_PG_DATA (app/.server/bridge/secret.ts).
+  NW_SECRET_KEY: z
+    .string()
+    .trim()
+    .refine((v) => /^[0-9a-fA-F]{64}$/.test(v) || /^[A-Za-z0-9+/]{43}=$/.test(v), "32 bytes: 64 hex digits or 44 base64 characters")
+    .optional(),
   MQTT_HOST: z.string().min(1).default("127.0.0.1"),
   MQTT_PORT: port.default(1883),
   MQTT_WS_PORT: port.default(8083),

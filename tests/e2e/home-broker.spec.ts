@@ -24,6 +24,9 @@ test("the owner connects a home broker, hears a Zigbee2MQTT sensor and attaches 
   await signIn(page, DEMO.owner);
   await page.goto("/sites/1/broker");
   await expect(page.getByRole("heading", { name: "Sensors you already have" })).toBeVisible();
+  // Nothing connected yet: the page starts with the one thing to do first, not with forms that cannot work yet.
+  await expect(page.getByRole("heading", { name: "Connect your broker" })).toBeVisible();
+  await expect(page.getByRole("button", { name: "Listen for a minute" })).toHaveCount(0);
 
   await page.getByLabel("Address").fill(`mqtt://127.0.0.1:${broker.port}`);
   await page.getByLabel("User name").fill("nichewise");
@@ -57,6 +60,21 @@ test("the owner connects a home broker, hears a Zigbee2MQTT sensor and attaches 
   await expect(page.getByRole("status").filter({ hasText: "Attached zigbee2mqtt/windowsill" })).toBeVisible();
   await expect(page.getByRole("heading", { name: "Attached topics" })).toBeVisible();
   await expect(page.getByRole("button", { name: "Detach zigbee2mqtt/windowsill" })).toBeVisible();
+  await expect(row).toContainText("Attached to");
+
+  // A device with no sensor in Nichewise yet: attached to a new sensor made in the same step,
+  // named after the device and placed in the chosen spot.
+  const shelf = page.getByRole("listitem", { name: "zigbee2mqtt/orchid_shelf" });
+  await expect(async () => {
+    await gateway.publishAsync("zigbee2mqtt/orchid_shelf", JSON.stringify({ temperature: 22.5, humidity: 64, battery: 90 }), { qos: 1 });
+    await expect(shelf).toBeVisible({ timeout: 2500 });
+  }).toPass({ timeout: 30_000 });
+  const choice = shelf.getByLabel("Sensor for zigbee2mqtt/orchid_shelf");
+  const newInSpot = await choice.locator("option", { hasText: "New sensor “orchid shelf” in" }).first().textContent();
+  await choice.selectOption({ label: newInSpot! });
+  await shelf.getByRole("button", { name: "Attach zigbee2mqtt/orchid_shelf" }).click();
+  await expect(page.getByRole("status").filter({ hasText: "to the new sensor “orchid shelf” in" })).toBeVisible();
+  await expect(page.getByRole("button", { name: "Detach zigbee2mqtt/orchid_shelf" })).toBeVisible();
 
   // With its lists filled: no serious or critical WCAG 2.2 AA violation (axe-core), and it fits a
   // 390 px phone (as tests/e2e/accessibility.spec.ts and phone-width.spec.ts check every page).

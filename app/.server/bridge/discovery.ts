@@ -8,7 +8,7 @@ import { connect as tlsConnect } from "node:tls";
 import { randomBytes } from "node:crypto";
 import { isDiscoveryConfigTopic, MAX_BRIDGED_PAYLOAD_BYTES, parseDiscoveryConfig, recognise, type DiscoveryHint, type Mapping, type Values } from "~/domain/payloads/presets";
 import { PacketSizeGuard } from "./packet-guard";
-import { endpoint, MAX_BRIDGE_PACKET_BYTES } from "./runtime";
+import { endpoint, MAX_BRIDGE_PACKET_BYTES } from "./state";
 import type { BridgeConfig } from "./store";
 import { kept } from "~/.server/kept";
 

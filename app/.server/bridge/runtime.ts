@@ -11,77 +11,28 @@ import { connect as netConnect } from "node:net";
 import { connect as tlsConnect } from "node:tls";
 import { isIP } from "node:net";
 import { validateReading, type Reading } from "~/domain/ingest/payload";
-import { decodePayload, MAX_BRIDGED_PAYLOAD_BYTES, type Values } from "~/domain/payloads/presets";
+import { decodePayload, MAX_BRIDGED_PAYLOAD_BYTES } from "~/domain/payloads/presets";
 import { recordRejectionsSoon, type Rejected } from "~/.server/ingest/rejections";
 import { lastTemperature, noteTemperature, sensorInfo } from "~/.server/ingest/sensor-cache";
 import { CONFLICT_REASON } from "~/.server/ingest/broker";
 import type { ReadingWriter } from "~/.server/ingest/writer";
 import { PacketSizeGuard } from "./packet-guard";
-import { enabledBridges, getBridge, listLinks, type BridgeConfig, type BridgeLink } from "./store";
+import { enabledBridges, getBridge, listLinks, sealPlainPasswords, type BridgeConfig, type BridgeLink } from "./store";
+import {
+  endpoint,
+  MAX_BRIDGE_PACKET_BYTES,
+  MAX_BRIDGE_V5_PACKET_BYTES,
+  SESSION_EXPIRY_S,
+  TOPIC_BURST,
+  TOPIC_PER_SECOND,
+  toPayload,
+  zeroCounts,
+  type BridgeState,
+} from "./state";
+import { RecordGate, RECORD_EVERY_MS, TopicPacer } from "./throttle";
 import { kept } from "~/.server/kept";
 
-/**
- * Largest packet read from a bridged broker. Over MAX_BRIDGED_PAYLOAD_BYTES a message is still read,
- * acknowledged and recorded with its reason (refusing it would have the broker send it again
- * forever); over this the connection is closed. MQTT 5 tells the broker the smaller
- * MAX_BRIDGE_V5_PACKET_BYTES, and the broker drops what is bigger (MQTT 5 §3.1.2.11.4).
- */
-export const MAX_BRIDGE_PACKET_BYTES = 1024 * 1024;
-export const MAX_BRIDGE_V5_PACKET_BYTES = 64 * 1024;
-/**
- * Per topic: a burst of this many messages, then this many a second. A topic over it is not
- * dropped (a backlog the broker kept for us is real readings) but held back: the bridge waits
- * before reading on, so the broker holds the rest (its queue, its limits).
- */
-export const TOPIC_BURST = 100;
-export const TOPIC_PER_SECOND = 50;
-/** MQTT 5: how long the broker keeps the session (and unacknowledged messages) while we are away. */
-export const SESSION_EXPIRY_S = 7 * 24 * 3600;
-/** The same reason is recorded at most once in this long per topic and device, so a chatty topic cannot fill the record. */
-const RECORD_EVERY_MS = 10 * 60_000;
-const MAX_THROTTLE_KEYS = 2000;
-
-export type BridgeStatus = "connecting" | "connected" | "offline" | "stopped";
-export type BridgeCounts = {
-  /** Messages received on attached topics. */
-  received: number;
-  /** Readings committed (new or already stored). */
-  stored: number;
-  /** Of those, new readings that fall in no placement of their sensor: no spot shows them until it is placed. */
-  outsideSpot: number;
-  /** Messages refused with a reason (bad payload, unit mix-up, out of range…). */
-  rejected: number;
-  /** Messages on topics nothing is attached to (left over from an earlier subscription). */
-  unattached: number;
-  /** Devices in a shared topic that are not attached (a BLE gateway hears the neighbours' too). */
-  otherDevices: number;
-  /** Messages held back because their topic sent more than TOPIC_PER_SECOND. */
-  heldBack: number;
-  /** Retained messages without a time of their own: their value is old, their time unknown. */
-  staleRetained: number;
-  /** Commits that failed: the message was not acknowledged and comes again. */
-  writeFailures: number;
-  reconnects: number;
-};
-export type BridgeState = {
-  status: BridgeStatus;
-  connectedSince: number | null;
-  lastMessageAt: number | null;
-  lastError: { at: number; message: string } | null;
-  counts: BridgeCounts;
-};
-
 type Deps = { writer: ReadingWriter; log?: (s: string) => void; reconnectMs?: number; maxReconnectMs?: number };
-type Bucket = { tokens: number; at: number };
-
-const zeroCounts = (): BridgeCounts => ({ received: 0, stored: 0, outsideSpot: 0, rejected: 0, unattached: 0, otherDevices: 0, heldBack: 0, staleRetained: 0, writeFailures: 0, reconnects: 0 });
-
-/** The socket options for a bridge's broker address. */
-export function endpoint(config: Pick<BridgeConfig, "url" | "caCert">) {
-  const u = new URL(config.url);
-  const tls = u.protocol === "mqtts:";
-  return { tls, host: u.hostname.replace(/^\[|\]$/g, ""), port: Number(u.port) || (tls ? 8883 : 1883), ca: config.caCert ?? undefined };
-}
 
 export class SiteBridge {
   readonly state: BridgeState = { status: "stopped", connectedSince: null, lastMessageAt: null, lastError: null, counts: zeroCounts() };
@@ -91,8 +42,8 @@ export class SiteBridge {
   private byTopic = new Map<string, BridgeLink[]>();
   /** Topics the broker's session for us holds (confirmed by its SUBACK). */
   private subscribed = new Set<string>();
-  private buckets = new Map<string, Bucket>();
-  private recorded = new Map<string, number>();
+  private pacer = new TopicPacer(TOPIC_BURST, TOPIC_PER_SECOND);
+  private recorded = new RecordGate(RECORD_EVERY_MS);
   private reconnectMs: number;
 
   constructor(
@@ -117,7 +68,7 @@ export class SiteBridge {
       list.push(l);
       this.byTopic.set(l.topic, list);
     }
-    this.buckets.clear();
+    this.pacer.clear();
     const c = this.client;
     if (!c?.connected) return; // the next connect subscribes what is missing
     const removed = [...before].filter((t) => !this.byTopic.has(t));
@@ -148,6 +99,11 @@ export class SiteBridge {
 
   start() {
     if (this.client) return;
+    if (this.config.passwordError) {
+      // Signing in without the password would only be refused: wait for it to be typed again.
+      this.fail(this.config.passwordError);
+      return;
+    }
     const { tls, host, port, ca } = endpoint(this.config);
     const v5 = this.config.protocolVersion === 5;
     const build = () => {
@@ -243,40 +199,6 @@ export class SiteBridge {
     );
   }
 
-  /** Takes a token of the topic's bucket: 0, or how many ms until there is one. */
-  private take(key: string, now: number): number {
-    let b = this.buckets.get(key);
-    if (!b) {
-      if (this.buckets.size >= MAX_THROTTLE_KEYS) this.buckets.clear();
-      this.buckets.set(key, (b = { tokens: TOPIC_BURST, at: now }));
-    }
-    b.tokens = Math.min(TOPIC_BURST, b.tokens + ((now - b.at) / 1000) * TOPIC_PER_SECOND);
-    b.at = now;
-    if (b.tokens < 1) return Math.ceil(((1 - b.tokens) * 1000) / TOPIC_PER_SECOND);
-    b.tokens--;
-    return 0;
-  }
-
-  /** Waits while the topic is over its rate: nothing further is read meanwhile (backpressure). */
-  private async pace(key: string) {
-    let wait = this.take(key, Date.now());
-    if (wait === 0) return;
-    this.state.counts.heldBack++;
-    while (wait > 0) {
-      await new Promise((r) => setTimeout(r, wait));
-      wait = this.take(key, Date.now());
-    }
-  }
-
-  /** Whether a reason for this key is due to be recorded again. */
-  private due(key: string, now: number, every = RECORD_EVERY_MS): boolean {
-    const at = this.recorded.get(key);
-    if (at !== undefined && now - at < every) return false;
-    if (this.recorded.size >= MAX_THROTTLE_KEYS) this.recorded.clear();
-    this.recorded.set(key, now);
-    return true;
-  }
-
   /** Reads, validates and stores one message. Resolves when it may be acknowledged; rejects when it must come again. */
   private async handle(packet: IPublishPacket): Promise<void> {
     const now = Date.now();
@@ -293,10 +215,10 @@ export class SiteBridge {
     const rejections: Rejected[] = [];
     const reject = (sensorId: number | null, reason: string, key = `${topic}|${reason}`) => {
       this.state.counts.rejected++;
-      if (this.due(key, now)) rejections.push({ sensorId, source: "mqtt", topic, reason: `home broker: ${reason}`, payload: preview() });
+      if (this.recorded.due(key, now)) rejections.push({ sensorId, source: "mqtt", topic, reason: `home broker: ${reason}`, payload: preview() });
     };
     try {
-      await this.pace(topic);
+      await this.pacer.pace(topic, () => this.state.counts.heldBack++);
       if (payload.length > MAX_BRIDGED_PAYLOAD_BYTES) return reject(links[0].sensorId, `payload over ${MAX_BRIDGED_PAYLOAD_BYTES} bytes`);
       const readings: Reading[] = [];
       let matched = false;
@@ -338,7 +260,7 @@ export class SiteBridge {
         this.state.counts.otherDevices++;
         // Recorded like an unknown sensor, but once an hour per topic: a gateway hears every
         // neighbour's tags, and a row for each would push the real refusals out of the record.
-        if (unattached && this.due(`${topic}|other`, now, 3_600_000)) {
+        if (unattached && this.recorded.due(`${topic}|other`, now, 3_600_000)) {
           rejections.push({ sensorId: null, source: "mqtt", topic, reason: `home broker: device ${unattached} in this topic is not attached to a sensor (others may be too)`, payload: preview() });
         }
         return;
@@ -350,18 +272,13 @@ export class SiteBridge {
       this.state.counts.outsideSpot += result.outsideSpot;
       if (result.conflicts > 0) {
         this.state.counts.rejected += result.conflicts;
-        if (this.due(`${topic}|conflict`, now)) rejections.push({ sensorId: readings[0].sensorId, source: "mqtt", topic, reason: CONFLICT_REASON, payload: preview() });
+        if (this.recorded.due(`${topic}|conflict`, now)) rejections.push({ sensorId: readings[0].sensorId, source: "mqtt", topic, reason: CONFLICT_REASON, payload: preview() });
       }
       for (const r of readings) if (r.temperature !== null) noteTemperature(r.sensorId, r.measuredAt.getTime(), r.temperature);
     } finally {
       if (rejections.length) recordRejectionsSoon(rejections);
     }
   }
-}
-
-/** A preset's values as the payload the ingest validation reads (°C, time as epoch ms). */
-export function toPayload(v: Values) {
-  return { temperature: v.temperature, humidity: v.humidity, lux: v.lux, battery: v.battery, ...(v.at ? { time: v.at.getTime() } : {}) };
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -373,6 +290,8 @@ const holder = kept<Holder>("bridges", () => ({ bridges: new Map() }));
 /** Starts every enabled bridge; returns the stop for the process's shutdown path. */
 export async function startBridges(deps: Deps): Promise<() => Promise<void>> {
   holder.deps = deps;
+  const sealed = await sealPlainPasswords();
+  if (sealed) deps.log?.(`[bridge] ${sealed} stored broker password(s) encrypted at rest`);
   for (const config of await enabledBridges()) {
     const bridge = new SiteBridge(config, await listLinks(config.id), deps);
     holder.bridges.set(config.siteId, bridge);

@@ -1,16 +1,20 @@
 // The bridge's rows: one function per change, each in one transaction with its audit row.
-import { and, eq } from "drizzle-orm";
+import { and, eq, isNotNull, notLike } from "drizzle-orm";
 import { randomBytes } from "node:crypto";
 import { db } from "~/.server/db";
 import { bridgeLinks, bridges, sensors, auditLog } from "~/db/schema.server";
 import type { Mapping } from "~/domain/payloads/presets";
+import { isSealed, openBridgePassword, sealBridgePassword, SecretError } from "./secret";
 
 export type BridgeConfig = {
   id: number;
   siteId: number;
   url: string;
   username: string | null;
+  /** In clear, opened with the server's key (the column holds it sealed: ./secret.ts). */
   password: string | null;
+  /** Why the stored password could not be opened (another key), or null. */
+  passwordError: string | null;
   caCert: string | null;
   protocolVersion: 4 | 5;
   clientId: string;
@@ -22,7 +26,32 @@ export type BridgeLink = { id: number; sensorId: number; topic: string; device: 
 /** What a page may see of a bridge: never the password, only whether there is one. */
 export type BridgeView = Omit<BridgeConfig, "password"> & { hasPassword: boolean };
 
-const asConfig = (r: typeof bridges.$inferSelect): BridgeConfig => ({ ...r, protocolVersion: r.protocolVersion === 5 ? 5 : 4 });
+function asConfig(r: typeof bridges.$inferSelect): BridgeConfig {
+  let password: string | null = null;
+  let passwordError: string | null = null;
+  try {
+    password = r.password === null ? null : openBridgePassword(r.siteId, r.password);
+  } catch (err) {
+    if (!(err instanceof SecretError)) throw err;
+    passwordError = err.message;
+  }
+  return { ...r, password, passwordError, protocolVersion: r.protocolVersion === 5 ? 5 : 4 };
+}
+
+/** Seals the passwords stored in plain text before encryption at rest; run at start. Returns how many. */
+export async function sealPlainPasswords(): Promise<number> {
+  const plain = await db()
+    .select({ id: bridges.id, siteId: bridges.siteId, password: bridges.password })
+    .from(bridges)
+    .where(and(isNotNull(bridges.password), notLike(bridges.password, "v1:%")));
+  for (const r of plain) {
+    await db()
+      .update(bridges)
+      .set({ password: sealBridgePassword(r.siteId, r.password!) })
+      .where(and(eq(bridges.id, r.id), eq(bridges.password, r.password!)));
+  }
+  return plain.length;
+}
 
 export async function getBridge(siteId: number): Promise<BridgeConfig | null> {
   const [r] = await db().select().from(bridges).where(eq(bridges.siteId, siteId));
@@ -31,7 +60,7 @@ export async function getBridge(siteId: number): Promise<BridgeConfig | null> {
 
 export function viewOf(c: BridgeConfig): BridgeView {
   const { password, ...rest } = c;
-  return { ...rest, hasPassword: !!password };
+  return { ...rest, hasPassword: !!password || !!rest.passwordError };
 }
 
 export async function enabledBridges(): Promise<BridgeConfig[]> {
@@ -64,7 +93,15 @@ export async function saveBridge(opts: {
 }): Promise<BridgeConfig> {
   return db().transaction(async (tx) => {
     const [old] = await tx.select().from(bridges).where(eq(bridges.siteId, opts.siteId));
-    const password = opts.clearPassword ? null : opts.password ?? old?.password ?? null;
+    // A typed password is sealed; a kept one too if it was stored in plain text before.
+    const kept = old?.password ?? null;
+    const password = opts.clearPassword
+      ? null
+      : opts.password !== null
+        ? sealBridgePassword(opts.siteId, opts.password)
+        : kept !== null && !isSealed(kept)
+          ? sealBridgePassword(opts.siteId, kept)
+          : kept;
     const values = { url: opts.url, username: opts.username, password, caCert: opts.caCert, protocolVersion: opts.protocolVersion, enabled: opts.enabled, updatedAt: new Date() };
     const [row] = old
       ? await tx.update(bridges).set(values).where(eq(bridges.id, old.id)).returning()
