@@ -50,6 +50,8 @@ export default function NewSensor({ loaderData, actionData }: Route.ComponentPro
     defaultValue: { channels: ["temperature", "humidity"] },
     onValidate: ({ formData }) => parseWithZod(formData, { schema: sensorSchema }),
     shouldValidate: "onBlur",
+    // An error clears as the field is corrected, so the button does not move under the pointer on blur.
+    shouldRevalidate: "onInput",
   });
   const channelList = fields.channels;
   return (

@@ -33,6 +33,8 @@ export default function SignIn({ loaderData, actionData }: Route.ComponentProps)
     defaultValue: { next: loaderData.next, email: loaderData.email },
     onValidate: ({ formData }) => parseWithZod(formData, { schema: signInSchema }),
     shouldValidate: "onBlur",
+    // An error clears as the field is corrected, so the button does not move under the pointer on blur.
+    shouldRevalidate: "onInput",
   });
   return (
     <AuthFrame title="Sign in" lead="Read back what your spots have been through, and what will grow there.">

@@ -64,6 +64,8 @@ export default function SignUp({ loaderData, actionData }: Route.ComponentProps)
     defaultValue: { next: loaderData.next, email: loaderData.email },
     onValidate: ({ formData }) => parseWithZod(formData, { schema: signUpSchema }),
     shouldValidate: "onBlur",
+    // An error clears as the field is corrected, so the button does not move under the pointer on blur.
+    shouldRevalidate: "onInput",
   });
   return (
     <AuthFrame title="Create an account" lead="Measure first, then choose plants that will thrive where you already are.">
