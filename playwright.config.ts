@@ -3,7 +3,14 @@ import { defineConfig } from "@playwright/test";
 // The end-to-end run starts the built app with demo data on ports and a data folder of its own.
 // NW_E2E_SLOT (0–9) shifts every port and the data folder, so two runs can share a machine.
 const slot = Number(process.env.NW_E2E_SLOT ?? 0);
-export const E2E = { port: 3100 + slot, pgPort: 55433 + slot, mqttPort: 18830 + 2 * slot, wsPort: 18831 + 2 * slot, sinkPort: 25250 + slot, dir: `.data/e2e-${slot}` };
+export const E2E = {
+  port: 3100 + slot,
+  pgPort: 55433 + slot,
+  mqttPort: 18830 + 2 * slot,
+  wsPort: 18831 + 2 * slot,
+  sinkPort: 25250 + slot,
+  dir: `.data/e2e-${slot}`,
+};
 
 export default defineConfig({
   testDir: "tests/e2e",
@@ -17,7 +24,15 @@ export default defineConfig({
     baseURL: `http://127.0.0.1:${E2E.port}`,
     launchOptions: {
       executablePath: process.env.CHROMIUM_PATH ?? "/usr/bin/chromium",
-      args: ["--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run", "--disable-background-networking", "--disable-component-update", "--disable-sync"],
+      args: [
+        "--no-sandbox",
+        "--disable-gpu",
+        "--disable-quic",
+        "--no-first-run",
+        "--disable-background-networking",
+        "--disable-component-update",
+        "--disable-sync",
+      ],
     },
     trace: "off",
   },

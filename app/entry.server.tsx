@@ -29,35 +29,39 @@ export default function handleRequest(
     let shellRendered = false;
     const userAgent = request.headers.get("user-agent");
     // Bots and SPA mode wait for all content to load before responding.
-    const readyOption: keyof RenderToPipeableStreamOptions = (userAgent && isbot(userAgent)) || routerContext.isSpaMode ? "onAllReady" : "onShellReady";
+    const readyOption: keyof RenderToPipeableStreamOptions =
+      (userAgent && isbot(userAgent)) || routerContext.isSpaMode ? "onAllReady" : "onShellReady";
 
     // Abort the rendering stream after `streamTimeout`, so it has time to flush rejected boundaries.
     let timeoutId: ReturnType<typeof setTimeout> | undefined = setTimeout(() => abort(), streamTimeout + 1000);
 
-    const { pipe, abort } = renderToPipeableStream(<ServerRouter context={routerContext} url={request.url} nonce={nonce} />, {
-      nonce,
-      [readyOption]() {
-        shellRendered = true;
-        const body = new PassThrough({
-          final(callback) {
-            clearTimeout(timeoutId);
-            timeoutId = undefined;
-            callback();
-          },
-        });
-        const stream = createReadableStreamFromReadable(body);
-        responseHeaders.set("Content-Type", "text/html");
-        pipe(body);
-        resolve(new Response(stream, { headers: responseHeaders, status: responseStatusCode }));
+    const { pipe, abort } = renderToPipeableStream(
+      <ServerRouter context={routerContext} url={request.url} nonce={nonce} />,
+      {
+        nonce,
+        [readyOption]() {
+          shellRendered = true;
+          const body = new PassThrough({
+            final(callback) {
+              clearTimeout(timeoutId);
+              timeoutId = undefined;
+              callback();
+            },
+          });
+          const stream = createReadableStreamFromReadable(body);
+          responseHeaders.set("Content-Type", "text/html");
+          pipe(body);
+          resolve(new Response(stream, { headers: responseHeaders, status: responseStatusCode }));
+        },
+        onShellError(error: unknown) {
+          reject(error);
+        },
+        onError(error: unknown) {
+          responseStatusCode = 500;
+          // Errors inside the shell are logged by React Router; only streaming ones are logged here.
+          if (shellRendered) console.error(error);
+        },
       },
-      onShellError(error: unknown) {
-        reject(error);
-      },
-      onError(error: unknown) {
-        responseStatusCode = 500;
-        // Errors inside the shell are logged by React Router; only streaming ones are logged here.
-        if (shellRendered) console.error(error);
-      },
-    });
+    );
   });
 }

@@ -21,9 +21,12 @@ function importsOf(file: string): string[] {
 }
 
 function offending(dir: string, forbidden: RegExp): string[] {
-  return sources(dir).flatMap((f) => importsOf(f).filter((m) => forbidden.test(m)).map((m) => `${relative(".", f)} -> ${m}`));
+  return sources(dir).flatMap((f) =>
+    importsOf(f)
+      .filter((m) => forbidden.test(m))
+      .map((m) => `${relative(".", f)} -> ${m}`),
+  );
 }
-
 
 describe("arrows run one way", () => {
   it("lib imports nothing of domain, the server, components, forms or routes", () => {

@@ -2,7 +2,9 @@
 import { scenarioAt, type SimSite, type SimSpot } from "./model";
 
 export const DEMO_HOUSEHOLD = {
-  site: { name: "Hollins Lane", latitude: 51.7, longitude: -2.2, timeZone: "Europe/London" } satisfies SimSite & { name: string },
+  site: { name: "Hollins Lane", latitude: 51.7, longitude: -2.2, timeZone: "Europe/London" } satisfies SimSite & {
+    name: string;
+  },
   // The very climate the local weather service fake serves for this place (DEMO_SCENARIO), so the
   // backfill, the live sensors and the stored outdoor weather agree hour by hour.
   scenario: scenarioAt(51.7, -2.2),

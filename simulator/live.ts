@@ -9,7 +9,14 @@ import { DEMO_HOUSEHOLD, type DemoSensorCredentials } from "./demo";
 
 export const CREDENTIALS_FILE = process.env.NW_DEMO_CREDENTIALS ?? ".data/demo-sensors.json";
 
-export type LiveSensor = { sensorId: number; secret: string; spot: SimSpot; seed: number; scenario?: Scenario; timeScale?: { origin: number; speed: number } };
+export type LiveSensor = {
+  sensorId: number;
+  secret: string;
+  spot: SimSpot;
+  seed: number;
+  scenario?: Scenario;
+  timeScale?: { origin: number; speed: number };
+};
 
 export async function startLiveSimulator(opts: {
   mqttUrl: string;
@@ -66,12 +73,24 @@ function runSensor(sensor: LiveSensor, opts: { mqttUrl: string; intervalS: numbe
       const simNow = scale.origin + (now - scale.origin) * scale.speed;
       const simLast = scale.origin + (last - scale.origin) * scale.speed;
       const step = Math.max(1000, intervalMs / 6) * scale.speed;
-      for (const r of generate(DEMO_HOUSEHOLD.site, sensor.spot, scenario, { from: new Date(simLast), to: new Date(simNow), intervalMs: step, sensorSeed: sensor.seed })) {
+      for (const r of generate(DEMO_HOUSEHOLD.site, sensor.spot, scenario, {
+        from: new Date(simLast),
+        to: new Date(simNow),
+        intervalMs: step,
+        sensorSeed: sensor.seed,
+      })) {
         const real = scale.origin + (r.measuredAt.getTime() - scale.origin) / scale.speed;
         publish({ ...r, measuredAt: new Date(Math.min(real, now)) });
       }
     } else {
-      for (const r of generate(DEMO_HOUSEHOLD.site, sensor.spot, scenario, { from: new Date(last), to: new Date(now), intervalMs, sensorSeed: sensor.seed, artifacts: true, installedAt: new Date(now - 200 * 86_400_000) })) {
+      for (const r of generate(DEMO_HOUSEHOLD.site, sensor.spot, scenario, {
+        from: new Date(last),
+        to: new Date(now),
+        intervalMs,
+        sensorSeed: sensor.seed,
+        artifacts: true,
+        installedAt: new Date(now - 200 * 86_400_000),
+      })) {
         publish(r);
       }
     }

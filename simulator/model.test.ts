@@ -45,7 +45,13 @@ function run(
 
 /** Wall-clock parts in a time zone, cached per UTC hour because Intl is slow per call. */
 function localParts(timeZone: string): (t: number) => { month: number; day: number; hour: number } {
-  const format = new Intl.DateTimeFormat("en-GB", { timeZone, month: "numeric", day: "numeric", hour: "numeric", hourCycle: "h23" });
+  const format = new Intl.DateTimeFormat("en-GB", {
+    timeZone,
+    month: "numeric",
+    day: "numeric",
+    hour: "numeric",
+    hourCycle: "h23",
+  });
   const cache = new Map<number, { month: number; day: number; hour: number }>();
   return (t) => {
     const key = Math.floor(t / HOUR);
@@ -164,7 +170,12 @@ describe("outdoor climate", () => {
 
   it("is coldest near sunrise and warmest in mid-afternoon", () => {
     const climate = outdoorClimate(DEMO_SITE, flat);
-    for (const dayStart of [Date.UTC(2025, 0, 10), Date.UTC(2025, 3, 10), Date.UTC(2025, 6, 10), Date.UTC(2025, 9, 10)]) {
+    for (const dayStart of [
+      Date.UTC(2025, 0, 10),
+      Date.UTC(2025, 3, 10),
+      Date.UTC(2025, 6, 10),
+      Date.UTC(2025, 9, 10),
+    ]) {
       const times = SunCalc.getTimes(new Date(dayStart + 12 * HOUR), DEMO_SITE.latitude, DEMO_SITE.longitude);
       let coldest = { t: 0, v: Infinity };
       let warmest = { t: 0, v: -Infinity };
@@ -186,12 +197,19 @@ describe("outdoor climate", () => {
     expect(Math.min(...readings.map((r) => r.humidity))).toBeGreaterThanOrEqual(20);
     expect(Math.max(...readings.map((r) => r.humidity))).toBeLessThanOrEqual(100);
     const july = readings.filter((r) => london(r.measuredAt.getTime()).month === 7);
-    const at = (hour: number) => mean(july.filter((r) => london(r.measuredAt.getTime()).hour === hour).map((r) => r.humidity));
+    const at = (hour: number) =>
+      mean(july.filter((r) => london(r.measuredAt.getTime()).hour === hour).map((r) => r.humidity));
     expect(at(5)).toBeGreaterThan(at(15) + 15);
   });
 
   it("goes below freezing on winter nights", () => {
-    expect(Math.min(...demoYear("outdoor").filter(isWinter).map((r) => r.temperature))).toBeLessThan(0);
+    expect(
+      Math.min(
+        ...demoYear("outdoor")
+          .filter(isWinter)
+          .map((r) => r.temperature),
+      ),
+    ).toBeLessThan(0);
   });
 
   it("gives the demo site a temperate profile", () => {
@@ -226,7 +244,9 @@ describe("outdoor climate", () => {
   it("produces sensor readings whose monthly lows and highs match the documented ranges", () => {
     const readings = demoYear("outdoor");
     for (const doc of DEMO_OUTDOOR_MONTHS) {
-      const temps = readings.filter((r) => london(r.measuredAt.getTime()).month === doc.month).map((r) => r.temperature);
+      const temps = readings
+        .filter((r) => london(r.measuredAt.getTime()).month === doc.month)
+        .map((r) => r.temperature);
       // Sensor noise is at most ±0.2 °C plus rounding, so 0.3 °C of slack around the noise-free range.
       expect(Math.min(...temps)).toBeGreaterThanOrEqual(doc.lowest[0] - 0.3);
       expect(Math.min(...temps)).toBeLessThanOrEqual(doc.lowest[1] + 0.3);
@@ -246,7 +266,8 @@ describe("outdoor climate", () => {
     const flatClimate = outdoorClimate(DEMO_SITE, flat);
     const anomalies = dailyMeans.map((m, i) => {
       const temps: number[] = [];
-      for (let t = YEAR_FROM + i * DAY; t < YEAR_FROM + (i + 1) * DAY; t += HOUR) temps.push(flatClimate(new Date(t)).temperature);
+      for (let t = YEAR_FROM + i * DAY; t < YEAR_FROM + (i + 1) * DAY; t += HOUR)
+        temps.push(flatClimate(new Date(t)).temperature);
       return m - mean(temps);
     });
     // A spell: three or more days in a row over 3 °C off the climatology.
@@ -278,7 +299,8 @@ describe("southern hemisphere", () => {
   it("has its long days and high sun in December", () => {
     const climate = outdoorClimate(site, DEMO_SCENARIO);
     const noonElevation = (month: number) =>
-      climate(SunCalc.getTimes(new Date(Date.UTC(2025, month, 21, 12)), site.latitude, site.longitude).solarNoon).sunElevation;
+      climate(SunCalc.getTimes(new Date(Date.UTC(2025, month, 21, 12)), site.latitude, site.longitude).solarNoon)
+        .sunElevation;
     expect(noonElevation(11)).toBeGreaterThan(noonElevation(5) + 40);
   });
 });
@@ -291,23 +313,33 @@ describe("indoor spots", () => {
   });
 
   it("heated room runs dry in winter (30–40 % RH is what growers report; common practice)", () => {
-    const winter = demoYear("heated-room").filter(isWinter).map((r) => r.humidity);
+    const winter = demoYear("heated-room")
+      .filter(isWinter)
+      .map((r) => r.humidity);
     expect(mean(winter)).toBeLessThan(45);
     expect(median(winter)).toBeGreaterThanOrEqual(30);
     expect(median(winter)).toBeLessThanOrEqual(42);
   });
 
   it("heated room follows the weather in summer when the heating is off", () => {
-    const summer = demoYear("heated-room").filter(isSummer).map((r) => r.temperature);
+    const summer = demoYear("heated-room")
+      .filter(isSummer)
+      .map((r) => r.temperature);
     expect(mean(summer)).toBeGreaterThan(20);
     expect(Math.max(...summer) - Math.min(...summer)).toBeGreaterThan(6);
   });
 
   it("windowsill nights are colder than the room's", () => {
     for (const season of [isWinter, isSummer]) {
-      const sill = demoYear("windowsill").filter((r) => season(r) && isNight(r)).map((r) => r.temperature);
-      const room = demoYear("room").filter((r) => season(r) && isNight(r)).map((r) => r.temperature);
-      const heated = demoYear("heated-room").filter((r) => season(r) && isNight(r)).map((r) => r.temperature);
+      const sill = demoYear("windowsill")
+        .filter((r) => season(r) && isNight(r))
+        .map((r) => r.temperature);
+      const room = demoYear("room")
+        .filter((r) => season(r) && isNight(r))
+        .map((r) => r.temperature);
+      const heated = demoYear("heated-room")
+        .filter((r) => season(r) && isNight(r))
+        .map((r) => r.temperature);
       expect(mean(sill)).toBeLessThan(mean(room) - 1);
       expect(mean(sill)).toBeLessThan(mean(heated) - 2);
     }
@@ -344,7 +376,7 @@ describe("indoor spots", () => {
       spikeDays++;
       expect(top.humidity).toBeLessThanOrEqual(98);
       const hour = london(top.measuredAt.getTime()).hour;
-      expect(hour >= 6 && hour < 10 || hour >= 19).toBe(true);
+      expect((hour >= 6 && hour < 10) || hour >= 19).toBe(true);
     }
     expect(spikeDays).toBeGreaterThanOrEqual(25);
     expect(median(readings.map((r) => r.humidity))).toBeLessThan(70);
@@ -411,10 +443,16 @@ describe("cold front scenario", () => {
   });
 
   it("shows the same steady fall in sensor readings", () => {
-    const readings = run(spotOf("outdoor", "none"), start.getTime() - 6 * HOUR, start.getTime() + 12 * HOUR, 5 * MINUTE, {
-      scenario,
-      sensorSeed: 3,
-    });
+    const readings = run(
+      spotOf("outdoor", "none"),
+      start.getTime() - 6 * HOUR,
+      start.getTime() + 12 * HOUR,
+      5 * MINUTE,
+      {
+        scenario,
+        sensorSeed: 3,
+      },
+    );
     const firstBelow = readings.findIndex((r) => r.temperature < 8);
     const crossing = readings[firstBelow];
     expect(crossing.measuredAt.getTime()).toBeGreaterThan(start.getTime());

@@ -91,7 +91,6 @@ function triangular(seed: number, key: number, salt: number): number {
   return unit(seed, key, salt) + unit(seed, key, salt + 1) - 1;
 }
 
-
 const SALT = {
   front: 11,
   dayWobble: 12,
@@ -447,7 +446,10 @@ export function outdoorWeather(site: SimSite, scenario: Scenario): (t: Date) => 
     const seed = scenario.seed;
     const gusty = day.settled ? 0.4 : 1;
     const daytime = sun.elevation > 0 ? 1.3 : 0.8;
-    const windSpeed = (4 + 16 * unit(seed, d, SALT.wind) * gusty) * daytime * (0.8 + 0.4 * unit(seed, Math.floor(t / HOUR), SALT.windHour));
+    const windSpeed =
+      (4 + 16 * unit(seed, d, SALT.wind) * gusty) *
+      daytime *
+      (0.8 + 0.4 * unit(seed, Math.floor(t / HOUR), SALT.windHour));
     return {
       temperature,
       humidity: climate.outdoorHumidity(t, temperature),
@@ -465,7 +467,8 @@ export function outdoorWeather(site: SimSite, scenario: Scenario): (t: Date) => 
  * every place is deterministic and different.
  */
 export function scenarioAt(latitude: number, longitude: number): Scenario {
-  if (Math.abs(latitude - DEMO_SITE.latitude) < 0.05 && Math.abs(longitude - DEMO_SITE.longitude) < 0.05) return DEMO_SCENARIO;
+  if (Math.abs(latitude - DEMO_SITE.latitude) < 0.05 && Math.abs(longitude - DEMO_SITE.longitude) < 0.05)
+    return DEMO_SCENARIO;
   const lat = Math.abs(latitude);
   const key = Math.round((latitude + 90) * 100) * 40000 + Math.round((longitude + 180) * 100);
   return {
@@ -734,7 +737,9 @@ class SpotModel {
         if (local < s.start) continue;
         const atEnd = 1 - Math.exp(-(s.end - s.start) / (2 * MINUTE));
         const l =
-          local < s.end ? 1 - Math.exp(-(local - s.start) / (2 * MINUTE)) : atEnd * Math.exp(-(local - s.end) / (30 * MINUTE));
+          local < s.end
+            ? 1 - Math.exp(-(local - s.start) / (2 * MINUTE))
+            : atEnd * Math.exp(-(local - s.end) / (30 * MINUTE));
         if (l > level) {
           level = l;
           peak = s.peak;

@@ -16,7 +16,11 @@ import { projectYear } from "~/domain/projection/project";
 
 const HOUR = 3_600_000;
 const DAY = 86_400_000;
-const site = { latitude: DEMO_HOUSEHOLD.site.latitude, longitude: DEMO_HOUSEHOLD.site.longitude, timeZone: DEMO_HOUSEHOLD.site.timeZone };
+const site = {
+  latitude: DEMO_HOUSEHOLD.site.latitude,
+  longitude: DEMO_HOUSEHOLD.site.longitude,
+  timeZone: DEMO_HOUSEHOLD.site.timeZone,
+};
 const YEAR = 2025;
 const PAST = Array.from({ length: 10 }, (_, i) => 2015 + i);
 const RUN_STARTS = [
@@ -47,11 +51,29 @@ export function demoWeather() {
 export function yearRollups(spotIndex: number): HourlyRollup[] {
   const s = DEMO_HOUSEHOLD.spots[spotIndex];
   const byHour = new Map<number, HourlyRollup>();
-  for (const r of generate(site, s.sim, DEMO_SCENARIO, { from: new Date(Date.UTC(YEAR, 0, 1)), to: new Date(Date.UTC(YEAR + 1, 0, 1)), intervalMs: 600_000, sensorSeed: s.sensor.seed })) {
+  for (const r of generate(site, s.sim, DEMO_SCENARIO, {
+    from: new Date(Date.UTC(YEAR, 0, 1)),
+    to: new Date(Date.UTC(YEAR + 1, 0, 1)),
+    intervalMs: 600_000,
+    sensorSeed: s.sensor.seed,
+  })) {
     const h = Math.floor(r.measuredAt.getTime() / HOUR) * HOUR;
     let roll = byHour.get(h);
     if (!roll) {
-      roll = { hour: new Date(h), tN: 0, tMin: Infinity, tMax: -Infinity, tSum: 0, hN: 0, hMin: Infinity, hMax: -Infinity, hSum: 0, dpMarginMin: null, luxN: 0, luxSum: null };
+      roll = {
+        hour: new Date(h),
+        tN: 0,
+        tMin: Infinity,
+        tMax: -Infinity,
+        tSum: 0,
+        hN: 0,
+        hMin: Infinity,
+        hMax: -Infinity,
+        hSum: 0,
+        dpMarginMin: null,
+        luxN: 0,
+        luxSum: null,
+      };
       byHour.set(h, roll);
     }
     roll.tN++;
@@ -66,7 +88,18 @@ export function yearRollups(spotIndex: number): HourlyRollup[] {
   return [...byHour.values()];
 }
 
-type Row = { spot: string; kind: string; runs: number; months: number; model: number; outdoor: number; firstWeeks: number; coverage: number; heldOutRmse: number; bySeason: Record<string, number> };
+type Row = {
+  spot: string;
+  kind: string;
+  runs: number;
+  months: number;
+  model: number;
+  outdoor: number;
+  firstWeeks: number;
+  coverage: number;
+  heldOutRmse: number;
+  bySeason: Record<string, number>;
+};
 
 export function accuracyTable(): Row[] {
   const weather = demoWeather();
@@ -75,16 +108,36 @@ export function accuracyTable(): Row[] {
   const outdoorRollups: HourlyRollup[] = [];
   for (let i = 0; i < plain.n; i++) {
     const v = plain.now[i];
-    outdoorRollups.push({ hour: new Date(plain.start + i * HOUR), tN: 1, tMin: v, tMax: v, tSum: v, hN: 0, hMin: null, hMax: null, hSum: null, dpMarginMin: null, luxN: 0, luxSum: null });
+    outdoorRollups.push({
+      hour: new Date(plain.start + i * HOUR),
+      tN: 1,
+      tMin: v,
+      tMax: v,
+      tSum: v,
+      hN: 0,
+      hMin: null,
+      hMax: null,
+      hSum: null,
+      dpMarginMin: null,
+      luxN: 0,
+      luxSum: null,
+    });
   }
-  const outdoorProfile = seasonProfile(outdoorRollups, site, { from: new Date(Date.UTC(PAST[0], 0, 1)), to: new Date(Date.UTC(PAST[PAST.length - 1] + 1, 0, 1)) });
-  const outdoorMonth = (month: number, key: "meanDailyLow" | "meanDailyHigh") => median(outdoorProfile.months.filter((m) => m.month === month).map((m) => m.temperature[key]!));
+  const outdoorProfile = seasonProfile(outdoorRollups, site, {
+    from: new Date(Date.UTC(PAST[0], 0, 1)),
+    to: new Date(Date.UTC(PAST[PAST.length - 1] + 1, 0, 1)),
+  });
+  const outdoorMonth = (month: number, key: "meanDailyLow" | "meanDailyHigh") =>
+    median(outdoorProfile.months.filter((m) => m.month === month).map((m) => m.temperature[key]!));
 
   const rows: Row[] = [];
   for (const [index, spot] of DEMO_HOUSEHOLD.spots.entries()) {
     const rollups = yearRollups(index);
     const d = drivers(weather, site.timeZone, { ...site, facing: spot.facing });
-    const truth = seasonProfile(rollups, site, { from: new Date(Date.UTC(YEAR, 0, 1)), to: new Date(Date.UTC(YEAR + 1, 0, 1)) }).months;
+    const truth = seasonProfile(rollups, site, {
+      from: new Date(Date.UTC(YEAR, 0, 1)),
+      to: new Date(Date.UTC(YEAR + 1, 0, 1)),
+    }).months;
     const errs = { model: [] as number[], outdoor: [] as number[], firstWeeks: [] as number[] };
     let inside = 0;
     let total = 0;
@@ -96,14 +149,20 @@ export function accuracyTable(): Row[] {
       const model = fitResponse(fitRollups, d, { indoor: spot.indoor, timeZone: site.timeZone })!;
       rmse += model.quality?.hourlyRmseC ?? NaN;
       const projected = projectYear(model, d, site, { years: PAST, seed: index * 10 + 1 });
-      const first = seasonProfile(fitRollups, site, { from: new Date(run.at), to: new Date(run.at + 14 * DAY) }).days.filter((x) => x.complete);
+      const first = seasonProfile(fitRollups, site, {
+        from: new Date(run.at),
+        to: new Date(run.at + 14 * DAY),
+      }).days.filter((x) => x.complete);
       const firstLow = first.reduce((a, x) => a + x.low!, 0) / first.length;
       const firstHigh = first.reduce((a, x) => a + x.high!, 0) / first.length;
       const seen = new Set([new Date(run.at).getUTCMonth() + 1, new Date(run.at + 14 * DAY).getUTCMonth() + 1]);
       for (const t of truth) {
         if (seen.has(t.month)) continue;
         const p = projected[t.month - 1].figures;
-        for (const [key, fw] of [["meanDailyLow", firstLow], ["meanDailyHigh", firstHigh]] as const) {
+        for (const [key, fw] of [
+          ["meanDailyLow", firstLow],
+          ["meanDailyHigh", firstHigh],
+        ] as const) {
           const actual = t.temperature[key]!;
           const f = p[key]!;
           errs.model.push(Math.abs(f.value - actual));
@@ -137,8 +196,10 @@ export function formatTable(rows: Row[]): string {
   const lines = [
     "| spot | kind | months projected | model MAE °C | outdoor climate MAE °C | first 2 weeks repeated MAE °C | inside 80 % interval | held-out hourly RMSE °C | model MAE by run: winter / spring / summer / autumn |",
     "|---|---|---|---|---|---|---|---|---|",
-    ...rows.map((r) => `| ${r.spot} | ${r.kind} | ${r.months} | ${f(r.model)} | ${f(r.outdoor)} | ${f(r.firstWeeks)} | ${Math.round(r.coverage * 100)} % | ${f(r.heldOutRmse)} | ${RUN_STARTS.map((run) => f(r.bySeason[run.season])).join(" / ")} |`),
+    ...rows.map(
+      (r) =>
+        `| ${r.spot} | ${r.kind} | ${r.months} | ${f(r.model)} | ${f(r.outdoor)} | ${f(r.firstWeeks)} | ${Math.round(r.coverage * 100)} % | ${f(r.heldOutRmse)} | ${RUN_STARTS.map((run) => f(r.bySeason[run.season])).join(" / ")} |`,
+    ),
   ];
   return lines.join("\n");
 }
-

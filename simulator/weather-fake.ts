@@ -104,16 +104,21 @@ export async function startWeatherFake(opts: WeatherFakeOptions = {}): Promise<W
     const lat = coordinate(q.get("latitude"), 90, "latitude");
     const lon = coordinate(q.get("longitude"), 180, "longitude");
     const variables = (q.get("hourly") ?? "").split(",").filter(Boolean);
-    if (variables.length === 0 || variables.length > 12) throw new BadRequest("Parameter 'hourly' must list 1 to 12 variables");
+    if (variables.length === 0 || variables.length > 12)
+      throw new BadRequest("Parameter 'hourly' must list 1 to 12 variables");
     for (const v of variables) {
-      if (!(v in WEATHER_VARIABLES)) throw new BadRequest(`Cannot initialize WeatherVariable from invalid String value ${v.slice(0, 40)} for key hourly`);
+      if (!(v in WEATHER_VARIABLES))
+        throw new BadRequest(
+          `Cannot initialize WeatherVariable from invalid String value ${v.slice(0, 40)} for key hourly`,
+        );
     }
     const tzName = q.get("timezone") ?? "GMT";
     const utc = tzName === "GMT" || tzName === "UTC";
     if (!utc && !isZone(tzName)) throw new BadRequest(`Invalid timezone`);
     const offsetAt = utc ? () => 0 : zoneClock(tzName).offsetAt;
     const unixtime = q.get("timeformat") === "unixtime";
-    if (q.has("timeformat") && !["unixtime", "iso8601"].includes(q.get("timeformat")!)) throw new BadRequest("Invalid timeformat");
+    if (q.has("timeformat") && !["unixtime", "iso8601"].includes(q.get("timeformat")!))
+      throw new BadRequest("Invalid timeformat");
 
     const today = Math.floor((now() + offsetAt(now())) / DAY);
     let firstDay: number;
@@ -130,9 +135,12 @@ export async function startWeatherFake(opts: WeatherFakeOptions = {}): Promise<W
       lastDay = today + ahead - 1;
     }
     if (lastDay < firstDay) throw new BadRequest("End-date must be larger or equal than start-date");
-    if (lastDay - firstDay + 1 > MAX_DAYS_PER_REQUEST) throw new BadRequest(`At most ${MAX_DAYS_PER_REQUEST} days per request`);
-    if (kind === "archive" && firstDay < Date.UTC(1940, 0, 1) / DAY) throw new BadRequest("Parameter 'start_date' is out of allowed range from 1940-01-01");
-    if (kind === "forecast" && (firstDay < today - 92 || lastDay > today + 16)) throw new BadRequest("Parameter 'start_date' or 'end_date' is out of the allowed range");
+    if (lastDay - firstDay + 1 > MAX_DAYS_PER_REQUEST)
+      throw new BadRequest(`At most ${MAX_DAYS_PER_REQUEST} days per request`);
+    if (kind === "archive" && firstDay < Date.UTC(1940, 0, 1) / DAY)
+      throw new BadRequest("Parameter 'start_date' is out of allowed range from 1940-01-01");
+    if (kind === "forecast" && (firstDay < today - 92 || lastDay > today + 16))
+      throw new BadRequest("Parameter 'start_date' or 'end_date' is out of the allowed range");
 
     // The archive has nothing yet for its last few days: the service answers null there.
     const archiveEnd = now() - (opts.archiveDelayDays ?? 5) * DAY;
@@ -188,7 +196,8 @@ const round4 = (x: number) => Math.round(x * 10_000) / 10_000;
 
 function coordinate(value: string | null, limit: number, name: string): number {
   const n = value === null || value.length > 20 ? NaN : Number(value);
-  if (!Number.isFinite(n) || Math.abs(n) > limit) throw new BadRequest(`Parameter '${name}' must be a number between -${limit} and ${limit}`);
+  if (!Number.isFinite(n) || Math.abs(n) > limit)
+    throw new BadRequest(`Parameter '${name}' must be a number between -${limit} and ${limit}`);
   return n;
 }
 
@@ -203,7 +212,8 @@ function dayOf(value: string | null, name: string): number {
   const m = value === null ? null : /^(\d{4})-(\d{2})-(\d{2})$/.exec(value);
   if (!m) throw new BadRequest(`Parameter '${name}' must be a date as yyyy-mm-dd`);
   const t = Date.UTC(Number(m[1]), Number(m[2]) - 1, Number(m[3]));
-  if (new Date(t).toISOString().slice(0, 10) !== value) throw new BadRequest(`Parameter '${name}' is not a calendar date`);
+  if (new Date(t).toISOString().slice(0, 10) !== value)
+    throw new BadRequest(`Parameter '${name}' is not a calendar date`);
   return t / DAY;
 }
 

@@ -31,7 +31,9 @@ export async function createAdmin(opts: { email: string; name?: string; password
   }
   const generatedPassword = parsed.data.password ? null : randomBytes(15).toString("base64url");
   const password = parsed.data.password ?? generatedPassword!;
-  await db().insert(users).values({ email, name, isAdmin: true, passwordHash: await hashPassword(password) });
+  await db()
+    .insert(users)
+    .values({ email, name, isAdmin: true, passwordHash: await hashPassword(password) });
   return { email, created: true, generatedPassword };
 }
 
@@ -44,7 +46,9 @@ async function readStdin(): Promise<string | undefined> {
     if (size > 4096) throw new Error("standard input is longer than a password");
     chunks.push(chunk as Buffer);
   }
-  const text = Buffer.concat(chunks).toString("utf8").replace(/\r?\n$/, "");
+  const text = Buffer.concat(chunks)
+    .toString("utf8")
+    .replace(/\r?\n$/, "");
   return text === "" ? undefined : text;
 }
 
@@ -58,7 +62,9 @@ function arg(name: string): string | undefined {
 async function cli() {
   const email = arg("email");
   if (!email) {
-    console.error('usage: npm run admin:create -- --email you@example.org [--name "Your name"]   (password on standard input, or one is generated)');
+    console.error(
+      'usage: npm run admin:create -- --email you@example.org [--name "Your name"]   (password on standard input, or one is generated)',
+    );
     return 2;
   }
   const password = await readStdin();
@@ -68,7 +74,12 @@ async function cli() {
   if (!process.env.DATABASE_URL) {
     const e = env();
     const running = embeddedPid(e.NW_PG_DATA) !== undefined;
-    const pg = await startEmbeddedPostgres({ dataDir: e.NW_PG_DATA, port: e.NW_PG_PORT, database: "nichewise", log: () => {} });
+    const pg = await startEmbeddedPostgres({
+      dataDir: e.NW_PG_DATA,
+      port: e.NW_PG_PORT,
+      database: "nichewise",
+      log: () => {},
+    });
     process.env.DATABASE_URL = pg.url;
     if (!running) stopPg = pg.stop;
   }
@@ -77,7 +88,8 @@ async function cli() {
     await runMigrations(path.resolve("drizzle"));
     const r = await createAdmin({ email, name: arg("name"), password });
     if (!r.created) console.log(`${r.email} has an account already: it is an admin now (password unchanged).`);
-    else if (r.generatedPassword) console.log(`Admin ${r.email} created. Password (shown once, change it in Settings): ${r.generatedPassword}`);
+    else if (r.generatedPassword)
+      console.log(`Admin ${r.email} created. Password (shown once, change it in Settings): ${r.generatedPassword}`);
     else console.log(`Admin ${r.email} created with the password from standard input.`);
     return 0;
   } finally {
@@ -86,7 +98,10 @@ async function cli() {
   }
 }
 
-const isEntry = process.argv[1] && /admin-create\.ts$/.test(process.argv[1]) && path.resolve(process.argv[1]) === path.resolve(import.meta.filename);
+const isEntry =
+  process.argv[1] &&
+  /admin-create\.ts$/.test(process.argv[1]) &&
+  path.resolve(process.argv[1]) === path.resolve(import.meta.filename);
 if (isEntry) {
   cli().then(
     (code) => process.exit(code),

@@ -56,7 +56,13 @@ export async function validateSessionToken(token: string): Promise<ValidSession 
     .select({
       id: sessions.id,
       expiresAt: sessions.expiresAt,
-      user: { id: users.id, email: users.email, name: users.name, isAdmin: users.isAdmin, temperatureUnit: users.temperatureUnit },
+      user: {
+        id: users.id,
+        email: users.email,
+        name: users.name,
+        isAdmin: users.isAdmin,
+        temperatureUnit: users.temperatureUnit,
+      },
     })
     .from(sessions)
     .innerJoin(users, eq(users.id, sessions.userId))
@@ -101,7 +107,8 @@ const secureCookies = () => publicUrl().startsWith("https:");
  * over https. Its value is the opaque token (the helper writes it as base64 JSON); the database holds
  * only the token's SHA-256. Made per use, so that it follows PUBLIC_URL as read now.
  */
-const sessionCookieJar = () => createCookie(SESSION_COOKIE, { httpOnly: true, sameSite: "lax", path: "/", secure: secureCookies() });
+const sessionCookieJar = () =>
+  createCookie(SESSION_COOKIE, { httpOnly: true, sameSite: "lax", path: "/", secure: secureCookies() });
 
 export function sessionCookie(token: string, expiresAt: Date): Promise<string> {
   return sessionCookieJar().serialize(token, { expires: expiresAt });
@@ -188,7 +195,12 @@ async function failuresFor(key: string) {
   const [row] = await db()
     .select({ n: sql<number>`count(*)::int` })
     .from(signInFailures)
-    .where(and(eq(signInFailures.key, key), gt(signInFailures.at, sql`now() - make_interval(mins => ${SIGN_IN_WINDOW_MINUTES})`)));
+    .where(
+      and(
+        eq(signInFailures.key, key),
+        gt(signInFailures.at, sql`now() - make_interval(mins => ${SIGN_IN_WINDOW_MINUTES})`),
+      ),
+    );
   return row?.n ?? 0;
 }
 
@@ -200,17 +212,19 @@ export async function signInBlocked(email: string, address: string) {
 }
 
 export async function recordSignInFailure(email: string, address: string) {
-  await db().insert(signInFailures).values([{ key: accountKey(email, address) }, { key: `addr:${address}` }]);
+  await db()
+    .insert(signInFailures)
+    .values([{ key: accountKey(email, address) }, { key: `addr:${address}` }]);
   await db().execute(sql`delete from sign_in_failures where at < now() - interval '1 day'`);
 }
 
 export async function clearSignInFailures(email: string, address: string) {
-  await db().delete(signInFailures).where(eq(signInFailures.key, accountKey(email, address)));
+  await db()
+    .delete(signInFailures)
+    .where(eq(signInFailures.key, accountKey(email, address)));
 }
 
-export type SignInResult =
-  | { ok: true; token: string; expiresAt: Date; user: User }
-  | { ok: false; error: string };
+export type SignInResult = { ok: true; token: string; expiresAt: Date; user: User } | { ok: false; error: string };
 
 export async function signIn(email: string, password: string, address: string): Promise<SignInResult> {
   const normalised = email.trim().toLowerCase();
@@ -230,5 +244,4 @@ export async function signIn(email: string, password: string, address: string): 
   return { ok: true, token, expiresAt: session.expiresAt, user };
 }
 
-const DUMMY_HASH =
-  "$argon2id$v=19$m=19456,t=2,p=1$c29tZXNhbHRzb21lc2FsdA$Vf3s9w3U0ZxZrWm1h3Gm0n2FJc6k0m8s3b2Q7w1QhJY";
+const DUMMY_HASH = "$argon2id$v=19$m=19456,t=2,p=1$c29tZXNhbHRzb21lc2FsdA$Vf3s9w3U0ZxZrWm1h3Gm0n2FJc6k0m8s3b2Q7w1QhJY";

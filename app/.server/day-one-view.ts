@@ -8,15 +8,29 @@ import type { SeasonProfile } from "~/domain/season/types";
 const dateIn = (d: Date, timeZone: string, year = true) =>
   d.toLocaleDateString("en-GB", { day: "numeric", month: "short", ...(year ? { year: "numeric" } : {}), timeZone });
 
-export async function dayOneFor(site: { id: number; timeZone: string }, spotId: number, season: SeasonProfile, fits: ReturnType<typeof fitsFor>, now: Date): Promise<DayOneView> {
+export async function dayOneFor(
+  site: { id: number; timeZone: string },
+  spotId: number,
+  season: SeasonProfile,
+  fits: ReturnType<typeof fitsFor>,
+  now: Date,
+): Promise<DayOneView> {
   const d = await dayOne(site, spotId, { now });
-  const likelyFits = fits.filter((f) => f.confidence && f.confidence !== "measured" && f.verdict !== "not enough data yet");
+  const likelyFits = fits.filter(
+    (f) => f.confidence && f.confidence !== "measured" && f.verdict !== "not enough data yet",
+  );
   const likely = (["thrives here", "possible with care", "good for part of the year", "struggles here"] as const)
     .map((verdict) => ({ verdict, names: likelyFits.filter((f) => f.verdict === verdict).map((f) => f.name) }))
     .filter((l) => l.names.length > 0);
   const basisOf = likelyFits[0]?.verdictText;
   // A date-only string ("YYYY-MM-DD"), read as a calendar day.
-  const day = (iso: string) => new Date(`${iso}T12:00:00Z`).toLocaleDateString("en-GB", { day: "numeric", month: "short", year: "numeric", timeZone: "UTC" });
+  const day = (iso: string) =>
+    new Date(`${iso}T12:00:00Z`).toLocaleDateString("en-GB", {
+      day: "numeric",
+      month: "short",
+      year: "numeric",
+      timeZone: "UTC",
+    });
   const m = d.model;
   const firm = fits.find((f) => f.basis?.firmBy)?.basis?.firmBy;
   return {
@@ -25,7 +39,11 @@ export async function dayOneFor(site: { id: number; timeZone: string }, spotId: 
     weather: d.weather,
     climate: d.climate,
     versus: d.versus
-      ? { ...d.versus, from: dateIn(d.versus.from, site.timeZone, false), to: dateIn(d.versus.to, site.timeZone, false) }
+      ? {
+          ...d.versus,
+          from: dateIn(d.versus.from, site.timeZone, false),
+          to: dateIn(d.versus.to, site.timeZone, false),
+        }
       : null,
     model:
       m.state === "fitted"
@@ -34,7 +52,11 @@ export async function dayOneFor(site: { id: number; timeZone: string }, spotId: 
           ? { state: "waiting", expected: m.expected ? dateIn(m.expected, site.timeZone) : null }
           : m,
     likely,
-    basis: basisOf?.startsWith("likely ") ? basisOf.replace(/^likely [^—]+— /, "").replace(/; firm by .*$/, "").replace(/^./, (c) => c.toUpperCase()) : null,
+    basis: basisOf?.startsWith("likely ")
+      ? basisOf
+          .replace(/^likely [^—]+— /, "")
+          .replace(/; firm by .*$/, "")
+          .replace(/^./, (c) => c.toUpperCase())
+      : null,
   };
 }
-

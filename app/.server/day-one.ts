@@ -16,7 +16,13 @@ const VERSUS_DAYS = 28;
 const NIGHT_HOURS = [0, 1, 2, 3, 4, 5];
 const DAY_HOURS = [11, 12, 13, 14, 15, 16];
 
-export type ClimateMonth = { month: number; meanDailyLowC: number; meanDailyHighC: number; coldestLowC: number; warmestHighC: number };
+export type ClimateMonth = {
+  month: number;
+  meanDailyLowC: number;
+  meanDailyHighC: number;
+  coldestLowC: number;
+  warmestHighC: number;
+};
 export type OutdoorClimate = { years: number; firstYear: number; lastYear: number; months: ClimateMonth[] };
 
 const climateCache = new Map<string, OutdoorClimate | null>();
@@ -26,7 +32,10 @@ const climateCache = new Map<string, OutdoorClimate | null>();
  * high over the past whole years stored (up to `years`), and the coldest and warmest of those years'
  * monthly means. Local days of the site's time zone. Null when no whole past year is stored.
  */
-export async function outdoorClimate(site: { id: number; timeZone: string }, opts: { now?: Date; years?: number } = {}): Promise<OutdoorClimate | null> {
+export async function outdoorClimate(
+  site: { id: number; timeZone: string },
+  opts: { now?: Date; years?: number } = {},
+): Promise<OutdoorClimate | null> {
   const now = opts.now ?? new Date();
   const status = await weatherStatus(site.id);
   if (status.state !== "ready" || !status.archiveFrom || !status.archiveTo) return null;
@@ -35,7 +44,11 @@ export async function outdoorClimate(site: { id: number; timeZone: string }, opt
   const key = `${site.id}:${site.timeZone}:${status.archiveFrom}:${status.archiveTo}:${firstWanted}`;
   if (climateCache.has(key)) return climateCache.get(key)!;
 
-  const hours = await loadHours(site.id, new Date(Date.UTC(firstWanted, 0, 1) - DAY), new Date(Date.UTC(thisYear, 0, 1) + DAY));
+  const hours = await loadHours(
+    site.id,
+    new Date(Date.UTC(firstWanted, 0, 1) - DAY),
+    new Date(Date.UTC(thisYear, 0, 1) + DAY),
+  );
   const clock = zoneClock(site.timeZone);
   // Daily low and high per local day with at least 20 hours stored.
   const perYearMonth = new Map<string, { lows: number[]; highs: number[] }>();
@@ -90,10 +103,19 @@ export async function outdoorClimate(site: { id: number; timeZone: string }, opt
       highs.push(mean(b.highs));
     }
     if (lows.length === 0) continue;
-    months.push({ month: m, meanDailyLowC: round1(mean(lows)), meanDailyHighC: round1(mean(highs)), coldestLowC: round1(Math.min(...lows)), warmestHighC: round1(Math.max(...highs)) });
+    months.push({
+      month: m,
+      meanDailyLowC: round1(mean(lows)),
+      meanDailyHighC: round1(mean(highs)),
+      coldestLowC: round1(Math.min(...lows)),
+      warmestHighC: round1(Math.max(...highs)),
+    });
   }
   const years = [...yearsSeen].sort((a, b) => a - b);
-  const out = months.length === 12 ? { years: years.length, firstYear: years[0], lastYear: years[years.length - 1], months } : null;
+  const out =
+    months.length === 12
+      ? { years: years.length, firstYear: years[0], lastYear: years[years.length - 1], months }
+      : null;
   if (climateCache.size > 200) climateCache.clear();
   climateCache.set(key, out);
   return out;
@@ -118,13 +140,21 @@ export type Versus = {
  * The spot's latest few weeks of hours against the stored outdoor temperature of the same hours:
  * how far above (or below) outdoors it ran at night and by day. Null without hours to compare.
  */
-export async function firstDaysVersusOutdoors(site: { id: number; timeZone: string }, spotId: number, opts: { now?: Date } = {}): Promise<Versus | null> {
+export async function firstDaysVersusOutdoors(
+  site: { id: number; timeZone: string },
+  spotId: number,
+  opts: { now?: Date } = {},
+): Promise<Versus | null> {
   const now = opts.now ?? new Date();
   const from = new Date(now.getTime() - VERSUS_DAYS * DAY);
   const rollups = (await loadRollups([spotId], from, now)).get(spotId) ?? [];
   const withTemp = rollups.filter((r) => r.tN > 0 && r.tSum !== null);
   if (withTemp.length === 0) return null;
-  const outdoors = await loadHours(site.id, withTemp[0].hour, new Date(withTemp[withTemp.length - 1].hour.getTime() + HOUR));
+  const outdoors = await loadHours(
+    site.id,
+    withTemp[0].hour,
+    new Date(withTemp[withTemp.length - 1].hour.getTime() + HOUR),
+  );
   const clock = zoneClock(site.timeZone);
   const acc = { night: { spot: 0, out: 0, n: 0 }, day: { spot: 0, out: 0, n: 0 } };
   const days = new Set<number>();
@@ -151,7 +181,8 @@ export async function firstDaysVersusOutdoors(site: { id: number; timeZone: stri
   }
   if (!first || !last) return null;
   const r1 = (x: number) => Math.round(x * 10) / 10;
-  const of = (b: { spot: number; out: number; n: number }) => (b.n >= 3 ? { spot: r1(b.spot / b.n), out: r1(b.out / b.n), above: r1((b.spot - b.out) / b.n) } : null);
+  const of = (b: { spot: number; out: number; n: number }) =>
+    b.n >= 3 ? { spot: r1(b.spot / b.n), out: r1(b.out / b.n), above: r1((b.spot - b.out) / b.n) } : null;
   const night = of(acc.night);
   const dayFig = of(acc.day);
   return {
@@ -180,7 +211,11 @@ export type DayOne = {
 };
 
 /** Everything the day-one view needs for one spot. */
-export async function dayOne(site: { id: number; timeZone: string }, spotId: number, opts: { now?: Date } = {}): Promise<DayOne> {
+export async function dayOne(
+  site: { id: number; timeZone: string },
+  spotId: number,
+  opts: { now?: Date } = {},
+): Promise<DayOne> {
   const now = opts.now ?? new Date();
   const [status, climate, versus, projection] = await Promise.all([
     weatherStatus(site.id),

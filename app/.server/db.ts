@@ -18,7 +18,9 @@ export function pool(): pg.Pool {
     // A dropped connection must not crash the process; queries on it fail and are retried by callers.
     holder.pool.on("error", (err) => console.error("[db] idle client error:", err.message));
     // A checked-out client whose server dies emits "error" too; without a listener that is a crash.
-    holder.pool.on("connect", (client) => client.on("error", (err) => console.error("[db] client error:", err.message)));
+    holder.pool.on("connect", (client) =>
+      client.on("error", (err) => console.error("[db] client error:", err.message)),
+    );
   }
   return holder.pool;
 }

@@ -8,5 +8,8 @@ export const isRoot = () => process.getuid?.() === 0;
 export function aptInstall(pkg: string, log: (s: string) => void = console.log) {
   log(`Installing Debian's ${pkg} package (first run only)…`);
   execFileSync("apt-get", ["update", "-qq"], { stdio: "inherit" });
-  execFileSync("apt-get", ["install", "-y", "-qq", pkg], { stdio: "inherit", env: { ...process.env, DEBIAN_FRONTEND: "noninteractive" } });
+  execFileSync("apt-get", ["install", "-y", "-qq", pkg], {
+    stdio: "inherit",
+    env: { ...process.env, DEBIAN_FRONTEND: "noninteractive" },
+  });
 }

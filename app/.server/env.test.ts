@@ -7,7 +7,11 @@ describe("TRUST_PROXY", () => {
   it("is off by default and takes a hop count or addresses, subnets and Express's named ranges", () => {
     expect(parseEnv({}).TRUST_PROXY).toBe(0);
     expect(parseEnv({ TRUST_PROXY: "1" }).TRUST_PROXY).toBe(1);
-    expect(parseEnv({ TRUST_PROXY: "loopback, 10.0.0.0/8,::1" }).TRUST_PROXY).toEqual(["loopback", "10.0.0.0/8", "::1"]);
+    expect(parseEnv({ TRUST_PROXY: "loopback, 10.0.0.0/8,::1" }).TRUST_PROXY).toEqual([
+      "loopback",
+      "10.0.0.0/8",
+      "::1",
+    ]);
   });
 
   it("refuses anything else, naming the variable", () => {

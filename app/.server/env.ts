@@ -25,7 +25,11 @@ const trustProxy = z
       return bits === undefined || (/^\d+$/.test(bits) && Number(bits) <= (isIP(addr) === 4 ? 32 : 128));
     });
     if (!ok) {
-      ctx.addIssue({ code: "custom", message: "a number of proxy hops (0-10) or a comma list of addresses, subnets, loopback, linklocal, uniquelocal" });
+      ctx.addIssue({
+        code: "custom",
+        message:
+          "a number of proxy hops (0-10) or a comma list of addresses, subnets, loopback, linklocal, uniquelocal",
+      });
       return z.NEVER;
     }
     return parts;
@@ -44,7 +48,10 @@ const schema = z.object({
   NW_SECRET_KEY: z
     .string()
     .trim()
-    .refine((v) => /^[0-9a-fA-F]{64}$/.test(v) || /^[A-Za-z0-9+/]{43}=$/.test(v), "32 bytes: 64 hex digits or 44 base64 characters")
+    .refine(
+      (v) => /^[0-9a-fA-F]{64}$/.test(v) || /^[A-Za-z0-9+/]{43}=$/.test(v),
+      "32 bytes: 64 hex digits or 44 base64 characters",
+    )
     .optional(),
   MQTT_HOST: z.string().min(1).default("127.0.0.1"),
   MQTT_PORT: port.default(1883),
@@ -109,9 +116,15 @@ export function demoPolicy(e: Pick<Env, "NW_DEMO" | "HOST">): { seed: boolean; w
   if (e.NW_DEMO === true) {
     return isLoopbackHost(e.HOST)
       ? { seed: true, why: "NW_DEMO=1: demo household on an empty database" }
-      : { seed: true, why: `NW_DEMO=1 while listening on ${e.HOST}: the demo household's published logins are open to anyone who can reach this server` };
+      : {
+          seed: true,
+          why: `NW_DEMO=1 while listening on ${e.HOST}: the demo household's published logins are open to anyone who can reach this server`,
+        };
   }
   return isLoopbackHost(e.HOST)
     ? { seed: true, why: "listening on loopback: demo household on an empty database (NW_DEMO=0 to skip)" }
-    : { seed: false, why: `listening on ${e.HOST}, beyond loopback: no demo household with known logins (NW_DEMO=1 to seed it anyway; \`npm run admin:create\` makes the first admin)` };
+    : {
+        seed: false,
+        why: `listening on ${e.HOST}, beyond loopback: no demo household with known logins (NW_DEMO=1 to seed it anyway; \`npm run admin:create\` makes the first admin)`,
+      };
 }

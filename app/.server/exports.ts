@@ -93,7 +93,11 @@ function rawPager(spotId: number, from: Date, to: Date): Pager {
 function hourlyPager(spotId: number, from: Date, to: Date): Pager {
   let after: Date = new Date(0);
   return async () => {
-    const res = await pool().query({ text: HOURLY_PAGE, values: [spotId, from, to, after, EXPORT_BATCH], rowMode: "array" });
+    const res = await pool().query({
+      text: HOURLY_PAGE,
+      values: [spotId, from, to, after, EXPORT_BATCH],
+      rowMode: "array",
+    });
     const rows = res.rows as Cell[][];
     const last = rows.at(-1);
     if (last) after = last[12] as unknown as Date;
@@ -109,7 +113,12 @@ const csvCell = (v: Cell) => {
 export const csvLine = (cells: Cell[]) => `${cells.map(csvCell).join(",")}\r\n`;
 
 /** A stream that asks the pager for the next batch only when the consumer wants more. */
-function streamRows(opts: { format: ExportFormat; columns: string[]; meta: Record<string, unknown>; pager: Pager }): ReadableStream<Uint8Array> {
+function streamRows(opts: {
+  format: ExportFormat;
+  columns: string[];
+  meta: Record<string, unknown>;
+  pager: Pager;
+}): ReadableStream<Uint8Array> {
   const enc = new TextEncoder();
   let started = false;
   let finished = false;
@@ -151,7 +160,14 @@ function streamRows(opts: { format: ExportFormat; columns: string[]; meta: Recor
   );
 }
 
-export function exportReadings(opts: { spot: Spot; site: Site; kind: "raw" | "hourly"; format: ExportFormat; from: Date; to: Date }) {
+export function exportReadings(opts: {
+  spot: Spot;
+  site: Site;
+  kind: "raw" | "hourly";
+  format: ExportFormat;
+  from: Date;
+  to: Date;
+}) {
   const meta = {
     site: opts.site.name,
     spot: opts.spot.name,
@@ -169,7 +185,8 @@ export function exportReadings(opts: { spot: Spot; site: Site; kind: "raw" | "ho
     format: opts.format,
     columns: opts.kind === "raw" ? RAW_COLUMNS : HOURLY_COLUMNS,
     meta,
-    pager: opts.kind === "raw" ? rawPager(opts.spot.id, opts.from, opts.to) : hourlyPager(opts.spot.id, opts.from, opts.to),
+    pager:
+      opts.kind === "raw" ? rawPager(opts.spot.id, opts.from, opts.to) : hourlyPager(opts.spot.id, opts.from, opts.to),
   });
 }
 
@@ -192,7 +209,9 @@ export const PROFILE_COLUMNS = [
 
 /** The season profile of the period: per calendar month and per season, from the hourly rollups. */
 export async function exportProfile(opts: { spot: Spot; site: Site; format: ExportFormat; from: Date; to: Date }) {
-  const profile = (await spotProfiles(opts.site, [opts.spot.id], opts.to, { range: { from: opts.from, to: opts.to } })).get(opts.spot.id)!;
+  const profile = (
+    await spotProfiles(opts.site, [opts.spot.id], opts.to, { range: { from: opts.from, to: opts.to } })
+  ).get(opts.spot.id)!;
   const r2 = (v: number | null) => (v == null ? null : Math.round(v * 100) / 100);
   const line = (key: string, p: (typeof profile.months)[number] | (typeof profile.seasons)[number]): Cell[] => [
     key,
@@ -212,7 +231,11 @@ export async function exportProfile(opts: { spot: Spot; site: Site; format: Expo
   ];
   const enc = new TextEncoder();
   if (opts.format === "csv") {
-    const lines = [csvLine(PROFILE_COLUMNS), ...profile.months.map((m) => csvLine(line(m.key, m))), ...profile.seasons.map((s) => csvLine(line(s.label, s)))];
+    const lines = [
+      csvLine(PROFILE_COLUMNS),
+      ...profile.months.map((m) => csvLine(line(m.key, m))),
+      ...profile.seasons.map((s) => csvLine(line(s.label, s))),
+    ];
     return new ReadableStream<Uint8Array>({
       start(c) {
         for (const l of lines) c.enqueue(enc.encode(l));
@@ -221,9 +244,37 @@ export async function exportProfile(opts: { spot: Spot; site: Site; format: Expo
     });
   }
   const body = JSON.stringify({
-    meta: { site: opts.site.name, spot: opts.spot.name, spotId: opts.spot.id, from: opts.from.toISOString(), to: opts.to.toISOString(), timeZone: opts.site.timeZone, hemisphere: profile.hemisphere },
-    months: profile.months.map(({ key, temperature, humidity, below, condensationHours, light, coverage }) => ({ key, temperature, humidity, below, condensationHours, light, coverage })),
-    seasons: profile.seasons.map(({ key, label, season, temperature, humidity, below, condensationHours, light, coverage }) => ({ key, label, season, temperature, humidity, below, condensationHours, light, coverage })),
+    meta: {
+      site: opts.site.name,
+      spot: opts.spot.name,
+      spotId: opts.spot.id,
+      from: opts.from.toISOString(),
+      to: opts.to.toISOString(),
+      timeZone: opts.site.timeZone,
+      hemisphere: profile.hemisphere,
+    },
+    months: profile.months.map(({ key, temperature, humidity, below, condensationHours, light, coverage }) => ({
+      key,
+      temperature,
+      humidity,
+      below,
+      condensationHours,
+      light,
+      coverage,
+    })),
+    seasons: profile.seasons.map(
+      ({ key, label, season, temperature, humidity, below, condensationHours, light, coverage }) => ({
+        key,
+        label,
+        season,
+        temperature,
+        humidity,
+        below,
+        condensationHours,
+        light,
+        coverage,
+      }),
+    ),
   });
   return new ReadableStream<Uint8Array>({
     start(c) {

@@ -20,9 +20,15 @@ export async function ingestHealth() {
     p.query<{ reason: string; n: number; last: string }>(
       `SELECT reason, count(*)::int AS n, max(at) AS last FROM rejected_messages GROUP BY reason ORDER BY n DESC LIMIT 20`,
     ),
-    p.query<{ id: number; at: string; sensor_id: number | null; source: string; topic: string | null; reason: string; payload: string }>(
-      `SELECT id, at, sensor_id, source, topic, reason, payload FROM rejected_messages ORDER BY id DESC LIMIT 20`,
-    ),
+    p.query<{
+      id: number;
+      at: string;
+      sensor_id: number | null;
+      source: string;
+      topic: string | null;
+      reason: string;
+      payload: string;
+    }>(`SELECT id, at, sensor_id, source, topic, reason, payload FROM rejected_messages ORDER BY id DESC LIMIT 20`),
     p.query<{ name: string; bytes: string }>(
       `SELECT c.relname AS name, pg_total_relation_size(c.oid) + coalesce((SELECT sum(pg_total_relation_size(i.inhrelid)) FROM pg_inherits i WHERE i.inhparent = c.oid), 0) AS bytes
        FROM pg_class c JOIN pg_namespace n ON n.oid = c.relnamespace
@@ -35,8 +41,17 @@ export async function ingestHealth() {
   const b = runningBroker();
   const w = writer().stats;
   return {
-    broker: b ? { up: true, port: b.port, wsPort: b.wsPort, connected: b.connectedSensors(), stats: b.stats } : { up: false },
-    writer: { batches: w.batches, readings: w.readings, inserted: w.inserted, failures: w.failures, p50: pct(w.commitMs, 50), p99: pct(w.commitMs, 99) },
+    broker: b
+      ? { up: true, port: b.port, wsPort: b.wsPort, connected: b.connectedSensors(), stats: b.stats }
+      : { up: false },
+    writer: {
+      batches: w.batches,
+      readings: w.readings,
+      inserted: w.inserted,
+      failures: w.failures,
+      p50: pct(w.commitMs, 50),
+      p99: pct(w.commitMs, 99),
+    },
     perMinute: perMinute.rows,
     reasons: reasons.rows,
     latest: latest.rows,

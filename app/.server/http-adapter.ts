@@ -58,17 +58,23 @@ const IMPORT_PATH = /^\/sites\/\d+\/import(?:\.data)?$/;
  * API (verified by the route before it reads anything), a live session for the CSV import. Anyone
  * else is held to a form's size.
  */
-export async function bodyLimit(pathname: string, headers: IncomingMessage["headers"]): Promise<{ limit: number; budget: Budget }> {
+export async function bodyLimit(
+  pathname: string,
+  headers: IncomingMessage["headers"],
+): Promise<{ limit: number; budget: Budget }> {
   pathname = pathname.replace(/(.)\/+$/, "$1");
-  if (pathname === "/api/ingest" && /^Bearer \S/.test(headers.authorization ?? "")) return { limit: MAX_HTTP_BYTES, budget: BODY_BUDGETS.ingest };
+  if (pathname === "/api/ingest" && /^Bearer \S/.test(headers.authorization ?? ""))
+    return { limit: MAX_HTTP_BYTES, budget: BODY_BUDGETS.ingest };
   if (IMPORT_PATH.test(pathname)) {
     const token = await readSessionToken(headers.cookie);
-    if (token && (await sessionIsLive(token).catch(() => false))) return { limit: IMPORT_MAX_BYTES, budget: BODY_BUDGETS.import };
+    if (token && (await sessionIsLive(token).catch(() => false)))
+      return { limit: IMPORT_MAX_BYTES, budget: BODY_BUDGETS.import };
   }
   return { limit: FORM_MAX_BYTES, budget: BODY_BUDGETS.form };
 }
 
-type BodyRead = { ok: true; bytes: Buffer; release: () => void } | { ok: false; status: 400 | 413 | 503; message: string };
+type BodyRead =
+  { ok: true; bytes: Buffer; release: () => void } | { ok: false; status: 400 | 413 | 503; message: string };
 
 function readBody(req: IncomingMessage, limit: number, budget: Budget): Promise<BodyRead> {
   const tooLarge = {
@@ -81,7 +87,8 @@ function readBody(req: IncomingMessage, limit: number, budget: Budget): Promise<
   } as const;
   const busy = { ok: false, status: 503, message: "Too many uploads at once: try again in a minute." } as const;
   const declared = req.headers["content-length"];
-  if (declared !== undefined && !/^\d+$/.test(declared)) return Promise.resolve({ ok: false, status: 400, message: "Bad Content-Length." });
+  if (declared !== undefined && !/^\d+$/.test(declared))
+    return Promise.resolve({ ok: false, status: 400, message: "Bad Content-Length." });
   if (declared !== undefined && Number(declared) > limit) return Promise.resolve(tooLarge);
   return new Promise((resolve) => {
     const chunks: Buffer[] = [];
@@ -158,7 +165,11 @@ const handlers = new WeakMap<ServerBuild, ReturnType<typeof createRequestHandler
  * The Express handler that serves the app. `getBuild` is the production build, or in development
  * Vite's current one (loaded again per request so that edits show).
  */
-export function reactRouterAdapter(getBuild: () => ServerBuild | Promise<ServerBuild>, mode: "development" | "production", services: Services) {
+export function reactRouterAdapter(
+  getBuild: () => ServerBuild | Promise<ServerBuild>,
+  mode: "development" | "production",
+  services: Services,
+) {
   return async (req: ExpressRequest, res: ExpressResponse, next: NextFunction) => {
     let release = () => {};
     try {
@@ -184,7 +195,12 @@ export function reactRouterAdapter(getBuild: () => ServerBuild | Promise<ServerB
       res.once("close", () => {
         if (!res.writableFinished) controller.abort();
       });
-      const request = new Request(url, { method: req.method, headers, body: body as Uint8Array<ArrayBuffer> | null, signal: controller.signal });
+      const request = new Request(url, {
+        method: req.method,
+        headers,
+        body: body as Uint8Array<ArrayBuffer> | null,
+        signal: controller.signal,
+      });
       const build = await getBuild();
       let handle = handlers.get(build);
       if (!handle) handlers.set(build, (handle = createRequestHandler(build, mode)));
@@ -208,7 +224,11 @@ export function reactRouterAdapter(getBuild: () => ServerBuild | Promise<ServerB
 
 /** What every loader and action gets besides the request (React Router's load context). */
 function getLoadContext(req: ExpressRequest, res: ExpressResponse, services: Services): AppLoadContext {
-  return { clientAddress: req.ip ?? req.socket.remoteAddress ?? "unknown", nonce: String(res.locals.nonce ?? ""), services };
+  return {
+    clientAddress: req.ip ?? req.socket.remoteAddress ?? "unknown",
+    nonce: String(res.locals.nonce ?? ""),
+    services,
+  };
 }
 
 async function sendResponse(req: IncomingMessage, res: ExpressResponse, response: Response, cookies: string[]) {

@@ -30,7 +30,11 @@ export function paramId(value: unknown): number {
 }
 
 /** A form field naming a row: 400 with `message` when it is missing or malformed. */
-export function formId(form: FormData | URLSearchParams, name: string, message = "That choice is not valid; reload the page and try again."): number {
+export function formId(
+  form: FormData | URLSearchParams,
+  name: string,
+  message = "That choice is not valid; reload the page and try again.",
+): number {
   const id = toId(form.get(name));
   if (id === null) throw data(message, { status: 400 });
   return id;
@@ -38,7 +42,10 @@ export function formId(form: FormData | URLSearchParams, name: string, message =
 
 /** One line of text for a mail header or a subject: no line breaks or controls, at most `max` characters. */
 export function oneLine(s: string, max = 60) {
-  const flat = s.replace(/[\u0000-\u001F\u007F\u2028\u2029]+/g, " ").replace(/\s+/g, " ").trim();
+  const flat = s
+    .replace(/[\u0000-\u001F\u007F\u2028\u2029]+/g, " ")
+    .replace(/\s+/g, " ")
+    .trim();
   return flat.length > max ? `${flat.slice(0, max - 1).trimEnd()}…` : flat;
 }
 
@@ -55,7 +62,10 @@ export async function readForm(request: Request): Promise<FormData> {
  * A form that failed on fields the page writes itself (an id, the intent) came from a stale or
  * altered page, where a field error would show nowhere: a 400 with the first message.
  */
-export function refuseForm(error: Record<string, string[] | null> | null | undefined, fallback = "Unknown action"): never {
+export function refuseForm(
+  error: Record<string, string[] | null> | null | undefined,
+  fallback = "Unknown action",
+): never {
   const first = Object.values(error ?? {}).find((m) => m?.length)?.[0];
   throw data(first ?? fallback, { status: 400 });
 }

@@ -4,7 +4,9 @@
 // (Vite's module runner) and the web-edge test runs main() beside Vite's own copy of the routes,
 // and a pool, writer, broker or mailer made again there would be a second one.
 const store: Map<string, unknown> =
-  process.env.NODE_ENV === "production" ? new Map() : (((globalThis as Record<string, unknown>).__nichewiseKept ??= new Map()) as Map<string, unknown>);
+  process.env.NODE_ENV === "production"
+    ? new Map()
+    : (((globalThis as Record<string, unknown>).__nichewiseKept ??= new Map()) as Map<string, unknown>);
 
 /** The value kept under `key`, made by `make` the first time. */
 export function kept<T>(key: string, make: () => T): T {

@@ -22,7 +22,9 @@ const SINK_MAX_CLIENTS = 200;
 const SINK_MAX_RECIPIENTS = 50;
 
 export function configureMailer(url: string) {
-  holder.transport = nodemailer.createTransport(url.startsWith("smtp://127.0.0.1") ? { url, ignoreTLS: true } as never : url);
+  holder.transport = nodemailer.createTransport(
+    url.startsWith("smtp://127.0.0.1") ? ({ url, ignoreTLS: true } as never) : url,
+  );
 }
 
 export type Mail = { to: string; subject: string; text: string; html: string };
@@ -42,7 +44,13 @@ export function sunkMailPage(opts: { page?: number; perPage?: number; to?: strin
   const pages = Math.max(1, Math.ceil(matching.length / perPage));
   const page = Math.min(Math.max(1, Math.floor(opts.page ?? 1) || 1), pages);
   const end = matching.length - (page - 1) * perPage;
-  return { page, pages, perPage, total: matching.length, mail: matching.slice(Math.max(0, end - perPage), end).reverse() };
+  return {
+    page,
+    pages,
+    perPage,
+    total: matching.length,
+    mail: matching.slice(Math.max(0, end - perPage), end).reverse(),
+  };
 }
 
 // Sizes are counted in characters of the decoded text, which is what the process holds.
@@ -50,7 +58,8 @@ function keep(mail: SunkMail) {
   holder.bytes ??= holder.sunk.reduce((n, m) => n + m.raw.length, 0);
   holder.sunk.push(mail);
   holder.bytes += mail.raw.length;
-  while (holder.sunk.length > 1 && (holder.sunk.length > SINK_KEEP || holder.bytes > SINK_MAX_TOTAL_BYTES)) holder.bytes -= holder.sunk.shift()!.raw.length;
+  while (holder.sunk.length > 1 && (holder.sunk.length > SINK_KEEP || holder.bytes > SINK_MAX_TOTAL_BYTES))
+    holder.bytes -= holder.sunk.shift()!.raw.length;
 }
 
 export async function startMailSink(opts: { port: number; host?: string; log?: (s: string) => void }) {
@@ -63,7 +72,9 @@ export async function startMailSink(opts: { port: number; host?: string; log?: (
     socketTimeout: 30_000,
     onRcptTo(_address, session, callback) {
       if (session.envelope.rcptTo.length >= SINK_MAX_RECIPIENTS) {
-        callback(Object.assign(new Error(`At most ${SINK_MAX_RECIPIENTS} recipients a message`), { responseCode: 452 }));
+        callback(
+          Object.assign(new Error(`At most ${SINK_MAX_RECIPIENTS} recipients a message`), { responseCode: 452 }),
+        );
         return;
       }
       callback();
@@ -79,7 +90,9 @@ export async function startMailSink(opts: { port: number; host?: string; log?: (
       });
       stream.on("end", () => {
         if (stream.sizeExceeded || bytes > SINK_MAX_MESSAGE_BYTES) {
-          callback(Object.assign(new Error(`Message larger than ${SINK_MAX_MESSAGE_BYTES / 1024} KB`), { responseCode: 552 }));
+          callback(
+            Object.assign(new Error(`Message larger than ${SINK_MAX_MESSAGE_BYTES / 1024} KB`), { responseCode: 552 }),
+          );
           return;
         }
         const raw = Buffer.concat(chunks).toString("utf8");
@@ -117,7 +130,12 @@ function decodeHeader(value: string) {
         [...run.matchAll(/=\?utf-8\?([bq])\?([^?]*)\?=/gi)].map(([, enc, text]) =>
           enc.toLowerCase() === "b"
             ? Buffer.from(text, "base64")
-            : Buffer.from(text.replace(/_/g, " ").replace(/=([0-9A-F]{2})/gi, (_x, h: string) => String.fromCharCode(parseInt(h, 16))), "latin1"),
+            : Buffer.from(
+                text
+                  .replace(/_/g, " ")
+                  .replace(/=([0-9A-F]{2})/gi, (_x, h: string) => String.fromCharCode(parseInt(h, 16))),
+                "latin1",
+              ),
         ),
       ).toString("utf8"),
     )

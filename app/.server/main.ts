@@ -39,7 +39,11 @@ export async function main(opts: MainOptions = {}): Promise<Running> {
   }
 }
 
-async function startAll(opts: MainOptions, stops: (() => Promise<void>)[], stopAll: () => Promise<void>): Promise<Running> {
+async function startAll(
+  opts: MainOptions,
+  stops: (() => Promise<void>)[],
+  stopAll: () => Promise<void>,
+): Promise<Running> {
   const e = env();
   // Cluster mode (app/.server/cluster; docs/decisions/0004-cluster-engine.md): NW_ROLE=web or ingest.
   const { clusterRole } = await import("~/.server/cluster/config");
@@ -75,7 +79,9 @@ async function startAll(opts: MainOptions, stops: (() => Promise<void>)[], stopA
   stops.push(cluster ? cluster.startWebAlerts(writer(), alertOptions) : await startAlerts(writer(), alertOptions));
 
   // A web instance of cluster mode takes no MQTT: sensors talk to the engine.
-  const broker = cluster ? null : await startBroker({ host: e.MQTT_HOST, port: e.MQTT_PORT, wsPort: e.MQTT_WS_PORT, writer: writer(), log });
+  const broker = cluster
+    ? null
+    : await startBroker({ host: e.MQTT_HOST, port: e.MQTT_PORT, wsPort: e.MQTT_WS_PORT, writer: writer(), log });
   stops.push(async () => {
     await broker?.close();
     await writer().drain();
@@ -149,14 +155,25 @@ async function startAll(opts: MainOptions, stops: (() => Promise<void>)[], stopA
   if (opts.dev) {
     const { vite } = opts.dev;
     app.use(vite.middlewares);
-    app.all("*", reactRouterAdapter(() => vite.ssrLoadModule("virtual:react-router/server-build") as Promise<ServerBuild>, "development", services));
+    app.all(
+      "*",
+      reactRouterAdapter(
+        () => vite.ssrLoadModule("virtual:react-router/server-build") as Promise<ServerBuild>,
+        "development",
+        services,
+      ),
+    );
   } else {
     const { build } = opts;
-    if (!build) throw new Error("No build given: start the server with `node build/nichewise-server.mjs` after `npm run build`");
+    if (!build)
+      throw new Error("No build given: start the server with `node build/nichewise-server.mjs` after `npm run build`");
     const buildDir = path.resolve("build");
     app.use("/assets", express.static(path.join(buildDir, "client/assets"), { immutable: true, maxAge: "1y" }));
     app.use(express.static(path.join(buildDir, "client"), { maxAge: "1h" }));
-    app.all("*", reactRouterAdapter(() => build, "production", services));
+    app.all(
+      "*",
+      reactRouterAdapter(() => build, "production", services),
+    );
   }
 
   await new Promise<void>((resolve, reject) => {
@@ -180,8 +197,18 @@ async function startAll(opts: MainOptions, stops: (() => Promise<void>)[], stopA
     const coldFrontAt = e.NW_COLD_FRONT ? new Date(Date.now() + 30_000) : null;
     const { DEMO_HOUSEHOLD } = await import("../../simulator/demo");
     const scenario = { ...DEMO_HOUSEHOLD.scenario, coldFront: forecastFront };
-    const sim = await startLiveSimulator({ mqttUrl: `mqtt://127.0.0.1:${broker.port}`, speed: e.NW_SIM_SPEED, intervalS: e.NW_SIM_INTERVAL_S, coldFrontAt, scenario, log });
-    if (coldFrontAt) log("Cold front: the outdoor bench starts falling in about a minute; watch the site page and the admin page's mail");
+    const sim = await startLiveSimulator({
+      mqttUrl: `mqtt://127.0.0.1:${broker.port}`,
+      speed: e.NW_SIM_SPEED,
+      intervalS: e.NW_SIM_INTERVAL_S,
+      coldFrontAt,
+      scenario,
+      log,
+    });
+    if (coldFrontAt)
+      log(
+        "Cold front: the outdoor bench starts falling in about a minute; watch the site page and the admin page's mail",
+      );
     stops.splice(stops.length, 0, sim.stop);
   }
 

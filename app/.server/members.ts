@@ -16,7 +16,13 @@ export { INVITABLE_ROLES, type InvitableRole };
 /** The site's members, owners first. */
 export async function listMembers(siteId: number) {
   return db()
-    .select({ userId: users.id, name: users.name, email: users.email, role: memberships.role, since: memberships.createdAt })
+    .select({
+      userId: users.id,
+      name: users.name,
+      email: users.email,
+      role: memberships.role,
+      since: memberships.createdAt,
+    })
     .from(memberships)
     .innerJoin(users, eq(users.id, memberships.userId))
     .where(eq(memberships.siteId, siteId))
@@ -28,7 +34,10 @@ export const INVITATION_DAYS = 7;
 export class MembershipError extends Error {}
 /** Too many invitations in the window; `retryAt` is when the oldest counted one leaves it. */
 export class InvitationLimitError extends MembershipError {
-  constructor(message: string, readonly retryAt: Date) {
+  constructor(
+    message: string,
+    readonly retryAt: Date,
+  ) {
     super(message);
   }
 }
@@ -47,7 +56,6 @@ type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
 
 export const invitationTokenHash = sha256Hex;
 
-
 export const invitationUrl = (token: string) => `${publicUrl()}/invite/${token}`;
 
 const roleLine: Record<Role, string> = {
@@ -57,7 +65,13 @@ const roleLine: Record<Role, string> = {
 };
 
 /** Creates the invitation and e-mails its link; the token itself is only in the e-mail. */
-export async function inviteMember(opts: { siteId: number; actor: { id: number; name: string }; email: string; role: InvitableRole; now?: Date }) {
+export async function inviteMember(opts: {
+  siteId: number;
+  actor: { id: number; name: string };
+  email: string;
+  role: InvitableRole;
+  now?: Date;
+}) {
   const email = opts.email.trim().toLowerCase();
   const now = opts.now ?? new Date();
   const [existing] = await db()
@@ -78,16 +92,41 @@ export async function inviteMember(opts: { siteId: number; actor: { id: number; 
     await tx
       .update(invitations)
       .set({ revokedAt: now })
-      .where(and(eq(invitations.siteId, opts.siteId), eq(invitations.email, email), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)));
+      .where(
+        and(
+          eq(invitations.siteId, opts.siteId),
+          eq(invitations.email, email),
+          isNull(invitations.acceptedAt),
+          isNull(invitations.revokedAt),
+        ),
+      );
     const [row] = await tx
       .insert(invitations)
-      .values({ siteId: opts.siteId, email, role: opts.role, tokenHash: invitationTokenHash(token), invitedBy: opts.actor.id, expiresAt, createdAt: now })
+      .values({
+        siteId: opts.siteId,
+        email,
+        role: opts.role,
+        tokenHash: invitationTokenHash(token),
+        invitedBy: opts.actor.id,
+        expiresAt,
+        createdAt: now,
+      })
       .returning();
-    await tx.insert(auditLog).values({ siteId: opts.siteId, actorId: opts.actor.id, action: "member.invite", detail: { email, role: opts.role } });
+    await tx.insert(auditLog).values({
+      siteId: opts.siteId,
+      actorId: opts.actor.id,
+      action: "member.invite",
+      detail: { email, role: opts.role },
+    });
     return row;
   });
   const url = invitationUrl(token);
-  const until = expiresAt.toLocaleDateString("en-GB", { day: "numeric", month: "long", year: "numeric", timeZone: "UTC" });
+  const until = expiresAt.toLocaleDateString("en-GB", {
+    day: "numeric",
+    month: "long",
+    year: "numeric",
+    timeZone: "UTC",
+  });
   // Names are the sender's own words: one line, bounded, quoted, so they cannot pose as our text.
   const who = `"${oneLine(opts.actor.name, MAIL_NAME_MAX) || "A Nichewise member"}"`;
   const where = `"${oneLine(site.name, MAIL_NAME_MAX) || "a site"}"`;
@@ -145,7 +184,10 @@ function escapeHtml(s: string) {
 
 export type InvitationState = "open" | "accepted" | "revoked" | "expired";
 
-export function invitationState(inv: { acceptedAt: Date | null; revokedAt: Date | null; expiresAt: Date }, now = new Date()): InvitationState {
+export function invitationState(
+  inv: { acceptedAt: Date | null; revokedAt: Date | null; expiresAt: Date },
+  now = new Date(),
+): InvitationState {
   if (inv.acceptedAt) return "accepted";
   if (inv.revokedAt) return "revoked";
   if (inv.expiresAt.getTime() <= now.getTime()) return "expired";
@@ -182,7 +224,10 @@ export async function findInvitation(token: string) {
 export async function acceptInvitation(token: string, user: { id: number; email: string }, now = new Date()) {
   return db().transaction(async (tx) => {
     // Only the invited address may use the link: a forwarded or leaked link is no way in.
-    const [sent] = await tx.select({ email: invitations.email }).from(invitations).where(eq(invitations.tokenHash, invitationTokenHash(token)));
+    const [sent] = await tx
+      .select({ email: invitations.email })
+      .from(invitations)
+      .where(eq(invitations.tokenHash, invitationTokenHash(token)));
     if (sent && !sameAddress(sent.email, user.email)) {
       throw new WrongAccountError(
         `This invitation was sent to ${sent.email}, and you are signed in as ${user.email}. Sign out and sign in (or create an account) as ${sent.email}, or ask the owner to invite ${user.email}.`,
@@ -200,7 +245,10 @@ export async function acceptInvitation(token: string, user: { id: number; email:
         ),
       )
       .returning();
-    if (!inv) throw new MembershipError("This invitation has been used, withdrawn or has expired. Ask the owner for a new one.");
+    if (!inv)
+      throw new MembershipError(
+        "This invitation has been used, withdrawn or has expired. Ask the owner for a new one.",
+      );
     const [already] = await tx
       .select({ role: memberships.role })
       .from(memberships)
@@ -223,10 +271,22 @@ export async function revokeInvitation(opts: { siteId: number; actorId: number; 
     const [inv] = await tx
       .update(invitations)
       .set({ revokedAt: opts.now ?? new Date() })
-      .where(and(eq(invitations.id, opts.invitationId), eq(invitations.siteId, opts.siteId), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)))
+      .where(
+        and(
+          eq(invitations.id, opts.invitationId),
+          eq(invitations.siteId, opts.siteId),
+          isNull(invitations.acceptedAt),
+          isNull(invitations.revokedAt),
+        ),
+      )
       .returning();
     if (!inv) throw new MembershipError("That invitation is no longer open.");
-    await tx.insert(auditLog).values({ siteId: opts.siteId, actorId: opts.actorId, action: "member.invite-revoke", detail: { email: inv.email, role: inv.role } });
+    await tx.insert(auditLog).values({
+      siteId: opts.siteId,
+      actorId: opts.actorId,
+      action: "member.invite-revoke",
+      detail: { email: inv.email, role: inv.role },
+    });
   });
 }
 
@@ -248,7 +308,10 @@ export async function changeRole(opts: { siteId: number; actorId: number; userId
     if (target.role === opts.role) return;
     const owners = members.filter((m) => m.role === "owner").length;
     if (target.role === "owner" && owners <= 1) throw new MembershipError(LAST_OWNER);
-    await tx.update(memberships).set({ role: opts.role }).where(and(eq(memberships.siteId, opts.siteId), eq(memberships.userId, opts.userId)));
+    await tx
+      .update(memberships)
+      .set({ role: opts.role })
+      .where(and(eq(memberships.siteId, opts.siteId), eq(memberships.userId, opts.userId)));
     await tx.insert(auditLog).values({
       siteId: opts.siteId,
       actorId: opts.actorId,
@@ -266,7 +329,9 @@ export async function removeMember(opts: { siteId: number; actorId: number; user
     if (!target) throw new MembershipError("That person is not a member of this site.");
     const owners = members.filter((m) => m.role === "owner").length;
     if (target.role === "owner" && owners <= 1) {
-      throw new MembershipError(opts.actorId === opts.userId ? `You are the only owner, so you cannot leave. ${LAST_OWNER}` : LAST_OWNER);
+      throw new MembershipError(
+        opts.actorId === opts.userId ? `You are the only owner, so you cannot leave. ${LAST_OWNER}` : LAST_OWNER,
+      );
     }
     await tx.delete(memberships).where(and(eq(memberships.siteId, opts.siteId), eq(memberships.userId, opts.userId)));
     await tx.insert(auditLog).values({
@@ -299,7 +364,13 @@ export async function listInvitations(siteId: number, now = new Date()) {
 /** The newest changes in the site, with who made them, for the owners' "what changed" list. */
 export async function recentChanges(siteId: number, limit = 50) {
   return db()
-    .select({ id: auditLog.id, at: auditLog.at, action: auditLog.action, detail: auditLog.detail, actorName: users.name })
+    .select({
+      id: auditLog.id,
+      at: auditLog.at,
+      action: auditLog.action,
+      detail: auditLog.detail,
+      actorName: users.name,
+    })
     .from(auditLog)
     .leftJoin(users, eq(users.id, auditLog.actorId))
     .where(eq(auditLog.siteId, siteId))

@@ -23,7 +23,15 @@ export async function listNotes(siteId: number, target?: NoteTarget) {
       ? and(eq(notes.siteId, siteId), eq(notes.spotId, target.spotId))
       : and(eq(notes.siteId, siteId), eq(notes.plantKey, target.plantKey));
   const rows = await db()
-    .select({ id: notes.id, spotId: notes.spotId, plantKey: notes.plantKey, body: notes.body, createdAt: notes.createdAt, resolvedAt: notes.resolvedAt, authorName: users.name })
+    .select({
+      id: notes.id,
+      spotId: notes.spotId,
+      plantKey: notes.plantKey,
+      body: notes.body,
+      createdAt: notes.createdAt,
+      resolvedAt: notes.resolvedAt,
+      authorName: users.name,
+    })
     .from(notes)
     .leftJoin(users, eq(users.id, notes.authorId))
     .where(where)
@@ -62,7 +70,9 @@ export async function addNote(opts: { siteId: number; authorId: number; target: 
         ...("spotId" in opts.target ? { spotId: opts.target.spotId } : { plantKey: opts.target.plantKey }),
       })
       .returning();
-    await tx.insert(auditLog).values({ siteId: opts.siteId, actorId: opts.authorId, action: "note.add", detail: { noteId: note.id, on } });
+    await tx
+      .insert(auditLog)
+      .values({ siteId: opts.siteId, actorId: opts.authorId, action: "note.add", detail: { noteId: note.id, on } });
     return note;
   });
 }
@@ -72,10 +82,18 @@ export async function setNoteResolved(opts: { siteId: number; actorId: number; n
     const [note] = await tx
       .update(notes)
       .set({ resolvedAt: opts.resolved ? new Date() : null })
-      .where(and(eq(notes.id, opts.noteId), eq(notes.siteId, opts.siteId), opts.resolved ? isNull(notes.resolvedAt) : sql`${notes.resolvedAt} is not null`))
+      .where(
+        and(
+          eq(notes.id, opts.noteId),
+          eq(notes.siteId, opts.siteId),
+          opts.resolved ? isNull(notes.resolvedAt) : sql`${notes.resolvedAt} is not null`,
+        ),
+      )
       .returning();
     if (!note) throw new NoteError(opts.resolved ? "That note is resolved already." : "That note is open already.");
-    const on = note.spotId ? await targetLabel(opts.siteId, { spotId: note.spotId }).catch(() => "a spot") : (note.plantKey ?? "a plant");
+    const on = note.spotId
+      ? await targetLabel(opts.siteId, { spotId: note.spotId }).catch(() => "a spot")
+      : (note.plantKey ?? "a plant");
     await tx.insert(auditLog).values({
       siteId: opts.siteId,
       actorId: opts.actorId,

@@ -39,13 +39,21 @@ export async function placementHistory(where: { sensorId?: number; spotId?: numb
 }
 
 /** Moves the sensor to `spotId` from `at` on (closing its open placement there). */
-export async function placeSensor(opts: { siteId: number; sensorId: number; spotId: number; at: Date; actorId: number | null }) {
+export async function placeSensor(opts: {
+  siteId: number;
+  sensorId: number;
+  spotId: number;
+  at: Date;
+  actorId: number | null;
+}) {
   const { sensorId, spotId, at } = opts;
   if (at.getTime() > Date.now() + 60_000) throw new PlacementError("That time is in the future.");
   await changePlacements(sensorId, async (tx, all) => {
     await spotInSite(tx, opts.siteId, spotId);
     const current = all.find((p) => p.toAt === null);
-    const laterMove = all.some((p) => p.fromAt.getTime() >= at.getTime() || (p.toAt !== null && p.toAt.getTime() > at.getTime()));
+    const laterMove = all.some(
+      (p) => p.fromAt.getTime() >= at.getTime() || (p.toAt !== null && p.toAt.getTime() > at.getTime()),
+    );
     if (laterMove) {
       throw new PlacementError(
         "The sensor was already placed somewhere after that time. To change where it was earlier, edit its placements on this sensor's page (move a start or split a placement).",
@@ -54,7 +62,12 @@ export async function placeSensor(opts: { siteId: number; sensorId: number; spot
     if (current?.spotId === spotId) throw new PlacementError("The sensor is already in that spot.");
     if (current) await tx.update(placements).set({ toAt: at }).where(eq(placements.id, current.id));
     await tx.insert(placements).values({ sensorId, spotId, fromAt: at });
-    await audit(tx, opts.siteId, opts.actorId, "sensor.place", { sensorId, spotId, at: at.toISOString(), from: current?.spotId ?? null });
+    await audit(tx, opts.siteId, opts.actorId, "sensor.place", {
+      sensorId,
+      spotId,
+      at: at.toISOString(),
+      from: current?.spotId ?? null,
+    });
     return current ? [current.spotId, spotId] : [spotId];
   });
 }
@@ -68,7 +81,8 @@ export async function placeFromForm(
   fixed: { siteId: number; timeZone: string; actorId: number | null } & ({ sensorId: number } | { spotId: number }),
 ): Promise<{ placed: true } | { placeError: string }> {
   const submission = parseWithZod(form, { schema: placeSchema });
-  if (submission.status !== "success") return { placeError: "sensorId" in fixed ? "Choose a spot." : "Choose a sensor." };
+  if (submission.status !== "success")
+    return { placeError: "sensorId" in fixed ? "Choose a spot." : "Choose a sensor." };
   const sensorId = "sensorId" in fixed ? fixed.sensorId : submission.value.sensorId;
   const spotId = "spotId" in fixed ? fixed.spotId : submission.value.spotId;
   if (!sensorId) return { placeError: "Choose a sensor." };
@@ -83,7 +97,9 @@ export async function placeFromForm(
     at = parsed;
   }
   try {
-    const [sensor] = await pool().query<{ id: number }>("SELECT id FROM sensors WHERE id = $1 AND site_id = $2", [sensorId, fixed.siteId]).then((r) => r.rows);
+    const [sensor] = await pool()
+      .query<{ id: number }>("SELECT id FROM sensors WHERE id = $1 AND site_id = $2", [sensorId, fixed.siteId])
+      .then((r) => r.rows);
     if (!sensor) return { placeError: "That sensor is not in this site." };
     await placeSensor({ siteId: fixed.siteId, sensorId, spotId, at, actorId: fixed.actorId });
   } catch (err) {
@@ -94,13 +110,22 @@ export async function placeFromForm(
 }
 
 /** Takes the sensor out of its spot: its readings from `at` on belong to no spot. */
-export async function removeSensorFromSpot(opts: { siteId: number; sensorId: number; at: Date; actorId: number | null }) {
+export async function removeSensorFromSpot(opts: {
+  siteId: number;
+  sensorId: number;
+  at: Date;
+  actorId: number | null;
+}) {
   await changePlacements(opts.sensorId, async (tx, all) => {
     const current = all.find((p) => p.toAt === null);
     if (!current) return [];
     const at = new Date(Math.max(opts.at.getTime(), current.fromAt.getTime()));
     await tx.update(placements).set({ toAt: at }).where(eq(placements.id, current.id));
-    await audit(tx, opts.siteId, opts.actorId, "sensor.unplace", { sensorId: opts.sensorId, spotId: current.spotId, at: at.toISOString() });
+    await audit(tx, opts.siteId, opts.actorId, "sensor.unplace", {
+      sensorId: opts.sensorId,
+      spotId: current.spotId,
+      at: at.toISOString(),
+    });
     return [current.spotId];
   });
 }
@@ -109,7 +134,13 @@ export async function removeSensorFromSpot(opts: { siteId: number; sensorId: num
  * Moves a placement's start (earlier or later), or back to the sensor's first reading. It may not
  * reach into the sensor's previous placement: split or move that one first.
  */
-export async function movePlacementStart(opts: { siteId: number; sensorId: number; placementId: number; fromAt: Date | "first"; actorId: number | null }) {
+export async function movePlacementStart(opts: {
+  siteId: number;
+  sensorId: number;
+  placementId: number;
+  fromAt: Date | "first";
+  actorId: number | null;
+}) {
   await changePlacements(opts.sensorId, async (tx, all) => {
     const p = placementOf(all, opts.placementId);
     const previous = all.filter((q) => q.fromAt.getTime() < p.fromAt.getTime()).at(-1);
@@ -121,7 +152,8 @@ export async function movePlacementStart(opts: { siteId: number; sensorId: numbe
       fromAt = opts.fromAt;
       if (fromAt.getTime() > Date.now() + 60_000) throw new PlacementError("That time is in the future.");
     }
-    if (p.toAt && fromAt.getTime() >= p.toAt.getTime()) throw new PlacementError("The start must come before the placement's end.");
+    if (p.toAt && fromAt.getTime() >= p.toAt.getTime())
+      throw new PlacementError("The start must come before the placement's end.");
     if (previous?.toAt && fromAt.getTime() < previous.toAt.getTime()) {
       throw new PlacementError("The sensor was in another spot then. Split or shorten that placement first.");
     }
@@ -138,17 +170,31 @@ export async function movePlacementStart(opts: { siteId: number; sensorId: numbe
 }
 
 /** Splits a placement at `at`: from then on (to the placement's end) the sensor was in `spotId`. */
-export async function splitPlacement(opts: { siteId: number; sensorId: number; placementId: number; at: Date; spotId: number; actorId: number | null }) {
+export async function splitPlacement(opts: {
+  siteId: number;
+  sensorId: number;
+  placementId: number;
+  at: Date;
+  spotId: number;
+  actorId: number | null;
+}) {
   const { at, spotId } = opts;
   await changePlacements(opts.sensorId, async (tx, all) => {
     await spotInSite(tx, opts.siteId, spotId);
     const p = placementOf(all, opts.placementId);
     const end = p.toAt?.getTime() ?? Date.now() + 60_000;
-    if (at.getTime() <= p.fromAt.getTime() || at.getTime() >= end) throw new PlacementError("Choose a time inside that placement.");
+    if (at.getTime() <= p.fromAt.getTime() || at.getTime() >= end)
+      throw new PlacementError("Choose a time inside that placement.");
     if (spotId === p.spotId) throw new PlacementError("Choose another spot for the second part.");
     await tx.update(placements).set({ toAt: at }).where(eq(placements.id, p.id));
     await tx.insert(placements).values({ sensorId: opts.sensorId, spotId, fromAt: at, toAt: p.toAt });
-    await audit(tx, opts.siteId, opts.actorId, "placement.split", { sensorId: opts.sensorId, placementId: p.id, at: at.toISOString(), from: p.spotId, to: spotId });
+    await audit(tx, opts.siteId, opts.actorId, "placement.split", {
+      sensorId: opts.sensorId,
+      placementId: p.id,
+      at: at.toISOString(),
+      from: p.spotId,
+      to: spotId,
+    });
     return [p.spotId, spotId];
   });
 }
@@ -186,7 +232,9 @@ export async function sensorsWithUnplaced(siteId: number): Promise<Set<number>> 
     if (r.from_at) list.push({ fromAt: r.from_at, toAt: r.to_at });
     bySensor.set(r.id, list);
   }
-  const ids: number[] = [], froms: (Date | null)[] = [], tos: (Date | null)[] = [];
+  const ids: number[] = [],
+    froms: (Date | null)[] = [],
+    tos: (Date | null)[] = [];
   for (const [id, list] of bySensor) {
     for (const g of gapsBetween(list)) {
       ids.push(id);
@@ -208,9 +256,16 @@ export async function sensorsWithUnplaced(siteId: number): Promise<Set<number>> 
  * neighbouring placement in that spot or adding one that covers the stretch. `gap` is the stretch
  * as the page showed it; if the placements changed meanwhile, nothing is done.
  */
-export async function assignUnplaced(opts: { siteId: number; sensorId: number; gap: Gap; spotId: number; actorId: number | null }) {
+export async function assignUnplaced(opts: {
+  siteId: number;
+  sensorId: number;
+  gap: Gap;
+  spotId: number;
+  actorId: number | null;
+}) {
   const { sensorId, spotId } = opts;
-  const same = (a: Date | null, b: Date | null) => (a === null ? b === null : b !== null && a.getTime() === b.getTime());
+  const same = (a: Date | null, b: Date | null) =>
+    a === null ? b === null : b !== null && a.getTime() === b.getTime();
   await changePlacements(sensorId, async (tx, all, client) => {
     await spotInSite(tx, opts.siteId, spotId);
     const gap = gapsBetween(all).find((g) => same(g.from, opts.gap.from) && same(g.to, opts.gap.to));
@@ -220,7 +275,10 @@ export async function assignUnplaced(opts: { siteId: number; sensorId: number; g
     let to = gap.to;
     if (!to && before) {
       // After the sensor was taken out: cover its readings so far, not what it sends from now on.
-      const last = await client.query<{ last: Date | null }>("SELECT max(measured_at) AS last FROM readings WHERE sensor_id = $1 AND measured_at >= $2", [sensorId, gap.from]);
+      const last = await client.query<{ last: Date | null }>(
+        "SELECT max(measured_at) AS last FROM readings WHERE sensor_id = $1 AND measured_at >= $2",
+        [sensorId, gap.from],
+      );
       to = new Date(Math.max(Date.now(), (last.rows[0].last?.getTime() ?? 0) + 1));
     }
     const from = gap.from ?? FROM_FIRST_READING;
@@ -256,10 +314,17 @@ function placementOf(all: Placement[], id: number) {
  * One change to a sensor's placements: under the sensor's lock, `change` gets them in time order
  * and returns the spots whose rollups it changed, which are rebuilt before COMMIT.
  */
-async function changePlacements(sensorId: number, change: (tx: Tx, all: Placement[], client: pg.PoolClient) => Promise<number[]>) {
+async function changePlacements(
+  sensorId: number,
+  change: (tx: Tx, all: Placement[], client: pg.PoolClient) => Promise<number[]>,
+) {
   await inTransaction(async (tx, client) => {
     await lockSensor(client, sensorId);
-    const all = await tx.select().from(placements).where(eq(placements.sensorId, sensorId)).orderBy(asc(placements.fromAt));
+    const all = await tx
+      .select()
+      .from(placements)
+      .where(eq(placements.sensorId, sensorId))
+      .orderBy(asc(placements.fromAt));
     const affected = await change(tx, all, client);
     await rebuildRollupsIn(client, affected);
   });

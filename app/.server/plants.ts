@@ -12,7 +12,11 @@ import type { InventoryChange } from "~/forms/inventory";
 export type SitePlant = PlantProfile & { own: boolean; basedOn: string | null };
 
 export async function customProfiles(siteId: number): Promise<SitePlant[]> {
-  const rows = await db().select().from(customPlants).where(eq(customPlants.siteId, siteId)).orderBy(asc(customPlants.key));
+  const rows = await db()
+    .select()
+    .from(customPlants)
+    .where(eq(customPlants.siteId, siteId))
+    .orderBy(asc(customPlants.key));
   return rows.flatMap((r) => {
     const parsed = storedProfileSchema.safeParse({ ...(r.profile as object), key: r.key });
     return parsed.success ? [{ ...parsed.data, own: true, basedOn: r.basedOn }] : [];
@@ -38,7 +42,12 @@ export function findSitePlant(plants: SitePlant[], key: string | undefined): Sit
 
 export const OWN_PREFIX = "own-";
 
-export async function saveCustomProfile(siteId: number, actorId: number, profile: PlantProfile, basedOn: string | null) {
+export async function saveCustomProfile(
+  siteId: number,
+  actorId: number,
+  profile: PlantProfile,
+  basedOn: string | null,
+) {
   const { key, ...rest } = profile;
   await db()
     .insert(customPlants)
@@ -48,12 +57,18 @@ export async function saveCustomProfile(siteId: number, actorId: number, profile
 }
 
 export async function deleteCustomProfile(siteId: number, actorId: number, key: string) {
-  await db().delete(customPlants).where(and(eq(customPlants.siteId, siteId), eq(customPlants.key, key)));
+  await db()
+    .delete(customPlants)
+    .where(and(eq(customPlants.siteId, siteId), eq(customPlants.key, key)));
   await db().insert(auditLog).values({ siteId, actorId, action: "plant.delete", detail: { key } });
 }
 
 export async function freeOwnKey(siteId: number, slug: string) {
-  const taken = new Set((await db().select({ key: customPlants.key }).from(customPlants).where(eq(customPlants.siteId, siteId))).map((r) => r.key));
+  const taken = new Set(
+    (await db().select({ key: customPlants.key }).from(customPlants).where(eq(customPlants.siteId, siteId))).map(
+      (r) => r.key,
+    ),
+  );
   let key = `${OWN_PREFIX}${slug}`;
   for (let i = 2; taken.has(key); i++) key = `${OWN_PREFIX}${slug}-${i}`;
   return key;
@@ -72,14 +87,23 @@ export async function spotInventory(spotIds: number[]) {
 
 export async function siteInventory(siteId: number) {
   return db()
-    .select({ id: spotPlants.id, spotId: spotPlants.spotId, plantKey: spotPlants.plantKey, nickname: spotPlants.nickname, pots: spotPlants.pots })
+    .select({
+      id: spotPlants.id,
+      spotId: spotPlants.spotId,
+      plantKey: spotPlants.plantKey,
+      nickname: spotPlants.nickname,
+      pots: spotPlants.pots,
+    })
     .from(spotPlants)
     .innerJoin(spots, eq(spots.id, spotPlants.spotId))
     .where(eq(spots.siteId, siteId));
 }
 
 /** The plant in a spot with the highest safe night: the one cold alerts should protect first. */
-export function mostTender<T extends { plantKey: string }>(standing: T[], plants: PlantProfile[]): (T & { plant: PlantProfile }) | null {
+export function mostTender<T extends { plantKey: string }>(
+  standing: T[],
+  plants: PlantProfile[],
+): (T & { plant: PlantProfile }) | null {
   const byKey = new Map(plants.map((p) => [p.key, p]));
   let best: (T & { plant: PlantProfile }) | null = null;
   for (const s of standing) {
@@ -89,7 +113,12 @@ export function mostTender<T extends { plantKey: string }>(standing: T[], plants
   return best;
 }
 
-export async function addToSpot(siteId: number, actorId: number, spotId: number, v: { plantKey: string; nickname: string; pots: number }) {
+export async function addToSpot(
+  siteId: number,
+  actorId: number,
+  spotId: number,
+  v: { plantKey: string; nickname: string; pots: number },
+) {
   // The plant, its audit row and the cold watch it calls for outdoors (watches.ts) in one change.
   await db().transaction(async (tx) => {
     await tx.insert(spotPlants).values({ spotId, ...v });
@@ -111,8 +140,13 @@ async function inventoryRow(siteId: number, id: number) {
 export async function moveToSpot(siteId: number, actorId: number, id: number, toSpotId: number) {
   const row = await inventoryRow(siteId, id);
   await db().transaction(async (tx) => {
-    await tx.update(spotPlants).set({ spotId: toSpotId, addedAt: sql`now()` }).where(eq(spotPlants.id, row.id));
-    await tx.insert(auditLog).values({ siteId, actorId, action: "plant.move", detail: { id, from: row.spotId, to: toSpotId } });
+    await tx
+      .update(spotPlants)
+      .set({ spotId: toSpotId, addedAt: sql`now()` })
+      .where(eq(spotPlants.id, row.id));
+    await tx
+      .insert(auditLog)
+      .values({ siteId, actorId, action: "plant.move", detail: { id, from: row.spotId, to: toSpotId } });
     await ensureColdWatch({ siteId, spotId: toSpotId, actorId }, tx);
   });
 }
@@ -120,21 +154,34 @@ export async function moveToSpot(siteId: number, actorId: number, id: number, to
 export async function removeFromSpot(siteId: number, actorId: number, id: number) {
   const row = await inventoryRow(siteId, id);
   await db().delete(spotPlants).where(eq(spotPlants.id, row.id));
-  await db().insert(auditLog).values({ siteId, actorId, action: "plant.remove", detail: { id, spotId: row.spotId } });
+  await db()
+    .insert(auditLog)
+    .values({ siteId, actorId, action: "plant.remove", detail: { id, spotId: row.spotId } });
 }
 
 // --- Wishlist ---
 
 export async function siteWishlist(siteId: number) {
-  return db().select().from(wishlist).where(eq(wishlist.siteId, siteId)).orderBy(asc(wishlist.addedAt), asc(wishlist.id));
+  return db()
+    .select()
+    .from(wishlist)
+    .where(eq(wishlist.siteId, siteId))
+    .orderBy(asc(wishlist.addedAt), asc(wishlist.id));
 }
 
-export async function saveWish(siteId: number, actorId: number, v: { plantKey: string; mustHave: boolean; pots: number }, plantName?: string) {
+export async function saveWish(
+  siteId: number,
+  actorId: number,
+  v: { plantKey: string; mustHave: boolean; pots: number },
+  plantName?: string,
+) {
   await db()
     .insert(wishlist)
     .values({ siteId, ...v })
     .onConflictDoUpdate({ target: [wishlist.siteId, wishlist.plantKey], set: { mustHave: v.mustHave, pots: v.pots } });
-  await db().insert(auditLog).values({ siteId, actorId, action: "wishlist.save", detail: { ...v, plant: plantName ?? v.plantKey } });
+  await db()
+    .insert(auditLog)
+    .values({ siteId, actorId, action: "wishlist.save", detail: { ...v, plant: plantName ?? v.plantKey } });
 }
 
 export class ConfirmRemoval extends Error {}
@@ -144,9 +191,18 @@ export class ConfirmRemoval extends Error {}
  * A must-have goes only with `confirmed` (it may be another member's), checked here, not only on the page.
  * The audit row names the plant and what it was.
  */
-export async function removeWish(siteId: number, actorId: number, plantKey: string, opts: { confirmed?: boolean; plantName?: string } = {}) {
+export async function removeWish(
+  siteId: number,
+  actorId: number,
+  plantKey: string,
+  opts: { confirmed?: boolean; plantName?: string } = {},
+) {
   return db().transaction(async (tx) => {
-    const [row] = await tx.select().from(wishlist).where(and(eq(wishlist.siteId, siteId), eq(wishlist.plantKey, plantKey))).for("update");
+    const [row] = await tx
+      .select()
+      .from(wishlist)
+      .where(and(eq(wishlist.siteId, siteId), eq(wishlist.plantKey, plantKey)))
+      .for("update");
     if (!row) return null;
     if (row.mustHave && !opts.confirmed) throw new ConfirmRemoval(`${opts.plantName ?? plantKey} is a must-have.`);
     await tx.delete(wishlist).where(eq(wishlist.id, row.id));
@@ -160,18 +216,29 @@ export async function removeWish(siteId: number, actorId: number, plantKey: stri
  * The spot page's inventory changes (plant-add, plant-move, plant-remove), parsed with
  * app/forms/inventory.ts. The caller has checked WRITERS and that the spot belongs to the site.
  */
-export async function inventoryAction(change: InventoryChange, ctx: { siteId: number; spotId: number; actorId: number }) {
+export async function inventoryAction(
+  change: InventoryChange,
+  ctx: { siteId: number; spotId: number; actorId: number },
+) {
   if (change.intent === "plant-add") {
     const plants = await sitePlants(ctx.siteId);
-    if (!plants.some((p) => p.key === change.plantKey)) return { status: 400 as const, error: "Choose a plant from the list." };
-    await addToSpot(ctx.siteId, ctx.actorId, ctx.spotId, { plantKey: change.plantKey, nickname: change.nickname, pots: change.pots });
+    if (!plants.some((p) => p.key === change.plantKey))
+      return { status: 400 as const, error: "Choose a plant from the list." };
+    await addToSpot(ctx.siteId, ctx.actorId, ctx.spotId, {
+      plantKey: change.plantKey,
+      nickname: change.nickname,
+      pots: change.pots,
+    });
     return { status: 200 as const, error: null };
   }
   if (change.intent === "plant-remove") {
     await removeFromSpot(ctx.siteId, ctx.actorId, change.id);
     return { status: 200 as const, error: null };
   }
-  const [target] = await db().select({ id: spots.id }).from(spots).where(and(eq(spots.id, change.toSpotId), eq(spots.siteId, ctx.siteId)));
+  const [target] = await db()
+    .select({ id: spots.id })
+    .from(spots)
+    .where(and(eq(spots.id, change.toSpotId), eq(spots.siteId, ctx.siteId)));
   if (!target) return { status: 400 as const, error: "Choose the spot to move it to." };
   await moveToSpot(ctx.siteId, ctx.actorId, change.id, target.id);
   return { status: 200 as const, error: null };

@@ -3,7 +3,14 @@
 import { pool } from "~/.server/db";
 import { loadRollups } from "~/.server/rollups/read";
 import { rankPlantsForSpot, type FitContext, type PlantFit } from "~/domain/fit/verdict";
-import { describeFact, describeReason, describeSeasonal as seasonalWords, describeVerdict, DEFAULT_FORMAT, type Format } from "~/domain/fit/describe";
+import {
+  describeFact,
+  describeReason,
+  describeSeasonal as seasonalWords,
+  describeVerdict,
+  DEFAULT_FORMAT,
+  type Format,
+} from "~/domain/fit/describe";
 import type { SpotWindow } from "~/domain/fit/window-light";
 import type { GlassContext } from "~/domain/fit/cold-glass";
 import { GLAZING_U, type Glazing } from "~/domain/climate/glass";
@@ -45,11 +52,23 @@ const localMonth = (at: Date, timeZone: string) => toLocalInputValue(at, timeZon
 const monthStartAt = (ym: YearMonth, timeZone: string) => zonedToUtc({ year: ym.y, month: ym.m, day: 1 }, timeZone);
 
 /** Reads `?period=`: absent or "latest" is the default; a month "YYYY-MM" ends a chosen twelve months. */
-export function parsePeriod(value: string | null, now: Date, timeZone: string): { choice: PeriodChoice; problem: string | null } {
+export function parsePeriod(
+  value: string | null,
+  now: Date,
+  timeZone: string,
+): { choice: PeriodChoice; problem: string | null } {
   if (value === null || value === "" || value === "latest") return { choice: { kind: "latest" }, problem: null };
-  if (!MONTH_RE.test(value)) return { choice: { kind: "latest" }, problem: "Choose the period by its last month (e.g. 2025-12); showing the latest twelve months with readings." };
+  if (!MONTH_RE.test(value))
+    return {
+      choice: { kind: "latest" },
+      problem: "Choose the period by its last month (e.g. 2025-12); showing the latest twelve months with readings.",
+    };
   const current = localMonth(now, timeZone);
-  if (value > current) return { choice: { kind: "ending", month: current }, problem: "That month hasn't happened yet; showing the twelve months to this one." };
+  if (value > current)
+    return {
+      choice: { kind: "ending", month: current },
+      problem: "That month hasn't happened yet; showing the twelve months to this one.",
+    };
   return { choice: { kind: "ending", month: value }, problem: null };
 }
 
@@ -59,7 +78,13 @@ function periodEnding(month: string, now: Date, timeZone: string): JudgedPeriod 
   const first = addMonths(last, -11);
   const end = monthStartAt(addMonths(last, 1), timeZone);
   const toToday = end.getTime() > now.getTime();
-  return { from: monthStartAt(first, timeZone), to: toToday ? now : end, firstMonth: keyOfYm(first), lastMonth: month, toToday };
+  return {
+    from: monthStartAt(first, timeZone),
+    to: toToday ? now : end,
+    firstMonth: keyOfYm(first),
+    lastMonth: month,
+    toToday,
+  };
 }
 
 /** The rolling year to today: what a spot with readings this month is judged on. */
@@ -75,7 +100,12 @@ export function pickableMonths(now: Date, timeZone: string): string[] {
 }
 
 /** Each spot's judged period for `choice`; "latest" looks up the spot's latest hour with readings. */
-export async function judgedPeriods(site: Site, spotIds: number[], choice: PeriodChoice, now = new Date()): Promise<Map<number, JudgedPeriod>> {
+export async function judgedPeriods(
+  site: Site,
+  spotIds: number[],
+  choice: PeriodChoice,
+  now = new Date(),
+): Promise<Map<number, JudgedPeriod>> {
   if (choice.kind === "ending") {
     const period = periodEnding(choice.month, now, site.timeZone);
     return new Map(spotIds.map((id) => [id, period]));
@@ -88,7 +118,10 @@ export async function judgedPeriods(site: Site, spotIds: number[], choice: Perio
   return new Map(
     latest.rows.map(({ spot_id, hour }) => {
       const month = hour ? localMonth(hour, site.timeZone) : current;
-      return [spot_id, month >= current ? yearToToday(now, site.timeZone) : periodEnding(month, now, site.timeZone)] as const;
+      return [
+        spot_id,
+        month >= current ? yearToToday(now, site.timeZone) : periodEnding(month, now, site.timeZone),
+      ] as const;
     }),
   );
 }
@@ -102,11 +135,18 @@ export async function spotProfiles(
   site: Site,
   spotIds: number[],
   now = new Date(),
-  opts: { range?: { from: Date; to: Date }; periods?: Map<number, { from: Date; to: Date }>; plants?: PlantProfile[] } = {},
+  opts: {
+    range?: { from: Date; to: Date };
+    periods?: Map<number, { from: Date; to: Date }>;
+    plants?: PlantProfile[];
+  } = {},
 ) {
   const siteInfo = { latitude: site.latitude, longitude: site.longitude, timeZone: site.timeZone };
-  const thresholds = opts.plants ? [...new Set([...plantThresholds, ...opts.plants.map((p) => p.minNightC)])] : plantThresholds;
-  const rangeOf = (id: number) => opts.periods?.get(id) ?? opts.range ?? { from: new Date(now.getTime() - 365 * 86_400_000), to: now };
+  const thresholds = opts.plants
+    ? [...new Set([...plantThresholds, ...opts.plants.map((p) => p.minNightC)])]
+    : plantThresholds;
+  const rangeOf = (id: number) =>
+    opts.periods?.get(id) ?? opts.range ?? { from: new Date(now.getTime() - 365 * 86_400_000), to: now };
   // Spots judged on the same period are read together.
   const groups = new Map<string, { from: Date; to: Date; ids: number[] }>();
   for (const id of spotIds) {
@@ -117,18 +157,30 @@ export async function spotProfiles(
     groups.set(key, group);
   }
   // Each spot's light source sets the lux → PPFD factor of its DLI (sunlight unless the grower said lamps).
-  const lit = await pool().query<{ id: number; light_source: LightSource }>("SELECT id, light_source FROM spots WHERE id = ANY($1::int[])", [spotIds]);
+  const lit = await pool().query<{ id: number; light_source: LightSource }>(
+    "SELECT id, light_source FROM spots WHERE id = ANY($1::int[])",
+    [spotIds],
+  );
   const lightSource = new Map(lit.rows.map((r) => [r.id, r.light_source]));
   const out = new Map<number, ReturnType<typeof seasonProfile>>();
   for (const { from, to, ids } of groups.values()) {
     const rollups = await loadRollups(ids, from, to);
-    for (const id of ids) out.set(id, seasonProfile(rollups.get(id)!, siteInfo, { from, to, thresholds, lightSource: lightSource.get(id) }));
+    for (const id of ids)
+      out.set(
+        id,
+        seasonProfile(rollups.get(id)!, siteInfo, { from, to, thresholds, lightSource: lightSource.get(id) }),
+      );
   }
   return new Map(spotIds.map((id) => [id, out.get(id)!] as const));
 }
 
 /** Fits for one spot, best first; pass the site's plants (library plus own profiles) and the grower's unit. */
-export function fitsFor(season: ReturnType<typeof seasonProfile>, plants: PlantProfile[] = PLANT_LIBRARY, context: FitContext | SpotWindow = {}, format: Format = DEFAULT_FORMAT) {
+export function fitsFor(
+  season: ReturnType<typeof seasonProfile>,
+  plants: PlantProfile[] = PLANT_LIBRARY,
+  context: FitContext | SpotWindow = {},
+  format: Format = DEFAULT_FORMAT,
+) {
   return rankPlantsForSpot(plants, season, undefined, context).map(({ plant, fit }) => fitSummary(plant, fit, format));
 }
 
@@ -143,12 +195,21 @@ export function fitSummary(plant: PlantProfile, fit: PlantFit, format: Format = 
   const seasonal = describeSeasonal(fit, format);
   // Each reason's twelve-month strip (issue 17): measured months are those not still short of data.
   const missing = new Set(fit.missingMonths.map((n) => (MONTH_NAMES as readonly string[]).indexOf(n) + 1));
-  const stripBasis = { measured: [1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12].filter((m) => !missing.has(m)), projected: fit.basis?.projectedMonths ?? [] };
+  const stripBasis = {
+    measured: [1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12].filter((m) => !missing.has(m)),
+    projected: fit.basis?.projectedMonths ?? [],
+  };
   const asking = fit.reasons
     .filter((r) => r.level !== "good")
     .map((r) => {
       const cells = monthStrip(r, stripBasis);
-      return { rule: r.rule, level: r.level, confidence: r.confidence ?? ("measured" as const), message: describeReason(r, format, name), strip: cells ? encodeStrip(cells) : null };
+      return {
+        rule: r.rule,
+        level: r.level,
+        confidence: r.confidence ?? ("measured" as const),
+        message: describeReason(r, format, name),
+        strip: cells ? encodeStrip(cells) : null,
+      };
     });
   return {
     key: plant.key,
@@ -163,8 +224,13 @@ export function fitSummary(plant: PlantProfile, fit: PlantFit, format: Format = 
     verdictText: describeVerdict(fit, format),
     confidence: fit.confidence,
     basis: fit.basis,
-    reasons: seasonal ? [{ rule: "seasonal", level: "care" as const, confidence: fit.confidence, message: seasonal }, ...asking] : asking,
-    okReasons: fit.reasons.filter((r) => r.level === "good").map((r) => r.facts.map((f) => describeFact(f, format, name)).join(" ")).filter(Boolean),
+    reasons: seasonal
+      ? [{ rule: "seasonal", level: "care" as const, confidence: fit.confidence, message: seasonal }, ...asking]
+      : asking,
+    okReasons: fit.reasons
+      .filter((r) => r.level === "good")
+      .map((r) => r.facts.map((f) => describeFact(f, format, name)).join(" "))
+      .filter(Boolean),
     missingMonths: fit.missingMonths,
     missingAdvice: fit.missingAdvice,
   };
@@ -186,12 +252,21 @@ export async function glassContextFor(
   const outdoor = outdoorSpots.find((s) => !s.indoor && s.id !== spot.id);
   if (!outdoor) return undefined;
   const season = (await spotProfiles(site, [outdoor.id], now, { range: period })).get(outdoor.id)!;
-  const lows = new Map(season.year.filter((m) => m.temperature.meanDailyLow !== null).map((m) => [m.month, m.temperature.meanDailyLow!] as const));
+  const lows = new Map(
+    season.year
+      .filter((m) => m.temperature.meanDailyLow !== null)
+      .map((m) => [m.month, m.temperature.meanDailyLow!] as const),
+  );
   return lows.size > 0 ? { uValue: GLAZING_U[glazing], outdoorLowByMonth: lows } : undefined;
 }
 
 /** A glazing with a pane to judge, or null for "none", not given or anything else. */
-export const parseGlazing = (v: string | null | undefined): Glazing | null => (v != null && Object.hasOwn(GLAZING_U, v) ? (v as Glazing) : null);
+export const parseGlazing = (v: string | null | undefined): Glazing | null =>
+  v != null && Object.hasOwn(GLAZING_U, v) ? (v as Glazing) : null;
 
 /** How a spot's window is described to the fit rules (used for light when it has no light sensor). */
-export const windowOf = (site: Site, spot: { facing: SpotWindow["facing"]; indoor: boolean }): SpotWindow => ({ latitude: site.latitude, facing: spot.facing, indoor: spot.indoor });
+export const windowOf = (site: Site, spot: { facing: SpotWindow["facing"]; indoor: boolean }): SpotWindow => ({
+  latitude: site.latitude,
+  facing: spot.facing,
+  indoor: spot.indoor,
+});

@@ -48,14 +48,32 @@ export type ProjectedProfile = {
   firmBy: Date | null;
 };
 
-type Cached = { profile: ProjectedProfile; model: ResponseModel; place: { siteId: number; timeZone: string } & Place; indoor: boolean; hours: number; weatherKey: string };
+type Cached = {
+  profile: ProjectedProfile;
+  model: ResponseModel;
+  place: { siteId: number; timeZone: string } & Place;
+  indoor: boolean;
+  hours: number;
+  weatherKey: string;
+};
 const cache = new Map<number, Cached>();
 const tooFew = new Map<number, { at: number; hours: number; weatherKey: string }>();
 
 /** Thresholds for "hours below": the season profile's defaults unless the caller names its own. */
-export async function projectedProfile(spotId: number, opts: { now?: Date; thresholds?: number[]; years?: number } = {}): Promise<ProjectedProfile | null> {
+export async function projectedProfile(
+  spotId: number,
+  opts: { now?: Date; thresholds?: number[]; years?: number } = {},
+): Promise<ProjectedProfile | null> {
   const now = opts.now ?? new Date();
-  const spotRes = await pool().query<{ id: number; indoor: boolean; facing: SpotFacing; site_id: number; latitude: number; longitude: number; time_zone: string }>(
+  const spotRes = await pool().query<{
+    id: number;
+    indoor: boolean;
+    facing: SpotFacing;
+    site_id: number;
+    latitude: number;
+    longitude: number;
+    time_zone: string;
+  }>(
     `SELECT sp.id, sp.indoor, sp.facing, s.id AS site_id, s.latitude, s.longitude, s.time_zone FROM spots sp JOIN sites s ON s.id = sp.site_id WHERE sp.id = $1`,
     [spotId],
   );
@@ -63,7 +81,15 @@ export async function projectedProfile(spotId: number, opts: { now?: Date; thres
   if (!spot) return null;
   const site = { latitude: spot.latitude, longitude: spot.longitude, timeZone: spot.time_zone };
   const weather = await weatherStatus(spot.site_id);
-  const empty = (missing: ProjectedProfile["missing"]): ProjectedProfile => ({ spotId, weather, missing, model: null, years: [], months: [], firmBy: null });
+  const empty = (missing: ProjectedProfile["missing"]): ProjectedProfile => ({
+    spotId,
+    weather,
+    missing,
+    model: null,
+    years: [],
+    months: [],
+    firmBy: null,
+  });
   if (weather.state !== "ready") return empty("weather-not-fetched");
 
   const yearAgo = new Date(now.getTime() - 365 * DAY);
@@ -71,13 +97,20 @@ export async function projectedProfile(spotId: number, opts: { now?: Date; thres
   const hours = rollups.reduce((n, r) => n + (r.tN > 0 ? 1 : 0), 0);
   const weatherKey = `${weather.archiveFrom}:${weather.archiveTo}:${weather.forecastAt?.getTime()}:${site.latitude}:${site.longitude}:${opts.thresholds?.join(",") ?? ""}`;
   const hit = cache.get(spotId);
-  if (hit && hit.profile.model && now.getTime() - hit.profile.model.fittedAt.getTime() < REFIT_AFTER_MS && hours - hit.hours < REFIT_AFTER_HOURS && hit.weatherKey === weatherKey) {
+  if (
+    hit &&
+    hit.profile.model &&
+    now.getTime() - hit.profile.model.fittedAt.getTime() < REFIT_AFTER_MS &&
+    hours - hit.hours < REFIT_AFTER_HOURS &&
+    hit.weatherKey === weatherKey
+  ) {
     return hit.profile;
   }
 
   // A spot too new for a model is not refitted (nor ten years of weather read) until its hours grow.
   const miss = tooFew.get(spotId);
-  if (miss && miss.hours === hours && miss.weatherKey === weatherKey && now.getTime() - miss.at < REFIT_AFTER_MS) return empty("too-few-days");
+  if (miss && miss.hours === hours && miss.weatherKey === weatherKey && now.getTime() - miss.at < REFIT_AFTER_MS)
+    return empty("too-few-days");
 
   const thisYear = new Date(now.getTime()).getUTCFullYear();
   const wantYears = opts.years ?? 10;
@@ -96,10 +129,18 @@ export async function projectedProfile(spotId: number, opts: { now?: Date; thres
     if (missing < 0.02 * (i1 - i0)) years.push(y);
   }
 
-  const measured = seasonProfile(rollups, site, { from: yearAgo, to: now, thresholds: opts.thresholds ?? DEFAULT_THRESHOLDS_C });
+  const measured = seasonProfile(rollups, site, {
+    from: yearAgo,
+    to: now,
+    thresholds: opts.thresholds ?? DEFAULT_THRESHOLDS_C,
+  });
   const fitFrom = now.getTime() - FIT_DAYS * DAY;
   const fitRollups = rollups.filter((r) => r.hour.getTime() >= fitFrom);
-  const model = fitResponse(fitRollups, d, { indoor: spot.indoor, timeZone: site.timeZone, place: { ...site, facing: spot.indoor ? spot.facing : "none" } });
+  const model = fitResponse(fitRollups, d, {
+    indoor: spot.indoor,
+    timeZone: site.timeZone,
+    place: { ...site, facing: spot.indoor ? spot.facing : "none" },
+  });
   if (!model) {
     if (tooFew.size >= CACHE_SPOTS) tooFew.delete(tooFew.keys().next().value!);
     tooFew.set(spotId, { at: now.getTime(), hours, weatherKey });
@@ -128,7 +169,14 @@ export async function projectedProfile(spotId: number, opts: { now?: Date; thres
     firmBy: firmBy(months, now, site.timeZone),
   };
   if (cache.size >= CACHE_SPOTS) cache.delete(cache.keys().next().value!);
-  cache.set(spotId, { profile, model, place: { siteId: spot.site_id, ...site, facing: spot.indoor ? spot.facing : "none" }, indoor: spot.indoor, hours, weatherKey });
+  cache.set(spotId, {
+    profile,
+    model,
+    place: { siteId: spot.site_id, ...site, facing: spot.indoor ? spot.facing : "none" },
+    indoor: spot.indoor,
+    hours,
+    weatherKey,
+  });
   return profile;
 }
 
@@ -159,15 +207,25 @@ export type SpotForecast = { spotId: number; forecastAt: Date | null; hours: For
  * nights in them (expected low, its 80 % lower bound, the leaves' likely low on clear still nights
  * outdoors): what a forecast warning needs. Null when the spot has no model yet.
  */
-export async function spotForecast(spotId: number, opts: { now?: Date; hours?: number } = {}): Promise<SpotForecast | null> {
+export async function spotForecast(
+  spotId: number,
+  opts: { now?: Date; hours?: number } = {},
+): Promise<SpotForecast | null> {
   const now = opts.now ?? new Date();
   const profile = await projectedProfile(spotId, { now });
   const entry = cache.get(spotId);
   if (!profile?.model || !entry) return null;
   // Ten days before now let the 48-hour smoothing settle.
-  const weather = await loadHours(entry.place.siteId, new Date(now.getTime() - 10 * DAY), new Date(now.getTime() + 3 * DAY));
+  const weather = await loadHours(
+    entry.place.siteId,
+    new Date(now.getTime() - 10 * DAY),
+    new Date(now.getTime() + 3 * DAY),
+  );
   const d = drivers(weather, entry.place.timeZone, entry.place);
-  const { hours, nights } = forecastSpot(entry.model, d, now.getTime(), { outdoor: !entry.indoor, hours: opts.hours ?? 48 });
+  const { hours, nights } = forecastSpot(entry.model, d, now.getTime(), {
+    outdoor: !entry.indoor,
+    hours: opts.hours ?? 48,
+  });
   return { spotId, forecastAt: profile.weather.state === "ready" ? profile.weather.forecastAt : null, hours, nights };
 }
 
@@ -178,7 +236,11 @@ export async function spotForecast(spotId: number, opts: { now?: Date; hours?: n
  * itself counts as measured are not filled (a judged period other than the latest year). Null when
  * there is no projection (no weather yet, too few days) or nothing to fill.
  */
-export async function fitProjection(spotId: number, season: SeasonProfile, opts: { now?: Date } = {}): Promise<FitProjection | null> {
+export async function fitProjection(
+  spotId: number,
+  season: SeasonProfile,
+  opts: { now?: Date } = {},
+): Promise<FitProjection | null> {
   const open = new Set(season.year.filter((m) => !m.coverage.enough).map((m) => m.month));
   if (open.size === 0) return null;
   const p = await projectedProfile(spotId, { now: opts.now });
@@ -189,7 +251,10 @@ export async function fitProjection(spotId: number, season: SeasonProfile, opts:
 }
 
 /** fitProjection for many spots at once (a fit table: a plant's page, the wishlist): spots without one are left out. */
-export async function fitProjections(seasons: Map<number, SeasonProfile>, opts: { now?: Date } = {}): Promise<Map<number, FitProjection>> {
+export async function fitProjections(
+  seasons: Map<number, SeasonProfile>,
+  opts: { now?: Date } = {},
+): Promise<Map<number, FitProjection>> {
   const out = new Map<number, FitProjection>();
   await Promise.all(
     [...seasons].map(async ([spotId, season]) => {

@@ -26,7 +26,12 @@ const WISHES: { plantKey: string; mustHave: boolean; pots: number }[] = [
 export async function seedPlants(opts: { siteId: number }) {
   const rows = await db().select({ id: spots.id, name: spots.name }).from(spots).where(eq(spots.siteId, opts.siteId));
   const idOf = new Map(rows.map((r) => [r.name, r.id]));
-  const standing = STANDING.filter((s) => idOf.has(s.spot)).map(({ spot, ...s }) => ({ spotId: idOf.get(spot)!, ...s }));
+  const standing = STANDING.filter((s) => idOf.has(s.spot)).map(({ spot, ...s }) => ({
+    spotId: idOf.get(spot)!,
+    ...s,
+  }));
   if (standing.length) await db().insert(spotPlants).values(standing);
-  await db().insert(wishlist).values(WISHES.map((w) => ({ siteId: opts.siteId, ...w })));
+  await db()
+    .insert(wishlist)
+    .values(WISHES.map((w) => ({ siteId: opts.siteId, ...w })));
 }

@@ -10,25 +10,82 @@ const DAY = 86_400_000;
 /** A small deterministic wobble, so the demo reads like real meter readings and stays the same. */
 const wobble = (i: number, amplitude: number) => Math.round(Math.sin(i * 2.3 + 0.7) * amplitude * 10) / 10;
 
-export async function seedSharing(opts: { siteId: number; ownerId: number; carerId: number; mentorId: number; now?: Date }) {
+export async function seedSharing(opts: {
+  siteId: number;
+  ownerId: number;
+  carerId: number;
+  mentorId: number;
+  now?: Date;
+}) {
   const now = opts.now ?? new Date();
-  const siteSpots = await db().select({ id: spots.id, name: spots.name }).from(spots).where(eq(spots.siteId, opts.siteId));
+  const siteSpots = await db()
+    .select({ id: spots.id, name: spots.name })
+    .from(spots)
+    .where(eq(spots.siteId, opts.siteId));
   const spotNamed = (start: string) => siteSpots.find((s) => s.name.startsWith(start));
   const landing = spotNamed("Landing sill");
   const bathroom = spotNamed("Bathroom shelf");
   const ago = (days: number) => new Date(now.getTime() - days * DAY);
 
   // How the household came to share the site, written as the app writes it.
-  await db().insert(invitations).values([
-    { siteId: opts.siteId, email: "carer@nichewise.test", role: "carer", tokenHash: "demo-accepted-carer", invitedBy: opts.ownerId, expiresAt: ago(173), acceptedAt: ago(179), acceptedBy: opts.carerId, createdAt: ago(180) },
-    { siteId: opts.siteId, email: "mentor@nichewise.test", role: "mentor", tokenHash: "demo-accepted-mentor", invitedBy: opts.ownerId, expiresAt: ago(143), acceptedAt: ago(148), acceptedBy: opts.mentorId, createdAt: ago(150) },
-  ]);
-  await db().insert(auditLog).values([
-    { siteId: opts.siteId, actorId: opts.ownerId, action: "member.invite", detail: { email: "carer@nichewise.test", role: "carer" }, at: ago(180) },
-    { siteId: opts.siteId, actorId: opts.carerId, action: "member.join", detail: { email: "carer@nichewise.test", role: "carer" }, at: ago(179) },
-    { siteId: opts.siteId, actorId: opts.ownerId, action: "member.invite", detail: { email: "mentor@nichewise.test", role: "mentor" }, at: ago(150) },
-    { siteId: opts.siteId, actorId: opts.mentorId, action: "member.join", detail: { email: "mentor@nichewise.test", role: "mentor" }, at: ago(148) },
-  ]);
+  await db()
+    .insert(invitations)
+    .values([
+      {
+        siteId: opts.siteId,
+        email: "carer@nichewise.test",
+        role: "carer",
+        tokenHash: "demo-accepted-carer",
+        invitedBy: opts.ownerId,
+        expiresAt: ago(173),
+        acceptedAt: ago(179),
+        acceptedBy: opts.carerId,
+        createdAt: ago(180),
+      },
+      {
+        siteId: opts.siteId,
+        email: "mentor@nichewise.test",
+        role: "mentor",
+        tokenHash: "demo-accepted-mentor",
+        invitedBy: opts.ownerId,
+        expiresAt: ago(143),
+        acceptedAt: ago(148),
+        acceptedBy: opts.mentorId,
+        createdAt: ago(150),
+      },
+    ]);
+  await db()
+    .insert(auditLog)
+    .values([
+      {
+        siteId: opts.siteId,
+        actorId: opts.ownerId,
+        action: "member.invite",
+        detail: { email: "carer@nichewise.test", role: "carer" },
+        at: ago(180),
+      },
+      {
+        siteId: opts.siteId,
+        actorId: opts.carerId,
+        action: "member.join",
+        detail: { email: "carer@nichewise.test", role: "carer" },
+        at: ago(179),
+      },
+      {
+        siteId: opts.siteId,
+        actorId: opts.ownerId,
+        action: "member.invite",
+        detail: { email: "mentor@nichewise.test", role: "mentor" },
+        at: ago(150),
+      },
+      {
+        siteId: opts.siteId,
+        actorId: opts.mentorId,
+        action: "member.join",
+        detail: { email: "mentor@nichewise.test", role: "mentor" },
+        at: ago(148),
+      },
+    ]);
 
   const mentorNotes = [
     landing && {
@@ -75,9 +132,25 @@ export async function seedSharing(opts: { siteId: number; ownerId: number; carer
     const checkedOn = ago(14 + i * 15);
     const byUserId = i % 3 === 0 ? opts.ownerId : opts.carerId;
     if (i >= 9) {
-      checks.push({ siteId: opts.siteId, source: "tap", checkedOn, ec: Math.round(560 + wobble(i, 20) * 2), ecScale: 0.5, ph: Math.round((7.6 + wobble(i + 3, 0.15)) * 10) / 10, byUserId });
+      checks.push({
+        siteId: opts.siteId,
+        source: "tap",
+        checkedOn,
+        ec: Math.round(560 + wobble(i, 20) * 2),
+        ecScale: 0.5,
+        ph: Math.round((7.6 + wobble(i + 3, 0.15)) * 10) / 10,
+        byUserId,
+      });
     } else {
-      checks.push({ siteId: opts.siteId, source: "tap", checkedOn, ppm: Math.round(280 + wobble(i, 12)), ecScale: 0.5, ph: Math.round((7.5 + wobble(i + 3, 0.2)) * 10) / 10, byUserId });
+      checks.push({
+        siteId: opts.siteId,
+        source: "tap",
+        checkedOn,
+        ppm: Math.round(280 + wobble(i, 12)),
+        ecScale: 0.5,
+        ph: Math.round((7.5 + wobble(i + 3, 0.2)) * 10) / 10,
+        byUserId,
+      });
     }
     checks.push({
       siteId: opts.siteId,
@@ -92,7 +165,14 @@ export async function seedSharing(opts: { siteId: number; ownerId: number; carer
   await db().insert(waterChecks).values(checks);
   await db()
     .insert(auditLog)
-    .values(checks.map((c) => ({ siteId: opts.siteId, actorId: c.byUserId ?? null, action: "water.add", detail: { source: c.source }, at: c.checkedOn })));
+    .values(
+      checks.map((c) => ({
+        siteId: opts.siteId,
+        actorId: c.byUserId ?? null,
+        action: "water.add",
+        detail: { source: c.source },
+        at: c.checkedOn,
+      })),
+    );
   return { notes: mentorNotes.length, waterChecks: checks.length };
 }
-

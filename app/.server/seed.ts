@@ -26,18 +26,25 @@ export async function seedDemo(opts: { log?: (s: string) => void; backfillDays?:
       Object.entries(h.people).map(async ([role, p]) => {
         const [u] = await db()
           .insert(users)
-          .values({ email: p.email, name: p.name, passwordHash: await hashPassword(p.password), isAdmin: role === "admin" })
+          .values({
+            email: p.email,
+            name: p.name,
+            passwordHash: await hashPassword(p.password),
+            isAdmin: role === "admin",
+          })
           .returning({ id: users.id });
         return [role, u.id] as const;
       }),
     ),
   ) as Record<keyof typeof h.people, number>;
   const [site] = await db().insert(sites).values(h.site).returning({ id: sites.id });
-  await db().insert(memberships).values([
-    { userId: people.owner, siteId: site.id, role: "owner" },
-    { userId: people.carer, siteId: site.id, role: "carer" },
-    { userId: people.mentor, siteId: site.id, role: "mentor" },
-  ]);
+  await db()
+    .insert(memberships)
+    .values([
+      { userId: people.owner, siteId: site.id, role: "owner" },
+      { userId: people.carer, siteId: site.id, role: "carer" },
+      { userId: people.mentor, siteId: site.id, role: "mentor" },
+    ]);
   const days = opts.backfillDays ?? 365;
   const to = new Date(Math.floor(Date.now() / 60_000) * 60_000);
   const from = new Date(to.getTime() - days * 86_400_000);
@@ -46,14 +53,29 @@ export async function seedDemo(opts: { log?: (s: string) => void; backfillDays?:
   for (const [i, s] of h.spots.entries()) {
     const [spot] = await db()
       .insert(spots)
-      .values({ siteId: site.id, name: s.name, indoor: s.indoor, facing: s.facing, glazing: s.glazing ?? null, capacity: s.capacity, notes: s.notes })
+      .values({
+        siteId: site.id,
+        name: s.name,
+        indoor: s.indoor,
+        facing: s.facing,
+        glazing: s.glazing ?? null,
+        capacity: s.capacity,
+        notes: s.notes,
+      })
       .returning({ id: spots.id });
     const secret = newSensorSecret();
     const [sensor] = await db()
       .insert(sensors)
-      .values({ siteId: site.id, name: s.sensor.name, secretHash: hashSensorSecret(secret), channels: s.sensor.channels })
+      .values({
+        siteId: site.id,
+        name: s.sensor.name,
+        secretHash: hashSensorSecret(secret),
+        channels: s.sensor.channels,
+      })
       .returning({ id: sensors.id });
-    await db().insert(placements).values({ sensorId: sensor.id, spotId: spot.id, fromAt: new Date(from.getTime() - 3_600_000) });
+    await db()
+      .insert(placements)
+      .values({ sensorId: sensor.id, spotId: spot.id, fromAt: new Date(from.getTime() - 3_600_000) });
     creds.push({ sensorId: sensor.id, secret, spotIndex: i });
     targets.push({ sensorId: sensor.id, spot: s.sim, seed: s.sensor.seed });
   }
@@ -62,7 +84,9 @@ export async function seedDemo(opts: { log?: (s: string) => void; backfillDays?:
 
   if (days > 0) {
     const started = performance.now();
-    await db().execute(sql`select ensure_reading_partitions(${from.toISOString()}::timestamptz, ${Math.ceil(days / 30) + 2}::int)`);
+    await db().execute(
+      sql`select ensure_reading_partitions(${from.toISOString()}::timestamptz, ${Math.ceil(days / 30) + 2}::int)`,
+    );
     const { written } = await backfill({
       site: h.site,
       scenario: h.scenario,
@@ -71,10 +95,13 @@ export async function seedDemo(opts: { log?: (s: string) => void; backfillDays?:
       to,
       intervalMs: (opts.intervalS ?? 300) * 1000,
       write: (rows) => writer().write(rows),
-      progress: (done, total) => log(`Backfill: ${Math.round((done / total) * 100)} % (${done.toLocaleString("en")} readings)`),
+      progress: (done, total) =>
+        log(`Backfill: ${Math.round((done / total) * 100)} % (${done.toLocaleString("en")} readings)`),
     });
     const s = (performance.now() - started) / 1000;
-    log(`Backfilled ${written.toLocaleString("en")} readings over ${days} days in ${s.toFixed(1)} s (${Math.round(written / s).toLocaleString("en")}/s)`);
+    log(
+      `Backfilled ${written.toLocaleString("en")} readings over ${days} days in ${s.toFixed(1)} s (${Math.round(written / s).toLocaleString("en")}/s)`,
+    );
   }
   await seedSharing({ siteId: site.id, ownerId: people.owner, carerId: people.carer, mentorId: people.mentor });
   await seedPlants({ siteId: site.id });

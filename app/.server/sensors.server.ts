@@ -40,13 +40,22 @@ export async function inTransaction<T>(fn: (tx: Tx, client: pg.PoolClient) => Pr
 }
 
 /** Serialises changes to one sensor's placements (a move racing an edit would overlap them). */
-export const lockSensor = (client: pg.PoolClient, sensorId: number) => client.query("SELECT pg_advisory_xact_lock(7001, $1)", [sensorId]);
+export const lockSensor = (client: pg.PoolClient, sensorId: number) =>
+  client.query("SELECT pg_advisory_xact_lock(7001, $1)", [sensorId]);
 
-export const audit = (tx: Tx, siteId: number, actorId: number | null, action: string, detail: Record<string, unknown>) =>
-  tx.insert(auditLog).values({ siteId, actorId, action, detail });
+export const audit = (
+  tx: Tx,
+  siteId: number,
+  actorId: number | null,
+  action: string,
+  detail: Record<string, unknown>,
+) => tx.insert(auditLog).values({ siteId, actorId, action, detail });
 
 export async function spotInSite(tx: Tx, siteId: number, spotId: number) {
-  const [spot] = await tx.select({ id: spots.id }).from(spots).where(and(eq(spots.id, spotId), eq(spots.siteId, siteId)));
+  const [spot] = await tx
+    .select({ id: spots.id })
+    .from(spots)
+    .where(and(eq(spots.id, spotId), eq(spots.siteId, siteId)));
   if (!spot) throw new PlacementError("That spot is not in this site.");
 }
 
@@ -78,7 +87,10 @@ export async function listSensors(siteId: number) {
 /** The sensor, if it belongs to the site in the URL; otherwise a 404. */
 export async function getSensor(siteId: number, sensorId: number | string | undefined) {
   const id = paramId(sensorId);
-  const [sensor] = await db().select().from(sensors).where(and(eq(sensors.id, id), eq(sensors.siteId, siteId)));
+  const [sensor] = await db()
+    .select()
+    .from(sensors)
+    .where(and(eq(sensors.id, id), eq(sensors.siteId, siteId)));
   if (!sensor) notFound();
   return sensor;
 }
@@ -120,14 +132,25 @@ export async function createSensor(opts: {
 }
 
 /** Renames and recalibrates; a changed calibration rebuilds every spot the sensor has been in. */
-export async function saveSensor(opts: { siteId: number; sensorId: number; name: string; calibration: Calibration; actorId: number | null }) {
+export async function saveSensor(opts: {
+  siteId: number;
+  sensorId: number;
+  name: string;
+  calibration: Calibration;
+  actorId: number | null;
+}) {
   const { sensorId, calibration } = opts;
   await inTransaction(async (tx, client) => {
-    const [before] = await tx.select({ calibration: sensors.calibration }).from(sensors).where(eq(sensors.id, sensorId)).for("update");
+    const [before] = await tx
+      .select({ calibration: sensors.calibration })
+      .from(sensors)
+      .where(eq(sensors.id, sensorId))
+      .for("update");
     if (!before) throw new PlacementError("That sensor no longer exists.");
     await tx.update(sensors).set({ name: opts.name, calibration }).where(eq(sensors.id, sensorId));
     await audit(tx, opts.siteId, opts.actorId, "sensor.update", { sensorId, name: opts.name, calibration });
-    if (JSON.stringify(calibration) !== JSON.stringify(before.calibration)) await rebuildRollupsIn(client, await spotsOf(tx, sensorId));
+    if (JSON.stringify(calibration) !== JSON.stringify(before.calibration))
+      await rebuildRollupsIn(client, await spotsOf(tx, sensorId));
   });
   invalidateSensorCache(sensorId);
 }
@@ -136,7 +159,10 @@ export async function saveSensor(opts: { siteId: number; sensorId: number; name:
 export async function rotateSensorSecret(opts: { siteId: number; sensorId: number; actorId: number | null }) {
   const secret = newSensorSecret();
   await inTransaction(async (tx) => {
-    await tx.update(sensors).set({ secretHash: hashSensorSecret(secret) }).where(eq(sensors.id, opts.sensorId));
+    await tx
+      .update(sensors)
+      .set({ secretHash: hashSensorSecret(secret) })
+      .where(eq(sensors.id, opts.sensorId));
     await audit(tx, opts.siteId, opts.actorId, "sensor.rotate-secret", { sensorId: opts.sensorId });
   });
   invalidateSensorCache(opts.sensorId);
@@ -160,6 +186,9 @@ export async function deleteSensor(opts: { siteId: number; sensorId: number; nam
 }
 
 async function spotsOf(tx: Tx, sensorId: number) {
-  const rows = await tx.selectDistinct({ spotId: placements.spotId }).from(placements).where(eq(placements.sensorId, sensorId));
+  const rows = await tx
+    .selectDistinct({ spotId: placements.spotId })
+    .from(placements)
+    .where(eq(placements.sensorId, sensorId));
   return rows.map((r) => r.spotId);
 }

@@ -39,7 +39,12 @@ function columns(rows: Record<string, unknown>[], names: string[]) {
   return out;
 }
 
-export async function spotSeries(spotId: number, timeZone: string, range: "48h" | "30d" | "year", now = new Date()): Promise<Series> {
+export async function spotSeries(
+  spotId: number,
+  timeZone: string,
+  range: "48h" | "30d" | "year",
+  now = new Date(),
+): Promise<Series> {
   const span = { "48h": 2, "30d": 30, year: 366 }[range] * 86_400_000;
   const from = new Date(now.getTime() - span);
   if (range === "48h") {
@@ -58,7 +63,13 @@ export async function spotSeries(spotId: number, timeZone: string, range: "48h" 
 }
 
 export async function latestReading(spotId: number) {
-  const res = await pool().query<{ measured_at: string; temp: number | null; rh: number | null; lux: number | null; battery: number | null }>(
+  const res = await pool().query<{
+    measured_at: string;
+    temp: number | null;
+    rh: number | null;
+    lux: number | null;
+    battery: number | null;
+  }>(
     `SELECT r.measured_at, ${calibratedSql("temperature", "r.temperature")} AS temp,
        ${calibratedSql("humidity", "r.humidity")} AS rh, r.lux, r.battery
      FROM placements p JOIN sensors s ON s.id = p.sensor_id

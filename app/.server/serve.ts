@@ -38,12 +38,18 @@ export async function startProduction(): Promise<Running> {
   return start();
 }
 
-const isEntry = process.argv[1] && /(serve\.ts|nichewise-server\.mjs)$/.test(import.meta.filename) && path.resolve(process.argv[1]) === path.resolve(import.meta.filename);
+const isEntry =
+  process.argv[1] &&
+  /(serve\.ts|nichewise-server\.mjs)$/.test(import.meta.filename) &&
+  path.resolve(process.argv[1]) === path.resolve(import.meta.filename);
 if (isEntry) {
   const dev = process.argv.includes("--dev");
   // React, React Router and Express pick their production code at import, from NODE_ENV: too early
   // to set it here, so the start scripts and the supervisor set it.
-  if (!dev && process.env.NODE_ENV !== "production") log(`NODE_ENV is ${process.env.NODE_ENV ?? "unset"}: running React's development code (slower, more memory); npm start sets NODE_ENV=production`);
+  if (!dev && process.env.NODE_ENV !== "production")
+    log(
+      `NODE_ENV is ${process.env.NODE_ENV ?? "unset"}: running React's development code (slower, more memory); npm start sets NODE_ENV=production`,
+    );
   (dev ? startDev() : startProduction()).then(
     (running) => {
       let stopping = false;

@@ -17,7 +17,12 @@ import type { TempUnit } from "~/domain/units";
 /** How many groups the matrix shows at most: the grower's own first, then the best of the rest. */
 export const MATRIX_ROWS = 10;
 
-export type MatrixRow = { key: string; name: string; why: "wished" | "growing" | "fits"; cells: { spotId: number; verdict: string; reason: string | null }[] };
+export type MatrixRow = {
+  key: string;
+  name: string;
+  why: "wished" | "growing" | "fits";
+  cells: { spotId: number; verdict: string; reason: string | null }[];
+};
 
 export async function siteMap(site: Site, unit: TempUnit, now = new Date()) {
   const spots = await listSpots(site.id);
@@ -45,10 +50,14 @@ export async function siteMap(site: Site, unit: TempUnit, now = new Date()) {
     let glass: GlassContext | undefined;
     if (glazing && spot.indoor && spot.facing !== "none" && outdoor) {
       // The outdoor spot's profile is already here when both are judged on the same period.
-      const a = periods.get(spot.id), b = periods.get(outdoor.id);
+      const a = periods.get(spot.id),
+        b = periods.get(outdoor.id);
       if (a && b && a.from.getTime() === b.from.getTime() && a.to.getTime() === b.to.getTime()) {
         const lows = new Map<number, number>(
-          profiles.get(outdoor.id)!.year.filter((m) => m.temperature.meanDailyLow !== null).map((m) => [m.month, m.temperature.meanDailyLow!] as const),
+          profiles
+            .get(outdoor.id)!
+            .year.filter((m) => m.temperature.meanDailyLow !== null)
+            .map((m) => [m.month, m.temperature.meanDailyLow!] as const),
         );
         glass = lows.size > 0 ? { uValue: GLAZING_U[glazing], outdoorLowByMonth: lows } : undefined;
       } else glass = await glassContextFor(site, spot, spots, a!, glazing, now);
@@ -94,7 +103,9 @@ export async function siteMap(site: Site, unit: TempUnit, now = new Date()) {
         pots: s.pots,
         verdict: verdicts.get(s.plantKey)?.verdict ?? null,
       })),
-      alerts: open.filter((e) => e.spotId === spot.id).map((e) => ({ id: e.id, kind: e.kind, acknowledged: e.acknowledgedBy !== null })),
+      alerts: open
+        .filter((e) => e.spotId === spot.id)
+        .map((e) => ({ id: e.id, kind: e.kind, acknowledged: e.acknowledgedBy !== null })),
       openNotes: notes.filter((n) => n.spotId === spot.id && n.resolvedAt === null).length,
       latest: r ? { hour: new Date(r.hour).toISOString(), t: r.t, h: r.h } : null,
     };
@@ -109,7 +120,14 @@ export async function siteMap(site: Site, unit: TempUnit, now = new Date()) {
   for (const w of wishes) add(w.plantKey, "wished");
   for (const i of inventory) add(i.plantKey, "growing");
   const bestAnywhere = plants
-    .map((p) => ({ key: p.key, rank: Math.min(...spots.map((s) => VERDICT_ORDER.indexOf(fitsBySpot.get(s.id)!.find((f) => f.key === p.key)?.verdict ?? "struggles here"))) }))
+    .map((p) => ({
+      key: p.key,
+      rank: Math.min(
+        ...spots.map((s) =>
+          VERDICT_ORDER.indexOf(fitsBySpot.get(s.id)!.find((f) => f.key === p.key)?.verdict ?? "struggles here"),
+        ),
+      ),
+    }))
     // "Does well somewhere": judged to grow (not merely not ruled out yet) in at least one spot.
     .filter((p) => p.rank < VERDICT_ORDER.indexOf("not enough data yet"))
     .sort((a, b) => a.rank - b.rank);

@@ -8,7 +8,13 @@ import { directSunMonths } from "~/domain/climate/sun";
 import type { Site, Spot } from "~/db/schema.server";
 
 /** `sensors`: the site's sensors, as the spot page has already read them. */
-export async function spotGrowing(site: Site, spot: Spot, plants: SitePlant[], fits: { key: string; verdict: string }[], sensors: Awaited<ReturnType<typeof listSensors>>) {
+export async function spotGrowing(
+  site: Site,
+  spot: Spot,
+  plants: SitePlant[],
+  fits: { key: string; verdict: string }[],
+  sensors: Awaited<ReturnType<typeof listSensors>>,
+) {
   const [standing, spots] = await Promise.all([spotInventory([spot.id]), listSpots(site.id)]);
   const byKey = new Map(plants.map((p) => [p.key, p]));
   const verdicts = new Map(fits.map((f) => [f.key, f.verdict]));

@@ -18,7 +18,10 @@ export async function listSpots(siteId: number) {
 /** The spot, if it belongs to the site in the URL; otherwise a 404. */
 export async function getSpot(siteId: number, spotId: number | string | undefined) {
   const id = paramId(spotId);
-  const [spot] = await db().select().from(spots).where(and(eq(spots.id, id), eq(spots.siteId, siteId)));
+  const [spot] = await db()
+    .select()
+    .from(spots)
+    .where(and(eq(spots.id, id), eq(spots.siteId, siteId)));
   if (!spot) notFound();
   return spot;
 }
@@ -53,7 +56,12 @@ export async function createSpot(opts: { siteId: number; actorId: number; values
       .insert(spots)
       .values({ siteId: opts.siteId, ...clean(opts.values) })
       .returning();
-    await tx.insert(auditLog).values({ siteId: opts.siteId, actorId: opts.actorId, action: "spot.create", detail: { spotId: spot.id, name: spot.name } });
+    await tx.insert(auditLog).values({
+      siteId: opts.siteId,
+      actorId: opts.actorId,
+      action: "spot.create",
+      detail: { spotId: spot.id, name: spot.name },
+    });
     return spot;
   });
 }
@@ -62,7 +70,9 @@ export async function updateSpot(opts: { siteId: number; actorId: number; spot: 
   const { spot } = opts;
   const values = clean(opts.values);
   const changes: Record<string, [unknown, unknown]> = {};
-  for (const k of FIELDS) if (values[k] !== undefined && spot[k] !== values[k]) changes[k] = [k === "notes" ? spot[k].length : spot[k], k === "notes" ? values[k].length : values[k]];
+  for (const k of FIELDS)
+    if (values[k] !== undefined && spot[k] !== values[k])
+      changes[k] = [k === "notes" ? spot[k].length : spot[k], k === "notes" ? values[k].length : values[k]];
   const sensorIds = await db().transaction(async (tx) => {
     const [updated] = await tx
       .update(spots)
@@ -70,8 +80,14 @@ export async function updateSpot(opts: { siteId: number; actorId: number; spot: 
       .where(and(eq(spots.id, spot.id), eq(spots.siteId, opts.siteId)))
       .returning({ id: spots.id });
     if (!updated) return null;
-    await tx.insert(auditLog).values({ siteId: opts.siteId, actorId: opts.actorId, action: "spot.update", detail: { spotId: spot.id, name: values.name, changes } });
-    if (spot.indoor && !values.indoor) await ensureColdWatch({ siteId: opts.siteId, spotId: spot.id, actorId: opts.actorId }, tx);
+    await tx.insert(auditLog).values({
+      siteId: opts.siteId,
+      actorId: opts.actorId,
+      action: "spot.update",
+      detail: { spotId: spot.id, name: values.name, changes },
+    });
+    if (spot.indoor && !values.indoor)
+      await ensureColdWatch({ siteId: opts.siteId, spotId: spot.id, actorId: opts.actorId }, tx);
     return "indoor" in changes ? await placedSensors(tx, spot.id) : [];
   });
   for (const id of sensorIds ?? []) invalidateSensorCache(id);
@@ -86,7 +102,12 @@ export async function deleteSpot(opts: { siteId: number; actorId: number; spot: 
       .where(and(eq(spots.id, opts.spot.id), eq(spots.siteId, opts.siteId)))
       .returning({ id: spots.id });
     if (!gone) return null;
-    await tx.insert(auditLog).values({ siteId: opts.siteId, actorId: opts.actorId, action: "spot.delete", detail: { spotId: opts.spot.id, name: opts.spot.name } });
+    await tx.insert(auditLog).values({
+      siteId: opts.siteId,
+      actorId: opts.actorId,
+      action: "spot.delete",
+      detail: { spotId: opts.spot.id, name: opts.spot.name },
+    });
     return sensorIds;
   });
   // Their placements went with the spot: ingest must stop treating them as placed there.
@@ -97,6 +118,9 @@ export async function deleteSpot(opts: { siteId: number; actorId: number; spot: 
 type Tx = Parameters<Parameters<ReturnType<typeof db>["transaction"]>[0]>[0];
 
 async function placedSensors(tx: Tx, spotId: number) {
-  const rows = await tx.select({ id: placements.sensorId }).from(placements).where(and(eq(placements.spotId, spotId), isNull(placements.toAt)));
+  const rows = await tx
+    .select({ id: placements.sensorId })
+    .from(placements)
+    .where(and(eq(placements.spotId, spotId), isNull(placements.toAt)));
   return rows.map((r) => r.id);
 }

@@ -25,7 +25,8 @@ export type Supervisor = {
   stop: (signal: NodeJS.Signals) => void;
 };
 
-const describeExit = (code: number | null, signal: NodeJS.Signals | null) => (signal ? `was killed (${signal})` : `exited with code ${code}`);
+const describeExit = (code: number | null, signal: NodeJS.Signals | null) =>
+  signal ? `was killed (${signal})` : `exited with code ${code}`;
 
 export function supervise(opts: SuperviseOptions): Supervisor {
   const log = opts.log ?? ((s: string) => console.log(`[nichewise supervisor] ${s}`));
@@ -59,7 +60,9 @@ export function supervise(opts: SuperviseOptions): Supervisor {
       const ranMs = Date.now() - startedAt;
       delay = ranMs >= stableMs ? minDelay : restarts === 0 ? minDelay : Math.min(delay * 2, maxDelay);
       restarts++;
-      log(`the server ${describeExit(code, signal)} after ${Math.round(ranMs / 1000)} s; starting it again in ${Math.round(delay / 100) / 10} s (restart ${restarts})`);
+      log(
+        `the server ${describeExit(code, signal)} after ${Math.round(ranMs / 1000)} s; starting it again in ${Math.round(delay / 100) / 10} s (restart ${restarts})`,
+      );
       timer = setTimeout(start, delay);
     });
   };

@@ -25,11 +25,21 @@ export async function listWaterChecks(siteId: number) {
 }
 
 /** `ecScale`: the meter's ppm per µS/cm when the grower gave it, for a TDS or an EC meter alike. */
-export type NewWaterCheck = { source: string; checkedOn: Date; ppm: number | null; ec: number | null; ecScale: 0.5 | 0.7 | null; ph: number | null };
+export type NewWaterCheck = {
+  source: string;
+  checkedOn: Date;
+  ppm: number | null;
+  ec: number | null;
+  ecScale: 0.5 | 0.7 | null;
+  ph: number | null;
+};
 
 export async function addWaterCheck(siteId: number, actorId: number, check: NewWaterCheck) {
   return db().transaction(async (tx) => {
-    const [row] = await tx.insert(waterChecks).values({ siteId, byUserId: actorId, ...check }).returning();
+    const [row] = await tx
+      .insert(waterChecks)
+      .values({ siteId, byUserId: actorId, ...check })
+      .returning();
     await tx.insert(auditLog).values({
       siteId,
       actorId,
@@ -42,7 +52,13 @@ export async function addWaterCheck(siteId: number, actorId: number, check: NewW
 
 export async function deleteWaterCheck(siteId: number, actorId: number, checkId: number) {
   await db().transaction(async (tx) => {
-    const [row] = await tx.delete(waterChecks).where(and(eq(waterChecks.id, checkId), eq(waterChecks.siteId, siteId))).returning();
-    if (row) await tx.insert(auditLog).values({ siteId, actorId, action: "water.delete", detail: { checkId, source: row.source } });
+    const [row] = await tx
+      .delete(waterChecks)
+      .where(and(eq(waterChecks.id, checkId), eq(waterChecks.siteId, siteId)))
+      .returning();
+    if (row)
+      await tx
+        .insert(auditLog)
+        .values({ siteId, actorId, action: "water.delete", detail: { checkId, source: row.source } });
   });
 }

@@ -9,7 +9,12 @@ describe("time axis labels in the site's locale (Intl, CLDR en-GB: day before mo
     expect(timeTickLabels(splits, "en-GB", "Europe/London")).toEqual(["1 Jun", "7 Jun", "14 Jun"]);
   });
   it("writes hours on a 48-hour axis, with the date at local midnight, in the site's zone", () => {
-    const splits = [at("2026-06-06T18:00:00Z"), at("2026-06-06T23:00:00Z"), at("2026-06-07T11:00:00Z"), at("2026-06-08T11:00:00Z")];
+    const splits = [
+      at("2026-06-06T18:00:00Z"),
+      at("2026-06-06T23:00:00Z"),
+      at("2026-06-07T11:00:00Z"),
+      at("2026-06-08T11:00:00Z"),
+    ];
     expect(timeTickLabels(splits, "en-GB", "Europe/London")).toEqual(["19:00", "7 Jun", "12:00", "12:00"]);
   });
   it("writes months over a year, the year on the first tick and on January, never milliseconds", () => {
@@ -39,12 +44,19 @@ describe("thin months", () => {
 
 describe("calendar ticks for occasional checks (the water page; Intl, CLDR en-GB)", () => {
   it("puts one tick per month over a few months, never the same month twice ('Jan Jan Feb')", () => {
-    const { splits, labels } = calendarTicks(at("2025-11-18T00:00:00Z"), at("2026-03-02T00:00:00Z"), "en-GB", "Europe/London");
+    const { splits, labels } = calendarTicks(
+      at("2025-11-18T00:00:00Z"),
+      at("2026-03-02T00:00:00Z"),
+      "en-GB",
+      "Europe/London",
+    );
     expect(labels).toEqual(["Dec 2025", "Jan 2026", "Feb", "Mar"]);
     expect(new Set(labels).size).toBe(labels.length);
     // At local midnight on the 1st in the site's zone.
     expect(splits[0]).toBe(at("2025-12-01T00:00:00Z"));
-    expect(calendarTicks(at("2026-03-15T00:00:00Z"), at("2026-06-15T00:00:00Z"), "en-GB", "Europe/Madrid").splits[0]).toBe(at("2026-03-31T22:00:00Z"));
+    expect(
+      calendarTicks(at("2026-03-15T00:00:00Z"), at("2026-06-15T00:00:00Z"), "en-GB", "Europe/Madrid").splits[0],
+    ).toBe(at("2026-03-31T22:00:00Z"));
   });
   it("thins months over years to at most the ticks asked for, on round months", () => {
     const { labels } = calendarTicks(at("2024-01-10T00:00:00Z"), at("2026-01-10T00:00:00Z"), "en-GB", "UTC", 8);

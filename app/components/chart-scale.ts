@@ -33,7 +33,13 @@ export function timeTickLabels(splits: number[], locale: string, timeZone: strin
  * labels for one month ("Jan Jan Feb"). Months read "Jan", with the year on the first tick and on
  * January; days read "7 Jun"; both in the site's locale and time zone. `min`/`max` in epoch seconds.
  */
-export function calendarTicks(min: number, max: number, locale: string, timeZone: string, maxTicks = 8): { splits: number[]; labels: string[] } {
+export function calendarTicks(
+  min: number,
+  max: number,
+  locale: string,
+  timeZone: string,
+  maxTicks = 8,
+): { splits: number[]; labels: string[] } {
   if (!(max >= min)) return { splits: [], labels: [] };
   const at = (opts: Intl.DateTimeFormatOptions) => new Intl.DateTimeFormat(locale, { timeZone, ...opts });
   const lo = new Date(localNaiveMs(min * 1000, timeZone));
@@ -66,7 +72,9 @@ export function calendarTicks(min: number, max: number, locale: string, timeZone
   for (let i = 0; i <= days; i++) {
     // Date.UTC rolls day 32 over into the next month, so walk days on a naive calendar.
     const d = new Date(Date.UTC(first.year, first.month - 1, first.day + i));
-    const s = zonedToUtc({ year: d.getUTCFullYear(), month: d.getUTCMonth() + 1, day: d.getUTCDate() }, timeZone).getTime() / 1000;
+    const s =
+      zonedToUtc({ year: d.getUTCFullYear(), month: d.getUTCMonth() + 1, day: d.getUTCDate() }, timeZone).getTime() /
+      1000;
     if (s > max) break;
     if (s < min || i % step !== 0) continue;
     splits.push(s);

@@ -26,7 +26,13 @@ export type ChartSpec = {
   build: (
     data: Record<string, (number | null)[]>,
     unit: "C" | "F",
-  ) => { data: uPlot.AlignedData; series: uPlot.Series[]; axes?: uPlot.Axis[]; bands?: uPlot.Band[]; scales?: uPlot.Scales };
+  ) => {
+    data: uPlot.AlignedData;
+    series: uPlot.Series[];
+    axes?: uPlot.Axis[];
+    bands?: uPlot.Band[];
+    scales?: uPlot.Scales;
+  };
 };
 
 /** What the series route sends beside the columns: the span asked for (epoch seconds) and how to write its dates. */
@@ -48,7 +54,15 @@ export function useSeries(url: string) {
   return state;
 }
 
-type LegendRow = { label: string; colour: string; dash?: number[]; latest: number | null; low: number | null; high: number | null; format: (v: number | null) => string };
+type LegendRow = {
+  label: string;
+  colour: string;
+  dash?: number[];
+  latest: number | null;
+  low: number | null;
+  high: number | null;
+  format: (v: number | null) => string;
+};
 
 function legendRows(built: ReturnType<ChartSpec["build"]>): LegendRow[] {
   return built.series.flatMap((s, i) => {
@@ -58,7 +72,8 @@ function legendRows(built: ReturnType<ChartSpec["build"]>): LegendRow[] {
     const present = values.filter((v): v is number => v != null && Number.isFinite(v));
     const latest = [...values].reverse().find((v): v is number => v != null) ?? null;
     const valueFn = typeof s.value === "function" ? s.value : null;
-    const format = (v: number | null) => (v == null ? "–" : valueFn ? String(valueFn(undefined as never, v, i + 1, 0)) : v.toFixed(1));
+    const format = (v: number | null) =>
+      v == null ? "–" : valueFn ? String(valueFn(undefined as never, v, i + 1, 0)) : v.toFixed(1);
     return [
       {
         label: String(s.label),
@@ -111,7 +126,10 @@ export function Chart({
       const started = performance.now();
       const timeAxis = built.scales?.x?.time !== false;
       // A fixed span (48 hours, a year) from the route, so a few minutes of data still sit on the right scale.
-      const xRange = timeAxis && typeof meta.from === "number" && typeof meta.to === "number" ? ([meta.from, meta.to] as [number, number]) : undefined;
+      const xRange =
+        timeAxis && typeof meta.from === "number" && typeof meta.to === "number"
+          ? ([meta.from, meta.to] as [number, number])
+          : undefined;
       const axisStyle = { stroke: "#4a5767", grid: { stroke: "#d4dcdb" }, ticks: { stroke: "#d4dcdb" } };
       const axes = built.axes ?? [axisStyle, { ...axisStyle, label: `°${spec.unit}`, size: 50 }];
       const el = ref.current;
@@ -120,7 +138,8 @@ export function Chart({
         axes[0] = {
           ...axes[0],
           // About one label per 80 px, so "Jul 2026" never runs into "Aug" on a phone.
-          splits: (u, _i, min, max) => (ticks = calendarTicks(min, max, loc, tz, Math.max(2, Math.floor(u.width / 80)))).splits,
+          splits: (u, _i, min, max) =>
+            (ticks = calendarTicks(min, max, loc, tz, Math.max(2, Math.floor(u.width / 80)))).splits,
           values: (_u, splits) => {
             const labels = splits.map((s) => ticks.labels[ticks.splits.indexOf(s)] ?? "");
             el.dataset.xTicks = labels.join("|");
@@ -137,7 +156,14 @@ export function Chart({
             return labels;
           },
         };
-      const dayFormat = new Intl.DateTimeFormat(loc, { timeZone: tz, day: "numeric", month: "short", hour: "2-digit", minute: "2-digit", hourCycle: "h23" });
+      const dayFormat = new Intl.DateTimeFormat(loc, {
+        timeZone: tz,
+        day: "numeric",
+        month: "short",
+        hour: "2-digit",
+        minute: "2-digit",
+        hourCycle: "h23",
+      });
       plot = new UPlot(
         {
           width,
@@ -193,7 +219,15 @@ export function Chart({
               <div key={r.label} className="flex flex-wrap items-baseline gap-x-2">
                 <dt className="flex items-baseline gap-1.5">
                   <svg width="22" height="8" aria-hidden="true" className="self-center">
-                    <line x1="1" x2="21" y1="4" y2="4" stroke={r.colour} strokeWidth="3" strokeDasharray={r.dash?.join(" ")} />
+                    <line
+                      x1="1"
+                      x2="21"
+                      y1="4"
+                      y2="4"
+                      stroke={r.colour}
+                      strokeWidth="3"
+                      strokeDasharray={r.dash?.join(" ")}
+                    />
                   </svg>
                   <span>{r.label}</span>
                 </dt>
@@ -204,7 +238,9 @@ export function Chart({
                   <>
                     <dd className="font-semibold tabular-nums">
                       {r.format(here)}
-                      <span className="ml-1 text-xs font-normal text-muted">{cursor ? `at ${cursor.label}` : "latest"}</span>
+                      <span className="ml-1 text-xs font-normal text-muted">
+                        {cursor ? `at ${cursor.label}` : "latest"}
+                      </span>
                     </dd>
                     <dd className="w-full pl-7 text-xs text-muted tabular-nums sm:w-auto sm:pl-0">
                       {r.format(r.low)} to {r.format(r.high)} in the span shown

@@ -7,15 +7,53 @@ import { SpotsAndSeasons } from "~/components/illustration";
 import { formatDelta, formatTemp, type TempUnit } from "~/domain/units";
 
 const MONTHS = ["Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"];
-const MONTH_NAMES = ["January", "February", "March", "April", "May", "June", "July", "August", "September", "October", "November", "December"];
+const MONTH_NAMES = [
+  "January",
+  "February",
+  "March",
+  "April",
+  "May",
+  "June",
+  "July",
+  "August",
+  "September",
+  "October",
+  "November",
+  "December",
+];
 
 export type DayOneView = {
   measuredMonths: number;
   daysWithReadings: number;
   weather: "ready" | "not-fetched";
-  climate: { years: number; firstYear: number; lastYear: number; months: { month: number; meanDailyLowC: number; meanDailyHighC: number; coldestLowC: number; warmestHighC: number }[] } | null;
-  versus: { days: number; from: string; to: string; nightAboveC: number | null; dayAboveC: number | null; nightSpotC: number | null; nightOutC: number | null; daySpotC: number | null; dayOutC: number | null } | null;
-  model: { state: "fitted"; days: number; errorC: number | null; years: number; firmBy: string | null } | { state: "waiting"; expected: string | null } | { state: "no-weather" } | { state: "no-past-years" };
+  climate: {
+    years: number;
+    firstYear: number;
+    lastYear: number;
+    months: {
+      month: number;
+      meanDailyLowC: number;
+      meanDailyHighC: number;
+      coldestLowC: number;
+      warmestHighC: number;
+    }[];
+  } | null;
+  versus: {
+    days: number;
+    from: string;
+    to: string;
+    nightAboveC: number | null;
+    dayAboveC: number | null;
+    nightSpotC: number | null;
+    nightOutC: number | null;
+    daySpotC: number | null;
+    dayOutC: number | null;
+  } | null;
+  model:
+    | { state: "fitted"; days: number; errorC: number | null; years: number; firmBy: string | null }
+    | { state: "waiting"; expected: string | null }
+    | { state: "no-weather" }
+    | { state: "no-past-years" };
   /** Likely verdicts (resting on projected months), best first, with the basis of the first. */
   likely: { verdict: string; names: string[] }[];
   basis: string | null;
@@ -56,15 +94,23 @@ export function DayOne({ view, sun, unit }: { view: DayOneView; sun: DirectSunEs
 
       <p className="text-base" data-testid="day-one-model">
         {view.daysWithReadings === 0 ? (
-          <>No readings here yet. Once a sensor has been here about a week, Nichewise learns how this spot follows the outdoor weather and gives likely verdicts for every month.</>
+          <>
+            No readings here yet. Once a sensor has been here about a week, Nichewise learns how this spot follows the
+            outdoor weather and gives likely verdicts for every month.
+          </>
         ) : model.state === "fitted" ? (
           <>
-            From its latest {model.days} {model.days === 1 ? "day" : "days"} of readings beside the outdoor weather, Nichewise has learned how this spot follows it
-            {model.errorC !== null ? ` (daily lows and highs off by about ${formatDelta(model.errorC, unit)} on days it was not fitted on)` : ""} and projects the months not yet measured
-            through {model.years} past {model.years === 1 ? "year" : "years"} of weather.{" "}
+            From its latest {model.days} {model.days === 1 ? "day" : "days"} of readings beside the outdoor weather,
+            Nichewise has learned how this spot follows it
+            {model.errorC !== null
+              ? ` (daily lows and highs off by about ${formatDelta(model.errorC, unit)} on days it was not fitted on)`
+              : ""}{" "}
+            and projects the months not yet measured through {model.years} past {model.years === 1 ? "year" : "years"}{" "}
+            of weather.{" "}
             {model.firmBy ? (
               <>
-                First firm answer: <strong data-testid="day-one-firm-by">{model.firmBy}</strong>, once every month has been measured.
+                First firm answer: <strong data-testid="day-one-firm-by">{model.firmBy}</strong>, once every month has
+                been measured.
               </>
             ) : null}
           </>
@@ -78,12 +124,19 @@ export function DayOne({ view, sun, unit }: { view: DayOneView; sun: DirectSunEs
             ) : (
               "after about a week"
             )}
-            , once a few whole days of readings line up with the outdoor weather. A firm answer needs every month measured: about a year.
+            , once a few whole days of readings line up with the outdoor weather. A firm answer needs every month
+            measured: about a year.
           </>
         ) : model.state === "no-weather" ? (
-          <>Outdoor weather not fetched yet: projections of the months not yet measured follow once it is. A firm answer needs every month measured: about a year.</>
+          <>
+            Outdoor weather not fetched yet: projections of the months not yet measured follow once it is. A firm answer
+            needs every month measured: about a year.
+          </>
         ) : (
-          <>The outdoor weather of past years is not stored yet, so the months not yet measured cannot be projected. A firm answer needs every month measured: about a year.</>
+          <>
+            The outdoor weather of past years is not stored yet, so the months not yet measured cannot be projected. A
+            firm answer needs every month measured: about a year.
+          </>
         )}
       </p>
 
@@ -92,7 +145,8 @@ export function DayOne({ view, sun, unit }: { view: DayOneView; sun: DirectSunEs
           <ul className="space-y-0.5">
             {view.likely.map((l) => (
               <li key={l.verdict}>
-                <span className="font-semibold">{LIKELY_LABEL[l.verdict] ?? `Likely ${l.verdict}`}:</span> {list(l.names)}
+                <span className="font-semibold">{LIKELY_LABEL[l.verdict] ?? `Likely ${l.verdict}`}:</span>{" "}
+                {list(l.names)}
               </li>
             ))}
           </ul>
@@ -106,13 +160,15 @@ export function DayOne({ view, sun, unit }: { view: DayOneView; sun: DirectSunEs
           {versus.from !== versus.to ? `–${versus.to}` : ""}):{" "}
           {versus.nightAboveC !== null ? (
             <>
-              nights here ran <strong>{aboveWords(versus.nightAboveC, unit)}</strong> outdoors ({formatTemp(versus.nightSpotC, unit)} against {formatTemp(versus.nightOutC, unit)})
+              nights here ran <strong>{aboveWords(versus.nightAboveC, unit)}</strong> outdoors (
+              {formatTemp(versus.nightSpotC, unit)} against {formatTemp(versus.nightOutC, unit)})
             </>
           ) : null}
           {versus.nightAboveC !== null && versus.dayAboveC !== null ? ", " : ""}
           {versus.dayAboveC !== null ? (
             <>
-              afternoons <strong>{aboveWords(versus.dayAboveC, unit)}</strong> ({formatTemp(versus.daySpotC, unit)} against {formatTemp(versus.dayOutC, unit)})
+              afternoons <strong>{aboveWords(versus.dayAboveC, unit)}</strong> ({formatTemp(versus.daySpotC, unit)}{" "}
+              against {formatTemp(versus.dayOutC, unit)})
             </>
           ) : null}
           .
@@ -122,29 +178,35 @@ export function DayOne({ view, sun, unit }: { view: DayOneView; sun: DirectSunEs
       <p data-testid="day-one-climate">
         {climate && coldest && warmest ? (
           <>
-            Outdoors here ({climate.years} past {climate.years === 1 ? "year" : "years"}, {climate.firstYear}–{climate.lastYear}): nights average{" "}
-            {formatTemp(coldest.meanDailyLowC, unit)} in {MONTH_NAMES[coldest.month - 1]}
-            {coldest.coldestLowC < coldest.meanDailyLowC - 0.2 ? ` (the coldest year ${formatTemp(coldest.coldestLowC, unit)})` : ""}, days{" "}
-            {formatTemp(warmest.meanDailyHighC, unit)} in {MONTH_NAMES[warmest.month - 1]}.{" "}
+            Outdoors here ({climate.years} past {climate.years === 1 ? "year" : "years"}, {climate.firstYear}–
+            {climate.lastYear}): nights average {formatTemp(coldest.meanDailyLowC, unit)} in{" "}
+            {MONTH_NAMES[coldest.month - 1]}
+            {coldest.coldestLowC < coldest.meanDailyLowC - 0.2
+              ? ` (the coldest year ${formatTemp(coldest.coldestLowC, unit)})`
+              : ""}
+            , days {formatTemp(warmest.meanDailyHighC, unit)} in {MONTH_NAMES[warmest.month - 1]}.{" "}
           </>
         ) : view.weather === "not-fetched" ? (
           <>Outdoor weather not fetched yet. </>
         ) : null}
-        {sun.months ? (
-          sunny.length === 12 ? (
-            "Direct sun through the window every month."
-          ) : sunny.length === 0 ? (
-            "No direct sun through the window in any month."
-          ) : (
-            `Direct sun through the window in ${sunny.length} months (${sunny.join(", ")}).`
-          )
-        ) : null}
+        {sun.months
+          ? sunny.length === 12
+            ? "Direct sun through the window every month."
+            : sunny.length === 0
+              ? "No direct sun through the window in any month."
+              : `Direct sun through the window in ${sunny.length} months (${sunny.join(", ")}).`
+          : null}
       </p>
 
       {climate || sun.months ? (
         <details className="fold" data-testid="day-one-months">
           <summary>Month by month: outdoors and direct sun</summary>
-          <div className="-mx-5 overflow-x-auto px-5" tabIndex={0} role="region" aria-label="Outdoor climate and direct sun by month">
+          <div
+            className="-mx-5 overflow-x-auto px-5"
+            tabIndex={0}
+            role="region"
+            aria-label="Outdoor climate and direct sun by month"
+          >
             <table className="table mt-2 tabular-nums">
               <thead>
                 <tr>
@@ -160,7 +222,13 @@ export function DayOne({ view, sun, unit }: { view: DayOneView; sun: DirectSunEs
                   return (
                     <tr key={name}>
                       <td>{name}</td>
-                      {climate ? <td>{c ? `${formatTemp(c.meanDailyLowC, unit, 0)} / ${formatTemp(c.meanDailyHighC, unit, 0)}` : "–"}</td> : null}
+                      {climate ? (
+                        <td>
+                          {c
+                            ? `${formatTemp(c.meanDailyLowC, unit, 0)} / ${formatTemp(c.meanDailyHighC, unit, 0)}`
+                            : "–"}
+                        </td>
+                      ) : null}
                       {sun.months ? <td>{s?.getsDirectSun ? `${Math.round(s.hours * 2) / 2} h` : "none"}</td> : null}
                     </tr>
                   );
@@ -172,7 +240,8 @@ export function DayOne({ view, sun, unit }: { view: DayOneView; sun: DirectSunEs
       ) : null}
 
       <p className="text-xs text-muted" data-testid="day-one-caution">
-        Projected months are estimates from past weather: a colder or warmer year than usual will differ, and each month measured replaces its projection.
+        Projected months are estimates from past weather: a colder or warmer year than usual will differ, and each month
+        measured replaces its projection.
       </p>
     </section>
   );

@@ -21,7 +21,9 @@ export function DirectSun({ estimate, hasLightSensor }: { estimate: DirectSunEst
       {estimate.months ? <SunBars months={estimate.months} /> : null}
       <p className="text-sm">{estimate.explanation}</p>
       {hasLightSensor ? (
-        <p className="text-sm text-muted">This spot has a light sensor, so the fits judge its measured daily light; this estimate only explains it.</p>
+        <p className="text-sm text-muted">
+          This spot has a light sensor, so the fits judge its measured daily light; this estimate only explains it.
+        </p>
       ) : null}
       {estimate.months ? (
         <details className="text-sm">
@@ -75,7 +77,13 @@ function SunBars({ months }: { months: SunMonth[] }) {
     ".";
   return (
     <figure>
-      <svg viewBox={`0 0 ${W} ${H}`} className="h-auto w-full max-w-xl" role="img" aria-label={label} data-testid="direct-sun-bars">
+      <svg
+        viewBox={`0 0 ${W} ${H}`}
+        className="h-auto w-full max-w-xl"
+        role="img"
+        aria-label={label}
+        data-testid="direct-sun-bars"
+      >
         {ticks.map((t) => (
           <g key={t}>
             <line x1={left} x2={W - 4} y1={y(t)} y2={y(t)} stroke="#d4dcdb" />
@@ -89,8 +97,19 @@ function SunBars({ months }: { months: SunMonth[] }) {
           const h = m.getsDirectSun ? m.hours : 0;
           return (
             <g key={m.month}>
-              {h > 0 ? <rect x={x + colW * 0.18} width={colW * 0.64} y={y(h)} height={y(0) - y(h)} rx="2" fill="#b7791f" /> : null}
-              {h === 0 ? <line x1={x + colW * 0.3} x2={x + colW * 0.7} y1={y(0) - 1} y2={y(0) - 1} stroke="#4a5767" strokeWidth="2" /> : null}
+              {h > 0 ? (
+                <rect x={x + colW * 0.18} width={colW * 0.64} y={y(h)} height={y(0) - y(h)} rx="2" fill="#b7791f" />
+              ) : null}
+              {h === 0 ? (
+                <line
+                  x1={x + colW * 0.3}
+                  x2={x + colW * 0.7}
+                  y1={y(0) - 1}
+                  y2={y(0) - 1}
+                  stroke="#4a5767"
+                  strokeWidth="2"
+                />
+              ) : null}
               <text x={x + colW / 2} y={H - 6} textAnchor="middle" fontSize="10" fill="#182338">
                 {MONTHS[m.month - 1]}
               </text>

@@ -27,7 +27,11 @@ export function TextField({
       <label htmlFor={meta.id} className="label">
         {label}
       </label>
-      <input className="field" {...getInputProps(meta, { type, ariaDescribedBy: hint ? `${meta.id}-hint` : undefined })} {...rest} />
+      <input
+        className="field"
+        {...getInputProps(meta, { type, ariaDescribedBy: hint ? `${meta.id}-hint` : undefined })}
+        {...rest}
+      />
       {hint ? (
         <p id={`${meta.id}-hint`} className="hint">
           {hint}
@@ -82,7 +86,10 @@ export function TextAreaField({ meta, label, hint }: { meta: Meta; label: string
 
 export function FormErrors({ errors }: { errors?: string[] }) {
   return errors?.length ? (
-    <div role="alert" className="rounded-[0.2rem] border border-l-4 border-poor/30 border-l-poor bg-card px-3 py-2 text-sm font-medium text-poor">
+    <div
+      role="alert"
+      className="rounded-[0.2rem] border border-l-4 border-poor/30 border-l-poor bg-card px-3 py-2 text-sm font-medium text-poor"
+    >
       {errors.join(" ")}
     </div>
   ) : null;

@@ -12,7 +12,17 @@ const listNames = (names: string[], max = 4) => {
 
 /** "Suits: …; possible with care: …; not here: …" — the spot's answer in one paragraph. */
 /** `pastPeriod`: the grower chose twelve months other than the latest with readings. */
-export function VerdictSummary({ fits, period, days, pastPeriod = false }: { fits: FitRow[]; period: string; days: number; pastPeriod?: boolean }) {
+export function VerdictSummary({
+  fits,
+  period,
+  days,
+  pastPeriod = false,
+}: {
+  fits: FitRow[];
+  period: string;
+  days: number;
+  pastPeriod?: boolean;
+}) {
   const by = (v: string) => fits.filter((f) => f.verdict === v).map((f) => f.name);
   const parts: { verdict: VerdictName; label: string; names: string[] }[] = [
     { verdict: "thrives here", label: "Suits", names: by("thrives here") },
@@ -28,20 +38,28 @@ export function VerdictSummary({ fits, period, days, pastPeriod = false }: { fit
   };
   const shown = parts
     .filter((p) => p.names.length > 0)
-    .map((p) => (p.verdict !== "not enough data yet" && projected(p.verdict) ? { ...p, label: `Likely ${p.label.toLowerCase()}` } : p));
+    .map((p) =>
+      p.verdict !== "not enough data yet" && projected(p.verdict)
+        ? { ...p, label: `Likely ${p.label.toLowerCase()}` }
+        : p,
+    );
   const allUnknown = fits.length > 0 && shown.length === 1 && shown[0].verdict === "not enough data yet";
   if (days === 0)
     return (
       <div className="space-y-2" data-testid="verdict-summary">
         {pastPeriod ? (
           <>
-            <p className="text-lg">No readings here in the twelve months chosen: pick a period with readings under the year strip.</p>
+            <p className="text-lg">
+              No readings here in the twelve months chosen: pick a period with readings under the year strip.
+            </p>
             <p className="text-sm text-muted" data-testid="judged-period">
               Judged on {period}.
             </p>
           </>
         ) : (
-          <p className="text-lg">No readings here yet: place a sensor, and the first verdicts follow as the months fill in.</p>
+          <p className="text-lg">
+            No readings here yet: place a sensor, and the first verdicts follow as the months fill in.
+          </p>
         )}
       </div>
     );
@@ -49,7 +67,8 @@ export function VerdictSummary({ fits, period, days, pastPeriod = false }: { fit
     <div className="space-y-2" data-testid="verdict-summary">
       {allUnknown ? (
         <p className="text-lg">
-          {days} {days === 1 ? "day" : "days"} of readings so far: too few to judge a year. Nothing here rules these groups out yet.
+          {days} {days === 1 ? "day" : "days"} of readings so far: too few to judge a year. Nothing here rules these
+          groups out yet.
         </p>
       ) : null}
       <ul className="space-y-1.5">
@@ -57,7 +76,9 @@ export function VerdictSummary({ fits, period, days, pastPeriod = false }: { fit
           <li key={p.verdict} className="flex items-start gap-2">
             <VerdictMark verdict={p.verdict} size={18} />
             <p>
-              <span className={`font-semibold ${p.verdict === "struggles here" ? "text-v-struggles" : ""}`}>{p.label}:</span>{" "}
+              <span className={`font-semibold ${p.verdict === "struggles here" ? "text-v-struggles" : ""}`}>
+                {p.label}:
+              </span>{" "}
               {p.verdict === "struggles here" || (p.verdict === "not enough data yet" && allUnknown) ? (
                 <span>
                   {p.names.length} {p.names.length === 1 ? "group" : "groups"}
@@ -78,7 +99,17 @@ export function VerdictSummary({ fits, period, days, pastPeriod = false }: { fit
 }
 
 /** The top few in full, the rest by verdict and shared first reason, with every group a "show all" away. */
-export function GroupedFits({ fits, top = 3, unit, siteId }: { fits: FitRow[]; top?: number; unit: "C" | "F"; siteId: number }) {
+export function GroupedFits({
+  fits,
+  top = 3,
+  unit,
+  siteId,
+}: {
+  fits: FitRow[];
+  top?: number;
+  unit: "C" | "F";
+  siteId: number;
+}) {
   const rest = groupFits(fits, top);
   return (
     <div data-testid="fit-list">

@@ -13,12 +13,26 @@ export function SpotsAndSeasons({ className, title }: { className?: string; titl
     <svg viewBox="0 0 320 158" className={className} {...named} data-testid="spots-and-seasons">
       {title ? <title>{title}</title> : null}
       {/* the year: twelve suns, their height the noon sun's in each month */}
-      <path d="M22 48C80 48 110 12 160 12S240 48 298 48" fill="none" stroke="var(--color-stone-line)" strokeDasharray="2 3" />
+      <path
+        d="M22 48C80 48 110 12 160 12S240 48 298 48"
+        fill="none"
+        stroke="var(--color-stone-line)"
+        strokeDasharray="2 3"
+      />
       {SUN_HEIGHT.map((h, i) => {
         const x = 30 + i * (260 / 11);
         const y = 46 - h * 34;
         const summer = h > 0.5;
-        return <circle key={i} cx={x} cy={y} r={summer ? 4 + h * 2 : 3.2} fill={summer ? "var(--color-day)" : h > 0.2 ? "var(--color-dawn)" : "var(--color-dusk)"} opacity={summer ? 1 : 0.85} />;
+        return (
+          <circle
+            key={i}
+            cx={x}
+            cy={y}
+            r={summer ? 4 + h * 2 : 3.2}
+            fill={summer ? "var(--color-day)" : h > 0.2 ? "var(--color-dawn)" : "var(--color-dusk)"}
+            opacity={summer ? 1 : 0.85}
+          />
+        );
       })}
       {/* the wall */}
       <rect x="8" y="62" width="304" height="80" fill="var(--color-stone)" />
@@ -62,7 +76,12 @@ export function SpotsAndSeasons({ className, title }: { className?: string; titl
         <circle key={`${x}-${y}`} cx={x} cy={y} r="1" fill="var(--color-card)" />
       ))}
       <path d="M248 130l2 -9h12l2 9z" fill="var(--color-card)" stroke="var(--color-card)" strokeWidth="0.8" />
-      <path d="M256 121c-6-2-10-8-8-15 5 2 8 7 8 15zM256 121c5-3 8-8 6-13-4 2-6 7-6 13z" fill="var(--color-leaf)" stroke="var(--color-card)" strokeWidth="0.5" />
+      <path
+        d="M256 121c-6-2-10-8-8-15 5 2 8 7 8 15zM256 121c5-3 8-8 6-13-4 2-6 7-6 13z"
+        fill="var(--color-leaf)"
+        stroke="var(--color-card)"
+        strokeWidth="0.5"
+      />
       <path d="M280 112c2 2.2 3 3.8 3 5.3a3 3 0 0 1-6 0c0-1.5 1-3.1 3-5.3z" fill="var(--color-day)" />
       <path d="M276 124h8" stroke="var(--color-day)" strokeWidth="1.6" strokeLinecap="round" />
       <path d="M214 130h80v5h-80z" fill="var(--color-card)" stroke="var(--color-night)" strokeWidth="1.4" />

@@ -8,7 +8,14 @@ import { VerdictBadge } from "~/components/season";
 import { PlantIcon } from "~/components/icons";
 import { formatTemp, type TempUnit } from "~/domain/units";
 
-export type StandingPlant = { id: number; plantKey: string; plantName: string; nickname: string; pots: number; verdict: string | null };
+export type StandingPlant = {
+  id: number;
+  plantKey: string;
+  plantName: string;
+  nickname: string;
+  pots: number;
+  verdict: string | null;
+};
 
 export function Inventory({
   standing,
@@ -52,8 +59,12 @@ export function Inventory({
           Plants here now
         </h3>
         <p className="text-sm text-muted">
-          {standing.length === 0 ? "Nothing recorded in this spot yet." : `${pots} ${pots === 1 ? "pot" : "pots"}${capacity ? ` of room for ${capacity}` : ""}.`}
-          {tender ? ` Most tender: ${tender.name}, which wants nights of ${formatTemp(tender.minNightC, unit, 0)} or more — cold alerts for this spot start from it.` : ""}
+          {standing.length === 0
+            ? "Nothing recorded in this spot yet."
+            : `${pots} ${pots === 1 ? "pot" : "pots"}${capacity ? ` of room for ${capacity}` : ""}.`}
+          {tender
+            ? ` Most tender: ${tender.name}, which wants nights of ${formatTemp(tender.minNightC, unit, 0)} or more — cold alerts for this spot start from it.`
+            : ""}
         </p>
       </div>
       {standing.length > 0 ? (
@@ -95,7 +106,11 @@ export function Inventory({
                   <Form method="post">
                     <input type="hidden" name="intent" value="plant-remove" />
                     <input type="hidden" name="id" value={p.id} />
-                    <button className="btn-quiet py-1 text-sm" disabled={busy} aria-label={`Remove ${p.nickname || p.plantName} from this spot`}>
+                    <button
+                      className="btn-quiet py-1 text-sm"
+                      disabled={busy}
+                      aria-label={`Remove ${p.nickname || p.plantName} from this spot`}
+                    >
                       Remove
                     </button>
                   </Form>
@@ -107,48 +122,57 @@ export function Inventory({
       ) : null}
       {canEdit ? (
         <details open={Boolean(error || lastResult)} className="group">
-        <summary className="btn-quiet cursor-pointer list-none">Add a plant here</summary>
-        <Form method="post" className="mt-3 grid gap-3 sm:grid-cols-[2fr_2fr_1fr_auto] sm:items-end" {...getFormProps(addForm)}>
-          <input type="hidden" name="intent" value="plant-add" />
-          <div>
-            <label className="label" htmlFor={addFields.plantKey.id}>
-              Plant
-            </label>
-            <select className="field" {...getSelectProps(addFields.plantKey)}>
-              {plants.map((p) => (
-                <option key={p.key} value={p.key}>
-                  {p.name}
-                </option>
-              ))}
-            </select>
-          </div>
-          <div>
-            <label className="label" htmlFor={addFields.nickname.id}>
-              Its name (optional)
-            </label>
-            <input className="field" maxLength={60} placeholder="e.g. the pink one from the fair" {...getInputProps(addFields.nickname, { type: "text" })} />
-          </div>
-          <div>
-            <label className="label" htmlFor={addFields.pots.id}>
-              Pots
-            </label>
-            <input min={1} max={100} className="field" {...getInputProps(addFields.pots, { type: "number" })} />
-          </div>
-          <button className="btn" disabled={busy}>
-            Add here
-          </button>
-          <div className="sm:col-span-4">
-            <FieldError meta={addFields.plantKey} />
-            <FieldError meta={addFields.nickname} />
-            <FieldError meta={addFields.pots} />
-            <FormErrors errors={addForm.errors} />
-            {error ? (
-              <p className="error" role="alert">
-                {error}
-              </p>
-            ) : null}
-          </div>
-        </Form>
+          <summary className="btn-quiet cursor-pointer list-none">Add a plant here</summary>
+          <Form
+            method="post"
+            className="mt-3 grid gap-3 sm:grid-cols-[2fr_2fr_1fr_auto] sm:items-end"
+            {...getFormProps(addForm)}
+          >
+            <input type="hidden" name="intent" value="plant-add" />
+            <div>
+              <label className="label" htmlFor={addFields.plantKey.id}>
+                Plant
+              </label>
+              <select className="field" {...getSelectProps(addFields.plantKey)}>
+                {plants.map((p) => (
+                  <option key={p.key} value={p.key}>
+                    {p.name}
+                  </option>
+                ))}
+              </select>
+            </div>
+            <div>
+              <label className="label" htmlFor={addFields.nickname.id}>
+                Its name (optional)
+              </label>
+              <input
+                className="field"
+                maxLength={60}
+                placeholder="e.g. the pink one from the fair"
+                {...getInputProps(addFields.nickname, { type: "text" })}
+              />
+            </div>
+            <div>
+              <label className="label" htmlFor={addFields.pots.id}>
+                Pots
+              </label>
+              <input min={1} max={100} className="field" {...getInputProps(addFields.pots, { type: "number" })} />
+            </div>
+            <button className="btn" disabled={busy}>
+              Add here
+            </button>
+            <div className="sm:col-span-4">
+              <FieldError meta={addFields.plantKey} />
+              <FieldError meta={addFields.nickname} />
+              <FieldError meta={addFields.pots} />
+              <FormErrors errors={addForm.errors} />
+              {error ? (
+                <p className="error" role="alert">
+                  {error}
+                </p>
+              ) : null}
+            </div>
+          </Form>
         </details>
       ) : null}
     </section>

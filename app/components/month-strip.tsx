@@ -17,10 +17,24 @@ function Cell({ cell, x }: { cell: StripCell; x: number }) {
   const fillOpacity = cell.projected ? 0.45 : 1;
   return (
     <g transform={`translate(${x} 0)`} color={c} data-state={cell.state} data-projected={cell.projected || undefined}>
-      <path d={NICHE} fill="none" stroke={c} strokeWidth="1.3" strokeDasharray={cell.projected || cell.state === "unmeasured" ? "2 1.6" : undefined} />
+      <path
+        d={NICHE}
+        fill="none"
+        stroke={c}
+        strokeWidth="1.3"
+        strokeDasharray={cell.projected || cell.state === "unmeasured" ? "2 1.6" : undefined}
+      />
       {cell.state === "pass" ? <path d={NICHE} fill={c} fillOpacity={fillOpacity} /> : null}
       {cell.state === "care" ? <path d="M2 15v-5h12v5z" fill={c} fillOpacity={fillOpacity} /> : null}
-      {cell.state === "fail" ? <path d="M4.5 6l7 7M11.5 6l-7 7" stroke={c} strokeWidth="1.7" strokeLinecap="round" opacity={cell.projected ? 0.7 : 1} /> : null}
+      {cell.state === "fail" ? (
+        <path
+          d="M4.5 6l7 7M11.5 6l-7 7"
+          stroke={c}
+          strokeWidth="1.7"
+          strokeLinecap="round"
+          opacity={cell.projected ? 0.7 : 1}
+        />
+      ) : null}
       {cell.state === "unmeasured" ? <circle cx="8" cy="10.5" r="1.2" fill={c} /> : null}
       <text x="8" y="27.5" textAnchor="middle" fontSize="9" fill="var(--color-muted)">
         {MONTH_SHORT[cell.month - 1].slice(0, 1)}
@@ -62,7 +76,11 @@ export function MonthStripKey() {
     [{ month: 1, state: "pass", projected: true }, "dashed: projected"],
   ];
   return (
-    <ul className="flex flex-wrap gap-x-3 gap-y-1 text-xs text-muted" aria-label="What a reason's month strip shows" data-testid="month-strip-key">
+    <ul
+      className="flex flex-wrap gap-x-3 gap-y-1 text-xs text-muted"
+      aria-label="What a reason's month strip shows"
+      data-testid="month-strip-key"
+    >
       {sample.map(([c, words]) => (
         <li key={words} className="inline-flex items-center gap-1">
           <svg viewBox="0 0 16 17" width="12" height="13" aria-hidden="true">

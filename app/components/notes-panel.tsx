@@ -73,7 +73,11 @@ export function NotesPanel({
       {canWrite ? (
         <add.Form method="post" action={action} className="space-y-2" ref={formRef}>
           <input type="hidden" name="intent" value="add" />
-          {"spotId" in target ? <input type="hidden" name="spotId" value={target.spotId} /> : <input type="hidden" name="plantKey" value={target.plantKey} />}
+          {"spotId" in target ? (
+            <input type="hidden" name="spotId" value={target.spotId} />
+          ) : (
+            <input type="hidden" name="plantKey" value={target.plantKey} />
+          )}
           <label className="label" htmlFor="note-body">
             Leave a note on {about}
           </label>
@@ -101,16 +105,29 @@ export function NotesPanel({
   );
 }
 
-function NoteItem({ note, action, canResolve, timeZone }: { note: PanelNote; action: string; canResolve: boolean; timeZone: string }) {
+function NoteItem({
+  note,
+  action,
+  canResolve,
+  timeZone,
+}: {
+  note: PanelNote;
+  action: string;
+  canResolve: boolean;
+  timeZone: string;
+}) {
   const f = useFetcher<{ error?: string }>();
   const resolved = note.resolvedAt != null;
   const day = (d: Date | string) => formatInZone(d, timeZone, { hour: undefined, minute: undefined });
   return (
-    <li className={`rounded-t-[1rem] rounded-b-[0.2rem] border border-b-[3px] border-stone-line p-3 ${resolved ? "bg-paper text-muted" : "bg-white"}`}>
+    <li
+      className={`rounded-t-[1rem] rounded-b-[0.2rem] border border-b-[3px] border-stone-line p-3 ${resolved ? "bg-paper text-muted" : "bg-white"}`}
+    >
       <p className="text-sm whitespace-pre-line">{note.body}</p>
       <div className="mt-2 flex flex-wrap items-center justify-between gap-2 text-xs text-muted">
         <p>
-          <span className="font-medium text-ink">{note.authorName}</span> · <time dateTime={new Date(note.createdAt).toISOString()}>{day(note.createdAt)}</time>
+          <span className="font-medium text-ink">{note.authorName}</span> ·{" "}
+          <time dateTime={new Date(note.createdAt).toISOString()}>{day(note.createdAt)}</time>
           {resolved ? ` · ✓ resolved ${day(note.resolvedAt!)}` : ""}
         </p>
         {canResolve ? (

@@ -5,10 +5,12 @@ export type PeriodView = { firstMonth: string; lastMonth: string; toToday: boole
 
 const monthFormat = new Intl.DateTimeFormat("en-GB", { month: "short", year: "numeric", timeZone: "UTC" });
 /** "2025-01" → "Jan 2025". */
-export const monthLabel = (key: string) => monthFormat.format(new Date(Date.UTC(Number(key.slice(0, 4)), Number(key.slice(5, 7)) - 1, 15)));
+export const monthLabel = (key: string) =>
+  monthFormat.format(new Date(Date.UTC(Number(key.slice(0, 4)), Number(key.slice(5, 7)) - 1, 15)));
 
 /** "Jan 2025 – Dec 2025", or "Dec 2025 – today" for a period that runs to today. */
-export const periodLabel = (p: PeriodView) => `${monthLabel(p.firstMonth)} – ${p.toToday ? "today" : monthLabel(p.lastMonth)}`;
+export const periodLabel = (p: PeriodView) =>
+  `${monthLabel(p.firstMonth)} – ${p.toToday ? "today" : monthLabel(p.lastMonth)}`;
 
 export function PeriodPicker({
   chosen,
@@ -28,7 +30,14 @@ export function PeriodPicker({
     <Form method="get" className="flex flex-wrap items-center gap-2 text-sm" data-testid="period-picker">
       {Object.entries(keep ?? {}).map(([k, v]) => (v ? <input key={k} type="hidden" name={k} value={v} /> : null))}
       <label htmlFor="period">Judge on:</label>
-      <select key={chosen} id="period" name="period" className="field w-auto max-w-full" defaultValue={chosen} onChange={(e) => e.currentTarget.form?.requestSubmit()}>
+      <select
+        key={chosen}
+        id="period"
+        name="period"
+        className="field w-auto max-w-full"
+        defaultValue={chosen}
+        onChange={(e) => e.currentTarget.form?.requestSubmit()}
+      >
         <option value="latest">the latest 12 months with readings</option>
         {months.map((m) => (
           <option key={m} value={m}>

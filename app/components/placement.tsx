@@ -7,14 +7,31 @@ export function PlacingTips() {
   return (
     <ul className="list-disc space-y-1 pl-5 text-sm text-muted">
       <li>Put it at plant height, where the leaves will be — not on the floor or up by the ceiling.</li>
-      <li>Keep direct sun off the sensor itself (a sunlit case reads several degrees too warm); shade it with a card if needed.</li>
-      <li>Don't let it touch the glass or a wall: a finger's width of air keeps it reading the air, not the surface.</li>
+      <li>
+        Keep direct sun off the sensor itself (a sunlit case reads several degrees too warm); shade it with a card if
+        needed.
+      </li>
+      <li>
+        Don't let it touch the glass or a wall: a finger's width of air keeps it reading the air, not the surface.
+      </li>
     </ul>
   );
 }
 
 /** A required choice of spot or sensor that starts unchosen. */
-function ChoiceSelect({ id, name, choices, placeholder = "Choose…", className = "field" }: { id: string; name: string; choices: { id: number; name: string }[]; placeholder?: string; className?: string }) {
+function ChoiceSelect({
+  id,
+  name,
+  choices,
+  placeholder = "Choose…",
+  className = "field",
+}: {
+  id: string;
+  name: string;
+  choices: { id: number; name: string }[];
+  placeholder?: string;
+  className?: string;
+}) {
   return (
     <select id={id} name={name} className={className} required defaultValue="">
       <option value="" disabled>
@@ -70,17 +87,33 @@ export function PlaceSensorForm({
         <legend className="label">When</legend>
         {allowFirst ? (
           <label className="inline-flex items-center gap-2">
-            <input type="radio" name="when" value="first" checked={when === "first"} onChange={() => setWhen("first")} /> Since its first reading
+            <input
+              type="radio"
+              name="when"
+              value="first"
+              checked={when === "first"}
+              onChange={() => setWhen("first")}
+            />{" "}
+            Since its first reading
           </label>
         ) : null}
         <label className="inline-flex items-center gap-2">
           <input type="radio" name="when" value="now" checked={when === "now"} onChange={() => setWhen("now")} /> Now
         </label>
         <label className="inline-flex items-center gap-2">
-          <input type="radio" name="when" value="earlier" checked={when === "earlier"} onChange={() => setWhen("earlier")} /> Earlier
+          <input
+            type="radio"
+            name="when"
+            value="earlier"
+            checked={when === "earlier"}
+            onChange={() => setWhen("earlier")}
+          />{" "}
+          Earlier
         </label>
       </fieldset>
-      {when === "first" ? <p className="hint">Everything it has sent or will send from before now goes to this spot too.</p> : null}
+      {when === "first" ? (
+        <p className="hint">Everything it has sent or will send from before now goes to this spot too.</p>
+      ) : null}
       {when === "earlier" ? (
         <div>
           <label className="label" htmlFor="at">
@@ -126,10 +159,17 @@ export function PlacementHistory({
   );
 }
 
-const startLabel = (at: Date | string, timeZone: string) => (isFromFirstReading(at) ? "its first reading" : formatInZone(at, timeZone));
+const startLabel = (at: Date | string, timeZone: string) =>
+  isFromFirstReading(at) ? "its first reading" : formatInZone(at, timeZone);
 
 type EditorRow = { id: number; spotId: number; spotName: string; fromAt: Date | string; toAt: Date | string | null };
-type Stretch = { from: Date | string | null; to: Date | string | null; count: number; first: Date | string; last: Date | string };
+type Stretch = {
+  from: Date | string | null;
+  to: Date | string | null;
+  count: number;
+  first: Date | string;
+  last: Date | string;
+};
 
 /**
  * A sensor's placements, newest first, with the changes a grower makes when the record is wrong:
@@ -165,7 +205,10 @@ export function PlacementEditor({
                 <span className="font-semibold">
                   {u.count.toLocaleString("en")} {u.count === 1 ? "reading is" : "readings are"} in no spot
                 </span>{" "}
-                ({u.count === 1 ? formatInZone(u.first, timeZone) : `${formatInZone(u.first, timeZone)} to ${formatInZone(u.last, timeZone)}`}
+                (
+                {u.count === 1
+                  ? formatInZone(u.first, timeZone)
+                  : `${formatInZone(u.first, timeZone)} to ${formatInZone(u.last, timeZone)}`}
                 ): they were sent for a time the sensor was not placed, so no spot's figures count them.
               </p>
               {canEdit ? (
@@ -177,7 +220,12 @@ export function PlacementEditor({
                     <label className="label" htmlFor={`assign-${String(u.from)}`}>
                       They were in
                     </label>
-                    <ChoiceSelect id={`assign-${String(u.from)}`} name="spotId" className="field w-auto" choices={spots} />
+                    <ChoiceSelect
+                      id={`assign-${String(u.from)}`}
+                      name="spotId"
+                      className="field w-auto"
+                      choices={spots}
+                    />
                   </div>
                   <button className="btn-quiet" disabled={busy}>
                     Put them there
@@ -229,7 +277,12 @@ export function PlacementEditor({
                     <label className="label" htmlFor={`split-to-${p.id}`}>
                       to
                     </label>
-                    <ChoiceSelect id={`split-to-${p.id}`} name="spotId" className="field w-auto" choices={spots.filter((s) => s.id !== p.spotId)} />
+                    <ChoiceSelect
+                      id={`split-to-${p.id}`}
+                      name="spotId"
+                      className="field w-auto"
+                      choices={spots.filter((s) => s.id !== p.spotId)}
+                    />
                   </div>
                   <button className="btn-quiet" disabled={busy}>
                     Split it there

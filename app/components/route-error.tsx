@@ -17,7 +17,8 @@ export const STATUS_TITLES: Record<number, string> = {
   503: "Busy: try again in a moment",
 };
 
-export const statusTitle = (status: number) => STATUS_TITLES[status] ?? (status >= 500 ? "Something went wrong" : "That did not work");
+export const statusTitle = (status: number) =>
+  STATUS_TITLES[status] ?? (status >= 500 ? "Something went wrong" : "That did not work");
 
 /** What a route's error boundary says about `error`: a title and a sentence, never a stack. */
 export function describeRouteError(error: unknown): { title: string; detail: string } {

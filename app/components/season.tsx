@@ -27,7 +27,15 @@ export type FitRow = {
   verdictText?: string;
 };
 
-export function FitList({ fits, testId = "fit-list" }: { fits: FitRow[]; unit: TempUnit; siteId: number; testId?: string }) {
+export function FitList({
+  fits,
+  testId = "fit-list",
+}: {
+  fits: FitRow[];
+  unit: TempUnit;
+  siteId: number;
+  testId?: string;
+}) {
   return (
     <ul className="divide-y divide-line" data-testid={testId}>
       {fits.map((f) => (
@@ -36,7 +44,10 @@ export function FitList({ fits, testId = "fit-list" }: { fits: FitRow[]; unit: T
             <span className="font-semibold">{f.name}</span>
             {f.category ? <span className="text-sm text-muted">{f.category} grower</span> : null}
             <span className="ml-auto">
-              <VerdictBadge verdict={f.verdict} likely={!!f.confidence && f.confidence !== "measured" && f.verdict !== "not enough data yet"} />
+              <VerdictBadge
+                verdict={f.verdict}
+                likely={!!f.confidence && f.confidence !== "measured" && f.verdict !== "not enough data yet"}
+              />
             </span>
           </div>
           {f.confidence && f.confidence !== "measured" && f.verdictText?.startsWith("likely ") ? (
@@ -53,7 +64,9 @@ export function FitList({ fits, testId = "fit-list" }: { fits: FitRow[]; unit: T
           {f.missingAdvice ? <p className="mt-1 text-sm text-muted">{f.missingAdvice}</p> : null}
           {f.reasons.length > 1 ? (
             <details className="mt-1 text-sm">
-              <summary className="cursor-pointer text-muted">{f.reasons.length - 1} more {f.reasons.length === 2 ? "reason" : "reasons"}</summary>
+              <summary className="cursor-pointer text-muted">
+                {f.reasons.length - 1} more {f.reasons.length === 2 ? "reason" : "reasons"}
+              </summary>
               <ul className="mt-1 list-disc space-y-0.5 pl-5">
                 {f.reasons.slice(1).map((r) => (
                   <li key={r.rule}>
@@ -80,7 +93,15 @@ export function FitList({ fits, testId = "fit-list" }: { fits: FitRow[]; unit: T
   );
 }
 
-export function SeasonTable({ months, seasons, unit }: { months: SlimProfile["year"]; seasons: SlimProfile["seasons"]; unit: TempUnit }) {
+export function SeasonTable({
+  months,
+  seasons,
+  unit,
+}: {
+  months: SlimProfile["year"];
+  seasons: SlimProfile["seasons"];
+  unit: TempUnit;
+}) {
   const rows = [...months.map((m) => ({ ...m, label: m.name })), ...seasons.map((s) => ({ ...s, name: s.label }))];
   type Row = (typeof rows)[number];
   const columns: { label: string; cell: (m: Row) => string | number }[] = [
@@ -91,7 +112,11 @@ export function SeasonTable({ months, seasons, unit }: { months: SlimProfile["ye
     { label: "95 %", cell: (m) => formatTemp(m.temperature.p95, unit) },
     { label: "Highest", cell: (m) => formatTemp(m.temperature.highest, unit) },
     { label: "Day–night", cell: (m) => formatDelta(m.temperature.meanDayNightDifference, unit) },
-    { label: "RH low–high", cell: (m) => (m.humidity.lowest != null ? `${Math.round(m.humidity.lowest)}–${Math.round(m.humidity.highest ?? 0)} %` : "–") },
+    {
+      label: "RH low–high",
+      cell: (m) =>
+        m.humidity.lowest != null ? `${Math.round(m.humidity.lowest)}–${Math.round(m.humidity.highest ?? 0)} %` : "–",
+    },
     { label: "Hours < 10 °C", cell: (m) => m.below.find((b) => b.thresholdC === 10)?.hours ?? "–" },
     { label: "Near dew point (h)", cell: (m) => m.condensationHours },
     { label: "DLI", cell: (m) => (m.light.meanDli != null ? m.light.meanDli.toFixed(1) : "–") },
@@ -132,8 +157,9 @@ export function SeasonTable({ months, seasons, unit }: { months: SlimProfile["ye
         </tbody>
       </table>
       <p className="mt-2 text-xs text-muted">
-        * too few days with readings to judge (fewer than 20 in the month). Percentiles are of hourly mean temperatures. Day–night is the mean
-        day temperature minus the mean night temperature, split at sunrise and sunset here; the fit rules read it as the day's high minus its low.
+        * too few days with readings to judge (fewer than 20 in the month). Percentiles are of hourly mean temperatures.
+        Day–night is the mean day temperature minus the mean night temperature, split at sunrise and sunset here; the
+        fit rules read it as the day's high minus its low.
       </p>
     </div>
   );

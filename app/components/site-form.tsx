@@ -23,7 +23,8 @@ function setInput(id: string, value: string) {
   input.dispatchEvent(new Event("input", { bubbles: true }));
 }
 
-type Locating = { state: "idle" } | { state: "asking" } | { state: "done"; accuracy: number } | { state: "failed"; message: string };
+type Locating =
+  { state: "idle" } | { state: "asking" } | { state: "done"; accuracy: number } | { state: "failed"; message: string };
 
 export function SiteForm({
   lastResult,
@@ -57,7 +58,11 @@ export function SiteForm({
   }, []);
 
   function fillFromDevice() {
-    if (!("geolocation" in navigator)) return setLocating({ state: "failed", message: "This browser cannot tell its location; type the latitude and longitude." });
+    if (!("geolocation" in navigator))
+      return setLocating({
+        state: "failed",
+        message: "This browser cannot tell its location; type the latitude and longitude.",
+      });
     setLocating({ state: "asking" });
     navigator.geolocation.getCurrentPosition(
       (pos) => {
@@ -83,7 +88,13 @@ export function SiteForm({
       <FormErrors errors={form.errors} />
       <TextField meta={fields.name} label="Name" hint="What you call the place: a home, a flat, an allotment." />
       <div className="flex flex-wrap items-center gap-3">
-        <button type="button" className="btn-quiet" onClick={fillFromDevice} disabled={locating.state === "asking"} data-testid="use-my-location">
+        <button
+          type="button"
+          className="btn-quiet"
+          onClick={fillFromDevice}
+          disabled={locating.state === "asking"}
+          data-testid="use-my-location"
+        >
           {locating.state === "asking" ? "Finding this device…" : "Use my location"}
         </button>
         <p className="text-sm text-muted" role="status" data-testid="location-status">
@@ -95,19 +106,38 @@ export function SiteForm({
         </p>
       </div>
       <div className="grid gap-4 sm:grid-cols-2">
-        <TextField meta={fields.latitude} label="Latitude (°, north positive)" type="text" inputMode="decimal" hint="South of the equator is negative." />
-        <TextField meta={fields.longitude} label="Longitude (°, east positive)" type="text" inputMode="decimal" hint="West of Greenwich is negative." />
+        <TextField
+          meta={fields.latitude}
+          label="Latitude (°, north positive)"
+          type="text"
+          inputMode="decimal"
+          hint="South of the equator is negative."
+        />
+        <TextField
+          meta={fields.longitude}
+          label="Longitude (°, east positive)"
+          type="text"
+          inputMode="decimal"
+          hint="West of Greenwich is negative."
+        />
       </div>
       <p className="hint -mt-2">
-        Why we ask: sunrise and sunset at your place split each day from its night, so the day–night difference your plants
-        feel is measured at your own hours. The hemisphere follows from the latitude and sets which months are winter. Two
-        decimals (about a kilometre) are plenty.
+        Why we ask: sunrise and sunset at your place split each day from its night, so the day–night difference your
+        plants feel is measured at your own hours. The hemisphere follows from the latitude and sets which months are
+        winter. Two decimals (about a kilometre) are plenty.
       </p>
       <SelectField
         meta={fields.timeZone}
         label="Time zone"
-        hint={zoneFrom ? `Taken from this device's clock (${zoneFrom.replace(/_/g, " ")}); change it if the place is elsewhere.` : undefined}
-        options={[{ value: "", label: "Choose a time zone" }, ...zones.map((z) => ({ value: z, label: z.replace(/_/g, " ") }))]}
+        hint={
+          zoneFrom
+            ? `Taken from this device's clock (${zoneFrom.replace(/_/g, " ")}); change it if the place is elsewhere.`
+            : undefined
+        }
+        options={[
+          { value: "", label: "Choose a time zone" },
+          ...zones.map((z) => ({ value: z, label: z.replace(/_/g, " ") })),
+        ]}
       />
       <button className="btn" disabled={navigation.state !== "idle"}>
         {submitLabel}

@@ -12,7 +12,8 @@ export const MONTHS_SHORT = ["Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "A
 const WET_MARGIN_C = 2;
 
 type Cols = Record<string, (number | null)[]>;
-const conv = (xs: (number | null)[] | undefined, u: TempUnit) => (xs ?? []).map((v) => (v == null ? null : toUnit(v, u)));
+const conv = (xs: (number | null)[] | undefined, u: TempUnit) =>
+  (xs ?? []).map((v) => (v == null ? null : toUnit(v, u)));
 const fmt = (u: TempUnit) => (_s: uPlot, v: number | null) => (v == null ? "–" : `${v.toFixed(1)} °${u}`);
 
 function yearBandSpec(unit: TempUnit): ChartSpec {
@@ -36,10 +37,20 @@ function marginSpec(unit: TempUnit): ChartSpec {
     title: "Dew-point margin: how close the air came to wetting glass and leaves (each day's smallest gap)",
     unit,
     build: (d, u) => ({
-      data: [d.t as number[], (d.margin ?? []).map((v) => (v == null ? null : deltaToUnit(v, u))), (d.t as number[]).map(() => deltaToUnit(WET_MARGIN_C, u))] as never,
+      data: [
+        d.t as number[],
+        (d.margin ?? []).map((v) => (v == null ? null : deltaToUnit(v, u))),
+        (d.t as number[]).map(() => deltaToUnit(WET_MARGIN_C, u)),
+      ] as never,
       series: [
         { label: `Smallest margin °${u}`, stroke: "#3b6ea8", width: 1.5, value: fmt(u) },
-        { label: `Wet below ${formatDelta(WET_MARGIN_C, u, 0)}`, stroke: "#a53a2c", width: 1, dash: [5, 4], value: fmt(u) },
+        {
+          label: `Wet below ${formatDelta(WET_MARGIN_C, u, 0)}`,
+          stroke: "#a53a2c",
+          width: 1,
+          dash: [5, 4],
+          value: fmt(u),
+        },
       ],
       axes: [AXIS, { ...AXIS, label: `°${u} above dew point`, size: 56 }],
     }),
@@ -72,7 +83,14 @@ export function HoursCharts({ url, unit, timeZone }: { url: string; unit: TempUn
       height: 140,
       build: (d) => ({
         data: [d.t as number[], d.rh] as never,
-        series: [{ label: "Relative humidity %", stroke: "#2c6e63", width: 1.5, value: (_s: uPlot, v: number | null) => (v == null ? "–" : `${Math.round(v)} %`) }],
+        series: [
+          {
+            label: "Relative humidity %",
+            stroke: "#2c6e63",
+            width: 1.5,
+            value: (_s: uPlot, v: number | null) => (v == null ? "–" : `${Math.round(v)} %`),
+          },
+        ],
         scales: { y: { range: [0, 100] } },
         axes: [AXIS, { ...AXIS, label: "% RH", size: 50 }],
       }),
@@ -109,19 +127,26 @@ function weekly(d: Cols) {
 }
 
 const dayLabel = (epochS: number, timeZone: string) =>
-  new Intl.DateTimeFormat(SITE_LOCALE, { day: "numeric", month: "short", year: "numeric", timeZone }).format(new Date(epochS * 1000));
+  new Intl.DateTimeFormat(SITE_LOCALE, { day: "numeric", month: "short", year: "numeric", timeZone }).format(
+    new Date(epochS * 1000),
+  );
 
 export function YearCharts({ url, unit, timeZone }: { url: string; unit: TempUnit; timeZone: string }) {
   const series = useSeries(url);
   const bandSpec = useMemo(() => yearBandSpec(unit), [unit]);
   const mSpec = useMemo(() => marginSpec(unit), [unit]);
   const weeks = useMemo(() => (series.data ? weekly(series.data) : []), [series.data]);
-  const wetDays = useMemo(() => (series.data?.margin ?? []).filter((m) => m != null && m < WET_MARGIN_C).length, [series.data]);
+  const wetDays = useMemo(
+    () => (series.data?.margin ?? []).filter((m) => m != null && m < WET_MARGIN_C).length,
+    [series.data],
+  );
   return (
     <>
       <section className="card space-y-3">
         <Chart spec={bandSpec} data={series.data} timeZone={timeZone} testId="chart-year" />
-        <p className="text-xs text-muted">The shaded band runs from each day's lowest to its highest reading (local days).</p>
+        <p className="text-xs text-muted">
+          The shaded band runs from each day's lowest to its highest reading (local days).
+        </p>
         {series.error ? <p className="error">Could not load the year: {series.error}</p> : null}
         <details className="text-sm">
           <summary className="cursor-pointer font-medium">The year as a table (week by week)</summary>
@@ -150,12 +175,20 @@ export function YearCharts({ url, unit, timeZone }: { url: string; unit: TempUni
       <section className="card space-y-3">
         <Chart spec={mSpec} data={series.data} timeZone={timeZone} testId="chart-margin" />
         <p className="text-sm text-muted">
-          The margin is the air temperature minus its dew point. Under {formatDelta(WET_MARGIN_C, unit, 0)} cold glass and leaves can
-          turn wet, which invites fungal spots and rot; {wetDays === 0 ? "that never happened here in the last year." : `that happened on ${wetDays} ${wetDays === 1 ? "day" : "days"} here in the last year.`}
+          The margin is the air temperature minus its dew point. Under {formatDelta(WET_MARGIN_C, unit, 0)} cold glass
+          and leaves can turn wet, which invites fungal spots and rot;{" "}
+          {wetDays === 0
+            ? "that never happened here in the last year."
+            : `that happened on ${wetDays} ${wetDays === 1 ? "day" : "days"} here in the last year.`}
         </p>
         <details className="text-sm">
           <summary className="cursor-pointer font-medium">The dew-point margin as a table (week by week)</summary>
-          <div className="mt-2 max-h-96 overflow-auto" tabIndex={0} role="region" aria-label="Dew-point margin, week by week">
+          <div
+            className="mt-2 max-h-96 overflow-auto"
+            tabIndex={0}
+            role="region"
+            aria-label="Dew-point margin, week by week"
+          >
             <table className="table" data-testid="margin-table">
               <thead>
                 <tr>

@@ -2,7 +2,14 @@ import { getFormProps, useForm, type SubmissionResult } from "@conform-to/react"
 import { Form, useNavigation } from "react-router";
 import { FormErrors, SelectField, TextAreaField, TextField } from "~/components/field";
 import { LIGHT_SOURCE_LABELS } from "~/domain/climate/light";
-import { FACING_WORDS, GLAZINGS, LIGHT_SOURCES, SPOT_FACINGS, type Glazing, type SpotFacing } from "~/domain/vocabulary";
+import {
+  FACING_WORDS,
+  GLAZINGS,
+  LIGHT_SOURCES,
+  SPOT_FACINGS,
+  type Glazing,
+  type SpotFacing,
+} from "~/domain/vocabulary";
 
 const glazingLabel: Record<Glazing, string> = {
   single: "Single glazing",
@@ -12,7 +19,8 @@ const glazingLabel: Record<Glazing, string> = {
   none: "No glass (open window or frame)",
 };
 
-const facingLabel = (f: SpotFacing) => (f === "none" ? "No window / not by a window" : FACING_WORDS[f].charAt(0).toUpperCase() + FACING_WORDS[f].slice(1));
+const facingLabel = (f: SpotFacing) =>
+  f === "none" ? "No window / not by a window" : FACING_WORDS[f].charAt(0).toUpperCase() + FACING_WORDS[f].slice(1);
 
 export function SpotForm({
   lastResult,
@@ -20,7 +28,15 @@ export function SpotForm({
   submitLabel,
 }: {
   lastResult?: SubmissionResult<string[]>;
-  defaultValue?: { name: string; indoor: "indoor" | "outdoor"; facing: string; capacity: number; notes: string; lightSource: string; glazing: string };
+  defaultValue?: {
+    name: string;
+    indoor: "indoor" | "outdoor";
+    facing: string;
+    capacity: number;
+    notes: string;
+    lightSource: string;
+    glazing: string;
+  };
   submitLabel: string;
 }) {
   const navigation = useNavigation();
@@ -65,7 +81,11 @@ export function SpotForm({
         />
       </div>
       <TextField meta={fields.capacity} label="Room for how many pots" type="number" min={0} inputMode="numeric" />
-      <TextAreaField meta={fields.notes} label="Notes" hint="Anything you know: radiator below, curtain at night, shade from a tree." />
+      <TextAreaField
+        meta={fields.notes}
+        label="Notes"
+        hint="Anything you know: radiator below, curtain at night, shade from a tree."
+      />
       <button className="btn" disabled={navigation.state !== "idle"}>
         {submitLabel}
       </button>

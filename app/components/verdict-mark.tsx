@@ -2,7 +2,8 @@
 // suits the plant. Always beside the verdict's words, never instead of them (docs/design.md).
 import type { ReactNode } from "react";
 
-export type VerdictName = "thrives here" | "possible with care" | "good for part of the year" | "struggles here" | "not enough data yet";
+export type VerdictName =
+  "thrives here" | "possible with care" | "good for part of the year" | "struggles here" | "not enough data yet";
 
 const TONE: Record<VerdictName, string> = {
   "thrives here": "text-v-thrives",
@@ -53,7 +54,13 @@ export function VerdictMark({ verdict, size = 16, title }: { verdict: string; si
       aria-hidden={title ? undefined : true}
       data-verdict={v}
     >
-      <path d={NICHE} fill="none" stroke="currentColor" strokeWidth="1.4" strokeDasharray={v === "not enough data yet" ? "2 2" : undefined} />
+      <path
+        d={NICHE}
+        fill="none"
+        stroke="currentColor"
+        strokeWidth="1.4"
+        strokeDasharray={v === "not enough data yet" ? "2 2" : undefined}
+      />
       <Fill verdict={v} />
     </svg>
   );

@@ -7,8 +7,21 @@ export type WatchStateName = "watching" | "paused" | "open" | "acknowledged";
 
 export function WatchMark({ state, size = 16 }: { state: WatchStateName; size?: number }) {
   return (
-    <svg viewBox="0 0 16 17" width={size} height={size} className="inline-block shrink-0 align-[-0.15em]" aria-hidden="true" data-watch={state}>
-      <path d={NICHE} fill="none" stroke="currentColor" strokeWidth="1.4" strokeDasharray={state === "paused" ? "2 1.6" : undefined} />
+    <svg
+      viewBox="0 0 16 17"
+      width={size}
+      height={size}
+      className="inline-block shrink-0 align-[-0.15em]"
+      aria-hidden="true"
+      data-watch={state}
+    >
+      <path
+        d={NICHE}
+        fill="none"
+        stroke="currentColor"
+        strokeWidth="1.4"
+        strokeDasharray={state === "paused" ? "2 1.6" : undefined}
+      />
       {state === "watching" ? (
         // A lamp in the niche: a flame over a small dish.
         <>
@@ -16,14 +29,25 @@ export function WatchMark({ state, size = 16 }: { state: WatchStateName; size?: 
           <path d="M5.2 12.6h5.6" stroke="currentColor" strokeWidth="1.4" strokeLinecap="round" />
         </>
       ) : null}
-      {state === "paused" ? <path d="M6.5 7.5v5M9.5 7.5v5" stroke="currentColor" strokeWidth="1.6" strokeLinecap="round" /> : null}
+      {state === "paused" ? (
+        <path d="M6.5 7.5v5M9.5 7.5v5" stroke="currentColor" strokeWidth="1.6" strokeLinecap="round" />
+      ) : null}
       {state === "open" ? (
         <>
           <path d="M8 5.5v5" stroke="currentColor" strokeWidth="1.8" strokeLinecap="round" />
           <circle cx="8" cy="12.8" r="1.1" fill="currentColor" />
         </>
       ) : null}
-      {state === "acknowledged" ? <path d="M5 10.2l2.1 2.1L11.2 7.6" fill="none" stroke="currentColor" strokeWidth="1.6" strokeLinecap="round" strokeLinejoin="round" /> : null}
+      {state === "acknowledged" ? (
+        <path
+          d="M5 10.2l2.1 2.1L11.2 7.6"
+          fill="none"
+          stroke="currentColor"
+          strokeWidth="1.6"
+          strokeLinecap="round"
+          strokeLinejoin="round"
+        />
+      ) : null}
     </svg>
   );
 }

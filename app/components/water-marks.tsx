@@ -11,10 +11,19 @@ export const WATER_VERDICT: Record<WaterVerdict, { word: string; cls: string }> 
 const DROP = "M8 1.8C5.6 5 3.5 7.6 3.5 10.2a4.5 4.5 0 0 0 9 0C12.5 7.6 10.4 5 8 1.8z";
 export function DropMark({ verdict }: { verdict: WaterVerdict }) {
   return (
-    <svg viewBox="0 0 16 16" width="14" height="14" className="mr-1 inline-block align-[-0.1em]" aria-hidden="true" data-water={verdict}>
+    <svg
+      viewBox="0 0 16 16"
+      width="14"
+      height="14"
+      className="mr-1 inline-block align-[-0.1em]"
+      aria-hidden="true"
+      data-water={verdict}
+    >
       <path d={DROP} fill={verdict === "good" ? "currentColor" : "none"} stroke="currentColor" strokeWidth="1.4" />
       {verdict === "adjust" ? <path d="M3.6 10.2h8.8a4.4 4.4 0 0 1-8.8 0z" fill="currentColor" /> : null}
-      {verdict === "avoid" ? <path d="M5.8 8l4.4 4.4M10.2 8l-4.4 4.4" stroke="currentColor" strokeWidth="1.5" strokeLinecap="round" /> : null}
+      {verdict === "avoid" ? (
+        <path d="M5.8 8l4.4 4.4M10.2 8l-4.4 4.4" stroke="currentColor" strokeWidth="1.5" strokeLinecap="round" />
+      ) : null}
     </svg>
   );
 }

@@ -125,7 +125,11 @@ export const sensors = pgTable(
     name: text().notNull(),
     // argon2id of the sensor's secret; the secret is shown once when the sensor is added
     secretHash: text().notNull(),
-    channels: text().array().$type<Channel[]>().notNull().default(sql`'{temperature,humidity}'`),
+    channels: text()
+      .array()
+      .$type<Channel[]>()
+      .notNull()
+      .default(sql`'{temperature,humidity}'`),
     calibration: jsonb().$type<Calibration>().notNull().default({}),
     lastSeenAt: timestamp({ withTimezone: true }),
     battery: real(),
@@ -398,7 +402,10 @@ export const alertPreferences = pgTable(
       .notNull()
       .references(() => sites.id, { onDelete: "cascade" }),
     email: boolean().notNull().default(true),
-    kinds: text().array().notNull().default(sql`'{cold,heat,dry,condensation,silent,battery}'`),
+    kinds: text()
+      .array()
+      .notNull()
+      .default(sql`'{cold,heat,dry,condensation,silent,battery}'`),
     quietFrom: integer(), // minute of the local day, null = no quiet hours
     quietTo: integer(),
   },

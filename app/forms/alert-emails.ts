@@ -25,6 +25,11 @@ export const alertEmailsSchema = z
     quietFrom: quietTime,
     quietTo: quietTime,
   })
-  .refine((v) => (v.quietFrom === null) === (v.quietTo === null), { path: ["quietTo"], message: "Give both ends of the quiet hours, or neither." });
+  .refine((v) => (v.quietFrom === null) === (v.quietTo === null), {
+    path: ["quietTo"],
+    message: "Give both ends of the quiet hours, or neither.",
+  });
 
-export const siteAlertsSchema = z.discriminatedUnion("intent", [acknowledgeSchema, alertEmailsSchema], { error: "Unknown action" });
+export const siteAlertsSchema = z.discriminatedUnion("intent", [acknowledgeSchema, alertEmailsSchema], {
+  error: "Unknown action",
+});

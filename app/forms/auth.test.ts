@@ -7,7 +7,23 @@ import { safeNext } from "~/forms/auth";
 
 describe("safeNext", () => {
   it("sends off-site targets home", () => {
-    for (const next of ["/\\evil.example", "/\t/evil.example/x", "/\n/evil.example", "//evil.example/x", "///evil.example", "https://evil.example/x", "http:evil.example", "javascript:alert(1)", "/\\/evil.example", "\\\\evil.example", "/./\\evil.example", "/.//evil.example", " //evil.example", "", "settings"]) {
+    for (const next of [
+      "/\\evil.example",
+      "/\t/evil.example/x",
+      "/\n/evil.example",
+      "//evil.example/x",
+      "///evil.example",
+      "https://evil.example/x",
+      "http:evil.example",
+      "javascript:alert(1)",
+      "/\\/evil.example",
+      "\\\\evil.example",
+      "/./\\evil.example",
+      "/.//evil.example",
+      " //evil.example",
+      "",
+      "settings",
+    ]) {
       expect(safeNext(next), JSON.stringify(next)).toBe("/");
     }
     expect(safeNext(decodeURIComponent("/%09/evil.host/x"))).toBe("/");

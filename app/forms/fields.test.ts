@@ -12,10 +12,20 @@ const form = (entries: Record<string, string>) => {
 // The field builders through conform, as every form parses: what app/.server/ids.ts promised for
 // hand-read fields (int4 ids, NUL-free text) holds for schema fields too.
 describe("form field builders", () => {
-  const schema = z.object({ id: rowId(), note: text(10).optional(), ph: decimal("pH is between 0 and 14.", 0, 14).optional(), n: whole("Whole minutes", 0, 1440).optional(), on: checkbox() });
+  const schema = z.object({
+    id: rowId(),
+    note: text(10).optional(),
+    ph: decimal("pH is between 0 and 14.", 0, 14).optional(),
+    n: whole("Whole minutes", 0, 1440).optional(),
+    on: checkbox(),
+  });
   const parse = (entries: Record<string, string>) => {
     const s = parseWithZod(form(entries), { schema });
-    return { status: s.status, value: s.status === "success" ? s.value : undefined, error: s.status === "error" ? s.error : undefined };
+    return {
+      status: s.status,
+      value: s.status === "success" ? s.value : undefined,
+      error: s.status === "error" ? s.error : undefined,
+    };
   };
 
   it("takes a plain positive int4 id and nothing else", () => {

@@ -17,7 +17,11 @@ export const inventorySchema = z.discriminatedUnion(
   "intent",
   [
     addPlantSchema,
-    z.object({ intent: z.literal("plant-move"), id: rowId("Choose a plant."), toSpotId: rowId("Choose the spot to move it to.") }),
+    z.object({
+      intent: z.literal("plant-move"),
+      id: rowId("Choose a plant."),
+      toSpotId: rowId("Choose the spot to move it to."),
+    }),
     z.object({ intent: z.literal("plant-remove"), id: rowId("Choose a plant.") }),
   ],
   { error: "Unknown action" },

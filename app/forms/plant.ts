@@ -2,7 +2,11 @@
 import { z } from "zod";
 import { categoryForNight, type PlantProfile } from "~/domain/plants/library";
 
-const temp = (what: string) => z.number({ error: `Enter ${what}` }).min(-30, "That is colder than any plant here takes").max(60, "That is hotter than any plant here takes");
+const temp = (what: string) =>
+  z
+    .number({ error: `Enter ${what}` })
+    .min(-30, "That is colder than any plant here takes")
+    .max(60, "That is hotter than any plant here takes");
 
 /** Temperatures are typed in the grower's unit and converted in the action. */
 export const plantFormSchema = z
@@ -15,8 +19,14 @@ export const plantFormSchema = z
     humidityMin: z.number({ error: "Enter the lowest humidity it likes" }).min(0, "0–100 %").max(100, "0–100 %"),
     humidityMax: z.number({ error: "Enter the highest humidity it likes" }).min(0, "0–100 %").max(100, "0–100 %"),
     light: z.enum(["low", "medium", "high"], { error: "Choose a light level" }),
-    dliMin: z.number({ error: "Enter the lowest daily light" }).min(0, "Can't be negative").max(60, "Up to 60 mol m⁻² d⁻¹"),
-    dliMax: z.number({ error: "Enter the highest daily light" }).min(0, "Can't be negative").max(60, "Up to 60 mol m⁻² d⁻¹"),
+    dliMin: z
+      .number({ error: "Enter the lowest daily light" })
+      .min(0, "Can't be negative")
+      .max(60, "Up to 60 mol m⁻² d⁻¹"),
+    dliMax: z
+      .number({ error: "Enter the highest daily light" })
+      .min(0, "Can't be negative")
+      .max(60, "Up to 60 mol m⁻² d⁻¹"),
     difC: z.number().min(0, "Can't be negative").max(20, "Up to 20 degrees").optional(),
     coolNightC: temp("the cool-period night").optional(),
     coolWeeks: z.number().int("Whole weeks").min(1, "At least a week").max(20, "Up to 20 weeks").optional(),
@@ -25,9 +35,18 @@ export const plantFormSchema = z
     summary: z.string().trim().max(300).optional(),
     source: z.string().trim().max(300).optional(),
   })
-  .refine((v) => v.minNightC < v.maxDayC, { path: ["maxDayC"], message: "The highest day must be warmer than the lowest night" })
-  .refine((v) => v.humidityMin <= v.humidityMax, { path: ["humidityMax"], message: "The highest humidity must be at least the lowest" })
-  .refine((v) => v.dliMin <= v.dliMax, { path: ["dliMax"], message: "The highest daily light must be at least the lowest" })
+  .refine((v) => v.minNightC < v.maxDayC, {
+    path: ["maxDayC"],
+    message: "The highest day must be warmer than the lowest night",
+  })
+  .refine((v) => v.humidityMin <= v.humidityMax, {
+    path: ["humidityMax"],
+    message: "The highest humidity must be at least the lowest",
+  })
+  .refine((v) => v.dliMin <= v.dliMax, {
+    path: ["dliMax"],
+    message: "The highest daily light must be at least the lowest",
+  })
   .refine((v) => (v.coolNightC === undefined) === (v.coolWeeks === undefined), {
     path: ["coolWeeks"],
     message: "A cool period needs both its night temperature and how many weeks",
@@ -49,7 +68,14 @@ export const storedProfileSchema = z.object({
   dliMax: z.number(),
   flowering: z.object({
     difC: z.number().optional(),
-    coolPeriod: z.object({ maxNightC: z.number(), maxDayC: z.number().optional(), weeks: z.number(), months: z.string().optional() }).optional(),
+    coolPeriod: z
+      .object({
+        maxNightC: z.number(),
+        maxDayC: z.number().optional(),
+        weeks: z.number(),
+        months: z.string().optional(),
+      })
+      .optional(),
     note: z.string(),
   }),
   coldTolerance: z.string(),
@@ -75,7 +101,8 @@ const FIELD_VALUES: Record<string, (p: Omit<PlantProfile, "sources" | "key">) =>
   "humidityMin/humidityMax": (p) => `${p.humidityMin}/${p.humidityMax}`,
   light: (p) => p.light,
   "dliMin/dliMax": (p) => `${p.dliMin}/${p.dliMax}`,
-  flowering: (p) => JSON.stringify([p.flowering.difC, p.flowering.coolPeriod?.maxNightC, p.flowering.coolPeriod?.weeks]),
+  flowering: (p) =>
+    JSON.stringify([p.flowering.difC, p.flowering.coolPeriod?.maxNightC, p.flowering.coolPeriod?.weeks]),
   coldTolerance: (p) => p.coldTolerance,
 };
 
@@ -87,7 +114,14 @@ const FIELD_VALUES: Record<string, (p: Omit<PlantProfile, "sources" | "key">) =>
 export function profileFromForm(key: string, v: PlantForm, base: PlantProfile | undefined): PlantProfile {
   const coolPeriod =
     v.coolNightC !== undefined && v.coolWeeks !== undefined
-      ? { maxNightC: v.coolNightC, weeks: v.coolWeeks, ...(base?.flowering.coolPeriod?.maxDayC !== undefined && base.flowering.coolPeriod.maxNightC === v.coolNightC ? { maxDayC: base.flowering.coolPeriod.maxDayC } : {}), ...(base?.flowering.coolPeriod?.months ? { months: base.flowering.coolPeriod.months } : {}) }
+      ? {
+          maxNightC: v.coolNightC,
+          weeks: v.coolWeeks,
+          ...(base?.flowering.coolPeriod?.maxDayC !== undefined && base.flowering.coolPeriod.maxNightC === v.coolNightC
+            ? { maxDayC: base.flowering.coolPeriod.maxDayC }
+            : {}),
+          ...(base?.flowering.coolPeriod?.months ? { months: base.flowering.coolPeriod.months } : {}),
+        }
       : undefined;
   const profile: Omit<PlantProfile, "sources" | "key"> = {
     name: v.name,
@@ -100,14 +134,29 @@ export function profileFromForm(key: string, v: PlantForm, base: PlantProfile | 
     light: v.light,
     dliMin: v.dliMin,
     dliMax: v.dliMax,
-    flowering: { ...(v.difC !== undefined ? { difC: v.difC } : {}), ...(coolPeriod ? { coolPeriod } : {}), note: v.floweringNote ?? "" },
+    flowering: {
+      ...(v.difC !== undefined ? { difC: v.difC } : {}),
+      ...(coolPeriod ? { coolPeriod } : {}),
+      note: v.floweringNote ?? "",
+    },
     coldTolerance: v.coldTolerance,
     summary: v.summary ?? "",
   };
   const own = v.source ? `your own value: ${v.source}` : "your own value (no source given)";
   const sources = Object.entries(FIELD_VALUES).map(([field, get]) => {
-    const kept = base && get(base) === get(profile) ? base.sources.filter((s) => s.field === field || s.field.startsWith(`${field}.`)) : [];
-    return kept.length > 0 ? kept : [{ field, source: field === "category" ? "from the lowest safe night (Frowine, table 2-1)" : own, ...(v.source || field === "category" ? {} : { memory: true }) }];
+    const kept =
+      base && get(base) === get(profile)
+        ? base.sources.filter((s) => s.field === field || s.field.startsWith(`${field}.`))
+        : [];
+    return kept.length > 0
+      ? kept
+      : [
+          {
+            field,
+            source: field === "category" ? "from the lowest safe night (Frowine, table 2-1)" : own,
+            ...(v.source || field === "category" ? {} : { memory: true }),
+          },
+        ];
   });
   return { key, ...profile, sources: sources.flat() };
 }

@@ -25,4 +25,3 @@ export const calibrationSchema = z.object({
   humidity: offset("Humidity", 30),
   lux: offset("Light", 5000),
 });
-

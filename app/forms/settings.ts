@@ -10,7 +10,9 @@ export const unitSchema = z.object({
 
 export const passwordSchema = z.object({
   intent: z.literal("password"),
-  current: z.string({ error: "Enter your current password" }).max(MAX_PASSWORD_LENGTH, "Your current password is not right."),
+  current: z
+    .string({ error: "Enter your current password" })
+    .max(MAX_PASSWORD_LENGTH, "Your current password is not right."),
   next: newPassword("Choose a new password"),
 });
 

@@ -24,4 +24,3 @@ export function isTimeZone(tz: string) {
     return false;
   }
 }
-

@@ -16,4 +16,3 @@ export const spotSchema = z.object({
   // Empty means not given; kept only for a spot by a window (see updateSpot).
   glazing: z.enum(GLAZINGS, { error: "Choose the glazing, or leave it not given" }).optional(),
 });
-

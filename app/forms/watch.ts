@@ -16,15 +16,23 @@ const settings = {
   earlyWarning: checkbox(),
 };
 
-type Settings = { kind: WatchKind; threshold: number; durationMinutes?: number; hysteresis?: number; clearMinutes?: number };
+type Settings = {
+  kind: WatchKind;
+  threshold: number;
+  durationMinutes?: number;
+  hysteresis?: number;
+  clearMinutes?: number;
+};
 
 function checkForKind(v: Settings, ctx: z.RefinementCtx) {
   const issue = (path: string, message: string) => ctx.addIssue({ code: "custom", path: [path], message });
   if (v.kind === "silent") {
-    if (!(v.threshold >= 5 && v.threshold <= 1440)) issue("threshold", "A sensor may be silent for 5 to 1,440 minutes before the alert.");
+    if (!(v.threshold >= 5 && v.threshold <= 1440))
+      issue("threshold", "A sensor may be silent for 5 to 1,440 minutes before the alert.");
     return;
   }
-  if ((v.kind === "dry" || v.kind === "battery") && !(v.threshold > 0 && v.threshold < 100)) issue("threshold", "Enter a percentage between 0 and 100.");
+  if ((v.kind === "dry" || v.kind === "battery") && !(v.threshold > 0 && v.threshold < 100))
+    issue("threshold", "Enter a percentage between 0 and 100.");
   if (v.durationMinutes === undefined) issue("durationMinutes", MINUTES("Minutes before the alert"));
   if (v.hysteresis === undefined) issue("hysteresis", "The margin for the all-clear must be between 0 and 20.");
   if (v.clearMinutes === undefined) issue("clearMinutes", MINUTES("Minutes before the all-clear"));
@@ -40,11 +48,17 @@ export const addWatchSchema = z
   .superRefine(checkForKind);
 
 /** An update's kind is the stored watch's: the action sets it before parsing. */
-export const updateWatchSchema = z.object({ intent: z.literal("update"), ruleId: rowId("Choose a watch; reload the page and try again."), ...settings }).superRefine(checkForKind);
+export const updateWatchSchema = z
+  .object({ intent: z.literal("update"), ruleId: rowId("Choose a watch; reload the page and try again."), ...settings })
+  .superRefine(checkForKind);
 
 const onWatch = <I extends "pause" | "resume" | "delete">(intent: I) =>
   z.object({ intent: z.literal(intent), ruleId: rowId("Choose a watch; reload the page and try again.") });
 
-export const watchSchema = z.discriminatedUnion("intent", [addWatchSchema, updateWatchSchema, onWatch("pause"), onWatch("resume"), onWatch("delete")], {
-  error: "Unknown action",
-});
+export const watchSchema = z.discriminatedUnion(
+  "intent",
+  [addWatchSchema, updateWatchSchema, onWatch("pause"), onWatch("resume"), onWatch("delete")],
+  {
+    error: "Unknown action",
+  },
+);

@@ -12,7 +12,9 @@ export const waterCheckSchema = z
     intent: z.literal("log"),
     source: z.string({ error: "Choose the water source" }).max(40, "Choose the water source"),
     ownSource: text(80).optional(),
-    checkedOn: z.string({ error: "Enter the date of the check." }).regex(/^\d{4}-\d{2}-\d{2}$/, "Enter the date of the check."),
+    checkedOn: z
+      .string({ error: "Enter the date of the check." })
+      .regex(/^\d{4}-\d{2}-\d{2}$/, "Enter the date of the check."),
     measure: z.enum(MEASURES, { error: "Choose TDS in ppm or EC in µS/cm" }).default("ppm"),
     value: decimal("Enter the reading as a number.").optional(),
     scale: z.enum(METER_SCALES, { error: "Choose the meter's scale, or not sure" }).optional(),
@@ -20,14 +22,25 @@ export const waterCheckSchema = z
   })
   .superRefine((v, ctx) => {
     if (!parseSource(v.source, v.ownSource ?? "")) {
-      ctx.addIssue({ code: "custom", path: ["ownSource"], message: "Name the water source (up to 40 characters), or choose tap, rain or filtered." });
+      ctx.addIssue({
+        code: "custom",
+        path: ["ownSource"],
+        message: "Name the water source (up to 40 characters), or choose tap, rain or filtered.",
+      });
     }
     if (v.value !== undefined && !(v.value >= 0 && v.value <= (v.measure === "ec" ? 20000 : 10000))) {
-      ctx.addIssue({ code: "custom", path: ["value"], message: v.measure === "ec" ? "EC is a number of µS/cm, 0 to 20,000." : "TDS is a number of ppm, 0 to 10,000." });
+      ctx.addIssue({
+        code: "custom",
+        path: ["value"],
+        message: v.measure === "ec" ? "EC is a number of µS/cm, 0 to 20,000." : "TDS is a number of ppm, 0 to 10,000.",
+      });
     }
-    if (v.value === undefined && v.ph === undefined) ctx.addIssue({ code: "custom", path: ["value"], message: "Enter a TDS/EC reading, a pH, or both." });
+    if (v.value === undefined && v.ph === undefined)
+      ctx.addIssue({ code: "custom", path: ["value"], message: "Enter a TDS/EC reading, a pH, or both." });
   });
 
 export const removeCheckSchema = z.object({ intent: z.literal("delete"), checkId: rowId() });
 
-export const waterSchema = z.discriminatedUnion("intent", [waterCheckSchema, removeCheckSchema], { error: "Unknown action" });
+export const waterSchema = z.discriminatedUnion("intent", [waterCheckSchema, removeCheckSchema], {
+  error: "Unknown action",
+});

@@ -2,8 +2,16 @@
 import { z } from "zod";
 import { checkbox } from "~/forms/fields";
 
-export const plantKey = z.string({ error: "Choose a plant" }).trim().min(1, "Choose a plant").max(120, "Choose a plant from the list.");
-export const pots = z.number({ error: "Whole pots only" }).int("Whole pots only").min(1, "At least one pot").max(100, "Up to 100 pots");
+export const plantKey = z
+  .string({ error: "Choose a plant" })
+  .trim()
+  .min(1, "Choose a plant")
+  .max(120, "Choose a plant from the list.");
+export const pots = z
+  .number({ error: "Whole pots only" })
+  .int("Whole pots only")
+  .min(1, "At least one pot")
+  .max(100, "Up to 100 pots");
 
 /** A wish's settings, as the plant page posts them (the plant is the page's). */
 export const wishFields = { mustHave: checkbox(), pots: pots.default(1) };
@@ -22,8 +30,14 @@ export const removeWishSchema = z.object({
   confirm: z.literal("yes").optional(),
 });
 
-export const wishlistSchema = z.discriminatedUnion("intent", [saveWishSchema, removeWishSchema], { error: "Unknown action" });
+export const wishlistSchema = z.discriminatedUnion("intent", [saveWishSchema, removeWishSchema], {
+  error: "Unknown action",
+});
 
 export const plantWishSchema = z.object({ intent: z.literal("wish"), ...wishFields });
 
-export const plantPageSchema = z.discriminatedUnion("intent", [plantWishSchema, z.object({ intent: z.literal("delete") })], { error: "Unknown action" });
+export const plantPageSchema = z.discriminatedUnion(
+  "intent",
+  [plantWishSchema, z.object({ intent: z.literal("delete") })],
+  { error: "Unknown action" },
+);

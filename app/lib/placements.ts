@@ -40,8 +40,18 @@ export const placeSchema = z.object({
 
 /** The placement editor on a sensor's page. */
 export const placementEditSchema = z.discriminatedUnion("intent", [
-  z.object({ intent: z.literal("move-start"), placementId: z.number().int().positive(), start: z.enum(["first", "at"]).default("at"), at: localTime }),
-  z.object({ intent: z.literal("split"), placementId: z.number().int().positive(), spotId: z.number({ error: "Choose a spot" }).int().positive(), at: localTime }),
+  z.object({
+    intent: z.literal("move-start"),
+    placementId: z.number().int().positive(),
+    start: z.enum(["first", "at"]).default("at"),
+    at: localTime,
+  }),
+  z.object({
+    intent: z.literal("split"),
+    placementId: z.number().int().positive(),
+    spotId: z.number({ error: "Choose a spot" }).int().positive(),
+    at: localTime,
+  }),
   z.object({
     intent: z.literal("assign"),
     spotId: z.number({ error: "Choose a spot" }).int().positive(),

@@ -8,7 +8,15 @@
 import { describe, expect, it } from "vitest";
 import { parseCsvTime } from "~/domain/ingest/csv";
 import { zoneClock } from "~/domain/season/local-time";
-import { describeDstChange, parseLocalDateTime, resolveWall, toLocalInputValue, WallClockReader, zonedToUtc, zoneOffsetMinutes } from "~/lib/time";
+import {
+  describeDstChange,
+  parseLocalDateTime,
+  resolveWall,
+  toLocalInputValue,
+  WallClockReader,
+  zonedToUtc,
+  zoneOffsetMinutes,
+} from "~/lib/time";
 
 const utc = (d: Date | number) => new Date(d).toISOString().slice(0, 16) + "Z";
 const wall = (s: string) => {
@@ -121,10 +129,32 @@ describe("a logger's file of naive local times, read in file order", () => {
   it("says how the repeated and skipped rows were read", () => {
     const zone = "Europe/Madrid";
     const reader = new WallClockReader(zone);
-    for (const t of ["2025-10-26 01:50", "2025-10-26 02:00", "2025-10-26 02:30", "2025-10-26 02:00", "2025-10-26 02:30", "2025-10-26 03:00"]) parseCsvTime(t, "iso", reader);
-    for (const t of ["2025-03-30 01:30", "2025-03-30 02:00", "2025-03-30 02:20", "2025-03-30 02:40", "2025-03-30 03:00"]) parseCsvTime(t, "iso", reader);
+    for (const t of [
+      "2025-10-26 01:50",
+      "2025-10-26 02:00",
+      "2025-10-26 02:30",
+      "2025-10-26 02:00",
+      "2025-10-26 02:30",
+      "2025-10-26 03:00",
+    ])
+      parseCsvTime(t, "iso", reader);
+    for (const t of [
+      "2025-03-30 01:30",
+      "2025-03-30 02:00",
+      "2025-03-30 02:20",
+      "2025-03-30 02:40",
+      "2025-03-30 03:00",
+    ])
+      parseCsvTime(t, "iso", reader);
     const [repeat, gap] = [...reader.changes.values()];
-    expect(repeat).toMatchObject({ kind: "repeated", rows: 4, first: 2, second: 2, offsetBeforeMin: 120, offsetAfterMin: 60 });
+    expect(repeat).toMatchObject({
+      kind: "repeated",
+      rows: 4,
+      first: 2,
+      second: 2,
+      offsetBeforeMin: 120,
+      offsetAfterMin: 60,
+    });
     expect(gap).toMatchObject({ kind: "skipped", rows: 3 });
     expect(describeDstChange(repeat)).toBe(
       "4 rows in the repeated hour of 26 October 2025 were read in file order: 2 rows as the first occurrence, UTC+02:00, then 2 rows after the clock went back as the second, UTC+01:00.",

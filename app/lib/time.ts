@@ -30,7 +30,13 @@ export function naiveMs(wall: WallTime): number {
 function plainDateTime(naive: number): Temporal.PlainDateTime {
   const d = new Date(naive);
   return new Temporal.PlainDateTime(
-    d.getUTCFullYear(), d.getUTCMonth() + 1, d.getUTCDate(), d.getUTCHours(), d.getUTCMinutes(), d.getUTCSeconds(), d.getUTCMilliseconds(),
+    d.getUTCFullYear(),
+    d.getUTCMonth() + 1,
+    d.getUTCDate(),
+    d.getUTCHours(),
+    d.getUTCMinutes(),
+    d.getUTCSeconds(),
+    d.getUTCMilliseconds(),
   );
 }
 
@@ -71,7 +77,8 @@ class Zone {
         const s = earlier.epochMilliseconds;
         // The hour's instants keep that offset to its end and just past it (a step back right at
         // the end would make the end of this hour happen twice).
-        if (hour * HOUR_MS - o === s && this.offsetAt(s + HOUR_MS - 1) === o && this.offsetAt(s + HOUR_MS) === o) off = o;
+        if (hour * HOUR_MS - o === s && this.offsetAt(s + HOUR_MS - 1) === o && this.offsetAt(s + HOUR_MS) === o)
+          off = o;
       }
       if (this.byLocalHour.size >= CACHE_LIMIT) this.byLocalHour.clear();
       this.byLocalHour.set(hour, off);
@@ -163,7 +170,13 @@ export class WallClockReader {
     if (r.kind === "repeated") {
       const day = Math.floor(naive / 86_400_000);
       // The clock stepped back: an earlier (or equal) wall time right after one in the same repeat.
-      if (!this.secondPass.has(day) && this.prevRepeatedDay === day && this.prevNaive !== null && naive <= this.prevNaive) this.secondPass.add(day);
+      if (
+        !this.secondPass.has(day) &&
+        this.prevRepeatedDay === day &&
+        this.prevNaive !== null &&
+        naive <= this.prevNaive
+      )
+        this.secondPass.add(day);
       if (this.secondPass.has(day)) r = { ...r, ms: r.later };
       this.note(naive, r, this.secondPass.has(day) ? "second" : "first");
       this.prevRepeatedDay = day;
@@ -181,13 +194,23 @@ export class WallClockReader {
     if (!c) {
       const before = zoneOffsetMs(r.earlier, this.timeZone);
       const after = zoneOffsetMs(r.later, this.timeZone);
-      c = { date: key, kind: as === "skipped" ? "skipped" : "repeated", rows: 0, first: 0, second: 0, offsetBeforeMin: before / 60000, offsetAfterMin: after / 60000, example: null };
+      c = {
+        date: key,
+        kind: as === "skipped" ? "skipped" : "repeated",
+        rows: 0,
+        first: 0,
+        second: 0,
+        offsetBeforeMin: before / 60000,
+        offsetAfterMin: after / 60000,
+        example: null,
+      };
       this.changes.set(key, c);
     }
     c.rows++;
     if (as === "first") c.first++;
     if (as === "second") c.second++;
-    if (as === "skipped" && c.example === null) c.example = { wall: formatNaive(naive), readAs: formatNaive(r.ms + zoneOffsetMs(r.ms, this.timeZone)) };
+    if (as === "skipped" && c.example === null)
+      c.example = { wall: formatNaive(naive), readAs: formatNaive(r.ms + zoneOffsetMs(r.ms, this.timeZone)) };
   }
 }
 
@@ -215,7 +238,20 @@ export function formatOffset(minutes: number): string {
   return `UTC${sign}${String(Math.floor(m / 60)).padStart(2, "0")}:${String(m % 60).padStart(2, "0")}`;
 }
 
-const MONTHS = ["January", "February", "March", "April", "May", "June", "July", "August", "September", "October", "November", "December"];
+const MONTHS = [
+  "January",
+  "February",
+  "March",
+  "April",
+  "May",
+  "June",
+  "July",
+  "August",
+  "September",
+  "October",
+  "November",
+  "December",
+];
 
 /** One sentence on how the rows at a clock change were read, for the import preview. */
 export function describeDstChange(c: DstChange): string {
@@ -228,7 +264,10 @@ export function describeDstChange(c: DstChange): string {
     const example = c.example ? ` (${c.example.wall} as ${c.example.readAs})` : "";
     return `${rows(c.rows)} in the skipped hour of ${when} (clocks went forward, so those times never happened) were read as ${by} later, ${formatOffset(c.offsetAfterMin)}${example}.`;
   }
-  const second = c.second > 0 ? `, then ${rows(c.second)} after the clock went back as the second, ${formatOffset(c.offsetAfterMin)}` : "";
+  const second =
+    c.second > 0
+      ? `, then ${rows(c.second)} after the clock went back as the second, ${formatOffset(c.offsetAfterMin)}`
+      : "";
   return `${rows(c.rows)} in the repeated hour of ${when} were read in file order: ${rows(c.first)} as the first occurrence, ${formatOffset(c.offsetBeforeMin)}${second}.`;
 }
 
@@ -241,7 +280,14 @@ export function parseLocalDateTime(value: string, timeZone: string): Date | null
   const [, y, mo, d, h, mi, s] = m;
   const wall = { year: +y, month: +mo, day: +d, hour: +h, minute: +mi, second: s ? +s : 0 };
   const probe = new Date(naiveMs(wall));
-  if (Number.isNaN(probe.getTime()) || probe.getUTCDate() !== wall.day || wall.hour > 23 || wall.minute > 59 || wall.second > 59) return null;
+  if (
+    Number.isNaN(probe.getTime()) ||
+    probe.getUTCDate() !== wall.day ||
+    wall.hour > 23 ||
+    wall.minute > 59 ||
+    wall.second > 59
+  )
+    return null;
   return zonedToUtc(wall, timeZone);
 }
 

@@ -17,7 +17,12 @@ export async function loader({ request }: Route.LoaderArgs) {
   return {
     health: await ingestHealth(),
     now: Date.now(),
-    mail: { page: list.page, pages: list.pages, total: list.total, items: list.mail.map((m) => ({ id: m.id, at: m.at, to: m.to, subject: m.subject })) },
+    mail: {
+      page: list.page,
+      pages: list.pages,
+      total: list.total,
+      items: list.mail.map((m) => ({ id: m.id, at: m.at, to: m.to, subject: m.subject })),
+    },
   };
 }
 
@@ -37,13 +42,28 @@ export default function Admin({ loaderData }: Route.ComponentProps) {
     <main className="mx-auto max-w-6xl space-y-6 px-4 py-8 sm:px-6">
       <h1 className="h1">Ingest health</h1>
       <div className="grid gap-4 sm:grid-cols-2 lg:grid-cols-4">
-        <Tile label="Broker" value={health.broker.up ? "Up" : "Not running"} note={"port" in health.broker ? `MQTT ${health.broker.port}, WebSocket ${health.broker.wsPort}` : ""} />
-        <Tile label="Sensors connected now" value={"connected" in health.broker ? String(health.broker.connected) : "–"} />
-        <Tile label="Readings, last hour" value={lastHour.toLocaleString("en")} note={`${Math.round(lastHour / 60)} per minute`} />
+        <Tile
+          label="Broker"
+          value={health.broker.up ? "Up" : "Not running"}
+          note={"port" in health.broker ? `MQTT ${health.broker.port}, WebSocket ${health.broker.wsPort}` : ""}
+        />
+        <Tile
+          label="Sensors connected now"
+          value={"connected" in health.broker ? String(health.broker.connected) : "–"}
+        />
+        <Tile
+          label="Readings, last hour"
+          value={lastHour.toLocaleString("en")}
+          note={`${Math.round(lastHour / 60)} per minute`}
+        />
         <Tile
           label="Writer commit"
           value={health.writer.p50 != null ? `${health.writer.p50.toFixed(1)} ms` : "–"}
-          note={health.writer.p99 != null ? `p99 ${health.writer.p99.toFixed(1)} ms · ${health.writer.failures} failed batches` : ""}
+          note={
+            health.writer.p99 != null
+              ? `p99 ${health.writer.p99.toFixed(1)} ms · ${health.writer.failures} failed batches`
+              : ""
+          }
         />
       </div>
       <section className="card">
@@ -78,7 +98,10 @@ export default function Admin({ loaderData }: Route.ComponentProps) {
                 <span className="font-medium">{r.reason}</span> · {r.source}
                 {r.sensor_id ? ` · sensor ${r.sensor_id}` : ""} · {timeAgo(r.at, now)}
               </p>
-              <code className="block break-all text-xs text-muted">{r.topic ? `${r.topic}: ` : ""}{r.payload}</code>
+              <code className="block break-all text-xs text-muted">
+                {r.topic ? `${r.topic}: ` : ""}
+                {r.payload}
+              </code>
             </li>
           ))}
         </ul>
@@ -88,7 +111,8 @@ export default function Admin({ loaderData }: Route.ComponentProps) {
           <h2 className="h2 mb-3">Database</h2>
           <p className="mb-3 text-sm text-muted">
             Readings from {health.range.oldest ? new Date(health.range.oldest).toLocaleDateString("en-GB") : "–"} to{" "}
-            {health.range.newest ? timeAgo(health.range.newest, now) : "–"} (about {Number(health.range.total ?? 0).toLocaleString("en")} rows)
+            {health.range.newest ? timeAgo(health.range.newest, now) : "–"} (about{" "}
+            {Number(health.range.total ?? 0).toLocaleString("en")} rows)
           </p>
           <table className="table">
             <tbody>
@@ -104,7 +128,8 @@ export default function Admin({ loaderData }: Route.ComponentProps) {
         <section className="card">
           <h2 className="h2 mb-3">Mail sink</h2>
           <p className="mb-3 text-sm text-muted">
-            Messages the local SMTP sink received (development and demo only), newest first; it keeps the last 500, each at most 256 KB.
+            Messages the local SMTP sink received (development and demo only), newest first; it keeps the last 500, each
+            at most 256 KB.
           </p>
           {mail.total === 0 ? <p className="text-muted">None yet.</p> : null}
           <ul className="space-y-2 text-sm" data-testid="sunk-mail">

@@ -37,7 +37,8 @@ function chunks(text: string) {
     // A shell comment ("# A spot with three weeks of readings") belongs with the command under it.
     const kind: "ask" | "answer" = continued || /^(curl|mosquitto_pub|#)/.test(line) ? "ask" : "answer";
     const last = out.at(-1);
-    if (last && last.kind === kind && (kind === "answer" || continued || last.lines.at(-1)!.startsWith("#"))) last.lines.push(line);
+    if (last && last.kind === kind && (kind === "answer" || continued || last.lines.at(-1)!.startsWith("#")))
+      last.lines.push(line);
     else out.push({ kind, lines: [line] });
     continued = kind === "ask" && line.endsWith("\\");
   }
@@ -62,7 +63,17 @@ function Code({ children }: { children: string }) {
 /** What a method does, in words; the method itself stays beside it for scripts. */
 const VERB: Record<string, string> = { GET: "Read", POST: "Send", MQTT: "Publish" };
 
-function Endpoint({ method, path, who, children }: { method: string; path: string; who: string; children: React.ReactNode }) {
+function Endpoint({
+  method,
+  path,
+  who,
+  children,
+}: {
+  method: string;
+  path: string;
+  who: string;
+  children: React.ReactNode;
+}) {
   return (
     <div className="space-y-2 border-t border-stone-line pt-4 first:border-t-0 first:pt-0">
       <h3 className="api-endpoint flex items-start gap-3">
@@ -71,7 +82,8 @@ function Endpoint({ method, path, who, children }: { method: string; path: strin
         </span>
         <span className="min-w-0">
           <span className="eyebrow block text-ink">
-            {VERB[method] ?? method} <span className="font-mono font-medium tracking-normal normal-case">({method})</span>
+            {VERB[method] ?? method}{" "}
+            <span className="font-mono font-medium tracking-normal normal-case">({method})</span>
           </span>
           <code className="block font-mono text-sm font-semibold break-all">{path}</code>
         </span>
@@ -89,7 +101,8 @@ export default function ApiDocs({ loaderData: d }: Route.ComponentProps) {
       <div>
         <h1 className="h1">The Nichewise API</h1>
         <p className="mt-2 text-muted">
-          Sensors send readings in; you take series, season profiles and exports out. Examples below use your own first site
+          Sensors send readings in; you take series, season profiles and exports out. Examples below use your own first
+          site
           {d.spotName ? ` and the spot "${d.spotName}"` : ""} (site {d.siteId}, spot {d.spotId}).
         </p>
       </div>
@@ -97,30 +110,34 @@ export default function ApiDocs({ loaderData: d }: Route.ComponentProps) {
       <section className="card space-y-3">
         <h2 className="h2">Signing in from a script</h2>
         <p className="text-sm">
-          Sensors authenticate with their own id and secret (below). Everything else answers to your signed-in session, the same as the
-          pages: sign in once with curl and keep the cookie. You see exactly what your role in the site lets you see; another site's ids
-          answer 404.
+          Sensors authenticate with their own id and secret (below). Everything else answers to your signed-in session,
+          the same as the pages: sign in once with curl and keep the cookie. You see exactly what your role in the site
+          lets you see; another site's ids answer 404.
         </p>
         <Code>{`curl -c cookies.txt -d 'email=${d.email}' --data-urlencode 'password=YOUR PASSWORD' ${d.origin}/sign-in`}</Code>
       </section>
 
       <section className="card space-y-4">
         <h2 className="h2">Ingest: readings in</h2>
-        <Endpoint method="MQTT" path={`nichewise/sensors/<id>/reading`} who="A sensor, with user name = its id and password = its secret (shown once when it is added), QoS 1.">
+        <Endpoint
+          method="MQTT"
+          path={`nichewise/sensors/<id>/reading`}
+          who="A sensor, with user name = its id and password = its secret (shown once when it is added), QoS 1."
+        >
           <p className="text-sm">
-            A JSON object with any of <code>temperature</code> (°C, or °F with <code>"unit":"F"</code>), <code>humidity</code> (%),{" "}
-            <code>lux</code>, <code>battery</code> (%), and an optional <code>time</code> (ISO 8601 with a zone, or epoch seconds or
-            milliseconds). Plain numbers go to <code>…/temperature</code>, <code>…/humidity</code>, <code>…/lux</code> or{" "}
-            <code>…/battery</code>. A payload that cannot be read is acknowledged and recorded with its reason (the admin's ingest health page
-            lists them).
+            A JSON object with any of <code>temperature</code> (°C, or °F with <code>"unit":"F"</code>),{" "}
+            <code>humidity</code> (%), <code>lux</code>, <code>battery</code> (%), and an optional <code>time</code>{" "}
+            (ISO 8601 with a zone, or epoch seconds or milliseconds). Plain numbers go to <code>…/temperature</code>,{" "}
+            <code>…/humidity</code>, <code>…/lux</code> or <code>…/battery</code>. A payload that cannot be read is
+            acknowledged and recorded with its reason (the admin's ingest health page lists them).
           </p>
           <Code>{`mosquitto_pub -h ${d.mqttHost} -p ${d.mqttPort} -q 1 -u 7 -P 'SECRET' -t nichewise/sensors/7/reading \\
   -m '{"temperature":18.4,"humidity":56}'`}</Code>
         </Endpoint>
         <Endpoint method="POST" path="/api/ingest" who="A sensor, with Authorization: Bearer <id>.<secret>.">
           <p className="text-sm">
-            One reading, an array, or <code>{`{"readings":[…]}`}</code> with up to 10,000 buffered readings (4 MB). The answer comes after the
-            commit and lists each rejected reading with its reason.
+            One reading, an array, or <code>{`{"readings":[…]}`}</code> with up to 10,000 buffered readings (4 MB). The
+            answer comes after the commit and lists each rejected reading with its reason.
           </p>
           <Code>{`curl -X POST ${d.origin}/api/ingest -H 'Authorization: Bearer 7.SECRET' \\
   -H 'Content-Type: application/json' \\
@@ -131,11 +148,16 @@ export default function ApiDocs({ loaderData: d }: Route.ComponentProps) {
 
       <section className="card space-y-4">
         <h2 className="h2">Series: chart data</h2>
-        <Endpoint method="GET" path="/api/sites/:siteId/spots/:spotId/series?range=48h|30d|year" who="Any member of the site.">
+        <Endpoint
+          method="GET"
+          path="/api/sites/:siteId/spots/:spotId/series?range=48h|30d|year"
+          who="Any member of the site."
+        >
           <p className="text-sm">
-            Columnar JSON (one array per column, times in epoch seconds), calibrated. <code>48h</code> gives raw readings (<code>temp</code>,{" "}
-            <code>rh</code>, <code>margin</code> = air temperature minus dew point); <code>30d</code> hourly means with <code>t_min</code>/
-            <code>t_max</code>; <code>year</code> daily <code>low</code>/<code>high</code> in the site's time zone.
+            Columnar JSON (one array per column, times in epoch seconds), calibrated. <code>48h</code> gives raw
+            readings (<code>temp</code>, <code>rh</code>, <code>margin</code> = air temperature minus dew point);{" "}
+            <code>30d</code> hourly means with <code>t_min</code>/<code>t_max</code>; <code>year</code> daily{" "}
+            <code>low</code>/<code>high</code> in the site's time zone.
           </p>
           <Code>{`curl -b cookies.txt '${spot}/series?range=30d'
 {"resolution":"hour","t":[1764547200,…],"temp":[17.2,…],"rh":[61.5,…],"t_min":[…],"t_max":[…],"margin":[…]}`}</Code>
@@ -153,28 +175,33 @@ export default function ApiDocs({ loaderData: d }: Route.ComponentProps) {
           who="Any member of the site. from and to are months in the site's time zone (at most 36 months); without them, the spot's latest twelve months with readings, as on the spot page."
         >
           <p className="text-sm">
-            Every plant group of the site, best fit first (ranked by how far the spot misses each: degree-hours past the group's damage
-            lines, then past its comfort range). Each has a stable <code>level</code> (<code>good</code>, <code>care</code>, <code>poor</code>,{" "}
-            <code>unknown</code> = not enough data yet), the page's <code>verdict</code>, <code>seasonal</code> (months an outdoor spot suits
-            it, or null), and each rule's <code>level</code>, <code>facts</code> and <code>text</code>. Facts are numbers and dates, always in
-            °C (degree-hours in K·h); <code>text</code> says the same in your temperature unit. <code>glazing</code> adds the cold-glass check
-            for a windowsill, read against the site's outdoor spot. A malformed or out-of-range month is a 400 with <code>{`{"error"}`}</code>.
+            Every plant group of the site, best fit first (ranked by how far the spot misses each: degree-hours past the
+            group's damage lines, then past its comfort range). Each has a stable <code>level</code> (<code>good</code>,{" "}
+            <code>care</code>, <code>poor</code>, <code>unknown</code> = not enough data yet), the page's{" "}
+            <code>verdict</code>, <code>seasonal</code> (months an outdoor spot suits it, or null), and each rule's{" "}
+            <code>level</code>, <code>facts</code> and <code>text</code>. Facts are numbers and dates, always in °C
+            (degree-hours in K·h); <code>text</code> says the same in your temperature unit. <code>glazing</code> adds
+            the cold-glass check for a windowsill, read against the site's outdoor spot. A malformed or out-of-range
+            month is a 400 with <code>{`{"error"}`}</code>.
           </p>
           <p className="text-sm">
-            <strong>Measured and projected months.</strong> For a period running to today, months without enough readings (fewer than 20 days) are judged from
-            the spot's projection — its response to the outdoor weather played through the site's past years — once it has one (about two
-            weeks of readings and the site's weather fetched). <code>basis</code> says what the fits rest on: <code>confidence</code> (
-            <code>measured</code>: no month projected; <code>projected</code>: no month measured yet; <code>mixed</code>),{" "}
-            <code>measuredMonths</code> and <code>projectedMonths</code> (1–12; <code>blendedMonths</code> are partly measured),{" "}
-            <code>years</code> of past weather played through, and <code>firmBy</code>, the site's local date by which every month will have been
-            measured if the sensor stays. Each fit has its own <code>confidence</code> (a verdict ruled by a measured <code>poor</code> is{" "}
-            <code>measured</code>) and <code>verdictText</code> ("likely thrives here — 3 of 12 months measured, the rest projected from 10 past
-            years of weather; firm by 14 May"). Each rule has a <code>confidence</code>: <code>measured</code> (its level rests on readings),{" "}
-            <code>projected</code> (on projected months only) or <code>mixed</code> (fine on both). A projection never rules a group out: a
-            rule that projected months alone would make <code>poor</code> is <code>care</code> with <code>"likely":"poor"</code> and facts of kind{" "}
-            <code>projected-cold</code>, <code>projected-heat</code>, <code>projected-warm-nights</code>, <code>projected-humidity</code>,{" "}
-            <code>projected-ok</code> or <code>projected-cue</code>, each with the month, the figure and its 80 % range (<code>rangeC</code>).
-            Measured months always win: a measured month is never judged from its projection.
+            <strong>Measured and projected months.</strong> For a period running to today, months without enough
+            readings (fewer than 20 days) are judged from the spot's projection — its response to the outdoor weather
+            played through the site's past years — once it has one (about two weeks of readings and the site's weather
+            fetched). <code>basis</code> says what the fits rest on: <code>confidence</code> (<code>measured</code>: no
+            month projected; <code>projected</code>: no month measured yet; <code>mixed</code>),{" "}
+            <code>measuredMonths</code> and <code>projectedMonths</code> (1–12; <code>blendedMonths</code> are partly
+            measured), <code>years</code> of past weather played through, and <code>firmBy</code>, the site's local date
+            by which every month will have been measured if the sensor stays. Each fit has its own{" "}
+            <code>confidence</code> (a verdict ruled by a measured <code>poor</code> is <code>measured</code>) and{" "}
+            <code>verdictText</code> ("likely thrives here — 3 of 12 months measured, the rest projected from 10 past
+            years of weather; firm by 14 May"). Each rule has a <code>confidence</code>: <code>measured</code> (its
+            level rests on readings), <code>projected</code> (on projected months only) or <code>mixed</code> (fine on
+            both). A projection never rules a group out: a rule that projected months alone would make <code>poor</code>{" "}
+            is <code>care</code> with <code>"likely":"poor"</code> and facts of kind <code>projected-cold</code>,{" "}
+            <code>projected-heat</code>, <code>projected-warm-nights</code>, <code>projected-humidity</code>,{" "}
+            <code>projected-ok</code> or <code>projected-cue</code>, each with the month, the figure and its 80 % range
+            (<code>rangeC</code>). Measured months always win: a measured month is never judged from its projection.
           </p>
           <Code>{`curl -b cookies.txt '${spot}/fits?from=2025-01&to=2025-12'
 {"spot":{"id":1,…},"period":{"from":"2025-01-01T00:00:00.000Z","to":"2026-01-01T00:00:00.000Z","firstMonth":"2025-01","lastMonth":"2025-12","toToday":false},
@@ -204,22 +231,24 @@ curl -b cookies.txt '${spot}/fits'
         >
           <ul className="list-disc space-y-1 pl-5 text-sm">
             <li>
-              <code>what=raw</code>: every reading, columns <code>time</code> (UTC), <code>sensor_id</code>, <code>temperature_c</code>,{" "}
-              <code>humidity_pct</code>, <code>lux</code>, <code>battery_pct</code>, with the sensor's calibration applied. Streamed from
-              the database, so a year of one-minute readings (about 525,600 rows) downloads without waiting for the whole file.
+              <code>what=raw</code>: every reading, columns <code>time</code> (UTC), <code>sensor_id</code>,{" "}
+              <code>temperature_c</code>, <code>humidity_pct</code>, <code>lux</code>, <code>battery_pct</code>, with
+              the sensor's calibration applied. Streamed from the database, so a year of one-minute readings (about
+              525,600 rows) downloads without waiting for the whole file.
             </li>
             <li>
-              <code>what=hourly</code>: the hourly rollups: sample counts, mean, lowest and highest temperature and humidity, the smallest
-              dew-point margin and mean light of each local hour.
+              <code>what=hourly</code>: the hourly rollups: sample counts, mean, lowest and highest temperature and
+              humidity, the smallest dew-point margin and mean light of each local hour.
             </li>
             <li>
-              <code>what=profile</code>: the season profile of the period, one row per calendar month and per season: lowest, highest, 5th and
-              95th percentile of hourly temperature, mean daily low and high, day–night difference, humidity, hours near condensation, mean
-              daily light integral.
+              <code>what=profile</code>: the season profile of the period, one row per calendar month and per season:
+              lowest, highest, 5th and 95th percentile of hourly temperature, mean daily low and high, day–night
+              difference, humidity, hours near condensation, mean daily light integral.
             </li>
           </ul>
           <p className="text-sm">
-            JSON answers are <code>{`{"meta":{…},"columns":[…],"rows":[[…],…]}`}</code> (profile: <code>{`{"meta","months","seasons"}`}</code>
+            JSON answers are <code>{`{"meta":{…},"columns":[…],"rows":[[…],…]}`}</code> (profile:{" "}
+            <code>{`{"meta","months","seasons"}`}</code>
             ); CSV has a header line. Bad parameters answer 400 with <code>{`{"error":"…"}`}</code>.
           </p>
           <Code>{`curl -b cookies.txt -OJ '${spot}/export?what=raw&format=csv&from=2025-01-01&to=2025-12-31'

@@ -27,7 +27,11 @@ export async function loader({ request, params }: Route.LoaderArgs) {
       ? await exportProfile({ spot, site, format: f, from: period.from, to: period.to })
       : exportReadings({ spot, site, kind: what as "raw" | "hourly", format: f, from: period.from, to: period.to });
   const day = (d: Date) => d.toISOString().slice(0, 10);
-  const slug = spot.name.toLowerCase().replace(/[^a-z0-9]+/g, "-").replace(/^-|-$/g, "") || `spot-${spot.id}`;
+  const slug =
+    spot.name
+      .toLowerCase()
+      .replace(/[^a-z0-9]+/g, "-")
+      .replace(/^-|-$/g, "") || `spot-${spot.id}`;
   const filename = `nichewise-${slug}-${what}-${day(period.from)}-to-${day(new Date(period.to.getTime() - 1))}.${f}`;
   return new Response(body, {
     headers: {

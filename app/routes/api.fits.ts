@@ -5,7 +5,15 @@
 // other spot routes: any member of the site.
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
 import { sitePlants } from "~/.server/plants";
-import { describeSeasonal, glassContextFor, judgedPeriods, parseGlazing, parsePeriod, spotProfiles, windowOf } from "~/.server/profiles";
+import {
+  describeSeasonal,
+  glassContextFor,
+  judgedPeriods,
+  parseGlazing,
+  parsePeriod,
+  spotProfiles,
+  windowOf,
+} from "~/.server/profiles";
 import { getSite } from "~/.server/sites";
 import { getSpot, listSpots } from "~/.server/spots";
 import { GLAZING_U } from "~/domain/climate/glass";
@@ -21,8 +29,10 @@ const MONTH_RE = /^(\d{4})-(0[1-9]|1[0-2])$/;
 const MAX_MONTHS = 36;
 
 const monthIndex = (key: string) => Number(key.slice(0, 4)) * 12 + Number(key.slice(5, 7)) - 1;
-const keyOfIndex = (i: number) => `${String(Math.floor(i / 12)).padStart(4, "0")}-${String((i % 12) + 1).padStart(2, "0")}`;
-const startOf = (i: number, timeZone: string) => zonedToUtc({ year: Math.floor(i / 12), month: (i % 12) + 1, day: 1 }, timeZone);
+const keyOfIndex = (i: number) =>
+  `${String(Math.floor(i / 12)).padStart(4, "0")}-${String((i % 12) + 1).padStart(2, "0")}`;
+const startOf = (i: number, timeZone: string) =>
+  zonedToUtc({ year: Math.floor(i / 12), month: (i % 12) + 1, day: 1 }, timeZone);
 
 function bad(message: string): never {
   throw Response.json({ error: message }, { status: 400 });
@@ -38,7 +48,8 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const glazingQ = q.get("glazing")?.slice(0, 20) ?? null;
   if (fromQ !== null && !MONTH_RE.test(fromQ)) bad("from is a month, YYYY-MM");
   if (toQ !== null && !MONTH_RE.test(toQ)) bad("to is a month, YYYY-MM");
-  if (glazingQ !== null && !Object.hasOwn(GLAZING_U, glazingQ)) bad(`glazing is one of ${Object.keys(GLAZING_U).join(", ")}`);
+  if (glazingQ !== null && !Object.hasOwn(GLAZING_U, glazingQ))
+    bad(`glazing is one of ${Object.keys(GLAZING_U).join(", ")}`);
   const now = new Date();
   const current = monthIndex(toLocalInputValue(now, site.timeZone).slice(0, 7));
 
@@ -53,7 +64,13 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     if (last - first + 1 > MAX_MONTHS) bad(`at most ${MAX_MONTHS} months at once`);
     const end = startOf(Math.min(last, current) + 1, site.timeZone);
     const toToday = end.getTime() > now.getTime();
-    period = { from: startOf(first, site.timeZone), to: toToday ? now : end, firstMonth: keyOfIndex(first), lastMonth: keyOfIndex(Math.min(last, current)), toToday };
+    period = {
+      from: startOf(first, site.timeZone),
+      to: toToday ? now : end,
+      firstMonth: keyOfIndex(first),
+      lastMonth: keyOfIndex(Math.min(last, current)),
+      toToday,
+    };
   }
 
   // Cold glass from the spot's glazing (or the one asked for), when the site has an outdoor spot to read.
@@ -65,12 +82,25 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const format: Format = { unit: user.temperatureUnit };
   // Months of a period running to today not measured yet are filled from the spot's projection, when it has one.
   const projection = period.toToday ? await fitProjection(spot.id, season, { now }) : null;
-  const ranked = rankPlantsForSpot(plants, season, undefined, { window: windowOf(site, spot), glass, projection: projection ?? undefined });
+  const ranked = rankPlantsForSpot(plants, season, undefined, {
+    window: windowOf(site, spot),
+    glass,
+    projection: projection ?? undefined,
+  });
   return Response.json(
     {
       spot: { id: spot.id, name: spot.name, indoor: spot.indoor, facing: spot.facing },
-      period: { from: period.from.toISOString(), to: period.to.toISOString(), firstMonth: period.firstMonth, lastMonth: period.lastMonth, toToday: period.toToday },
-      units: { facts: "°C, K, degree-hours in K·h, %, mol m⁻² d⁻¹; dates are the site's local dates", text: `°${format.unit}` },
+      period: {
+        from: period.from.toISOString(),
+        to: period.to.toISOString(),
+        firstMonth: period.firstMonth,
+        lastMonth: period.lastMonth,
+        toToday: period.toToday,
+      },
+      units: {
+        facts: "°C, K, degree-hours in K·h, %, mol m⁻² d⁻¹; dates are the site's local dates",
+        text: `°${format.unit}`,
+      },
       glazing: glass ? { glazing, uValue: glass.uValue } : null,
       // What every fit below rests on: months measured, months filled from the projection, when it is firm.
       basis: basisOf(season, projection ?? undefined) ?? {

@@ -3,7 +3,10 @@ import type { Route } from "./+types/api.ingest";
 
 // Sensors authenticate with their own secret (checked in handleHttpIngest), not a session.
 export async function loader() {
-  return Response.json({ error: "POST readings here with Authorization: Bearer <sensor id>.<secret>" }, { status: 405 });
+  return Response.json(
+    { error: "POST readings here with Authorization: Bearer <sensor id>.<secret>" },
+    { status: 405 },
+  );
 }
 
 export async function action({ request, context }: Route.ActionArgs) {

@@ -32,7 +32,11 @@ export async function action({ request, params }: Route.ActionArgs) {
   await requireSiteRole(request, params.siteId, ALL_ROLES);
   const form = await readForm(request);
   const intent = String(form.get("intent") ?? "");
-  const { siteId, user } = await requireSiteRole(request, params.siteId, intent === "resolve" || intent === "reopen" ? ["owner"] : ["owner", "mentor"]);
+  const { siteId, user } = await requireSiteRole(
+    request,
+    params.siteId,
+    intent === "resolve" || intent === "reopen" ? ["owner"] : ["owner", "mentor"],
+  );
   try {
     if (intent === "add") {
       const target = targetFrom((k) => (form.get(k) as string | null) ?? null);
@@ -46,12 +50,17 @@ export async function action({ request, params }: Route.ActionArgs) {
     }
     if (intent === "resolve" || intent === "reopen") {
       const noteId = toId(form.get("noteId"));
-      if (noteId === null) return data({ intent, error: "Choose a note; reload the page and try again.", body: "" }, { status: 400 });
+      if (noteId === null)
+        return data({ intent, error: "Choose a note; reload the page and try again.", body: "" }, { status: 400 });
       await setNoteResolved({ siteId, actorId: user.id, noteId, resolved: intent === "resolve" });
       return { intent, ok: true };
     }
   } catch (err) {
-    if (err instanceof NoteError) return data({ intent, error: err.message, body: (err as NoteError & { body?: string }).body ?? "" }, { status: 400 });
+    if (err instanceof NoteError)
+      return data(
+        { intent, error: err.message, body: (err as NoteError & { body?: string }).body ?? "" },
+        { status: 400 },
+      );
     throw err;
   }
   return data({ intent, error: "Unknown action" }, { status: 400 });

@@ -14,12 +14,16 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const spot = await getSpot(siteId, params.spotId);
   const site = await getSite(siteId);
   const range = new URL(request.url).searchParams.get("range") ?? "48h";
-  if (!(RANGES as readonly string[]).includes(range)) throw data(`range is one of ${RANGES.join(", ")}`, { status: 400 });
+  if (!(RANGES as readonly string[]).includes(range))
+    throw data(`range is one of ${RANGES.join(", ")}`, { status: 400 });
   const now = new Date();
   const series = await spotSeries(spot.id, site.timeZone, range as (typeof RANGES)[number], now);
   // The span asked for and how to write its dates, so a chart keeps its 48 hours or its year on the axis
   // however little has been read, in the site's own dates.
   const to = Math.floor(now.getTime() / 1000);
   const from = to - SPAN_DAYS[range as (typeof RANGES)[number]] * 86_400;
-  return Response.json({ ...series, from, to, locale: DEFAULT_FORMAT.locale, timeZone: site.timeZone }, { headers: { "Cache-Control": "private, max-age=30" } });
+  return Response.json(
+    { ...series, from, to, locale: DEFAULT_FORMAT.locale, timeZone: site.timeZone },
+    { headers: { "Cache-Control": "private, max-age=30" } },
+  );
 }

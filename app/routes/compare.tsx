@@ -50,22 +50,38 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   }
   const f = monthStart(from);
   const t = monthStart(to);
-  if ((t.y - f.y) * 12 + (t.m - f.m) > 35) problems.push("Compare at most three years at a time; showing the last three years of the period.");
+  if ((t.y - f.y) * 12 + (t.m - f.m) > 35)
+    problems.push("Compare at most three years at a time; showing the last three years of the period.");
   // Months are the site's: a spot's rollups are kept by local hour.
   const toDate = new Date(Math.min(now.getTime(), localMonthStart(t.y, t.m + 1, site.timeZone).getTime()));
-  const fromDate = new Date(Math.max(localMonthStart(f.y, f.m, site.timeZone).getTime(), localMonthStart(t.y - 3, t.m + 1, site.timeZone).getTime()));
+  const fromDate = new Date(
+    Math.max(
+      localMonthStart(f.y, f.m, site.timeZone).getTime(),
+      localMonthStart(t.y - 3, t.m + 1, site.timeZone).getTime(),
+    ),
+  );
 
-  const asked = q.getAll("spots").map(Number).filter((id) => spots.some((s) => s.id === id));
+  const asked = q
+    .getAll("spots")
+    .map(Number)
+    .filter((id) => spots.some((s) => s.id === id));
   const chosen = q.has("spots") ? [...new Set(asked)] : spots.slice(0, 2).map((s) => s.id);
   if (q.has("spots") && chosen.length < 2) problems.push("Choose at least two spots to compare.");
   if (chosen.length > 4) problems.push("Compare up to four spots at a time; showing the first four chosen.");
   const ids = chosen.slice(0, 4);
-  const profiles = ids.length >= 2 ? await spotProfiles(site, ids, now, { range: { from: fromDate, to: toDate } }) : new Map();
+  const profiles =
+    ids.length >= 2 ? await spotProfiles(site, ids, now, { range: { from: fromDate, to: toDate } }) : new Map();
   const compared = ids.map((id) => {
     const spot = spots.find((s) => s.id === id)!;
     const season = profiles.get(id);
     return season
-      ? { id, name: spot.name, months: slimMonths(season), year: slimProfile(season).year, hemisphere: season.hemisphere }
+      ? {
+          id,
+          name: spot.name,
+          months: slimMonths(season),
+          year: slimProfile(season).year,
+          hemisphere: season.hemisphere,
+        }
       : { id, name: spot.name, months: [], year: [], hemisphere: "northern" as const };
   });
   return {
@@ -78,7 +94,6 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     compared: profiles.size ? compared : [],
   };
 }
-
 
 const ROWS: { label: string; get: (f: SeasonFigures, u: TempUnit) => string; hint?: string }[] = [
   { label: "Lowest", get: (f, u) => formatTemp(f.lowest, u) },
@@ -93,16 +108,37 @@ const ROWS: { label: string; get: (f: SeasonFigures, u: TempUnit) => string; hin
 
 export default function Compare({ loaderData }: Route.ComponentProps) {
   const { unit, spots, chosen, compared, problems } = loaderData;
-  const withSeasons = useMemo(() => compared.map((c) => ({ ...c, seasons: seasonsOfYear(c.year, c.hemisphere) })), [compared]);
+  const withSeasons = useMemo(
+    () => compared.map((c) => ({ ...c, seasons: seasonsOfYear(c.year, c.hemisphere) })),
+    [compared],
+  );
   const headlines = useMemo(() => compareHeadlines(withSeasons), [withSeasons]);
   // All spots share the period, so their calendar months line up; take the longest list as the axis.
-  const axisMonths = useMemo(() => compared.reduce<{ key: string; year: number; month: number }[]>((a, c) => (c.months.length > a.length ? c.months : a), []), [compared]);
-  const spec = useMemo(() => compareSpec(axisMonths.map((m, i) => (i === 0 || m.month === 1 ? `${MONTHS_SHORT[m.month - 1]} ${m.year}` : MONTHS_SHORT[m.month - 1])), compared, unit), [axisMonths, compared, unit]);
+  const axisMonths = useMemo(
+    () =>
+      compared.reduce<{ key: string; year: number; month: number }[]>(
+        (a, c) => (c.months.length > a.length ? c.months : a),
+        [],
+      ),
+    [compared],
+  );
+  const spec = useMemo(
+    () =>
+      compareSpec(
+        axisMonths.map((m, i) =>
+          i === 0 || m.month === 1 ? `${MONTHS_SHORT[m.month - 1]} ${m.year}` : MONTHS_SHORT[m.month - 1],
+        ),
+        compared,
+        unit,
+      ),
+    [axisMonths, compared, unit],
+  );
   const data = useMemo(() => {
     const d: Record<string, (number | null)[]> = { x: axisMonths.map((_, i) => i) };
     compared.forEach((c, i) => {
       const byKey = new Map(c.months.map((m) => [m.key, m]));
-      const col = (f: (m: (typeof c.months)[number]) => number | null) => axisMonths.map((a) => (byKey.has(a.key) ? f(byKey.get(a.key)!) : null));
+      const col = (f: (m: (typeof c.months)[number]) => number | null) =>
+        axisMonths.map((a) => (byKey.has(a.key) ? f(byKey.get(a.key)!) : null));
       d[`highest${i}`] = col((m) => m.temperature.highest);
       d[`p95${i}`] = col((m) => m.temperature.p95);
       d[`p05${i}`] = col((m) => m.temperature.p05);
@@ -156,12 +192,18 @@ export default function Compare({ loaderData }: Route.ComponentProps) {
           <section className="card" data-testid="compare-headlines">
             <h3 className="h2 mb-2">In short</h3>
             {headlines.length === 0 ? (
-              <p className="text-sm text-muted">Not enough months measured in every spot to say which is warmest or coolest in any season yet.</p>
+              <p className="text-sm text-muted">
+                Not enough months measured in every spot to say which is warmest or coolest in any season yet.
+              </p>
             ) : (
               <ul className="list-disc space-y-1 pl-5">
                 {headlines.map((h) => (
                   <li key={`${h.season}-${h.kind}`}>
-                    {describeHeadline(h, (c) => formatTemp(c, unit), (c) => formatDelta(c, unit))}
+                    {describeHeadline(
+                      h,
+                      (c) => formatTemp(c, unit),
+                      (c) => formatDelta(c, unit),
+                    )}
                   </li>
                 ))}
               </ul>
@@ -174,7 +216,15 @@ export default function Compare({ loaderData }: Route.ComponentProps) {
                 <li key={c.id} className="inline-flex items-center gap-2">
                   <svg width="28" height="12" aria-hidden="true">
                     <rect x="0" y="2" width="28" height="8" fill={SPOT_COLOURS[i]} opacity="0.18" />
-                    <line x1="0" x2="28" y1="6" y2="6" stroke={SPOT_COLOURS[i]} strokeWidth="2" strokeDasharray={SPOT_DASH[i]?.join(" ")} />
+                    <line
+                      x1="0"
+                      x2="28"
+                      y1="6"
+                      y2="6"
+                      stroke={SPOT_COLOURS[i]}
+                      strokeWidth="2"
+                      strokeDasharray={SPOT_DASH[i]?.join(" ")}
+                    />
                   </svg>
                   {c.name}
                 </li>
@@ -182,12 +232,17 @@ export default function Compare({ loaderData }: Route.ComponentProps) {
             </ul>
             <Chart spec={spec} data={data} testId="chart-compare" />
             <p className="text-xs text-muted">
-              For each spot: lines at the month's lowest and highest, shaded between 5 % and 95 % of hourly mean temperatures. Each spot has its own
-              colour and line pattern.
+              For each spot: lines at the month's lowest and highest, shaded between 5 % and 95 % of hourly mean
+              temperatures. Each spot has its own colour and line pattern.
             </p>
             <details className="text-sm">
               <summary className="cursor-pointer font-medium">The envelopes as a table</summary>
-              <div className="-mx-5 overflow-x-auto px-5" tabIndex={0} role="region" aria-label="The envelopes as a table">
+              <div
+                className="-mx-5 overflow-x-auto px-5"
+                tabIndex={0}
+                role="region"
+                aria-label="The envelopes as a table"
+              >
                 <table className="table mt-2">
                   <thead>
                     <tr>
@@ -219,8 +274,8 @@ export default function Compare({ loaderData }: Route.ComponentProps) {
           <section className="card">
             <h3 className="h2 mb-1">Season by season</h3>
             <p className="mb-3 text-sm text-muted">
-              Each season's months in the chosen period taken together; months with fewer than 20 days of readings are left out (the count shows how
-              many of its three months are in).
+              Each season's months in the chosen period taken together; months with fewer than 20 days of readings are
+              left out (the count shows how many of its three months are in).
             </p>
             <div className="-mx-5 overflow-x-auto px-5" tabIndex={0} role="region" aria-label="Seasons side by side">
               <table className="table min-w-[36rem]" data-testid="compare-table">

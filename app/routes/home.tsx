@@ -29,9 +29,9 @@ export default function Home({ loaderData }: Route.ComponentProps) {
         <div className="card mt-8 max-w-xl">
           <h2 className="h2">Start by measuring</h2>
           <p className="mt-2 text-muted">
-            Create a site for your home, add the spots you are thinking of (a windowsill, a shelf, a bench outside), and put a
-            temperature and humidity sensor in each. After a few weeks Nichewise shows each spot's real range and which plants
-            would thrive there.
+            Create a site for your home, add the spots you are thinking of (a windowsill, a shelf, a bench outside), and
+            put a temperature and humidity sensor in each. After a few weeks Nichewise shows each spot's real range and
+            which plants would thrive there.
           </p>
         </div>
       ) : (

@@ -72,14 +72,15 @@ export async function action({ request, params }: Route.ActionArgs) {
   };
   // A million-row file takes seconds: one at a time per grower, two in the whole server.
   const release = csvSlot(String(user.id));
-  if (!release) return data({ error: "Another preview or import is running; try again when it has finished." }, { status: 429 });
+  if (!release)
+    return data({ error: "Another preview or import is running; try again when it has finished." }, { status: 429 });
   try {
     const sensorPage = `/sites/${siteId}/sensors/${sensor.id}#placements`;
     if (form.intent === "import") {
       const result = await importCsv(bytes, mapping, sensor.id, { head });
       // An import stopped by the database going away still gets its answer, audited or not.
-      await auditCsvImport({ siteId, actorId: user.id, sensorId: sensor.id, sensorName: sensor.name, result }).catch((err) =>
-        console.error(`[csv] could not audit the import for sensor ${sensor.id}:`, err),
+      await auditCsvImport({ siteId, actorId: user.id, sensorId: sensor.id, sensorName: sensor.name, result }).catch(
+        (err) => console.error(`[csv] could not audit the import for sensor ${sensor.id}:`, err),
       );
       return data(
         { imported: { ...result, dstChanges: result.dstChanges.map(describeDstChange), sensorPage } },
@@ -136,10 +137,16 @@ export default function Import({ loaderData }: Route.ComponentProps) {
   return (
     <div className="max-w-4xl space-y-6">
       <p className="text-muted">
-        Many loggers export CSV. Up to {CSV_MAX_BYTES / 1024 / 1024} MB and {CSV_MAX_ROWS.toLocaleString("en")} rows per file; a file imported twice
-        adds nothing the second time.
+        Many loggers export CSV. Up to {CSV_MAX_BYTES / 1024 / 1024} MB and {CSV_MAX_ROWS.toLocaleString("en")} rows per
+        file; a file imported twice adds nothing the second time.
       </p>
-      <fetcher.Form method="post" encType="multipart/form-data" className="card space-y-5" key={key} {...getFormProps(form)}>
+      <fetcher.Form
+        method="post"
+        encType="multipart/form-data"
+        className="card space-y-5"
+        key={key}
+        {...getFormProps(form)}
+      >
         <div>
           <label className="label" htmlFor="file">
             CSV file
@@ -233,11 +240,19 @@ export default function Import({ loaderData }: Route.ComponentProps) {
           </button>
           {preview ? (
             <button className="btn" name="intent" value="import" disabled={busy}>
-              {importing ? `Importing ${preview.total.toLocaleString("en")} rows…` : `Import ${preview.total.toLocaleString("en")} rows`}
+              {importing
+                ? `Importing ${preview.total.toLocaleString("en")} rows…`
+                : `Import ${preview.total.toLocaleString("en")} rows`}
             </button>
           ) : null}
         </div>
-        {importing ? <div className="h-1.5 w-full animate-pulse rounded-[0.2rem] bg-accent/40" role="progressbar" aria-label="Importing" /> : null}
+        {importing ? (
+          <div
+            className="h-1.5 w-full animate-pulse rounded-[0.2rem] bg-accent/40"
+            role="progressbar"
+            aria-label="Importing"
+          />
+        ) : null}
       </fetcher.Form>
 
       {preview ? (
@@ -290,7 +305,8 @@ export default function Import({ loaderData }: Route.ComponentProps) {
                 .
               </p>
               <p className="text-sm">
-                They would be stored but shown on no spot&apos;s pages{preview.earliestOutside ? ` (the earliest is ${preview.earliestOutside})` : ""}.{" "}
+                They would be stored but shown on no spot&apos;s pages
+                {preview.earliestOutside ? ` (the earliest is ${preview.earliestOutside})` : ""}.{" "}
                 <a className="link" href={preview.sensorPage}>
                   Extend the sensor&apos;s placement
                 </a>{" "}
@@ -322,13 +338,15 @@ export default function Import({ loaderData }: Route.ComponentProps) {
           <p className="mt-2">
             {imported.stored.toLocaleString("en")} new readings stored of {imported.rows.toLocaleString("en")} rows
             {imported.duplicates > 0 ? `; ${imported.duplicates.toLocaleString("en")} were already stored` : ""}
-            {imported.conflicts > 0 ? `; ${imported.conflicts.toLocaleString("en")} had a different value already stored for their time, which was kept` : ""}
+            {imported.conflicts > 0
+              ? `; ${imported.conflicts.toLocaleString("en")} had a different value already stored for their time, which was kept`
+              : ""}
             {imported.failed > 0 ? `; ${imported.failed.toLocaleString("en")} rows skipped` : ""}.
           </p>
           {imported.outsideSpots > 0 ? (
             <p className="mt-2" role="alert" data-testid="csv-result-outside">
-              {imported.outsideSpots.toLocaleString("en")} of the file&apos;s readings are at times when the sensor was in no spot, so no
-              page shows them.{" "}
+              {imported.outsideSpots.toLocaleString("en")} of the file&apos;s readings are at times when the sensor was
+              in no spot, so no page shows them.{" "}
               <a className="link" href={imported.sensorPage}>
                 Assign them to a spot on the sensor&apos;s page
               </a>
@@ -344,9 +362,9 @@ export default function Import({ loaderData }: Route.ComponentProps) {
           ) : null}
           {imported.stopped ? (
             <p className="error mt-2" role="alert" data-testid="csv-stopped">
-              The rows from line {imported.stopped.line.toLocaleString("en")} on could not be stored ({imported.stopped.reason}). Everything
-              before that line is kept. Import the same file again when the server is back: rows already stored are skipped, so
-              only the rest is added.
+              The rows from line {imported.stopped.line.toLocaleString("en")} on could not be stored (
+              {imported.stopped.reason}). Everything before that line is kept. Import the same file again when the
+              server is back: rows already stored are skipped, so only the rest is added.
             </p>
           ) : null}
           <button type="button" className="btn-quiet mt-3" onClick={() => setKey((k) => k + 1)}>

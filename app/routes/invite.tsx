@@ -4,7 +4,14 @@
 // to invite this address instead. The link is single-use.
 import { data, Form, Link, redirect, useNavigation } from "react-router";
 import { getUser, requireUser } from "~/.server/auth";
-import { acceptInvitation, findInvitation, invitationState, MembershipError, sameAddress, WrongAccountError } from "~/.server/members";
+import {
+  acceptInvitation,
+  findInvitation,
+  invitationState,
+  MembershipError,
+  sameAddress,
+  WrongAccountError,
+} from "~/.server/members";
 import { AuthFrame } from "~/components/auth-frame";
 import type { Route } from "./+types/invite";
 
@@ -58,7 +65,9 @@ export default function Invite({ loaderData, actionData }: Route.ComponentProps)
   const navigation = useNavigation();
   const q = (extra: Record<string, string> = {}) => `?${new URLSearchParams({ next: d.next, ...extra })}`;
   if (d.state !== "open") {
-    const why = { accepted: "has already been used", revoked: "was withdrawn by the owner", expired: "has expired" }[d.state];
+    const why = { accepted: "has already been used", revoked: "was withdrawn by the owner", expired: "has expired" }[
+      d.state
+    ];
     return (
       <AuthFrame title={`Invitation to ${d.siteName}`} lead={`This invitation ${why}.`}>
         <p className="text-sm">
@@ -74,10 +83,19 @@ export default function Invite({ loaderData, actionData }: Route.ComponentProps)
     );
   }
   return (
-    <AuthFrame title={`Join ${d.siteName}`} lead={`${d.inviterName} invites you to share this site as ${roleWords[d.role]}.`}>
+    <AuthFrame
+      title={`Join ${d.siteName}`}
+      lead={`${d.inviterName} invites you to share this site as ${roleWords[d.role]}.`}
+    >
       <p className="mb-4 text-sm text-muted">
         Sent to {d.email}. The link works once, until{" "}
-        {new Date(d.expiresAt).toLocaleDateString("en-GB", { day: "numeric", month: "long", year: "numeric", timeZone: "UTC" })}.
+        {new Date(d.expiresAt).toLocaleDateString("en-GB", {
+          day: "numeric",
+          month: "long",
+          year: "numeric",
+          timeZone: "UTC",
+        })}
+        .
       </p>
       {actionData?.error ? (
         <p className="error mb-3" role="alert">
@@ -87,7 +105,8 @@ export default function Invite({ loaderData, actionData }: Route.ComponentProps)
       {d.user && d.wrongAccount ? (
         <div className="space-y-3" data-testid="wrong-account">
           <p className="error" role="alert">
-            This invitation is for {d.email}, and you are signed in as {d.user.email}. Only the invited address can accept it.
+            This invitation is for {d.email}, and you are signed in as {d.user.email}. Only the invited address can
+            accept it.
           </p>
           <Form method="post" action={`/sign-out`}>
             <button className="btn w-full" disabled={navigation.state !== "idle"}>
@@ -95,8 +114,8 @@ export default function Invite({ loaderData, actionData }: Route.ComponentProps)
             </button>
           </Form>
           <p className="text-sm text-muted">
-            After signing out, open this link again and sign in (or create an account) with {d.email}. To join with {d.user.email} instead, ask{" "}
-            {d.inviterName} to send an invitation to that address.
+            After signing out, open this link again and sign in (or create an account) with {d.email}. To join with{" "}
+            {d.user.email} instead, ask {d.inviterName} to send an invitation to that address.
           </p>
         </div>
       ) : d.user ? (

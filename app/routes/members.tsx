@@ -36,9 +36,18 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     me: user.id,
     // Only owners see e-mail addresses of the other members.
     members: members.map((m) => ({ ...m, email: owner || m.userId === user.id ? m.email : null })),
-    invitations: owner ? (await listInvitations(siteId)).filter((i) => i.state === "open" || Date.now() - i.createdAt.getTime() < 30 * 86_400_000) : [],
+    invitations: owner
+      ? (await listInvitations(siteId)).filter(
+          (i) => i.state === "open" || Date.now() - i.createdAt.getTime() < 30 * 86_400_000,
+        )
+      : [],
     changes: owner
-      ? (await recentChanges(siteId)).map((c) => ({ id: c.id, at: c.at, who: c.actorName ?? "Someone", what: describeChange(c.action, c.detail as ChangeDetail) }))
+      ? (await recentChanges(siteId)).map((c) => ({
+          id: c.id,
+          at: c.at,
+          who: c.actorName ?? "Someone",
+          what: describeChange(c.action, c.detail as ChangeDetail),
+        }))
       : [],
   };
 }
@@ -80,10 +89,16 @@ export async function action({ request, params }: Route.ActionArgs) {
   } catch (err) {
     if (err instanceof MembershipError) {
       const status = err instanceof InvitationLimitError ? 429 : 400;
-      const headers = err instanceof InvitationLimitError ? { "Retry-After": String(Math.max(1, Math.ceil((err.retryAt.getTime() - Date.now()) / 1000))) } : undefined;
+      const headers =
+        err instanceof InvitationLimitError
+          ? { "Retry-After": String(Math.max(1, Math.ceil((err.retryAt.getTime() - Date.now()) / 1000))) }
+          : undefined;
       // An invitation's refusal goes back with the address and role typed.
       const result = form.intent === "invite" ? submission.reply({ formErrors: [err.message] }) : undefined;
-      return data({ intent: form.intent, error: err.message, userId: "userId" in form ? form.userId : null, result }, { status, headers });
+      return data(
+        { intent: form.intent, error: err.message, userId: "userId" in form ? form.userId : null, result },
+        { status, headers },
+      );
     }
     throw err;
   }
@@ -143,7 +158,9 @@ export default function Members({ loaderData, actionData }: Route.ComponentProps
                       {lastOwnerNote}
                     </p>
                   ) : null}
-                  {refused && refused.userId === m.userId && (refused.intent === "role" || refused.intent === "remove") ? (
+                  {refused &&
+                  refused.userId === m.userId &&
+                  (refused.intent === "role" || refused.intent === "remove") ? (
                     <p className="error" role="alert">
                       {refused.error}
                     </p>
@@ -203,7 +220,9 @@ export default function Members({ loaderData, actionData }: Route.ComponentProps
             <button className="btn-quiet" disabled={busy || (owner && soleOwner)}>
               Leave this site
             </button>
-            {owner && soleOwner ? <p className="hint">You are the only owner, so you cannot leave yet: make someone else an owner first.</p> : null}
+            {owner && soleOwner ? (
+              <p className="hint">You are the only owner, so you cannot leave yet: make someone else an owner first.</p>
+            ) : null}
             {refused && refused.intent === "leave" ? (
               <p className="error" role="alert">
                 {refused.error}
@@ -225,7 +244,11 @@ export default function Members({ loaderData, actionData }: Route.ComponentProps
                     <span>
                       <span className="font-medium">{c.who}</span> {c.what}
                     </span>
-                    <time className="text-muted" dateTime={new Date(c.at).toISOString()} title={formatInZone(c.at, "UTC")}>
+                    <time
+                      className="text-muted"
+                      dateTime={new Date(c.at).toISOString()}
+                      title={formatInZone(c.at, "UTC")}
+                    >
                       {timeAgo(c.at, now)}
                     </time>
                   </li>
@@ -241,8 +264,9 @@ export default function Members({ loaderData, actionData }: Route.ComponentProps
           <section className="card">
             <h2 className="h2 mb-1">Invite someone</h2>
             <p className="mb-3 text-sm text-muted">
-              They get an e-mail with a link that works once, for 7 days, and only for that address. Opening it lets them sign in or create an account
-              with it, then join. At most {loaderData.invitesPerHour} invitations an hour for a site.
+              They get an e-mail with a link that works once, for 7 days, and only for that address. Opening it lets
+              them sign in or create an account with it, then join. At most {loaderData.invitesPerHour} invitations an
+              hour for a site.
             </p>
             <Form method="post" className="space-y-3" ref={inviteForm} {...getFormProps(invite)}>
               <input type="hidden" name="intent" value="invite" />
@@ -258,13 +282,15 @@ export default function Members({ loaderData, actionData }: Route.ComponentProps
                 <label className="flex items-start gap-2 text-sm">
                   <input {...getInputProps(inviteFields.role, { type: "radio", value: "carer" })} className="mt-1" />
                   <span>
-                    <span className="font-medium">Carer</span> — waters while you are away, logs water checks, moves sensors and plants
+                    <span className="font-medium">Carer</span> — waters while you are away, logs water checks, moves
+                    sensors and plants
                   </span>
                 </label>
                 <label className="mt-2 flex items-start gap-2 text-sm">
                   <input {...getInputProps(inviteFields.role, { type: "radio", value: "mentor" })} className="mt-1" />
                   <span>
-                    <span className="font-medium">Mentor</span> — reads everything and leaves notes; changes nothing else
+                    <span className="font-medium">Mentor</span> — reads everything and leaves notes; changes nothing
+                    else
                   </span>
                 </label>
                 <FieldError meta={inviteFields.role} />
@@ -291,7 +317,9 @@ export default function Members({ loaderData, actionData }: Route.ComponentProps
                     <span className="block font-medium break-all">{i.email}</span>
                     <span className="text-muted">
                       {i.role} · {stateWords[i.state]}
-                      {i.state === "open" ? ` · until ${formatInZone(i.expiresAt, "UTC", { hour: undefined, minute: undefined })}` : ""}
+                      {i.state === "open"
+                        ? ` · until ${formatInZone(i.expiresAt, "UTC", { hour: undefined, minute: undefined })}`
+                        : ""}
                     </span>
                   </span>
                   {i.state === "open" ? (

@@ -3,7 +3,15 @@ import { parseWithZod } from "@conform-to/zod/v4";
 import { data, Form, Link, redirect, useNavigation } from "react-router";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
 import { readForm, refuseForm } from "~/.server/ids";
-import { deleteCustomProfile, findSitePlant, saveWish, siteInventory, sitePlant, sitePlants, siteWishlist } from "~/.server/plants";
+import {
+  deleteCustomProfile,
+  findSitePlant,
+  saveWish,
+  siteInventory,
+  sitePlant,
+  sitePlants,
+  siteWishlist,
+} from "~/.server/plants";
 import { fitSummary, judgedPeriods, parsePeriod, pickableMonths, spotProfiles, windowOf } from "~/.server/profiles";
 import { periodLabel, PeriodPicker } from "~/components/period-picker";
 import { getSite } from "~/.server/sites";
@@ -25,16 +33,46 @@ export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.plant.n
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { siteId, role, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
   const [site, spots, wishes, inventory, plants, notes] = await Promise.all([
-    getSite(siteId), listSpots(siteId), siteWishlist(siteId), siteInventory(siteId), sitePlants(siteId), listNotes(siteId, { plantKey: params.plantKey }),
+    getSite(siteId),
+    listSpots(siteId),
+    siteWishlist(siteId),
+    siteInventory(siteId),
+    sitePlants(siteId),
+    listNotes(siteId, { plantKey: params.plantKey }),
   ]);
   const plant = findSitePlant(plants, params.plantKey);
   const now = new Date();
-  const { choice, problem: periodProblem } = parsePeriod(new URL(request.url).searchParams.get("period"), now, site.timeZone);
-  const periods = await judgedPeriods(site, spots.map((s) => s.id), choice, now);
-  const profiles = await spotProfiles(site, spots.map((s) => s.id), now, { plants, periods });
+  const { choice, problem: periodProblem } = parsePeriod(
+    new URL(request.url).searchParams.get("period"),
+    now,
+    site.timeZone,
+  );
+  const periods = await judgedPeriods(
+    site,
+    spots.map((s) => s.id),
+    choice,
+    now,
+  );
+  const profiles = await spotProfiles(
+    site,
+    spots.map((s) => s.id),
+    now,
+    { plants, periods },
+  );
   // Months not measured yet are judged from each spot's projection (issue 16); a past period stays as measured.
-  const projections = await fitProjections(new Map(spots.filter((s) => periods.get(s.id)?.toToday).map((s) => [s.id, profiles.get(s.id)!] as const)), { now });
-  const ranked = rankSpotsForPlant(plant, spots.map((s) => ({ spot: s, season: profiles.get(s.id)!, window: windowOf(site, s), projection: projections.get(s.id) })));
+  const projections = await fitProjections(
+    new Map(spots.filter((s) => periods.get(s.id)?.toToday).map((s) => [s.id, profiles.get(s.id)!] as const)),
+    { now },
+  );
+  const ranked = rankSpotsForPlant(
+    plant,
+    spots.map((s) => ({
+      spot: s,
+      season: profiles.get(s.id)!,
+      window: windowOf(site, s),
+      projection: projections.get(s.id),
+    })),
+  );
   const wish = wishes.find((w) => w.plantKey === plant.key) ?? null;
   return {
     role,
@@ -44,7 +82,9 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     notes: { rows: notes, timeZone: site.timeZone },
     basedOnName: plant.basedOn ? (PLANT_LIBRARY.find((p) => p.key === plant.basedOn)?.name ?? plant.basedOn) : null,
     wish: wish ? { mustHave: wish.mustHave, pots: wish.pots } : null,
-    standing: inventory.filter((i) => i.plantKey === plant.key).map((i) => ({ ...i, spotName: spots.find((s) => s.id === i.spotId)?.name ?? "" })),
+    standing: inventory
+      .filter((i) => i.plantKey === plant.key)
+      .map((i) => ({ ...i, spotName: spots.find((s) => s.id === i.spotId)?.name ?? "" })),
     spots: ranked.map(({ spot: { spot }, fit }) => {
       const f = fitSummary(plant, fit, { unit: user.temperatureUnit });
       const { firstMonth, lastMonth, toToday } = periods.get(spot.id)!;
@@ -60,7 +100,11 @@ export async function loader({ request, params }: Route.LoaderArgs) {
         period: { firstMonth, lastMonth, toToday },
       };
     }),
-    period: { chosen: choice.kind === "latest" ? "latest" : choice.month, months: pickableMonths(now, site.timeZone), problem: periodProblem },
+    period: {
+      chosen: choice.kind === "latest" ? "latest" : choice.month,
+      months: pickableMonths(now, site.timeZone),
+      problem: periodProblem,
+    },
   };
 }
 
@@ -95,17 +139,35 @@ function needsOf(p: PlantProfile, unit: TempUnit): Need[] {
           f.coolPeriod.maxDayC != null ? `days at or below ${formatTemp(f.coolPeriod.maxDayC, unit, 0)}` : null,
         ]
           .filter(Boolean)
-          .join(" and ")}${f.coolPeriod.months ? ` (${f.coolPeriod.months})` : ""}${f.coolPeriod.dryRest ? ", kept nearly dry" : ""}`
+          .join(
+            " and ",
+          )}${f.coolPeriod.months ? ` (${f.coolPeriod.months})` : ""}${f.coolPeriod.dryRest ? ", kept nearly dry" : ""}`
       : null,
   ].filter(Boolean);
   return [
     // Cool / intermediate / warm are orchid terms.
-    ...(p.group === "orchid" ? [{ label: "Temperature group", value: `${p.category} growing`, fields: ["category"] }] : []),
+    ...(p.group === "orchid"
+      ? [{ label: "Temperature group", value: `${p.category} growing`, fields: ["category"] }]
+      : []),
     { label: "Lowest comfortable night", value: formatTemp(p.minNightC, unit, 0), fields: ["minNightC"] },
     { label: "Highest comfortable day", value: formatTemp(p.maxDayC, unit, 0), fields: ["maxDayC"] },
-    ...(p.maxNightC != null ? [{ label: "Warmest comfortable night", value: formatTemp(p.maxNightC, unit, 0), fields: ["damageNightC/damageDayC/maxNightC"] }] : []),
+    ...(p.maxNightC != null
+      ? [
+          {
+            label: "Warmest comfortable night",
+            value: formatTemp(p.maxNightC, unit, 0),
+            fields: ["damageNightC/damageDayC/maxNightC"],
+          },
+        ]
+      : []),
     ...(p.damageNightC != null && p.damageDayC != null
-      ? [{ label: "Harmed below / above", value: `${formatTemp(p.damageNightC, unit, 0)} / ${formatTemp(p.damageDayC, unit, 0)}`, fields: ["damageNightC/damageDayC/maxNightC"] }]
+      ? [
+          {
+            label: "Harmed below / above",
+            value: `${formatTemp(p.damageNightC, unit, 0)} / ${formatTemp(p.damageDayC, unit, 0)}`,
+            fields: ["damageNightC/damageDayC/maxNightC"],
+          },
+        ]
       : []),
     { label: "Humidity", value: `${p.humidityMin}–${p.humidityMax} %`, fields: ["humidityMin/humidityMax"] },
     { label: "Light", value: p.light, fields: ["light"] },
@@ -115,7 +177,8 @@ function needsOf(p: PlantProfile, unit: TempUnit): Need[] {
   ];
 }
 
-const sourcesFor = (p: PlantProfile, fields: string[]) => p.sources.filter((s) => fields.some((f) => s.field === f || s.field.startsWith(`${f}.`)));
+const sourcesFor = (p: PlantProfile, fields: string[]) =>
+  p.sources.filter((s) => fields.some((f) => s.field === f || s.field.startsWith(`${f}.`)));
 
 /** A reason's twelve months (passes, care, fails), for the reasons judged month by month. */
 const stripOf = (r: { rule: string }) => ("strip" in r && typeof r.strip === "string" ? r.strip : null);
@@ -148,12 +211,17 @@ export default function PlantPage({ loaderData, actionData }: Route.ComponentPro
         <div>
           <h2 className="text-xl font-semibold">{plant.name}</h2>
           <p className="text-sm text-muted">
-            {plant.own ? `This site's own profile${loaderData.basedOnName ? `, copied from ${loaderData.basedOnName}` : ""}. ` : ""}
+            {plant.own
+              ? `This site's own profile${loaderData.basedOnName ? `, copied from ${loaderData.basedOnName}` : ""}. `
+              : ""}
             {plant.summary}
           </p>
         </div>
         {role === "owner" ? (
-          <Link to={`/sites/${loaderData.siteId}/plants/new?from=${encodeURIComponent(plant.key)}`} className="btn-quiet">
+          <Link
+            to={`/sites/${loaderData.siteId}/plants/new?from=${encodeURIComponent(plant.key)}`}
+            className="btn-quiet"
+          >
             {plant.own ? "Edit" : "Copy to adjust"}
           </Link>
         ) : null}
@@ -161,7 +229,10 @@ export default function PlantPage({ loaderData, actionData }: Route.ComponentPro
 
       <section className="card">
         <h3 className="h2 mb-1">What it needs</h3>
-        <p className="mb-3 text-sm text-muted">Every value with where it comes from. “From memory” marks a value recalled from grower practice without a checked publication.</p>
+        <p className="mb-3 text-sm text-muted">
+          Every value with where it comes from. “From memory” marks a value recalled from grower practice without a
+          checked publication.
+        </p>
         <dl className="divide-y divide-line" data-testid="plant-needs">
           {needsOf(plant, unit).map((n) => (
             <div key={n.label} className="grid gap-1 py-2.5 sm:grid-cols-[12rem_1fr]">
@@ -187,7 +258,10 @@ export default function PlantPage({ loaderData, actionData }: Route.ComponentPro
         <h3 className="h2 mb-1">Where could it live?</h3>
         <p className="mb-2 text-sm text-muted">
           This site's spots, best fit first, judged on{" "}
-          {loaderData.period.chosen === "latest" ? "each spot's latest twelve months with readings" : "the months below"}.
+          {loaderData.period.chosen === "latest"
+            ? "each spot's latest twelve months with readings"
+            : "the months below"}
+          .
         </p>
         {spots.some((s) => s.reasons.some((r) => stripOf(r))) ? (
           <div className="mb-3">
@@ -195,7 +269,11 @@ export default function PlantPage({ loaderData, actionData }: Route.ComponentPro
           </div>
         ) : null}
         <div className="mb-3">
-          <PeriodPicker chosen={loaderData.period.chosen} months={loaderData.period.months} problem={loaderData.period.problem} />
+          <PeriodPicker
+            chosen={loaderData.period.chosen}
+            months={loaderData.period.months}
+            problem={loaderData.period.problem}
+          />
         </div>
         {spots.length === 0 ? (
           <p className="text-muted">No spots yet.</p>
@@ -204,7 +282,10 @@ export default function PlantPage({ loaderData, actionData }: Route.ComponentPro
             {spots.map((s) => (
               <li key={s.id} className="py-3">
                 <div className="flex flex-wrap items-center gap-x-3 gap-y-1">
-                  <Link to={`/sites/${loaderData.siteId}/spots/${s.id}?plant=${encodeURIComponent(plant.key)}`} className="link font-semibold">
+                  <Link
+                    to={`/sites/${loaderData.siteId}/spots/${s.id}?plant=${encodeURIComponent(plant.key)}`}
+                    className="link font-semibold"
+                  >
                     {s.name}
                   </Link>
                   <span className="text-sm text-muted" data-testid="judged-period">
@@ -245,7 +326,11 @@ export default function PlantPage({ loaderData, actionData }: Route.ComponentPro
         )}
         {standing.length > 0 ? (
           <p className="mt-3 text-sm text-muted">
-            Standing now: {standing.map((s) => `${s.nickname || "one"} in ${s.spotName}${s.pots > 1 ? ` (${s.pots} pots)` : ""}`).join("; ")}.
+            Standing now:{" "}
+            {standing
+              .map((s) => `${s.nickname || "one"} in ${s.spotName}${s.pots > 1 ? ` (${s.pots} pots)` : ""}`)
+              .join("; ")}
+            .
           </p>
         ) : null}
       </section>
@@ -290,12 +375,21 @@ export default function PlantPage({ loaderData, actionData }: Route.ComponentPro
         ) : null}
       </section>
 
-      <NotesPanel siteId={loaderData.siteId} target={{ plantKey: plant.key }} notes={loaderData.notes.rows} role={role} timeZone={loaderData.notes.timeZone} about={plant.name} />
+      <NotesPanel
+        siteId={loaderData.siteId}
+        target={{ plantKey: plant.key }}
+        notes={loaderData.notes.rows}
+        role={role}
+        timeZone={loaderData.notes.timeZone}
+        about={plant.name}
+      />
 
       {role === "owner" && plant.own ? (
         <Form method="post" className="card border-poor/30">
           <input type="hidden" name="intent" value="delete" />
-          <p className="text-sm text-muted">Deleting this profile leaves plants recorded with it in their spots, shown as a removed profile.</p>
+          <p className="text-sm text-muted">
+            Deleting this profile leaves plants recorded with it in their spots, shown as a removed profile.
+          </p>
           <button className="btn-danger mt-2">Delete this profile</button>
         </Form>
       ) : null}

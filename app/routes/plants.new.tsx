@@ -13,8 +13,14 @@ export const meta: Route.MetaFunction = () => [{ title: "Your own plant profile 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { siteId, user } = await requireSiteRole(request, params.siteId, ["owner"]);
   const from = new URL(request.url).searchParams.get("from");
-  const base = from ? (await sitePlants(siteId)).find((p) => p.key === from) ?? null : null;
-  return { siteId, unit: user.temperatureUnit, base, editing: base?.own ? base.key : null, library: PLANT_LIBRARY.map((p) => ({ key: p.key, name: p.name })) };
+  const base = from ? ((await sitePlants(siteId)).find((p) => p.key === from) ?? null) : null;
+  return {
+    siteId,
+    unit: user.temperatureUnit,
+    base,
+    editing: base?.own ? base.key : null,
+    library: PLANT_LIBRARY.map((p) => ({ key: p.key, name: p.name })),
+  };
 }
 
 const TEMP_FIELDS = ["minNightC", "maxDayC", "coolNightC"];
@@ -27,8 +33,10 @@ export async function action({ request, params }: Route.ActionArgs) {
   const form = new FormData();
   for (const [k, v] of raw) {
     const n = typeof v === "string" && v.trim() !== "" ? Number(v) : NaN;
-    if (unit === "F" && Number.isFinite(n) && TEMP_FIELDS.includes(k)) form.set(k, String(Math.round(fromUnit(n, unit) * 10) / 10));
-    else if (unit === "F" && Number.isFinite(n) && k === "difC") form.set(k, String(Math.round(deltaFromUnit(n, unit) * 10) / 10));
+    if (unit === "F" && Number.isFinite(n) && TEMP_FIELDS.includes(k))
+      form.set(k, String(Math.round(fromUnit(n, unit) * 10) / 10));
+    else if (unit === "F" && Number.isFinite(n) && k === "difC")
+      form.set(k, String(Math.round(deltaFromUnit(n, unit) * 10) / 10));
     else form.set(k, v);
   }
   const submission = parseWithZod(form, { schema: plantFormSchema });
@@ -46,10 +54,15 @@ export async function action({ request, params }: Route.ActionArgs) {
 
 export default function NewPlant({ loaderData, actionData }: Route.ComponentProps) {
   const { base, unit, editing } = loaderData;
-  const errors: Record<string, string[] | null | undefined> = actionData && "errors" in actionData ? actionData.errors : {};
+  const errors: Record<string, string[] | null | undefined> =
+    actionData && "errors" in actionData ? actionData.errors : {};
   const busy = useNavigation().state !== "idle";
   const t = (c: number | undefined) => (c == null ? undefined : Math.round(toUnit(c, unit) * 10) / 10);
-  const field = (name: string, label: string, opts: { type?: string; defaultValue?: string | number; hint?: string; step?: string; required?: boolean } = {}) => (
+  const field = (
+    name: string,
+    label: string,
+    opts: { type?: string; defaultValue?: string | number; hint?: string; step?: string; required?: boolean } = {},
+  ) => (
     <div>
       <label className="label" htmlFor={name}>
         {label}
@@ -86,17 +99,23 @@ export default function NewPlant({ loaderData, actionData }: Route.ComponentProp
         </Link>
       </p>
       <div>
-        <h2 className="h2">{editing ? `Edit ${base!.name}` : base ? `Copy ${base.name} to adjust` : "Your own plant profile"}</h2>
+        <h2 className="h2">
+          {editing ? `Edit ${base!.name}` : base ? `Copy ${base.name} to adjust` : "Your own plant profile"}
+        </h2>
         <p className="text-sm text-muted">
-          Fits on every spot page include this site's own profiles. Values you keep from a library profile keep their sources; values you change are
-          credited to you, with the source you give below.
+          Fits on every spot page include this site's own profiles. Values you keep from a library profile keep their
+          sources; values you change are credited to you, with the source you give below.
         </p>
       </div>
       <Form method="post" className="card space-y-5" noValidate>
         <input type="hidden" name="basedOn" value={base?.own ? (base.basedOn ?? "") : (base?.key ?? "")} />
         {editing ? <input type="hidden" name="editing" value={editing} /> : null}
         <div className="grid gap-4 sm:grid-cols-2">
-          {field("name", "Name", { type: "text", defaultValue: base ? (editing ? base.name : `${base.name} (my plants)`) : "", required: true })}
+          {field("name", "Name", {
+            type: "text",
+            defaultValue: base ? (editing ? base.name : `${base.name} (my plants)`) : "",
+            required: true,
+          })}
           <div>
             <label className="label" htmlFor="group">
               Kind
@@ -109,9 +128,16 @@ export default function NewPlant({ loaderData, actionData }: Route.ComponentProp
         </div>
         <fieldset className="grid gap-4 sm:grid-cols-2">
           <legend className="mb-2 font-medium">Temperature (°{unit})</legend>
-          {field("minNightC", `Lowest safe night (°${unit})`, { defaultValue: t(base?.minNightC), hint: "The temperature group follows from it: under 13 °C cool, 13–16 °C intermediate, 16 °C and up warm." })}
+          {field("minNightC", `Lowest safe night (°${unit})`, {
+            defaultValue: t(base?.minNightC),
+            hint: "The temperature group follows from it: under 13 °C cool, 13–16 °C intermediate, 16 °C and up warm.",
+          })}
           {field("maxDayC", `Highest comfortable day (°${unit})`, { defaultValue: t(base?.maxDayC) })}
-          {field("coldTolerance", "How it takes the cold", { type: "text", defaultValue: base?.coldTolerance ?? "", hint: "In words, e.g. “leaf damage below about 10 °C”." })}
+          {field("coldTolerance", "How it takes the cold", {
+            type: "text",
+            defaultValue: base?.coldTolerance ?? "",
+            hint: "In words, e.g. “leaf damage below about 10 °C”.",
+          })}
         </fieldset>
         <fieldset className="grid gap-4 sm:grid-cols-2">
           <legend className="mb-2 font-medium">Humidity and light</legend>
@@ -134,15 +160,23 @@ export default function NewPlant({ loaderData, actionData }: Route.ComponentProp
         </fieldset>
         <fieldset className="grid gap-4 sm:grid-cols-2">
           <legend className="mb-2 font-medium">To flower (leave empty if it needs no cue)</legend>
-          {field("difC", `Day–night difference it needs (°${unit})`, { defaultValue: base?.flowering.difC != null ? Math.round(deltaToUnit(base.flowering.difC, unit) * 10) / 10 : undefined })}
+          {field("difC", `Day–night difference it needs (°${unit})`, {
+            defaultValue:
+              base?.flowering.difC != null ? Math.round(deltaToUnit(base.flowering.difC, unit) * 10) / 10 : undefined,
+          })}
           <div className="grid grid-cols-2 gap-3">
             {field("coolNightC", `Cool period: nights at most (°${unit})`, { defaultValue: t(cp?.maxNightC) })}
             {field("coolWeeks", "for weeks", { defaultValue: cp?.weeks, step: "1" })}
           </div>
-          <div className="sm:col-span-2">{field("floweringNote", "Note on flowering", { type: "text", defaultValue: base?.flowering.note ?? "" })}</div>
+          <div className="sm:col-span-2">
+            {field("floweringNote", "Note on flowering", { type: "text", defaultValue: base?.flowering.note ?? "" })}
+          </div>
         </fieldset>
         {field("summary", "One sentence for a beginner", { type: "text", defaultValue: base?.summary ?? "" })}
-        {field("source", "Where your values come from", { type: "text", hint: "A book, a nursery's culture sheet, your own years of growing it… Left empty, changed values show as “from memory”." })}
+        {field("source", "Where your values come from", {
+          type: "text",
+          hint: "A book, a nursery's culture sheet, your own years of growing it… Left empty, changed values show as “from memory”.",
+        })}
         <button className="btn" disabled={busy}>
           Save profile
         </button>

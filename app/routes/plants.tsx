@@ -8,7 +8,11 @@ export const meta: Route.MetaFunction = () => [{ title: "Plants · Nichewise" }]
 
 const CATEGORIES = ["cool", "intermediate", "warm"] as const;
 const LIGHTS = ["low", "medium", "high"] as const;
-const LIGHT_WORDS = { low: "low light (shaded window)", medium: "medium light (bright, some sun)", high: "high light (sun for part of the day)" };
+const LIGHT_WORDS = {
+  low: "low light (shaded window)",
+  medium: "medium light (bright, some sun)",
+  high: "high light (sun for part of the day)",
+};
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { siteId, role, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
@@ -54,7 +58,9 @@ export default function Plants({ loaderData }: Route.ComponentProps) {
       <div className="flex flex-wrap items-end justify-between gap-3">
         <div>
           <h2 className="h2">Plants</h2>
-          <p className="text-sm text-muted">Published culture guidance for plant groups hobbyists grow, and this site's own profiles.</p>
+          <p className="text-sm text-muted">
+            Published culture guidance for plant groups hobbyists grow, and this site's own profiles.
+          </p>
         </div>
         {role === "owner" ? (
           <Link to="new" className="btn">
@@ -67,7 +73,14 @@ export default function Plants({ loaderData }: Route.ComponentProps) {
           <label className="label" htmlFor="q">
             Search
           </label>
-          <input id="q" name="q" type="search" className="field" defaultValue={filters.q} placeholder="e.g. slipper, Dendrobium" />
+          <input
+            id="q"
+            name="q"
+            type="search"
+            className="field"
+            defaultValue={filters.q}
+            placeholder="e.g. slipper, Dendrobium"
+          />
         </div>
         <div>
           <label className="label" htmlFor="category">
@@ -111,7 +124,9 @@ export default function Plants({ loaderData }: Route.ComponentProps) {
         {plants.length === total ? `${total} profiles` : `${plants.length} of ${total} profiles`}
       </p>
       {plants.length === 0 ? (
-        <p className="card text-muted">No profile matches. Try fewer filters{role === "owner" ? ", or add your own profile" : ""}.</p>
+        <p className="card text-muted">
+          No profile matches. Try fewer filters{role === "owner" ? ", or add your own profile" : ""}.
+        </p>
       ) : (
         <ul className="grid gap-4 sm:grid-cols-2" data-testid="plant-list">
           {plants.map((p) => (
@@ -125,7 +140,8 @@ export default function Plants({ loaderData }: Route.ComponentProps) {
               </div>
               <p className="text-sm">{p.summary}</p>
               <p className="text-sm text-muted">
-                {p.category ? `${p.category} growing · ` : ""}nights {formatTemp(p.minNightC, unit, 0)} or more · days up to {formatTemp(p.maxDayC, unit, 0)} · {LIGHT_WORDS[p.light]}
+                {p.category ? `${p.category} growing · ` : ""}nights {formatTemp(p.minNightC, unit, 0)} or more · days
+                up to {formatTemp(p.maxDayC, unit, 0)} · {LIGHT_WORDS[p.light]}
               </p>
             </li>
           ))}

@@ -4,7 +4,15 @@ import { data, Form, redirect, useFetcher, useNavigation } from "react-router";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
 import { readForm } from "~/.server/ids";
 import { env } from "~/.server/env";
-import { assignUnplaced, movePlacementStart, placeFromForm, removeSensorFromSpot, splitPlacement, unplacedReadings, placementHistory } from "~/.server/placements";
+import {
+  assignUnplaced,
+  movePlacementStart,
+  placeFromForm,
+  removeSensorFromSpot,
+  splitPlacement,
+  unplacedReadings,
+  placementHistory,
+} from "~/.server/placements";
 import { deleteSensor, PlacementError, rotateSensorSecret, saveSensor, getSensor } from "~/.server/sensors.server";
 import { getSite } from "~/.server/sites";
 import { listSpots } from "~/.server/spots";
@@ -69,7 +77,11 @@ export async function action({ request, params }: Route.ActionArgs) {
     try {
       if (edit.intent === "move-start") {
         if (edit.start !== "first" && !at) return data({ editError: "Enter when it got there." }, { status: 400 });
-        await movePlacementStart({ ...who, placementId: edit.placementId, fromAt: edit.start === "first" ? "first" : at! });
+        await movePlacementStart({
+          ...who,
+          placementId: edit.placementId,
+          fromAt: edit.start === "first" ? "first" : at!,
+        });
       } else if (edit.intent === "split") {
         if (!at) return data({ editError: "Enter when it was moved." }, { status: 400 });
         await splitPlacement({ ...who, placementId: edit.placementId, at, spotId: edit.spotId });
@@ -96,7 +108,8 @@ export async function action({ request, params }: Route.ActionArgs) {
     return redirect(`/sites/${siteId}/sensors/${sensor.id}?new=1#secret=${secret}`);
   }
   if (intent === "delete") {
-    if (form.get("confirm") !== sensor.name) return data({ deleteError: `Type “${sensor.name}” to delete it.` }, { status: 400 });
+    if (form.get("confirm") !== sensor.name)
+      return data({ deleteError: `Type “${sensor.name}” to delete it.` }, { status: 400 });
     await deleteSensor({ ...who, name: sensor.name });
     return redirect(`/sites/${siteId}/sensors`);
   }
@@ -123,7 +136,11 @@ export default function SensorPage({ loaderData, actionData }: Route.ComponentPr
   const now = useNow(loaderData.now);
   const navigation = useNavigation();
   const current = history.find((p) => p.toAt === null);
-  const status = useFetcher<{ lastSeenAt: string | null; battery: number | null; latest: { measuredAt: string; temperature: number | null; humidity: number | null } | null }>();
+  const status = useFetcher<{
+    lastSeenAt: string | null;
+    battery: number | null;
+    latest: { measuredAt: string; temperature: number | null; humidity: number | null } | null;
+  }>();
   const [firstSeenLive, setFirstSeenLive] = useState(false);
   const lastSeenAt = status.data?.lastSeenAt ?? sensor.lastSeenAt;
   const { load } = status;
@@ -153,11 +170,16 @@ export default function SensorPage({ loaderData, actionData }: Route.ComponentPr
         <section className="card">
           <div className="flex flex-wrap items-baseline justify-between gap-2">
             <h2 className="h2">{sensor.name}</h2>
-            <p className="text-sm text-muted">Sensor id {sensor.id} · reports {sensor.channels.join(", ")}</p>
+            <p className="text-sm text-muted">
+              Sensor id {sensor.id} · reports {sensor.channels.join(", ")}
+            </p>
           </div>
           <div aria-live="polite" className="mt-4">
             {firstSeenLive ? (
-              <p className="rounded-[0.2rem] border border-l-4 border-good/30 border-l-good bg-card px-3 py-2 font-medium text-good" data-testid="first-reading">
+              <p
+                className="rounded-[0.2rem] border border-l-4 border-good/30 border-l-good bg-card px-3 py-2 font-medium text-good"
+                data-testid="first-reading"
+              >
                 First reading received — the sensor is connected.
                 {status.data?.latest?.temperature != null ? ` ${status.data.latest.temperature.toFixed(1)} °C` : ""}
                 {status.data?.latest?.humidity != null ? `, ${Math.round(status.data.latest.humidity)} % RH` : ""}
@@ -165,7 +187,9 @@ export default function SensorPage({ loaderData, actionData }: Route.ComponentPr
             ) : lastSeenAt ? (
               <p className="text-sm">
                 Last heard {timeAgo(lastSeenAt, now)} ({formatInZone(lastSeenAt, site.timeZone)})
-                {(status.data?.battery ?? sensor.battery) != null ? ` · battery ${Math.round((status.data?.battery ?? sensor.battery)!)} %` : ""}
+                {(status.data?.battery ?? sensor.battery) != null
+                  ? ` · battery ${Math.round((status.data?.battery ?? sensor.battery)!)} %`
+                  : ""}
               </p>
             ) : (
               <p className="rounded-[0.2rem] bg-paper px-3 py-2 text-sm text-muted" data-testid="waiting">
@@ -184,10 +208,14 @@ export default function SensorPage({ loaderData, actionData }: Route.ComponentPr
                 <code className="mt-1 block text-base break-all" data-testid="secret">
                   {secret}
                 </code>
-                <p className="mt-1 text-sm text-muted">Copy it into the sensor now. It is stored only as a hash; if you lose it, make a new one below.</p>
+                <p className="mt-1 text-sm text-muted">
+                  Copy it into the sensor now. It is stored only as a hash; if you lose it, make a new one below.
+                </p>
               </div>
             ) : (
-              <p className="text-sm text-muted">The secret was shown when the sensor was added. Lost it? Make a new one at the bottom of this page.</p>
+              <p className="text-sm text-muted">
+                The secret was shown when the sensor was added. Lost it? Make a new one at the bottom of this page.
+              </p>
             )}
             <dl className="grid grid-cols-[8rem_1fr] gap-x-3 gap-y-1 text-sm">
               <dt className="text-muted">MQTT broker</dt>
@@ -208,9 +236,10 @@ export default function SensorPage({ loaderData, actionData }: Route.ComponentPr
               <dd>1 (the broker acknowledges only once the reading is stored)</dd>
             </dl>
             <p className="text-sm">
-              Payload: a JSON object with any of <code>temperature</code> (°C, or °F with <code>"unit":"F"</code>), <code>humidity</code> (%),{" "}
-              <code>lux</code>, <code>battery</code> (%) and an optional <code>time</code> (ISO 8601 with a zone, or epoch seconds). Firmwares that
-              publish plain numbers can use <code>nichewise/sensors/{sensor.id}/temperature</code> (or <code>/humidity</code>, <code>/lux</code>,{" "}
+              Payload: a JSON object with any of <code>temperature</code> (°C, or °F with <code>"unit":"F"</code>),{" "}
+              <code>humidity</code> (%), <code>lux</code>, <code>battery</code> (%) and an optional <code>time</code>{" "}
+              (ISO 8601 with a zone, or epoch seconds). Firmwares that publish plain numbers can use{" "}
+              <code>nichewise/sensors/{sensor.id}/temperature</code> (or <code>/humidity</code>, <code>/lux</code>,{" "}
               <code>/battery</code>).
             </p>
             <CopyBlock label="Try it from a computer (mosquitto_pub)" text={mosquitto} testId="mosquitto" />
@@ -265,15 +294,25 @@ export default function SensorPage({ loaderData, actionData }: Route.ComponentPr
                   <input id="name" name="name" className="field" defaultValue={sensor.name} required />
                 </div>
                 <p className="hint">
-                  Offsets are added to what the sensor reports (raw readings stay as received). Check humidity against a salt test: a
-                  sealed bag with damp table salt reads about 75 % RH.
+                  Offsets are added to what the sensor reports (raw readings stay as received). Check humidity against a
+                  salt test: a sealed bag with damp table salt reads about 75 % RH.
                 </p>
                 {(["temperature", "humidity", "lux"] as const).map((c) => (
                   <div key={c}>
                     <label className="label" htmlFor={`cal-${c}`}>
-                      {c === "temperature" ? "Temperature offset (°C)" : c === "humidity" ? "Humidity offset (% RH)" : "Light offset (lux)"}
+                      {c === "temperature"
+                        ? "Temperature offset (°C)"
+                        : c === "humidity"
+                          ? "Humidity offset (% RH)"
+                          : "Light offset (lux)"}
                     </label>
-                    <input id={`cal-${c}`} name={c} className="field" inputMode="decimal" defaultValue={sensor.calibration[c] ?? ""} />
+                    <input
+                      id={`cal-${c}`}
+                      name={c}
+                      className="field"
+                      inputMode="decimal"
+                      defaultValue={sensor.calibration[c] ?? ""}
+                    />
                   </div>
                 ))}
                 {actionData && "result" in actionData && actionData.result?.error ? (

@@ -28,7 +28,8 @@ export async function action({ request, params }: Route.ActionArgs) {
   let from: "first" | "now" | Date = since === "at" ? "now" : since;
   if (spotId && since === "at") {
     const parsed = sinceAt ? parseLocalDateTime(sinceAt, (await getSite(siteId)).timeZone) : null;
-    if (!parsed) return { result: submission.reply({ fieldErrors: { sinceAt: ["Enter the date and time it was put there."] } }) };
+    if (!parsed)
+      return { result: submission.reply({ fieldErrors: { sinceAt: ["Enter the date and time it was put there."] } }) };
     from = parsed;
   }
   let created;
@@ -66,8 +67,16 @@ export default function NewSensor({ loaderData, actionData }: Route.ComponentPro
             <legend className="label">What it reports</legend>
             <div className="mt-1 flex flex-wrap gap-3">
               {CHANNELS.map((c) => (
-                <label key={c} className="inline-flex items-center gap-2 rounded-[0.2rem] border border-stone-line bg-white px-3 py-2 text-sm">
-                  <input type="checkbox" name={channelList.name} value={c} defaultChecked={c === "temperature" || c === "humidity"} />
+                <label
+                  key={c}
+                  className="inline-flex items-center gap-2 rounded-[0.2rem] border border-stone-line bg-white px-3 py-2 text-sm"
+                >
+                  <input
+                    type="checkbox"
+                    name={channelList.name}
+                    value={c}
+                    defaultChecked={c === "temperature" || c === "humidity"}
+                  />
                   {c === "lux" ? "light (lux)" : c}
                 </label>
               ))}
@@ -77,9 +86,17 @@ export default function NewSensor({ loaderData, actionData }: Route.ComponentPro
           <SelectField
             meta={fields.spotId}
             label="Place it in"
-            options={[{ value: "", label: "Not placed yet" }, ...loaderData.spots.map((s) => ({ value: String(s.id), label: s.name }))]}
+            options={[
+              { value: "", label: "Not placed yet" },
+              ...loaderData.spots.map((s) => ({ value: String(s.id), label: s.name })),
+            ]}
           />
-          <SinceField name={fields.since.name} atName={fields.sinceAt.name} errors={fields.sinceAt.errors} timeZone={loaderData.timeZone} />
+          <SinceField
+            name={fields.since.name}
+            atName={fields.sinceAt.name}
+            errors={fields.sinceAt.errors}
+            timeZone={loaderData.timeZone}
+          />
           <button className="btn" disabled={navigation.state !== "idle"}>
             Add sensor
           </button>
@@ -90,11 +107,22 @@ export default function NewSensor({ loaderData, actionData }: Route.ComponentPro
 }
 
 /** Since when the placement counts: by default from its first reading, so stored data lands in the spot. */
-function SinceField({ name, atName, errors, timeZone }: { name: string; atName: string; errors?: string[]; timeZone: string }) {
+function SinceField({
+  name,
+  atName,
+  errors,
+  timeZone,
+}: {
+  name: string;
+  atName: string;
+  errors?: string[];
+  timeZone: string;
+}) {
   const [since, setSince] = useState<"first" | "now" | "at">("first");
   const option = (value: typeof since, label: string) => (
     <label className="inline-flex items-center gap-2">
-      <input type="radio" name={name} value={value} checked={since === value} onChange={() => setSince(value)} /> {label}
+      <input type="radio" name={name} value={value} checked={since === value} onChange={() => setSince(value)} />{" "}
+      {label}
     </label>
   );
   return (

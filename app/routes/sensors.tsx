@@ -34,13 +34,18 @@ export default function Sensors({ loaderData, params }: Route.ComponentProps) {
           const quiet = !s.lastSeenAt || now - new Date(s.lastSeenAt).getTime() > QUIET_AFTER_MS;
           return (
             <li key={s.id}>
-              <Link to={`/sites/${params.siteId}/sensors/${s.id}${s.unplaced ? "#placements" : ""}`} className="flex flex-wrap items-center gap-x-4 gap-y-1 p-4 hover:bg-paper">
+              <Link
+                to={`/sites/${params.siteId}/sensors/${s.id}${s.unplaced ? "#placements" : ""}`}
+                className="flex flex-wrap items-center gap-x-4 gap-y-1 p-4 hover:bg-paper"
+              >
                 <span className="inline-flex items-center gap-2 font-semibold">
                   <SensorIcon size={18} />
                   {s.name}
                 </span>
                 <span className="text-sm text-muted">{s.spotName ? `in ${s.spotName}` : "not placed"}</span>
-                {s.unplaced ? <span className="text-sm font-medium text-care">some readings are in no spot</span> : null}
+                {s.unplaced ? (
+                  <span className="text-sm font-medium text-care">some readings are in no spot</span>
+                ) : null}
                 <span className={`ml-auto text-sm ${quiet ? "font-medium text-care" : "text-muted"}`}>
                   {quiet ? "Quiet — " : ""}last heard {timeAgo(s.lastSeenAt, now)}
                   {s.battery != null ? ` · battery ${Math.round(s.battery)} %` : ""}

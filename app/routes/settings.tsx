@@ -34,18 +34,30 @@ export async function action({ request }: Route.ActionArgs) {
   }
   const [row] = await db().select({ hash: users.passwordHash }).from(users).where(eq(users.id, user.id));
   if (!(await verifyPassword(row.hash, form.current))) {
-    return data({ intent: form.intent, result: submission.reply({ fieldErrors: { current: ["Your current password is not right."] }, hideFields }) }, { status: 400 });
+    return data(
+      {
+        intent: form.intent,
+        result: submission.reply({ fieldErrors: { current: ["Your current password is not right."] }, hideFields }),
+      },
+      { status: 400 },
+    );
   }
-  await db().update(users).set({ passwordHash: await hashPassword(form.next) }).where(eq(users.id, user.id));
+  await db()
+    .update(users)
+    .set({ passwordHash: await hashPassword(form.next) })
+    .where(eq(users.id, user.id));
   // A new password signs out every other session.
   const session = await getSession(request);
-  await db().delete(sessions).where(and(eq(sessions.userId, user.id), ne(sessions.id, session!.id)));
+  await db()
+    .delete(sessions)
+    .where(and(eq(sessions.userId, user.id), ne(sessions.id, session!.id)));
   return { saved: "password" as const };
 }
 
 export default function Settings({ loaderData, actionData }: Route.ComponentProps) {
   const { user } = loaderData;
-  const failed = (intent: "unit" | "password") => (actionData && "result" in actionData && actionData.intent === intent ? actionData.result : undefined);
+  const failed = (intent: "unit" | "password") =>
+    actionData && "result" in actionData && actionData.intent === intent ? actionData.result : undefined;
   const saved = actionData && "saved" in actionData ? actionData.saved : null;
   const [unitForm, unitFields] = useForm({
     id: "unit",
@@ -69,7 +81,8 @@ export default function Settings({ loaderData, actionData }: Route.ComponentProp
           <input type="hidden" name="intent" value="unit" />
           {TEMPERATURE_UNITS.map((u) => (
             <label key={u} className="inline-flex items-center gap-2">
-              <input type="radio" name={unitFields.unit.name} value={u} defaultChecked={user.temperatureUnit === u} /> °{u}
+              <input type="radio" name={unitFields.unit.name} value={u} defaultChecked={user.temperatureUnit === u} /> °
+              {u}
             </label>
           ))}
           <button className="btn-quiet">Save</button>
@@ -82,9 +95,21 @@ export default function Settings({ loaderData, actionData }: Route.ComponentProp
         <Form method="post" className="space-y-3" {...getFormProps(passwordForm)}>
           <input type="hidden" name="intent" value="password" />
           <FormErrors errors={passwordForm.errors} />
-          <TextField meta={passwordFields.current} label="Current password" type="password" autoComplete="current-password" />
-          <TextField meta={passwordFields.next} label="New password (at least 10 characters)" type="password" autoComplete="new-password" />
-          {saved === "password" ? <p className="text-sm text-good">Password changed; your other sessions were signed out.</p> : null}
+          <TextField
+            meta={passwordFields.current}
+            label="Current password"
+            type="password"
+            autoComplete="current-password"
+          />
+          <TextField
+            meta={passwordFields.next}
+            label="New password (at least 10 characters)"
+            type="password"
+            autoComplete="new-password"
+          />
+          {saved === "password" ? (
+            <p className="text-sm text-good">Password changed; your other sessions were signed out.</p>
+          ) : null}
           <button className="btn-quiet">Change password</button>
         </Form>
       </section>

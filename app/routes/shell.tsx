@@ -40,11 +40,17 @@ function ShellFrame({ user, children }: { user: { name: string; isAdmin: boolean
           </Link>
           <nav className="ml-auto flex items-center gap-1 text-sm">
             {user.isAdmin ? (
-              <NavLink to="/admin" className="rounded-md px-2 py-1.5 text-muted hover:text-ink aria-[current=page]:text-ink">
+              <NavLink
+                to="/admin"
+                className="rounded-md px-2 py-1.5 text-muted hover:text-ink aria-[current=page]:text-ink"
+              >
                 Ingest health
               </NavLink>
             ) : null}
-            <NavLink to="/settings" className="rounded-md px-2 py-1.5 text-muted hover:text-ink aria-[current=page]:text-ink">
+            <NavLink
+              to="/settings"
+              className="rounded-md px-2 py-1.5 text-muted hover:text-ink aria-[current=page]:text-ink"
+            >
               {user.name}
             </NavLink>
             <Form method="post" action="/sign-out">

@@ -27,7 +27,11 @@ export async function action({ request }: Route.ActionArgs) {
   const { name, email, password, next } = submission.value;
   // Hashed either way, so that the answer takes as long for a taken address as for a new one.
   const passwordHash = await hashPassword(password);
-  const [user] = await db().insert(users).values({ name, email, passwordHash }).onConflictDoNothing({ target: users.email }).returning({ id: users.id });
+  const [user] = await db()
+    .insert(users)
+    .values({ name, email, passwordHash })
+    .onConflictDoNothing({ target: users.email })
+    .returning({ id: users.id });
   if (!user) {
     // The address has an account: the answer is the same redirect a new account gets (without its
     // session), so the form does not tell who has an account here (OWASP Authentication Cheat
@@ -68,12 +72,21 @@ export default function SignUp({ loaderData, actionData }: Route.ComponentProps)
     shouldRevalidate: "onInput",
   });
   return (
-    <AuthFrame title="Create an account" lead="Measure first, then choose plants that will thrive where you already are.">
+    <AuthFrame
+      title="Create an account"
+      lead="Measure first, then choose plants that will thrive where you already are."
+    >
       <Form method="post" className="space-y-4" {...getFormProps(form)}>
         <FormErrors errors={form.errors} />
         <TextField meta={fields.name} label="Your name" autoComplete="name" />
         <TextField meta={fields.email} label="E-mail" type="email" autoComplete="email" />
-        <TextField meta={fields.password} label="Password" type="password" autoComplete="new-password" hint="At least 10 characters." />
+        <TextField
+          meta={fields.password}
+          label="Password"
+          type="password"
+          autoComplete="new-password"
+          hint="At least 10 characters."
+        />
         <input type="hidden" name="next" value={loaderData.next} />
         <button className="btn w-full" disabled={navigation.state !== "idle"}>
           Create account

@@ -22,10 +22,28 @@ export const meta: Route.MetaFunction = () => [{ title: "Alerts · Nichewise" }]
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { siteId, role, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
-  const [site, events, prefs, spotList] = await Promise.all([getSite(siteId), siteEvents(siteId, { limit: 50 }), getPreferences(user.id, siteId, role), listSpots(siteId)]);
+  const [site, events, prefs, spotList] = await Promise.all([
+    getSite(siteId),
+    siteEvents(siteId, { limit: 50 }),
+    getPreferences(user.id, siteId, role),
+    listSpots(siteId),
+  ]);
   const rules = await watchMarks(spotList.map((s) => s.id));
-  const watches = spotList.map((s) => ({ id: s.id, name: s.name, indoor: s.indoor, rules: rules.filter((r) => r.spotId === s.id) }));
-  return { now: Date.now(), site, role, watches, unit: user.temperatureUnit, events, prefs: { ...prefs, quietFrom: minuteToClock(prefs.quietFrom), quietTo: minuteToClock(prefs.quietTo) } };
+  const watches = spotList.map((s) => ({
+    id: s.id,
+    name: s.name,
+    indoor: s.indoor,
+    rules: rules.filter((r) => r.spotId === s.id),
+  }));
+  return {
+    now: Date.now(),
+    site,
+    role,
+    watches,
+    unit: user.temperatureUnit,
+    events,
+    prefs: { ...prefs, quietFrom: minuteToClock(prefs.quietFrom), quietTo: minuteToClock(prefs.quietTo) },
+  };
 }
 
 export async function action({ request, params }: Route.ActionArgs) {
@@ -44,7 +62,14 @@ export async function action({ request, params }: Route.ActionArgs) {
   }
   // Every member chooses their own e-mails, mentors included.
   const { siteId, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
-  await savePreferences({ userId: user.id, siteId, email: form.email, kinds: form.kinds, quietFrom: form.quietFrom, quietTo: form.quietTo });
+  await savePreferences({
+    userId: user.id,
+    siteId,
+    email: form.email,
+    kinds: form.kinds,
+    quietFrom: form.quietFrom,
+    quietTo: form.quietTo,
+  });
   return { savedPrefs: true };
 }
 
@@ -66,7 +91,12 @@ export default function SiteAlerts({ loaderData, actionData }: Route.ComponentPr
   const [prefsForm, prefsFields] = useForm({
     id: "alert-emails",
     lastResult: actionData && "result" in actionData ? actionData.result : undefined,
-    defaultValue: { email: prefs.email ? "on" : undefined, kinds: prefs.kinds, quietFrom: prefs.quietFrom, quietTo: prefs.quietTo },
+    defaultValue: {
+      email: prefs.email ? "on" : undefined,
+      kinds: prefs.kinds,
+      quietFrom: prefs.quietFrom,
+      quietTo: prefs.quietTo,
+    },
     onValidate: ({ formData }) => parseWithZod(formData, { schema: alertEmailsSchema }),
     shouldValidate: "onBlur",
     // An error clears while the field is corrected, so the button does not move under the pointer.
@@ -85,11 +115,16 @@ export default function SiteAlerts({ loaderData, actionData }: Route.ComponentPr
               <WatchMark state="open" /> Now:{" "}
             </span>
           )}
-          {KINDS[e.kind].label} at <Link className="link" to={`/sites/${site.id}/spots/${e.spotId}`}>{e.spotName}</Link>
+          {KINDS[e.kind].label} at{" "}
+          <Link className="link" to={`/sites/${site.id}/spots/${e.spotId}`}>
+            {e.spotName}
+          </Link>
         </p>
         <p className="text-sm text-muted">
           since {formatInZone(e.startedAt, site.timeZone)}
-          {e.endedAt ? ` · ended ${formatInZone(e.endedAt, site.timeZone)} · lasted ${formatDuration((new Date(e.endedAt).getTime() - new Date(e.startedAt).getTime()) / 60_000)}` : ` · ${timeAgo(e.startedAt, now)}`}
+          {e.endedAt
+            ? ` · ended ${formatInZone(e.endedAt, site.timeZone)} · lasted ${formatDuration((new Date(e.endedAt).getTime() - new Date(e.startedAt).getTime()) / 60_000)}`
+            : ` · ${timeAgo(e.startedAt, now)}`}
         </p>
       </div>
       <p className="text-sm">
@@ -100,11 +135,15 @@ export default function SiteAlerts({ loaderData, actionData }: Route.ComponentPr
       </p>
       {e.acknowledgedAt ? (
         <p className="inline-flex items-center gap-1.5 text-sm text-ink">
-          <WatchMark state="acknowledged" /> Acknowledged by {e.acknowledgedBy ?? "a former member"} · {formatInZone(e.acknowledgedAt, site.timeZone)}</p>
+          <WatchMark state="acknowledged" /> Acknowledged by {e.acknowledgedBy ?? "a former member"} ·{" "}
+          {formatInZone(e.acknowledgedAt, site.timeZone)}
+        </p>
       ) : e.endedAt ? null : role !== "mentor" ? (
         <Form method="post">
           <input type="hidden" name="eventId" value={e.id} />
-          <button className="btn-quiet" name="intent" value="acknowledge">I'm on it — acknowledge</button>
+          <button className="btn-quiet" name="intent" value="acknowledge">
+            I'm on it — acknowledge
+          </button>
         </Form>
       ) : (
         <p className="text-sm text-muted">Not acknowledged yet.</p>
@@ -116,11 +155,21 @@ export default function SiteAlerts({ loaderData, actionData }: Route.ComponentPr
     <div className="space-y-8">
       <section className="space-y-3">
         <h2 className="text-xl font-semibold">Open alerts</h2>
-        {open.length === 0 ? <p className="text-muted">Nothing open. Watches are set per spot, on each spot's page under “Alert watches”.</p> : <ul className="space-y-3">{open.map(row)}</ul>}
+        {open.length === 0 ? (
+          <p className="text-muted">
+            Nothing open. Watches are set per spot, on each spot's page under “Alert watches”.
+          </p>
+        ) : (
+          <ul className="space-y-3">{open.map(row)}</ul>
+        )}
       </section>
       <section className="space-y-3">
         <h2 className="h2">Recent</h2>
-        {recent.length === 0 ? <p className="text-muted">No alerts have ended yet.</p> : <ul className="space-y-3">{recent.map(row)}</ul>}
+        {recent.length === 0 ? (
+          <p className="text-muted">No alerts have ended yet.</p>
+        ) : (
+          <ul className="space-y-3">{recent.map(row)}</ul>
+        )}
       </section>
 
       <section className="space-y-3">
@@ -130,14 +179,19 @@ export default function SiteAlerts({ loaderData, actionData }: Route.ComponentPr
             <li key={w.id} className="flex flex-wrap items-baseline justify-between gap-2 px-4 py-2.5">
               <span className="inline-flex flex-wrap items-baseline gap-x-1">
                 <SpotKindIcon name={w.name} indoor={w.indoor} size={16} className="self-center text-muted" />
-                <Link className="link font-medium" to={`/sites/${site.id}/spots/${w.id}/alerts`}>{w.name}</Link>{" "}
+                <Link className="link font-medium" to={`/sites/${site.id}/spots/${w.id}/alerts`}>
+                  {w.name}
+                </Link>{" "}
                 <span className="text-sm text-muted">{w.indoor ? "indoors" : "outdoors"}</span>
               </span>
               <span className="text-sm text-muted">
                 {w.rules.length === 0
                   ? "no watches"
                   : w.rules.map((r, i) => (
-                      <span key={`${r.kind}-${i}`} className={`inline-flex items-center gap-1 ${i ? "ml-3" : ""} ${r.paused ? "text-care" : ""}`}>
+                      <span
+                        key={`${r.kind}-${i}`}
+                        className={`inline-flex items-center gap-1 ${i ? "ml-3" : ""} ${r.paused ? "text-care" : ""}`}
+                      >
                         <WatchMark state={r.paused ? "paused" : "watching"} size={14} />
                         {KINDS[r.kind].label.toLowerCase()}
                         {r.paused ? " (paused)" : ""}
@@ -160,33 +214,50 @@ export default function SiteAlerts({ loaderData, actionData }: Route.ComponentPr
             <legend className="label">Which kinds</legend>
             {role === "mentor" ? (
               <p className="hint mb-2" data-testid="mentor-cold-opt-in">
-                As a mentor you get cold-snap and silent-sensor e-mails only if you tick them here: the owner and carers are the ones who act on a cold night.
+                As a mentor you get cold-snap and silent-sensor e-mails only if you tick them here: the owner and carers
+                are the ones who act on a cold night.
               </p>
             ) : null}
             <div className="flex flex-wrap gap-x-5 gap-y-2">
-              {getCollectionProps(prefsFields.kinds, { type: "checkbox", options: [...ALERT_KINDS] }).map(({ key, ...props }) => (
-                <label key={key} className="inline-flex items-center gap-2 text-sm">
-                  <input {...props} /> {KINDS[props.value as AlertKind].label}
-                </label>
-              ))}
+              {getCollectionProps(prefsFields.kinds, { type: "checkbox", options: [...ALERT_KINDS] }).map(
+                ({ key, ...props }) => (
+                  <label key={key} className="inline-flex items-center gap-2 text-sm">
+                    <input {...props} /> {KINDS[props.value as AlertKind].label}
+                  </label>
+                ),
+              )}
             </div>
             <FieldError meta={prefsFields.kinds} />
           </fieldset>
           <div className="flex flex-wrap items-end gap-3">
             <div>
-              <label className="label" htmlFor={prefsFields.quietFrom.id}>Quiet hours from</label>
-              <input className="field w-28" placeholder="22:30" {...getInputProps(prefsFields.quietFrom, { type: "text" })} />
+              <label className="label" htmlFor={prefsFields.quietFrom.id}>
+                Quiet hours from
+              </label>
+              <input
+                className="field w-28"
+                placeholder="22:30"
+                {...getInputProps(prefsFields.quietFrom, { type: "text" })}
+              />
             </div>
             <div>
-              <label className="label" htmlFor={prefsFields.quietTo.id}>to</label>
-              <input className="field w-28" placeholder="07:00" {...getInputProps(prefsFields.quietTo, { type: "text" })} />
+              <label className="label" htmlFor={prefsFields.quietTo.id}>
+                to
+              </label>
+              <input
+                className="field w-28"
+                placeholder="07:00"
+                {...getInputProps(prefsFields.quietTo, { type: "text" })}
+              />
             </div>
           </div>
           <FieldError meta={prefsFields.quietFrom} />
           <FieldError meta={prefsFields.quietTo} />
           <p className="hint">
-            Times are the site's ({site.timeZone}). During quiet hours, heat, dry-air, condensation and battery alerts are not e-mailed (they still show
-            here). <strong>Cold-snap and silent-sensor alerts are always sent, quiet hours or not</strong> — they are the ones that cannot wait until morning.
+            Times are the site's ({site.timeZone}). During quiet hours, heat, dry-air, condensation and battery alerts
+            are not e-mailed (they still show here).{" "}
+            <strong>Cold-snap and silent-sensor alerts are always sent, quiet hours or not</strong> — they are the ones
+            that cannot wait until morning.
           </p>
           <FormErrors errors={prefsForm.errors} />
           <div className="flex items-center gap-3">

@@ -23,7 +23,12 @@ export const meta: Route.MetaFunction = () => [{ title: "Home broker · Nichewis
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { siteId, role, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
-  const [site, config, sensors, spots] = await Promise.all([getSite(siteId), getBridge(siteId), listSensors(siteId), listSpots(siteId)]);
+  const [site, config, sensors, spots] = await Promise.all([
+    getSite(siteId),
+    getBridge(siteId),
+    listSensors(siteId),
+    listSpots(siteId),
+  ]);
   const links = config ? await listLinks(config.id) : [];
   const l = role === "owner" ? listeningFor(siteId) : null;
   const names = new Map(sensors.map((s) => [s.id, s.name]));
@@ -35,7 +40,13 @@ export async function loader({ request, params }: Route.LoaderArgs) {
     // Only the owner sees where the broker is and as whom Nichewise signs in; never the password.
     bridge: config ? (role === "owner" ? viewOf(config) : { enabled: config.enabled, passwordError: null }) : null,
     state: bridgeState(siteId),
-    links: links.map((k) => ({ id: k.id, topic: k.topic, device: k.device, preset: k.mapping.preset, sensorName: names.get(k.sensorId) ?? "?" })),
+    links: links.map((k) => ({
+      id: k.id,
+      topic: k.topic,
+      device: k.device,
+      preset: k.mapping.preset,
+      sensorName: names.get(k.sensorId) ?? "?",
+    })),
     sensors: sensors.map((s) => ({ id: s.id, name: s.name, spotName: s.spotName })),
     spots: spots.map((s) => ({ id: s.id, name: s.name })),
     listening: l
@@ -117,11 +128,15 @@ export async function action({ request, params }: Route.ActionArgs) {
     let raw: unknown;
     const json = text("mapping");
     if (json !== undefined) {
-      if (json.length > 2000) return data({ intent, errors: { mapping: "That mapping is too long." } }, { status: 400 });
+      if (json.length > 2000)
+        return data({ intent, errors: { mapping: "That mapping is too long." } }, { status: 400 });
       try {
         raw = JSON.parse(json);
       } catch {
-        return data({ intent, errors: { mapping: "That mapping could not be read: listen again and retry." } }, { status: 400 });
+        return data(
+          { intent, errors: { mapping: "That mapping could not be read: listen again and retry." } },
+          { status: 400 },
+        );
       }
     } else {
       const path = (c: string) => text(`path_${c}`);
@@ -130,7 +145,13 @@ export async function action({ request, params }: Route.ActionArgs) {
         device: text("device"),
         channel: text("channel") || undefined,
         unit: text("unitOfTemperature") || undefined,
-        paths: { temperature: path("temperature"), humidity: path("humidity"), lux: path("lux"), battery: path("battery"), time: path("time") },
+        paths: {
+          temperature: path("temperature"),
+          humidity: path("humidity"),
+          lux: path("lux"),
+          battery: path("battery"),
+          time: path("time"),
+        },
       };
     }
     const mapping = mappingSchema.safeParse(raw);
@@ -139,7 +160,8 @@ export async function action({ request, params }: Route.ActionArgs) {
     const chosen = sensorId !== null || (newIn !== null && (newIn === "" || spotId !== null));
     if (!chosen) errors.sensorId = "Choose the sensor these readings belong to.";
     if (!mapping.success) Object.assign(errors, issues(mapping.error));
-    if (!topic.success || !chosen || !mapping.success) return data({ intent, errors, topic: text("topic") ?? "" }, { status: 400 });
+    if (!topic.success || !chosen || !mapping.success)
+      return data({ intent, errors, topic: text("topic") ?? "" }, { status: 400 });
     let created: string | null = null;
     let placedIn: string | null = null;
     try {
@@ -149,15 +171,30 @@ export async function action({ request, params }: Route.ActionArgs) {
         created = sensorNameFor(topic.data, mapping.data.device);
         if (spotId) placedIn = (await getSpot(siteId, spotId).catch(() => null))?.name ?? null;
         const channels = sensorChannelsFor(mapping.data);
-        id = (await createSensor({ siteId, name: created, channels, spotId: spotId ?? undefined, since: "first", actorId: user.id })).id;
+        id = (
+          await createSensor({
+            siteId,
+            name: created,
+            channels,
+            spotId: spotId ?? undefined,
+            since: "first",
+            actorId: user.id,
+          })
+        ).id;
       }
       await attachTopic({ siteId, actorId: user.id, sensorId: id, topic: topic.data, mapping: mapping.data });
     } catch (err) {
-      if (err instanceof LinkError || err instanceof PlacementError) return data({ intent, errors: { form: err.message } }, { status: 400 });
+      if (err instanceof LinkError || err instanceof PlacementError)
+        return data({ intent, errors: { form: err.message } }, { status: 400 });
       throw err;
     }
     await reloadBridge(siteId, { restart: false });
-    return { intent, attached: topic.data + (mapping.data.device ? ` · ${mapping.data.device}` : ""), created, placedIn };
+    return {
+      intent,
+      attached: topic.data + (mapping.data.device ? ` · ${mapping.data.device}` : ""),
+      created,
+      placedIn,
+    };
   }
 
   if (intent === "detach") {
@@ -190,52 +227,74 @@ export default function SiteBroker({ loaderData, actionData }: Route.ComponentPr
   const errorFor = (intent: string) => (actionData?.intent === intent ? errors : {});
   const owner = role === "owner";
   const saved = !!actionData && "saved" in actionData;
-  const settings = (
-    <BrokerSettings bridge={bridge} errors={errorFor("save")} saved={saved} />
-  );
+  const settings = <BrokerSettings bridge={bridge} errors={errorFor("save")} saved={saved} />;
 
   return (
     <div className="space-y-8">
       <section className="space-y-3" aria-labelledby="bridge-state">
-        <h2 id="bridge-state" className="text-xl font-semibold">Sensors you already have</h2>
+        <h2 id="bridge-state" className="text-xl font-semibold">
+          Sensors you already have
+        </h2>
         <p className="text-muted">
-          If your sensors already report to an MQTT broker at home (through a Zigbee or Bluetooth gateway, or their own Wi-Fi firmware), Nichewise can
-          sign in to that broker and take their readings as they come, with no new firmware.
+          If your sensors already report to an MQTT broker at home (through a Zigbee or Bluetooth gateway, or their own
+          Wi-Fi firmware), Nichewise can sign in to that broker and take their readings as they come, with no new
+          firmware.
         </p>
         {!current.bridge ? (
           <p className="card">
-            No home broker is connected to {site.name}.{owner ? " First give its address and the user Nichewise signs in as; then listen for your sensors' topics." : " The site's owner can connect one."}
+            No home broker is connected to {site.name}.
+            {owner
+              ? " First give its address and the user Nichewise signs in as; then listen for your sensors' topics."
+              : " The site's owner can connect one."}
           </p>
         ) : (
-          <BrokerState state={current.state} enabled={current.bridge.enabled} passwordError={current.bridge.passwordError} attached={current.links.length} now={now} />
+          <BrokerState
+            state={current.state}
+            enabled={current.bridge.enabled}
+            passwordError={current.bridge.passwordError}
+            attached={current.links.length}
+            now={now}
+          />
         )}
       </section>
 
       {owner && !current.bridge ? (
         <section className="card space-y-3" aria-labelledby="connection">
-          <h2 id="connection" className="h2">Connect your broker</h2>
+          <h2 id="connection" className="h2">
+            Connect your broker
+          </h2>
           {settings}
         </section>
       ) : null}
 
       {current.bridge ? (
         <section className="space-y-3" aria-labelledby="attached">
-          <h2 id="attached" className="h2">Attached topics</h2>
+          <h2 id="attached" className="h2">
+            Attached topics
+          </h2>
           {current.links.length === 0 ? (
-            <p className="text-muted">Nothing attached yet.{owner ? " Listen below, then attach what you recognise." : ""}</p>
+            <p className="text-muted">
+              Nothing attached yet.{owner ? " Listen below, then attach what you recognise." : ""}
+            </p>
           ) : (
             <ul className="card divide-y divide-line p-0">
               {current.links.map((k) => (
                 <li key={k.id} className="flex flex-wrap items-center justify-between gap-2 px-4 py-2.5">
                   <span>
                     <code className="break-all">{k.topic}</code>
-                    {k.device ? <span className="text-muted"> · device {k.device}</span> : null} → <strong>{k.sensorName}</strong>{" "}
+                    {k.device ? <span className="text-muted"> · device {k.device}</span> : null} →{" "}
+                    <strong>{k.sensorName}</strong>{" "}
                     <span className="text-sm text-muted">{PRESET_LABELS[k.preset]}</span>
                   </span>
                   {owner ? (
                     <Form method="post">
                       <input type="hidden" name="linkId" value={k.id} />
-                      <button className="btn-quiet" name="intent" value="detach" aria-label={`Detach ${k.topic}${k.device ? ` ${k.device}` : ""}`}>
+                      <button
+                        className="btn-quiet"
+                        name="intent"
+                        value="detach"
+                        aria-label={`Detach ${k.topic}${k.device ? ` ${k.device}` : ""}`}
+                      >
                         Detach
                       </button>
                     </Form>
@@ -255,14 +314,30 @@ export default function SiteBroker({ loaderData, actionData }: Route.ComponentPr
               .
             </p>
           ) : null}
-          {errorFor("attach").form ? <p className="error" role="alert">{errorFor("attach").form}</p> : null}
+          {errorFor("attach").form ? (
+            <p className="error" role="alert">
+              {errorFor("attach").form}
+            </p>
+          ) : null}
         </section>
       ) : null}
 
       {owner && current.bridge ? (
         <>
-          <BrokerListen listening={listening} error={errorFor("listen").prefix} sensors={current.sensors} spots={current.spots} unit={unit} timeZone={site.timeZone} />
-          <BrokerManual errors={errorFor("attach")} topic={actionData && "topic" in actionData ? String(actionData.topic ?? "") : ""} sensors={current.sensors} spots={current.spots} />
+          <BrokerListen
+            listening={listening}
+            error={errorFor("listen").prefix}
+            sensors={current.sensors}
+            spots={current.spots}
+            unit={unit}
+            timeZone={site.timeZone}
+          />
+          <BrokerManual
+            errors={errorFor("attach")}
+            topic={actionData && "topic" in actionData ? String(actionData.topic ?? "") : ""}
+            sensors={current.sensors}
+            spots={current.spots}
+          />
           <details className="fold" open={saved || actionData?.intent === "save" || !!bridge?.passwordError}>
             <summary>Broker settings</summary>
             <div>{settings}</div>

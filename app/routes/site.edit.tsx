@@ -34,7 +34,12 @@ export default function EditSite({ loaderData, actionData }: Route.ComponentProp
       <div className="card">
         <SiteForm
           lastResult={actionData?.result}
-          defaultValue={{ name: site.name, latitude: site.latitude, longitude: site.longitude, timeZone: site.timeZone }}
+          defaultValue={{
+            name: site.name,
+            latitude: site.latitude,
+            longitude: site.longitude,
+            timeZone: site.timeZone,
+          }}
           submitLabel="Save"
         />
       </div>

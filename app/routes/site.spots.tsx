@@ -54,8 +54,9 @@ export default function SiteSpots({ loaderData, params }: Route.ComponentProps) 
           The spots
         </h2>
         <p className="mb-3 text-sm text-muted">
-          Each spot's year in a small strip: a line from the month's lowest to its highest, a bar from the mean daily low to the mean daily high,
-          coloured from cold (blue) to warm (orange). Faded months have too few days of readings.
+          Each spot's year in a small strip: a line from the month's lowest to its highest, a bar from the mean daily
+          low to the mean daily high, coloured from cold (blue) to warm (orange). Faded months have too few days of
+          readings.
         </p>
         <ul className="grid gap-4 sm:grid-cols-2 lg:grid-cols-3">
           {cards.map((c) => (

@@ -50,7 +50,13 @@ export function ErrorBoundary({ error }: Route.ErrorBoundaryProps) {
   );
 }
 
-function SiteFrame({ data, children }: { data: Pick<Route.ComponentProps["loaderData"], "site" | "role">; children: React.ReactNode }) {
+function SiteFrame({
+  data,
+  children,
+}: {
+  data: Pick<Route.ComponentProps["loaderData"], "site" | "role">;
+  children: React.ReactNode;
+}) {
   const location = useLocation();
   const { site, role } = data;
   const base = `/sites/${site.id}`;
@@ -73,11 +79,16 @@ function SiteFrame({ data, children }: { data: Pick<Route.ComponentProps["loader
   const current = spotWatches
     ? tabs.find((t) => t.to === `${base}/alerts`)
     : (tabs
-        .filter((t) => (t.end ? location.pathname === t.to : location.pathname === t.to || location.pathname.startsWith(`${t.to}/`)))
-        .sort((a, b) => b.to.length - a.to.length)[0] ?? (location.pathname.startsWith(`${base}/spots`) ? tabs[0] : undefined));
+        .filter((t) =>
+          t.end ? location.pathname === t.to : location.pathname === t.to || location.pathname.startsWith(`${t.to}/`),
+        )
+        .sort((a, b) => b.to.length - a.to.length)[0] ??
+      (location.pathname.startsWith(`${base}/spots`) ? tabs[0] : undefined));
   // The tab's own page is the current page; a page under it (a spot of Spots) is its current location.
   const here = (t: (typeof tabs)[number]) =>
-    t === current ? { "data-here": "", "aria-current": location.pathname === t.to ? ("page" as const) : ("location" as const) } : {};
+    t === current
+      ? { "data-here": "", "aria-current": location.pathname === t.to ? ("page" as const) : ("location" as const) }
+      : {};
   return (
     <main className="mx-auto max-w-6xl px-4 pt-6 pb-16 sm:px-6">
       <div className="flex flex-wrap items-baseline justify-between gap-2">
@@ -103,7 +114,11 @@ function SiteFrame({ data, children }: { data: Pick<Route.ComponentProps["loader
           <ul className="mt-1 grid grid-cols-2 gap-1 rounded-[0.2rem] border border-stone-line bg-card p-2">
             {tabs.map((t) => (
               <li key={t.to}>
-                <Link to={t.to} {...here(t)} className="block rounded-t-[0.8rem] rounded-b-[0.2rem] px-3 py-2.5 text-sm font-medium data-[here]:bg-stone data-[here]:font-semibold">
+                <Link
+                  to={t.to}
+                  {...here(t)}
+                  className="block rounded-t-[0.8rem] rounded-b-[0.2rem] px-3 py-2.5 text-sm font-medium data-[here]:bg-stone data-[here]:font-semibold"
+                >
                   {t.label}
                 </Link>
               </li>

@@ -22,7 +22,9 @@ export async function action({ request }: Route.ActionArgs) {
   const siteId = await db().transaction(async (tx) => {
     const [site] = await tx.insert(sites).values(submission.value).returning({ id: sites.id });
     await tx.insert(memberships).values({ userId: user.id, siteId: site.id, role: "owner" });
-    await tx.insert(auditLog).values({ siteId: site.id, actorId: user.id, action: "site.create", detail: submission.value });
+    await tx
+      .insert(auditLog)
+      .values({ siteId: site.id, actorId: user.id, action: "site.create", detail: submission.value });
     return site.id;
   });
   return redirect(`/sites/${siteId}`);

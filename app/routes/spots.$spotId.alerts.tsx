@@ -16,7 +16,9 @@ import { FieldError, FormErrors } from "~/components/field";
 import { addWatchSchema, watchSchema } from "~/forms/watch";
 import type { Route } from "./+types/spots.$spotId.alerts";
 
-export const meta: Route.MetaFunction = ({ data }) => [{ title: `Alerts for ${data?.spot.name ?? "spot"} · Nichewise` }];
+export const meta: Route.MetaFunction = ({ data }) => [
+  { title: `Alerts for ${data?.spot.name ?? "spot"} · Nichewise` },
+];
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { siteId, role, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
@@ -53,7 +55,11 @@ export async function action({ request, params }: Route.ActionArgs) {
   const raw = await readForm(request);
   const intent = String(raw.get("intent") ?? "");
   // Carers may pause and resume a watch (plants brought in); everything else is the owner's.
-  const { siteId, user } = await requireSiteRole(request, params.siteId, intent === "pause" || intent === "resume" ? WRITERS : ["owner"]);
+  const { siteId, user } = await requireSiteRole(
+    request,
+    params.siteId,
+    intent === "pause" || intent === "resume" ? WRITERS : ["owner"],
+  );
   const spot = await getSpot(siteId, params.spotId);
   const unit = user.temperatureUnit;
   // A change keeps its watch's kind: the stored one, whatever the page sent.
@@ -62,7 +68,15 @@ export async function action({ request, params }: Route.ActionArgs) {
   const submission = parseWithZod(raw, { schema: watchSchema });
   if (submission.status !== "success") {
     if (intent !== "add" && intent !== "update") refuseForm(submission.error);
-    return data({ intent, ruleId: changed ? String(changed.id) : "new", kind: String(submission.payload.kind ?? ""), result: submission.reply() }, { status: 400 });
+    return data(
+      {
+        intent,
+        ruleId: changed ? String(changed.id) : "new",
+        kind: String(submission.payload.kind ?? ""),
+        result: submission.reply(),
+      },
+      { status: 400 },
+    );
   }
   const form = submission.value;
   if (form.intent === "add") {
@@ -74,7 +88,13 @@ export async function action({ request, params }: Route.ActionArgs) {
     return { saved: rule.id };
   }
   if (form.intent === "update") {
-    await updateWatch({ siteId, spot, actorId: user.id, rule: changed!, settings: storedSettings({ ...form, intent: "add" }, unit) });
+    await updateWatch({
+      siteId,
+      spot,
+      actorId: user.id,
+      rule: changed!,
+      settings: storedSettings({ ...form, intent: "add" }, unit),
+    });
     return { saved: changed!.id };
   }
   const rule = await getRule(spot.id, form.ruleId);
@@ -87,7 +107,12 @@ export async function action({ request, params }: Route.ActionArgs) {
 }
 
 const UNIT_LABEL = (k: AlertKind, unit: "C" | "F") =>
-  ({ temperature: `°${unit}`, kelvin: `°${unit} above the dew point`, percent: "%", minutes: "minutes without a reading" })[KINDS[k].unit];
+  ({
+    temperature: `°${unit}`,
+    kelvin: `°${unit} above the dew point`,
+    percent: "%",
+    minutes: "minutes without a reading",
+  })[KINDS[k].unit];
 
 type Initial = Pick<Watch, "threshold" | "durationMinutes" | "hysteresis" | "clearMinutes" | "earlyWarning">;
 
@@ -170,24 +195,29 @@ export default function SpotAlerts({ loaderData, actionData }: Route.ComponentPr
   const navigation = useNavigation();
   const busy = navigation.state !== "idle";
   const failed = actionData && "result" in actionData ? actionData : null;
-  const failedNew = (kind: AlertKind) => (failed && failed.ruleId === "new" && failed.kind === kind ? failed.result : undefined);
+  const failedNew = (kind: AlertKind) =>
+    failed && failed.ruleId === "new" && failed.kind === kind ? failed.result : undefined;
   const hasCold = rules.some((r) => r.kind === "cold");
   return (
     <div className="space-y-6">
       <div className="flex flex-wrap items-end justify-between gap-3">
         <div>
           <p className="text-sm text-muted">
-            <Link className="link" to={`/sites/${siteId}/spots/${spot.id}`}>{spot.name}</Link>
+            <Link className="link" to={`/sites/${siteId}/spots/${spot.id}`}>
+              {spot.name}
+            </Link>
           </p>
           <h2 className="text-xl font-semibold">Alert watches</h2>
         </div>
-        <Link className="btn-quiet" to={`/sites/${siteId}/alerts`}>All alerts of this site</Link>
+        <Link className="btn-quiet" to={`/sites/${siteId}/alerts`}>
+          All alerts of this site
+        </Link>
       </div>
 
       <p role="note" className="card border-l-4 border-l-accent text-sm">
-        <strong>Alerts are a help, not a guarantee.</strong> A sensor can fail, its battery can run out or its connection can drop,
-        and an e-mail can arrive late. On a night you expect frost, bring tender plants in anyway. A silent-sensor watch tells you
-        when this spot stops sending — the dangerous case on a cold night.
+        <strong>Alerts are a help, not a guarantee.</strong> A sensor can fail, its battery can run out or its
+        connection can drop, and an e-mail can arrive late. On a night you expect frost, bring tender plants in anyway.
+        A silent-sensor watch tells you when this spot stops sending — the dangerous case on a cold night.
       </p>
 
       {rules.length === 0 ? <p className="text-muted">No watches on this spot yet.</p> : null}
@@ -216,8 +246,12 @@ export default function SpotAlerts({ loaderData, actionData }: Route.ComponentPr
                   className="space-y-3"
                 >
                   <div className="flex flex-wrap gap-2">
-                    <button className="btn" name="intent" value="update" disabled={busy}>Save</button>
-                    <button className="btn-danger" name="intent" value="delete" disabled={busy}>Remove watch</button>
+                    <button className="btn" name="intent" value="update" disabled={busy}>
+                      Save
+                    </button>
+                    <button className="btn-danger" name="intent" value="delete" disabled={busy}>
+                      Remove watch
+                    </button>
                   </div>
                 </WatchForm>
               ) : null}
@@ -230,7 +264,10 @@ export default function SpotAlerts({ loaderData, actionData }: Route.ComponentPr
                   {r.paused ? null : (
                     <span className="hint ml-2">
                       Pausing ends an open alert without an all-clear
-                      {r.kind === "cold" || r.kind === "silent" ? ", and the site's owners are e-mailed that you paused it" : ""}.
+                      {r.kind === "cold" || r.kind === "silent"
+                        ? ", and the site's owners are e-mailed that you paused it"
+                        : ""}
+                      .
                     </span>
                   )}
                 </Form>
@@ -245,14 +282,20 @@ export default function SpotAlerts({ loaderData, actionData }: Route.ComponentPr
           <h3 className="h2">Add a watch</h3>
           {!hasCold && !suggestion ? (
             <p className="text-sm text-muted" data-testid="no-cold-suggestion">
-              No plants are placed here, so there is no cold-snap watch to suggest: its line follows the most cold-tender plant in the spot.
-              {spot.indoor ? "" : " Placing a plant here adds one by itself (its lowest safe night plus 2 °C)."} You can still add one below.
+              No plants are placed here, so there is no cold-snap watch to suggest: its line follows the most
+              cold-tender plant in the spot.
+              {spot.indoor ? "" : " Placing a plant here adds one by itself (its lowest safe night plus 2 °C)."} You can
+              still add one below.
             </p>
           ) : null}
           {!hasCold && suggestion ? (
             <div className="space-y-2 rounded-[0.2rem] border border-stone-line p-3">
               <p className="text-sm">
-                Suggested cold-snap watch: <strong>below {round1(toUnitValue("cold", suggestion.threshold, unit))} °{unit}</strong>. {suggestion.reason}
+                Suggested cold-snap watch:{" "}
+                <strong>
+                  below {round1(toUnitValue("cold", suggestion.threshold, unit))} °{unit}
+                </strong>
+                . {suggestion.reason}
               </p>
               <WatchForm
                 id="watch-suggested"
@@ -263,7 +306,9 @@ export default function SpotAlerts({ loaderData, actionData }: Route.ComponentPr
                 hidden={{ intent: "add", useSuggestion: "1" }}
                 className="space-y-2"
               >
-                <button className="btn" disabled={busy}>Add this cold watch</button>
+                <button className="btn" disabled={busy}>
+                  Add this cold watch
+                </button>
               </WatchForm>
             </div>
           ) : null}
@@ -273,8 +318,18 @@ export default function SpotAlerts({ loaderData, actionData }: Route.ComponentPr
               {ALERT_KINDS.filter((k) => k !== "cold" || hasCold || !suggestion).map((k) => (
                 <div key={k} className="space-y-2 rounded-[0.2rem] border border-stone-line p-3">
                   <p className="text-sm font-medium">{KINDS[k].label}</p>
-                  <WatchForm id={`watch-new-${k}`} kind={k} unit={unit} initial={{ ...KINDS[k].defaults, earlyWarning: true }} lastResult={failedNew(k)} hidden={{ intent: "add" }} className="space-y-2">
-                    <button className="btn-quiet" disabled={busy}>Add {KINDS[k].label.toLowerCase()} watch</button>
+                  <WatchForm
+                    id={`watch-new-${k}`}
+                    kind={k}
+                    unit={unit}
+                    initial={{ ...KINDS[k].defaults, earlyWarning: true }}
+                    lastResult={failedNew(k)}
+                    hidden={{ intent: "add" }}
+                    className="space-y-2"
+                  >
+                    <button className="btn-quiet" disabled={busy}>
+                      Add {KINDS[k].label.toLowerCase()} watch
+                    </button>
                   </WatchForm>
                 </div>
               ))}

@@ -28,7 +28,12 @@ export async function action({ request, params }: Route.ActionArgs) {
   const submission = parseWithZod(formData, { schema: spotSchema });
   if (submission.status !== "success") return { result: submission.reply() };
   const { indoor, notes, glazing, ...rest } = submission.value;
-  await updateSpot({ siteId, actorId: user.id, spot, values: { ...rest, indoor: indoor === "indoor", notes: notes ?? "", glazing: glazing ?? null } });
+  await updateSpot({
+    siteId,
+    actorId: user.id,
+    spot,
+    values: { ...rest, indoor: indoor === "indoor", notes: notes ?? "", glazing: glazing ?? null },
+  });
   return redirect(`/sites/${siteId}/spots/${spot.id}`);
 }
 

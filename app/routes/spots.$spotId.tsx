@@ -23,7 +23,16 @@ import { inventoryAction, sitePlants } from "~/.server/plants";
 import { inventorySchema } from "~/forms/inventory";
 import { parseWithZod } from "@conform-to/zod/v4";
 import { spotGrowing } from "~/.server/spot-growing";
-import { fitsFor, glassContextFor, judgedPeriods, parseGlazing, parsePeriod, pickableMonths, spotProfiles, windowOf } from "~/.server/profiles";
+import {
+  fitsFor,
+  glassContextFor,
+  judgedPeriods,
+  parseGlazing,
+  parsePeriod,
+  pickableMonths,
+  spotProfiles,
+  windowOf,
+} from "~/.server/profiles";
 import { slimProfile } from "~/domain/season/slim";
 import { periodLabel, PeriodPicker } from "~/components/period-picker";
 import { fitProjection } from "~/.server/projections";
@@ -59,11 +68,19 @@ export async function loader({ request, params }: Route.LoaderArgs) {
   const glass = await glassContextFor(site, spot, await listSpots(siteId), period, glazing, now);
   // Months not measured yet are judged from the spot's projection, when it has one (issue 16); a past period stays as measured.
   const projection = period.toToday ? ((await fitProjection(spot.id, season, { now })) ?? undefined) : undefined;
-  const fits = fitsFor(season, allPlants, { window: windowOf(site, spot), glass, projection }, { unit: user.temperatureUnit });
+  const fits = fitsFor(
+    season,
+    allPlants,
+    { window: windowOf(site, spot), glass, projection },
+    { unit: user.temperatureUnit },
+  );
   const plantKey = q.get("plant") ?? fits[0]?.key;
   // A new spot (fewer than twelve measured months, its latest year shown): what can be known now (issue 16, part 5).
   const measuredMonths = season.year.filter((m) => m.coverage.enough).length;
-  const dayOneView = choice.kind === "latest" && period.toToday && measuredMonths < 12 ? await dayOneFor(site, spot.id, season, fits, now) : null;
+  const dayOneView =
+    choice.kind === "latest" && period.toToday && measuredMonths < 12
+      ? await dayOneFor(site, spot.id, season, fits, now)
+      : null;
   const plant = allPlants.find((p) => p.key === plantKey) ?? null;
   return {
     now: Date.now(),
@@ -112,7 +129,10 @@ export async function action({ request, params }: Route.ActionArgs) {
   }
   const planted = await inventoryAction(submission.value, { siteId, spotId: spot.id, actorId: user.id });
   if (planted.error && submission.value.intent === "plant-add") {
-    return data({ plantResult: submission.reply({ fieldErrors: { plantKey: [planted.error] } }) }, { status: planted.status });
+    return data(
+      { plantResult: submission.reply({ fieldErrors: { plantKey: [planted.error] } }) },
+      { status: planted.status },
+    );
   }
   return data({ plantError: planted.error }, { status: planted.status });
 }
@@ -143,12 +163,12 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
             <SpotKindIcon name={spot.name} indoor={spot.indoor} size={24} />
           </span>
           <div>
-          <h2 className="text-title font-semibold">{spot.name}</h2>
-          <p className="text-sm text-muted">
-            {spot.indoor ? "Indoors" : "Outdoors"}
-            {spot.facing !== "none" ? ` · window faces ${spot.facing}` : ""}
-            {spot.capacity ? ` · room for ${spot.capacity} pots` : ""}
-          </p>
+            <h2 className="text-title font-semibold">{spot.name}</h2>
+            <p className="text-sm text-muted">
+              {spot.indoor ? "Indoors" : "Outdoors"}
+              {spot.facing !== "none" ? ` · window faces ${spot.facing}` : ""}
+              {spot.capacity ? ` · room for ${spot.capacity} pots` : ""}
+            </p>
           </div>
         </div>
         <div className="flex flex-wrap gap-2">
@@ -174,7 +194,11 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
           pastPeriod={loaderData.period.chosen !== "latest"}
           period={`${periodLabel(loaderData.period)}${loaderData.period.chosen === "latest" ? ", this spot's latest twelve months with readings" : ""}`}
         />
-        <div className="mt-3 border-t border-stone-line pt-2 text-sm text-muted tabular-nums" aria-live="polite" data-testid="live-tile">
+        <div
+          className="mt-3 border-t border-stone-line pt-2 text-sm text-muted tabular-nums"
+          aria-live="polite"
+          data-testid="live-tile"
+        >
           {latest ? (
             <p>
               Now: <span className="font-semibold text-ink">{formatTemp(latest.temp, unit)}</span>
@@ -188,12 +212,26 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
 
       <nav aria-label="On this page" className="page-index" data-testid="page-index">
         <span className="eyebrow self-center">On this page</span>
-        <a className="link" href="#year">The year</a>
-        <a className="link" href="#fits">Every group</a>
-        <a className="link" href="#plants">Plants here</a>
-        <a className="link" href="#notes">Notes{openNotes ? ` (${openNotes} open)` : ""}</a>
-        {role !== "mentor" ? <a className="link" href="#place">Place a sensor here</a> : null}
-        <a className="link" href="#closer">Charts and numbers</a>
+        <a className="link" href="#year">
+          The year
+        </a>
+        <a className="link" href="#fits">
+          Every group
+        </a>
+        <a className="link" href="#plants">
+          Plants here
+        </a>
+        <a className="link" href="#notes">
+          Notes{openNotes ? ` (${openNotes} open)` : ""}
+        </a>
+        {role !== "mentor" ? (
+          <a className="link" href="#place">
+            Place a sensor here
+          </a>
+        ) : null}
+        <a className="link" href="#closer">
+          Charts and numbers
+        </a>
       </nav>
 
       {/* A new spot: what can be known now, right under the answer and the page's index (issue 16). */}
@@ -204,7 +242,15 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
           months={loaderData.profile.year}
           unit={unit}
           title={`${periodLabel(loaderData.period)}, month by month`}
-          band={loaderData.plant ? { low: loaderData.plant.minNightC, high: loaderData.plant.maxDayC, label: `${loaderData.plant.name}'s comfortable range` } : null}
+          band={
+            loaderData.plant
+              ? {
+                  low: loaderData.plant.minNightC,
+                  high: loaderData.plant.maxDayC,
+                  label: `${loaderData.plant.name}'s comfortable range`,
+                }
+              : null
+          }
         />
         <PeriodPicker
           chosen={loaderData.period.chosen}
@@ -213,9 +259,17 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
           problem={loaderData.period.problem}
         />
         <form method="get" className="flex flex-wrap items-center gap-2 text-sm">
-          {loaderData.period.chosen !== "latest" ? <input type="hidden" name="period" value={loaderData.period.chosen} /> : null}
+          {loaderData.period.chosen !== "latest" ? (
+            <input type="hidden" name="period" value={loaderData.period.chosen} />
+          ) : null}
           <label htmlFor="plant">Lay a plant's range over it:</label>
-          <select id="plant" name="plant" className="field w-auto max-w-full" defaultValue={loaderData.plant?.key} onChange={(e) => e.currentTarget.form?.requestSubmit()}>
+          <select
+            id="plant"
+            name="plant"
+            className="field w-auto max-w-full"
+            defaultValue={loaderData.plant?.key}
+            onChange={(e) => e.currentTarget.form?.requestSubmit()}
+          >
             {loaderData.plants.map((p) => (
               <option key={p.key} value={p.key}>
                 {p.name}
@@ -230,11 +284,14 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
 
       <section id="fits" className="card">
         <h3 className="h2 mb-1">Every group, best first</h3>
-        <p className="mb-3 text-sm text-muted">The best few in full; the rest gathered by verdict and by what holds them back.</p>
+        <p className="mb-3 text-sm text-muted">
+          The best few in full; the rest gathered by verdict and by what holds them back.
+        </p>
         {allUnjudged ? (
           // One line instead of a wall of identical rows: nothing is judged yet (issue 16).
           <p data-testid="fits-unjudged">
-            None of the {loaderData.fits.length} groups can be judged yet: {loaderData.fits[0]?.missingAdvice ?? "too few days of readings here."}
+            None of the {loaderData.fits.length} groups can be judged yet:{" "}
+            {loaderData.fits[0]?.missingAdvice ?? "too few days of readings here."}
             {loaderData.dayOne ? " What is known already is above." : ""}
           </p>
         ) : (
@@ -278,7 +335,14 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
           />
         </div>
         <div id="notes">
-          <NotesPanel siteId={site.id} target={{ spotId: spot.id }} notes={loaderData.notes} role={role} timeZone={site.timeZone} about="this spot" />
+          <NotesPanel
+            siteId={site.id}
+            target={{ spotId: spot.id }}
+            notes={loaderData.notes}
+            role={role}
+            timeZone={site.timeZone}
+            about="this spot"
+          />
         </div>
       </div>
 
@@ -304,13 +368,21 @@ export default function SpotPage({ loaderData, actionData }: Route.ComponentProp
         <details className="fold" data-testid="fold-48h">
           <summary>The last 48 hours, reading by reading</summary>
           <div>
-            <HoursCharts url={`/api/sites/${site.id}/spots/${spot.id}/series?range=48h`} unit={unit} timeZone={site.timeZone} />
+            <HoursCharts
+              url={`/api/sites/${site.id}/spots/${spot.id}/series?range=48h`}
+              unit={unit}
+              timeZone={site.timeZone}
+            />
           </div>
         </details>
         <details className="fold" data-testid="fold-days">
           <summary>Day by day through the year, and the dew-point margin</summary>
           <div className="space-y-4">
-            <YearCharts url={`/api/sites/${site.id}/spots/${spot.id}/series?range=year`} unit={unit} timeZone={site.timeZone} />
+            <YearCharts
+              url={`/api/sites/${site.id}/spots/${spot.id}/series?range=year`}
+              unit={unit}
+              timeZone={site.timeZone}
+            />
           </div>
         </details>
         <details className="fold" data-testid="fold-numbers">

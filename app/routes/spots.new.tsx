@@ -19,7 +19,11 @@ export async function action({ request, params }: Route.ActionArgs) {
   const submission = parseWithZod(await readForm(request), { schema: spotSchema });
   if (submission.status !== "success") return { result: submission.reply() };
   const { indoor, notes, glazing, ...rest } = submission.value;
-  const spot = await createSpot({ siteId, actorId: user.id, values: { ...rest, indoor: indoor === "indoor", notes: notes ?? "", glazing: glazing ?? null } });
+  const spot = await createSpot({
+    siteId,
+    actorId: user.id,
+    values: { ...rest, indoor: indoor === "indoor", notes: notes ?? "", glazing: glazing ?? null },
+  });
   return redirect(`/sites/${siteId}/spots/${spot.id}`);
 }
 

@@ -42,7 +42,13 @@ export async function action({ request, params }: Route.ActionArgs) {
   // Noon local time, so the date reads the same in every time zone of the site's members.
   const checkedOn = zonedToUtc({ year, month, day, hour: 12 }, site.timeZone);
   if (Number.isNaN(checkedOn.getTime()) || checkedOn.getTime() > Date.now() + 36 * 3_600_000) {
-    return data({ intent: form.intent, result: submission.reply({ fieldErrors: { checkedOn: ["The date cannot be in the future."] } }) }, { status: 400 });
+    return data(
+      {
+        intent: form.intent,
+        result: submission.reply({ fieldErrors: { checkedOn: ["The date cannot be in the future."] } }),
+      },
+      { status: 400 },
+    );
   }
   const source = parseSource(form.source, form.ownSource ?? "")!;
   const value = form.value ?? null;
@@ -86,11 +92,14 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
 
   const chartData = useMemo(() => {
     const withTds = checks.filter((c) => c.ecExact != null);
-    const t = [...new Set(withTds.map((c) => Math.floor(new Date(c.checkedOn).getTime() / 1000)))].sort((a, b) => a - b);
+    const t = [...new Set(withTds.map((c) => Math.floor(new Date(c.checkedOn).getTime() / 1000)))].sort(
+      (a, b) => a - b,
+    );
     const cols: Record<string, (number | null)[]> = { t };
     sources.forEach((s, i) => {
       const col: (number | null)[] = t.map(() => null);
-      for (const c of withTds.filter((c) => c.source === s)) col[t.indexOf(Math.floor(new Date(c.checkedOn).getTime() / 1000))] = Math.round(c.ecExact!);
+      for (const c of withTds.filter((c) => c.source === s))
+        col[t.indexOf(Math.floor(new Date(c.checkedOn).getTime() / 1000))] = Math.round(c.ecExact!);
       cols[`s${i}`] = col;
     });
     cols.limit = t.map(() => ROUTINE_WATERING_MAX_EC);
@@ -114,7 +123,13 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
             points: { show: true, size: 6 },
             value: (_u: unknown, v: number | null) => (v == null ? "–" : `${v} µS/cm`),
           })),
-          { label: `${ROUTINE_WATERING_MAX_EC} µS/cm rule of thumb`, stroke: "#4a5767", dash: [6, 4], width: 1, points: { show: false } },
+          {
+            label: `${ROUTINE_WATERING_MAX_EC} µS/cm rule of thumb`,
+            stroke: "#4a5767",
+            dash: [6, 4],
+            width: 1,
+            points: { show: false },
+          },
         ],
         axes: [
           { stroke: "#4a5767", grid: { stroke: "#d4dcdb" } },
@@ -133,24 +148,27 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
           Water checks
         </h2>
         <p className="max-w-3xl text-sm text-muted">
-          Check each water source before it goes on the plants: dissolved solids (a TDS meter in ppm, or an EC meter in µS/cm) and pH.
-          The rules of thumb:
+          Check each water source before it goes on the plants: dissolved solids (a TDS meter in ppm, or an EC meter in
+          µS/cm) and pH. The rules of thumb:
         </p>
         <ul className="mt-1 max-w-3xl list-disc pl-5 text-sm text-muted" data-testid="water-rules">
           <li>
-            Water that conducts over {ROUTINE_WATERING_MAX_EC} µS/cm is not for routine watering. A TDS meter shows that line as{" "}
-            {routineLimitPpm(0.5)} ppm on the 0.5 (NaCl) scale and {routineLimitPpm(0.7)} ppm on the 0.7 (442) scale; its manual says which it uses.
+            Water that conducts over {ROUTINE_WATERING_MAX_EC} µS/cm is not for routine watering. A TDS meter shows that
+            line as {routineLimitPpm(0.5)} ppm on the 0.5 (NaCl) scale and {routineLimitPpm(0.7)} ppm on the 0.7 (442)
+            scale; its manual says which it uses.
           </li>
           <li>
-            pH outside {PH_MIN}–{PH_MAX} needs attention only in water with some buffer (over {UNBUFFERED_MAX_EC} µS/cm). Rain and RO water are
-            nearly free of minerals: their pH drifts with the air and means little, and the potting mix and fertiliser set the pH at the roots.
+            pH outside {PH_MIN}–{PH_MAX} needs attention only in water with some buffer (over {UNBUFFERED_MAX_EC}{" "}
+            µS/cm). Rain and RO water are nearly free of minerals: their pH drifts with the air and means little, and
+            the potting mix and fertiliser set the pH at the roots.
           </li>
         </ul>
       </div>
 
       <p className="caution text-sm" role="note">
-        <span className="font-semibold">These are hobby rules of thumb</span> (common practice among orchid growers), not a laboratory test or a
-        drinking-water standard. Cheap meters drift: calibrate yours as its manual says, and ask your mentor or club when a result surprises you.
+        <span className="font-semibold">These are hobby rules of thumb</span> (common practice among orchid growers),
+        not a laboratory test or a drinking-water standard. Cheap meters drift: calibrate yours as its manual says, and
+        ask your mentor or club when a result surprises you.
       </p>
 
       {latest.length ? (
@@ -184,8 +202,9 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
           <Chart spec={spec} data={chartData} timeZone={timeZone} testId="water-chart" />
           {unplotted ? (
             <p className="mt-2 text-xs text-muted">
-              {unplotted} TDS {unplotted === 1 ? "reading" : "readings"} without the meter's scale {unplotted === 1 ? "is" : "are"} in the table but not
-              on the chart: a ppm figure stands for a different conductivity on a 0.5 and a 0.7 meter.
+              {unplotted} TDS {unplotted === 1 ? "reading" : "readings"} without the meter's scale{" "}
+              {unplotted === 1 ? "is" : "are"} in the table but not on the chart: a ppm figure stands for a different
+              conductivity on a 0.5 and a 0.7 meter.
             </p>
           ) : null}
         </section>
@@ -193,7 +212,9 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
 
       <div className="grid grid-cols-1 gap-6 lg:grid-cols-[minmax(0,1fr)_minmax(0,22rem)]">
         <section className="card relative overflow-x-auto" tabIndex={0} aria-labelledby="water-all-checks">
-          <h3 id="water-all-checks" className="h2 mb-3">All checks</h3>
+          <h3 id="water-all-checks" className="h2 mb-3">
+            All checks
+          </h3>
           {checks.length === 0 ? (
             <p className="text-sm text-muted">None yet.</p>
           ) : (
@@ -206,7 +227,11 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
                   <th>pH</th>
                   <th>Verdict</th>
                   <th className="hidden sm:table-cell">By</th>
-                  {canLog ? <th><span className="sr-only">Remove</span></th> : null}
+                  {canLog ? (
+                    <th>
+                      <span className="sr-only">Remove</span>
+                    </th>
+                  ) : null}
                 </tr>
               </thead>
               <tbody>
@@ -217,11 +242,17 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
                     <td>{ppmLabel(c)}</td>
                     <td>
                       {c.ph ?? "–"}
-                      {c.ph != null && c.buffered === false ? <span className="text-xs text-muted"> (no buffer: not judged)</span> : null}
+                      {c.ph != null && c.buffered === false ? (
+                        <span className="text-xs text-muted"> (no buffer: not judged)</span>
+                      ) : null}
                     </td>
                     <td className={WATER_VERDICT[c.verdict].cls}>
                       <DropMark verdict={c.verdict} />
-                      {c.verdict === "good" ? "good" : c.verdict === "adjust" ? "needs attention" : "not for routine use"}
+                      {c.verdict === "good"
+                        ? "good"
+                        : c.verdict === "adjust"
+                          ? "needs attention"
+                          : "not for routine use"}
                     </td>
                     <td className="hidden sm:table-cell">{c.byName ?? "–"}</td>
                     {canLog ? (
@@ -269,7 +300,13 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
                 <label className="label" htmlFor={logFields.ownSource.id}>
                   Its name, for another source
                 </label>
-                <input className="field" list="own-sources" maxLength={40} placeholder="e.g. Water butt, RO unit" {...getInputProps(logFields.ownSource, { type: "text" })} />
+                <input
+                  className="field"
+                  list="own-sources"
+                  maxLength={40}
+                  placeholder="e.g. Water butt, RO unit"
+                  {...getInputProps(logFields.ownSource, { type: "text" })}
+                />
                 <datalist id="own-sources">
                   {ownSources.map((s) => (
                     <option key={s} value={s} />
@@ -281,24 +318,36 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
                 <label className="label" htmlFor={logFields.checkedOn.id}>
                   Date
                 </label>
-                <input className="field" max={today} required {...getInputProps(logFields.checkedOn, { type: "date" })} />
+                <input
+                  className="field"
+                  max={today}
+                  required
+                  {...getInputProps(logFields.checkedOn, { type: "date" })}
+                />
                 <FieldError meta={logFields.checkedOn} />
               </div>
               <fieldset>
                 <legend className="label">The meter reads</legend>
                 <div className="flex flex-wrap gap-4 text-sm">
-                  {getCollectionProps(logFields.measure, { type: "radio", options: [...MEASURES] }).map(({ key, ...props }) => (
-                    <label key={key} className="flex items-center gap-2">
-                      <input {...props} /> {props.value === "ec" ? "EC in µS/cm" : "TDS in ppm"}
-                    </label>
-                  ))}
+                  {getCollectionProps(logFields.measure, { type: "radio", options: [...MEASURES] }).map(
+                    ({ key, ...props }) => (
+                      <label key={key} className="flex items-center gap-2">
+                        <input {...props} /> {props.value === "ec" ? "EC in µS/cm" : "TDS in ppm"}
+                      </label>
+                    ),
+                  )}
                 </div>
               </fieldset>
               <div>
                 <label className="label" htmlFor={logFields.value.id}>
                   Reading
                 </label>
-                <input inputMode="decimal" className="field" placeholder="e.g. 280" {...getInputProps(logFields.value, { type: "text" })} />
+                <input
+                  inputMode="decimal"
+                  className="field"
+                  placeholder="e.g. 280"
+                  {...getInputProps(logFields.value, { type: "text" })}
+                />
                 <FieldError meta={logFields.value} />
               </div>
               <div>
@@ -310,14 +359,22 @@ export default function Water({ loaderData, actionData }: Route.ComponentProps) 
                   <option value="0.5">0.5 — NaCl scale (ppm = µS/cm × 0.5)</option>
                   <option value="0.7">0.7 — 442 scale (ppm = µS/cm × 0.7)</option>
                 </select>
-                <p className="hint">The meter's manual says which. It matters for a TDS reading in ppm: the same water reads 1.4 times higher on a 0.7 meter.</p>
+                <p className="hint">
+                  The meter's manual says which. It matters for a TDS reading in ppm: the same water reads 1.4 times
+                  higher on a 0.7 meter.
+                </p>
                 <FieldError meta={logFields.scale} />
               </div>
               <div>
                 <label className="label" htmlFor={logFields.ph.id}>
                   pH
                 </label>
-                <input inputMode="decimal" className="field" placeholder="e.g. 6.2" {...getInputProps(logFields.ph, { type: "text" })} />
+                <input
+                  inputMode="decimal"
+                  className="field"
+                  placeholder="e.g. 6.2"
+                  {...getInputProps(logFields.ph, { type: "text" })}
+                />
                 <FieldError meta={logFields.ph} />
               </div>
               <FormErrors errors={logForm.errors} />

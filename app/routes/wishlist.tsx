@@ -21,16 +21,50 @@ export const meta: Route.MetaFunction = () => [{ title: "Wishlist · Nichewise" 
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { siteId, role, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
-  const [site, spots, plants, wishes, inventory] = await Promise.all([getSite(siteId), listSpots(siteId), sitePlants(siteId), siteWishlist(siteId), siteInventory(siteId)]);
+  const [site, spots, plants, wishes, inventory] = await Promise.all([
+    getSite(siteId),
+    listSpots(siteId),
+    sitePlants(siteId),
+    siteWishlist(siteId),
+    siteInventory(siteId),
+  ]);
   const byKey = new Map(plants.map((p) => [p.key, p]));
   const wanted = wishes.filter((w) => byKey.has(w.plantKey));
   const now = new Date();
-  const { choice, problem: periodProblem } = parsePeriod(new URL(request.url).searchParams.get("period"), now, site.timeZone);
-  const periods = wanted.length ? await judgedPeriods(site, spots.map((s) => s.id), choice, now) : new Map();
-  const profiles = wanted.length ? await spotProfiles(site, spots.map((s) => s.id), now, { plants, periods }) : new Map();
+  const { choice, problem: periodProblem } = parsePeriod(
+    new URL(request.url).searchParams.get("period"),
+    now,
+    site.timeZone,
+  );
+  const periods = wanted.length
+    ? await judgedPeriods(
+        site,
+        spots.map((s) => s.id),
+        choice,
+        now,
+      )
+    : new Map();
+  const profiles = wanted.length
+    ? await spotProfiles(
+        site,
+        spots.map((s) => s.id),
+        now,
+        { plants, periods },
+      )
+    : new Map();
   // Months not measured yet are judged from each spot's projection (issue 16); a past period stays as measured.
-  const projections = wanted.length ? await fitProjections(new Map(spots.filter((s) => periods.get(s.id)?.toToday).map((s) => [s.id, profiles.get(s.id)!] as const)), { now }) : new Map();
-  const withSeason = spots.map((s) => ({ spot: s, season: profiles.get(s.id)!, window: windowOf(site, s), projection: projections.get(s.id) }));
+  const projections = wanted.length
+    ? await fitProjections(
+        new Map(spots.filter((s) => periods.get(s.id)?.toToday).map((s) => [s.id, profiles.get(s.id)!] as const)),
+        { now },
+      )
+    : new Map();
+  const withSeason = spots.map((s) => ({
+    spot: s,
+    season: profiles.get(s.id)!,
+    window: windowOf(site, s),
+    projection: projections.get(s.id),
+  }));
   const ranked = wanted.map((w) => ({
     wish: w,
     fits: rankSpotsForPlant(byKey.get(w.plantKey)!, withSeason).map((r) => ({
@@ -40,9 +74,15 @@ export async function loader({ request, params }: Route.LoaderArgs) {
       reason: fitSummary(byKey.get(w.plantKey)!, r.fit, { unit: user.temperatureUnit }).reasons[0]?.message ?? null,
     })),
   }));
-  const reasonIn = (i: number, spotId: number | undefined) => ranked[i].fits.find((f) => f.spotId === spotId)?.reason ?? null;
+  const reasonIn = (i: number, spotId: number | undefined) =>
+    ranked[i].fits.find((f) => f.spotId === spotId)?.reason ?? null;
   const plan = planWishlist(
-    spots.map((s) => ({ id: s.id, name: s.name, capacity: s.capacity, standingPots: inventory.filter((i) => i.spotId === s.id).reduce((n, i) => n + i.pots, 0) })),
+    spots.map((s) => ({
+      id: s.id,
+      name: s.name,
+      capacity: s.capacity,
+      standingPots: inventory.filter((i) => i.spotId === s.id).reduce((n, i) => n + i.pots, 0),
+    })),
     ranked.map((r) => ({ plantKey: r.wish.plantKey, mustHave: r.wish.mustHave, pots: r.wish.pots, fits: r.fits })),
   );
   const spotName = new Map(spots.map((s) => [s.id, s.name]));
@@ -55,13 +95,26 @@ export async function loader({ request, params }: Route.LoaderArgs) {
         name: byKey.get(r.wish.plantKey)!.name,
         mustHave: r.wish.mustHave,
         pots: r.wish.pots,
-        best: p.best ? { spot: spotName.get(p.best.spotId)!, verdict: p.best.verdict, likely: r.fits.find((f) => f.spotId === p.best!.spotId)?.likely ?? false, reason: bestFit?.reason ?? null } : null,
-        placed: p.placed ? { spot: spotName.get(p.placed.spotId)!, verdict: p.placed.verdict, reason: reasonIn(i, p.placed.spotId) } : null,
+        best: p.best
+          ? {
+              spot: spotName.get(p.best.spotId)!,
+              verdict: p.best.verdict,
+              likely: r.fits.find((f) => f.spotId === p.best!.spotId)?.likely ?? false,
+              reason: bestFit?.reason ?? null,
+            }
+          : null,
+        placed: p.placed
+          ? { spot: spotName.get(p.placed.spotId)!, verdict: p.placed.verdict, reason: reasonIn(i, p.placed.spotId) }
+          : null,
         note: p.note,
         everywhereStruggles: p.everywhereStruggles ?? false,
       };
     })
-    .sort((a, b) => VERDICT_ORDER.indexOf(a.best?.verdict ?? "struggles here") - VERDICT_ORDER.indexOf(b.best?.verdict ?? "struggles here") || Number(b.mustHave) - Number(a.mustHave));
+    .sort(
+      (a, b) =>
+        VERDICT_ORDER.indexOf(a.best?.verdict ?? "struggles here") -
+          VERDICT_ORDER.indexOf(b.best?.verdict ?? "struggles here") || Number(b.mustHave) - Number(a.mustHave),
+    );
   return {
     siteId,
     canEdit: role !== "mentor",
@@ -73,8 +126,16 @@ export async function loader({ request, params }: Route.LoaderArgs) {
       months: pickableMonths(now, site.timeZone),
       problem: periodProblem,
       // A chosen period is the same for every spot; by default each spot has its own.
-      judged: choice.kind === "ending" ? periodLabel(periods.values().next().value ?? { firstMonth: choice.month, lastMonth: choice.month, toToday: false }) : null,
-      bySpot: choice.kind === "latest" ? spots.filter((s) => periods.has(s.id)).map((s) => `${s.name}: ${periodLabel(periods.get(s.id))}`) : [],
+      judged:
+        choice.kind === "ending"
+          ? periodLabel(
+              periods.values().next().value ?? { firstMonth: choice.month, lastMonth: choice.month, toToday: false },
+            )
+          : null,
+      bySpot:
+        choice.kind === "latest"
+          ? spots.filter((s) => periods.has(s.id)).map((s) => `${s.name}: ${periodLabel(periods.get(s.id))}`)
+          : [],
     },
   };
 }
@@ -84,13 +145,28 @@ export async function action({ request, params }: Route.ActionArgs) {
   const submission = parseWithZod(await readForm(request), { schema: wishlistSchema });
   if (submission.status !== "success") {
     if (submission.payload.intent !== "save") refuseForm(submission.error);
-    return data({ intent: "save" as const, plantKey: String(submission.payload.plantKey ?? "").slice(0, 120), result: submission.reply() }, { status: 400 });
+    return data(
+      {
+        intent: "save" as const,
+        plantKey: String(submission.payload.plantKey ?? "").slice(0, 120),
+        result: submission.reply(),
+      },
+      { status: 400 },
+    );
   }
   const form = submission.value;
   const plants = await sitePlants(siteId);
   if (form.intent === "save") {
     const plant = plants.find((p) => p.key === form.plantKey);
-    if (!plant) return data({ intent: form.intent, plantKey: "", result: submission.reply({ fieldErrors: { plantKey: ["Choose a plant from the list."] } }) }, { status: 400 });
+    if (!plant)
+      return data(
+        {
+          intent: form.intent,
+          plantKey: "",
+          result: submission.reply({ fieldErrors: { plantKey: ["Choose a plant from the list."] } }),
+        },
+        { status: 400 },
+      );
     await saveWish(siteId, user.id, { plantKey: plant.key, mustHave: form.mustHave, pots: form.pots }, plant.name);
     return { saved: plant.key, restored: form.restore ? plant.name : null };
   }
@@ -114,7 +190,8 @@ export default function Wishlist({ loaderData, actionData }: Route.ComponentProp
   }, [actionData]);
   // A refused change of a listed plant shows at its row; anything else at the add form.
   const failed = actionData && "result" in actionData ? actionData : null;
-  const rowError = (plantKey: string) => (failed && failed.plantKey === plantKey ? Object.values(failed.result.error ?? {}).flat()[0] : undefined);
+  const rowError = (plantKey: string) =>
+    failed && failed.plantKey === plantKey ? Object.values(failed.result.error ?? {}).flat()[0] : undefined;
   const [wishForm, addFields] = useForm({
     id: "wish-add",
     lastResult: failed && !rows.some((r) => r.plantKey === failed.plantKey) ? failed.result : undefined,
@@ -131,26 +208,39 @@ export default function Wishlist({ loaderData, actionData }: Route.ComponentProp
     <div className="space-y-6">
       <div>
         <h2 className="h2">Wishlist</h2>
-        <p className="text-sm text-muted">Plants you want, best fit first. Must-haves claim room in their best spot before the rest.</p>
+        <p className="text-sm text-muted">
+          Plants you want, best fit first. Must-haves claim room in their best spot before the rest.
+        </p>
         <p className="mt-1 text-sm text-muted" data-testid="judged-period">
           Judged on {loaderData.period.judged ?? "each spot's latest twelve months with readings"}
           {loaderData.period.bySpot.length > 0 ? ` (${loaderData.period.bySpot.join("; ")})` : ""}.
         </p>
         <div className="mt-2">
-          <PeriodPicker chosen={loaderData.period.chosen} months={loaderData.period.months} problem={loaderData.period.problem} />
+          <PeriodPicker
+            chosen={loaderData.period.chosen}
+            months={loaderData.period.months}
+            problem={loaderData.period.problem}
+          />
         </div>
       </div>
 
       {full.length > 0 ? (
         <p className="card border-care/40 text-sm" role="status" data-testid="wishlist-full">
           <span className="font-semibold text-care">Full with must-haves: </span>
-          {full.map((s) => `${s.name} (${s.standingPots} standing + ${s.mustHavePots} must-have of ${s.capacity} pots)`).join("; ")}. Anything else
-          wanted there needs another spot.
+          {full
+            .map((s) => `${s.name} (${s.standingPots} standing + ${s.mustHavePots} must-have of ${s.capacity} pots)`)
+            .join("; ")}
+          . Anything else wanted there needs another spot.
         </p>
       ) : null}
 
       {removed ? (
-        <Form method="post" className="card flex flex-wrap items-center gap-3 text-sm" role="status" data-testid="wish-removed">
+        <Form
+          method="post"
+          className="card flex flex-wrap items-center gap-3 text-sm"
+          role="status"
+          data-testid="wish-removed"
+        >
           <span>
             Took {removed.plant}
             {removed.mustHave ? " (a must-have)" : ""} off the wishlist.
@@ -171,9 +261,16 @@ export default function Wishlist({ loaderData, actionData }: Route.ComponentProp
         </p>
       ) : null}
       {confirm ? (
-        <Form method="post" className="card flex flex-wrap items-center gap-3 border-care/40 text-sm" role="alertdialog" aria-label={`Remove ${confirm.name}?`} data-testid="wish-confirm">
+        <Form
+          method="post"
+          className="card flex flex-wrap items-center gap-3 border-care/40 text-sm"
+          role="alertdialog"
+          aria-label={`Remove ${confirm.name}?`}
+          data-testid="wish-confirm"
+        >
           <span>
-            <strong className="text-care">{confirm.name} is a must-have.</strong> Someone on this site counts on it having room. Remove it anyway?
+            <strong className="text-care">{confirm.name} is a must-have.</strong> Someone on this site counts on it
+            having room. Remove it anyway?
           </span>
           <input type="hidden" name="intent" value="remove" />
           <input type="hidden" name="plantKey" value={confirm.plantKey} />
@@ -252,7 +349,15 @@ export default function Wishlist({ loaderData, actionData }: Route.ComponentProp
                       <label className="sr-only" htmlFor={`pots-${r.plantKey}`}>
                         Pots of {r.name}
                       </label>
-                      <input id={`pots-${r.plantKey}`} name="pots" type="number" min={1} max={100} defaultValue={r.pots} className="field w-20 py-1 text-sm" />
+                      <input
+                        id={`pots-${r.plantKey}`}
+                        name="pots"
+                        type="number"
+                        min={1}
+                        max={100}
+                        defaultValue={r.pots}
+                        className="field w-20 py-1 text-sm"
+                      />
                       <button className="btn-quiet py-1 text-sm" disabled={busy}>
                         Save
                       </button>
@@ -265,7 +370,11 @@ export default function Wishlist({ loaderData, actionData }: Route.ComponentProp
                     <Form method="post">
                       <input type="hidden" name="intent" value="remove" />
                       <input type="hidden" name="plantKey" value={r.plantKey} />
-                      <button className="btn-quiet py-1 text-sm" disabled={busy} aria-label={`Remove ${r.name} from the wishlist`}>
+                      <button
+                        className="btn-quiet py-1 text-sm"
+                        disabled={busy}
+                        aria-label={`Remove ${r.name} from the wishlist`}
+                      >
                         Remove
                       </button>
                     </Form>
@@ -281,7 +390,12 @@ export default function Wishlist({ loaderData, actionData }: Route.ComponentProp
         <section className="card">
           <h3 className="h2 mb-3">Room in each spot</h3>
           {/* Under `sm` each spot is a card of label–value pairs (.stack-table), so "Left" is on a phone's screen. */}
-          <div className="sm:-mx-5 sm:overflow-x-auto sm:px-5" tabIndex={0} role="region" aria-label="Room in each spot">
+          <div
+            className="sm:-mx-5 sm:overflow-x-auto sm:px-5"
+            tabIndex={0}
+            role="region"
+            aria-label="Room in each spot"
+          >
             <table className="table stack-table" data-testid="wishlist-room">
               <thead>
                 <tr>
@@ -303,7 +417,11 @@ export default function Wishlist({ loaderData, actionData }: Route.ComponentProp
                     <td data-label="Standing now">{s.standingPots}</td>
                     <td data-label="Must-haves planned">{s.mustHavePots}</td>
                     <td data-label="Others planned">{s.otherPots}</td>
-                    <td data-label="Left" data-testid="room-left" className={s.free != null && s.free <= 0 ? "font-semibold text-care" : "font-semibold"}>
+                    <td
+                      data-label="Left"
+                      data-testid="room-left"
+                      className={s.free != null && s.free <= 0 ? "font-semibold text-care" : "font-semibold"}
+                    >
                       {s.free == null ? "–" : s.free <= 0 ? `none (${s.free})` : s.free}
                     </td>
                   </tr>
@@ -315,7 +433,13 @@ export default function Wishlist({ loaderData, actionData }: Route.ComponentProp
       ) : null}
 
       {canEdit ? (
-        <Form ref={addForm} method="post" className="card grid gap-3 sm:grid-cols-[3fr_1fr_auto_auto] sm:items-end" aria-label="Add to the wishlist" {...getFormProps(wishForm)}>
+        <Form
+          ref={addForm}
+          method="post"
+          className="card grid gap-3 sm:grid-cols-[3fr_1fr_auto_auto] sm:items-end"
+          aria-label="Add to the wishlist"
+          {...getFormProps(wishForm)}
+        >
           <input type="hidden" name="intent" value="save" />
           <div>
             <label className="label" htmlFor={addFields.plantKey.id}>

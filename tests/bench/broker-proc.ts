@@ -41,9 +41,18 @@ async function csvUnderLoad(msg: { file: string; sensorId: number; mapping: CsvM
   (globalThis as { gc?: () => void }).gc?.();
   const afterGc = process.memoryUsage.rss();
   process.send!({
-    p50Ms: delay.percentile(50) / 1e6, p99Ms: delay.percentile(99) / 1e6, maxMs: delay.max / 1e6,
-    growthMb: (peak - rss0) / 2 ** 20, afterGcMb: (afterGc - rss0) / 2 ** 20, heapUsedMb: heap.heapUsed / 2 ** 20, heapTotalMb: heap.heapTotal / 2 ** 20, previewMs: t1 - t0, importMs: t2 - t1,
-    rows: preview.rows, stored: result.stored, dst: preview.dstChanges.length,
+    p50Ms: delay.percentile(50) / 1e6,
+    p99Ms: delay.percentile(99) / 1e6,
+    maxMs: delay.max / 1e6,
+    growthMb: (peak - rss0) / 2 ** 20,
+    afterGcMb: (afterGc - rss0) / 2 ** 20,
+    heapUsedMb: heap.heapUsed / 2 ** 20,
+    heapTotalMb: heap.heapTotal / 2 ** 20,
+    previewMs: t1 - t0,
+    importMs: t2 - t1,
+    rows: preview.rows,
+    stored: result.stored,
+    dst: preview.dstChanges.length,
   });
 }
 

@@ -73,7 +73,18 @@ function connect(sensor: { id: number; secret: string }, i: number): Promise<Cli
       for (const cb of waiting.values()) cb(new Error("connection closed"));
       waiting.clear();
     });
-    send(mqttPacket.generate({ cmd: "connect", protocolId: "MQTT", protocolVersion: 4, clean: true, keepalive: 60, clientId: `bench-${process.pid}-${i}`, username: String(sensor.id), password: Buffer.from(sensor.secret) }));
+    send(
+      mqttPacket.generate({
+        cmd: "connect",
+        protocolId: "MQTT",
+        protocolVersion: 4,
+        clean: true,
+        keepalive: 60,
+        clientId: `bench-${process.pid}-${i}`,
+        username: String(sensor.id),
+        password: Buffer.from(sensor.secret),
+      }),
+    );
   });
 }
 
@@ -82,7 +93,9 @@ let acked = 0;
 let failed = 0;
 
 async function main() {
-  const clients = await Promise.all(Array.from({ length: cfg.clients }, (_, i) => connect(cfg.sensors[i % cfg.sensors.length], i)));
+  const clients = await Promise.all(
+    Array.from({ length: cfg.clients }, (_, i) => connect(cfg.sensors[i % cfg.sensors.length], i)),
+  );
   const perClient = Math.ceil(cfg.total / cfg.clients);
   const seq = new Array(cfg.clients).fill(0);
   const cpu0 = process.cpuUsage();

@@ -11,12 +11,22 @@ const PORT = 3390;
 const BASE = `http://127.0.0.1:${PORT}`;
 const DATA = ".data/bench-phone";
 const OWNER = { email: "owner@nichewise.test", password: "greenhouse-demo-1" };
-const SLOW_4G = { offline: false, latency: 150, downloadThroughput: (1.6 * 1024 * 1024) / 8, uploadThroughput: (750 * 1024) / 8 };
+const SLOW_4G = {
+  offline: false,
+  latency: 150,
+  downloadThroughput: (1.6 * 1024 * 1024) / 8,
+  uploadThroughput: (750 * 1024) / 8,
+};
 
 export type PhoneFigure = { page: string; answerMs: number; fcpMs: number; scriptKb: number; scriptKbDecoded: number };
 
-export async function phonePages(opts: { chromiumPath: string; log: (s: string) => void; runs?: number }): Promise<PhoneFigure[]> {
-  if (!existsSync("build/nichewise-server.mjs")) throw new Error("No build found: run `npm run build` before the phone figures");
+export async function phonePages(opts: {
+  chromiumPath: string;
+  log: (s: string) => void;
+  runs?: number;
+}): Promise<PhoneFigure[]> {
+  if (!existsSync("build/nichewise-server.mjs"))
+    throw new Error("No build found: run `npm run build` before the phone figures");
   rmSync(DATA, { recursive: true, force: true });
   const server = spawn(process.execPath, ["--max-semi-space-size=32", "build/nichewise-server.mjs"], {
     stdio: "ignore",
@@ -40,7 +50,10 @@ export async function phonePages(opts: { chromiumPath: string; log: (s: string) 
   try {
     await untilUp(server);
     opts.log("phone: demo app up; timing the site home and a spot page");
-    browser = await chromium.launch({ executablePath: opts.chromiumPath, args: ["--no-sandbox", "--disable-gpu", "--no-first-run", "--disable-background-networking"] });
+    browser = await chromium.launch({
+      executablePath: opts.chromiumPath,
+      args: ["--no-sandbox", "--disable-gpu", "--no-first-run", "--disable-background-networking"],
+    });
     const pages = [
       { page: "Site home", path: "/sites/1", answer: "[data-testid=where-matrix]" },
       { page: "Spot page (kitchen sill)", path: "/sites/1/spots/1", answer: "[data-testid=verdict-summary]" },
@@ -66,12 +79,27 @@ export async function phonePages(opts: { chromiumPath: string; log: (s: string) 
 }
 
 async function visit(browser: Browser, p: { page: string; path: string; answer: string }): Promise<PhoneFigure> {
-  const context = await browser.newContext({ viewport: { width: 390, height: 844 }, deviceScaleFactor: 3, isMobile: true, hasTouch: true });
+  const context = await browser.newContext({
+    viewport: { width: 390, height: 844 },
+    deviceScaleFactor: 3,
+    isMobile: true,
+    hasTouch: true,
+  });
   try {
     const page = await context.newPage();
     // Signing in is not timed: the figure is the page a signed-in grower opens.
-    const signIn = await context.request.post(`${BASE}/sign-in`, { form: OWNER, headers: { Origin: BASE }, maxRedirects: 0 });
-    if (signIn.status() !== 302) throw new Error(`sign-in answered ${signIn.status()}: ${(await signIn.text()).replace(/<[^>]*>/g, " ").replace(/\s+/g, " ").slice(0, 300)}`);
+    const signIn = await context.request.post(`${BASE}/sign-in`, {
+      form: OWNER,
+      headers: { Origin: BASE },
+      maxRedirects: 0,
+    });
+    if (signIn.status() !== 302)
+      throw new Error(
+        `sign-in answered ${signIn.status()}: ${(await signIn.text())
+          .replace(/<[^>]*>/g, " ")
+          .replace(/\s+/g, " ")
+          .slice(0, 300)}`,
+      );
     const cdp = await context.newCDPSession(page);
     await cdp.send("Network.enable");
     await cdp.send("Network.emulateNetworkConditions", SLOW_4G);
@@ -83,11 +111,23 @@ async function visit(browser: Browser, p: { page: string; path: string; answer: 
     await page.waitForLoadState("load");
     const timing = await page.evaluate(() => {
       const fcp = performance.getEntriesByName("first-contentful-paint")[0]?.startTime ?? NaN;
-      const scripts = (performance.getEntriesByType("resource") as PerformanceResourceTiming[]).filter((r) => r.name.endsWith(".js"));
-      return { fcp, encoded: scripts.reduce((n, r) => n + r.encodedBodySize, 0), decoded: scripts.reduce((n, r) => n + r.decodedBodySize, 0) };
+      const scripts = (performance.getEntriesByType("resource") as PerformanceResourceTiming[]).filter((r) =>
+        r.name.endsWith(".js"),
+      );
+      return {
+        fcp,
+        encoded: scripts.reduce((n, r) => n + r.encodedBodySize, 0),
+        decoded: scripts.reduce((n, r) => n + r.decodedBodySize, 0),
+      };
     });
     // Laid out is not yet painted: the answer is on screen at the later of the two.
-    return { page: p.page, answerMs: Math.max(answerMs, timing.fcp), fcpMs: timing.fcp, scriptKb: timing.encoded / 1024, scriptKbDecoded: timing.decoded / 1024 };
+    return {
+      page: p.page,
+      answerMs: Math.max(answerMs, timing.fcp),
+      fcpMs: timing.fcp,
+      scriptKb: timing.encoded / 1024,
+      scriptKbDecoded: timing.decoded / 1024,
+    };
   } finally {
     await context.close();
   }
@@ -103,7 +143,10 @@ async function untilUp(server: ReturnType<typeof spawn>) {
   const deadline = Date.now() + 240_000;
   while (Date.now() < deadline) {
     if (server.exitCode !== null) throw new Error(`the app exited with code ${server.exitCode} before it answered`);
-    const ok = await fetch(`${BASE}/sign-in`).then((r) => r.ok, () => false);
+    const ok = await fetch(`${BASE}/sign-in`).then(
+      (r) => r.ok,
+      () => false,
+    );
     if (ok) return;
     await new Promise((resolve) => setTimeout(resolve, 500));
   }

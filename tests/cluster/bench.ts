@@ -33,7 +33,15 @@ function cpuMsOf(pid: number | undefined): number {
 
 async function bundleFile(file: string, dir: string): Promise<string> {
   const outfile = path.resolve(dir, `${path.basename(file, ".ts")}.mjs`);
-  await esbuild({ entryPoints: [file], bundle: true, platform: "node", format: "esm", packages: "external", outfile, logLevel: "warning" });
+  await esbuild({
+    entryPoints: [file],
+    bundle: true,
+    platform: "node",
+    format: "esm",
+    packages: "external",
+    outfile,
+    logLevel: "warning",
+  });
   return outfile;
 }
 
@@ -42,7 +50,11 @@ function loadgen(loadgenJs: string, cfg: object): Promise<Run> {
     const child = spawn(process.execPath, [loadgenJs, JSON.stringify(cfg)], { stdio: ["ignore", "pipe", "inherit"] });
     let s = "";
     child.stdout.on("data", (d) => (s += d));
-    child.on("exit", (code) => (code === 0 ? resolve(JSON.parse(s.trim().split("\n").pop()!) as Run) : reject(new Error(`loadgen exited ${code}`))));
+    child.on("exit", (code) =>
+      code === 0
+        ? resolve(JSON.parse(s.trim().split("\n").pop()!) as Run)
+        : reject(new Error(`loadgen exited ${code}`)),
+    );
   });
 }
 
@@ -64,15 +76,22 @@ export async function clusterBench(o: {
   log: (s: string) => void;
 }): Promise<Row[]> {
   const [loadgenJs, brokerJs, workerJs] = await Promise.all(
-    ["tests/bench/loadgen.ts", "tests/bench/broker-proc.ts", "tests/cluster/worker-proc.ts"].map((f) => bundleFile(f, o.dir)),
+    ["tests/bench/loadgen.ts", "tests/bench/broker-proc.ts", "tests/cluster/worker-proc.ts"].map((f) =>
+      bundleFile(f, o.dir),
+    ),
   );
   const load = { sensors: o.creds.slice(0, 20), clients: 20, inflight: 50, total: o.total };
   // Each run its own stretch of time, so every reading is new (no batch goes down the duplicate path).
   const startOf = (k: number) => Date.now() - (380 - 10 * k) * DAY;
 
   // The embedded broker, as the rest of the benchmark measures it, on this section's load.
-  const embedded = spawn(process.execPath, [...o.nodeFlags, brokerJs], { stdio: ["ignore", "inherit", "inherit", "ipc"], env: { ...process.env, NODE_ENV: "production" } });
-  const { port } = await new Promise<{ port: number }>((resolve) => embedded.once("message", (m) => resolve(m as { port: number })));
+  const embedded = spawn(process.execPath, [...o.nodeFlags, brokerJs], {
+    stdio: ["ignore", "inherit", "inherit", "ipc"],
+    env: { ...process.env, NODE_ENV: "production" },
+  });
+  const { port } = await new Promise<{ port: number }>((resolve) =>
+    embedded.once("message", (m) => resolve(m as { port: number })),
+  );
   const base = await loadgen(loadgenJs, { url: `mqtt://127.0.0.1:${port}`, ...load, startMs: startOf(0) });
   embedded.send({ cmd: "stop" });
   await new Promise((r) => embedded.once("exit", r));
@@ -86,12 +105,22 @@ export async function clusterBench(o: {
   const server = app.listen(0, "127.0.0.1");
   await new Promise((r) => server.once("listening", r));
   const authUrl = `http://127.0.0.1:${(server.address() as AddressInfo).port}/cluster/auth`;
-  const engine = await startEngineCluster({ dir: path.join(o.dir, "engine"), basePort: o.basePort, authUrls: [authUrl], authKey: key, tag: "nwbench", log: o.log });
+  const engine = await startEngineCluster({
+    dir: path.join(o.dir, "engine"),
+    basePort: o.basePort,
+    authUrls: [authUrl],
+    authKey: key,
+    tag: "nwbench",
+    log: o.log,
+  });
   const workers: ChildProcess[] = [];
   const rows: Row[] = [];
   try {
     const startWorker = async (first: number) => {
-      const child = spawn(process.execPath, [...o.nodeFlags, workerJs, JSON.stringify(engine.amqpUrls(first))], { stdio: ["ignore", "inherit", "inherit", "ipc"], env: { ...process.env, NODE_ENV: "production" } });
+      const child = spawn(process.execPath, [...o.nodeFlags, workerJs, JSON.stringify(engine.amqpUrls(first))], {
+        stdio: ["ignore", "inherit", "inherit", "ipc"],
+        env: { ...process.env, NODE_ENV: "production" },
+      });
       await new Promise((r) => child.once("message", r));
       workers.push(child);
     };
@@ -110,10 +139,15 @@ export async function clusterBench(o: {
       const cpu0 = await cpu();
       const pg0 = await o.postgresTicks();
       const t = performance.now();
-      const r = await loadgen(loadgenJs, { url: `mqtt://127.0.0.1:${engine.nodes[0].mqttPort}`, ...load, startMs: startOf(k) });
+      const r = await loadgen(loadgenJs, {
+        url: `mqtt://127.0.0.1:${engine.nodes[0].mqttPort}`,
+        ...load,
+        startMs: startOf(k),
+      });
       const ackedAt = performance.now();
       while ((await stored()) - before < r.acked) {
-        if (performance.now() - ackedAt > 300_000) throw new Error(`${label}: readings acked by the engine were not all stored in 5 minutes`);
+        if (performance.now() - ackedAt > 300_000)
+          throw new Error(`${label}: readings acked by the engine were not all stored in 5 minutes`);
         await new Promise((res) => setTimeout(res, 50));
       }
       const storedMs = r.ms + (performance.now() - ackedAt);
@@ -123,7 +157,14 @@ export async function clusterBench(o: {
       const wall = (performance.now() - t) / 1000;
       const note = `engine acked ${fmt(r.acked / (r.ms / 1000))}/s (ack p50 / p99 ${r.p50.toFixed(1)} / ${r.p99.toFixed(1)} ms); CPU s — load generator ${fmt(r.cpuMs / 1000, 1)}, RabbitMQ (3 nodes) ${fmt((cpu1.engine - cpu0.engine) / 1000, 1)}, worker${workers.length > 1 ? "s" : ""} ${fmt((cpu1.workers - cpu0.workers) / 1000, 1)}, PostgreSQL ${fmt(pgMs / 1000, 1)} (wall ${fmt(wall, 1)} s)`;
       o.log(`cluster section: ${label} ${fmt(rate)}/s stored; ${note}`);
-      rows.push({ figure: `Cluster mode, 3 RabbitMQ nodes → ${label}: readings stored/s, 20 clients × 50 in flight`, ours: fmt(rate), baseline: `${fmt(embeddedRate)} (embedded broker)`, ratio: `${fmt((rate / embeddedRate) * 100)} %`, target: "—", note });
+      rows.push({
+        figure: `Cluster mode, 3 RabbitMQ nodes → ${label}: readings stored/s, 20 clients × 50 in flight`,
+        ours: fmt(rate),
+        baseline: `${fmt(embeddedRate)} (embedded broker)`,
+        ratio: `${fmt((rate / embeddedRate) * 100)} %`,
+        target: "—",
+        note,
+      });
     };
     await startWorker(0);
     await measure("1 ingest worker", 1);
@@ -135,9 +176,18 @@ export async function clusterBench(o: {
     o.log(`cluster section: 1 worker active on shards ${await spread()}`);
     await startWorker(1);
     await measure("2 ingest workers (4 shards spread over both)", 2);
-    o.log(`cluster section: 2 workers active on shards ${await spread()} (each hands shards on while it is active on more than half)`);
+    o.log(
+      `cluster section: 2 workers active on shards ${await spread()} (each hands shards on while it is active on more than half)`,
+    );
     rows[rows.length - 1].note += `; active shards at the end ${await spread()}`;
-    rows.push({ figure: "Cluster mode: RabbitMQ start, three nodes to one cluster (s)", ours: fmt(engine.startSeconds, 1), baseline: "—", ratio: "—", target: "—", note: `resident memory after the runs: ${engine.nodes.map((n) => `${fmt(Number(/VmRSS:\s+(\d+)/.exec(safeRead(`/proc/${engine.pid(n.index)}/status`))?.[1] ?? 0) / 1024)} MB`).join(", ")}` });
+    rows.push({
+      figure: "Cluster mode: RabbitMQ start, three nodes to one cluster (s)",
+      ours: fmt(engine.startSeconds, 1),
+      baseline: "—",
+      ratio: "—",
+      target: "—",
+      note: `resident memory after the runs: ${engine.nodes.map((n) => `${fmt(Number(/VmRSS:\s+(\d+)/.exec(safeRead(`/proc/${engine.pid(n.index)}/status`))?.[1] ?? 0) / 1024)} MB`).join(", ")}`,
+    });
   } finally {
     for (const w of workers) {
       w.send({ cmd: "stop" });

@@ -14,7 +14,14 @@ const run = promisify(execFile);
 const BIN = "/usr/lib/rabbitmq/bin";
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
-export type EngineNode = { index: number; name: string; amqpPort: number; mqttPort: number; process: ChildProcess | null; alive: boolean };
+export type EngineNode = {
+  index: number;
+  name: string;
+  amqpPort: number;
+  mqttPort: number;
+  process: ChildProcess | null;
+  alive: boolean;
+};
 export type EngineCluster = {
   nodes: EngineNode[];
   /** AMQP URLs of the live nodes for the ingest user, starting at node `first`. */
@@ -30,7 +37,10 @@ export type EngineCluster = {
 
 export function ensureRabbitInstalled(log: (s: string) => void) {
   if (existsSync(`${BIN}/rabbitmq-server`)) return;
-  if (!isRoot()) throw new Error("RabbitMQ is not installed: run `apt-get install rabbitmq-server` (or run the test as root, which installs it)");
+  if (!isRoot())
+    throw new Error(
+      "RabbitMQ is not installed: run `apt-get install rabbitmq-server` (or run the test as root, which installs it)",
+    );
   aptInstall("rabbitmq-server", log);
 }
 
@@ -60,7 +70,8 @@ export async function startEngineCluster(o: {
   const nodes: EngineNode[] = [];
   const names = Array.from({ length: count }, (_, i) => `${tag}${i + 1}@localhost`);
   const baseEnv = { ...process.env, HOME: home, ERL_EPMD_PORT: String(epmdPort) };
-  const ctl = (node: string, ...args: string[]) => run(`${BIN}/rabbitmqctl`, ["-n", node, ...args], { env: baseEnv, timeout: 60_000 });
+  const ctl = (node: string, ...args: string[]) =>
+    run(`${BIN}/rabbitmqctl`, ["-n", node, ...args], { env: baseEnv, timeout: 60_000 });
   const envOf = (i: number) => {
     const d = path.join(o.dir, `node${i + 1}`);
     return {
@@ -108,7 +119,10 @@ export async function startEngineCluster(o: {
     writeFileSync(path.join(d, "rabbitmq.conf"), conf);
     writeFileSync(path.join(d, "advanced.config"), "[].\n");
     writeFileSync(path.join(d, "rabbitmq-env.conf"), "");
-    writeFileSync(path.join(d, "enabled_plugins"), "[rabbitmq_mqtt,rabbitmq_auth_backend_http,rabbitmq_consistent_hash_exchange].\n");
+    writeFileSync(
+      path.join(d, "enabled_plugins"),
+      "[rabbitmq_mqtt,rabbitmq_auth_backend_http,rabbitmq_consistent_hash_exchange].\n",
+    );
     nodes.push({ index: i, name: names[i], amqpPort, mqttPort, process: null, alive: false });
   }
   const t0 = performance.now();
@@ -118,7 +132,13 @@ export async function startEngineCluster(o: {
     for (const n of nodes) if (n.alive) n.process?.kill("SIGKILL");
     // epmd (started by the first node, on this cluster's own port) refuses to stop while nodes are still registered.
     for (let i = 0; i < 10; i++) {
-      if (await run("epmd", ["-kill"], { env: baseEnv }).then(() => true, () => false)) break;
+      if (
+        await run("epmd", ["-kill"], { env: baseEnv }).then(
+          () => true,
+          () => false,
+        )
+      )
+        break;
       await sleep(500);
     }
   };
@@ -155,7 +175,9 @@ export async function startEngineCluster(o: {
       return undefined;
     }
   };
-  log(`RabbitMQ: ${count} nodes in one cluster after ${startSeconds.toFixed(1)} s (AMQP ${nodes.map((n) => n.amqpPort).join(", ")}; MQTT ${nodes.map((n) => n.mqttPort).join(", ")})`);
+  log(
+    `RabbitMQ: ${count} nodes in one cluster after ${startSeconds.toFixed(1)} s (AMQP ${nodes.map((n) => n.amqpPort).join(", ")}; MQTT ${nodes.map((n) => n.mqttPort).join(", ")})`,
+  );
   return {
     nodes,
     startSeconds,

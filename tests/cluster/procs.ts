@@ -50,7 +50,11 @@ export function startServerProc(name: string, logDir: string, env: Record<string
     child,
     waitFor: (re, timeoutMs = 120_000) =>
       new Promise((resolve, reject) => {
-        const timer = setTimeout(() => reject(new Error(`${name}: no line matching ${re} in ${timeoutMs / 1000} s (see ${logDir}/${name}.log)`)), timeoutMs);
+        const timer = setTimeout(
+          () =>
+            reject(new Error(`${name}: no line matching ${re} in ${timeoutMs / 1000} s (see ${logDir}/${name}.log)`)),
+          timeoutMs,
+        );
         const done = (at: number) => {
           clearTimeout(timer);
           resolve(at);
@@ -61,7 +65,9 @@ export function startServerProc(name: string, logDir: string, env: Record<string
           if (i >= 0) {
             waiters.splice(i, 1);
             clearTimeout(timer);
-            reject(new Error(`${name} exited (${code ?? signal}) before a line matching ${re} (see ${logDir}/${name}.log)`));
+            reject(
+              new Error(`${name} exited (${code ?? signal}) before a line matching ${re} (see ${logDir}/${name}.log)`),
+            );
           }
         });
       }),

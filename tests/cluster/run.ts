@@ -80,19 +80,30 @@ async function main() {
     log(`web instances on :${base + 20} (alert lease holder) and :${base + 21}`);
     await checkStatelessWeb(base + 20, base + 21);
 
-    const engine: EngineCluster = await startEngineCluster({ dir: path.join(dir, "engine"), basePort: base, authUrls: [`http://127.0.0.1:${base + 21}/cluster/auth`], authKey, log });
+    const engine: EngineCluster = await startEngineCluster({
+      dir: path.join(dir, "engine"),
+      basePort: base,
+      authUrls: [`http://127.0.0.1:${base + 21}/cluster/auth`],
+      authKey,
+      log,
+    });
     stops.push(engine.stop);
 
     const workers: Proc[] = [];
     for (let i = 0; i < 2; i++) {
-      const p = startServerProc(`ingest-${i + 1}`, logDir, { NW_ROLE: "ingest", DATABASE_URL: pg.url, NW_AMQP_URLS: engine.amqpUrls(i).join(",") });
+      const p = startServerProc(`ingest-${i + 1}`, logDir, {
+        NW_ROLE: "ingest",
+        DATABASE_URL: pg.url,
+        NW_AMQP_URLS: engine.amqpUrls(i).join(","),
+      });
       stops.push(() => p.kill("SIGKILL"));
       await p.waitFor(/ingest worker: consuming/);
       workers.push(p);
     }
     // Each worker logs the shards it takes deliveries from ("active on shards [0,2] of 4").
     const shardsOf = (p: Proc) => /active on shards \[([\d,]*)\]/.exec(p.lastLine(/active on shards/) ?? "")?.[1] ?? "";
-    const shardReport = () => workers.map((p) => `${p.name} [${shardsOf(p)}]${p.alive() ? "" : " (killed)"}`).join(", ");
+    const shardReport = () =>
+      workers.map((p) => `${p.name} [${shardsOf(p)}]${p.alive() ? "" : " (killed)"}`).join(", ");
     log("two ingest workers consuming every shard of the readings");
     await checkOversize(engine);
 
@@ -118,7 +129,9 @@ async function main() {
         const killedAt = Date.now();
         await victim.kill("SIGKILL");
         workerTakeoverMs = (await taken) - killedAt;
-        log(`active shards before: ${before}; killed ${victim.name} (SIGKILL); ${other.name} took deliveries from one of its shards ${workerTakeoverMs} ms later`);
+        log(
+          `active shards before: ${before}; killed ${victim.name} (SIGKILL); ${other.name} took deliveries from one of its shards ${workerTakeoverMs} ms later`,
+        );
       } else {
         // The lock is taken first; the engine then catches up from each rule's cursor before it runs.
         const taken = web[1].waitFor(/lease \d+: held/, 60_000);
@@ -127,7 +140,9 @@ async function main() {
         await web[0].kill("SIGKILL");
         takeoverMs = (await taken) - killedAt;
         engineMs = (await running) - killedAt;
-        log(`killed the alert lease holder (web A, SIGKILL); web B took the lease ${takeoverMs} ms later, its engine ran ${engineMs} ms after the kill`);
+        log(
+          `killed the alert lease holder (web A, SIGKILL); web B took the lease ${takeoverMs} ms later, its engine ran ${engineMs} ms after the kill`,
+        );
       }
     };
     const spreadAtStart = { text: "" };
@@ -149,9 +164,15 @@ async function main() {
     });
     console.log(`\ncluster mode: 3 RabbitMQ nodes, 2 ingest workers, 2 web instances\n${formatReport(report)}`);
     console.log(`active shards (of 4) at the first fault: ${spreadAtStart.text}; at the end: ${shardReport()}`);
-    console.log(`engine start ${engine.startSeconds.toFixed(1)} s; ingest takeover ${workerTakeoverMs ?? "-"} ms; alert lease takeover ${takeoverMs ?? "-"} ms (engine running after ${engineMs ?? "-"} ms); resident memory before the faults: ${memory.join(", ")}`);
+    console.log(
+      `engine start ${engine.startSeconds.toFixed(1)} s; ingest takeover ${workerTakeoverMs ?? "-"} ms; alert lease takeover ${takeoverMs ?? "-"} ms (engine running after ${engineMs ?? "-"} ms); resident memory before the faults: ${memory.join(", ")}`,
+    );
     failed = soakFailed(report) || takeoverMs === null || workerTakeoverMs === null;
-    console.log(failed ? "FAILED: readings lost, counted twice, alert events wrong or no takeover" : "OK: 0 lost, 0 double-counted, alert events consistent, alert lease taken over");
+    console.log(
+      failed
+        ? "FAILED: readings lost, counted twice, alert events wrong or no takeover"
+        : "OK: 0 lost, 0 double-counted, alert events consistent, alert lease taken over",
+    );
   } finally {
     await stopAll();
     stopEmbeddedPostgres(pgDir);
@@ -172,35 +193,59 @@ async function checkOversize(engine: EngineCluster) {
   const site = await makeSite(await makeUser());
   const sensor = await makeSensor(site, await makeSpot(site));
   const node = engine.nodes[0];
-  const client = await mqtt.connectAsync(`mqtt://127.0.0.1:${node.mqttPort}`, { protocolVersion: 4, username: String(sensor.id), password: sensor.secret, reconnectPeriod: 0 });
+  const client = await mqtt.connectAsync(`mqtt://127.0.0.1:${node.mqttPort}`, {
+    protocolVersion: 4,
+    username: String(sensor.id),
+    password: sensor.secret,
+    reconnectPeriod: 0,
+  });
   client.on("error", () => {});
-  const big = JSON.stringify({ time: new Date().toISOString(), temperature: 20, humidity: 50, pad: "x".repeat(1024 * 1024) });
+  const big = JSON.stringify({
+    time: new Date().toISOString(),
+    temperature: 20,
+    humidity: 50,
+    pad: "x".repeat(1024 * 1024),
+  });
   const outcome = await Promise.race([
-    client.publishAsync(`nichewise/sensors/${sensor.id}/reading`, big, { qos: 1 }).then(() => "acknowledged", (err: Error) => `refused (${err.message})`),
+    client.publishAsync(`nichewise/sensors/${sensor.id}/reading`, big, { qos: 1 }).then(
+      () => "acknowledged",
+      (err: Error) => `refused (${err.message})`,
+    ),
     new Promise<string>((r) => client.once("close", () => r("connection closed by the engine"))),
     new Promise<string>((r) => setTimeout(() => r("no answer in 10 s"), 10_000)),
   ]);
   await client.endAsync(true).catch(() => {});
   await new Promise((r) => setTimeout(r, 2000)); // a worker would have taken it by now
-  const stored = (await pool().query("SELECT count(*)::int AS n FROM readings WHERE sensor_id = $1", [sensor.id])).rows[0].n;
-  const rejected = (await pool().query("SELECT count(*)::int AS n FROM rejected_messages WHERE sensor_id = $1", [sensor.id])).rows[0].n;
+  const stored = (await pool().query("SELECT count(*)::int AS n FROM readings WHERE sensor_id = $1", [sensor.id]))
+    .rows[0].n;
+  const rejected = (
+    await pool().query("SELECT count(*)::int AS n FROM rejected_messages WHERE sensor_id = $1", [sensor.id])
+  ).rows[0].n;
   const alive = engine.pid(0) !== undefined && rssMb(engine.pid(0)) !== null;
-  log(`a 1 MB message: ${outcome}; stored ${stored}, recorded as rejected ${rejected}; node 1 ${alive ? "up" : "DOWN"} (${rssMb(engine.pid(0)) ?? "?"} MB)`);
+  log(
+    `a 1 MB message: ${outcome}; stored ${stored}, recorded as rejected ${rejected}; node 1 ${alive ? "up" : "DOWN"} (${rssMb(engine.pid(0)) ?? "?"} MB)`,
+  );
   if (stored !== 0 || !alive) throw new Error("an oversized message was stored or took the engine node down");
 }
 
 /** Web instances share nothing but PostgreSQL: a session made on one is served by the other, and ended on one it is gone on both. */
 async function checkStatelessWeb(portA: number, portB: number) {
-  const { createSession, generateSessionToken, invalidateSession, sessionIdFromToken, SESSION_COOKIE } = await import("~/.server/auth");
+  const { createSession, generateSessionToken, invalidateSession, sessionIdFromToken, SESSION_COOKIE } =
+    await import("~/.server/auth");
   const { makeSite, makeUser } = await import("../integration/helpers");
   const user = await makeUser();
   const site = await makeSite(user);
   const token = generateSessionToken();
   await createSession(token, user.id);
-  const get = (port: number) => fetch(`http://127.0.0.1:${port}/sites/${site.id}`, { headers: { cookie: `${SESSION_COOKIE}=${token}` }, redirect: "manual" });
+  const get = (port: number) =>
+    fetch(`http://127.0.0.1:${port}/sites/${site.id}`, {
+      headers: { cookie: `${SESSION_COOKIE}=${token}` },
+      redirect: "manual",
+    });
   const [a, b] = await Promise.all([get(portA), get(portB)]);
   const pageB = await b.text();
-  if (a.status !== 200 || b.status !== 200 || !pageB.includes(site.name)) throw new Error(`a session made once was not served by both web instances (${a.status}, ${b.status})`);
+  if (a.status !== 200 || b.status !== 200 || !pageB.includes(site.name))
+    throw new Error(`a session made once was not served by both web instances (${a.status}, ${b.status})`);
   await invalidateSession(sessionIdFromToken(token));
   const after = await get(portA);
   if (after.status === 200) throw new Error("a session ended in the database was still served");

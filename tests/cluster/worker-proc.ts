@@ -6,12 +6,23 @@ import { startIngestWorker } from "../../app/.server/cluster/worker";
 import { ReadingWriter } from "../../app/.server/ingest/writer";
 
 const writer = new ReadingWriter(pool, 5, 2000);
-const worker = await startIngestWorker({ urls: JSON.parse(process.argv[2]) as string[], queue: "nichewise.readings", shards: Number(process.env.NW_AMQP_SHARDS ?? 4), prefetch: 2000, writer, log: () => {} });
+const worker = await startIngestWorker({
+  urls: JSON.parse(process.argv[2]) as string[],
+  queue: "nichewise.readings",
+  shards: Number(process.env.NW_AMQP_SHARDS ?? 4),
+  prefetch: 2000,
+  writer,
+  log: () => {},
+});
 process.send!({ ready: true });
 process.on("message", async (msg: { cmd: string }) => {
   if (msg.cmd === "stats") {
     const cpu = process.cpuUsage();
-    process.send!({ accepted: worker.stats.accepted, active: worker.activeShards(), cpuMs: (cpu.user + cpu.system) / 1000 });
+    process.send!({
+      accepted: worker.stats.accepted,
+      active: worker.activeShards(),
+      cpuMs: (cpu.user + cpu.system) / 1000,
+    });
   } else if (msg.cmd === "stop") {
     await worker.close();
     await closeDb();

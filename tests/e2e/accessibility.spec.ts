@@ -17,10 +17,15 @@ async function violations(page: Page, path: string) {
   expect(res?.status(), path).toBe(200);
   await page.waitForLoadState("networkidle");
   await page.evaluate(() => document.querySelectorAll("details").forEach((d) => (d.open = true)));
-  const result = await new AxeBuilder({ page }).withTags(["wcag2a", "wcag2aa", "wcag21a", "wcag21aa", "wcag22aa"]).analyze();
+  const result = await new AxeBuilder({ page })
+    .withTags(["wcag2a", "wcag2aa", "wcag21a", "wcag21aa", "wcag22aa"])
+    .analyze();
   return result.violations
     .filter((v) => v.impact === "serious" || v.impact === "critical")
-    .map((v) => `${path}: ${v.id} (${v.impact}) ${v.nodes.length}× e.g. ${v.nodes[0]?.target.join(" ")} — ${v.nodes[0]?.failureSummary?.split("\n")[1]?.trim() ?? v.help}`);
+    .map(
+      (v) =>
+        `${path}: ${v.id} (${v.impact}) ${v.nodes.length}× e.g. ${v.nodes[0]?.target.join(" ")} — ${v.nodes[0]?.failureSummary?.split("\n")[1]?.trim() ?? v.help}`,
+    );
 }
 
 for (const width of [390, 1280]) {
@@ -66,16 +71,19 @@ test("a skip link is the first thing the keyboard reaches and lands on the page'
 });
 
 // Not the fixture: the browser logs the 403 document itself as a console error.
-plain("a page the role may not open is titled by its status in words, not '403 Internal Server Error'", async ({ page }) => {
-  await page.goto("/sign-in");
-  await page.getByLabel("E-mail").fill(DEMO.carer.email);
-  await page.getByLabel("Password").fill(DEMO.carer.password);
-  await page.getByRole("button", { name: "Sign in" }).click();
-  await page.waitForURL((u) => !u.pathname.startsWith("/sign-in"));
-  const res = await page.goto("/sites/1/edit");
-  expect(res?.status()).toBe(403);
-  // Inside a site the site's name stays the page's h1 (its error boundary keeps the menu); the status is the next heading.
-  await expect(page.getByRole("heading", { name: "Not allowed" })).toBeVisible();
-  await expect(page).toHaveTitle(/Not allowed/);
-  await expect(page.locator("body")).not.toContainText("Internal Server Error");
-});
+plain(
+  "a page the role may not open is titled by its status in words, not '403 Internal Server Error'",
+  async ({ page }) => {
+    await page.goto("/sign-in");
+    await page.getByLabel("E-mail").fill(DEMO.carer.email);
+    await page.getByLabel("Password").fill(DEMO.carer.password);
+    await page.getByRole("button", { name: "Sign in" }).click();
+    await page.waitForURL((u) => !u.pathname.startsWith("/sign-in"));
+    const res = await page.goto("/sites/1/edit");
+    expect(res?.status()).toBe(403);
+    // Inside a site the site's name stays the page's h1 (its error boundary keeps the menu); the status is the next heading.
+    await expect(page.getByRole("heading", { name: "Not allowed" })).toBeVisible();
+    await expect(page).toHaveTitle(/Not allowed/);
+    await expect(page.locator("body")).not.toContainText("Internal Server Error");
+  },
+);

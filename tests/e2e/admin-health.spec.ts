@@ -13,12 +13,26 @@ test("a payload rejected via mosquitto_pub shows with its reason", async ({ page
   await expect(page.getByText("Broker", { exact: true })).toBeVisible();
   await expect(page.getByText("Up", { exact: true })).toBeVisible();
 
-  const [cred] = JSON.parse(readFileSync(`${E2E.dir}/demo-sensors.json`, "utf8")) as { sensorId: number; secret: string }[];
+  const [cred] = JSON.parse(readFileSync(`${E2E.dir}/demo-sensors.json`, "utf8")) as {
+    sensorId: number;
+    secret: string;
+  }[];
   const marker = `not-json-${Date.now()}`;
   execFileSync("mosquitto_pub", [
-    "-h", "127.0.0.1", "-p", String(E2E.mqttPort), "-q", "1",
-    "-u", String(cred.sensorId), "-P", cred.secret,
-    "-t", `nichewise/sensors/${cred.sensorId}/reading`, "-m", `{${marker}`,
+    "-h",
+    "127.0.0.1",
+    "-p",
+    String(E2E.mqttPort),
+    "-q",
+    "1",
+    "-u",
+    String(cred.sensorId),
+    "-P",
+    cred.secret,
+    "-t",
+    `nichewise/sensors/${cred.sensorId}/reading`,
+    "-m",
+    `{${marker}`,
   ]);
   // The page refreshes itself; no reload here.
   const example = page.getByTestId("rejections").getByRole("listitem").filter({ hasText: marker });

@@ -11,11 +11,18 @@ async function signIn(page: Page, who: { email: string; password: string }) {
 
 // The bench sensor's credentials, as the demo seed wrote them for the live simulator.
 function benchSensor() {
-  const creds = JSON.parse(readFileSync(`${E2E.dir}/demo-sensors.json`, "utf8")) as { sensorId: number; secret: string; spotIndex: number }[];
+  const creds = JSON.parse(readFileSync(`${E2E.dir}/demo-sensors.json`, "utf8")) as {
+    sensorId: number;
+    secret: string;
+    spotIndex: number;
+  }[];
   return creds.find((c) => c.spotIndex === 4)!;
 }
 
-test("a cold snap on the bench shows in the banner without a reload, and acknowledging records who did", async ({ page, request }) => {
+test("a cold snap on the bench shows in the banner without a reload, and acknowledging records who did", async ({
+  page,
+  request,
+}) => {
   await signIn(page, DEMO.owner);
   await page.goto("/sites/1/alerts");
   const banner = page.getByRole("alert", { name: "Site alerts" });
@@ -28,8 +35,15 @@ test("a cold snap on the bench shows in the banner without a reload, and acknowl
   // backfill's five-minute grid so none is a duplicate): the default cold watch needs 10 minutes.
   const sensor = benchSensor();
   const now = Date.now();
-  const readings = Array.from({ length: 15 }, (_, i) => ({ time: new Date(now - (14 - i) * 60_000 - 17_000).toISOString(), temperature: 2, humidity: 90 }));
-  const res = await request.post("/api/ingest", { headers: { Authorization: `Bearer ${sensor.sensorId}.${sensor.secret}` }, data: { readings } });
+  const readings = Array.from({ length: 15 }, (_, i) => ({
+    time: new Date(now - (14 - i) * 60_000 - 17_000).toISOString(),
+    temperature: 2,
+    humidity: 90,
+  }));
+  const res = await request.post("/api/ingest", {
+    headers: { Authorization: `Bearer ${sensor.sensorId}.${sensor.secret}` },
+    data: { readings },
+  });
   expect(res.status()).toBe(200);
 
   // The banner polls every 15 s: it appears on the open page without a reload.
@@ -47,7 +61,9 @@ test("a cold snap on the bench shows in the banner without a reload, and acknowl
 
   await signIn(page, DEMO.mentor);
   await page.goto("/sites/1/alerts");
-  await expect(page.getByRole("listitem", { name: "Cold snap at Bench under the pear tree" }).first()).toContainText("Acknowledged by Jory Ashdown");
+  await expect(page.getByRole("listitem", { name: "Cold snap at Bench under the pear tree" }).first()).toContainText(
+    "Acknowledged by Jory Ashdown",
+  );
   await expect(page.getByRole("button", { name: /acknowledge/ })).toHaveCount(0);
 });
 

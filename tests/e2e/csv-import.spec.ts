@@ -8,7 +8,9 @@ const CSV =
   "2026-06-01 08:10:07,oops,56\r\n" +
   "2026-06-01 08:15:07,70.7,57\r\n";
 
-test("CSV upload: preview as stored, skipped rows named, import twice adds nothing the second time", async ({ page }) => {
+test("CSV upload: preview as stored, skipped rows named, import twice adds nothing the second time", async ({
+  page,
+}) => {
   await signIn(page, DEMO.carer);
   await page.goto("/sites/1/import");
   const file = { name: "logger.csv", mimeType: "text/csv", buffer: Buffer.from(CSV, "utf8") };
@@ -40,10 +42,14 @@ const BACKLOG =
   ["00:30", "01:00", "01:30", "01:00", "01:30", "02:00"].map((t) => `2024-10-27 ${t},12.5`).join("\n") +
   "\n";
 
-test("CSV preview: says how a repeated hour was read and warns of rows before the sensor's placement", async ({ page }) => {
+test("CSV preview: says how a repeated hour was read and warns of rows before the sensor's placement", async ({
+  page,
+}) => {
   await signIn(page, DEMO.carer);
   await page.goto("/sites/1/import");
-  await page.getByLabel("CSV file").setInputFiles({ name: "backlog.csv", mimeType: "text/csv", buffer: Buffer.from(BACKLOG, "utf8") });
+  await page
+    .getByLabel("CSV file")
+    .setInputFiles({ name: "backlog.csv", mimeType: "text/csv", buffer: Buffer.from(BACKLOG, "utf8") });
   await page.getByLabel("Readings from sensor").selectOption({ label: "Spare room sensor (in Spare room (heated))" });
   await page.getByRole("button", { name: "Preview" }).click();
   await expect(page.getByTestId("csv-dst")).toContainText(
@@ -51,6 +57,9 @@ test("CSV preview: says how a repeated hour was read and warns of rows before th
   );
   const outside = page.getByTestId("csv-outside");
   await expect(outside).toContainText("6 rows fall before this sensor's placement");
-  await expect(outside.getByRole("link", { name: /Extend the sensor's placement/ })).toHaveAttribute("href", /^\/sites\/1\/sensors\/\d+#placements$/);
+  await expect(outside.getByRole("link", { name: /Extend the sensor's placement/ })).toHaveAttribute(
+    "href",
+    /^\/sites\/1\/sensors\/\d+#placements$/,
+  );
   await page.screenshot({ path: ".data/csv-preview-dst.png", fullPage: true });
 });

@@ -2,7 +2,9 @@ import { test, expect, signIn, DEMO } from "./fixtures";
 
 // The demo's spots have 120 days of readings here (NW_BACKFILL_DAYS): a few months measured, the
 // rest projected from the outdoor weather the local fake serves (issue 16, parts 4 and 5).
-test("a spot in its first months: the day-one view right after the verdicts, with likely verdicts, the first firm date, the outdoor climate and the days against outdoors", async ({ page }) => {
+test("a spot in its first months: the day-one view right after the verdicts, with likely verdicts, the first firm date, the outdoor climate and the days against outdoors", async ({
+  page,
+}) => {
   await signIn(page, DEMO.owner);
   await page.goto("/sites/1");
   await page.locator("ul li").getByText("Kitchen sill (east)", { exact: true }).click();
@@ -39,9 +41,13 @@ test("the plant page and the wishlist say 'likely' where a verdict rests on proj
     await page.reload();
     await expect(page.getByTestId("plant-spots")).toContainText("likely", { timeout: 1_000 });
   }).toPass({ timeout: 60_000 });
-  await expect(page.getByTestId("plant-spots").getByTestId("fit-basis").first()).toContainText("Projected months are estimates from past weather");
+  await expect(page.getByTestId("plant-spots").getByTestId("fit-basis").first()).toContainText(
+    "Projected months are estimates from past weather",
+  );
   await page.getByTestId("plant-spots").screenshot({ path: ".data/day-one-plant.png" });
   // The demo's wishlist: some best spot's verdict rests on projected months.
   await page.goto("/sites/1/wishlist");
-  await expect(page.getByTestId("wishlist")).toContainText(/likely (thrives here|possible with care|good for part of the year)/);
+  await expect(page.getByTestId("wishlist")).toContainText(
+    /likely (thrives here|possible with care|good for part of the year)/,
+  );
 });

@@ -1,7 +1,9 @@
 import { execFileSync } from "node:child_process";
 import { test, expect, signIn, DEMO } from "./fixtures";
 
-test("sign up, create a site, add a spot, add a sensor, see its secret once, connect it, place and move it", async ({ page }) => {
+test("sign up, create a site, add a spot, add a sensor, see its secret once, connect it, place and move it", async ({
+  page,
+}) => {
   const email = `grower${Date.now()}@example.test`;
   await page.goto("/sign-up");
   await page.getByLabel("Your name").fill("Ada Grower");
@@ -26,7 +28,10 @@ test("sign up, create a site, add a spot, add a sensor, see its secret once, con
   await page.getByRole("button", { name: "Create site" }).click();
   await expect(page.getByRole("heading", { name: "Flat 3" })).toBeVisible();
 
-  for (const [name, facing] of [["Bedroom sill", "S"], ["Hall shelf", "none"]] as const) {
+  for (const [name, facing] of [
+    ["Bedroom sill", "S"],
+    ["Hall shelf", "none"],
+  ] as const) {
     await page.getByRole("link", { name: "Add a spot" }).click();
     await page.getByLabel("Name").fill(name);
     await page.getByLabel("Window facing").selectOption(facing);
@@ -66,7 +71,13 @@ test("sign up, create a site, add a spot, add a sensor, see its secret once, con
 test("the demo owner sees the five spots and a spot's chart", async ({ page }) => {
   await signIn(page, DEMO.owner);
   await page.getByRole("link", { name: /Hollins Lane/ }).click();
-  for (const name of ["Kitchen sill (east)", "Landing sill (south-west)", "Bathroom shelf", "Spare room (heated)", "Bench under the pear tree"]) {
+  for (const name of [
+    "Kitchen sill (east)",
+    "Landing sill (south-west)",
+    "Bathroom shelf",
+    "Spare room (heated)",
+    "Bench under the pear tree",
+  ]) {
     await expect(page.locator("ul li").getByText(name, { exact: true })).toBeVisible();
   }
   await page.locator("ul li").getByText("Bench under the pear tree", { exact: true }).click();

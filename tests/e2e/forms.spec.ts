@@ -17,7 +17,9 @@ const test = base.extend<{ page: Page }>({
   },
 });
 
-test("the water form: a pH of 15 is refused at its field before sending, a future date by the server, and the reading typed stays", async ({ page }) => {
+test("the water form: a pH of 15 is refused at its field before sending, a future date by the server, and the reading typed stays", async ({
+  page,
+}) => {
   await signIn(page, DEMO.owner);
   await page.goto("/sites/1/water");
   const form = page.locator("form#water-check");
@@ -38,7 +40,9 @@ test("the water form: a pH of 15 is refused at its field before sending, a futur
   await expect(page.getByTestId("water-sources")).not.toContainText("Water butt");
 });
 
-test("settings: a short new password is refused at its field, and a wrong current one by the server (the answer carries neither: tests/integration/form-schemas.test.ts)", async ({ page }) => {
+test("settings: a short new password is refused at its field, and a wrong current one by the server (the answer carries neither: tests/integration/form-schemas.test.ts)", async ({
+  page,
+}) => {
   await signIn(page, DEMO.owner);
   await page.goto("/settings");
   const form = page.locator("form#password");
@@ -51,7 +55,9 @@ test("settings: a short new password is refused at its field, and a wrong curren
   await expect(form.getByText("Your current password is not right.")).toBeVisible();
 });
 
-test("a watch: minutes that are not a whole number are refused at that field of that watch only, and the line typed stays", async ({ page }) => {
+test("a watch: minutes that are not a whole number are refused at that field of that watch only, and the line typed stays", async ({
+  page,
+}) => {
   await signIn(page, DEMO.owner);
   await page.goto("/sites/1/alerts");
   await page.getByRole("link", { name: "Bench under the pear tree" }).last().click();
@@ -64,7 +70,9 @@ test("a watch: minutes that are not a whole number are refused at that field of 
   await expect(page.getByRole("listitem", { name: "Silent sensor watch" }).getByRole("alert")).toHaveCount(0);
 });
 
-test("adding a plant to a spot: 0 pots is refused at the field with the name typed kept, then it goes in", async ({ page }) => {
+test("adding a plant to a spot: 0 pots is refused at the field with the name typed kept, then it goes in", async ({
+  page,
+}) => {
   await signIn(page, DEMO.owner);
   await page.goto("/sites/1/spots/1");
   const inventory = page.getByTestId("inventory");

@@ -2,10 +2,15 @@
 // with their sources, and the wishlist — as the demo owner, against the demo household.
 import { test, expect, signIn, DEMO } from "./fixtures";
 
-test("the spot page folds the day-by-day year, the dew-point margin and the numbers under its answer, and lists the plants standing there", async ({ page }) => {
+test("the spot page folds the day-by-day year, the dew-point margin and the numbers under its answer, and lists the plants standing there", async ({
+  page,
+}) => {
   await signIn(page, DEMO.owner);
   await page.goto("/sites/1");
-  await page.getByRole("link", { name: /Spare room/ }).first().click();
+  await page
+    .getByRole("link", { name: /Spare room/ })
+    .first()
+    .click();
   await page.getByTestId("fold-days").locator(":scope > summary").click();
   for (const id of ["chart-year", "chart-margin"]) {
     await expect(page.getByTestId(id).locator("canvas")).toHaveCount(1);

@@ -12,9 +12,15 @@ const ticksOf = async (page: import("@playwright/test").Page, testId: string) =>
 
 test.describe("a new site, set up from a phone in Chicago", () => {
   // Chicago on purpose: neither the server's zone nor the old default (Europe/London).
-  test.use({ timezoneId: "America/Chicago", geolocation: { latitude: 41.8781, longitude: -87.6298 }, permissions: ["geolocation"] });
+  test.use({
+    timezoneId: "America/Chicago",
+    geolocation: { latitude: 41.8781, longitude: -87.6298 },
+    permissions: ["geolocation"],
+  });
 
-  test("the site form takes the place from the device, and a spot without readings keeps its 48 hours and its year", async ({ page }) => {
+  test("the site form takes the place from the device, and a spot without readings keeps its 48 hours and its year", async ({
+    page,
+  }) => {
     await page.goto("/sign-up");
     await page.getByLabel("Your name").fill("Chicago Grower");
     await page.getByLabel("E-mail").fill(`chicago${Date.now()}@example.test`);
@@ -53,7 +59,9 @@ test.describe("a new site, set up from a phone in Chicago", () => {
   });
 });
 
-test("the spot page's charts: dates in en-GB, Nichewise's legend, canvases named, direct sun by month", async ({ page }) => {
+test("the spot page's charts: dates in en-GB, Nichewise's legend, canvases named, direct sun by month", async ({
+  page,
+}) => {
   await signIn(page, DEMO.owner);
   await page.goto("/sites/1/spots/1");
   await openCharts(page);
@@ -71,7 +79,10 @@ test("the spot page's charts: dates in en-GB, Nichewise's legend, canvases named
   await page.getByTestId("chart-48h").getByRole("img").hover();
   await expect(legend).toContainText(/at \d{1,2} [A-Z][a-z]{2,3},? \d\d:\d\d/);
   // Canvas charts are named for screen readers by what they show.
-  await expect(page.getByTestId("chart-year").getByRole("img")).toHaveAttribute("aria-label", /from -?\d+\.\d °C to -?\d+\.\d °C/);
+  await expect(page.getByTestId("chart-year").getByRole("img")).toHaveAttribute(
+    "aria-label",
+    /from -?\d+\.\d °C to -?\d+\.\d °C/,
+  );
   // Direct sun as twelve bars, named month by month.
   const sun = page.getByTestId("direct-sun-bars");
   await expect(sun).toHaveAttribute("aria-label", /Jan .*Dec /);
@@ -87,7 +98,10 @@ test("in °F the year strip's ticks sit on round °F values, not converted 5 °C
   await expect(page.getByText("Saved")).toBeVisible();
   try {
     await page.goto("/sites/1/spots/1");
-    const ticks = await page.getByTestId("year-strip").locator("[data-tick]").evaluateAll((els) => els.map((e) => Number(e.getAttribute("data-tick"))));
+    const ticks = await page
+      .getByTestId("year-strip")
+      .locator("[data-tick]")
+      .evaluateAll((els) => els.map((e) => Number(e.getAttribute("data-tick"))));
     expect(ticks.length).toBeGreaterThan(2);
     for (const t of ticks) expect(t % 10).toBe(0);
     await expect(page.getByTestId("year-strip-key")).toContainText("°F");
@@ -99,7 +113,9 @@ test("in °F the year strip's ticks sit on round °F values, not converted 5 °C
   }
 });
 
-test("the wishlist starts clean after adding, asks before a must-have goes, and can put a removed plant back", async ({ page }) => {
+test("the wishlist starts clean after adding, asks before a must-have goes, and can put a removed plant back", async ({
+  page,
+}) => {
   await signIn(page, DEMO.owner);
   await page.goto("/sites/1/wishlist");
   const form = page.getByRole("form", { name: "Add to the wishlist" });
@@ -119,7 +135,10 @@ test("the wishlist starts clean after adding, asks before a must-have goes, and 
   await page.getByRole("button", { name: /^Remove Hoya .*from the wishlist$/ }).click();
   await expect(page.getByTestId("wish-confirm")).toContainText(/Hoya .* is a must-have/);
   await expect(item).toBeVisible();
-  await page.getByTestId("wish-confirm").getByRole("button", { name: /^Remove Hoya/ }).click();
+  await page
+    .getByTestId("wish-confirm")
+    .getByRole("button", { name: /^Remove Hoya/ })
+    .click();
   await expect(page.getByTestId("wish-removed")).toContainText(/Took Hoya .*\(a must-have\) off the wishlist/);
   await expect(item).toHaveCount(0);
   await page.getByRole("button", { name: "Put it back" }).click();
@@ -127,7 +146,10 @@ test("the wishlist starts clean after adding, asks before a must-have goes, and 
 
   // Leave the demo as it was.
   await page.getByRole("button", { name: /^Remove Hoya .*from the wishlist$/ }).click();
-  await page.getByTestId("wish-confirm").getByRole("button", { name: /^Remove Hoya/ }).click();
+  await page
+    .getByTestId("wish-confirm")
+    .getByRole("button", { name: /^Remove Hoya/ })
+    .click();
   await expect(item).toHaveCount(0);
 });
 

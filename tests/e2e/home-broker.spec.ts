@@ -11,7 +11,11 @@ let gateway: MqttClient;
 
 test.beforeAll(async () => {
   broker = await startMosquitto({ users: { nichewise: "home-pass-1", gateway: "gw-pass-2" } });
-  gateway = await connectAsync(`mqtt://127.0.0.1:${broker.port}`, { username: "gateway", password: "gw-pass-2", clientId: "e2e-gateway" });
+  gateway = await connectAsync(`mqtt://127.0.0.1:${broker.port}`, {
+    username: "gateway",
+    password: "gw-pass-2",
+    clientId: "e2e-gateway",
+  });
 });
 
 test.afterAll(async () => {
@@ -45,7 +49,12 @@ test("the owner connects a home broker, hears a Zigbee2MQTT sensor and attaches 
   await page.getByRole("button", { name: "Listen for a minute" }).click();
   await expect(page.getByTestId("heard")).toContainText("Listening");
   // The device reports while the page listens (Zigbee2MQTT's documented device JSON).
-  const report = (t: number) => gateway.publishAsync("zigbee2mqtt/windowsill", JSON.stringify({ temperature: t, humidity: 60, battery: 87, linkquality: 112 }), { qos: 1 });
+  const report = (t: number) =>
+    gateway.publishAsync(
+      "zigbee2mqtt/windowsill",
+      JSON.stringify({ temperature: t, humidity: 60, battery: 87, linkquality: 112 }),
+      { qos: 1 },
+    );
   const row = page.getByRole("listitem", { name: "zigbee2mqtt/windowsill" });
   await expect(async () => {
     await report(21);
@@ -66,7 +75,11 @@ test("the owner connects a home broker, hears a Zigbee2MQTT sensor and attaches 
   // named after the device and placed in the chosen spot.
   const shelf = page.getByRole("listitem", { name: "zigbee2mqtt/orchid_shelf" });
   await expect(async () => {
-    await gateway.publishAsync("zigbee2mqtt/orchid_shelf", JSON.stringify({ temperature: 22.5, humidity: 64, battery: 90 }), { qos: 1 });
+    await gateway.publishAsync(
+      "zigbee2mqtt/orchid_shelf",
+      JSON.stringify({ temperature: 22.5, humidity: 64, battery: 90 }),
+      { qos: 1 },
+    );
     await expect(shelf).toBeVisible({ timeout: 2500 });
   }).toPass({ timeout: 30_000 });
   const choice = shelf.getByLabel("Sensor for zigbee2mqtt/orchid_shelf");
@@ -82,9 +95,18 @@ test("the owner connects a home broker, hears a Zigbee2MQTT sensor and attaches 
     await page.setViewportSize({ width, height: 900 });
     await page.reload();
     await expect(page.getByTestId("heard")).toBeVisible();
-    const axe = await new AxeBuilder({ page }).withTags(["wcag2a", "wcag2aa", "wcag21a", "wcag21aa", "wcag22aa"]).analyze();
-    expect(axe.violations.filter((v) => v.impact === "serious" || v.impact === "critical").map((v) => `${v.id}: ${v.nodes[0]?.target.join(" ")}`)).toEqual([]);
-    const [scroll, client] = await page.evaluate(() => [document.documentElement.scrollWidth, document.documentElement.clientWidth]);
+    const axe = await new AxeBuilder({ page })
+      .withTags(["wcag2a", "wcag2aa", "wcag21a", "wcag21aa", "wcag22aa"])
+      .analyze();
+    expect(
+      axe.violations
+        .filter((v) => v.impact === "serious" || v.impact === "critical")
+        .map((v) => `${v.id}: ${v.nodes[0]?.target.join(" ")}`),
+    ).toEqual([]);
+    const [scroll, client] = await page.evaluate(() => [
+      document.documentElement.scrollWidth,
+      document.documentElement.clientWidth,
+    ]);
     expect(scroll, `${width} px`).toBeLessThanOrEqual(client);
   }
 

@@ -20,7 +20,11 @@ async function linkFromSink(baseURL: string, to: string) {
   return links.find((l) => l.includes("/invite/"))!;
 }
 
-test("invite → e-mail → link → sign up → joined as mentor → can read, cannot edit", async ({ page, browser, baseURL }) => {
+test("invite → e-mail → link → sign up → joined as mentor → can read, cannot edit", async ({
+  page,
+  browser,
+  baseURL,
+}) => {
   const email = `new-mentor-${Date.now()}@example.test`;
   await signIn(page, DEMO.owner);
   await page.goto("/sites/1/members");
@@ -51,7 +55,10 @@ test("invite → e-mail → link → sign up → joined as mentor → can read, 
   await expect(guest.getByText("Mentor — you can read everything here and leave notes")).toBeVisible();
 
   // Reads: the spots, a spot page with its notes, the water checks.
-  await guest.getByRole("link", { name: /Landing sill/ }).first().click();
+  await guest
+    .getByRole("link", { name: /Landing sill/ })
+    .first()
+    .click();
   await expect(guest.getByRole("heading", { name: "Landing sill (south-west)" })).toBeVisible();
   await expect(guest.getByTestId("notes-panel")).toContainText("Hettie Marlowe");
   await expect(guest.getByRole("link", { name: "Edit spot" })).toHaveCount(0);
@@ -98,7 +105,9 @@ test("the last owner cannot step down or leave; roles change from the People pag
   await page.goto("/sites/1/members");
   // The page says why, and does not offer it…
   await expect(page.getByLabel("Role of Wren Ashdown")).toBeDisabled();
-  await expect(page.getByText("The only owner: make someone else an owner before stepping down or leaving.")).toBeVisible();
+  await expect(
+    page.getByText("The only owner: make someone else an owner before stepping down or leaving."),
+  ).toBeVisible();
   await expect(page.getByRole("button", { name: "Leave this site" })).toBeDisabled();
   // …and the server refuses it anyway.
   const me = await page.request.post("/sites/1/members", { form: { intent: "leave" }, maxRedirects: 0 });
@@ -106,9 +115,16 @@ test("the last owner cannot step down or leave; roles change from the People pag
   expect(await me.text()).toContain("You are the only owner");
 
   // Jory: carer → mentor → carer, both in what changed.
-  for (const [from, to] of [["carer", "mentor"], ["mentor", "carer"]]) {
+  for (const [from, to] of [
+    ["carer", "mentor"],
+    ["mentor", "carer"],
+  ]) {
     await page.getByLabel("Role of Jory Ashdown").selectOption(to);
-    await page.getByRole("listitem").filter({ hasText: "Jory Ashdown" }).getByRole("button", { name: "Change role" }).click();
+    await page
+      .getByRole("listitem")
+      .filter({ hasText: "Jory Ashdown" })
+      .getByRole("button", { name: "Change role" })
+      .click();
     await expect(page.getByTestId("changes")).toContainText(`changed Jory Ashdown from ${from} to ${to}`);
   }
 });

@@ -7,7 +7,9 @@ const HOUR = 3_600_000;
 // direct summer sun is about 100 klux (2,000 µmol m⁻² s⁻¹ × 54, Thimijan & Heins 1983).
 const CHIP = 65_535 / 1.2;
 
-test("light source and glazing are kept by the spot form, and a clipping lux sensor is named on the spot page", async ({ page }) => {
+test("light source and glazing are kept by the spot form, and a clipping lux sensor is named on the spot page", async ({
+  page,
+}) => {
   await signIn(page, DEMO.owner);
   await page.goto("/sites/1/spots/new");
   await page.getByLabel("Name").fill("Clip test sill");
@@ -38,11 +40,16 @@ test("light source and glazing are kept by the spot form, and a clipping lux sen
     const lux = x > 0 && x < 1 ? Math.round(Math.min(CHIP, 100_000 * Math.sin(Math.PI * x)) * 10) / 10 : 0;
     return { time: new Date(start + k * 600_000).toISOString(), temperature: 21, humidity: 55, lux };
   });
-  const res = await page.request.post("/api/ingest", { headers: { Authorization: `Bearer ${sensorId}.${secret}` }, data: { readings } });
+  const res = await page.request.post("/api/ingest", {
+    headers: { Authorization: `Bearer ${sensorId}.${secret}` },
+    data: { readings },
+  });
   expect(res.ok()).toBe(true);
 
   await page.goto(spotUrl);
-  await expect(page.getByTestId("lux-clipped")).toContainText("tops out at about 55,000 lux: the sunniest hours read low");
+  await expect(page.getByTestId("lux-clipped")).toContainText(
+    "tops out at about 55,000 lux: the sunniest hours read low",
+  );
 
   // The form shows what was chosen; white LEDs alone are flat by nature, so no clipping is claimed.
   await page.goto(`${spotUrl}/edit`);
@@ -67,7 +74,9 @@ test("light source and glazing are kept by the spot form, and a clipping lux sen
 // Issue 15, water: the routine-watering rule is stated once in µS/cm and shown in both ppm scales;
 // the demo's rain water (about 15 ppm on a 0.5 meter) has no buffer, so its pH is not judged
 // (common practice).
-test("the water page states the rule in µS/cm with both ppm scales, and does not judge rain water's pH", async ({ page }) => {
+test("the water page states the rule in µS/cm with both ppm scales, and does not judge rain water's pH", async ({
+  page,
+}) => {
   await signIn(page, DEMO.carer);
   await page.goto("/sites/1/water");
   const rules = page.getByTestId("water-rules");

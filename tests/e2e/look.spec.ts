@@ -27,7 +27,9 @@ test("the plant page draws a twelve-month strip under each fit reason, as the sp
   await expect(strips.first().locator("[data-state]")).toHaveCount(12);
 });
 
-test("on a spot's alert watches the site menu says Alerts, not Spots; a spot's other pages stay under Spots", async ({ page }) => {
+test("on a spot's alert watches the site menu says Alerts, not Spots; a spot's other pages stay under Spots", async ({
+  page,
+}) => {
   await signIn(page, DEMO.owner);
   const here = page.locator('nav[aria-label="Site"] ul.sm\\:flex [data-here]');
   await page.goto("/sites/1/spots/5/alerts");

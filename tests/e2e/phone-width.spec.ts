@@ -4,7 +4,6 @@
 import { test, expect, signIn, DEMO } from "./fixtures";
 import { OWNER_PAGES } from "./pages";
 
-
 test.use({ viewport: { width: 390, height: 844 } });
 
 test("every page of the demo site fits a 390 px wide phone screen", async ({ page }) => {
@@ -14,7 +13,10 @@ test("every page of the demo site fits a 390 px wide phone screen", async ({ pag
     const res = await page.goto(path);
     expect(res?.status(), path).toBe(200);
     await page.waitForLoadState("networkidle");
-    const [scroll, client] = await page.evaluate(() => [document.documentElement.scrollWidth, document.documentElement.clientWidth]);
+    const [scroll, client] = await page.evaluate(() => [
+      document.documentElement.scrollWidth,
+      document.documentElement.clientWidth,
+    ]);
     if (scroll > client) wide.push(`${path}: ${scroll} px wide on a ${client} px screen`);
   }
   expect(wide).toEqual([]);
@@ -42,7 +44,10 @@ test("each fit reason on a spot page carries its twelve-month strip, named for s
   expect(await strips.count()).toBeGreaterThan(0);
   const first = strips.first();
   await expect(first).toHaveAttribute("role", "img");
-  await expect(first).toHaveAttribute("aria-label", /^(Cold nights|Warm nights|Hot days|Humidity|Light|Condensation): (likely )?(fails|asks for care|passes|not measured)/);
+  await expect(first).toHaveAttribute(
+    "aria-label",
+    /^(Cold nights|Warm nights|Hot days|Humidity|Light|Condensation): (likely )?(fails|asks for care|passes|not measured)/,
+  );
   expect(await first.locator("[data-state]").count()).toBe(12);
   await expect(page.getByTestId("month-strip-key").first()).toContainText("not measured");
 });

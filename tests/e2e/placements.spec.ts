@@ -22,7 +22,13 @@ async function sendBuffer(page: Page, sensor: { id: number; secret: string }) {
   const at = Date.now() - 3 * DAY;
   const res = await page.request.post("/api/ingest", {
     headers: { Authorization: `Bearer ${sensor.id}.${sensor.secret}` },
-    data: { readings: [0, 1].map((k) => ({ time: new Date(at + k * 600_000).toISOString(), temperature: 17.5, humidity: 55 })) },
+    data: {
+      readings: [0, 1].map((k) => ({
+        time: new Date(at + k * 600_000).toISOString(),
+        temperature: 17.5,
+        humidity: 55,
+      })),
+    },
   });
   expect(res.ok()).toBe(true);
 }
@@ -59,11 +65,17 @@ test("readings outside every spot are shown on the sensor page and put into a sp
 test("the spot page says which twelve months it judges, and the picker changes them", async ({ page }) => {
   await signIn(page, DEMO.owner);
   await page.goto("/sites/1");
-  await page.getByRole("link", { name: /Spare room/ }).first().click();
+  await page
+    .getByRole("link", { name: /Spare room/ })
+    .first()
+    .click();
   await expect(page.getByTestId("judged-period")).toContainText("today");
   const picker = page.getByLabel("Judge on:");
   const option = picker.locator("option").nth(7); // the twelve months to six months ago
-  const [value, label] = [await option.getAttribute("value"), (await option.textContent())!.replace("the 12 months to ", "")];
+  const [value, label] = [
+    await option.getAttribute("value"),
+    (await option.textContent())!.replace("the 12 months to ", ""),
+  ];
   await picker.selectOption(value!);
   await expect(page).toHaveURL(new RegExp(`period=${value}`));
   await expect(page.getByTestId("judged-period")).toContainText(`– ${label}`);

@@ -73,7 +73,8 @@ function flatten(entries: RouteConfigEntry[], prefix = ""): string[] {
 }
 
 const ROUTES = flatten(routes as RouteConfigEntry[]);
-const fill = (p: string) => p.replace(":siteId", "1").replace(":spotId", "1").replace(":sensorId", "1").replace(":plantKey", "phalaenopsis");
+const fill = (p: string) =>
+  p.replace(":siteId", "1").replace(":spotId", "1").replace(":sensorId", "1").replace(":plantKey", "phalaenopsis");
 
 async function contextFor(baseURL: string, who: Who): Promise<APIRequestContext> {
   const ctx = await playwrightRequest.newContext({ baseURL, maxRedirects: 0 });
@@ -84,7 +85,9 @@ async function contextFor(baseURL: string, who: Who): Promise<APIRequestContext>
     const res = await ctx.post("/sign-up", { form: { name: "Stranger", ...creds } });
     expect(res.status()).toBe(302);
     // The stranger owns a site of their own, so they are "a member of another site".
-    await ctx.post("/sites/new", { form: { name: "Elsewhere", latitude: "40", longitude: "-74", timeZone: "America/New_York" } });
+    await ctx.post("/sites/new", {
+      form: { name: "Elsewhere", latitude: "40", longitude: "-74", timeZone: "America/New_York" },
+    });
     return ctx;
   }
   creds = DEMO[who];
@@ -96,7 +99,10 @@ async function contextFor(baseURL: string, who: Who): Promise<APIRequestContext>
 test("every route in app/routes.ts has an access expectation", () => {
   const missing = ROUTES.filter((r) => !EXPECT[r]);
   expect(missing, "routes without an entry in EXPECT").toEqual([]);
-  expect(Object.keys(EXPECT).filter((k) => !ROUTES.includes(k)), "stale entries").toEqual([]);
+  expect(
+    Object.keys(EXPECT).filter((k) => !ROUTES.includes(k)),
+    "stale entries",
+  ).toEqual([]);
 });
 
 for (const who of ["anon", "stranger", "mentor", "carer", "owner"] as Who[]) {
@@ -114,7 +120,8 @@ for (const who of ["anon", "stranger", "mentor", "carer", "owner"] as Who[]) {
         if (!route.startsWith("/api/") && want !== 302 && want !== 405) {
           const data = await ctx.get(`${url === "/" ? "/_root" : url}.data`);
           const wantData = want === 200 ? 200 : want;
-          if (data.status() !== wantData && !(want === 200 && data.status() === 200)) failures.push(`GET ${url}.data: ${data.status()} (want ${wantData})`);
+          if (data.status() !== wantData && !(want === 200 && data.status() === 200))
+            failures.push(`GET ${url}.data: ${data.status()} (want ${wantData})`);
         }
       }
       const wantPost = e.post?.[who];
@@ -125,7 +132,15 @@ for (const who of ["anon", "stranger", "mentor", "carer", "owner"] as Who[]) {
     }
     // Another site's data, by id: the demo owner asking for the stranger's site and its API.
     if (who === "owner") {
-      for (const url of ["/sites/2", "/api/sites/2/spots/1/series", "/sites/1/spots/999999", "/sites/1/sensors/999999", "/sites/2/compare?spots=1&spots=2", "/sites/2/wishlist", "/sites/1/plants/no-such-plant"]) {
+      for (const url of [
+        "/sites/2",
+        "/api/sites/2/spots/1/series",
+        "/sites/1/spots/999999",
+        "/sites/1/sensors/999999",
+        "/sites/2/compare?spots=1&spots=2",
+        "/sites/2/wishlist",
+        "/sites/1/plants/no-such-plant",
+      ]) {
         const res = await ctx.get(url);
         if (res.status() !== 404) failures.push(`GET ${url}: ${res.status()} (want 404)`);
       }
@@ -137,7 +152,10 @@ for (const who of ["anon", "stranger", "mentor", "carer", "owner"] as Who[]) {
 
 test("actions refuse cross-origin posts (CSRF)", async ({ baseURL }) => {
   const ctx = await contextFor(baseURL!, "owner");
-  const res = await ctx.post("/sites/1/spots/new", { form: { name: "Evil" }, headers: { Origin: "http://evil.example" } });
+  const res = await ctx.post("/sites/1/spots/new", {
+    form: { name: "Evil" },
+    headers: { Origin: "http://evil.example" },
+  });
   expect(res.status()).toBe(403);
   const res2 = await ctx.post("/sign-out", { headers: { "Sec-Fetch-Site": "cross-site" } });
   expect(res2.status()).toBe(403);

@@ -15,7 +15,8 @@ async function watchViolations(page: Page) {
     );
   });
 }
-const violations = (page: Page) => page.evaluate(() => (window as unknown as { cspViolations: string[] }).cspViolations);
+const violations = (page: Page) =>
+  page.evaluate(() => (window as unknown as { cspViolations: string[] }).cspViolations);
 
 function expectHeaders(res: Response | null, what: string) {
   expect(res, what).not.toBeNull();
@@ -33,14 +34,26 @@ test("every page carries the security headers, and the CSP refuses none of the a
   expectHeaders(await page.goto("/sign-in"), "/sign-in");
   expect(await violations(page)).toEqual([]);
   await signIn(page, DEMO.owner);
-  for (const path of ["/", "/sites/1", "/sites/1/compare", "/sites/1/import", "/sites/1/water", "/sites/1/plants", "/sites/1/alerts", "/settings"]) {
+  for (const path of [
+    "/",
+    "/sites/1",
+    "/sites/1/compare",
+    "/sites/1/import",
+    "/sites/1/water",
+    "/sites/1/plants",
+    "/sites/1/alerts",
+    "/settings",
+  ]) {
     expectHeaders(await page.goto(path), path);
     await page.waitForLoadState("networkidle");
     expect(await violations(page), path).toEqual([]);
   }
   // A spot page's charts, reached by a client-side navigation from the site page.
   await page.goto("/sites/1");
-  await page.getByRole("link", { name: /Spare room/ }).first().click();
+  await page
+    .getByRole("link", { name: /Spare room/ })
+    .first()
+    .click();
   await expect(page.getByTestId("chart-year").locator("canvas")).toHaveCount(1);
   expect(await violations(page)).toEqual([]);
   // The same page loaded whole.

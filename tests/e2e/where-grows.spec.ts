@@ -6,7 +6,9 @@ import { test, expect, signIn, DEMO } from "./fixtures";
 test.describe("at 1280 px", () => {
   test.use({ viewport: { width: 1280, height: 800 } });
 
-  test("the site home is a matrix of spots × the groups the grower cares about, and a card per spot", async ({ page }) => {
+  test("the site home is a matrix of spots × the groups the grower cares about, and a card per spot", async ({
+    page,
+  }) => {
     await signIn(page, DEMO.owner);
     await page.goto("/sites/1");
     const matrix = page.getByTestId("where-matrix");
@@ -43,7 +45,9 @@ test.describe("at 1280 px", () => {
     await expect(page.getByTestId("notes-panel")).toContainText("Hettie Marlowe");
   });
 
-  test("a spot page starts with its answer, then the year, with fits grouped by verdict and reason", async ({ page }) => {
+  test("a spot page starts with its answer, then the year, with fits grouped by verdict and reason", async ({
+    page,
+  }) => {
     await signIn(page, DEMO.owner);
     await page.goto("/sites/1/spots/5");
     await expect(page.getByTestId("verdict-summary")).toBeInViewport({ ratio: 1 });
@@ -72,7 +76,9 @@ test.describe("at 1280 px", () => {
 test.describe("at 390 px", () => {
   test.use({ viewport: { width: 390, height: 844 } });
 
-  test("the section menu names where you are, the spot's answer is on the first screen, and the season table stacks", async ({ page }) => {
+  test("the section menu names where you are, the spot's answer is on the first screen, and the season table stacks", async ({
+    page,
+  }) => {
     await signIn(page, DEMO.owner);
     await page.goto("/sites/1");
     const menu = page.getByTestId("site-menu");

@@ -6,7 +6,13 @@ import { startBroker } from "~/.server/ingest/broker";
 import { ReadingWriter } from "~/.server/ingest/writer";
 
 const writer = new ReadingWriter();
-const broker = await startBroker({ host: "127.0.0.1", port: Number(process.argv[2] ?? 0), wsPort: null, writer, log: () => {} });
+const broker = await startBroker({
+  host: "127.0.0.1",
+  port: Number(process.argv[2] ?? 0),
+  wsPort: null,
+  writer,
+  log: () => {},
+});
 process.send!({ port: broker.port });
 process.on("message", (msg: { cmd: string }) => {
   if (msg.cmd === "stats") process.send!({ stats: broker.stats });

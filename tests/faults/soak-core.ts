@@ -22,7 +22,14 @@ import { embeddedPid, startEmbeddedPostgres } from "~/.server/postgres";
 import { DEMO_SCENARIO, DEMO_SITE, DEMO_SPOTS, generate } from "../../simulator/model";
 import { makeSensor, makeSite, makeSpot, makeUser } from "../integration/helpers";
 
-export type FaultKind = "kill-postgres" | "restart-broker" | "cut-connections" | "lock-rollups" | "lock-readings" | "kill-server" | ClusterFault;
+export type FaultKind =
+  | "kill-postgres"
+  | "restart-broker"
+  | "cut-connections"
+  | "lock-rollups"
+  | "lock-readings"
+  | "kill-server"
+  | ClusterFault;
 /** Faults of cluster mode (tests/cluster/run.ts), run by the caller's `cluster.fault`. */
 export type ClusterFault = "kill-engine-node" | "kill-ingest-worker" | "kill-alert-holder";
 
@@ -49,9 +56,27 @@ export type SoakOptions = {
   log?: (s: string) => void;
 };
 
-export type Check = { after: string; acked: number; stored: number; lost: number; unexpected: number; doubleCounted: number; rollupHoursDiffering: number; alerts?: AlertCheck; keys?: Set<string> };
+export type Check = {
+  after: string;
+  acked: number;
+  stored: number;
+  lost: number;
+  unexpected: number;
+  doubleCounted: number;
+  rollupHoursDiffering: number;
+  alerts?: AlertCheck;
+  keys?: Set<string>;
+};
 /** `inFlight`: readings published and not yet acknowledged when the fault struck. */
-export type FaultFigure = { kind: FaultKind; at: number; inFlight: number; outageMs: number; firstAckMs: number | null; recoveredMs: number; check: Check };
+export type FaultFigure = {
+  kind: FaultKind;
+  at: number;
+  inFlight: number;
+  outageMs: number;
+  firstAckMs: number | null;
+  recoveredMs: number;
+  check: Check;
+};
 
 export type SoakReport = {
   clients: number;
@@ -106,9 +131,16 @@ export function alertProblems(a: AlertCheck): string[] {
   if (a.overlapping > 0) problems.push(`${a.overlapping} pairs of one rule's events overlapping in time`);
   if (a.reference) {
     const allowed = Math.max(1, Math.floor(ALERT_TOLERANCE * a.reference.events));
-    if (Math.abs(a.events - a.reference.events) > allowed) problems.push(`${a.events} events against ${a.reference.events} on re-evaluation (±${allowed} allowed)`);
-    if (a.reference.withoutEngineEvent > allowed) problems.push(`${a.reference.withoutEngineEvent} re-evaluated events the engine never raised (${allowed} allowed)`);
-    if (a.reference.engineWithoutReference > allowed) problems.push(`${a.reference.engineWithoutReference} engine events not found on re-evaluation (${allowed} allowed)`);
+    if (Math.abs(a.events - a.reference.events) > allowed)
+      problems.push(`${a.events} events against ${a.reference.events} on re-evaluation (±${allowed} allowed)`);
+    if (a.reference.withoutEngineEvent > allowed)
+      problems.push(
+        `${a.reference.withoutEngineEvent} re-evaluated events the engine never raised (${allowed} allowed)`,
+      );
+    if (a.reference.engineWithoutReference > allowed)
+      problems.push(
+        `${a.reference.engineWithoutReference} engine events not found on re-evaluation (${allowed} allowed)`,
+      );
   }
   return problems;
 }
@@ -126,7 +158,9 @@ function startServerProcess(o: SoakOptions, port: number): Promise<{ child: Chil
       env: { ...process.env, DATABASE_URL: o.databaseUrl, NODE_ENV: "test" },
     });
     child.once("error", reject);
-    child.once("exit", (code, signal) => reject(new Error(`server process exited (${code ?? signal}) before listening`)));
+    child.once("exit", (code, signal) =>
+      reject(new Error(`server process exited (${code ?? signal}) before listening`)),
+    );
     child.once("message", (m: { port: number }) => resolve({ child, port: m.port }));
   });
 }
@@ -247,7 +281,14 @@ export async function runSoak(o: SoakOptions): Promise<SoakReport> {
         }),
       });
     }
-    sims.push({ sensorId: sensor.id, secret: sensor.secret, topic: `nichewise/sensors/${sensor.id}/reading`, messages, next: 0, inflight: 0 });
+    sims.push({
+      sensorId: sensor.id,
+      secret: sensor.secret,
+      topic: `nichewise/sensors/${sensor.id}/reading`,
+      messages,
+      next: 0,
+      inflight: 0,
+    });
   }
   const sensorIds = sims.map((s) => s.sensorId);
   const spotIds = spots.map((s) => s.id);
@@ -295,7 +336,8 @@ export async function runSoak(o: SoakOptions): Promise<SoakReport> {
     });
   };
   let budgetFrom = 0;
-  const budget = () => (o.ratePerSecond && budgetFrom ? ((Date.now() - budgetFrom) * o.ratePerSecond) / 1000 / sims.length : Infinity);
+  const budget = () =>
+    o.ratePerSecond && budgetFrom ? ((Date.now() - budgetFrom) * o.ratePerSecond) / 1000 / sims.length : Infinity;
   const pump = (sim: Sim) => {
     while (sim.inflight < window && sim.next < sim.messages.length && sim.next < budget()) {
       sim.inflight++;
@@ -315,7 +357,9 @@ export async function runSoak(o: SoakOptions): Promise<SoakReport> {
             reconnectPeriod: 100,
             connectTimeout: 5000,
             // Spread over the engine's nodes: each client starts at its own and moves on when it dies.
-            ...(o.cluster ? { servers: o.cluster.servers.map((_s, j, all) => all[(j + sims.indexOf(sim)) % all.length]) } : {}),
+            ...(o.cluster
+              ? { servers: o.cluster.servers.map((_s, j, all) => all[(j + sims.indexOf(sim)) % all.length]) }
+              : {}),
           });
           sim.client.on("error", () => {});
           sim.client.on("reconnect", () => reconnects++);
@@ -354,7 +398,16 @@ export async function runSoak(o: SoakOptions): Promise<SoakReport> {
       for (const k of keys) if (!stored.has(k)) lost++;
       const d = diff.rows[0];
       const overcount = Math.max(0, Number(d.rollup_n) - Number(d.raw_n));
-      return { after, acked: keys.size, stored: stored.size, lost, unexpected, doubleCounted: duplicates + overcount, rollupHoursDiffering: d.differing, keys };
+      return {
+        after,
+        acked: keys.size,
+        stored: stored.size,
+        lost,
+        unexpected,
+        doubleCounted: duplicates + overcount,
+        rollupHoursDiffering: d.differing,
+        keys,
+      };
     } finally {
       await c.end().catch(() => {});
     }
@@ -365,7 +418,11 @@ export async function runSoak(o: SoakOptions): Promise<SoakReport> {
     const until = Date.now() + 120_000;
     for (;;) {
       let pending = false;
-      for (const at of sentAt.values()) if (at < since) { pending = true; break; }
+      for (const at of sentAt.values())
+        if (at < since) {
+          pending = true;
+          break;
+        }
       if (!pending) return;
       if (Date.now() > until) throw new Error("readings sent before the fault were still unacknowledged after 120 s");
       await sleep(20);
@@ -440,14 +497,18 @@ export async function runSoak(o: SoakOptions): Promise<SoakReport> {
     let c = await check(`${f.kind} at ${Math.round(f.at * 100)} %`, new Set(acked));
     // In cluster mode the engine acknowledges once its replicated queue holds a reading; the
     // workers store it after that. Acknowledged readings must all be stored within a minute.
-    for (const until = Date.now() + 60_000; o.cluster && c.lost > 0 && Date.now() < until; ) {
+    for (const until = Date.now() + 60_000; o.cluster && c.lost > 0 && Date.now() < until;) {
       await sleep(500);
       c = await check(c.after, new Set(c.keys));
     }
     if (alerts) c.alerts = await alerts.check(openBefore);
     figures.push({ kind: f.kind, at: f.at, inFlight, outageMs, firstAckMs, recoveredMs, check: c });
-    log(`${c.after}: down ${outageMs} ms, recovered ${recoveredMs} ms after; acked ${c.acked}, stored ${c.stored}, lost ${c.lost}, double-counted ${c.doubleCounted}, rollup hours differing ${c.rollupHoursDiffering}` +
-      (c.alerts ? `; alert events ${c.alerts.events} (${c.alerts.open} open), open twice ${c.alerts.repeated}, overlapping ${c.alerts.overlapping}, open ones lost ${c.alerts.lostOpen}` : ""));
+    log(
+      `${c.after}: down ${outageMs} ms, recovered ${recoveredMs} ms after; acked ${c.acked}, stored ${c.stored}, lost ${c.lost}, double-counted ${c.doubleCounted}, rollup hours differing ${c.rollupHoursDiffering}` +
+        (c.alerts
+          ? `; alert events ${c.alerts.events} (${c.alerts.open} open), open twice ${c.alerts.repeated}, overlapping ${c.alerts.overlapping}, open ones lost ${c.alerts.lostOpen}`
+          : ""),
+    );
   }
 
   // Everything sent must end up acknowledged once the clients have resent what they must.
@@ -462,13 +523,16 @@ export async function runSoak(o: SoakOptions): Promise<SoakReport> {
     // The killed processes' counters died with them; what they refused is in the table.
     const c = new pg.Client({ connectionString: o.databaseUrl });
     await c.connect();
-    const res = await c.query<{ n: number }>("SELECT count(*)::int AS n FROM rejected_messages WHERE sensor_id = ANY($1::int[])", [sensorIds]);
+    const res = await c.query<{ n: number }>(
+      "SELECT count(*)::int AS n FROM rejected_messages WHERE sensor_id = ANY($1::int[])",
+      [sensorIds],
+    );
     await c.end();
     rejectedByBroker = res.rows[0].n;
   }
   const seconds = (Date.now() - startedAt) / 1000;
   let final = await check("end", new Set(expected.keys()));
-  for (const until = Date.now() + 60_000; o.cluster && final.lost > 0 && Date.now() < until; ) {
+  for (const until = Date.now() + 60_000; o.cluster && final.lost > 0 && Date.now() < until;) {
     await sleep(500);
     final = await check("end", new Set(expected.keys()));
   }
@@ -478,7 +542,13 @@ export async function runSoak(o: SoakOptions): Promise<SoakReport> {
   {
     const c = new pg.Client({ connectionString: o.databaseUrl });
     await c.connect();
-    const res = await c.query<{ sensor_id: number; ms: string; temperature: number; humidity: number; lux: number | null }>(
+    const res = await c.query<{
+      sensor_id: number;
+      ms: string;
+      temperature: number;
+      humidity: number;
+      lux: number | null;
+    }>(
       `SELECT sensor_id, (extract(epoch FROM measured_at) * 1000)::bigint AS ms, temperature, humidity, lux
        FROM readings WHERE sensor_id = ANY($1::int[])`,
       [sensorIds],
@@ -486,7 +556,13 @@ export async function runSoak(o: SoakOptions): Promise<SoakReport> {
     await c.end();
     for (const r of res.rows) {
       const e = expected.get(`${r.sensor_id}:${r.ms}`);
-      if (!e || Math.abs(e.t - r.temperature) > 1e-4 || Math.abs(e.h - r.humidity) > 1e-4 || (e.lux === null) !== (r.lux === null)) valueMismatches++;
+      if (
+        !e ||
+        Math.abs(e.t - r.temperature) > 1e-4 ||
+        Math.abs(e.h - r.humidity) > 1e-4 ||
+        (e.lux === null) !== (r.lux === null)
+      )
+        valueMismatches++;
     }
   }
 
@@ -532,8 +608,15 @@ export async function runSoak(o: SoakOptions): Promise<SoakReport> {
 
 export function soakFailed(r: SoakReport) {
   return (
-    r.lost > 0 || r.doubleCounted > 0 || r.unexpected > 0 || r.valueMismatches > 0 || r.rollupHoursDiffering > 0 ||
-    r.acked < r.distinct || r.stored !== r.distinct || r.rejectedByBroker > 0 || (r.alerts !== null && alertProblems(r.alerts).length > 0)
+    r.lost > 0 ||
+    r.doubleCounted > 0 ||
+    r.unexpected > 0 ||
+    r.valueMismatches > 0 ||
+    r.rollupHoursDiffering > 0 ||
+    r.acked < r.distinct ||
+    r.stored !== r.distinct ||
+    r.rejectedByBroker > 0 ||
+    (r.alerts !== null && alertProblems(r.alerts).length > 0)
   );
 }
 
@@ -552,12 +635,21 @@ export function formatReport(r: SoakReport): string {
   ];
   if (r.alerts) {
     const a = r.alerts;
-    lines.push(`alerts: ${a.rules} rules, ${a.events} events (${a.open} open at the end); open twice ${a.repeated}, open events lost in a fault ${a.lostOpen}, events of one rule overlapping in time ${a.overlapping}`);
-    if (a.reference) lines.push(`alerts re-evaluated over the stored readings in time order: ${a.reference.events} events, ${a.reference.withoutEngineEvent} with no overlapping engine event; engine events with no re-evaluated one ${a.reference.engineWithoutReference}`);
+    lines.push(
+      `alerts: ${a.rules} rules, ${a.events} events (${a.open} open at the end); open twice ${a.repeated}, open events lost in a fault ${a.lostOpen}, events of one rule overlapping in time ${a.overlapping}`,
+    );
+    if (a.reference)
+      lines.push(
+        `alerts re-evaluated over the stored readings in time order: ${a.reference.events} events, ${a.reference.withoutEngineEvent} with no overlapping engine event; engine events with no re-evaluated one ${a.reference.engineWithoutReference}`,
+      );
     const problems = alertProblems(a);
-    lines.push(problems.length > 0 ? `ALERTS FAILED: ${problems.join("; ")}` : `alerts OK: no overlaps, within ${ALERT_TOLERANCE * 100} % of the re-evaluation`);
-  }
-  else lines.push("alert events not checked (no alert engine in this run: absent, or the server runs in its own process)");
+    lines.push(
+      problems.length > 0
+        ? `ALERTS FAILED: ${problems.join("; ")}`
+        : `alerts OK: no overlaps, within ${ALERT_TOLERANCE * 100} % of the re-evaluation`,
+    );
+  } else
+    lines.push("alert events not checked (no alert engine in this run: absent, or the server runs in its own process)");
   return lines.join("\n");
 }
 
@@ -579,9 +671,17 @@ async function startAlertsIfPresent(
 ): Promise<AlertsHarness | null> {
   const enginePath = "~/.server/alerts/engine";
   type Engine = { idle: () => Promise<void> };
-  type Mod = { startAlerts: (w: ReadingWriter, o?: { maxLagMs?: number; checkEveryMs?: number }) => Promise<(() => Promise<void>) & { engine: Engine }> };
+  type Mod = {
+    startAlerts: (
+      w: ReadingWriter,
+      o?: { maxLagMs?: number; checkEveryMs?: number },
+    ) => Promise<(() => Promise<void>) & { engine: Engine }>;
+  };
   let mod: Mod;
-  let rules: { evaluate: typeof import("~/domain/alerts/rules").evaluate; valueFor: typeof import("~/domain/alerts/rules").valueFor };
+  let rules: {
+    evaluate: typeof import("~/domain/alerts/rules").evaluate;
+    valueFor: typeof import("~/domain/alerts/rules").valueFor;
+  };
   let store: { spotPoints: typeof import("~/.server/alerts/store").spotPoints };
   try {
     mod = (await import(/* @vite-ignore */ enginePath)) as Mod;
@@ -603,7 +703,10 @@ async function startAlertsIfPresent(
       t.push(e.t);
       h.push(e.h);
     }
-    for (const [kind, threshold] of [["cold", median(t)], ["dry", median(h)]] as const) {
+    for (const [kind, threshold] of [
+      ["cold", median(t)],
+      ["dry", median(h)],
+    ] as const) {
       const res = await pool().query<{ id: number }>(
         `INSERT INTO watches (spot_id, kind, threshold, duration_minutes, hysteresis, clear_minutes) VALUES ($1, $2, $3, 20, 0.5, 20) RETURNING id`,
         [spots[i].id, kind, threshold],
@@ -656,7 +759,12 @@ async function startAlertsIfPresent(
       await handle?.();
       await sink.close();
     },
-    openIds: async () => (await q<{ id: number }>(`SELECT id FROM alert_events WHERE rule_id = ANY($1::int[]) AND ended_at IS NULL`, [ruleIds])).map((r) => r.id),
+    openIds: async () =>
+      (
+        await q<{ id: number }>(`SELECT id FROM alert_events WHERE rule_id = ANY($1::int[]) AND ended_at IS NULL`, [
+          ruleIds,
+        ])
+      ).map((r) => r.id),
     check: async (openBefore, withReference = false) => {
       const [counts] = await q<{ events: number; open: number; extra_open: number }>(
         `SELECT count(*)::int AS events, count(*) FILTER (WHERE ended_at IS NULL)::int AS open,
@@ -669,13 +777,31 @@ async function startAlertsIfPresent(
          WHERE a.rule_id = ANY($1::int[]) AND a.started_at < coalesce(b.ended_at, 'infinity') AND b.started_at < coalesce(a.ended_at, 'infinity')`,
         [ruleIds],
       );
-      const [gone] = await q<{ n: number }>(`SELECT ($2::int - count(*))::int AS n FROM alert_events WHERE id = ANY($1::int[])`, [openBefore, openBefore.length]);
-      const result: AlertCheck = { rules: ruleIds.length, events: counts.events, open: counts.open, repeated: counts.extra_open, overlapping: overlap.n, lostOpen: gone.n };
+      const [gone] = await q<{ n: number }>(
+        `SELECT ($2::int - count(*))::int AS n FROM alert_events WHERE id = ANY($1::int[])`,
+        [openBefore, openBefore.length],
+      );
+      const result: AlertCheck = {
+        rules: ruleIds.length,
+        events: counts.events,
+        open: counts.open,
+        repeated: counts.extra_open,
+        overlapping: overlap.n,
+        lostOpen: gone.n,
+      };
       if (withReference) {
         let events = 0;
         let without = 0;
         let extra = 0;
-        const defs = await q<{ id: number; spot_id: number; kind: "cold" | "dry"; threshold: number; duration_minutes: number; hysteresis: number; clear_minutes: number }>(
+        const defs = await q<{
+          id: number;
+          spot_id: number;
+          kind: "cold" | "dry";
+          threshold: number;
+          duration_minutes: number;
+          hysteresis: number;
+          clear_minutes: number;
+        }>(
           `SELECT id, spot_id, kind, threshold, duration_minutes, hysteresis, clear_minutes FROM watches WHERE id = ANY($1::int[])`,
           [ruleIds],
         );
@@ -683,9 +809,22 @@ async function startAlertsIfPresent(
           const pts = (await store.spotPoints(d.spot_id, new Date(0), new Date(Date.now() + 86_400_000)))
             .map((p) => ({ at: p.at, value: rules.valueFor(d.kind, p) }))
             .filter((p): p is { at: Date; value: number } => p.value != null);
-          const settings = { kind: d.kind, threshold: d.threshold, durationMinutes: d.duration_minutes, hysteresis: d.hysteresis, clearMinutes: d.clear_minutes };
-          const { transitions } = rules.evaluate(settings, { pendingSince: null, clearingSince: null, open: null }, pts);
-          const engine = await q<{ started_at: Date; ended_at: Date | null }>(`SELECT started_at, ended_at FROM alert_events WHERE rule_id = $1`, [d.id]);
+          const settings = {
+            kind: d.kind,
+            threshold: d.threshold,
+            durationMinutes: d.duration_minutes,
+            hysteresis: d.hysteresis,
+            clearMinutes: d.clear_minutes,
+          };
+          const { transitions } = rules.evaluate(
+            settings,
+            { pendingSince: null, clearingSince: null, open: null },
+            pts,
+          );
+          const engine = await q<{ started_at: Date; ended_at: Date | null }>(
+            `SELECT started_at, ended_at FROM alert_events WHERE rule_id = $1`,
+            [d.id],
+          );
           let start: Date | null = null;
           const spans: [number, number][] = [];
           for (const t of transitions) {

@@ -43,9 +43,24 @@ const runs: { label: string; faults: { at: number; kind: FaultKind }[]; serverPr
   chosen === undefined
     ? [
         { label: "in-process broker", faults: FAULTS, serverProcess: false, readings },
-        { label: "server process killed with SIGKILL", faults: KILLS, serverProcess: true, readings: Math.max(20_000, Math.round(readings / 2)) },
+        {
+          label: "server process killed with SIGKILL",
+          faults: KILLS,
+          serverProcess: true,
+          readings: Math.max(20_000, Math.round(readings / 2)),
+        },
       ]
-    : [{ label: "chosen faults", faults: chosen === "none" ? [] : chosen.split(",").map((kind, i, all) => ({ at: (i + 1) / (all.length + 1), kind: kind as FaultKind })), serverProcess: chosen.includes("kill-server"), readings }];
+    : [
+        {
+          label: "chosen faults",
+          faults:
+            chosen === "none"
+              ? []
+              : chosen.split(",").map((kind, i, all) => ({ at: (i + 1) / (all.length + 1), kind: kind as FaultKind })),
+          serverProcess: chosen.includes("kill-server"),
+          readings,
+        },
+      ];
 
 async function main() {
   stopEmbeddedPostgres(dataDir); // a leftover of an interrupted run
@@ -59,10 +74,25 @@ async function main() {
     let failed = false;
     for (const run of runs) {
       log(`${run.label}: ${run.readings} readings, faults ${run.faults.map((f) => f.kind).join(", ") || "none"}`);
-      const report = await runSoak({ databaseUrl: pg.url, pgDataDir: dataDir, pgPort: port, pgDatabase: database, readings: run.readings, clients, ratePerSecond: Number(process.env.NW_SOAK_RATE ?? 2500), faults: run.faults, serverProcess: run.serverProcess, log });
+      const report = await runSoak({
+        databaseUrl: pg.url,
+        pgDataDir: dataDir,
+        pgPort: port,
+        pgDatabase: database,
+        readings: run.readings,
+        clients,
+        ratePerSecond: Number(process.env.NW_SOAK_RATE ?? 2500),
+        faults: run.faults,
+        serverProcess: run.serverProcess,
+        log,
+      });
       console.log(`\n${run.label}\n${formatReport(report)}\n`);
       const bad = soakFailed(report);
-      console.log(bad ? "FAILED: readings lost, counted twice, rollups differing or alert events wrong" : "OK: 0 lost, 0 double-counted, alert events consistent");
+      console.log(
+        bad
+          ? "FAILED: readings lost, counted twice, rollups differing or alert events wrong"
+          : "OK: 0 lost, 0 double-counted, alert events consistent",
+      );
       failed ||= bad;
     }
     process.exitCode = failed ? 1 : 0;

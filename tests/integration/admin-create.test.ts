@@ -9,7 +9,10 @@ import { makeUser } from "./helpers";
 
 function run(args: string[], stdin: string | null): Promise<{ code: number | null; out: string }> {
   return new Promise((resolve) => {
-    const p = spawn(process.execPath, ["--import", "tsx", "app/.server/admin-create.ts", ...args], { env: process.env, stdio: ["pipe", "pipe", "pipe"] });
+    const p = spawn(process.execPath, ["--import", "tsx", "app/.server/admin-create.ts", ...args], {
+      env: process.env,
+      stdio: ["pipe", "pipe", "pipe"],
+    });
     let out = "";
     p.stdout.on("data", (d) => (out += d));
     p.stderr.on("data", (d) => (out += d));

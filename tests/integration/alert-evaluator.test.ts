@@ -33,19 +33,35 @@ async function household() {
 async function watch(spotId: number, v: { threshold: number; early: boolean }) {
   const [w] = await db()
     .insert(watches)
-    .values({ spotId, kind: "cold", threshold: v.threshold, durationMinutes: 10, hysteresis: 1, clearMinutes: 30, earlyWarning: v.early })
+    .values({
+      spotId,
+      kind: "cold",
+      threshold: v.threshold,
+      durationMinutes: 10,
+      hysteresis: 1,
+      clearMinutes: 30,
+      earlyWarning: v.early,
+    })
     .returning();
   return (await getWatch(w.id))!;
 }
 
 /** Stores temperatures five minutes apart from `from` and returns them as the spot's points. */
 async function readings(sensorId: number, spotId: number, from: number, temps: number[]) {
-  const rows = temps.map((temperature, i) => ({ sensorId, measuredAt: new Date(from + i * 5 * MIN), temperature, humidity: 80, lux: null, battery: null }));
+  const rows = temps.map((temperature, i) => ({
+    sensorId,
+    measuredAt: new Date(from + i * 5 * MIN),
+    temperature,
+    humidity: 80,
+    lux: null,
+    battery: null,
+  }));
   await new ReadingWriter().write(rows);
   return spotPoints(spotId, new Date(from - 1), new Date(from + temps.length * 5 * MIN));
 }
 
-const evaluator = (clock: Clock) => new Evaluator({ clock, notifier: new Notifier({ clock }), minuteMs: MIN, maxLagMs: 6 * HOUR });
+const evaluator = (clock: Clock) =>
+  new Evaluator({ clock, notifier: new Notifier({ clock }), minuteMs: MIN, maxLagMs: 6 * HOUR });
 const mailsAbout = (spotName: string) => sunkMail().filter((m) => m.subject.includes(spotName));
 
 describe("evaluator", () => {
@@ -71,8 +87,18 @@ describe("evaluator", () => {
     expect(events[0].notifiedAt).toEqual(clock.now());
     expect(events[0].clearNotifiedAt).toEqual(clock.now());
     const mails = mailsAbout(h.spot.name);
-    expect(mails.filter((m) => !m.subject.startsWith("All clear")).map((m) => m.to[0]).sort()).toEqual([h.owner.email, h.carer.email].sort());
-    expect(mails.filter((m) => m.subject.startsWith("All clear")).map((m) => m.to[0]).sort()).toEqual([h.owner.email, h.carer.email].sort());
+    expect(
+      mails
+        .filter((m) => !m.subject.startsWith("All clear"))
+        .map((m) => m.to[0])
+        .sort(),
+    ).toEqual([h.owner.email, h.carer.email].sort());
+    expect(
+      mails
+        .filter((m) => m.subject.startsWith("All clear"))
+        .map((m) => m.to[0])
+        .sort(),
+    ).toEqual([h.owner.email, h.carer.email].sort());
     const after = await getWatch(w.id);
     expect(after?.evaluatedTo).toEqual(points[points.length - 1].at);
     expect(after?.pendingSince).toBeNull();

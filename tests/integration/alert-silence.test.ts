@@ -26,7 +26,14 @@ describe("silence watcher", () => {
     const sensor = await makeSensor(site, spot);
     const quietSince = new Date(Math.floor(Date.now() / MIN) * MIN);
     await db().update(sensors).set({ lastSeenAt: quietSince }).where(eq(sensors.id, sensor.id));
-    const silent = { spotId: spot.id, kind: "silent" as const, threshold: 60, durationMinutes: 0, hysteresis: 0, clearMinutes: 0 };
+    const silent = {
+      spotId: spot.id,
+      kind: "silent" as const,
+      threshold: 60,
+      durationMinutes: 0,
+      hysteresis: 0,
+      clearMinutes: 0,
+    };
     const [w] = await db().insert(watches).values(silent).returning();
 
     const clock = fixedClock(quietSince.getTime() + 59 * MIN);
@@ -41,7 +48,11 @@ describe("silence watcher", () => {
     await watcher.check();
     let [ev] = await events();
     expect(ev).toMatchObject({ startedAt: quietSince, peak: 90, endedAt: null, notifiedAt: clock.now() });
-    expect(mails().map((m) => m.to[0]).sort()).toEqual([owner.email, carer.email].sort());
+    expect(
+      mails()
+        .map((m) => m.to[0])
+        .sort(),
+    ).toEqual([owner.email, carer.email].sort());
 
     clock.set(quietSince.getTime() + 120 * MIN);
     await watcher.check();

@@ -38,9 +38,12 @@ function plain(m: SunkMail): string {
   const part = m.raw.split(/\r?\n--/).find((p) => /Content-Type: text\/plain/i.test(p)) ?? m.raw;
   const [head, ...body] = part.split(/\r?\n\r?\n/);
   const text = body.join("\n\n");
-  if (/Content-Transfer-Encoding: base64/i.test(head)) return Buffer.from(text.replace(/\s+/g, ""), "base64").toString("utf8");
+  if (/Content-Transfer-Encoding: base64/i.test(head))
+    return Buffer.from(text.replace(/\s+/g, ""), "base64").toString("utf8");
   if (/Content-Transfer-Encoding: quoted-printable/i.test(head)) {
-    const bytes = text.replace(/=\r?\n/g, "").replace(/=([0-9A-F]{2})/gi, (_m, h: string) => String.fromCharCode(parseInt(h, 16)));
+    const bytes = text
+      .replace(/=\r?\n/g, "")
+      .replace(/=([0-9A-F]{2})/gi, (_m, h: string) => String.fromCharCode(parseInt(h, 16)));
     return Buffer.from(bytes, "latin1").toString("utf8");
   }
   return text;
@@ -56,7 +59,10 @@ async function household() {
   return { owner, carer, site, spot, sensor };
 }
 
-async function coldWatch(spotId: number, extra: Partial<{ kind: string; threshold: number; duration: number; early: boolean }> = {}) {
+async function coldWatch(
+  spotId: number,
+  extra: Partial<{ kind: string; threshold: number; duration: number; early: boolean }> = {},
+) {
   const res = await pool().query<{ id: number }>(
     `INSERT INTO watches (spot_id, kind, threshold, duration_minutes, hysteresis, clear_minutes, early_warning)
      VALUES ($1, $2, $3, $4, 1, 30, $5) RETURNING id`,
@@ -71,14 +77,24 @@ type Row = { measuredAt: Date; temperature: number; humidity: number };
 async function feed(sensorId: number, rows: Row[], chunk = 3, after?: (fed: Row[]) => void) {
   for (let i = 0; i < rows.length; i += chunk) {
     const part = rows.slice(i, i + chunk);
-    await writer.write(part.map((r) => ({ sensorId, measuredAt: r.measuredAt, temperature: r.temperature, humidity: r.humidity, lux: null, battery: 80 })));
+    await writer.write(
+      part.map((r) => ({
+        sensorId,
+        measuredAt: r.measuredAt,
+        temperature: r.temperature,
+        humidity: r.humidity,
+        lux: null,
+        battery: 80,
+      })),
+    );
     await alerts.engine.idle();
     after?.(rows.slice(0, i + chunk));
   }
 }
 
 const mailsFor = (spotName: string) => sunkMail().filter((m) => m.subject.includes(spotName));
-const series = (from: number, values: number[], stepMin = 5): Row[] => values.map((temperature, i) => ({ measuredAt: new Date(from + i * stepMin * MIN), temperature, humidity: 80 }));
+const series = (from: number, values: number[], stepMin = 5): Row[] =>
+  values.map((temperature, i) => ({ measuredAt: new Date(from + i * stepMin * MIN), temperature, humidity: 80 }));
 
 describe("cold snap from the simulated front", () => {
   it("sends one early warning before the crossing, one cold-snap e-mail per member, then one all-clear", async () => {
@@ -88,7 +104,14 @@ describe("cold snap from the simulated front", () => {
     const d = new Date(Date.now() - 2 * 24 * HOUR);
     const from = Date.UTC(d.getUTCFullYear(), d.getUTCMonth(), d.getUTCDate(), 16);
     const front = new Date(from + 2 * HOUR);
-    const rows = [...generate(DEMO_SITE, OUTDOOR, coldFrontScenario(front), { from: new Date(from), to: new Date(from + 11 * HOUR), intervalMs: 5 * MIN, sensorSeed: 101 })];
+    const rows = [
+      ...generate(DEMO_SITE, OUTDOOR, coldFrontScenario(front), {
+        from: new Date(from),
+        to: new Date(from + 11 * HOUR),
+        intervalMs: 5 * MIN,
+        sensorSeed: 101,
+      }),
+    ];
 
     let lowestWhenWarned: number | null = null;
     await feed(sensor.id, rows, 1, (fed) => {
@@ -112,7 +135,11 @@ describe("cold snap from the simulated front", () => {
 
     // The numbers: the state machine on the same readings says when it opened; the minimum so far then.
     const pts = rows.map((r) => ({ at: r.measuredAt, value: r.temperature }));
-    const { transitions } = evaluate({ kind: "cold", threshold: 10, durationMinutes: 10, hysteresis: 1, clearMinutes: 30 }, { pendingSince: null, clearingSince: null, open: null }, pts);
+    const { transitions } = evaluate(
+      { kind: "cold", threshold: 10, durationMinutes: 10, hysteresis: 1, clearMinutes: 30 },
+      { pendingSince: null, clearingSince: null, open: null },
+      pts,
+    );
     const openedAt = transitions[0].at.getTime();
     const lowestAtOpen = Math.min(...pts.filter((p) => p.at.getTime() <= openedAt).map((p) => p.value));
     const lowest = Math.min(...pts.map((p) => p.value));
@@ -126,7 +153,10 @@ describe("cold snap from the simulated front", () => {
     expect(plain(clear[0])).toContain(`the lowest was ${lowest.toFixed(1)} °C`);
     expect(cold[0].raw).toMatch(/Content-Type: text\/html/i);
 
-    const events = await pool().query(`SELECT started_at, ended_at, peak, notified_at, clear_notified_at FROM alert_events WHERE spot_id = $1`, [spot.id]);
+    const events = await pool().query(
+      `SELECT started_at, ended_at, peak, notified_at, clear_notified_at FROM alert_events WHERE spot_id = $1`,
+      [spot.id],
+    );
     expect(events.rows).toHaveLength(1);
     expect(events.rows[0].peak).toBeCloseTo(lowest, 4);
     expect(events.rows[0].ended_at).not.toBeNull();
@@ -137,7 +167,16 @@ describe("cold snap from the simulated front", () => {
     const { spot, sensor } = await household();
     await coldWatch(spot.id, { early: false });
     const from = Date.now() - 8 * HOUR;
-    const values = [12, 12, 12, 9.5, 9.4, 9.3, 9.2, ...Array.from({ length: 72 }, (_, i) => (i % 2 === 0 ? 10.4 : 9.6))];
+    const values = [
+      12,
+      12,
+      12,
+      9.5,
+      9.4,
+      9.3,
+      9.2,
+      ...Array.from({ length: 72 }, (_, i) => (i % 2 === 0 ? 10.4 : 9.6)),
+    ];
     await feed(sensor.id, series(from, values), 2);
     const mails = mailsFor(spot.name);
     expect(mails.filter((m) => m.subject.startsWith("Cold snap"))).toHaveLength(2);
@@ -163,7 +202,10 @@ describe("cold snap from the simulated front", () => {
       `INSERT INTO alert_events (rule_id, spot_id, kind, started_at, peak) VALUES ($1, $2, 'silent', now() - interval '2 hours', 120) RETURNING id`,
       [silentRule, spot.id],
     );
-    await pool().query(`INSERT INTO alert_deliveries (event_id, user_id, message) VALUES ($1, $2, 'open')`, [ev.rows[0].id, owner.id]);
+    await pool().query(`INSERT INTO alert_deliveries (event_id, user_id, message) VALUES ($1, $2, 'open')`, [
+      ev.rows[0].id,
+      owner.id,
+    ]);
     await alerts();
     alerts = await start();
     const resent = mailsFor(spot.name).filter((m) => m.subject.startsWith("Silent"));
@@ -200,7 +242,14 @@ describe("cold snap from the simulated front", () => {
     let s = 11;
     const rand = () => ((s = (s * 1103515245 + 12345) % 2147483648) / 2147483648) * 2 - 1;
     const from = Date.now() - 6 * HOUR;
-    await feed(sensor.id, series(from, Array.from({ length: 72 }, () => 10.7 + 0.5 * rand())), 4);
+    await feed(
+      sensor.id,
+      series(
+        from,
+        Array.from({ length: 72 }, () => 10.7 + 0.5 * rand()),
+      ),
+      4,
+    );
     expect(mailsFor(spot.name)).toEqual([]);
   });
 
@@ -216,7 +265,10 @@ describe("cold snap from the simulated front", () => {
     expect(firstRound.filter((m) => m.subject.startsWith("All clear"))).toHaveLength(2);
     // The other sensor's cold readings of that hour come in after a reconnect, out of order.
     await feed(late.id, series(from + 10 * MIN, Array(10).fill(7)).reverse(), 4);
-    const events = await pool().query<{ started_at: Date; ended_at: Date | null }>(`SELECT started_at, ended_at FROM alert_events WHERE rule_id = $1`, [ruleId]);
+    const events = await pool().query<{ started_at: Date; ended_at: Date | null }>(
+      `SELECT started_at, ended_at FROM alert_events WHERE rule_id = $1`,
+      [ruleId],
+    );
     expect(events.rows).toHaveLength(1);
     expect(events.rows[0].ended_at).not.toBeNull();
     const clear = mailsFor(spot.name).filter((m) => m.subject.startsWith("All clear"));
@@ -231,8 +283,12 @@ describe("cold snap from the simulated front", () => {
       const { owner, carer, spot, sensor } = await household();
       await coldWatch(spot.id, { early: false });
       await feed(sensor.id, series(Date.now() - 8 * HOUR, [12, 12, 8, 8, 8, 8, 8, 12, 12, 12, 12, 12, 12, 12, 12]));
-      const subjects = mailsFor(spot.name).map((m) => `${m.subject.split(" ")[0]} ${m.to[0]}`).sort();
-      expect(subjects).toEqual([`All ${carer.email}`, `All ${owner.email}`, `Cold ${carer.email}`, `Cold ${owner.email}`].sort());
+      const subjects = mailsFor(spot.name)
+        .map((m) => `${m.subject.split(" ")[0]} ${m.to[0]}`)
+        .sort();
+      expect(subjects).toEqual(
+        [`All ${carer.email}`, `All ${owner.email}`, `Cold ${carer.email}`, `Cold ${owner.email}`].sort(),
+      );
     } finally {
       await alerts();
       alerts = await start();
@@ -245,7 +301,16 @@ describe("cold snap from the simulated front", () => {
     const from = Date.now() - 8 * HOUR;
     await feed(sensor.id, series(from, [12, 12]));
     await alerts();
-    await writer.write(series(from + 10 * MIN, Array(6).fill(8)).map((r) => ({ sensorId: sensor.id, measuredAt: r.measuredAt, temperature: r.temperature, humidity: r.humidity, lux: null, battery: 80 })));
+    await writer.write(
+      series(from + 10 * MIN, Array(6).fill(8)).map((r) => ({
+        sensorId: sensor.id,
+        measuredAt: r.measuredAt,
+        temperature: r.temperature,
+        humidity: r.humidity,
+        lux: null,
+        battery: 80,
+      })),
+    );
     alerts = await start();
     await alerts.engine.idle();
     expect(mailsFor(spot.name).filter((m) => m.subject.startsWith("Cold snap"))).toHaveLength(2);

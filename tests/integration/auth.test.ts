@@ -57,7 +57,10 @@ describe("sign-in and sessions", () => {
     const session = await validateSessionToken(good.token);
     expect(session?.user.id).toBe(u.id);
     // The token itself is never stored; only its SHA-256.
-    const [row] = await db().select().from(sessions).where(eq(sessions.id, sessionIdFromToken(good.token)));
+    const [row] = await db()
+      .select()
+      .from(sessions)
+      .where(eq(sessions.id, sessionIdFromToken(good.token)));
     expect(row).toBeDefined();
     expect(row.id).not.toContain(good.token);
   });
@@ -73,9 +76,17 @@ describe("sign-in and sessions", () => {
     const u = await makeUser();
     const token = generateSessionToken();
     await createSession(token, u.id);
-    await db().update(sessions).set({ expiresAt: new Date(Date.now() - 1000) }).where(eq(sessions.id, sessionIdFromToken(token)));
+    await db()
+      .update(sessions)
+      .set({ expiresAt: new Date(Date.now() - 1000) })
+      .where(eq(sessions.id, sessionIdFromToken(token)));
     expect(await validateSessionToken(token)).toBeNull();
-    expect(await db().select().from(sessions).where(eq(sessions.id, sessionIdFromToken(token)))).toHaveLength(0);
+    expect(
+      await db()
+        .select()
+        .from(sessions)
+        .where(eq(sessions.id, sessionIdFromToken(token))),
+    ).toHaveLength(0);
   });
 
   it("renews a session that is past half its life (sliding expiry)", async () => {
@@ -83,7 +94,10 @@ describe("sign-in and sessions", () => {
     const token = generateSessionToken();
     await createSession(token, u.id);
     const soon = new Date(Date.now() + 2 * 86_400_000);
-    await db().update(sessions).set({ expiresAt: soon }).where(eq(sessions.id, sessionIdFromToken(token)));
+    await db()
+      .update(sessions)
+      .set({ expiresAt: soon })
+      .where(eq(sessions.id, sessionIdFromToken(token)));
     const s = await validateSessionToken(token);
     expect(s?.renewed).toBe(true);
     expect(s!.expiresAt.getTime()).toBeGreaterThan(Date.now() + 29 * 86_400_000);
@@ -144,7 +158,9 @@ describe("roles", () => {
     expect((await requireSiteRole(request(ownerT), site.id, ["owner"])).role).toBe("owner");
     expect((await requireSiteRole(request(mentorT), site.id, ["owner", "carer", "mentor"])).role).toBe("mentor");
     expect(statusOf(await thrown(requireSiteRole(request(mentorT), site.id, ["owner"])))).toBe(403);
-    expect(statusOf(await thrown(requireSiteRole(request(strangerT), site.id, ["owner", "carer", "mentor"])))).toBe(404);
+    expect(statusOf(await thrown(requireSiteRole(request(strangerT), site.id, ["owner", "carer", "mentor"])))).toBe(
+      404,
+    );
     const signedOut = await thrown(requireSiteRole(request(null), site.id, ["owner"]));
     expect(statusOf(signedOut)).toBe(302);
   });

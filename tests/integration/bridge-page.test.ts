@@ -46,10 +46,23 @@ async function answer(p: Promise<unknown>): Promise<{ status: number; body: unkn
 }
 
 const post = (siteId: number, token: string, fields: Record<string, string>) =>
-  answer(action({ request: request(siteId, token, fields), params: { siteId: String(siteId) } } as never) as Promise<unknown>);
-const load = (siteId: number, token: string) => answer(loader({ request: request(siteId, token), params: { siteId: String(siteId) } } as never) as Promise<unknown>);
+  answer(
+    action({
+      request: request(siteId, token, fields),
+      params: { siteId: String(siteId) },
+    } as never) as Promise<unknown>,
+  );
+const load = (siteId: number, token: string) =>
+  answer(loader({ request: request(siteId, token), params: { siteId: String(siteId) } } as never) as Promise<unknown>);
 
-const SETTINGS = { intent: "save", url: "mqtt://127.0.0.1:1", username: "nichewise", password: "s3cret-home-pass", protocolVersion: "4", enabled: "on" };
+const SETTINGS = {
+  intent: "save",
+  url: "mqtt://127.0.0.1:1",
+  username: "nichewise",
+  password: "s3cret-home-pass",
+  protocolVersion: "4",
+  enabled: "on",
+};
 
 describe("the home-broker page", () => {
   it("lets only the owner configure it, and never sends the password back", async () => {
@@ -70,12 +83,14 @@ describe("the home-broker page", () => {
 
     const asOwner = await load(site.id, ownerToken);
     expect(JSON.stringify(asOwner.body)).not.toContain("s3cret-home-pass");
-    expect(asOwner.body).toMatchObject({ bridge: { url: "mqtt://127.0.0.1:1", username: "nichewise", hasPassword: true } });
+    expect(asOwner.body).toMatchObject({
+      bridge: { url: "mqtt://127.0.0.1:1", username: "nichewise", hasPassword: true },
+    });
     // Other members see whether it is on, not where the broker is or as whom Nichewise signs in.
     const asCarer = await load(site.id, carerToken);
     expect(asCarer.body).toMatchObject({ bridge: { enabled: true } });
     expect(JSON.stringify(asCarer.body)).not.toContain("127.0.0.1:1");
-    expect(JSON.stringify(asCarer.body)).not.toContain("nichewise\"");
+    expect(JSON.stringify(asCarer.body)).not.toContain('nichewise"');
   });
 
   it("refuses a wrong address, another site's sensor and an incomplete mapping with a clear reason", async () => {
@@ -89,23 +104,56 @@ describe("the home-broker page", () => {
 
     const theirs = await makeSensor(other, await makeSpot(other));
     const mine = await makeSensor(site, await makeSpot(site));
-    const wrongSite = await post(site.id, token, { intent: "attach", topic: "zigbee2mqtt/bench", sensorId: String(theirs.id), mapping: JSON.stringify({ preset: "zigbee2mqtt" }) });
+    const wrongSite = await post(site.id, token, {
+      intent: "attach",
+      topic: "zigbee2mqtt/bench",
+      sensorId: String(theirs.id),
+      mapping: JSON.stringify({ preset: "zigbee2mqtt" }),
+    });
     expect(wrongSite).toMatchObject({ status: 400, body: { errors: { form: "That sensor is not in this site." } } });
-    const noChannel = await post(site.id, token, { intent: "attach", topic: "node/sensor/t/state", sensorId: String(mine.id), preset: "esphome" });
+    const noChannel = await post(site.id, token, {
+      intent: "attach",
+      topic: "node/sensor/t/state",
+      sensorId: String(mine.id),
+      preset: "esphome",
+    });
     expect(noChannel).toMatchObject({ status: 400, body: { errors: { channel: "Choose what the number measures" } } });
-    const wildcard = await post(site.id, token, { intent: "attach", topic: "zigbee2mqtt/#", sensorId: String(mine.id), mapping: JSON.stringify({ preset: "zigbee2mqtt" }) });
-    expect(wildcard).toMatchObject({ status: 400, body: { errors: { topic: expect.stringContaining("no wildcards") } } });
+    const wildcard = await post(site.id, token, {
+      intent: "attach",
+      topic: "zigbee2mqtt/#",
+      sensorId: String(mine.id),
+      mapping: JSON.stringify({ preset: "zigbee2mqtt" }),
+    });
+    expect(wildcard).toMatchObject({
+      status: 400,
+      body: { errors: { topic: expect.stringContaining("no wildcards") } },
+    });
     const config = (await getBridge(site.id))!;
     expect(await listLinks(config.id)).toEqual([]);
 
     // A hand-made mapping that is complete is attached.
-    const ok = await post(site.id, token, { intent: "attach", topic: "lab/env", sensorId: String(mine.id), preset: "custom", unitOfTemperature: "F", path_temperature: "env.t", path_time: "ts" });
+    const ok = await post(site.id, token, {
+      intent: "attach",
+      topic: "lab/env",
+      sensorId: String(mine.id),
+      preset: "custom",
+      unitOfTemperature: "F",
+      path_temperature: "env.t",
+      path_time: "ts",
+    });
     expect(ok).toMatchObject({ status: 200, body: { attached: "lab/env" } });
-    expect(await listLinks(config.id)).toMatchObject([{ topic: "lab/env", sensorId: mine.id, mapping: { preset: "custom", unit: "F", paths: { temperature: "env.t", time: "ts" } } }]);
+    expect(await listLinks(config.id)).toMatchObject([
+      {
+        topic: "lab/env",
+        sensorId: mine.id,
+        mapping: { preset: "custom", unit: "F", paths: { temperature: "env.t", time: "ts" } },
+      },
+    ]);
   });
 
   // Encryption at rest: AES-256-GCM (NIST SP 800-38D) under a key kept outside the database.
-  const stored = async (siteId: number) => (await db().select({ password: bridges.password }).from(bridges).where(eq(bridges.siteId, siteId)))[0]?.password;
+  const stored = async (siteId: number) =>
+    (await db().select({ password: bridges.password }).from(bridges).where(eq(bridges.siteId, siteId)))[0]?.password;
 
   it("never stores the password in the column, and seals plain ones from before at start or on save", async () => {
     const owner = await makeUser();
@@ -143,18 +191,29 @@ describe("the home-broker page", () => {
     const site = await makeSite(owner);
     const token = await sessionOf(owner);
     await post(site.id, token, SETTINGS);
-    await db().update(bridges).set({ password: sealWith(randomBytes(32), "s3cret-home-pass", `bridge:${site.id}`) }).where(eq(bridges.siteId, site.id));
+    await db()
+      .update(bridges)
+      .set({ password: sealWith(randomBytes(32), "s3cret-home-pass", `bridge:${site.id}`) })
+      .where(eq(bridges.siteId, site.id));
 
     const page = await load(site.id, token);
     expect(page.status).toBe(200);
-    expect(page.body).toMatchObject({ bridge: { hasPassword: true, passwordError: expect.stringContaining("Type the password again and save") } });
+    expect(page.body).toMatchObject({
+      bridge: { hasPassword: true, passwordError: expect.stringContaining("Type the password again and save") },
+    });
     const listen = await post(site.id, token, { intent: "listen", prefix: "zigbee2mqtt" });
-    expect(listen).toMatchObject({ status: 400, body: { errors: { prefix: expect.stringContaining("cannot be read") } } });
+    expect(listen).toMatchObject({
+      status: 400,
+      body: { errors: { prefix: expect.stringContaining("cannot be read") } },
+    });
 
     const config = (await getBridge(site.id))!;
     const bridge = new SiteBridge(config, [], { writer: null as never });
     bridge.start();
-    expect(bridge.state).toMatchObject({ status: "stopped", lastError: { message: expect.stringContaining("cannot be read") } });
+    expect(bridge.state).toMatchObject({
+      status: "stopped",
+      lastError: { message: expect.stringContaining("cannot be read") },
+    });
     await bridge.stop();
 
     // Typing the password again mends it.
@@ -170,12 +229,18 @@ describe("the home-broker page", () => {
     const attach = (sensorId: string, topic: string) =>
       post(site.id, token, { intent: "attach", topic, sensorId, mapping: JSON.stringify({ preset: "zigbee2mqtt" }) });
     // Not before a broker is connected: no sensor is made for nothing.
-    expect(await attach(`new:${spot.id}`, "zigbee2mqtt/orchid_shelf")).toMatchObject({ status: 400, body: { errors: { form: "Connect the home broker first." } } });
+    expect(await attach(`new:${spot.id}`, "zigbee2mqtt/orchid_shelf")).toMatchObject({
+      status: 400,
+      body: { errors: { form: "Connect the home broker first." } },
+    });
     expect((await load(site.id, token)).body).toMatchObject({ sensors: [] });
     await post(site.id, token, SETTINGS);
 
     const ok = await attach(`new:${spot.id}`, "zigbee2mqtt/orchid_shelf");
-    expect(ok).toMatchObject({ status: 200, body: { attached: "zigbee2mqtt/orchid_shelf", created: "orchid shelf", placedIn: spot.name } });
+    expect(ok).toMatchObject({
+      status: 200,
+      body: { attached: "zigbee2mqtt/orchid_shelf", created: "orchid shelf", placedIn: spot.name },
+    });
     const page = await load(site.id, token);
     expect(page.body).toMatchObject({
       sensors: [{ name: "orchid shelf", spotName: spot.name }],
@@ -184,9 +249,18 @@ describe("the home-broker page", () => {
     // Not placed, and another site's spot refused with its reason.
     const other = await makeSite(owner);
     const theirs = await makeSpot(other);
-    expect(await attach("new:", "zigbee2mqtt/window_sill")).toMatchObject({ status: 200, body: { created: "window sill" } });
-    expect(await attach(`new:${theirs.id}`, "zigbee2mqtt/porch")).toMatchObject({ status: 400, body: { errors: { form: "That spot is not in this site." } } });
-    expect(await attach("new:abc", "zigbee2mqtt/porch")).toMatchObject({ status: 400, body: { errors: { sensorId: expect.any(String) } } });
+    expect(await attach("new:", "zigbee2mqtt/window_sill")).toMatchObject({
+      status: 200,
+      body: { created: "window sill" },
+    });
+    expect(await attach(`new:${theirs.id}`, "zigbee2mqtt/porch")).toMatchObject({
+      status: 400,
+      body: { errors: { form: "That spot is not in this site." } },
+    });
+    expect(await attach("new:abc", "zigbee2mqtt/porch")).toMatchObject({
+      status: 400,
+      body: { errors: { sensorId: expect.any(String) } },
+    });
     expect(((await load(site.id, token)).body as { sensors: unknown[] }).sensors).toHaveLength(2);
   });
 });

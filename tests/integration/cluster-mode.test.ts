@@ -57,13 +57,21 @@ describe("the engine's auth endpoint (RabbitMQ HTTP auth backend)", () => {
     expect((await ask("user", { username: "nichewise-ingest", password: "x" })).body).toBe("deny");
     expect((await ask("vhost", { username: String(a.id), vhost: "/", ip: "127.0.0.1" })).body).toBe("allow");
     const topic = (username: number, permission: string, routing_key: string) =>
-      ask("topic", { username: String(username), vhost: "/", resource: "topic", name: "amq.topic", permission, routing_key });
+      ask("topic", {
+        username: String(username),
+        vhost: "/",
+        resource: "topic",
+        name: "amq.topic",
+        permission,
+        routing_key,
+      });
     expect((await topic(a.id, "write", `nichewise.sensors.${a.id}.reading`)).body).toBe("allow");
     expect((await topic(a.id, "write", `nichewise.sensors.${a.id}.humidity`)).body).toBe("allow");
     expect((await topic(a.id, "write", `nichewise.sensors.${b.id}.reading`)).body).toBe("deny");
     expect((await topic(a.id, "write", `nichewise.sensors.${a.id}.reading.extra`)).body).toBe("deny");
     expect((await topic(a.id, "read", `nichewise.sensors.*.#`)).body).toBe("deny");
-    const resource = (resource: string, name: string, permission: string) => ask("resource", { username: String(a.id), vhost: "/", resource, name, permission });
+    const resource = (resource: string, name: string, permission: string) =>
+      ask("resource", { username: String(a.id), vhost: "/", resource, name, permission });
     expect((await resource("exchange", "amq.topic", "write")).body).toBe("allow");
     expect((await resource("queue", "nichewise.readings", "read")).body).toBe("deny");
     expect((await resource("exchange", "amq.direct", "write")).body).toBe("deny");
@@ -109,7 +117,10 @@ describe("the alert lease (PostgreSQL advisory lock on its own session)", () => 
     expect([...running]).toEqual(["a"]);
 
     // The holder's process dies: its session ends, and PostgreSQL releases the lock with it.
-    await pool().query(`SELECT pg_terminate_backend(pid) FROM pg_locks WHERE locktype = 'advisory' AND objid = $1 AND granted`, [key]);
+    await pool().query(
+      `SELECT pg_terminate_backend(pid) FROM pg_locks WHERE locktype = 'advisory' AND objid = $1 AND granted`,
+      [key],
+    );
     expect(await eventually(() => b.holding())).toBe(true);
     expect(await eventually(() => !running.has("a"))).toBe(true);
     expect([...running]).toEqual(["b"]);
@@ -144,18 +155,36 @@ describe("the lease holder's alert engine", () => {
     await pool().query(`UPDATE watches SET paused = true WHERE spot_id <> $1`, [spot.id]);
     // This process's writer commits nothing; the ingest worker's writer (another process in
     // cluster mode) commits the readings and announces them.
-    lease = startAlertsUnderLease(new ReadingWriter(), { connectionString: process.env.DATABASE_URL!, maxLagMs: Number.POSITIVE_INFINITY, checkEveryMs: 3_600_000, retryMs: 100 });
+    lease = startAlertsUnderLease(new ReadingWriter(), {
+      connectionString: process.env.DATABASE_URL!,
+      maxLagMs: Number.POSITIVE_INFINITY,
+      checkEveryMs: 3_600_000,
+      retryMs: 100,
+    });
     expect(await eventually(() => lease!.holding())).toBe(true);
     await sleep(300); // the holder's LISTEN is in place
     const worker = new ReadingWriter();
     stopAnnouncing = announceCommits(worker);
     // An hour at 8 °C in 5-minute steps, under a 10 °C cold rule of 10 minutes.
     const from = Date.now() - 60 * MIN;
-    const readings = Array.from({ length: 12 }, (_, i) => ({ sensorId: sensor.id, measuredAt: new Date(from + i * 5 * MIN), temperature: 8, humidity: 80, lux: null, battery: 80 }));
+    const readings = Array.from({ length: 12 }, (_, i) => ({
+      sensorId: sensor.id,
+      measuredAt: new Date(from + i * 5 * MIN),
+      temperature: 8,
+      humidity: 80,
+      lux: null,
+      battery: 80,
+    }));
     for (let i = 0; i < readings.length; i += 3) await worker.write(readings.slice(i, i + 3));
-    const opened = await eventually(async () => (await pool().query(`SELECT 1 FROM alert_events WHERE rule_id = $1`, [rule.rows[0].id])).rowCount === 1);
+    const opened = await eventually(
+      async () =>
+        (await pool().query(`SELECT 1 FROM alert_events WHERE rule_id = $1`, [rule.rows[0].id])).rowCount === 1,
+    );
     expect(opened).toBe(true);
-    const events = await pool().query<{ started_at: Date; ended_at: Date | null }>(`SELECT started_at, ended_at FROM alert_events WHERE rule_id = $1`, [rule.rows[0].id]);
+    const events = await pool().query<{ started_at: Date; ended_at: Date | null }>(
+      `SELECT started_at, ended_at FROM alert_events WHERE rule_id = $1`,
+      [rule.rows[0].id],
+    );
     expect(events.rows).toHaveLength(1);
     expect(events.rows[0].ended_at).toBeNull();
     expect(events.rows[0].started_at.getTime()).toBe(from);
@@ -173,7 +202,12 @@ describe("the weather job and forecast warnings in cluster mode", () => {
     const key = 434_343;
     const calls = { a: 0, b: 0 };
     const instance = (name: "a" | "b") => {
-      const lease = startLease({ connectionString: process.env.DATABASE_URL!, key, retryMs: 100, onAcquire: async () => async () => {} });
+      const lease = startLease({
+        connectionString: process.env.DATABASE_URL!,
+        key,
+        retryMs: 100,
+        onAcquire: async () => async () => {},
+      });
       leases.push(lease);
       const weather = { job: { round: async () => ++calls[name] } };
       const warnings = { runner: { run: async () => (calls[name]++, { spots: 1, warned: 0, cleared: 0 }) } };
@@ -188,7 +222,10 @@ describe("the weather job and forecast warnings in cluster mode", () => {
     await b.tick();
     expect(calls).toEqual({ a: 2, b: 0 });
 
-    await pool().query(`SELECT pg_terminate_backend(pid) FROM pg_locks WHERE locktype = 'advisory' AND objid = $1 AND granted`, [key]);
+    await pool().query(
+      `SELECT pg_terminate_backend(pid) FROM pg_locks WHERE locktype = 'advisory' AND objid = $1 AND granted`,
+      [key],
+    );
     expect(await eventually(() => b.lease.holding())).toBe(true);
     await a.tick();
     await b.tick();

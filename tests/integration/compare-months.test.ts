@@ -25,14 +25,25 @@ describe("compare: months at the site's clock", () => {
       const rows: Reading[] = [];
       // Four hours before local midnight at 30 °C (December), four after at 10 °C (January).
       for (let k = -24; k < 24; k++) {
-        rows.push({ sensorId: sensor.id, measuredAt: new Date(midnight + k * 10 * 60_000), temperature: k < 0 ? 30 : 10, humidity: 60, lux: null, battery: null });
+        rows.push({
+          sensorId: sensor.id,
+          measuredAt: new Date(midnight + k * 10 * 60_000),
+          temperature: k < 0 ? 30 : 10,
+          humidity: 60,
+          lux: null,
+          battery: null,
+        });
       }
       await writer().write(rows);
     }
     const token = generateSessionToken();
     await createSession(token, user.id);
     const url = `http://127.0.0.1/sites/${site.id}/compare?from=2026-01&to=2026-01&spots=${spots[0].id}&spots=${spots[1].id}`;
-    const out = (await compareLoader({ request: new Request(url, { headers: { Cookie: `nw_session=${token}` } }), params: { siteId: String(site.id) }, context: {} } as never)) as Compared;
+    const out = (await compareLoader({
+      request: new Request(url, { headers: { Cookie: `nw_session=${token}` } }),
+      params: { siteId: String(site.id) },
+      context: {},
+    } as never)) as Compared;
     expect(out.problems).toEqual([]);
     for (const c of out.compared) {
       const withData = c.months.filter((m) => m.temperature.lowest != null);

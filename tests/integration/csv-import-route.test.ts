@@ -23,14 +23,19 @@ function post(siteId: number, token: string, csv: string, fields: Record<string,
   const form = new FormData();
   form.set("file", new File([csv], "logger.csv", { type: "text/csv" }));
   for (const [k, v] of Object.entries(fields)) form.set(k, v);
-  const request = new Request(`http://127.0.0.1/sites/${siteId}/import`, { method: "POST", headers: { Cookie: `${SESSION_COOKIE}=${token}` }, body: form });
+  const request = new Request(`http://127.0.0.1/sites/${siteId}/import`, {
+    method: "POST",
+    headers: { Cookie: `${SESSION_COOKIE}=${token}` },
+    body: form,
+  });
   return action({ request, params: { siteId: String(siteId) } } as never) as Promise<unknown>;
 }
 
 /** The action's answer as { status, body }, whether it returned data() or a plain object. */
 function answer(res: unknown): { status: number; body: Record<string, unknown> } {
   const r = res as { type?: string; data?: unknown; init?: { status?: number } };
-  if (r && r.type === "DataWithResponseInit") return { status: r.init?.status ?? 200, body: r.data as Record<string, unknown> };
+  if (r && r.type === "DataWithResponseInit")
+    return { status: r.init?.status ?? 200, body: r.data as Record<string, unknown> };
   return { status: 200, body: res as Record<string, unknown> };
 }
 
@@ -48,9 +53,22 @@ const CSV =
 describe("the import page's action", () => {
   it("previews by file line, says how the repeated hour was read, and links rows before the placement to the sensor page", async () => {
     const { site, sensor, token } = await setup();
-    const { status, body } = answer(await post(site.id, token, CSV, { intent: "preview", sensorId: String(sensor.id), dateFormat: "iso", timeZone: "Europe/Madrid" }));
+    const { status, body } = answer(
+      await post(site.id, token, CSV, {
+        intent: "preview",
+        sensorId: String(sensor.id),
+        dateFormat: "iso",
+        timeZone: "Europe/Madrid",
+      }),
+    );
     expect(status).toBe(200);
-    const preview = body.preview as { rows: { line: number }[]; failed: { line: number }[]; dstChanges: string[]; beforeFirstPlacement: number; sensorPage: string };
+    const preview = body.preview as {
+      rows: { line: number }[];
+      failed: { line: number }[];
+      dstChanges: string[];
+      beforeFirstPlacement: number;
+      sensorPage: string;
+    };
     expect(preview.rows.map((r) => r.line)).toEqual([2, 5, 6, 7]);
     expect(preview.failed.map((f) => f.line)).toEqual([4]);
     expect(preview.dstChanges).toEqual([
@@ -63,11 +81,20 @@ describe("the import page's action", () => {
 
   it("imports, counts the reading in no spot, and writes one audit row", async () => {
     const { owner, site, sensor, token } = await setup();
-    const { status, body } = answer(await post(site.id, token, CSV, { intent: "import", sensorId: String(sensor.id), dateFormat: "iso", timeZone: "Europe/Madrid" }));
+    const { status, body } = answer(
+      await post(site.id, token, CSV, {
+        intent: "import",
+        sensorId: String(sensor.id),
+        dateFormat: "iso",
+        timeZone: "Europe/Madrid",
+      }),
+    );
     expect(status).toBe(200);
     expect(body.imported).toMatchObject({ rows: 5, stored: 4, failed: 1, outsideSpots: 1 });
     const audit = await db().select().from(auditLog).where(eq(auditLog.siteId, site.id));
-    expect(audit).toMatchObject([{ action: "csv.import", actorId: owner.id, detail: { sensorId: sensor.id, rows: 5, stored: 4, outsideSpots: 1 } }]);
+    expect(audit).toMatchObject([
+      { action: "csv.import", actorId: owner.id, detail: { sensorId: sensor.id, rows: 5, stored: 4, outsideSpots: 1 } },
+    ]);
   });
 
   it("a second file with other values for the same times counts them as conflicts, not as already stored", async () => {
@@ -77,14 +104,20 @@ describe("the import page's action", () => {
     const again = answer(await post(site.id, token, CSV, form)).body.imported;
     expect(again).toMatchObject({ stored: 0, duplicates: 4, conflicts: 0 });
     const other = CSV.replace(",15\n", ",17\n").replace("02:30,13\n", "02:30,12\n");
-    expect(answer(await post(site.id, token, other, form)).body.imported).toMatchObject({ stored: 0, duplicates: 2, conflicts: 2 });
+    expect(answer(await post(site.id, token, other, form)).body.imported).toMatchObject({
+      stored: 0,
+      duplicates: 2,
+      conflicts: 2,
+    });
   });
 
   it("answers 429 while the same grower's other preview or import runs", async () => {
     const { owner, site, sensor, token } = await setup();
     const release = csvSlot(String(owner.id))!;
     try {
-      const { status, body } = answer(await post(site.id, token, CSV, { intent: "preview", sensorId: String(sensor.id) }));
+      const { status, body } = answer(
+        await post(site.id, token, CSV, { intent: "preview", sensorId: String(sensor.id) }),
+      );
       expect(status).toBe(429);
       expect(body.error).toMatch(/Another preview or import is running/);
     } finally {
@@ -94,18 +127,44 @@ describe("the import page's action", () => {
 
   it("answers a bad time zone, date format and column with errors on those fields, keeping what was chosen; 'none' leaves a column out (issue 18)", async () => {
     const { site, sensor, token } = await setup();
-    const fields = { intent: "preview", sensorId: String(sensor.id), dateFormat: "yyyy", timeZone: "Mars/Olympus_Mons", humidity: "second" };
+    const fields = {
+      intent: "preview",
+      sensorId: String(sensor.id),
+      dateFormat: "yyyy",
+      timeZone: "Mars/Olympus_Mons",
+      humidity: "second",
+    };
     const { status, body } = answer(await post(site.id, token, CSV, fields));
     expect(status).toBe(400);
     const reply = body.result as { error: Record<string, string[]>; initialValue: Record<string, unknown> };
-    expect(reply.error).toMatchObject({ dateFormat: ["Choose how the dates are written"], timeZone: ["Choose a time zone from the list."], humidity: ["Choose a column of the file"] });
-    expect(reply.initialValue).toMatchObject({ sensorId: String(sensor.id), dateFormat: "yyyy", timeZone: "Mars/Olympus_Mons", humidity: "second" });
+    expect(reply.error).toMatchObject({
+      dateFormat: ["Choose how the dates are written"],
+      timeZone: ["Choose a time zone from the list."],
+      humidity: ["Choose a column of the file"],
+    });
+    expect(reply.initialValue).toMatchObject({
+      sensorId: String(sensor.id),
+      dateFormat: "yyyy",
+      timeZone: "Mars/Olympus_Mons",
+      humidity: "second",
+    });
     expect(reply.initialValue).not.toHaveProperty("file"); // a File cannot go back to the page
     const noSensor = answer(await post(site.id, token, CSV, { intent: "preview", sensorId: "" }));
-    expect((noSensor.body.result as { error: Record<string, string[]> }).error.sensorId).toEqual(["Choose the sensor the readings came from."]);
+    expect((noSensor.body.result as { error: Record<string, string[]> }).error.sensorId).toEqual([
+      "Choose the sensor the readings came from.",
+    ]);
 
-    const good = answer(await post(site.id, token, CSV, { intent: "preview", sensorId: String(sensor.id), temperature: "none", timestamp: "0" }));
+    const good = answer(
+      await post(site.id, token, CSV, {
+        intent: "preview",
+        sensorId: String(sensor.id),
+        temperature: "none",
+        timestamp: "0",
+      }),
+    );
     expect(good.status).toBe(200);
-    expect((good.body.preview as { mapping: { temperature: number | null; timestamp: number } }).mapping).toMatchObject({ temperature: null, timestamp: 0 });
+    expect((good.body.preview as { mapping: { temperature: number | null; timestamp: number } }).mapping).toMatchObject(
+      { temperature: null, timestamp: 0 },
+    );
   });
 });

@@ -30,7 +30,10 @@ async function mappingFor(bytes: Uint8Array, timeZone: string): Promise<CsvMappi
 }
 
 async function storedTimes(sensorId: number) {
-  const { rows } = await pool().query<{ measured_at: Date }>("SELECT measured_at FROM readings WHERE sensor_id = $1 ORDER BY measured_at", [sensorId]);
+  const { rows } = await pool().query<{ measured_at: Date }>(
+    "SELECT measured_at FROM readings WHERE sensor_id = $1 ORDER BY measured_at",
+    [sensorId],
+  );
   return rows.map((r) => r.measured_at.getTime());
 }
 
@@ -38,7 +41,10 @@ async function storedTimes(sensorId: number) {
 function loggerFile(zone: string, fromUtc: number): { text: string; instants: number[] } {
   const clock = zoneClock(zone);
   const instants = Array.from({ length: 36 }, (_, k) => fromUtc + k * 10 * MIN);
-  const lines = instants.map((ms, k) => `${new Date(ms + clock.offsetAt(ms)).toISOString().slice(0, 16).replace("T", " ")},${(18 + (k % 5) / 10).toFixed(1)},60`);
+  const lines = instants.map(
+    (ms, k) =>
+      `${new Date(ms + clock.offsetAt(ms)).toISOString().slice(0, 16).replace("T", " ")},${(18 + (k % 5) / 10).toFixed(1)},60`,
+  );
   return { text: "Time,Temperature,Humidity\n" + lines.join("\n") + "\n", instants };
 }
 
@@ -62,7 +68,9 @@ describe("CSV import of naive local times across daylight saving", () => {
       expect(preview.dstChanges.map((c) => c.kind).sort()).toEqual(["repeated"]);
       const result = await importCsv(bytes, mapping, sensor.id);
       expect(result).toMatchObject({ rows: 72, valid: 72, stored: 72, duplicates: 0, outsideSpots: 0 });
-      expect(await storedTimes(sensor.id)).toEqual([...springFile.instants, ...autumnFile.instants].sort((a, b) => a - b));
+      expect(await storedTimes(sensor.id)).toEqual(
+        [...springFile.instants, ...autumnFile.instants].sort((a, b) => a - b),
+      );
     });
   }
 
@@ -70,9 +78,20 @@ describe("CSV import of naive local times across daylight saving", () => {
     const { sensor } = await setup("Europe/Madrid");
     const text =
       "time,temperature\n" +
-      ["2025-03-30 01:40", "2025-03-30 02:10", "2025-03-30 02:40", "2025-03-30 03:50"].map((t) => `${t},12`).join("\n") +
+      ["2025-03-30 01:40", "2025-03-30 02:10", "2025-03-30 02:40", "2025-03-30 03:50"]
+        .map((t) => `${t},12`)
+        .join("\n") +
       "\n" +
-      ["2025-10-26 01:30", "2025-10-26 02:00", "2025-10-26 02:30", "2025-10-26 02:00", "2025-10-26 02:30", "2025-10-26 03:00"].map((t) => `${t},14`).join("\n");
+      [
+        "2025-10-26 01:30",
+        "2025-10-26 02:00",
+        "2025-10-26 02:30",
+        "2025-10-26 02:00",
+        "2025-10-26 02:30",
+        "2025-10-26 03:00",
+      ]
+        .map((t) => `${t},14`)
+        .join("\n");
     const bytes = enc(text);
     const preview = await previewCsv(bytes, await mappingFor(bytes, "Europe/Madrid"), sensor.id);
     expect(preview.dstChanges).toMatchObject([
@@ -106,7 +125,10 @@ describe("CSV preview lines and placements", () => {
 
   it("warns of rows before the sensor's placement, counts them in the import's answer, and audits the import", async () => {
     const { user, site, sensor } = await setup("UTC", new Date("2025-06-01T00:00:00Z"));
-    const rows = Array.from({ length: 48 }, (_, k) => `${new Date(Date.UTC(2025, 4, 31) + k * 60 * MIN).toISOString()},20`);
+    const rows = Array.from(
+      { length: 48 },
+      (_, k) => `${new Date(Date.UTC(2025, 4, 31) + k * 60 * MIN).toISOString()},20`,
+    );
     const bytes = enc("time,temperature\n" + rows.join("\n"));
     const mapping = await mappingFor(bytes, "UTC");
     const preview = await previewCsv(bytes, mapping, sensor.id);
@@ -116,12 +138,20 @@ describe("CSV preview lines and placements", () => {
     expect(result).toMatchObject({ stored: 48, outsideSpots: 24 });
     await auditCsvImport({ siteId: site.id, actorId: user.id, sensorId: sensor.id, sensorName: sensor.name, result });
     const audit = await db().select().from(auditLog).where(eq(auditLog.siteId, site.id));
-    expect(audit).toMatchObject([{ action: "csv.import", actorId: user.id, detail: { sensorId: sensor.id, rows: 48, stored: 48, outsideSpots: 24 } }]);
+    expect(audit).toMatchObject([
+      {
+        action: "csv.import",
+        actorId: user.id,
+        detail: { sensorId: sensor.id, rows: 48, stored: 48, outsideSpots: 24 },
+      },
+    ]);
   });
 
   it("an import of a file that breaks off keeps the rows before the break and says where it stopped", async () => {
     const { sensor } = await setup("UTC");
-    const bytes = enc('time,temperature\n2025-06-02 10:00,21\n2025-06-02 10:10,22\n"2025-06-02 10:20,23\n2025-06-02 10:30,24\n');
+    const bytes = enc(
+      'time,temperature\n2025-06-02 10:00,21\n2025-06-02 10:10,22\n"2025-06-02 10:20,23\n2025-06-02 10:30,24\n',
+    );
     await expect(previewCsv(bytes, await mappingFor(bytes, "UTC"), sensor.id)).rejects.toThrow(/quote/i);
     const result = await importCsv(bytes, await mappingFor(bytes, "UTC"), sensor.id);
     expect(result).toMatchObject({ stored: 2, stopped: { line: 4 } });
@@ -153,14 +183,24 @@ describe("hourly rollups keep the share of readings near the dew point", () => {
     // 10 °C at 90 % RH has a dew point of about 8.4 °C (margin 1.6 °C, Magnus formula, Alduchov &
     // Eskridge 1996); at 70 % about 4.8 °C (margin 5.2 °C). Three of six readings are near condensation.
     const readings = [90, 90, 90, 70, 70, 70].map((rh, k) => ({
-      sensorId: sensor.id, measuredAt: new Date(hour + k * 10 * MIN), temperature: 10, humidity: rh, lux: null, battery: null,
+      sensorId: sensor.id,
+      measuredAt: new Date(hour + k * 10 * MIN),
+      temperature: 10,
+      humidity: rh,
+      lux: null,
+      battery: null,
     }));
     // The sixth arrives in two single-channel messages: counted once it has both.
     await w.write(readings.slice(0, 5));
     await w.write([{ ...readings[5], humidity: null, partial: true }]);
     await w.write([{ ...readings[5], temperature: null, partial: true }]);
     const read = async () =>
-      (await pool().query("SELECT dp_n, dp_under_n FROM hourly_rollups WHERE spot_id = $1 AND hour = $2", [spot.id, new Date(hour)])).rows[0];
+      (
+        await pool().query("SELECT dp_n, dp_under_n FROM hourly_rollups WHERE spot_id = $1 AND hour = $2", [
+          spot.id,
+          new Date(hour),
+        ])
+      ).rows[0];
     expect(await read()).toEqual({ dp_n: 6, dp_under_n: 3 });
     await rebuildRollups([spot.id]);
     expect(await read()).toEqual({ dp_n: 6, dp_under_n: 3 });

@@ -27,11 +27,19 @@ async function spotWithDays(sim: SimSpot, days: number, seed: number, name: stri
   return simulatedSpot(site, sim, { days, seed, name, now: NOW });
 }
 
-const call = async <T,>(loader: (a: never) => unknown, url: string, params: Record<string, string>) =>
-  (await loader({ request: new Request(`http://127.0.0.1${url}`, { headers: { Cookie: `nw_session=${token}` } }), params, context: {} } as Args as never)) as T;
+const call = async <T>(loader: (a: never) => unknown, url: string, params: Record<string, string>) =>
+  (await loader({
+    request: new Request(`http://127.0.0.1${url}`, { headers: { Cookie: `nw_session=${token}` } }),
+    params,
+    context: {},
+  } as Args as never)) as T;
 
 type SpotPage = { dayOne: DayOneView | null; fits: { key: string; verdict: string; confidence?: string }[] };
-const spotPage = (spotId: number) => call<SpotPage>(spotLoader as never, `/sites/${site.id}/spots/${spotId}`, { siteId: String(site.id), spotId: String(spotId) });
+const spotPage = (spotId: number) =>
+  call<SpotPage>(spotLoader as never, `/sites/${site.id}/spots/${spotId}`, {
+    siteId: String(site.id),
+    spotId: String(spotId),
+  });
 
 let weeks: { id: number };
 let days: { id: number };
@@ -44,7 +52,12 @@ beforeAll(async () => {
   token = generateSessionToken();
   await createSession(token, owner.id);
   await pool().query(`SELECT ensure_reading_partitions(date_trunc('month', now()) - interval '2 months', 4)`);
-  const job = new WeatherJob({ endpoints: { archiveUrl: `${fake.url}/v1/archive`, forecastUrl: `${fake.url}/v1/forecast` }, years: 3, perRound: 50, now: () => NOW.getTime() });
+  const job = new WeatherJob({
+    endpoints: { archiveUrl: `${fake.url}/v1/archive`, forecastUrl: `${fake.url}/v1/forecast` },
+    years: 3,
+    perRound: 50,
+    now: () => NOW.getTime(),
+  });
   await job.untilIdle();
   const sill: SimSpot = { kind: "windowsill", facing: "E", hasLight: false };
   weeks = await spotWithDays(sill, 25, 301, "East sill, 25 days");
@@ -112,7 +125,10 @@ describe("the day-one view of a new spot", () => {
 
   it("a past period chosen shows no day-one view", async () => {
     const lastMonth = new Date(Date.UTC(NOW.getUTCFullYear(), NOW.getUTCMonth() - 1, 15)).toISOString().slice(0, 7);
-    const page = await call<SpotPage>(spotLoader as never, `/sites/${site.id}/spots/${weeks.id}?period=${lastMonth}`, { siteId: String(site.id), spotId: String(weeks.id) });
+    const page = await call<SpotPage>(spotLoader as never, `/sites/${site.id}/spots/${weeks.id}?period=${lastMonth}`, {
+      siteId: String(site.id),
+      spotId: String(weeks.id),
+    });
     expect(page.dayOne).toBeNull();
   });
 });
@@ -122,14 +138,20 @@ describe("the plant page and the wishlist judge unmeasured months from projectio
   let key = "";
   beforeAll(async () => {
     const spot = await spotPage(weeks.id);
-    key = spot.fits.find((f) => f.confidence !== "measured" && f.verdict !== "not enough data yet" && f.verdict !== "struggles here")!.key;
+    key = spot.fits.find(
+      (f) => f.confidence !== "measured" && f.verdict !== "not enough data yet" && f.verdict !== "struggles here",
+    )!.key;
   });
 
   it("the plant page marks the spot with a model 'likely', with its basis; the three-day spot stays not judged", async () => {
-    const page = await call<{ spots: { id: number; verdict: string; likely: boolean; basisText: string | null }[] }>(plantLoader as never, `/sites/${site.id}/plants/${key}`, {
-      siteId: String(site.id),
-      plantKey: key,
-    });
+    const page = await call<{ spots: { id: number; verdict: string; likely: boolean; basisText: string | null }[] }>(
+      plantLoader as never,
+      `/sites/${site.id}/plants/${key}`,
+      {
+        siteId: String(site.id),
+        plantKey: key,
+      },
+    );
     const w = page.spots.find((s) => s.id === weeks.id)!;
     expect(w.verdict).not.toBe("not enough data yet");
     expect(w.likely).toBe(true);
@@ -143,7 +165,9 @@ describe("the plant page and the wishlist judge unmeasured months from projectio
 
   it("the wishlist's best spot carries 'likely' when its verdict rests on projected months", async () => {
     await saveWish(site.id, owner.id, { plantKey: key, mustHave: false, pots: 1 });
-    const page = await call<{ rows: { plantKey: string; best: { spot: string; verdict: string; likely: boolean } | null }[] }>(wishlistLoader as never, `/sites/${site.id}/wishlist`, {
+    const page = await call<{
+      rows: { plantKey: string; best: { spot: string; verdict: string; likely: boolean } | null }[];
+    }>(wishlistLoader as never, `/sites/${site.id}/wishlist`, {
       siteId: String(site.id),
     });
     const row = page.rows.find((r) => r.plantKey === key)!;

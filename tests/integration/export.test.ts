@@ -2,7 +2,14 @@
 // stored rows, row for row, and arrives in many chunks (never built whole in memory).
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { pool } from "~/.server/db";
-import { EXPORT_BATCH, exportProfile, exportReadings, HOURLY_COLUMNS, parsePeriod, RAW_COLUMNS } from "~/.server/exports";
+import {
+  EXPORT_BATCH,
+  exportProfile,
+  exportReadings,
+  HOURLY_COLUMNS,
+  parsePeriod,
+  RAW_COLUMNS,
+} from "~/.server/exports";
 import { ReadingWriter } from "~/.server/ingest/writer";
 import type { Site, Spot } from "~/db/schema.server";
 import { makeSensor, makeSite, makeSpot, makeUser, storedRollups } from "./helpers";
@@ -103,7 +110,14 @@ describe("a year of one-minute readings", () => {
     const { from, to } = period();
     let text = "";
     const decoder = new TextDecoder();
-    for await (const chunk of exportReadings({ site, spot, kind: "raw", format: "json", from, to }) as unknown as AsyncIterable<Uint8Array>) {
+    for await (const chunk of exportReadings({
+      site,
+      spot,
+      kind: "raw",
+      format: "json",
+      from,
+      to,
+    }) as unknown as AsyncIterable<Uint8Array>) {
       text += decoder.decode(chunk, { stream: true });
     }
     const doc = JSON.parse(text) as { meta: { spotId: number }; columns: string[]; rows: (string | number | null)[][] };
@@ -112,7 +126,12 @@ describe("a year of one-minute readings", () => {
     expect(doc.rows).toHaveLength(MINUTES);
     const bad = doc.rows.findIndex((r, i) => {
       const s = stored[i] as [Date, string | null, string | null, string | null, string | null];
-      return r[0] !== s[0].toISOString() || num(r[2] as string) !== num(s[1]) || num(r[3] as string) !== num(s[2]) || num(r[4] as string) !== num(s[3]);
+      return (
+        r[0] !== s[0].toISOString() ||
+        num(r[2] as string) !== num(s[1]) ||
+        num(r[3] as string) !== num(s[2]) ||
+        num(r[4] as string) !== num(s[3])
+      );
     });
     expect(bad).toBe(-1);
   });
@@ -124,7 +143,11 @@ describe("a year of one-minute readings", () => {
     expect(p.from.toISOString()).toBe("2025-06-30T23:00:00.000Z");
     const counter = { chunks: 0 };
     const got: string[] = [];
-    for await (const line of lines(exportReadings({ site, spot, kind: "raw", format: "csv", from: p.from, to: p.to }), counter)) got.push(line);
+    for await (const line of lines(
+      exportReadings({ site, spot, kind: "raw", format: "csv", from: p.from, to: p.to }),
+      counter,
+    ))
+      got.push(line);
     expect(got).toHaveLength(1 + 1440);
     expect(got[1].startsWith("2025-06-30T23:00:00.000Z,")).toBe(true);
     expect(got.at(-1)!.startsWith("2025-07-01T22:59:00.000Z,")).toBe(true);
@@ -152,7 +175,8 @@ describe("hourly and profile exports", () => {
     const to = new Date(start + 3 * 86_400_000);
     const counter = { chunks: 0 };
     const got: string[] = [];
-    for await (const line of lines(exportReadings({ site, spot, kind: "hourly", format: "csv", from, to }), counter)) got.push(line);
+    for await (const line of lines(exportReadings({ site, spot, kind: "hourly", format: "csv", from, to }), counter))
+      got.push(line);
     expect(got[0]).toBe(HOURLY_COLUMNS.join(","));
     const rollups = await storedRollups(spot.id);
     expect(got).toHaveLength(1 + rollups.length);
@@ -167,7 +191,14 @@ describe("hourly and profile exports", () => {
     });
 
     let text = "";
-    for await (const chunk of (await exportProfile({ site, spot, format: "json", from, to })) as unknown as AsyncIterable<Uint8Array>) text += new TextDecoder().decode(chunk);
+    for await (const chunk of (await exportProfile({
+      site,
+      spot,
+      format: "json",
+      from,
+      to,
+    })) as unknown as AsyncIterable<Uint8Array>)
+      text += new TextDecoder().decode(chunk);
     const profile = JSON.parse(text) as { months: { key: string; temperature: { lowest: number; highest: number } }[] };
     expect(profile.months.map((m) => m.key)).toEqual(["2025-03"]);
     expect(profile.months[0].temperature.lowest).toBeCloseTo(12, 5);

@@ -34,29 +34,56 @@ let carer: Awaited<ReturnType<typeof makeUser>>;
 let mentor: Awaited<ReturnType<typeof makeUser>>;
 let keenMentor: Awaited<ReturnType<typeof makeUser>>;
 
-const endpoints = (f: WeatherFake) => ({ archiveUrl: `${f.url}/v1/archive`, forecastUrl: `${f.url}/v1/forecast`, timeoutMs: 5000 });
+const endpoints = (f: WeatherFake) => ({
+  archiveUrl: `${f.url}/v1/archive`,
+  forecastUrl: `${f.url}/v1/forecast`,
+  timeoutMs: 5000,
+});
 
 /** The text/plain part of a sunk message, decoded (nodemailer writes quoted-printable or base64). */
 function plain(m: SunkMail): string {
   const part = m.raw.split(/\r?\n--/).find((p) => /Content-Type: text\/plain/i.test(p)) ?? m.raw;
   const [head, ...body] = part.split(/\r?\n\r?\n/);
   const text = body.join("\n\n");
-  if (/Content-Transfer-Encoding: base64/i.test(head)) return Buffer.from(text.replace(/\s+/g, ""), "base64").toString("utf8");
+  if (/Content-Transfer-Encoding: base64/i.test(head))
+    return Buffer.from(text.replace(/\s+/g, ""), "base64").toString("utf8");
   if (/Content-Transfer-Encoding: quoted-printable/i.test(head)) {
-    const bytes = text.replace(/=\r?\n/g, "").replace(/=([0-9A-F]{2})/gi, (_m, h: string) => String.fromCharCode(parseInt(h, 16)));
+    const bytes = text
+      .replace(/=\r?\n/g, "")
+      .replace(/=([0-9A-F]{2})/gi, (_m, h: string) => String.fromCharCode(parseInt(h, 16)));
     return Buffer.from(bytes, "latin1").toString("utf8");
   }
   return text;
 }
 
-async function spotWithDays(name: string, sim: SimSpot, indoor: boolean, seed: number, plantKey: string, at = NOW, where = site) {
+async function spotWithDays(
+  name: string,
+  sim: SimSpot,
+  indoor: boolean,
+  seed: number,
+  plantKey: string,
+  at = NOW,
+  where = site,
+) {
   const spot = await makeSpot(where, { indoor, name });
   await pool().query(`UPDATE spots SET facing = $2 WHERE id = $1`, [spot.id, sim.facing]);
   const from = new Date(at - 16 * DAY);
   const sensor = await makeSensor(site, spot, new Date(from.getTime() - DAY));
   const rows: Reading[] = [];
-  for (const r of generate(DEMO_SITE, sim, DEMO_SCENARIO, { from, to: new Date(at), intervalMs: 600_000, sensorSeed: seed })) {
-    rows.push({ sensorId: sensor.id, measuredAt: r.measuredAt, temperature: r.temperature, humidity: r.humidity, lux: null, battery: r.battery });
+  for (const r of generate(DEMO_SITE, sim, DEMO_SCENARIO, {
+    from,
+    to: new Date(at),
+    intervalMs: 600_000,
+    sensorSeed: seed,
+  })) {
+    rows.push({
+      sensorId: sensor.id,
+      measuredAt: r.measuredAt,
+      temperature: r.temperature,
+      humidity: r.humidity,
+      lux: null,
+      battery: r.battery,
+    });
   }
   await new ReadingWriter().write(rows);
   await pool().query(`INSERT INTO spot_plants (spot_id, plant_key) VALUES ($1, $2)`, [spot.id, plantKey]);
@@ -78,10 +105,26 @@ beforeAll(async () => {
   // A mentor who ticked cold-snap alerts on the site's Alerts page hears of forecast frost too.
   keenMentor = await makeUser();
   await addMember(site, keenMentor, "mentor");
-  await pool().query(`INSERT INTO alert_preferences (user_id, site_id, email, kinds) VALUES ($1, $2, true, $3)`, [keenMentor.id, site.id, ["cold", "silent"]]);
+  await pool().query(`INSERT INTO alert_preferences (user_id, site_id, email, kinds) VALUES ($1, $2, true, $3)`, [
+    keenMentor.id,
+    site.id,
+    ["cold", "silent"],
+  ]);
   await new WeatherJob({ endpoints: endpoints(frosty), years: 1, perRound: 50, now: () => NOW }).untilIdle();
-  bench = await spotWithDays("Bench by the wall", { kind: "outdoor", facing: "none", hasLight: false }, false, 101, "cymbidium");
-  study = await spotWithDays("Study, heated", { kind: "heated-room", facing: "S", hasLight: false }, true, 104, "phalaenopsis");
+  bench = await spotWithDays(
+    "Bench by the wall",
+    { kind: "outdoor", facing: "none", hasLight: false },
+    false,
+    101,
+    "cymbidium",
+  );
+  study = await spotWithDays(
+    "Study, heated",
+    { kind: "heated-room", facing: "S", hasLight: false },
+    true,
+    104,
+    "phalaenopsis",
+  );
 }, 120_000);
 afterAll(() => frosty?.close());
 
@@ -91,21 +134,33 @@ describe("forecast warnings", () => {
   it("warns owner and carer once, by e-mail and in the app, of a frost night 30 h ahead on a bench with a Cymbidium; a heated room gets none", async () => {
     // The e-mails go through the alerts' one outbox, the notifier the engine's events use.
     const posted: { source: string; to: string; subject: string }[] = [];
-    const notifier = new Notifier({ clock: fixedClock(NOW), onSent: (letter, to, mail) => posted.push({ source: letter.source, to: to.email, subject: mail.subject }) });
+    const notifier = new Notifier({
+      clock: fixedClock(NOW),
+      onSent: (letter, to, mail) => posted.push({ source: letter.source, to: to.email, subject: mail.subject }),
+    });
     const runner = new ForecastWarnings({ notifier });
     const result = await runner.run(site.id);
     expect(result.warned).toBe(1);
 
     const mails = mailsAbout(bench.name);
-    expect(posted.map((p) => ({ ...p, to: [p.to] }))).toEqual(mails.map((m) => ({ source: "forecast", to: m.to, subject: m.subject })));
+    expect(posted.map((p) => ({ ...p, to: [p.to] }))).toEqual(
+      mails.map((m) => ({ source: "forecast", to: m.to, subject: m.subject })),
+    );
     // Claimed on the row at the outbox clock's instant.
-    const claimed = await pool().query<{ notified_at: Date }>(`SELECT notified_at FROM forecast_warnings WHERE spot_id = $1`, [bench.id]);
+    const claimed = await pool().query<{ notified_at: Date }>(
+      `SELECT notified_at FROM forecast_warnings WHERE spot_id = $1`,
+      [bench.id],
+    );
     expect(claimed.rows[0].notified_at).toEqual(new Date(NOW));
     // Owner, carer and the mentor who opted in; not the mentor who left cold-snap alerts unticked (the default for mentors).
     expect(mails.map((m) => m.to[0]).sort()).toEqual([owner.email, carer.email, keenMentor.email].sort());
     const text = plain(mails[0]);
-    expect(mails[0].subject).toMatch(/^Cold night forecast for Bench by the wall: Wednesday night may reach -?\d+\.\d °C$/);
-    expect(text).toMatch(/Wednesday night \(16 Sep\): -?\d+\.\d °C expected on Bench by the wall; the Cymbidium's limit is 2\.0 °C — bring it in\./);
+    expect(mails[0].subject).toMatch(
+      /^Cold night forecast for Bench by the wall: Wednesday night may reach -?\d+\.\d °C$/,
+    );
+    expect(text).toMatch(
+      /Wednesday night \(16 Sep\): -?\d+\.\d °C expected on Bench by the wall; the Cymbidium's limit is 2\.0 °C — bring it in\./,
+    );
     expect(text).toContain(FORECAST_CAUTION);
     expect(text).toContain(`/sites/${site.id}/spots/${bench.id}`);
 
@@ -125,7 +180,9 @@ describe("forecast warnings", () => {
     expect(inApp[0].spotId).toBe(bench.id);
     // The site's alert banner (every site page) carries it.
     expect((await alertBanner(site.id, new Date(NOW))).forecast.map((f) => f.id)).toEqual([inApp[0].id]);
-    expect(forecastHeadline(inApp[0], "F")).toMatch(/^Wednesday night \(16 Sep\): -?\d+\.\d °F expected on Bench by the wall; the Cymbidium's limit is 35\.6 °F — bring it in\.$/);
+    expect(forecastHeadline(inApp[0], "F")).toMatch(
+      /^Wednesday night \(16 Sep\): -?\d+\.\d °F expected on Bench by the wall; the Cymbidium's limit is 35\.6 °F — bring it in\.$/,
+    );
 
     // The heated room with a Phalaenopsis (damage line 10 °C): September's readings show no heating
     // yet, so its model follows the weather loosely, and the frost outside stays far from 10 °C in it.
@@ -169,11 +226,22 @@ describe("forecast warnings", () => {
     // Tuesday 20 January 2026, 19:00 UTC; the front's night is Wednesday 21 January.
     const winter = Date.UTC(2026, 0, 20, 19, 0);
     await pool().query(`SELECT ensure_reading_partitions('2025-12-01'::timestamptz, 2)`);
-    const front = await startWeatherFake({ now: () => winter, coldFront: { start: new Date(Date.UTC(2026, 0, 21, 18)), dropC: 14, hours: 8 } });
+    const front = await startWeatherFake({
+      now: () => winter,
+      coldFront: { start: new Date(Date.UTC(2026, 0, 21, 18)), dropC: 14, hours: 8 },
+    });
     try {
       const home = await makeSite(owner, { latitude: DEMO_SITE.latitude + 0.01 });
       await new WeatherJob({ endpoints: endpoints(front), years: 1, perRound: 50, now: () => winter }).untilIdle();
-      const room = await spotWithDays("Winter study", { kind: "heated-room", facing: "S", hasLight: false }, true, 104, "phalaenopsis", winter, home);
+      const room = await spotWithDays(
+        "Winter study",
+        { kind: "heated-room", facing: "S", hasLight: false },
+        true,
+        104,
+        "phalaenopsis",
+        winter,
+        home,
+      );
       expect((await projectedProfile(room.id, { now: new Date(winter) }))?.model?.heatingFloor).toBe(true);
       const before = sunkMail().length;
       await new ForecastWarnings({ clock: fixedClock(winter) }).run(home.id);

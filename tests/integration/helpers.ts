@@ -26,7 +26,12 @@ export async function makeUser(opts: { password?: string; isAdmin?: boolean } = 
 export async function makeSite(owner: { id: number }, opts: { timeZone?: string; latitude?: number } = {}) {
   const [site] = await db()
     .insert(sites)
-    .values({ name: `Site ${uniq()}`, latitude: opts.latitude ?? 51.7, longitude: -2.2, timeZone: opts.timeZone ?? "Europe/London" })
+    .values({
+      name: `Site ${uniq()}`,
+      latitude: opts.latitude ?? 51.7,
+      longitude: -2.2,
+      timeZone: opts.timeZone ?? "Europe/London",
+    })
     .returning();
   await db().insert(memberships).values({ userId: owner.id, siteId: site.id, role: "owner" });
   return site;
@@ -44,20 +49,35 @@ export async function makeSpot(site: { id: number }, opts: { indoor?: boolean; n
   return spot;
 }
 
-export async function makeSensor(site: { id: number }, spot?: { id: number }, placedFrom = new Date("2020-01-01T00:00:00Z")) {
+export async function makeSensor(
+  site: { id: number },
+  spot?: { id: number },
+  placedFrom = new Date("2020-01-01T00:00:00Z"),
+) {
   const secret = newSensorSecret();
   const [sensor] = await db()
     .insert(sensors)
     .values({ siteId: site.id, name: `Sensor ${uniq()}`, secretHash: hashSensorSecret(secret) })
     .returning();
   // Made when it starts, as a placement made live is (not dated back).
-  if (spot) await db().insert(placements).values({ sensorId: sensor.id, spotId: spot.id, fromAt: placedFrom, createdAt: placedFrom });
+  if (spot)
+    await db()
+      .insert(placements)
+      .values({ sensorId: sensor.id, spotId: spot.id, fromAt: placedFrom, createdAt: placedFrom });
   return { ...sensor, secret };
 }
 
 /** Hourly aggregation straight from raw readings, independent of the writer's incremental upserts. */
 export async function freshRollups(spotId: number) {
-  const res = await db().execute<{ hour: string; n: number; tmin: number; tmax: number; tsum: number; hn: number; hsum: number }>(sql`
+  const res = await db().execute<{
+    hour: string;
+    n: number;
+    tmin: number;
+    tmax: number;
+    tsum: number;
+    hn: number;
+    hsum: number;
+  }>(sql`
     select r.measured_at - ((r.measured_at at time zone si.time_zone) - date_trunc('hour', r.measured_at at time zone si.time_zone)) as hour,
       count(r.temperature)::int as n, min(r.temperature + coalesce((s.calibration->>'temperature')::real, 0)) as tmin,
       max(r.temperature + coalesce((s.calibration->>'temperature')::real, 0)) as tmax,
@@ -70,7 +90,15 @@ export async function freshRollups(spotId: number) {
 }
 
 export async function storedRollups(spotId: number) {
-  const res = await db().execute<{ hour: string; n: number; tmin: number; tmax: number; tsum: number; hn: number; hsum: number }>(sql`
+  const res = await db().execute<{
+    hour: string;
+    n: number;
+    tmin: number;
+    tmax: number;
+    tsum: number;
+    hn: number;
+    hsum: number;
+  }>(sql`
     select hour, t_n as n, t_min as tmin, t_max as tmax, t_sum as tsum, h_n as hn, h_sum as hsum
     from hourly_rollups where spot_id = ${spotId} and (t_n > 0 or h_n > 0) order by hour`);
   return res.rows;
@@ -97,15 +125,31 @@ export function useMailSink() {
  * A spot of `site` whose sensor has `days` of the demo's simulated readings up to `now` (ten-minute
  * steps, the demo's weather), placed a day before the first; no sensor when `days` is 0.
  */
-export async function simulatedSpot(site: { id: number }, sim: SimSpot, opts: { days: number; seed: number; now: Date; indoor?: boolean; name?: string }) {
+export async function simulatedSpot(
+  site: { id: number },
+  sim: SimSpot,
+  opts: { days: number; seed: number; now: Date; indoor?: boolean; name?: string },
+) {
   const spot = await makeSpot(site, { indoor: opts.indoor ?? true, name: opts.name });
   await db().update(spots).set({ facing: sim.facing }).where(eq(spots.id, spot.id));
   if (opts.days === 0) return spot;
   const from = new Date(opts.now.getTime() - opts.days * 86_400_000);
   const sensor = await makeSensor(site, spot, new Date(from.getTime() - 86_400_000));
   const rows: Reading[] = [];
-  for (const r of generate(DEMO_SITE, sim, DEMO_SCENARIO, { from, to: opts.now, intervalMs: 600_000, sensorSeed: opts.seed })) {
-    rows.push({ sensorId: sensor.id, measuredAt: r.measuredAt, temperature: r.temperature, humidity: r.humidity, lux: null, battery: r.battery });
+  for (const r of generate(DEMO_SITE, sim, DEMO_SCENARIO, {
+    from,
+    to: opts.now,
+    intervalMs: 600_000,
+    sensorSeed: opts.seed,
+  })) {
+    rows.push({
+      sensorId: sensor.id,
+      measuredAt: r.measuredAt,
+      temperature: r.temperature,
+      humidity: r.humidity,
+      lux: null,
+      battery: r.battery,
+    });
   }
   await new ReadingWriter().write(rows);
   return spot;

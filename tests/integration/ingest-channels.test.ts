@@ -34,10 +34,23 @@ describe("per-channel topics", () => {
       await new Promise((r) => setTimeout(r, 1100));
     }
     await c.endAsync();
-    const rows = await pool().query("SELECT temperature, humidity FROM readings WHERE sensor_id = $1 ORDER BY measured_at", [sensor.id]);
+    const rows = await pool().query(
+      "SELECT temperature, humidity FROM readings WHERE sensor_id = $1 ORDER BY measured_at",
+      [sensor.id],
+    );
     // Rounds can straddle a second boundary; either way no value is lost and none is counted twice.
-    expect(rows.rows.map((r) => r.temperature).filter((t) => t != null).sort()).toEqual(expect.arrayContaining([20, 21, 22]));
-    expect(rows.rows.filter((r) => r.humidity != null).map((r) => r.humidity).sort()).toEqual([50, 51, 52]);
+    expect(
+      rows.rows
+        .map((r) => r.temperature)
+        .filter((t) => t != null)
+        .sort(),
+    ).toEqual(expect.arrayContaining([20, 21, 22]));
+    expect(
+      rows.rows
+        .filter((r) => r.humidity != null)
+        .map((r) => r.humidity)
+        .sort(),
+    ).toEqual([50, 51, 52]);
     const stored = await storedRollups(spot.id);
     const fresh = await freshRollups(spot.id);
     expect(stored.map((r) => [r.n, r.hn])).toEqual(fresh.map((r) => [r.n, r.hn]));

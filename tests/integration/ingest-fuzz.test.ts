@@ -30,13 +30,23 @@ const post = (sensor: { id: number; secret: string }, body: BodyInit, headers: R
   handleHttpIngest(
     new Request("http://127.0.0.1/api/ingest", {
       method: "POST",
-      headers: { Authorization: `Bearer ${sensor.id}.${sensor.secret}`, "Content-Type": "application/json", ...headers },
+      headers: {
+        Authorization: `Bearer ${sensor.id}.${sensor.secret}`,
+        "Content-Type": "application/json",
+        ...headers,
+      },
       body,
       duplex: "half",
     } as RequestInit),
   );
 
-type Answer = { error?: string; received?: number; accepted?: number; stored?: number; rejected?: { index: number; reason: string }[] };
+type Answer = {
+  error?: string;
+  received?: number;
+  accepted?: number;
+  stored?: number;
+  rejected?: { index: number; reason: string }[];
+};
 
 /** Posts, checks the answer's shape and that the rows written match what it reports. */
 async function ingest(sensor: { id: number; secret: string }, body: BodyInit, headers?: Record<string, string>) {
@@ -57,11 +67,18 @@ async function ingest(sensor: { id: number; secret: string }, body: BodyInit, he
 }
 
 const NOW = Date.now();
-const recentTime = fc.integer({ min: NOW - 30 * 86_400_000, max: NOW }).map((ms) => new Date(Math.floor(ms / 1000) * 1000).toISOString());
+const recentTime = fc
+  .integer({ min: NOW - 30 * 86_400_000, max: NOW })
+  .map((ms) => new Date(Math.floor(ms / 1000) * 1000).toISOString());
 const reading = fc.record(
   {
     time: fc.oneof(recentTime, fc.string({ maxLength: 30 }), fc.integer(), fc.constant(null)),
-    temperature: fc.oneof(fc.double({ min: -100, max: 100 }), fc.string({ maxLength: 8 }), fc.constant(null), fc.jsonValue({ maxDepth: 2 })),
+    temperature: fc.oneof(
+      fc.double({ min: -100, max: 100 }),
+      fc.string({ maxLength: 8 }),
+      fc.constant(null),
+      fc.jsonValue({ maxDepth: 2 }),
+    ),
     humidity: fc.oneof(fc.double({ min: -10, max: 110, noNaN: true }), fc.constant("NaN"), fc.constant(null)),
     lux: fc.oneof(fc.nat(300_000), fc.constant(-1)),
     unit: fc.constantFrom("C", "F", "K"),
@@ -70,65 +87,95 @@ const reading = fc.record(
 );
 
 describe("HTTP ingest under bad input", () => {
-  it("random batches and bodies: answered with reasons, rows written equal to what is reported", { timeout: 120_000 }, async () => {
-    const sensor = await sensorInSpot();
-    await fc.assert(
-      fc.asyncProperty(
-        fc.oneof(
-          fc.array(fc.oneof(reading, fc.jsonValue({ maxDepth: 2 })), { maxLength: 40 }).map((items) => JSON.stringify({ readings: items })),
-          fc.array(reading, { maxLength: 20 }).map((items) => JSON.stringify(items)),
-          reading.map((r) => JSON.stringify(r)),
-          fc.jsonValue().map((v) => JSON.stringify(v) ?? ""),
-          fc.string({ unit: "binary", maxLength: 200 }),
+  it(
+    "random batches and bodies: answered with reasons, rows written equal to what is reported",
+    { timeout: 120_000 },
+    async () => {
+      const sensor = await sensorInSpot();
+      await fc.assert(
+        fc.asyncProperty(
+          fc.oneof(
+            fc
+              .array(fc.oneof(reading, fc.jsonValue({ maxDepth: 2 })), { maxLength: 40 })
+              .map((items) => JSON.stringify({ readings: items })),
+            fc.array(reading, { maxLength: 20 }).map((items) => JSON.stringify(items)),
+            reading.map((r) => JSON.stringify(r)),
+            fc.jsonValue().map((v) => JSON.stringify(v) ?? ""),
+            fc.string({ unit: "binary", maxLength: 200 }),
+          ),
+          async (body) => {
+            await ingest(sensor, body);
+          },
         ),
-        async (body) => {
-          await ingest(sensor, body);
-        },
-      ),
-      { numRuns: 150 },
-    );
-  });
+        { numRuns: 150 },
+      );
+    },
+  );
 
-  it("hand-picked nasties: deep JSON, binary, BOM, huge numbers, 10 MB, too many readings", { timeout: 60_000 }, async () => {
-    const sensor = await sensorInSpot();
-    const at = new Date(Math.floor((NOW - 3_600_000) / 1000) * 1000).toISOString();
+  it(
+    "hand-picked nasties: deep JSON, binary, BOM, huge numbers, 10 MB, too many readings",
+    { timeout: 60_000 },
+    async () => {
+      const sensor = await sensorInSpot();
+      const at = new Date(Math.floor((NOW - 3_600_000) / 1000) * 1000).toISOString();
 
-    // Nested a million levels deep (4 MB): refused as a whole, not a crash (JSON.stringify of it would throw RangeError).
-    const depth = 500_000;
-    const deepItem = `{"readings":[${'{"a":'.repeat(depth)}1${"}".repeat(depth)}]}`;
-    let r = await ingest(sensor, deepItem);
-    expect(r.status).toBe(200);
-    expect(r.answer.rejected).toEqual([{ index: 0, reason: "no known field: send temperature, humidity, lux or battery" }]);
-    r = await ingest(sensor, `[${"[".repeat(depth)}${"]".repeat(depth)}]`);
-    expect(r.answer.rejected?.[0].reason).toBe("not a JSON object");
-    r = await ingest(sensor, `{"readings":[{"time":"${at}","temperature":{"v":${"[".repeat(100_000)}${"]".repeat(100_000)}}}]}`);
-    expect(r.answer.rejected?.[0].reason).toMatch(/temperature: not a number/);
+      // Nested a million levels deep (4 MB): refused as a whole, not a crash (JSON.stringify of it would throw RangeError).
+      const depth = 500_000;
+      const deepItem = `{"readings":[${'{"a":'.repeat(depth)}1${"}".repeat(depth)}]}`;
+      let r = await ingest(sensor, deepItem);
+      expect(r.status).toBe(200);
+      expect(r.answer.rejected).toEqual([
+        { index: 0, reason: "no known field: send temperature, humidity, lux or battery" },
+      ]);
+      r = await ingest(sensor, `[${"[".repeat(depth)}${"]".repeat(depth)}]`);
+      expect(r.answer.rejected?.[0].reason).toBe("not a JSON object");
+      r = await ingest(
+        sensor,
+        `{"readings":[{"time":"${at}","temperature":{"v":${"[".repeat(100_000)}${"]".repeat(100_000)}}}]}`,
+      );
+      expect(r.answer.rejected?.[0].reason).toMatch(/temperature: not a number/);
 
-    expect((await ingest(sensor, new Uint8Array([0xff, 0xfe, 0x00, 0x7b, 0x80]))).status).toBe(400);
-    expect((await ingest(sensor, "")).status).toBe(400);
-    expect((await ingest(sensor, "\uFEFF" + JSON.stringify({ time: at, temperature: 20 }))).answer.stored).toBe(1);
-    r = await ingest(sensor, `{"readings":[{"time":"${at}","temperature":1e309},{"time":"${at}","humidity":1e308},{"time":"${at}","temperature":"NaN"}]}`);
-    expect(r.answer.rejected!.map((x) => x.reason)).toEqual([
-      "temperature: not a number",
-      expect.stringMatching(/humidity: .* outside 0–100 %/),
-      "temperature: not a number",
-    ]);
-    // A batch mixing good and bad readings: the good ones are stored, each bad one named.
-    r = await ingest(sensor, JSON.stringify([{ time: at, temperature: "21" }, { time: "30/02/2026 10:00", temperature: 21 }, { time: "2026-02-30T10:00:00Z", temperature: 21 }]));
-    expect(r.answer.rejected!.map((x) => x.index)).toEqual([1, 2]);
+      expect((await ingest(sensor, new Uint8Array([0xff, 0xfe, 0x00, 0x7b, 0x80]))).status).toBe(400);
+      expect((await ingest(sensor, "")).status).toBe(400);
+      expect((await ingest(sensor, "\uFEFF" + JSON.stringify({ time: at, temperature: 20 }))).answer.stored).toBe(1);
+      r = await ingest(
+        sensor,
+        `{"readings":[{"time":"${at}","temperature":1e309},{"time":"${at}","humidity":1e308},{"time":"${at}","temperature":"NaN"}]}`,
+      );
+      expect(r.answer.rejected!.map((x) => x.reason)).toEqual([
+        "temperature: not a number",
+        expect.stringMatching(/humidity: .* outside 0–100 %/),
+        "temperature: not a number",
+      ]);
+      // A batch mixing good and bad readings: the good ones are stored, each bad one named.
+      r = await ingest(
+        sensor,
+        JSON.stringify([
+          { time: at, temperature: "21" },
+          { time: "30/02/2026 10:00", temperature: 21 },
+          { time: "2026-02-30T10:00:00Z", temperature: 21 },
+        ]),
+      );
+      expect(r.answer.rejected!.map((x) => x.index)).toEqual([1, 2]);
 
-    // 10 MB: over MAX_HTTP_BYTES, refused whole, with or without a Content-Length.
-    const big = JSON.stringify({ readings: Array.from({ length: 200_000 }, (_v, i) => ({ time: new Date(NOW - 86_400_000 + i * 1000).toISOString(), temperature: 20 })) });
-    expect(big.length).toBeGreaterThan(10 * 1024 * 1024);
-    expect((await ingest(sensor, big, { "Content-Length": String(big.length) })).status).toBe(413);
-    expect((await ingest(sensor, big)).status).toBe(413);
-    // More readings than MAX_HTTP_BATCH in under MAX_HTTP_BYTES: refused whole.
-    const many = JSON.stringify(Array.from({ length: MAX_HTTP_BATCH + 1 }, () => ({ temperature: 20 })));
-    expect(many.length).toBeLessThan(MAX_HTTP_BYTES);
-    r = await ingest(sensor, many);
-    expect(r.status).toBe(413);
-    expect(r.answer.error).toMatch(/At most 10000 readings/);
-  });
+      // 10 MB: over MAX_HTTP_BYTES, refused whole, with or without a Content-Length.
+      const big = JSON.stringify({
+        readings: Array.from({ length: 200_000 }, (_v, i) => ({
+          time: new Date(NOW - 86_400_000 + i * 1000).toISOString(),
+          temperature: 20,
+        })),
+      });
+      expect(big.length).toBeGreaterThan(10 * 1024 * 1024);
+      expect((await ingest(sensor, big, { "Content-Length": String(big.length) })).status).toBe(413);
+      expect((await ingest(sensor, big)).status).toBe(413);
+      // More readings than MAX_HTTP_BATCH in under MAX_HTTP_BYTES: refused whole.
+      const many = JSON.stringify(Array.from({ length: MAX_HTTP_BATCH + 1 }, () => ({ temperature: 20 })));
+      expect(many.length).toBeLessThan(MAX_HTTP_BYTES);
+      r = await ingest(sensor, many);
+      expect(r.status).toBe(413);
+      expect(r.answer.error).toMatch(/At most 10000 readings/);
+    },
+  );
 
   it("stops reading a body at the limit instead of buffering all of it", async () => {
     const sensor = await sensorInSpot();
@@ -137,7 +184,8 @@ describe("HTTP ingest under bad input", () => {
     const endless = new ReadableStream<Uint8Array>({
       pull(controller) {
         pulled += chunk.byteLength;
-        if (pulled > 50 * 1024 * 1024) controller.close(); // a bound, in case the limit is not applied
+        if (pulled > 50 * 1024 * 1024)
+          controller.close(); // a bound, in case the limit is not applied
         else controller.enqueue(chunk);
       },
     });
@@ -180,8 +228,23 @@ describe("CSV import under bad input", () => {
   const cell = fc.oneof(
     fc.string({ maxLength: 12 }),
     fc.double().map(String),
-    fc.constantFrom("NaN", "1e309", "-", "n/a", '"', '""', "21,5", "2026-02-30 10:00", "31/12/2025 23:59", "1781521200", "12/31/25 11:59 pm", "\u0000"),
-    fc.integer({ min: NOW - 60 * 86_400_000, max: NOW }).map((ms) => new Date(ms).toISOString().replace("T", " ").slice(0, 19)),
+    fc.constantFrom(
+      "NaN",
+      "1e309",
+      "-",
+      "n/a",
+      '"',
+      '""',
+      "21,5",
+      "2026-02-30 10:00",
+      "31/12/2025 23:59",
+      "1781521200",
+      "12/31/25 11:59 pm",
+      "\u0000",
+    ),
+    fc
+      .integer({ min: NOW - 60 * 86_400_000, max: NOW })
+      .map((ms) => new Date(ms).toISOString().replace("T", " ").slice(0, 19)),
   );
   const eol = fc.constantFrom("\n", "\r\n", "\r");
 
@@ -194,7 +257,10 @@ describe("CSV import under bad input", () => {
         fc.array(fc.tuple(fc.array(cell, { minLength: 1, maxLength: 5 }), eol), { maxLength: 30 }),
         fc.constantFrom(...DATE_FORMATS),
         async (bom, delim, lines, dateFormat) => {
-          const text = (bom ? "\uFEFF" : "") + "time,temperature,humidity\n" + lines.map(([cells, end]) => cells.join(delim) + end).join("");
+          const text =
+            (bom ? "\uFEFF" : "") +
+            "time,temperature,humidity\n" +
+            lines.map(([cells, end]) => cells.join(delim) + end).join("");
           await csv(sensor.id, enc(text), { dateFormat });
         },
       ),

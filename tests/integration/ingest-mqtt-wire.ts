@@ -22,7 +22,8 @@ const str = (s: string) => {
   return Buffer.concat([len, b]);
 };
 
-const packet = (firstByte: number, body: Buffer) => Buffer.concat([Buffer.from([firstByte]), remainingLength(body.length), body]);
+const packet = (firstByte: number, body: Buffer) =>
+  Buffer.concat([Buffer.from([firstByte]), remainingLength(body.length), body]);
 
 export function connectPacket(clientId: string, username: string, password: string) {
   // Protocol name "MQTT", level 4, flags: user name + password + clean session, keep-alive 60 s.

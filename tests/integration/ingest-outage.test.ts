@@ -76,7 +76,11 @@ it("loses nothing and stores nothing twice when PostgreSQL is killed mid-stream"
   // resending fails with "Connection closed" if the link drops again; the sensor's code then sends
   // it again, as any QoS 1 sender must when told a publish failed.
   const publishOne = (i: number) => {
-    const payload = JSON.stringify({ time: new Date(base + i * 1000).toISOString(), temperature: 15 + (i % 40) / 4, humidity: 50 + (i % 30) });
+    const payload = JSON.stringify({
+      time: new Date(base + i * 1000).toISOString(),
+      temperature: 15 + (i % 40) / 4,
+      humidity: 50 + (i % 30),
+    });
     client!.publish(`nichewise/sensors/${sensor.id}/reading`, payload, { qos: 1 }, (err) => {
       if (!err) return void acked.add(i);
       appRetries++;
@@ -133,60 +137,79 @@ it("loses nothing and stores nothing twice when PostgreSQL is killed mid-stream"
   const stored = await storedRollups(spot.id);
   expect(stored.reduce((s, r) => s + r.n, 0)).toBe(N);
   const fresh = await freshRollups(spot.id);
-  expect(stored.map((r) => [new Date(r.hour).toISOString(), r.n, r.hn])).toEqual(fresh.map((r) => [new Date(r.hour).toISOString(), r.n, r.hn]));
+  expect(stored.map((r) => [new Date(r.hour).toISOString(), r.n, r.hn])).toEqual(
+    fresh.map((r) => [new Date(r.hour).toISOString(), r.n, r.hn]),
+  );
   stored.forEach((s, i) => expect(Math.abs(s.tsum - fresh[i].tsum)).toBeLessThan(1e-3));
 
   // Ingest carries on normally afterwards.
-  await client.publishAsync(`nichewise/sensors/${sensor.id}/reading`, JSON.stringify({ time: new Date(base + N * 1000).toISOString(), temperature: 20 }), { qos: 1 });
-  const after = await pool().query<{ n: number }>("SELECT count(*)::int AS n FROM readings WHERE sensor_id = $1", [sensor.id]);
+  await client.publishAsync(
+    `nichewise/sensors/${sensor.id}/reading`,
+    JSON.stringify({ time: new Date(base + N * 1000).toISOString(), temperature: 20 }),
+    { qos: 1 },
+  );
+  const after = await pool().query<{ n: number }>("SELECT count(*)::int AS n FROM readings WHERE sensor_id = $1", [
+    sensor.id,
+  ]);
   expect(after.rows[0].n).toBe(N + 1);
 });
 
-it("keeps a sensor able to sign in through an outage longer than the broker's sensor cache", { timeout: 180_000 }, async () => {
-  const user = await makeUser();
-  const site = await makeSite(user);
-  const spot = await makeSpot(site);
-  const sensor = await makeSensor(site, spot);
-  const c = connect(`mqtt://127.0.0.1:${broker.port}`, {
-    protocolVersion: 4,
-    username: String(sensor.id),
-    password: sensor.secret,
-    clientId: `outage-long-${sensor.id}`,
-    reconnectPeriod: 500,
-    connectTimeout: 5000,
-  });
-  const refusals: number[] = [];
-  c.on("error", (e: Error & { code?: number }) => {
-    if (typeof e.code === "number") refusals.push(e.code);
-  });
-  try {
-    await new Promise<void>((resolve) => c.once("connect", () => resolve()));
-    const t0 = Math.floor((Date.now() - 600_000) / 1000) * 1000;
-    const topic = `nichewise/sensors/${sensor.id}/reading`;
-    await c.publishAsync(topic, JSON.stringify({ time: new Date(t0).toISOString(), temperature: 18 }), { qos: 1 });
-
-    const dataDir = inject("pgDataDir");
-    const pid = embeddedPid(dataDir)!;
-    process.kill(pid, "SIGKILL");
-    while (isAlive(pid)) await sleep(20);
-    // Past the broker's 10 s sensor cache, so a reconnect cannot be checked against the database.
-    await sleep(11_000);
-    let acked = false;
-    c.publish(topic, JSON.stringify({ time: new Date(t0 + 1000).toISOString(), temperature: 19 }), { qos: 1 }, (err) => {
-      if (!err) acked = true;
+it(
+  "keeps a sensor able to sign in through an outage longer than the broker's sensor cache",
+  { timeout: 180_000 },
+  async () => {
+    const user = await makeUser();
+    const site = await makeSite(user);
+    const spot = await makeSpot(site);
+    const sensor = await makeSensor(site, spot);
+    const c = connect(`mqtt://127.0.0.1:${broker.port}`, {
+      protocolVersion: 4,
+      username: String(sensor.id),
+      password: sensor.secret,
+      clientId: `outage-long-${sensor.id}`,
+      reconnectPeriod: 500,
+      connectTimeout: 5000,
     });
-    await sleep(3000);
-    expect(acked).toBe(false); // nothing is acknowledged while the database is away
-    await restartPostgres(dataDir, inject("pgPort"));
-    const until = Date.now() + 60_000;
-    while (!acked && Date.now() < until) await sleep(100);
-    // A refused CONNACK would have stopped MQTT.js from reconnecting at all (its default).
-    expect(refusals).toEqual([]);
-    expect(acked).toBe(true);
-    const res = await pool().query<{ n: number }>("SELECT count(*)::int AS n FROM readings WHERE sensor_id = $1", [sensor.id]);
-    expect(res.rows[0].n).toBe(2);
-    expect((await storedRollups(spot.id)).reduce((s, r) => s + r.n, 0)).toBe(2);
-  } finally {
-    await c.endAsync(true).catch(() => {});
-  }
-});
+    const refusals: number[] = [];
+    c.on("error", (e: Error & { code?: number }) => {
+      if (typeof e.code === "number") refusals.push(e.code);
+    });
+    try {
+      await new Promise<void>((resolve) => c.once("connect", () => resolve()));
+      const t0 = Math.floor((Date.now() - 600_000) / 1000) * 1000;
+      const topic = `nichewise/sensors/${sensor.id}/reading`;
+      await c.publishAsync(topic, JSON.stringify({ time: new Date(t0).toISOString(), temperature: 18 }), { qos: 1 });
+
+      const dataDir = inject("pgDataDir");
+      const pid = embeddedPid(dataDir)!;
+      process.kill(pid, "SIGKILL");
+      while (isAlive(pid)) await sleep(20);
+      // Past the broker's 10 s sensor cache, so a reconnect cannot be checked against the database.
+      await sleep(11_000);
+      let acked = false;
+      c.publish(
+        topic,
+        JSON.stringify({ time: new Date(t0 + 1000).toISOString(), temperature: 19 }),
+        { qos: 1 },
+        (err) => {
+          if (!err) acked = true;
+        },
+      );
+      await sleep(3000);
+      expect(acked).toBe(false); // nothing is acknowledged while the database is away
+      await restartPostgres(dataDir, inject("pgPort"));
+      const until = Date.now() + 60_000;
+      while (!acked && Date.now() < until) await sleep(100);
+      // A refused CONNACK would have stopped MQTT.js from reconnecting at all (its default).
+      expect(refusals).toEqual([]);
+      expect(acked).toBe(true);
+      const res = await pool().query<{ n: number }>("SELECT count(*)::int AS n FROM readings WHERE sensor_id = $1", [
+        sensor.id,
+      ]);
+      expect(res.rows[0].n).toBe(2);
+      expect((await storedRollups(spot.id)).reduce((s, r) => s + r.n, 0)).toBe(2);
+    } finally {
+      await c.endAsync(true).catch(() => {});
+    }
+  },
+);

@@ -30,7 +30,13 @@ async function setup(placedFrom?: Date, indoor = true) {
 }
 
 const post = (auth: string, body: unknown) =>
-  handleHttpIngest(new Request("http://x/api/ingest", { method: "POST", headers: { Authorization: auth, "Content-Type": "application/json" }, body: JSON.stringify(body) }));
+  handleHttpIngest(
+    new Request("http://x/api/ingest", {
+      method: "POST",
+      headers: { Authorization: auth, "Content-Type": "application/json" },
+      body: JSON.stringify(body),
+    }),
+  );
 
 type Answer = {
   received: number;
@@ -46,16 +52,34 @@ type Answer = {
 const answer = async (res: Response) => (await res.json()) as Answer;
 
 async function mqttClient(sensor: { id: number; secret: string }) {
-  const c = await connectAsync(`mqtt://127.0.0.1:${broker.port}`, { protocolVersion: 4, username: String(sensor.id), password: sensor.secret, clientId: `trust-${sensor.id}`, reconnectPeriod: 0, connectTimeout: 5000 });
+  const c = await connectAsync(`mqtt://127.0.0.1:${broker.port}`, {
+    protocolVersion: 4,
+    username: String(sensor.id),
+    password: sensor.secret,
+    clientId: `trust-${sensor.id}`,
+    reconnectPeriod: 0,
+    connectTimeout: 5000,
+  });
   clients.push(c);
   return c;
 }
 
 const rows = async (sensorId: number) =>
-  (await pool().query<{ measured_at: Date; temperature: number | null }>("SELECT measured_at, temperature FROM readings WHERE sensor_id = $1 ORDER BY measured_at", [sensorId])).rows;
+  (
+    await pool().query<{ measured_at: Date; temperature: number | null }>(
+      "SELECT measured_at, temperature FROM readings WHERE sensor_id = $1 ORDER BY measured_at",
+      [sensorId],
+    )
+  ).rows;
 const rejections = async (sensorId: number) =>
-  (await pool().query<{ reason: string; topic: string | null; payload: string }>("SELECT reason, topic, payload FROM rejected_messages WHERE sensor_id = $1 ORDER BY id", [sensorId])).rows;
-const rejectedCount = async (sensorId: number) => (await pool().query<{ n: number }>("SELECT rejected_count AS n FROM sensors WHERE id = $1", [sensorId])).rows[0].n;
+  (
+    await pool().query<{ reason: string; topic: string | null; payload: string }>(
+      "SELECT reason, topic, payload FROM rejected_messages WHERE sensor_id = $1 ORDER BY id",
+      [sensorId],
+    )
+  ).rows;
+const rejectedCount = async (sensorId: number) =>
+  (await pool().query<{ n: number }>("SELECT rejected_count AS n FROM sensors WHERE id = $1", [sensorId])).rows[0].n;
 
 async function until<T>(probe: () => Promise<T>, ok: (v: T) => boolean): Promise<T> {
   for (let i = 0; ; i++) {
@@ -75,7 +99,13 @@ describe("malformed sensor ids", () => {
       expect(res.status, id).toBe(401);
     }
     // The same over MQTT: CONNACK 4, bad user name or password (MQTT 3.1.1 §3.2.2.3), not 3 (server unavailable).
-    const code = await connectAsync(`mqtt://127.0.0.1:${broker.port}`, { protocolVersion: 4, username: "99999999999", password: "x", reconnectPeriod: 0, connectTimeout: 5000 }).then(
+    const code = await connectAsync(`mqtt://127.0.0.1:${broker.port}`, {
+      protocolVersion: 4,
+      username: "99999999999",
+      password: "x",
+      reconnectPeriod: 0,
+      connectTimeout: 5000,
+    }).then(
       (c) => (c.end(true), 0),
       (e: { code?: number }) => e.code,
     );
@@ -87,8 +117,20 @@ describe("recording rejections", () => {
   it("records every rejection of a call when one holds a NUL byte in its reason or topic, and the counts match the rows", async () => {
     const sensor = await setup();
     await recordRejections([
-      { sensorId: sensor.id, source: "mqtt", topic: `nichewise/sensors/${sensor.id}/reading`, reason: "fine", payload: "{}" },
-      { sensorId: sensor.id, source: "mqtt", topic: `nichewise/sensors/${sensor.id}/read\u0000ing`, reason: "topic not allowed for this sensor", payload: "" },
+      {
+        sensorId: sensor.id,
+        source: "mqtt",
+        topic: `nichewise/sensors/${sensor.id}/reading`,
+        reason: "fine",
+        payload: "{}",
+      },
+      {
+        sensorId: sensor.id,
+        source: "mqtt",
+        topic: `nichewise/sensors/${sensor.id}/read\u0000ing`,
+        reason: "topic not allowed for this sensor",
+        payload: "",
+      },
       { sensorId: sensor.id, source: "http", reason: `time: bad \u0000 value${"x".repeat(1000)}`, payload: "a\u0000b" },
     ]);
     const rec = await rejections(sensor.id);
@@ -106,10 +148,18 @@ describe("recording rejections", () => {
     await c.publishAsync(`nichewise/sensors/${sensor.id}/reading`, "not json", { qos: 1 });
     // Publishing outside its own topics closes the connection (and is recorded).
     c.publish(`nichewise/sensors/${sensor.id}/x\u0000y`, "20", { qos: 1 });
-    const rec = await until(() => rejections(sensor.id), (r) => r.length === 2);
+    const rec = await until(
+      () => rejections(sensor.id),
+      (r) => r.length === 2,
+    );
     expect(rec.map((r) => r.reason)).toEqual(["payload is not JSON", "topic not allowed for this sensor"]);
     expect(rec[1].topic).toBe(`nichewise/sensors/${sensor.id}/x\\0y`);
-    expect(await until(() => rejectedCount(sensor.id), (n) => n === 2)).toBe(2);
+    expect(
+      await until(
+        () => rejectedCount(sensor.id),
+        (n) => n === 2,
+      ),
+    ).toBe(2);
   });
 });
 
@@ -117,7 +167,9 @@ describe("faulty values", () => {
   it("refuses 5e-324 instead of storing 0 °C", async () => {
     const sensor = await setup();
     const at = minutesAgo(10).toISOString();
-    const out = await answer(await post(`Bearer ${sensor.id}.${sensor.secret}`, [{ time: at, temperature: 5e-324, humidity: 50 }]));
+    const out = await answer(
+      await post(`Bearer ${sensor.id}.${sensor.secret}`, [{ time: at, temperature: 5e-324, humidity: 50 }]),
+    );
     expect(out).toMatchObject({ accepted: 0, stored: 0 });
     expect(out.rejected[0].reason).toMatch(/^temperature: a subnormal number/);
     expect(await rows(sensor.id)).toEqual([]);
@@ -128,12 +180,28 @@ describe("faulty values", () => {
     const auth = `Bearer ${sensor.id}.${sensor.secret}`;
     const t = minutesAgo(30).toISOString();
     const t2 = minutesAgo(29).toISOString();
-    expect(await answer(await post(auth, [{ time: t, temperature: 20, humidity: 50 }]))).toMatchObject({ stored: 1, duplicates: 0, conflicts: 0 });
-    const again = await answer(await post(auth, [{ time: t, temperature: 20, humidity: 50 }, { time: t, temperature: 21.5, humidity: 50 }, { time: t2, temperature: 20.5 }]));
+    expect(await answer(await post(auth, [{ time: t, temperature: 20, humidity: 50 }]))).toMatchObject({
+      stored: 1,
+      duplicates: 0,
+      conflicts: 0,
+    });
+    const again = await answer(
+      await post(auth, [
+        { time: t, temperature: 20, humidity: 50 },
+        { time: t, temperature: 21.5, humidity: 50 },
+        { time: t2, temperature: 20.5 },
+      ]),
+    );
     expect(again).toMatchObject({ received: 3, stored: 1, duplicates: 1, conflicts: 1 });
     // Every reading received is accepted or rejected: the one that conflicts within the request was valid.
     expect(again.accepted + again.rejected.length).toBe(again.received);
-    expect(again.conflicting).toEqual([{ index: 1, time: t, reason: expect.stringMatching(/different reading for the same time earlier in this request/) }]);
+    expect(again.conflicting).toEqual([
+      {
+        index: 1,
+        time: t,
+        reason: expect.stringMatching(/different reading for the same time earlier in this request/),
+      },
+    ]);
     const third = await answer(await post(auth, [{ time: t, temperature: 19 }]));
     expect(third).toMatchObject({ stored: 0, duplicates: 0, conflicts: 1 });
     expect(third.conflicting).toEqual([{ index: 0, time: t, reason: expect.stringMatching(/already stored/) }]);
@@ -154,10 +222,21 @@ describe("faulty values", () => {
     await c.publishAsync(topic, JSON.stringify({ time: at(120), temperature: 18.3 }), { qos: 1 });
     await c.publishAsync(topic, JSON.stringify({ time: at(180), temperature: 64.4, unit: "F" }), { qos: 1 });
     expect((await rows(sensor.id)).map((r) => r.temperature)).toEqual([18, 18.3, 18]);
-    const rec = await until(() => rejections(sensor.id), (r) => r.length === 2);
+    const rec = await until(
+      () => rejections(sensor.id),
+      (r) => r.length === 2,
+    );
     // A jump is refused as it is read, a conflict once the write has seen the stored row: either may be recorded first.
-    expect(rec.map((r) => r.reason).sort()).toEqual([CONFLICT_REASON, expect.stringMatching(/^temperature: 18 → 64\.4 °C in 60 s is a jump no sensor makes/)]);
-    expect(await until(() => rejectedCount(sensor.id), (n) => n === 2)).toBe(2);
+    expect(rec.map((r) => r.reason).sort()).toEqual([
+      CONFLICT_REASON,
+      expect.stringMatching(/^temperature: 18 → 64\.4 °C in 60 s is a jump no sensor makes/),
+    ]);
+    expect(
+      await until(
+        () => rejectedCount(sensor.id),
+        (n) => n === 2,
+      ),
+    ).toBe(2);
   });
 });
 
@@ -170,7 +249,9 @@ describe("readings outside any placement", () => {
     const inside = [{ time: minutesAgo(5).toISOString(), temperature: 20 }];
     const out = await answer(await post(auth, [...before, ...inside]));
     expect(out).toMatchObject({ stored: 4, outsideSpot: 3 });
-    expect(out.message).toBe("3 readings were stored but fall outside any placement of this sensor: assign them on the sensor page");
+    expect(out.message).toBe(
+      "3 readings were stored but fall outside any placement of this sensor: assign them on the sensor page",
+    );
     const fine = await answer(await post(auth, [{ time: minutesAgo(4).toISOString(), temperature: 20 }]));
     expect(fine.outsideSpot).toBe(0);
     expect(fine.message).toBeUndefined();
@@ -181,7 +262,14 @@ describe("readings outside any placement", () => {
     const a = await setup(placedFrom);
     const b = await setup(placedFrom);
     const w = new ReadingWriter(undefined, 50, 2000, 1); // one queue, 50 ms: the three calls share a commit
-    const reading = (sensorId: number, m: number) => ({ sensorId, measuredAt: minutesAgo(m), temperature: 20, humidity: null, lux: null, battery: null });
+    const reading = (sensorId: number, m: number) => ({
+      sensorId,
+      measuredAt: minutesAgo(m),
+      temperature: 20,
+      humidity: null,
+      lux: null,
+      battery: null,
+    });
     const [ra, rb, rs] = await Promise.all([
       w.write([reading(a.id, 90), reading(a.id, 89), reading(a.id, 10)]),
       w.write([reading(b.id, 10)]),
@@ -196,7 +284,16 @@ describe("readings outside any placement", () => {
     const sensor = await setup();
     const w = new ReadingWriter();
     const at = minutesAgo(15);
-    const partial = (channel: "temperature" | "humidity", v: number) => ({ sensorId: sensor.id, measuredAt: at, temperature: null, humidity: null, lux: null, battery: null, [channel]: v, partial: true });
+    const partial = (channel: "temperature" | "humidity", v: number) => ({
+      sensorId: sensor.id,
+      measuredAt: at,
+      temperature: null,
+      humidity: null,
+      lux: null,
+      battery: null,
+      [channel]: v,
+      partial: true,
+    });
     expect((await w.store([partial("temperature", 20)])).conflicts).toBe(0);
     expect((await w.store([partial("humidity", 55)])).conflicts).toBe(0); // fills the row's empty column
     expect((await w.store([partial("temperature", 20)])).conflicts).toBe(0); // a resend

@@ -35,7 +35,6 @@ afterAll(async () => {
   await broker?.close();
 });
 
-
 async function setup(opts: { timeZone?: string; indoor?: boolean } = {}) {
   const user = await makeUser();
   const site = await makeSite(user, { timeZone: opts.timeZone });
@@ -61,10 +60,14 @@ async function mqttClient(sensor: { id: number; secret: string }, extra: IClient
 const topic = (sensor: { id: number }, channel = "reading") => `nichewise/sensors/${sensor.id}/${channel}`;
 
 async function readingsOf(sensorId: number) {
-  const res = await pool().query<{ measured_at: Date; temperature: number | null; humidity: number | null; lux: number | null }>(
-    "SELECT measured_at, temperature, humidity, lux FROM readings WHERE sensor_id = $1 ORDER BY measured_at",
-    [sensorId],
-  );
+  const res = await pool().query<{
+    measured_at: Date;
+    temperature: number | null;
+    humidity: number | null;
+    lux: number | null;
+  }>("SELECT measured_at, temperature, humidity, lux FROM readings WHERE sensor_id = $1 ORDER BY measured_at", [
+    sensorId,
+  ]);
   return res.rows;
 }
 
@@ -138,10 +141,17 @@ describe("MQTT ingest with MQTT.js", () => {
 
     // A client that never read its PUBACK resends with the same packet id and DUP set
     // (MQTT 3.1.1 §3.3.1.1, §4.4). The first copy is committed; the resend must not count twice.
-    const late = JSON.stringify({ time: new Date(base.getTime() + 30 * MIN).toISOString(), temperature: 21.25, humidity: 60 });
+    const late = JSON.stringify({
+      time: new Date(base.getTime() + 30 * MIN).toISOString(),
+      temperature: 21.25,
+      humidity: 60,
+    });
     const raw1 = await rawConnect(broker.port, `raw-${sensor.id}`, String(sensor.id), sensor.secret);
     raw1.send(publishPacket(topic(sensor), late, 7, false));
-    await waitFor(() => readingsOf(sensor.id), (r) => r.length === 21);
+    await waitFor(
+      () => readingsOf(sensor.id),
+      (r) => r.length === 21,
+    );
     raw1.destroy(); // the PUBACK, if it came, is never read
     const raw2 = await rawConnect(broker.port, `raw-${sensor.id}`, String(sensor.id), sensor.secret);
     raw2.send(publishPacket(topic(sensor), late, 7, true));
@@ -161,14 +171,33 @@ describe("MQTT ingest with an outside client (Debian's mosquitto_pub)", () => {
   it("stores a JSON reading and a plain number on a channel topic", async () => {
     const { spot, sensor } = await setup();
     const at = minutesAgo(10);
-    const args = ["-h", "127.0.0.1", "-p", String(broker.port), "-V", "mqttv311", "-q", "1", "-u", String(sensor.id), "-P", sensor.secret];
+    const args = [
+      "-h",
+      "127.0.0.1",
+      "-p",
+      String(broker.port),
+      "-V",
+      "mqttv311",
+      "-q",
+      "1",
+      "-u",
+      String(sensor.id),
+      "-P",
+      sensor.secret,
+    ];
     // mosquitto_pub with -q 1 waits for the PUBACK before it exits 0.
-    await run("/usr/bin/mosquitto_pub", [...args, "-t", topic(sensor), "-m", JSON.stringify({ time: at.toISOString(), temperature: 19.5, humidity: 61 })], { timeout: 15_000 });
+    await run(
+      "/usr/bin/mosquitto_pub",
+      [...args, "-t", topic(sensor), "-m", JSON.stringify({ time: at.toISOString(), temperature: 19.5, humidity: 61 })],
+      { timeout: 15_000 },
+    );
     let rows = await readingsOf(sensor.id);
     expect(rows.map((r) => [iso(r.measured_at), r.temperature, r.humidity])).toEqual([[at.toISOString(), 19.5, 61]]);
 
     const before = Date.now();
-    await run("/usr/bin/mosquitto_pub", [...args, "-t", topic(sensor, "temperature"), "-m", "21.5"], { timeout: 15_000 });
+    await run("/usr/bin/mosquitto_pub", [...args, "-t", topic(sensor, "temperature"), "-m", "21.5"], {
+      timeout: 15_000,
+    });
     rows = await readingsOf(sensor.id);
     expect(rows.length).toBe(2);
     const plain = rows[1];
@@ -198,9 +227,16 @@ describe("MQTT access control", () => {
     ];
     for (const [username, password] of attempts) {
       const err = await connectAsync(`mqtt://127.0.0.1:${broker.port}`, {
-        protocolVersion: 4, username, password, reconnectPeriod: 0, connectTimeout: 5000,
+        protocolVersion: 4,
+        username,
+        password,
+        reconnectPeriod: 0,
+        connectTimeout: 5000,
       }).then(
-        (c) => { clients.push(c); return null; },
+        (c) => {
+          clients.push(c);
+          return null;
+        },
         (e: Error & { code?: number }) => e,
       );
       expect(err, `${username} must be refused`).not.toBeNull();
@@ -221,8 +257,13 @@ describe("MQTT access control", () => {
     expect(acked).toBe(false);
     expect(await readingsOf(b.sensor.id)).toEqual([]);
     expect(await readingsOf(a.sensor.id)).toEqual([]);
-    const rej = await waitFor(() => rejectionsOf(a.sensor.id), (r) => r.length === 1);
-    expect(rej).toMatchObject([{ source: "mqtt", topic: topic(b.sensor), reason: "topic not allowed for this sensor" }]);
+    const rej = await waitFor(
+      () => rejectionsOf(a.sensor.id),
+      (r) => r.length === 1,
+    );
+    expect(rej).toMatchObject([
+      { source: "mqtt", topic: topic(b.sensor), reason: "topic not allowed for this sensor" },
+    ]);
     expect(sumN(await storedRollups(b.spot.id))).toBe(0);
   });
 
@@ -257,7 +298,17 @@ describe("MQTT access control", () => {
     expect(await readingsOf(a.sensor.id)).toMatchObject([{ measured_at: at, temperature: 21.5 }]);
     // A message the server publishes (no client) is delivered to the subscription as usual.
     await new Promise<void>((resolve, reject) =>
-      broker.broker.publish({ cmd: "publish", topic: `nichewise/sensors/${a.sensor.id}/note`, payload: Buffer.from("hello"), qos: 0, retain: false, dup: false }, (err) => (err ? reject(err) : resolve())),
+      broker.broker.publish(
+        {
+          cmd: "publish",
+          topic: `nichewise/sensors/${a.sensor.id}/note`,
+          payload: Buffer.from("hello"),
+          qos: 0,
+          retain: false,
+          dup: false,
+        },
+        (err) => (err ? reject(err) : resolve()),
+      ),
     );
     await new Promise((r) => setTimeout(r, 200));
     expect(received).toEqual([`nichewise/sensors/${a.sensor.id}/note`]);
@@ -287,22 +338,35 @@ describe("bad payloads", () => {
       // QoS 1 acked even when refused: a refused publish would be resent in a loop (common practice).
       await expect(c.publishAsync(topic(sensor), payload, { qos: 1 }), name).resolves.toBeDefined();
       // Rejections are recorded just after the ack; wait so that their order is the order sent.
-      await waitFor(() => rejectionsOf(sensor.id), (r) => r.length === i + 1);
+      await waitFor(
+        () => rejectionsOf(sensor.id),
+        (r) => r.length === i + 1,
+      );
     }
     expect(c.connected).toBe(true);
     const good = minutesAgo(5);
-    await c.publishAsync(topic(sensor), JSON.stringify({ time: good.toISOString(), temperature: 22.5, humidity: 58 }), { qos: 1 });
+    await c.publishAsync(topic(sensor), JSON.stringify({ time: good.toISOString(), temperature: 22.5, humidity: 58 }), {
+      qos: 1,
+    });
 
     const rows = await readingsOf(sensor.id);
     expect(rows.map((r) => [iso(r.measured_at), r.temperature])).toEqual([[good.toISOString(), 22.5]]);
-    const rej = await waitFor(() => rejectionsOf(sensor.id), (r) => r.length === cases.length);
+    const rej = await waitFor(
+      () => rejectionsOf(sensor.id),
+      (r) => r.length === cases.length,
+    );
     expect(rej.length).toBe(cases.length);
     cases.forEach(([name, , reason], i) => {
       expect(rej[i].reason, name).toMatch(reason);
       expect(rej[i].source).toBe("mqtt");
       expect(rej[i].topic).toBe(topic(sensor));
     });
-    expect(await waitFor(() => rejectedCount(sensor.id), (n) => n === cases.length)).toBe(cases.length);
+    expect(
+      await waitFor(
+        () => rejectedCount(sensor.id),
+        (n) => n === cases.length,
+      ),
+    ).toBe(cases.length);
     // Refused messages leave the rollups alone: one hour, one reading.
     const stored = await storedRollups(spot.id);
     expect(stored.map((r) => [r.n, r.tmin, r.tmax])).toEqual([[1, 22.5, 22.5]]);
@@ -315,13 +379,16 @@ describe("out-of-order and late readings", () => {
   async function sendAndCheck(timeZone: string, cases: Case[]) {
     const { spot, sensor } = await setup({ timeZone });
     const c = await mqttClient(sensor);
-    for (const k of cases) await c.publishAsync(topic(sensor), JSON.stringify({ time: k.time, temperature: k.temperature }), { qos: 1 });
+    for (const k of cases)
+      await c.publishAsync(topic(sensor), JSON.stringify({ time: k.time, temperature: k.temperature }), { qos: 1 });
     expect((await readingsOf(sensor.id)).length).toBe(cases.length);
     const expected = new Map<string, number[]>();
     for (const k of cases) expected.set(k.hour, [...(expected.get(k.hour) ?? []), k.temperature]);
     const stored = await storedRollups(spot.id);
     expect(stored.map((r) => [iso(r.hour), r.n, r.tmin, r.tmax])).toEqual(
-      [...expected.entries()].sort(([a], [b]) => a.localeCompare(b)).map(([h, ts]) => [h, ts.length, Math.min(...ts), Math.max(...ts)]),
+      [...expected.entries()]
+        .sort(([a], [b]) => a.localeCompare(b))
+        .map(([h, ts]) => [h, ts.length, Math.min(...ts), Math.max(...ts)]),
     );
     return { spot, sensor };
   }
@@ -370,7 +437,13 @@ describe("out-of-order and late readings", () => {
 
 describe("HTTP ingest", () => {
   const post = (auth: string, body: string) =>
-    handleHttpIngest(new Request("http://x/api/ingest", { method: "POST", headers: { Authorization: auth, "Content-Type": "application/json" }, body }));
+    handleHttpIngest(
+      new Request("http://x/api/ingest", {
+        method: "POST",
+        headers: { Authorization: auth, "Content-Type": "application/json" },
+        body,
+      }),
+    );
 
   it("takes 10,000 readings in one POST, names each refused one, and stores nothing new on a resend", async () => {
     const { spot, sensor } = await setup();
@@ -384,16 +457,33 @@ describe("HTTP ingest", () => {
       [9998, [[1, 2], /not a JSON object/]],
       [9999, [{ colour: "green" }, /no known field/]],
     ]);
-    const items = Array.from({ length: 10_000 }, (_, i) =>
-      bad.get(i)?.[0] ?? { time: new Date(base.getTime() + i * MIN).toISOString(), temperature: 15 + (i % 100) / 10, humidity: 40 + (i % 50) },
+    const items = Array.from(
+      { length: 10_000 },
+      (_, i) =>
+        bad.get(i)?.[0] ?? {
+          time: new Date(base.getTime() + i * MIN).toISOString(),
+          temperature: 15 + (i % 100) / 10,
+          humidity: 40 + (i % 50),
+        },
     );
     const body = JSON.stringify({ readings: items });
     const started = performance.now();
     const res = await post(auth, body);
     const ms = performance.now() - started;
     expect(res.status).toBe(200);
-    const out = (await res.json()) as { received: number; accepted: number; stored: number; duplicates: number; rejected: { index: number; reason: string }[] };
-    expect(out).toMatchObject({ received: 10_000, accepted: 10_000 - bad.size, stored: 10_000 - bad.size, duplicates: 0 });
+    const out = (await res.json()) as {
+      received: number;
+      accepted: number;
+      stored: number;
+      duplicates: number;
+      rejected: { index: number; reason: string }[];
+    };
+    expect(out).toMatchObject({
+      received: 10_000,
+      accepted: 10_000 - bad.size,
+      stored: 10_000 - bad.size,
+      duplicates: 0,
+    });
     expect(out.rejected.map((r) => r.index)).toEqual([...bad.keys()]);
     for (const r of out.rejected) expect(r.reason, `item ${r.index}`).toMatch(bad.get(r.index)![1]);
     console.log(`[ingest] 10,000-reading HTTP batch committed in ${ms.toFixed(0)} ms`);
@@ -404,7 +494,12 @@ describe("HTTP ingest", () => {
     const stored = await storedRollups(spot.id);
     expect(sumN(stored)).toBe(10_000 - bad.size);
     expectRollupsMatch(stored, await freshRollups(spot.id));
-    expect(await waitFor(() => rejectedCount(sensor.id), (n) => n === 2 * bad.size)).toBe(2 * bad.size);
+    expect(
+      await waitFor(
+        () => rejectedCount(sensor.id),
+        (n) => n === 2 * bad.size,
+      ),
+    ).toBe(2 * bad.size);
   });
 
   it("answers 401 to a wrong token and 413 to a body or batch over the limit", async () => {
@@ -434,8 +529,12 @@ describe("moving a sensor", () => {
     const w = new ReadingWriter();
     const start = new Date(Math.floor(minutesAgo(4 * 24 * 60).getTime() / HOUR) * HOUR);
     const series: Reading[] = Array.from({ length: 48 * 6 }, (_, i) => ({
-      sensorId: sensor.id, measuredAt: new Date(start.getTime() + i * 10 * MIN),
-      temperature: 12 + (i % 30) / 3, humidity: 50 + (i % 20), lux: null, battery: 90,
+      sensorId: sensor.id,
+      measuredAt: new Date(start.getTime() + i * 10 * MIN),
+      temperature: 12 + (i % 30) / 3,
+      humidity: 50 + (i % 20),
+      lux: null,
+      battery: 90,
     }));
     await w.write(series);
     const moveAt = new Date(start.getTime() + 24 * HOUR + 25 * MIN); // mid-hour, so one hour is split
@@ -447,8 +546,22 @@ describe("moving a sensor", () => {
 
     // Late readings after the move belong to the spot the sensor was in at their own time.
     await w.write([
-      { sensorId: sensor.id, measuredAt: new Date(moveAt.getTime() - 7 * MIN), temperature: 30, humidity: 70, lux: null, battery: 90 },
-      { sensorId: sensor.id, measuredAt: new Date(moveAt.getTime() + 3 * MIN), temperature: 5, humidity: 90, lux: null, battery: 90 },
+      {
+        sensorId: sensor.id,
+        measuredAt: new Date(moveAt.getTime() - 7 * MIN),
+        temperature: 30,
+        humidity: 70,
+        lux: null,
+        battery: 90,
+      },
+      {
+        sensorId: sensor.id,
+        measuredAt: new Date(moveAt.getTime() + 3 * MIN),
+        temperature: 5,
+        humidity: 90,
+        lux: null,
+        battery: 90,
+      },
     ]);
     const splitHour = new Date(start.getTime() + 24 * HOUR).toISOString();
     const sa = await storedRollups(a.id);
@@ -466,7 +579,14 @@ describe("one group commit shared by several callers", () => {
   it("tells each write() how many of its own readings were new, also beside store() callers that skip the count", async () => {
     const { spot, sensor } = await setup();
     const w = new ReadingWriter(undefined, 50); // a 50 ms window, so all five calls share one commit
-    const at = (k: number) => ({ sensorId: sensor.id, measuredAt: minutesAgo(300 - k), temperature: 20, humidity: 50, lux: null, battery: null });
+    const at = (k: number) => ({
+      sensorId: sensor.id,
+      measuredAt: minutesAgo(300 - k),
+      temperature: 20,
+      humidity: 50,
+      lux: null,
+      battery: null,
+    });
     await w.write([at(0), at(1)]);
     const batches = w.stats.batches;
     const [a, , b, , c] = await Promise.all([
@@ -501,8 +621,12 @@ describe("a large batch of one sensor, written as two halves at once", () => {
       w.onBatch((rows) => void batches.push(rows));
       const start = Date.UTC(2025, 9, 22, 12, 17);
       const readings: Reading[] = Array.from({ length: 10_000 }, (_, k) => ({
-        sensorId: sensor.id, measuredAt: new Date(start + k * MIN), temperature: 10 + (k % 50) / 10, humidity: 60 + (k % 20),
-        lux: null, battery: k < 3000 ? 80 - Math.floor(k / 1000) : null, // battery only in the earlier half
+        sensorId: sensor.id,
+        measuredAt: new Date(start + k * MIN),
+        temperature: 10 + (k % 50) / 10,
+        humidity: 60 + (k % 20),
+        lux: null,
+        battery: k < 3000 ? 80 - Math.floor(k / 1000) : null, // battery only in the earlier half
       }));
       // Resent readings from around the middle, at the end: the batch arrives out of order.
       const res = await w.write([...readings, ...readings.slice(4990, 5010)]);
@@ -525,8 +649,20 @@ describe("a large batch of one sensor, written as two halves at once", () => {
       // Single-channel readings (plain-number topics) take the merging statement: humidity sent on
       // its own for the same instants fills the rows' humidity once.
       const later = start + 20_000 * MIN;
-      const temps: Reading[] = readings.map((r, k) => ({ ...r, measuredAt: new Date(later + k * MIN), humidity: null, battery: null, partial: true }));
-      const hums: Reading[] = readings.map((r, k) => ({ ...r, measuredAt: new Date(later + k * MIN), temperature: null, battery: null, partial: true }));
+      const temps: Reading[] = readings.map((r, k) => ({
+        ...r,
+        measuredAt: new Date(later + k * MIN),
+        humidity: null,
+        battery: null,
+        partial: true,
+      }));
+      const hums: Reading[] = readings.map((r, k) => ({
+        ...r,
+        measuredAt: new Date(later + k * MIN),
+        temperature: null,
+        battery: null,
+        partial: true,
+      }));
       expect((await w.write(temps)).inserted).toBe(10_000);
       await w.write(hums);
       await w.write(hums);
@@ -544,11 +680,22 @@ describe("rollups against an independent aggregation", () => {
     const site = await makeSite(user, { timeZone });
     const spot = await makeSpot(site, { name: "Kitchen sill" });
     const sensor = await makeSensor(site, spot);
-    const sim = [...generate({ ...DEMO_SITE, timeZone }, { kind: "windowsill", facing: "E", hasLight: true }, DEMO_SCENARIO, {
-      from, to, intervalMs: 5 * MIN, sensorSeed: 102, artifacts: true,
-    })];
+    const sim = [
+      ...generate({ ...DEMO_SITE, timeZone }, { kind: "windowsill", facing: "E", hasLight: true }, DEMO_SCENARIO, {
+        from,
+        to,
+        intervalMs: 5 * MIN,
+        sensorSeed: 102,
+        artifacts: true,
+      }),
+    ];
     const readings: Reading[] = sim.map((r) => ({
-      sensorId: sensor.id, measuredAt: r.measuredAt, temperature: r.temperature, humidity: r.humidity, lux: r.lux ?? null, battery: r.battery,
+      sensorId: sensor.id,
+      measuredAt: r.measuredAt,
+      temperature: r.temperature,
+      humidity: r.humidity,
+      lux: r.lux ?? null,
+      battery: r.battery,
     }));
     const distinct = new Set(readings.map((r) => r.measuredAt.getTime())).size;
     // Artifacts: the simulator sends some readings twice and swaps neighbours, as a radio link does.
@@ -567,7 +714,11 @@ describe("rollups against an independent aggregation", () => {
   }
 
   it("June of the demo site: stored rollups equal freshRollups", async () => {
-    const { spot, distinct } = await writeSimulatedMonth(new Date("2025-06-01T00:00:00Z"), new Date("2025-07-01T00:00:00Z"), "Europe/London");
+    const { spot, distinct } = await writeSimulatedMonth(
+      new Date("2025-06-01T00:00:00Z"),
+      new Date("2025-07-01T00:00:00Z"),
+      "Europe/London",
+    );
     const stored = await storedRollups(spot.id);
     expect(sumN(stored)).toBe(distinct);
     expectRollupsMatch(stored, await freshRollups(spot.id));
@@ -575,7 +726,11 @@ describe("rollups against an independent aggregation", () => {
 
   it("a month across the autumn clock change: stored rollups equal an aggregation done in JavaScript with Intl", async () => {
     const timeZone = "Europe/London";
-    const { spot, sim, distinct } = await writeSimulatedMonth(new Date("2025-10-12T00:00:00Z"), new Date("2025-11-11T00:00:00Z"), timeZone);
+    const { spot, sim, distinct } = await writeSimulatedMonth(
+      new Date("2025-10-12T00:00:00Z"),
+      new Date("2025-11-11T00:00:00Z"),
+      timeZone,
+    );
     // Local minute and second from ICU's copy of the IANA tz database; the local hour began that long before.
     const fmt = new Intl.DateTimeFormat("en-GB", { timeZone, minute: "2-digit", second: "2-digit" });
     const hourStart = (d: Date) => {
@@ -590,7 +745,13 @@ describe("rollups against an independent aggregation", () => {
       const t = Math.fround(r.temperature); // stored as real (float4)
       const k = hourStart(r.measuredAt);
       const a = agg.get(k) ?? { n: 0, tmin: Infinity, tmax: -Infinity, tsum: 0, hsum: 0 };
-      agg.set(k, { n: a.n + 1, tmin: Math.min(a.tmin, t), tmax: Math.max(a.tmax, t), tsum: a.tsum + t, hsum: a.hsum + Math.fround(r.humidity) });
+      agg.set(k, {
+        n: a.n + 1,
+        tmin: Math.min(a.tmin, t),
+        tmax: Math.max(a.tmax, t),
+        tsum: a.tsum + t,
+        hsum: a.hsum + Math.fround(r.humidity),
+      });
     }
     const expected = [...agg.entries()].sort(([x], [y]) => x - y);
     // The hour clocks go back is two local hours 01:00 (BST, then GMT): two rollup rows, one UTC hour apart.
@@ -662,8 +823,20 @@ describe("CSV import", () => {
     // 25,000 data rows (file lines 2–25,001). Rows 10,000 and 10,001 straddle the first batch's
     // edge (file lines 10,001 and 10,002); row 24,999 is the file's last line.
     const bad = new Set([0, 9_999, 10_000, 20_500, 24_999]);
-    const rows = Array.from({ length: 25_000 }, (_, k) => [bad.has(k) ? "not a time" : new Date(start + k * 60_000).toISOString(), "21.5", "55"]);
-    const mapping = { timestamp: 0, temperature: 1, humidity: 2, lux: null, unit: "C" as const, dateFormat: "iso" as const, timeZone: "UTC" };
+    const rows = Array.from({ length: 25_000 }, (_, k) => [
+      bad.has(k) ? "not a time" : new Date(start + k * 60_000).toISOString(),
+      "21.5",
+      "55",
+    ]);
+    const mapping = {
+      timestamp: 0,
+      temperature: 1,
+      humidity: 2,
+      lux: null,
+      unit: "C" as const,
+      dateFormat: "iso" as const,
+      timeZone: "UTC",
+    };
     const first = await importCsv(rows, mapping, sensor.id);
     expect(first).toMatchObject({ rows: 25_000, valid: 24_995, stored: 24_995, duplicates: 0, failed: 5 });
     expect(first.firstFailures.map((f) => f.line)).toEqual([2, 10_001, 10_002, 20_502, 25_001]);
@@ -677,7 +850,15 @@ describe("CSV import", () => {
     const { spot, sensor } = await setup();
     const start = Date.UTC(2025, 4, 1);
     const rows = Array.from({ length: 25_000 }, (_, k) => [new Date(start + k * 60_000).toISOString(), "20.5", "60"]);
-    const mapping = { timestamp: 0, temperature: 1, humidity: 2, lux: null, unit: "C" as const, dateFormat: "iso" as const, timeZone: "UTC" };
+    const mapping = {
+      timestamp: 0,
+      temperature: 1,
+      humidity: 2,
+      lux: null,
+      unit: "C" as const,
+      dateFormat: "iso" as const,
+      timeZone: "UTC",
+    };
     // A real refusal from PostgreSQL, for this sensor's rows of the second batch (rows 10,000–19,999) only.
     const cut = new Date(start + 12_000 * 60_000).toISOString();
     await pool().query(`CREATE FUNCTION refuse_csv_test_${sensor.id}() RETURNS trigger LANGUAGE plpgsql AS $$
@@ -685,7 +866,9 @@ describe("CSV import", () => {
         IF NEW.sensor_id = ${sensor.id} AND NEW.measured_at >= '${cut}' THEN RAISE EXCEPTION 'disk full (test)'; END IF;
         RETURN NEW;
       END $$`);
-    await pool().query(`CREATE TRIGGER refuse_csv_test_${sensor.id} BEFORE INSERT ON readings FOR EACH ROW EXECUTE FUNCTION refuse_csv_test_${sensor.id}()`);
+    await pool().query(
+      `CREATE TRIGGER refuse_csv_test_${sensor.id} BEFORE INSERT ON readings FOR EACH ROW EXECUTE FUNCTION refuse_csv_test_${sensor.id}()`,
+    );
     let first;
     try {
       first = await importCsv(rows, mapping, sensor.id);

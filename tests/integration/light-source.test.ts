@@ -22,25 +22,47 @@ describe("light source and glazing per spot", () => {
     const site = await makeSite(owner);
     const plain = await createSpot({ siteId: site.id, actorId: owner.id, values: base });
     expect(plain).toMatchObject({ lightSource: "sun", glazing: null });
-    const sill = await createSpot({ siteId: site.id, actorId: owner.id, values: { ...base, name: "Sill", lightSource: "mixed", glazing: "old_double" } });
+    const sill = await createSpot({
+      siteId: site.id,
+      actorId: owner.id,
+      values: { ...base, name: "Sill", lightSource: "mixed", glazing: "old_double" },
+    });
     expect(sill).toMatchObject({ lightSource: "mixed", glazing: "old_double" });
 
-    const { changes } = await updateSpot({ siteId: site.id, actorId: owner.id, spot: sill, values: { ...base, name: "Sill", lightSource: "led", glazing: "triple" } });
+    const { changes } = await updateSpot({
+      siteId: site.id,
+      actorId: owner.id,
+      spot: sill,
+      values: { ...base, name: "Sill", lightSource: "led", glazing: "triple" },
+    });
     expect(changes).toMatchObject({ lightSource: ["mixed", "led"], glazing: ["old_double", "triple"] });
     const [led] = await db().select().from(spots).where(eq(spots.id, sill.id));
     expect(led).toMatchObject({ lightSource: "led", glazing: "triple" });
 
     // Moved away from the window: no glass to judge, the glazing is not kept.
-    await updateSpot({ siteId: site.id, actorId: owner.id, spot: led, values: { ...base, name: "Sill", facing: "none", lightSource: "led", glazing: "single" } });
+    await updateSpot({
+      siteId: site.id,
+      actorId: owner.id,
+      spot: led,
+      values: { ...base, name: "Sill", facing: "none", lightSource: "led", glazing: "single" },
+    });
     const [moved] = await db().select().from(spots).where(eq(spots.id, sill.id));
     expect(moved.glazing).toBeNull();
 
     // A caller that leaves both out (older code paths) changes neither.
-    await updateSpot({ siteId: site.id, actorId: owner.id, spot: moved, values: { ...base, name: "Sill 2", facing: "none" } });
+    await updateSpot({
+      siteId: site.id,
+      actorId: owner.id,
+      spot: moved,
+      values: { ...base, name: "Sill 2", facing: "none" },
+    });
     const [kept] = await db().select().from(spots).where(eq(spots.id, sill.id));
     expect(kept).toMatchObject({ name: "Sill 2", lightSource: "led" });
 
-    const log = await db().select().from(auditLog).where(and(eq(auditLog.siteId, site.id), eq(auditLog.action, "spot.update")));
+    const log = await db()
+      .select()
+      .from(auditLog)
+      .where(and(eq(auditLog.siteId, site.id), eq(auditLog.action, "spot.update")));
     expect(log).toHaveLength(3);
   });
 
@@ -60,13 +82,25 @@ describe("light source and glazing per spot", () => {
         params: { siteId: String(site.id), spotId: String(spot.id) },
         context: {},
       } as never);
-    const form = { name: "Shelf", indoor: "indoor", facing: "SW", capacity: "4", notes: "", lightSource: "fluorescent", glazing: "double" };
+    const form = {
+      name: "Shelf",
+      indoor: "indoor",
+      facing: "SW",
+      capacity: "4",
+      notes: "",
+      lightSource: "fluorescent",
+      glazing: "double",
+    };
     const bad = (await post({ ...form, lightSource: "candles" })) as { result?: { error?: Record<string, string[]> } };
     expect(bad.result?.error?.lightSource).toBeTruthy();
     expect((await db().select().from(spots).where(eq(spots.id, spot.id)))[0].lightSource).toBe("sun");
     const ok = await post(form);
     expect(ok).toBeInstanceOf(Response);
-    expect((await db().select().from(spots).where(eq(spots.id, spot.id)))[0]).toMatchObject({ lightSource: "fluorescent", glazing: "double", facing: "SW" });
+    expect((await db().select().from(spots).where(eq(spots.id, spot.id)))[0]).toMatchObject({
+      lightSource: "fluorescent",
+      glazing: "double",
+      facing: "SW",
+    });
     await post({ ...form, glazing: "" });
     expect((await db().select().from(spots).where(eq(spots.id, spot.id)))[0].glazing).toBeNull();
   });
@@ -75,7 +109,11 @@ describe("light source and glazing per spot", () => {
     const owner = await makeUser();
     const site = await makeSite(owner);
     const window = await createSpot({ siteId: site.id, actorId: owner.id, values: { ...base, name: "Window" } });
-    const shelf = await createSpot({ siteId: site.id, actorId: owner.id, values: { ...base, name: "LED shelf", facing: "none", lightSource: "led" } });
+    const shelf = await createSpot({
+      siteId: site.id,
+      actorId: owner.id,
+      values: { ...base, name: "LED shelf", facing: "none", lightSource: "led" },
+    });
     const a = await makeSensor(site, window);
     const b = await makeSensor(site, shelf);
     // 10,800 lux from 07:00 to 19:00 local (BST) on 10 June 2025, dark otherwise; every 10 minutes.
@@ -83,7 +121,14 @@ describe("light source and glazing per spot", () => {
     const rows = Array.from({ length: 24 * 6 }, (_, k) => {
       const hour = Math.floor(k / 6);
       const lux = hour >= 7 && hour < 19 ? 10_800 : 0;
-      return [a.id, b.id].map((sensorId) => ({ sensorId, measuredAt: new Date(start + k * 10 * 60_000), temperature: 21, humidity: 55, lux, battery: null }));
+      return [a.id, b.id].map((sensorId) => ({
+        sensorId,
+        measuredAt: new Date(start + k * 10 * 60_000),
+        temperature: 21,
+        humidity: 55,
+        lux,
+        battery: null,
+      }));
     }).flat();
     await new ReadingWriter().write(rows);
     const range = { from: new Date(start), to: new Date(start + 24 * HOUR) };
@@ -98,7 +143,11 @@ describe("light source and glazing per spot", () => {
   it("a lux chip that tops out in direct sun is noticed, from the hourly maxima the writer and a rebuild keep", async () => {
     const owner = await makeUser();
     const site = await makeSite(owner);
-    const bench = await createSpot({ siteId: site.id, actorId: owner.id, values: { ...base, name: "Bench", indoor: false, facing: "S" } });
+    const bench = await createSpot({
+      siteId: site.id,
+      actorId: owner.id,
+      values: { ...base, name: "Bench", indoor: false, facing: "S" },
+    });
     const sensor = await makeSensor(site, bench);
     // Three sunny June days, a half-sine of daylight from 05:00 to 21:00 local peaking at 100 klux,
     // read by a chip that saturates at 65,535 ÷ 1.2 ≈ 54,612 lux (memory: BH1750-type chips).
@@ -107,11 +156,19 @@ describe("light source and glazing per spot", () => {
     const rows = Array.from({ length: 3 * 24 * 6 }, (_, k) => {
       const x = ((k % (24 * 6)) / 6 - 5) / 16;
       const lux = x > 0 && x < 1 ? Math.min(CHIP, 100_000 * Math.sin(Math.PI * x)) : 0;
-      return { sensorId: sensor.id, measuredAt: new Date(start + k * 10 * 60_000), temperature: 20, humidity: 60, lux, battery: null };
+      return {
+        sensorId: sensor.id,
+        measuredAt: new Date(start + k * 10 * 60_000),
+        temperature: 20,
+        humidity: 60,
+        lux,
+        battery: null,
+      };
     });
     await new ReadingWriter().write(rows);
     const maxOf = async () =>
-      (await pool().query<{ m: number }>("SELECT max(lux_max) AS m FROM hourly_rollups WHERE spot_id = $1", [bench.id])).rows[0].m;
+      (await pool().query<{ m: number }>("SELECT max(lux_max) AS m FROM hourly_rollups WHERE spot_id = $1", [bench.id]))
+        .rows[0].m;
     expect(await maxOf()).toBeCloseTo(CHIP, 1);
     const range = { from: new Date(start), to: new Date(start + 3 * 24 * HOUR) };
     const clipped = async () => (await spotProfiles(site, [bench.id], new Date(), { range })).get(bench.id)!;

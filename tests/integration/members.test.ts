@@ -29,10 +29,17 @@ import { addMember, makeSite, makeUser, useMailSink } from "./helpers";
 useMailSink();
 
 const roleOf = async (siteId: number, userId: number) =>
-  (await db().select({ role: memberships.role }).from(memberships).where(and(eq(memberships.siteId, siteId), eq(memberships.userId, userId))))[0]?.role ?? null;
+  (
+    await db()
+      .select({ role: memberships.role })
+      .from(memberships)
+      .where(and(eq(memberships.siteId, siteId), eq(memberships.userId, userId)))
+  )[0]?.role ?? null;
 
 const tokenFromMail = (to: string) => {
-  const mail = sunkMail().filter((m) => m.to.includes(to)).at(-1);
+  const mail = sunkMail()
+    .filter((m) => m.to.includes(to))
+    .at(-1);
   const raw = mail!.raw.replace(/=\r?\n/g, "");
   return /\/invite\/([a-z2-7]+)/.exec(raw)![1];
 };
@@ -47,7 +54,12 @@ describe("invitations", () => {
   it("mails a link whose token is stored only as its SHA-256, and joins with the role once", async () => {
     const { owner, site } = await setup();
     const guest = await makeUser();
-    const { invitation, url } = await inviteMember({ siteId: site.id, actor: owner, email: ` ${guest.email.toUpperCase()} `, role: "mentor" });
+    const { invitation, url } = await inviteMember({
+      siteId: site.id,
+      actor: owner,
+      email: ` ${guest.email.toUpperCase()} `,
+      role: "mentor",
+    });
     expect(invitation.email).toBe(guest.email);
     const token = tokenFromMail(guest.email);
     expect(url.endsWith(`/invite/${token}`)).toBe(true);
@@ -71,7 +83,13 @@ describe("invitations", () => {
   it("refuses an expired or withdrawn link", async () => {
     const { owner, site } = await setup();
     const a = await makeUser();
-    await inviteMember({ siteId: site.id, actor: owner, email: a.email, role: "carer", now: new Date(Date.now() - 8 * 86_400_000) });
+    await inviteMember({
+      siteId: site.id,
+      actor: owner,
+      email: a.email,
+      role: "carer",
+      now: new Date(Date.now() - 8 * 86_400_000),
+    });
     await expect(acceptInvitation(tokenFromMail(a.email), a)).rejects.toThrow(/expired/);
 
     const b = await makeUser();
@@ -94,10 +112,18 @@ describe("invitations", () => {
 
   it("does not invite an existing member, and a member following a link keeps their role", async () => {
     const { owner, site } = await setup();
-    await expect(inviteMember({ siteId: site.id, actor: owner, email: owner.email, role: "carer" })).rejects.toThrow(/already a member/);
+    await expect(inviteMember({ siteId: site.id, actor: owner, email: owner.email, role: "carer" })).rejects.toThrow(
+      /already a member/,
+    );
     const [inv] = await db()
       .insert(invitations)
-      .values({ siteId: site.id, email: owner.email, role: "carer", tokenHash: invitationTokenHash("abcdefghijklmnopqrstu"), expiresAt: new Date(Date.now() + 86_400_000) })
+      .values({
+        siteId: site.id,
+        email: owner.email,
+        role: "carer",
+        tokenHash: invitationTokenHash("abcdefghijklmnopqrstu"),
+        expiresAt: new Date(Date.now() + 86_400_000),
+      })
       .returning();
     expect((await acceptInvitation("abcdefghijklmnopqrstu", owner)).role).toBe("owner");
     expect(await roleOf(site.id, owner.id)).toBe("owner");
@@ -124,7 +150,9 @@ describe("roles and the last-owner rule", () => {
 
   it("the last owner can neither be demoted, removed nor leave", async () => {
     const { owner, site } = await setup();
-    await expect(changeRole({ siteId: site.id, actorId: owner.id, userId: owner.id, role: "carer" })).rejects.toThrow(/at least one owner/);
+    await expect(changeRole({ siteId: site.id, actorId: owner.id, userId: owner.id, role: "carer" })).rejects.toThrow(
+      /at least one owner/,
+    );
     await expect(removeMember({ siteId: site.id, actorId: owner.id, userId: owner.id })).rejects.toThrow(/only owner/);
     expect(await roleOf(site.id, owner.id)).toBe("owner");
   });
@@ -136,7 +164,9 @@ describe("roles and the last-owner rule", () => {
     await changeRole({ siteId: site.id, actorId: owner.id, userId: second.id, role: "owner" });
     await changeRole({ siteId: site.id, actorId: owner.id, userId: owner.id, role: "mentor" });
     expect(await roleOf(site.id, owner.id)).toBe("mentor");
-    await expect(changeRole({ siteId: site.id, actorId: second.id, userId: second.id, role: "carer" })).rejects.toBeInstanceOf(MembershipError);
+    await expect(
+      changeRole({ siteId: site.id, actorId: second.id, userId: second.id, role: "carer" }),
+    ).rejects.toBeInstanceOf(MembershipError);
     await removeMember({ siteId: site.id, actorId: owner.id, userId: owner.id });
     const log = await db().select({ action: auditLog.action }).from(auditLog).where(eq(auditLog.siteId, site.id));
     expect(log.map((l) => l.action)).toContain("member.leave");
@@ -151,7 +181,10 @@ describe("roles and the last-owner rule", () => {
       changeRole({ siteId: site.id, actorId: second.id, userId: owner.id, role: "carer" }),
     ]);
     expect(results.filter((r) => r.status === "fulfilled")).toHaveLength(1);
-    const owners = await db().select().from(memberships).where(and(eq(memberships.siteId, site.id), eq(memberships.role, "owner")));
+    const owners = await db()
+      .select()
+      .from(memberships)
+      .where(and(eq(memberships.siteId, site.id), eq(memberships.role, "owner")));
     expect(owners).toHaveLength(1);
   });
 });
@@ -172,30 +205,67 @@ describe("invitation abuse", () => {
     });
   const unwrap = (r: unknown) => {
     const d = r as { type?: string; data?: unknown; init?: { status?: number } | null };
-    return d && d.type === "DataWithResponseInit" ? { status: d.init?.status ?? 200, body: d.data as Record<string, unknown> } : { status: 200, body: r as Record<string, unknown> };
+    return d && d.type === "DataWithResponseInit"
+      ? { status: d.init?.status ?? 200, body: d.data as Record<string, unknown> }
+      : { status: 200, body: r as Record<string, unknown> };
   };
 
   it(`allows ${INVITES_PER_SITE_PER_HOUR} invitations an hour per site, then answers 429 with a clear message`, async () => {
     const { owner, site } = await setup();
     const token = await sessionFor(owner.id);
     for (let i = 0; i < INVITES_PER_SITE_PER_HOUR; i++) {
-      const r = unwrap(await membersAction({ request: req(token, `/sites/${site.id}/members`, { intent: "invite", email: `flood${i}-${site.id}@example.test`, role: "carer" }), params: { siteId: String(site.id) }, context: {} } as never));
+      const r = unwrap(
+        await membersAction({
+          request: req(token, `/sites/${site.id}/members`, {
+            intent: "invite",
+            email: `flood${i}-${site.id}@example.test`,
+            role: "carer",
+          }),
+          params: { siteId: String(site.id) },
+          context: {},
+        } as never),
+      );
       expect(r.status).toBe(200);
     }
-    const over = unwrap(await membersAction({ request: req(token, `/sites/${site.id}/members`, { intent: "invite", email: `one-more-${site.id}@example.test`, role: "carer" }), params: { siteId: String(site.id) }, context: {} } as never));
+    const over = unwrap(
+      await membersAction({
+        request: req(token, `/sites/${site.id}/members`, {
+          intent: "invite",
+          email: `one-more-${site.id}@example.test`,
+          role: "carer",
+        }),
+        params: { siteId: String(site.id) },
+        context: {},
+      } as never),
+    );
     expect(over.status).toBe(429);
     expect(over.body.error).toMatch(/10 invitations in the last hour.*Try again in \d+ minutes?/);
     expect(sunkMail().some((m) => m.to.includes(`one-more-${site.id}@example.test`))).toBe(false);
     // An hour on, the site may invite again.
-    await expect(inviteMember({ siteId: site.id, actor: owner, email: `later-${site.id}@example.test`, role: "carer", now: new Date(Date.now() + 3_700_000) })).resolves.toBeTruthy();
+    await expect(
+      inviteMember({
+        siteId: site.id,
+        actor: owner,
+        email: `later-${site.id}@example.test`,
+        role: "carer",
+        now: new Date(Date.now() + 3_700_000),
+      }),
+    ).resolves.toBeTruthy();
   });
 
   it(`allows one person ${INVITES_PER_USER_PER_DAY} invitations a day across all their sites`, async () => {
     const owner = { ...(await makeUser()), name: "Sprayer" };
     const sites = [await makeSite(owner), await makeSite(owner), await makeSite(owner), await makeSite(owner)];
-    const sends = Array.from({ length: INVITES_PER_USER_PER_DAY }, (_, i) => ({ site: sites[i % 4], email: `spray${i}-${owner.id}@example.test` }));
+    const sends = Array.from({ length: INVITES_PER_USER_PER_DAY }, (_, i) => ({
+      site: sites[i % 4],
+      email: `spray${i}-${owner.id}@example.test`,
+    }));
     // Sent at once: the row locks count them in turn, so no burst slips past the limit.
-    const results = await Promise.allSettled([...sends, { site: sites[3], email: `spray-extra-${owner.id}@example.test` }].map((x) => inviteMember({ siteId: x.site.id, actor: owner, email: x.email, role: "mentor" })));
+    const results = await Promise.allSettled(
+      [...sends, { site: sites[3], email: `spray-extra-${owner.id}@example.test` }].map((x) =>
+        inviteMember({ siteId: x.site.id, actor: owner, email: x.email, role: "mentor" }),
+      ),
+    );
     const refused = results.filter((r) => r.status === "rejected");
     expect(refused, refused.map((r) => String((r as PromiseRejectedResult).reason)).join("; ")).toHaveLength(1);
     expect((refused[0] as PromiseRejectedResult).reason).toBeInstanceOf(InvitationLimitError);
@@ -209,10 +279,14 @@ describe("invitation abuse", () => {
     const guest = `named-${site.id}@example.test`;
     const evil = "Your bank\r\nReply-To: thief@example.test\t" + "x".repeat(300);
     await inviteMember({ siteId: site.id, actor: { id: owner.id, name: evil }, email: guest, role: "carer" });
-    const mail = sunkMail().filter((m) => m.to.includes(guest)).at(-1)!;
+    const mail = sunkMail()
+      .filter((m) => m.to.includes(guest))
+      .at(-1)!;
     expect(mail.to).toEqual([guest]); // no Bcc smuggled in
     expect(mail.subject).not.toMatch(/[\r\n\u0000]/);
-    expect(mail.subject).toMatch(/^"Your bank Reply-To: thief@example\.test x+…" invites you to "Hollins Bcc: victim@example\.test" on Nichewise$/);
+    expect(mail.subject).toMatch(
+      /^"Your bank Reply-To: thief@example\.test x+…" invites you to "Hollins Bcc: victim@example\.test" on Nichewise$/,
+    );
     expect(mail.subject.length).toBeLessThan(2 * MAIL_NAME_MAX + 40);
     expect(mail.raw).not.toMatch(/^Reply-To: thief/im);
     expect(mail.raw).not.toMatch(/^Bcc:/im);
@@ -228,9 +302,21 @@ describe("invitation abuse", () => {
     expect(await roleOf(site.id, other.id)).toBeNull();
 
     const otherToken = await sessionFor(other.id);
-    const page = unwrap(await inviteLoader({ request: req(otherToken, `/invite/${link}`), params: { token: link }, context: {} } as never));
+    const page = unwrap(
+      await inviteLoader({
+        request: req(otherToken, `/invite/${link}`),
+        params: { token: link },
+        context: {},
+      } as never),
+    );
     expect(page.body).toMatchObject({ wrongAccount: true, email: invited.email });
-    const post = unwrap(await inviteAction({ request: req(otherToken, `/invite/${link}`, {}), params: { token: link }, context: {} } as never));
+    const post = unwrap(
+      await inviteAction({
+        request: req(otherToken, `/invite/${link}`, {}),
+        params: { token: link },
+        context: {},
+      } as never),
+    );
     expect(post.status).toBe(403);
     expect(post.body.error).toContain(`sent to ${invited.email}`);
     expect(post.body.error).toMatch(/Sign out and sign in .* or ask the owner to invite/);

@@ -45,17 +45,63 @@ async function waitForPort(port: number, until: number) {
 
 function makeCertificates(dir: string) {
   const run = (args: string[]) => execFileSync("openssl", args, { cwd: dir, stdio: "ignore" });
-  run(["req", "-x509", "-newkey", "rsa:2048", "-nodes", "-keyout", "ca.key", "-out", "ca.crt", "-days", "2", "-subj", "/CN=Test home CA"]);
-  run(["req", "-newkey", "rsa:2048", "-nodes", "-keyout", "server.key", "-out", "server.csr", "-subj", "/CN=localhost"]);
+  run([
+    "req",
+    "-x509",
+    "-newkey",
+    "rsa:2048",
+    "-nodes",
+    "-keyout",
+    "ca.key",
+    "-out",
+    "ca.crt",
+    "-days",
+    "2",
+    "-subj",
+    "/CN=Test home CA",
+  ]);
+  run([
+    "req",
+    "-newkey",
+    "rsa:2048",
+    "-nodes",
+    "-keyout",
+    "server.key",
+    "-out",
+    "server.csr",
+    "-subj",
+    "/CN=localhost",
+  ]);
   writeFileSync(path.join(dir, "san.ext"), "subjectAltName=DNS:localhost,IP:127.0.0.1\n");
-  run(["x509", "-req", "-in", "server.csr", "-CA", "ca.crt", "-CAkey", "ca.key", "-CAcreateserial", "-out", "server.crt", "-days", "2", "-extfile", "san.ext"]);
+  run([
+    "x509",
+    "-req",
+    "-in",
+    "server.csr",
+    "-CA",
+    "ca.crt",
+    "-CAkey",
+    "ca.key",
+    "-CAcreateserial",
+    "-out",
+    "server.crt",
+    "-days",
+    "2",
+    "-extfile",
+    "san.ext",
+  ]);
 }
 
-export async function startMosquitto(opts: { users: Record<string, string>; tls?: boolean; extra?: string[] }): Promise<Mosquitto> {
+export async function startMosquitto(opts: {
+  users: Record<string, string>;
+  tls?: boolean;
+  extra?: string[];
+}): Promise<Mosquitto> {
   const dir = mkdtempSync(path.join(tmpdir(), "nw-mosquitto-"));
   const passwd = path.join(dir, "passwd");
   writeFileSync(passwd, "");
-  for (const [user, password] of Object.entries(opts.users)) execFileSync("mosquitto_passwd", ["-b", passwd, user, password], { stdio: "ignore" });
+  for (const [user, password] of Object.entries(opts.users))
+    execFileSync("mosquitto_passwd", ["-b", passwd, user, password], { stdio: "ignore" });
   const port = await freePort();
   const tlsPort = opts.tls ? await freePort() : null;
   let caPem: string | null = null;
@@ -72,7 +118,12 @@ export async function startMosquitto(opts: { users: Record<string, string>; tls?
   if (tlsPort) {
     makeCertificates(dir);
     caPem = (await import("node:fs")).readFileSync(path.join(dir, "ca.crt"), "utf8");
-    lines.push(`listener ${tlsPort} 127.0.0.1`, `cafile ${dir}/ca.crt`, `certfile ${dir}/server.crt`, `keyfile ${dir}/server.key`);
+    lines.push(
+      `listener ${tlsPort} 127.0.0.1`,
+      `cafile ${dir}/ca.crt`,
+      `certfile ${dir}/server.crt`,
+      `keyfile ${dir}/server.key`,
+    );
   }
   lines.push(...(opts.extra ?? []));
   const conf = path.join(dir, "mosquitto.conf");

@@ -20,8 +20,17 @@ const brokers: RunningBroker[] = [];
 const clients: MqttClient[] = [];
 const sockets: Socket[] = [];
 
-async function broker(opts: { maxConnections?: number; connectTimeoutMs?: number; wsPort?: number | null; allowedOrigins?: string[] } = {}) {
-  const b = await startBroker({ host: "127.0.0.1", port: 0, wsPort: opts.wsPort ?? null, writer: new ReadingWriter(), log: () => {}, ...opts });
+async function broker(
+  opts: { maxConnections?: number; connectTimeoutMs?: number; wsPort?: number | null; allowedOrigins?: string[] } = {},
+) {
+  const b = await startBroker({
+    host: "127.0.0.1",
+    port: 0,
+    wsPort: opts.wsPort ?? null,
+    writer: new ReadingWriter(),
+    log: () => {},
+    ...opts,
+  });
   brokers.push(b);
   return b;
 }
@@ -50,8 +59,8 @@ function rawSocket(port: number): Promise<Socket> {
   });
 }
 
-const closed = (s: Socket) => new Promise<void>((resolve) => (s.destroyed ? resolve() : s.once("close", () => resolve())));
-
+const closed = (s: Socket) =>
+  new Promise<void>((resolve) => (s.destroyed ? resolve() : s.once("close", () => resolve())));
 
 /**
  * Sends a fixed header announcing `announced` bytes, then body bytes in 64 KB chunks (waiting for
@@ -66,7 +75,11 @@ async function flood(socket: Socket, firstByte: number, announced: number, upTo:
   while (!isClosed && sent < upTo) {
     const more = socket.write(chunk);
     sent += chunk.length;
-    if (!more) await new Promise<void>((r) => { socket.once("drain", r); socket.once("close", r); });
+    if (!more)
+      await new Promise<void>((r) => {
+        socket.once("drain", r);
+        socket.once("close", r);
+      });
   }
   await closed(socket);
   return sent;
@@ -76,7 +89,14 @@ const rss = () => process.memoryUsage().rss;
 const MB = 1024 * 1024;
 
 async function mqttClient(port: number, sensor: { id: number; secret: string }, clientId: string) {
-  const c = await connectAsync(`mqtt://127.0.0.1:${port}`, { protocolVersion: 4, username: String(sensor.id), password: sensor.secret, clientId, reconnectPeriod: 0, connectTimeout: 5000 });
+  const c = await connectAsync(`mqtt://127.0.0.1:${port}`, {
+    protocolVersion: 4,
+    username: String(sensor.id),
+    password: sensor.secret,
+    clientId,
+    reconnectPeriod: 0,
+    connectTimeout: 5000,
+  });
   clients.push(c);
   return c;
 }
@@ -88,7 +108,9 @@ describe("packet sizes", () => {
     // CONNECT is packet type 1 (first byte 0x10). Up to 100 MB would follow if the broker kept reading.
     const sent = await flood(s, 0x10, 200 * MB, 100 * MB);
     const grown = rss() - before;
-    console.log(`[mqtt-limits] oversized CONNECT: closed after ${(sent / MB).toFixed(1)} MB sent, RSS ${(grown / MB).toFixed(1)} MB more`);
+    console.log(
+      `[mqtt-limits] oversized CONNECT: closed after ${(sent / MB).toFixed(1)} MB sent, RSS ${(grown / MB).toFixed(1)} MB more`,
+    );
     expect(sent).toBeLessThan(100 * MB);
     // Loose: the broker buffered nothing; the figure moves with the test process's own allocations.
     expect(grown).toBeLessThan(24 * MB);
@@ -101,7 +123,16 @@ describe("packet sizes", () => {
   it("a CONNECT just over the limit is refused, one of ordinary size is not", async () => {
     const sensor = await sensorPair();
     const s = await rawSocket(shared.port);
-    const packet = mqttPacket.generate({ cmd: "connect", protocolId: "MQTT", protocolVersion: 4, clean: true, keepalive: 60, clientId: "x".repeat(MAX_CONNECT_BYTES), username: String(sensor.id), password: Buffer.from(sensor.secret) });
+    const packet = mqttPacket.generate({
+      cmd: "connect",
+      protocolId: "MQTT",
+      protocolVersion: 4,
+      clean: true,
+      keepalive: 60,
+      clientId: "x".repeat(MAX_CONNECT_BYTES),
+      username: String(sensor.id),
+      password: Buffer.from(sensor.secret),
+    });
     s.write(packet);
     await closed(s);
     expect(s.destroyed).toBe(true);
@@ -111,16 +142,34 @@ describe("packet sizes", () => {
     const sensor = await sensorPair();
     const s = await rawSocket(shared.port);
     const parser = mqttPacket.parser({ protocolVersion: 4 });
-    const connack = new Promise<number>((r) => parser.on("packet", (p) => p.cmd === "connack" && r(p.returnCode ?? -1)));
+    const connack = new Promise<number>((r) =>
+      parser.on("packet", (p) => p.cmd === "connack" && r(p.returnCode ?? -1)),
+    );
     s.on("data", (b) => parser.parse(b));
-    s.write(mqttPacket.generate({ cmd: "connect", protocolId: "MQTT", protocolVersion: 4, clean: true, keepalive: 60, clientId: `big-${sensor.id}`, username: String(sensor.id), password: Buffer.from(sensor.secret) }));
+    s.write(
+      mqttPacket.generate({
+        cmd: "connect",
+        protocolId: "MQTT",
+        protocolVersion: 4,
+        clean: true,
+        keepalive: 60,
+        clientId: `big-${sensor.id}`,
+        username: String(sensor.id),
+        password: Buffer.from(sensor.secret),
+      }),
+    );
     expect(await connack).toBe(0);
     // PUBLISH QoS 1 (0x32).
     const sent = await flood(s, 0x32, 10 * MB, 10 * MB);
     expect(sent).toBeLessThan(10 * MB);
-    const reasons = async () => (await pool().query<{ reason: string }>("SELECT reason FROM rejected_messages WHERE sensor_id = $1", [sensor.id])).rows.map((r) => r.reason);
+    const reasons = async () =>
+      (
+        await pool().query<{ reason: string }>("SELECT reason FROM rejected_messages WHERE sensor_id = $1", [sensor.id])
+      ).rows.map((r) => r.reason);
     for (let i = 0; i < 100 && (await reasons()).length === 0; i++) await new Promise((r) => setTimeout(r, 50));
-    expect(await reasons()).toEqual([expect.stringMatching(/^publish packet of 10485760 bytes is over \d+ bytes: connection closed$/)]);
+    expect(await reasons()).toEqual([
+      expect.stringMatching(/^publish packet of 10485760 bytes is over \d+ bytes: connection closed$/),
+    ]);
   });
 });
 
@@ -130,7 +179,16 @@ describe("connections before CONNECT", () => {
     const idle = await rawSocket(b.port);
     const half = await rawSocket(b.port);
     const sensor = await sensorPair();
-    const connect = mqttPacket.generate({ cmd: "connect", protocolId: "MQTT", protocolVersion: 4, clean: true, keepalive: 60, clientId: "half", username: String(sensor.id), password: Buffer.from(sensor.secret) });
+    const connect = mqttPacket.generate({
+      cmd: "connect",
+      protocolId: "MQTT",
+      protocolVersion: 4,
+      clean: true,
+      keepalive: 60,
+      clientId: "half",
+      username: String(sensor.id),
+      password: Buffer.from(sensor.secret),
+    });
     half.write(connect.subarray(0, connect.length - 3));
     await closed(idle);
     await closed(half);
@@ -181,10 +239,19 @@ describe("MQTT over WebSocket", () => {
     expect(await handshake()).toBe(101);
     // A sensor over WebSocket (MQTT.js in Node sends no Origin) signs in and publishes.
     const sensor = await sensorPair();
-    const c = await connectAsync(url, { protocolVersion: 4, username: String(sensor.id), password: sensor.secret, clientId: `ws-${sensor.id}`, reconnectPeriod: 0, connectTimeout: 5000 });
+    const c = await connectAsync(url, {
+      protocolVersion: 4,
+      username: String(sensor.id),
+      password: sensor.secret,
+      clientId: `ws-${sensor.id}`,
+      reconnectPeriod: 0,
+      connectTimeout: 5000,
+    });
     clients.push(c);
     await c.publishAsync(`nichewise/sensors/${sensor.id}/reading`, JSON.stringify({ temperature: 19.5 }), { qos: 1 });
-    const n = await pool().query<{ n: number }>("SELECT count(*)::int AS n FROM readings WHERE sensor_id = $1", [sensor.id]);
+    const n = await pool().query<{ n: number }>("SELECT count(*)::int AS n FROM readings WHERE sensor_id = $1", [
+      sensor.id,
+    ]);
     expect(n.rows[0].n).toBe(1);
   });
 });

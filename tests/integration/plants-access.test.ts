@@ -53,14 +53,34 @@ beforeAll(async () => {
   await addMember(siteA, mentor, "mentor");
   const spotA = await makeSpot(siteA, { name: "A's sill" });
   const spotB = await makeSpot(siteB, { name: "B's secret shelf" });
-  await db().insert(customPlants).values({
-    siteId: siteB.id,
-    key: "own-b-secret",
-    basedOn: "phalaenopsis",
-    profile: { name: "B's secret hybrid", group: "orchid", category: "warm", minNightC: 17, maxDayC: 28, humidityMin: 50, humidityMax: 80, light: "low", dliMin: 4, dliMax: 8, flowering: { note: "" }, coldTolerance: "x", summary: "", sources: [] },
-  });
+  await db()
+    .insert(customPlants)
+    .values({
+      siteId: siteB.id,
+      key: "own-b-secret",
+      basedOn: "phalaenopsis",
+      profile: {
+        name: "B's secret hybrid",
+        group: "orchid",
+        category: "warm",
+        minNightC: 17,
+        maxDayC: 28,
+        humidityMin: 50,
+        humidityMax: 80,
+        light: "low",
+        dliMin: 4,
+        dliMax: 8,
+        flowering: { note: "" },
+        coldTolerance: "x",
+        summary: "",
+        sources: [],
+      },
+    });
   await db().insert(wishlist).values({ siteId: siteB.id, plantKey: "cattleya", mustHave: true, pots: 1 });
-  const [row] = await db().insert(spotPlants).values({ spotId: spotB.id, plantKey: "phalaenopsis", nickname: "B's pet" }).returning();
+  const [row] = await db()
+    .insert(spotPlants)
+    .values({ spotId: spotB.id, plantKey: "phalaenopsis", nickname: "B's pet" })
+    .returning();
   a = { token: await sessionFor(ua.id), site: siteA, spot: spotA };
   b = { token: await sessionFor(ub.id), site: siteB, spot: spotB, plantRow: row.id };
   mentorToken = await sessionFor(mentor.id);
@@ -81,36 +101,80 @@ describe("plant, compare and wishlist routes keep to the member's sites", () => 
 
   it("does not show another site's spots, own profiles or wishes through the member's own site", async () => {
     const sid = String(a.site.id);
-    const cmp = await call(compareLoader as never, { request: req(a.token, `/sites/${sid}/compare?spots=${a.spot.id}&spots=${b.spot.id}`), params: { siteId: sid }, context: {} });
+    const cmp = await call(compareLoader as never, {
+      request: req(a.token, `/sites/${sid}/compare?spots=${a.spot.id}&spots=${b.spot.id}`),
+      params: { siteId: sid },
+      context: {},
+    });
     expect(cmp.status).toBe(200);
     expect(JSON.stringify(cmp.body)).not.toContain("B's secret shelf");
-    const list = await call(plantsLoader as never, { request: req(a.token, `/sites/${sid}/plants`), params: { siteId: sid }, context: {} });
+    const list = await call(plantsLoader as never, {
+      request: req(a.token, `/sites/${sid}/plants`),
+      params: { siteId: sid },
+      context: {},
+    });
     expect(JSON.stringify(list.body)).not.toContain("secret hybrid");
-    const own = await call(plantLoader as never, { request: req(a.token, `/sites/${sid}/plants/own-b-secret`), params: { siteId: sid, plantKey: "own-b-secret" }, context: {} });
+    const own = await call(plantLoader as never, {
+      request: req(a.token, `/sites/${sid}/plants/own-b-secret`),
+      params: { siteId: sid, plantKey: "own-b-secret" },
+      context: {},
+    });
     expect(own.status).toBe(404);
-    const wishes = await call(wishlistLoader as never, { request: req(a.token, `/sites/${sid}/wishlist`), params: { siteId: sid }, context: {} });
+    const wishes = await call(wishlistLoader as never, {
+      request: req(a.token, `/sites/${sid}/wishlist`),
+      params: { siteId: sid },
+      context: {},
+    });
     expect((wishes.body as { rows: unknown[] }).rows).toEqual([]);
-    const plant = await call(plantLoader as never, { request: req(a.token, `/sites/${sid}/plants/phalaenopsis`), params: { siteId: sid, plantKey: "phalaenopsis" }, context: {} });
+    const plant = await call(plantLoader as never, {
+      request: req(a.token, `/sites/${sid}/plants/phalaenopsis`),
+      params: { siteId: sid, plantKey: "phalaenopsis" },
+      context: {},
+    });
     expect(JSON.stringify(plant.body)).not.toContain("B's");
   });
 
   it("shows the owner their own profile and the fits include it", async () => {
     const sid = String(b.site.id);
-    const own = await call(plantLoader as never, { request: req(b.token, `/sites/${sid}/plants/own-b-secret`), params: { siteId: sid, plantKey: "own-b-secret" }, context: {} });
+    const own = await call(plantLoader as never, {
+      request: req(b.token, `/sites/${sid}/plants/own-b-secret`),
+      params: { siteId: sid, plantKey: "own-b-secret" },
+      context: {},
+    });
     expect(own.status).toBe(200);
     expect((own.body as { spots: { name: string }[] }).spots.map((s) => s.name)).toEqual(["B's secret shelf"]);
-    const spot = await call(spotLoader as never, { request: req(b.token, `/sites/${sid}/spots/${b.spot.id}`), params: { siteId: sid, spotId: String(b.spot.id) }, context: {} });
+    const spot = await call(spotLoader as never, {
+      request: req(b.token, `/sites/${sid}/spots/${b.spot.id}`),
+      params: { siteId: sid, spotId: String(b.spot.id) },
+      context: {},
+    });
     expect((spot.body as { fits: { key: string }[] }).fits.map((f) => f.key)).toContain("own-b-secret");
   });
 
   it("refuses to move or remove another site's plant, and to move a plant into another site's spot", async () => {
     const sid = String(a.site.id);
     const params = { siteId: sid, spotId: String(a.spot.id) };
-    const remove = await call(spotAction as never, { request: req(a.token, `/sites/${sid}/spots/${a.spot.id}`, { intent: "plant-remove", id: String(b.plantRow) }), params, context: {} });
+    const remove = await call(spotAction as never, {
+      request: req(a.token, `/sites/${sid}/spots/${a.spot.id}`, { intent: "plant-remove", id: String(b.plantRow) }),
+      params,
+      context: {},
+    });
     expect(remove.status).toBe(404);
-    await call(spotAction as never, { request: req(a.token, `/sites/${sid}/spots/${a.spot.id}`, { intent: "plant-add", plantKey: "hoya", pots: "1" }), params, context: {} });
+    await call(spotAction as never, {
+      request: req(a.token, `/sites/${sid}/spots/${a.spot.id}`, { intent: "plant-add", plantKey: "hoya", pots: "1" }),
+      params,
+      context: {},
+    });
     const mine = (await db().select().from(spotPlants)).find((r) => r.spotId === a.spot.id)!;
-    const move = await call(spotAction as never, { request: req(a.token, `/sites/${sid}/spots/${a.spot.id}`, { intent: "plant-move", id: String(mine.id), toSpotId: String(b.spot.id) }), params, context: {} });
+    const move = await call(spotAction as never, {
+      request: req(a.token, `/sites/${sid}/spots/${a.spot.id}`, {
+        intent: "plant-move",
+        id: String(mine.id),
+        toSpotId: String(b.spot.id),
+      }),
+      params,
+      context: {},
+    });
     expect(move.status).toBe(400);
     const bRows = (await db().select().from(spotPlants)).filter((r) => r.spotId === b.spot.id);
     expect(bRows.map((r) => r.nickname)).toEqual(["B's pet"]);
@@ -118,10 +182,26 @@ describe("plant, compare and wishlist routes keep to the member's sites", () => 
 
   it("lets a mentor read the wishlist but not change it", async () => {
     const sid = String(a.site.id);
-    expect((await call(wishlistLoader as never, { request: req(mentorToken, `/sites/${sid}/wishlist`), params: { siteId: sid }, context: {} })).status).toBe(200);
-    const post = await call(wishlistAction as never, { request: req(mentorToken, `/sites/${sid}/wishlist`, { intent: "save", plantKey: "hoya", pots: "1" }), params: { siteId: sid }, context: {} });
+    expect(
+      (
+        await call(wishlistLoader as never, {
+          request: req(mentorToken, `/sites/${sid}/wishlist`),
+          params: { siteId: sid },
+          context: {},
+        })
+      ).status,
+    ).toBe(200);
+    const post = await call(wishlistAction as never, {
+      request: req(mentorToken, `/sites/${sid}/wishlist`, { intent: "save", plantKey: "hoya", pots: "1" }),
+      params: { siteId: sid },
+      context: {},
+    });
     expect(post.status).toBe(403);
-    const wish = await call(plantAction as never, { request: req(mentorToken, `/sites/${sid}/plants/hoya`, { intent: "wish", pots: "1" }), params: { siteId: sid, plantKey: "hoya" }, context: {} });
+    const wish = await call(plantAction as never, {
+      request: req(mentorToken, `/sites/${sid}/plants/hoya`, { intent: "wish", pots: "1" }),
+      params: { siteId: sid, plantKey: "hoya" },
+      context: {},
+    });
     expect(wish.status).toBe(403);
   });
 });

@@ -24,9 +24,27 @@ let site: Awaited<ReturnType<typeof makeSite>>;
 let token: string;
 
 type Args = { request: Request; params: Record<string, string>; context: unknown };
-type Rule = { rule: string; level: string; confidence: string; likely?: string; months: string[]; facts: Fact[]; text: string };
+type Rule = {
+  rule: string;
+  level: string;
+  confidence: string;
+  likely?: string;
+  months: string[];
+  facts: Fact[];
+  text: string;
+};
 type FitJson = { key: string; level: string; verdict: string; confidence: string; verdictText: string; rules: Rule[] };
-type Body = { basis: { confidence: string; measuredMonths: number[]; projectedMonths: number[]; blendedMonths: number[]; years: number; firmBy: string | null }; fits: FitJson[] };
+type Body = {
+  basis: {
+    confidence: string;
+    measuredMonths: number[];
+    projectedMonths: number[];
+    blendedMonths: number[];
+    years: number;
+    firmBy: string | null;
+  };
+  fits: FitJson[];
+};
 
 async function spotWithDays(sim: SimSpot, indoor: boolean, days: number, seed: number) {
   return simulatedSpot(site, sim, { indoor, days, seed, now: NOW });
@@ -34,14 +52,17 @@ async function spotWithDays(sim: SimSpot, indoor: boolean, days: number, seed: n
 
 const fitsOf = async (spotId: number, query = ""): Promise<Body> => {
   const res = (await fitsLoader({
-    request: new Request(`http://127.0.0.1/api/sites/${site.id}/spots/${spotId}/fits${query}`, { headers: { Cookie: `nw_session=${token}` } }),
+    request: new Request(`http://127.0.0.1/api/sites/${site.id}/spots/${spotId}/fits${query}`, {
+      headers: { Cookie: `nw_session=${token}` },
+    }),
     params: { siteId: String(site.id), spotId: String(spotId) },
     context: {},
   } as Args as never)) as Response;
   return (await res.json()) as Body;
 };
 
-const projectedMonthsOf = (f: Fact): number[] => ("months" in f && f.kind.startsWith("projected-") ? (f.months as number[]) : []);
+const projectedMonthsOf = (f: Fact): number[] =>
+  "months" in f && f.kind.startsWith("projected-") ? (f.months as number[]) : [];
 
 beforeAll(async () => {
   fake = await startWeatherFake({ now: () => NOW.getTime() });
@@ -50,7 +71,12 @@ beforeAll(async () => {
   token = generateSessionToken();
   await createSession(token, owner.id);
   await pool().query(`SELECT ensure_reading_partitions(date_trunc('month', now()) - interval '2 months', 4)`);
-  const job = new WeatherJob({ endpoints: { archiveUrl: `${fake.url}/v1/archive`, forecastUrl: `${fake.url}/v1/forecast` }, years: 3, perRound: 50, now: () => NOW.getTime() });
+  const job = new WeatherJob({
+    endpoints: { archiveUrl: `${fake.url}/v1/archive`, forecastUrl: `${fake.url}/v1/forecast` },
+    years: 3,
+    perRound: 50,
+    now: () => NOW.getTime(),
+  });
   await job.untilIdle();
 }, 180_000);
 afterAll(() => fake.close());
@@ -72,13 +98,19 @@ describe("fits on measured + projected months", () => {
     const likely = body.fits.filter((f) => f.confidence !== "measured");
     expect(likely.length).toBeGreaterThan(0);
     for (const f of likely) {
-      expect(f.verdictText, f.key).toMatch(new RegExp(`^likely ${f.verdict} — (\\d+ of 12 months measured|no month measured yet).*projected from 3 past years of weather; firm by \\d+ \\w+`));
+      expect(f.verdictText, f.key).toMatch(
+        new RegExp(
+          `^likely ${f.verdict} — (\\d+ of 12 months measured|no month measured yet).*projected from 3 past years of weather; firm by \\d+ \\w+`,
+        ),
+      );
     }
     for (const f of body.fits) {
       for (const r of f.rules) {
         expect(["measured", "projected", "mixed"], `${f.key} ${r.rule}`).toContain(r.confidence);
         // Measured months always win: no projected fact names a measured month.
-        for (const fact of r.facts) for (const m of projectedMonthsOf(fact)) expect(body.basis.measuredMonths, `${f.key} ${r.rule} ${fact.kind}`).not.toContain(m);
+        for (const fact of r.facts)
+          for (const m of projectedMonthsOf(fact))
+            expect(body.basis.measuredMonths, `${f.key} ${r.rule} ${fact.kind}`).not.toContain(m);
       }
     }
     // A period that ended (last month and the eleven before) is judged on what was measured then, not projected.
@@ -91,12 +123,20 @@ describe("fits on measured + projected months", () => {
     const many = await fitProjections(seasons, { now: NOW });
     expect(many.get(sill.id)!.months.map((m) => m.month)).toEqual(body.basis.projectedMonths);
     const phal = plantByKey("phalaenopsis")!;
-    const [{ fit: byPlant }] = rankSpotsForPlant(phal, [{ season: seasons.get(sill.id)!, window: windowOf(site, { facing: "E", indoor: true }), projection: many.get(sill.id) }]);
+    const [{ fit: byPlant }] = rankSpotsForPlant(phal, [
+      {
+        season: seasons.get(sill.id)!,
+        window: windowOf(site, { facing: "E", indoor: true }),
+        projection: many.get(sill.id),
+      },
+    ]);
     expect(byPlant.verdict).toBe(body.fits.find((f) => f.key === "phalaenopsis")!.verdict);
     expect(byPlant.confidence).toBe(body.fits.find((f) => f.key === "phalaenopsis")!.confidence);
     // The spot page says the same, in words beside the verdict.
     const page = (await spotLoader({
-      request: new Request(`http://127.0.0.1/sites/${site.id}/spots/${sill.id}`, { headers: { Cookie: `nw_session=${token}` } }),
+      request: new Request(`http://127.0.0.1/sites/${site.id}/spots/${sill.id}`, {
+        headers: { Cookie: `nw_session=${token}` },
+      }),
       params: { siteId: String(site.id), spotId: String(sill.id) },
       context: {},
     } as Args as never)) as { fits: { key: string; verdict: string; confidence?: string; verdictText?: string }[] };
@@ -117,7 +157,10 @@ describe("fits on measured + projected months", () => {
       for (const r of f.rules) if (r.confidence === "projected") expect(r.level, `${f.key} ${r.rule}`).not.toBe("poor");
       if (f.verdict === "struggles here") {
         expect(f.confidence, f.key).toBe("measured");
-        expect(f.rules.some((r) => r.level === "poor" && r.confidence === "measured"), f.key).toBe(true);
+        expect(
+          f.rules.some((r) => r.level === "poor" && r.confidence === "measured"),
+          f.key,
+        ).toBe(true);
       }
       for (const r of f.rules.filter((x) => x.likely === "poor")) {
         expect(r.level).toBe("care");
@@ -126,7 +169,9 @@ describe("fits on measured + projected months", () => {
       }
     }
     // The bench's summer is projected: cool growers get a likely warning about hot days, at care, from the projection alone.
-    const projectedCare = body.fits.flatMap((f) => f.rules.filter((r) => r.confidence === "projected" && r.level === "care"));
+    const projectedCare = body.fits.flatMap((f) =>
+      f.rules.filter((r) => r.confidence === "projected" && r.level === "care"),
+    );
     expect(projectedCare.length).toBeGreaterThan(0);
     for (const r of projectedCare) expect(r.text).toMatch(/likely/);
     // Phalaenopsis on a winter bench: ruled out by measured frost (common practice: harmed under 10 °C, library.ts).

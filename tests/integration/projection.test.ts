@@ -33,7 +33,12 @@ describe("projectedProfile", () => {
   });
 
   it("projects every month of a two-week-old spot from past years, with intervals, blending the month measured so far", async () => {
-    const job = new WeatherJob({ endpoints: { archiveUrl: `${fake.url}/v1/archive`, forecastUrl: `${fake.url}/v1/forecast` }, years: 3, perRound: 50, now: () => NOW.getTime() });
+    const job = new WeatherJob({
+      endpoints: { archiveUrl: `${fake.url}/v1/archive`, forecastUrl: `${fake.url}/v1/forecast` },
+      years: 3,
+      perRound: 50,
+      now: () => NOW.getTime(),
+    });
     await job.untilIdle();
     const sill = await spotWithDays({ kind: "windowsill", facing: "E", hasLight: false }, true, 15, 102);
     const p = (await projectedProfile(sill.id, { now: NOW, years: 3 }))!;

@@ -31,8 +31,20 @@ beforeAll(async () => {
   const w = new ReadingWriter();
   let batch: Reading[] = [];
   const pending: Promise<unknown>[] = [];
-  for (const r of generate(DEMO_SITE, { kind: "outdoor", facing: "none", hasLight: false }, DEMO_SCENARIO, { from, to, intervalMs: 600_000, sensorSeed: 101 })) {
-    batch.push({ sensorId: sensor.id, measuredAt: r.measuredAt, temperature: r.temperature, humidity: r.humidity, lux: null, battery: r.battery });
+  for (const r of generate(DEMO_SITE, { kind: "outdoor", facing: "none", hasLight: false }, DEMO_SCENARIO, {
+    from,
+    to,
+    intervalMs: 600_000,
+    sensorSeed: 101,
+  })) {
+    batch.push({
+      sensorId: sensor.id,
+      measuredAt: r.measuredAt,
+      temperature: r.temperature,
+      humidity: r.humidity,
+      lux: null,
+      battery: r.battery,
+    });
     if (batch.length === 5000) {
       pending.push(w.write(batch));
       batch = [];
@@ -46,7 +58,9 @@ beforeAll(async () => {
 
 describe("season profile of a simulated year", () => {
   it("has every month of the year, fully covered", () => {
-    expect(months.map((m) => m.key)).toEqual(Array.from({ length: 12 }, (_, i) => `${YEAR}-${String(i + 1).padStart(2, "0")}`));
+    expect(months.map((m) => m.key)).toEqual(
+      Array.from({ length: 12 }, (_, i) => `${YEAR}-${String(i + 1).padStart(2, "0")}`),
+    );
     for (const m of months) expect(m.coverage.enough, m.key).toBe(true);
   });
 
@@ -54,10 +68,20 @@ describe("season profile of a simulated year", () => {
     const truth = outdoorMonthExtremes(DEMO_SITE, DEMO_SCENARIO, YEAR);
     for (const m of months) {
       const t = truth[m.month - 1];
-      expect(Math.abs(m.temperature.lowest! - t.lowest), `${m.key} lowest ${m.temperature.lowest} vs ${t.lowest}`).toBeLessThanOrEqual(EXTREME_TOLERANCE_C);
-      expect(Math.abs(m.temperature.highest! - t.highest), `${m.key} highest ${m.temperature.highest} vs ${t.highest}`).toBeLessThanOrEqual(EXTREME_TOLERANCE_C);
-      expect(Math.abs(m.temperature.meanDailyLow! - t.meanDailyLow), `${m.key} mean daily low`).toBeLessThanOrEqual(MEAN_TOLERANCE_C);
-      expect(Math.abs(m.temperature.meanDailyHigh! - t.meanDailyHigh), `${m.key} mean daily high`).toBeLessThanOrEqual(MEAN_TOLERANCE_C);
+      expect(
+        Math.abs(m.temperature.lowest! - t.lowest),
+        `${m.key} lowest ${m.temperature.lowest} vs ${t.lowest}`,
+      ).toBeLessThanOrEqual(EXTREME_TOLERANCE_C);
+      expect(
+        Math.abs(m.temperature.highest! - t.highest),
+        `${m.key} highest ${m.temperature.highest} vs ${t.highest}`,
+      ).toBeLessThanOrEqual(EXTREME_TOLERANCE_C);
+      expect(Math.abs(m.temperature.meanDailyLow! - t.meanDailyLow), `${m.key} mean daily low`).toBeLessThanOrEqual(
+        MEAN_TOLERANCE_C,
+      );
+      expect(Math.abs(m.temperature.meanDailyHigh! - t.meanDailyHigh), `${m.key} mean daily high`).toBeLessThanOrEqual(
+        MEAN_TOLERANCE_C,
+      );
     }
   });
 

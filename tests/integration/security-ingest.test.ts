@@ -65,7 +65,8 @@ async function connectCode(sensorId: number, secret: string) {
   }
 }
 
-const closed = (c: MqttClient) => new Promise<void>((resolve) => (c.disconnected || !c.connected ? resolve() : c.once("close", () => resolve())));
+const closed = (c: MqttClient) =>
+  new Promise<void>((resolve) => (c.disconnected || !c.connected ? resolve() : c.once("close", () => resolve())));
 
 async function setup() {
   const owner = await makeUser();
@@ -80,14 +81,19 @@ describe("revoking a sensor", () => {
     const { site, sensor, token } = await setup();
     const c = await mqtt(sensor.id, sensor.secret);
     const at = new Date(Math.floor((Date.now() - 60_000) / 1000) * 1000).toISOString();
-    await c.publishAsync(`nichewise/sensors/${sensor.id}/reading`, JSON.stringify({ time: at, temperature: 19 }), { qos: 1 });
+    await c.publishAsync(`nichewise/sensors/${sensor.id}/reading`, JSON.stringify({ time: at, temperature: 19 }), {
+      qos: 1,
+    });
     const gone = closed(c);
     const res = await sensorAction({
       request: formPost(`/sites/${site.id}/sensors/${sensor.id}`, token, { intent: "delete", confirm: sensor.name }),
       params: { siteId: String(site.id), sensorId: String(sensor.id) },
     } as never).catch((r: unknown) => r);
     expect((res as Response).status).toBe(302);
-    await Promise.race([gone, sleep(3000).then(() => Promise.reject(new Error("the deleted sensor's connection stayed open")))]);
+    await Promise.race([
+      gone,
+      sleep(3000).then(() => Promise.reject(new Error("the deleted sensor's connection stayed open"))),
+    ]);
     expect(broker.connectedSensors()).toBe(0);
     expect(await connectCode(sensor.id, sensor.secret)).toBe(4);
     const rows = await pool().query("SELECT 1 FROM readings WHERE sensor_id = $1", [sensor.id]);
@@ -115,7 +121,9 @@ describe("revoking a sensor", () => {
 describe("sensor secrets", () => {
   it("stores only the secret's SHA-256, refuses a wrong or near-miss secret, and accepts the right one", async () => {
     const { sensor } = await setup();
-    const { rows } = await pool().query<{ secret_hash: string }>("SELECT secret_hash FROM sensors WHERE id = $1", [sensor.id]);
+    const { rows } = await pool().query<{ secret_hash: string }>("SELECT secret_hash FROM sensors WHERE id = $1", [
+      sensor.id,
+    ]);
     // FIPS 180-4 SHA-256 (checked against node:crypto, an independent implementation).
     expect(rows[0].secret_hash).toBe(`sha256:${createHash("sha256").update(sensor.secret).digest("hex")}`);
     expect(await connectCode(sensor.id, `${sensor.secret}x`)).toBe(4);
@@ -126,13 +134,20 @@ describe("sensor secrets", () => {
 
   it("accepts a sensor made before the change (argon2id hash) and stores the new form after its first connect", async () => {
     const { sensor } = await setup();
-    await pool().query("UPDATE sensors SET secret_hash = $1 WHERE id = $2", [await hashPassword(sensor.secret), sensor.id]);
+    await pool().query("UPDATE sensors SET secret_hash = $1 WHERE id = $2", [
+      await hashPassword(sensor.secret),
+      sensor.id,
+    ]);
     invalidateSensorCache(sensor.id);
     expect(await connectCode(sensor.id, "wrong")).toBe(4);
-    const before = await pool().query<{ secret_hash: string }>("SELECT secret_hash FROM sensors WHERE id = $1", [sensor.id]);
+    const before = await pool().query<{ secret_hash: string }>("SELECT secret_hash FROM sensors WHERE id = $1", [
+      sensor.id,
+    ]);
     expect(before.rows[0].secret_hash).toMatch(/^\$argon2id\$/);
     expect(await connectCode(sensor.id, sensor.secret)).toBe(0);
-    const after = await pool().query<{ secret_hash: string }>("SELECT secret_hash FROM sensors WHERE id = $1", [sensor.id]);
+    const after = await pool().query<{ secret_hash: string }>("SELECT secret_hash FROM sensors WHERE id = $1", [
+      sensor.id,
+    ]);
     expect(after.rows[0].secret_hash).toBe(hashSensorSecret(sensor.secret));
     expect(await connectCode(sensor.id, sensor.secret)).toBe(0);
     expect(await connectCode(sensor.id, "wrong")).toBe(4);
@@ -147,11 +162,19 @@ describe("password change", () => {
     const other = await makeUser();
     const othersSession = await signedIn(other.id);
 
-    const wrong = await settingsAction({ request: formPost("/settings", here, { intent: "password", current: "not it", next: "a new password 2" }) } as never);
+    const wrong = await settingsAction({
+      request: formPost("/settings", here, { intent: "password", current: "not it", next: "a new password 2" }),
+    } as never);
     expect((wrong as { init?: { status?: number } }).init?.status).toBe(400);
     expect(await validateSessionToken(elsewhere)).not.toBeNull(); // a refused change revokes nothing
 
-    const ok = await settingsAction({ request: formPost("/settings", here, { intent: "password", current: "the old password 1", next: "a new password 2" }) } as never);
+    const ok = await settingsAction({
+      request: formPost("/settings", here, {
+        intent: "password",
+        current: "the old password 1",
+        next: "a new password 2",
+      }),
+    } as never);
     expect(ok).toEqual({ saved: "password" });
     expect(await validateSessionToken(elsewhere)).toBeNull();
     expect(await validateSessionToken(here)).not.toBeNull();

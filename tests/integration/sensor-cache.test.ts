@@ -3,7 +3,14 @@
 // that started before it.
 import { afterEach, describe, expect, it, vi } from "vitest";
 import { pool } from "~/.server/db";
-import { cachedSensorInfo, invalidateSensorCache, MAX_UNKNOWN_IDS, sensorInfo, unknownSensorIdsCached, UNKNOWN_TTL_MS } from "~/.server/ingest/sensor-cache";
+import {
+  cachedSensorInfo,
+  invalidateSensorCache,
+  MAX_UNKNOWN_IDS,
+  sensorInfo,
+  unknownSensorIdsCached,
+  UNKNOWN_TTL_MS,
+} from "~/.server/ingest/sensor-cache";
 import { makeSensor, makeSite, makeSpot, makeUser } from "./helpers";
 
 /** Counts the cache's own queries (the one that reads a sensor's secret hash). */

@@ -38,7 +38,11 @@ async function watchedBench() {
 }
 
 const silences = async (spotId: number) =>
-  (await pool().query<{ peak: number }>(`SELECT peak FROM alert_events WHERE spot_id = $1 AND kind = 'silent'`, [spotId])).rows;
+  (
+    await pool().query<{ peak: number }>(`SELECT peak FROM alert_events WHERE spot_id = $1 AND kind = 'silent'`, [
+      spotId,
+    ])
+  ).rows;
 
 describe("silent-sensor watch and placements dated back", () => {
   it("a logger placed from its past year, and a sensor placed from last month that never reported, open no silence", async () => {
@@ -46,12 +50,31 @@ describe("silent-sensor watch and placements dated back", () => {
     const logger = await makeSensor(site);
     const yearAgo = Math.floor((Date.now() - 400 * DAY) / HOUR) * HOUR;
     await writer.write(
-      Array.from({ length: 24 * 30 }, (_, i) => ({ sensorId: logger.id, measuredAt: new Date(yearAgo + i * HOUR), temperature: 8, humidity: 80, lux: null, battery: null })),
+      Array.from({ length: 24 * 30 }, (_, i) => ({
+        sensorId: logger.id,
+        measuredAt: new Date(yearAgo + i * HOUR),
+        temperature: 8,
+        humidity: 80,
+        lux: null,
+        battery: null,
+      })),
     );
-    await placeSensor({ siteId: site.id, sensorId: logger.id, spotId: spot.id, at: new Date(yearAgo), actorId: user.id });
+    await placeSensor({
+      siteId: site.id,
+      sensorId: logger.id,
+      spotId: spot.id,
+      at: new Date(yearAgo),
+      actorId: user.id,
+    });
     const quiet = await watchedBench();
     const fresh = await makeSensor(quiet.site);
-    await placeSensor({ siteId: quiet.site.id, sensorId: fresh.id, spotId: quiet.spot.id, at: new Date(Date.now() - 30 * DAY), actorId: quiet.user.id });
+    await placeSensor({
+      siteId: quiet.site.id,
+      sensorId: fresh.id,
+      spotId: quiet.spot.id,
+      at: new Date(Date.now() - 30 * DAY),
+      actorId: quiet.user.id,
+    });
 
     await alerts.engine.checkSilence();
     expect(await silences(spot.id)).toEqual([]);

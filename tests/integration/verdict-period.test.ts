@@ -21,7 +21,14 @@ async function spotWith2025() {
   await new ReadingWriter().write(
     Array.from({ length: hours }, (_, i) => {
       const h = new Date(from + i * HOUR).getUTCHours();
-      return { sensorId: sensor.id, measuredAt: new Date(from + i * HOUR), temperature: h >= 8 && h < 20 ? 22 : 14, humidity: 60, lux: null, battery: null };
+      return {
+        sensorId: sensor.id,
+        measuredAt: new Date(from + i * HOUR),
+        temperature: h >= 8 && h < 20 ? 22 : 14,
+        humidity: 60,
+        lux: null,
+        battery: null,
+      };
     }),
   );
   return { site, spot };
@@ -41,7 +48,9 @@ describe("the period a verdict judges", () => {
     expect(period.to.toISOString()).toBe("2026-01-01T00:00:00.000Z");
 
     const season = (await spotProfiles(site, [spot.id], now, { periods: new Map([[spot.id, period]]) })).get(spot.id)!;
-    expect(observed(season)).toEqual(["01", "02", "03", "04", "05", "06", "07", "08", "09", "10", "11", "12"].map((m) => `2025-${m}`));
+    expect(observed(season)).toEqual(
+      ["01", "02", "03", "04", "05", "06", "07", "08", "09", "10", "11", "12"].map((m) => `2025-${m}`),
+    );
     // Every month is there, so no fit asks to "leave the sensor where it is through November".
     for (const fit of fitsFor(season)) expect(fit.missingAdvice).toBeNull();
 
@@ -60,8 +69,14 @@ describe("the period a verdict judges", () => {
     expect(observed(season)).toEqual(["2025-07", "2025-08", "2025-09", "2025-10", "2025-11", "2025-12"]);
     expect(fitsFor(season).some((f) => f.missingAdvice?.includes("June"))).toBe(true);
 
-    expect(parsePeriod("2027-03", now, site.timeZone)).toMatchObject({ choice: { kind: "ending", month: "2026-12" }, problem: expect.stringMatching(/hasn't happened/) });
-    expect(parsePeriod("13/2025", now, site.timeZone)).toMatchObject({ choice: { kind: "latest" }, problem: expect.stringMatching(/last month/) });
+    expect(parsePeriod("2027-03", now, site.timeZone)).toMatchObject({
+      choice: { kind: "ending", month: "2026-12" },
+      problem: expect.stringMatching(/hasn't happened/),
+    });
+    expect(parsePeriod("13/2025", now, site.timeZone)).toMatchObject({
+      choice: { kind: "latest" },
+      problem: expect.stringMatching(/last month/),
+    });
     // The current month runs to today.
     const current = (await judgedPeriods(site, [spot.id], { kind: "ending", month: "2026-12" }, now)).get(spot.id)!;
     expect(current).toMatchObject({ firstMonth: "2026-01", lastMonth: "2026-12", toToday: true });
@@ -73,7 +88,10 @@ describe("the period a verdict judges", () => {
     const past = { from: new Date("2025-01-01T00:00:00Z"), to: new Date("2026-01-01T00:00:00Z") };
     const rolling = { from: new Date(Date.now() - 365 * 24 * HOUR), to: new Date() };
     for (let i = 0; i < 2; i++) {
-      for (const p of [past, rolling]) expect((await loadRollups([spot.id], p.from, p.to)).get(spot.id)).toEqual((await fetchRollups([spot.id], p.from, p.to)).get(spot.id));
+      for (const p of [past, rolling])
+        expect((await loadRollups([spot.id], p.from, p.to)).get(spot.id)).toEqual(
+          (await fetchRollups([spot.id], p.from, p.to)).get(spot.id),
+        );
     }
     const keys = rollupCacheState.keys();
     expect(keys).toContain(spot.id);

@@ -52,15 +52,25 @@ describe("watches migration", () => {
     folders.push(before, after);
 
     await migrate(db, { migrationsFolder: before });
-    const q = async <T extends pg.QueryResultRow>(text: string, values: unknown[] = []) => (await client!.query<T>(text, values)).rows;
-    const [site] = await q<{ id: number }>(`INSERT INTO sites (name, latitude, longitude, time_zone) VALUES ('Home', 52, 5, 'Europe/Amsterdam') RETURNING id`);
-    const [spot] = await q<{ id: number }>(`INSERT INTO spots (site_id, name, indoor) VALUES ($1, 'Balcony', false) RETURNING id`, [site.id]);
+    const q = async <T extends pg.QueryResultRow>(text: string, values: unknown[] = []) =>
+      (await client!.query<T>(text, values)).rows;
+    const [site] = await q<{ id: number }>(
+      `INSERT INTO sites (name, latitude, longitude, time_zone) VALUES ('Home', 52, 5, 'Europe/Amsterdam') RETURNING id`,
+    );
+    const [spot] = await q<{ id: number }>(
+      `INSERT INTO spots (site_id, name, indoor) VALUES ($1, 'Balcony', false) RETURNING id`,
+      [site.id],
+    );
     const warnedAt = new Date("2026-11-30T21:00:00Z");
     const [rule] = await q<{ id: number }>(
       `INSERT INTO alert_rules (spot_id, kind, threshold, reason, warned_at, early_warning) VALUES ($1, 'cold', 8, 'Masdevallia', $2, true) RETURNING id`,
       [spot.id, warnedAt],
     );
-    await q(`INSERT INTO alert_events (rule_id, spot_id, kind, started_at, peak) VALUES ($1, $2, 'cold', $3, 6.5)`, [rule.id, spot.id, warnedAt]);
+    await q(`INSERT INTO alert_events (rule_id, spot_id, kind, started_at, peak) VALUES ($1, $2, 'cold', $3, 6.5)`, [
+      rule.id,
+      spot.id,
+      warnedAt,
+    ]);
 
     await migrate(db, { migrationsFolder: after });
 
@@ -69,16 +79,32 @@ describe("watches migration", () => {
       `SELECT id, threshold, reason, warned_at, early_warning FROM watches WHERE spot_id = $1`,
       [spot.id],
     );
-    expect(kept).toEqual({ id: rule.id, threshold: 8, reason: "Masdevallia", warned_at: warnedAt, early_warning: true });
+    expect(kept).toEqual({
+      id: rule.id,
+      threshold: 8,
+      reason: "Masdevallia",
+      warned_at: warnedAt,
+      early_warning: true,
+    });
     expect(await q(`SELECT rule_id, peak FROM alert_events`)).toEqual([{ rule_id: rule.id, peak: 6.5 }]);
     // The id sequence and the constraints came along under the names drizzle now expects.
-    const [next] = await q<{ id: number }>(`INSERT INTO watches (spot_id, kind, threshold) VALUES ($1, 'silent', 60) RETURNING id`, [spot.id]);
+    const [next] = await q<{ id: number }>(
+      `INSERT INTO watches (spot_id, kind, threshold) VALUES ($1, 'silent', 60) RETURNING id`,
+      [spot.id],
+    );
     expect(next.id).toBe(rule.id + 1);
-    const names = (await q<{ name: string }>(
-      `SELECT conname AS name FROM pg_constraint WHERE conrelid IN ('watches'::regclass, 'alert_events'::regclass)
+    const names = (
+      await q<{ name: string }>(
+        `SELECT conname AS name FROM pg_constraint WHERE conrelid IN ('watches'::regclass, 'alert_events'::regclass)
        UNION SELECT indexname FROM pg_indexes WHERE tablename = 'watches' ORDER BY 1`,
-    )).map((r) => r.name);
-    const expected = ["watches_pkey", "watches_spot_id_spots_id_fk", "alert_events_rule_id_watches_id_fk", "watches_spot_id_index"];
+      )
+    ).map((r) => r.name);
+    const expected = [
+      "watches_pkey",
+      "watches_spot_id_spots_id_fk",
+      "alert_events_rule_id_watches_id_fk",
+      "watches_spot_id_index",
+    ];
     expect(names).toEqual(expect.arrayContaining(expected));
     expect(names.filter((n) => n.includes("alert_rules"))).toEqual([]);
     // Deleting a watch still removes its events (the foreign key kept its cascade).

@@ -38,9 +38,14 @@ async function call(fn: Fn, request: Request, params: Record<string, string>) {
 const post = (token: string, path: string, form: Record<string, string | string[]>) => {
   const body = new URLSearchParams();
   for (const [k, v] of Object.entries(form)) for (const x of [v].flat()) body.append(k, x);
-  return new Request(`http://127.0.0.1${path}`, { method: "POST", headers: { Cookie: `nw_session=${token}`, Origin: "http://127.0.0.1" }, body });
+  return new Request(`http://127.0.0.1${path}`, {
+    method: "POST",
+    headers: { Cookie: `nw_session=${token}`, Origin: "http://127.0.0.1" },
+    body,
+  });
 };
-const get = (token: string, path: string) => new Request(`http://127.0.0.1${path}`, { headers: { Cookie: `nw_session=${token}` } });
+const get = (token: string, path: string) =>
+  new Request(`http://127.0.0.1${path}`, { headers: { Cookie: `nw_session=${token}` } });
 
 async function person(name: string) {
   const u = await makeUser();
@@ -63,11 +68,22 @@ async function household() {
   return { owner, coOwner, carer, mentor, site, spot };
 }
 
-const placePlant = (h: { site: { id: number }; spot: { id: number } }, token: string, plantKey: string, spotId = h.spot.id) =>
-  call(spotAction as Fn, post(token, `/sites/${h.site.id}/spots/${spotId}`, { intent: "plant-add", plantKey, nickname: "", pots: "1" }), { siteId: String(h.site.id), spotId: String(spotId) });
+const placePlant = (
+  h: { site: { id: number }; spot: { id: number } },
+  token: string,
+  plantKey: string,
+  spotId = h.spot.id,
+) =>
+  call(
+    spotAction as Fn,
+    post(token, `/sites/${h.site.id}/spots/${spotId}`, { intent: "plant-add", plantKey, nickname: "", pots: "1" }),
+    { siteId: String(h.site.id), spotId: String(spotId) },
+  );
 const rulesOf = (spotId: number) => db().select().from(watches).where(eq(watches.spotId, spotId)).orderBy(watches.kind);
 const auditOf = async (siteId: number, prefix: string) =>
-  (await db().select().from(auditLog).where(eq(auditLog.siteId, siteId)).orderBy(auditLog.id)).filter((a) => a.action.startsWith(prefix));
+  (await db().select().from(auditLog).where(eq(auditLog.siteId, siteId)).orderBy(auditLog.id)).filter((a) =>
+    a.action.startsWith(prefix),
+  );
 
 const PHAL = PLANT_LIBRARY.find((p) => p.key === "phalaenopsis")!;
 const CYMB = PLANT_LIBRARY.find((p) => p.key === "cymbidium")!;
@@ -77,7 +93,10 @@ describe("the default cold watch comes with the plants", () => {
     const h = await household();
     await seedAlerts(h.site.id, () => {});
     expect(await rulesOf(h.spot.id)).toHaveLength(0);
-    const page = await call(spotAlertsLoader as Fn, get(h.owner.token, "/"), { siteId: String(h.site.id), spotId: String(h.spot.id) });
+    const page = await call(spotAlertsLoader as Fn, get(h.owner.token, "/"), {
+      siteId: String(h.site.id),
+      spotId: String(h.spot.id),
+    });
     expect((page.body as { suggestion: unknown }).suggestion).toBeNull();
 
     // A carer places a cymbidium: the spot gets its cold watch (and a silent-sensor watch).
@@ -102,7 +121,12 @@ describe("the default cold watch comes with the plants", () => {
     const sill = await makeSpot(h.site, { indoor: true });
     await placePlant(h, h.owner.token, "hoya", sill.id);
     expect(await rulesOf(sill.id)).toHaveLength(0);
-    await updateSpot({ siteId: h.site.id, actorId: h.owner.id, spot: sill, values: { name: sill.name, indoor: false, facing: "none", capacity: 0, notes: "" } });
+    await updateSpot({
+      siteId: h.site.id,
+      actorId: h.owner.id,
+      spot: sill,
+      values: { name: sill.name, indoor: false, facing: "none", capacity: 0, notes: "" },
+    });
     expect((await rulesOf(sill.id)).map((r) => r.kind)).toEqual(["cold", "silent"]);
   });
 
@@ -111,7 +135,11 @@ describe("the default cold watch comes with the plants", () => {
     const shelf = await makeSpot(h.site, { indoor: true });
     await placePlant(h, h.owner.token, "hoya", shelf.id);
     const [row] = await db().select().from(spotPlants).where(eq(spotPlants.spotId, shelf.id));
-    const moved = await call(spotAction as Fn, post(h.carer.token, "/", { intent: "plant-move", id: String(row.id), toSpotId: String(h.spot.id) }), { siteId: String(h.site.id), spotId: String(shelf.id) });
+    const moved = await call(
+      spotAction as Fn,
+      post(h.carer.token, "/", { intent: "plant-move", id: String(row.id), toSpotId: String(h.spot.id) }),
+      { siteId: String(h.site.id), spotId: String(shelf.id) },
+    );
     expect(moved.status).toBe(200);
     const cold = (await rulesOf(h.spot.id)).find((r) => r.kind === "cold")!;
     expect(cold.threshold).toBe(PLANT_LIBRARY.find((p) => p.key === "hoya")!.minNightC + 2);
@@ -123,17 +151,33 @@ describe("pausing and editing a watch", () => {
     const h = await household();
     await placePlant(h, h.owner.token, "cymbidium");
     const cold = (await rulesOf(h.spot.id)).find((r) => r.kind === "cold")!;
-    const [ev] = await db().insert(alertEvents).values({ ruleId: cold.id, spotId: h.spot.id, kind: "cold", startedAt: new Date(Date.now() - 20 * 60_000), peak: 3 }).returning();
+    const [ev] = await db()
+      .insert(alertEvents)
+      .values({
+        ruleId: cold.id,
+        spotId: h.spot.id,
+        kind: "cold",
+        startedAt: new Date(Date.now() - 20 * 60_000),
+        peak: 3,
+      })
+      .returning();
     const before = sunkMail().length;
 
-    const res = await call(spotAlertsAction as Fn, post(h.carer.token, "/", { intent: "pause", ruleId: String(cold.id) }), { siteId: String(h.site.id), spotId: String(h.spot.id) });
+    const res = await call(
+      spotAlertsAction as Fn,
+      post(h.carer.token, "/", { intent: "pause", ruleId: String(cold.id) }),
+      { siteId: String(h.site.id), spotId: String(h.spot.id) },
+    );
     expect(res.status).toBe(200);
     expect((await rulesOf(h.spot.id)).find((r) => r.kind === "cold")!.paused).toBe(true);
     const [closed] = await db().select().from(alertEvents).where(eq(alertEvents.id, ev.id));
     expect(closed.endedAt).not.toBeNull();
 
     const [audit] = await auditOf(h.site.id, "watch.pause");
-    expect(audit).toMatchObject({ actorId: h.carer.id, detail: { ruleId: cold.id, kind: "cold", closedEvents: [ev.id] } });
+    expect(audit).toMatchObject({
+      actorId: h.carer.id,
+      detail: { ruleId: cold.id, kind: "cold", closedEvents: [ev.id] },
+    });
 
     const mails = sunkMail().slice(before);
     expect(mails.flatMap((m) => m.to).sort()).toEqual([h.owner.email, h.coOwner.email].sort());
@@ -144,10 +188,19 @@ describe("pausing and editing a watch", () => {
     expect(body).toMatch(/Cold-snap alerts for this spot are off until someone resumes/);
 
     // Pausing again changes nothing and tells nobody; resuming is audited too.
-    await call(spotAlertsAction as Fn, post(h.carer.token, "/", { intent: "pause", ruleId: String(cold.id) }), { siteId: String(h.site.id), spotId: String(h.spot.id) });
+    await call(spotAlertsAction as Fn, post(h.carer.token, "/", { intent: "pause", ruleId: String(cold.id) }), {
+      siteId: String(h.site.id),
+      spotId: String(h.spot.id),
+    });
     expect(sunkMail().length).toBe(before + 2);
-    await call(spotAlertsAction as Fn, post(h.carer.token, "/", { intent: "resume", ruleId: String(cold.id) }), { siteId: String(h.site.id), spotId: String(h.spot.id) });
-    expect((await auditOf(h.site.id, "watch.")).map((a) => a.action).slice(-2)).toEqual(["watch.pause", "watch.resume"]);
+    await call(spotAlertsAction as Fn, post(h.carer.token, "/", { intent: "resume", ruleId: String(cold.id) }), {
+      siteId: String(h.site.id),
+      spotId: String(h.spot.id),
+    });
+    expect((await auditOf(h.site.id, "watch.")).map((a) => a.action).slice(-2)).toEqual([
+      "watch.pause",
+      "watch.resume",
+    ]);
   });
 
   it("an owner pausing the silent-sensor watch e-mails the other owner, not themself", async () => {
@@ -155,7 +208,10 @@ describe("pausing and editing a watch", () => {
     await placePlant(h, h.owner.token, "cymbidium");
     const silent = (await rulesOf(h.spot.id)).find((r) => r.kind === "silent")!;
     const before = sunkMail().length;
-    await call(spotAlertsAction as Fn, post(h.owner.token, "/", { intent: "pause", ruleId: String(silent.id) }), { siteId: String(h.site.id), spotId: String(h.spot.id) });
+    await call(spotAlertsAction as Fn, post(h.owner.token, "/", { intent: "pause", ruleId: String(silent.id) }), {
+      siteId: String(h.site.id),
+      spotId: String(h.spot.id),
+    });
     const mails = sunkMail().slice(before);
     expect(mails.flatMap((m) => m.to)).toEqual([h.coOwner.email]);
     expect(mails[0].raw.replace(/=\r?\n/g, "")).toMatch(/Silent-sensor alerts for this spot are off/);
@@ -164,9 +220,31 @@ describe("pausing and editing a watch", () => {
   it("every edit of a watch is audited with what changed; adding and removing too", async () => {
     const h = await household();
     const params = { siteId: String(h.site.id), spotId: String(h.spot.id) };
-    const added = await call(spotAlertsAction as Fn, post(h.owner.token, "/", { intent: "add", kind: "heat", threshold: "30", durationMinutes: "20", hysteresis: "1", clearMinutes: "30" }), params);
+    const added = await call(
+      spotAlertsAction as Fn,
+      post(h.owner.token, "/", {
+        intent: "add",
+        kind: "heat",
+        threshold: "30",
+        durationMinutes: "20",
+        hysteresis: "1",
+        clearMinutes: "30",
+      }),
+      params,
+    );
     const ruleId = String((added.body as { saved: number }).saved);
-    await call(spotAlertsAction as Fn, post(h.owner.token, "/", { intent: "update", ruleId, threshold: "33", durationMinutes: "20", hysteresis: "1", clearMinutes: "30" }), params);
+    await call(
+      spotAlertsAction as Fn,
+      post(h.owner.token, "/", {
+        intent: "update",
+        ruleId,
+        threshold: "33",
+        durationMinutes: "20",
+        hysteresis: "1",
+        clearMinutes: "30",
+      }),
+      params,
+    );
     await call(spotAlertsAction as Fn, post(h.owner.token, "/", { intent: "delete", ruleId }), params);
     const log = await auditOf(h.site.id, "watch.");
     expect(log.map((a) => a.action)).toEqual(["watch.add", "watch.update", "watch.delete"]);
@@ -184,7 +262,17 @@ describe("mentors and cold-snap e-mail", () => {
     expect(kinds.get(h.mentor.id)).not.toContain("silent");
     expect(kinds.get(h.carer.id)).toContain("cold");
     expect(kinds.get(h.owner.id)).toContain("cold");
-    const res = await call(siteAlertsAction as Fn, post(h.mentor.token, "/", { intent: "preferences", email: "on", kinds: ["cold", "heat"], quietFrom: "", quietTo: "" }), { siteId: String(h.site.id) });
+    const res = await call(
+      siteAlertsAction as Fn,
+      post(h.mentor.token, "/", {
+        intent: "preferences",
+        email: "on",
+        kinds: ["cold", "heat"],
+        quietFrom: "",
+        quietTo: "",
+      }),
+      { siteId: String(h.site.id) },
+    );
     expect(res.status).toBe(200);
     kinds = await byUser();
     expect(kinds.get(h.mentor.id)).toEqual(["cold", "heat"]);
@@ -198,10 +286,18 @@ describe("spot changes in one place", () => {
     const sensor = await makeSensor(h.site, spot);
     invalidateSensorCache(sensor.id);
     expect((await sensorInfo(sensor.id))!.kind).toBe("indoor");
-    await updateSpot({ siteId: h.site.id, actorId: h.owner.id, spot, values: { name: "Sill", indoor: false, facing: "S", capacity: 4, notes: "" } });
+    await updateSpot({
+      siteId: h.site.id,
+      actorId: h.owner.id,
+      spot,
+      values: { name: "Sill", indoor: false, facing: "S", capacity: 4, notes: "" },
+    });
     expect((await sensorInfo(sensor.id))!.kind).toBe("outdoor"); // read again at once, not after the cache's 10 s
     const [upd] = await auditOf(h.site.id, "spot.update");
-    expect(upd.detail).toMatchObject({ spotId: spot.id, changes: { indoor: [true, false], facing: ["none", "S"], capacity: [0, 4] } });
+    expect(upd.detail).toMatchObject({
+      spotId: spot.id,
+      changes: { indoor: [true, false], facing: ["none", "S"], capacity: [0, 4] },
+    });
 
     expect(await deleteSpot({ siteId: h.site.id, actorId: h.owner.id, spot })).toBe(true);
     expect((await sensorInfo(sensor.id))!.kind).toBe("unplaced");
@@ -209,6 +305,11 @@ describe("spot changes in one place", () => {
     // A spot of another site is neither changed nor deleted through this one.
     const other = await makeSpot(await makeSite(h.owner));
     expect(await deleteSpot({ siteId: h.site.id, actorId: h.owner.id, spot: other })).toBe(false);
-    expect(await db().select().from(auditLog).where(and(eq(auditLog.siteId, h.site.id), eq(auditLog.action, "spot.delete")))).toHaveLength(1);
+    expect(
+      await db()
+        .select()
+        .from(auditLog)
+        .where(and(eq(auditLog.siteId, h.site.id), eq(auditLog.action, "spot.delete"))),
+    ).toHaveLength(1);
   });
 });

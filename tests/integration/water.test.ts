@@ -14,7 +14,14 @@ describe("water checks", () => {
     const owner = await makeUser();
     const site = await makeSite(owner);
     const add = (source: string, v: { ppm?: number; ec?: number; ecScale?: 0.5 | 0.7 | null; ph: number | null }) =>
-      addWaterCheck(site.id, owner.id, { source, checkedOn: on, ppm: v.ppm ?? null, ec: v.ec ?? null, ecScale: v.ecScale ?? null, ph: v.ph });
+      addWaterCheck(site.id, owner.id, {
+        source,
+        checkedOn: on,
+        ppm: v.ppm ?? null,
+        ec: v.ec ?? null,
+        ecScale: v.ecScale ?? null,
+        ph: v.ph,
+      });
     await add("rain", { ppm: 10, ph: 5.2 });
     await add("filtered", { ec: 200, ecScale: 0.5, ph: 6 });
     await add("filtered", { ec: 200, ecScale: 0.7, ph: 6 });

@@ -24,7 +24,9 @@ afterAll(() => fake.close());
 
 describe("weather service fake", () => {
   it("speaks the service's JSON: hourly.time in unixtime, units, UTC offset, and nulls past the archive's end", async () => {
-    const res = await fetch(`${fake.url}/v1/archive?latitude=51.7&longitude=-2.2&start_date=2026-11-14&end_date=2026-11-16&hourly=temperature_2m,cloud_cover&timezone=GMT&timeformat=unixtime`);
+    const res = await fetch(
+      `${fake.url}/v1/archive?latitude=51.7&longitude=-2.2&start_date=2026-11-14&end_date=2026-11-16&hourly=temperature_2m,cloud_cover&timezone=GMT&timeformat=unixtime`,
+    );
     const body = await res.json();
     expect(res.status).toBe(200);
     expect(body.hourly_units).toEqual({ time: "unixtime", temperature_2m: "°C", cloud_cover: "%" });
@@ -39,7 +41,11 @@ describe("weather service fake", () => {
   it("serves the climate the demo's sensors are generated from, hour by hour", async () => {
     expect(DEMO_HOUSEHOLD.scenario).toBe(DEMO_SCENARIO);
     expect(scenarioAt(DEMO_HOUSEHOLD.site.latitude, DEMO_HOUSEHOLD.site.longitude)).toBe(DEMO_SCENARIO);
-    const series = await fetchHourly(endpoints, DEMO_SITE, { kind: "archive", startDate: "2024-01-01", endDate: "2024-01-02" });
+    const series = await fetchHourly(endpoints, DEMO_SITE, {
+      kind: "archive",
+      startDate: "2024-01-01",
+      endDate: "2024-01-02",
+    });
     const truth = outdoorWeather(DEMO_SITE, DEMO_SCENARIO);
     for (let i = 0; i < 48; i += 7) {
       expect(series.temperature[i]).toBeCloseTo(truth(new Date(series.start + i * 3_600_000)).temperature, 1);
@@ -47,7 +53,11 @@ describe("weather service fake", () => {
   });
 
   it("answers bad parameters with a 400 and the service's { error, reason } body", async () => {
-    for (const q of ["latitude=91&longitude=0&start_date=2024-01-01&end_date=2024-01-02&hourly=temperature_2m", "latitude=1&longitude=0&start_date=2024-01-01&end_date=2024-01-02&hourly=snowfall_depth_x", "latitude=1&longitude=0&start_date=2020-01-01&end_date=2024-01-02&hourly=temperature_2m"]) {
+    for (const q of [
+      "latitude=91&longitude=0&start_date=2024-01-01&end_date=2024-01-02&hourly=temperature_2m",
+      "latitude=1&longitude=0&start_date=2024-01-01&end_date=2024-01-02&hourly=snowfall_depth_x",
+      "latitude=1&longitude=0&start_date=2020-01-01&end_date=2024-01-02&hourly=temperature_2m",
+    ]) {
       const res = await fetch(`${fake.url}/v1/archive?${q}`);
       expect(res.status, q).toBe(400);
       expect((await res.json()).error).toBe(true);
@@ -79,7 +89,9 @@ describe("weather job", () => {
       [site.id],
     );
     const perYear = (Number(size.rows[0].bytes) / size.rows[0].days) * 365;
-    console.log(`weather stored: ${size.rows[0].days} days, ${Math.round(perYear / 1000)} kB per site-year (rows, before the index)`);
+    console.log(
+      `weather stored: ${size.rows[0].days} days, ${Math.round(perYear / 1000)} kB per site-year (rows, before the index)`,
+    );
     expect(perYear).toBeLessThan(400_000);
 
     const before = fake.requests.length;
@@ -95,7 +107,16 @@ describe("weather job", () => {
     const later = NOW + 2 * DAY;
     const fakeLater = await startWeatherFake({ now: () => later });
     try {
-      const job = new WeatherJob({ endpoints: { ...endpoints, archiveUrl: `${fakeLater.url}/v1/archive`, forecastUrl: `${fakeLater.url}/v1/forecast` }, years: 1, perRound: 50, now: () => later });
+      const job = new WeatherJob({
+        endpoints: {
+          ...endpoints,
+          archiveUrl: `${fakeLater.url}/v1/archive`,
+          forecastUrl: `${fakeLater.url}/v1/forecast`,
+        },
+        years: 1,
+        perRound: 50,
+        now: () => later,
+      });
       await job.untilIdle();
       // Every site of the database is topped up; this one with a forecast and the archive's two new days.
       const asked = fakeLater.requests.filter((r) => r.query.includes(`latitude=51.7000`));
@@ -113,7 +134,10 @@ describe("weather job", () => {
     await pool().query(`UPDATE sites SET longitude = 0.2 WHERE id = $1`, [site.id]);
     const job = new WeatherJob({ endpoints, years: 1, perRound: 50, now: () => NOW });
     await job.round();
-    const moved = await pool().query<{ longitude: number; archive_from: string | null }>(`SELECT longitude, archive_from FROM weather_fetches WHERE site_id = $1`, [site.id]);
+    const moved = await pool().query<{ longitude: number; archive_from: string | null }>(
+      `SELECT longitude, archive_from FROM weather_fetches WHERE site_id = $1`,
+      [site.id],
+    );
     expect(moved.rows[0].longitude).toBe(0.2);
     await job.untilIdle();
     expect(fake.requests.some((r) => r.query.includes("longitude=0.2000"))).toBe(true);
@@ -122,7 +146,12 @@ describe("weather job", () => {
 
   it("a service that is down or slow fails the fetch quickly, backs off, and leaves the status 'not fetched'", async () => {
     const site = await makeSite(await makeUser());
-    const job = new WeatherJob({ endpoints: { ...endpoints, timeoutMs: 300 }, years: 1, perRound: 200, now: () => NOW });
+    const job = new WeatherJob({
+      endpoints: { ...endpoints, timeoutMs: 300 },
+      years: 1,
+      perRound: 200,
+      now: () => NOW,
+    });
     try {
       fake.mode = "down";
       await job.round();
@@ -130,10 +159,15 @@ describe("weather job", () => {
       expect(status.state).toBe("not-fetched");
       expect(status.lastError).toMatch(/503/);
       fake.mode = "slow";
-      await expect(fetchHourly({ ...endpoints, timeoutMs: 300 }, DEMO_SITE, { kind: "forecast", pastDays: 1, forecastDays: 1 })).rejects.toBeInstanceOf(WeatherServiceError);
+      await expect(
+        fetchHourly({ ...endpoints, timeoutMs: 300 }, DEMO_SITE, { kind: "forecast", pastDays: 1, forecastDays: 1 }),
+      ).rejects.toBeInstanceOf(WeatherServiceError);
       status = await weatherStatus(site.id);
       expect(status.state).toBe("not-fetched");
-      const next = await pool().query<{ next_attempt_at: Date; failures: number }>(`SELECT next_attempt_at, failures FROM weather_fetches WHERE site_id = $1`, [site.id]);
+      const next = await pool().query<{ next_attempt_at: Date; failures: number }>(
+        `SELECT next_attempt_at, failures FROM weather_fetches WHERE site_id = $1`,
+        [site.id],
+      );
       expect(next.rows[0].failures).toBe(1);
       expect(next.rows[0].next_attempt_at.getTime()).toBeGreaterThan(NOW);
     } finally {

@@ -5,7 +5,15 @@
 import http from "node:http";
 import { eq, sql } from "drizzle-orm";
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from "vitest";
-import { createSession, generateSessionToken, MAX_FAILURES_PER_ADDRESS, readSessionToken, sessionIdFromToken, SESSION_DAYS, verifyPassword } from "~/.server/auth";
+import {
+  createSession,
+  generateSessionToken,
+  MAX_FAILURES_PER_ADDRESS,
+  readSessionToken,
+  sessionIdFromToken,
+  SESSION_DAYS,
+  verifyPassword,
+} from "~/.server/auth";
 import { db } from "~/.server/db";
 import { sunkMail } from "~/.server/mail";
 import { sessions, users } from "~/db/schema.server";
@@ -43,25 +51,43 @@ type Answer = { status: number; headers: http.IncomingHttpHeaders; body: string 
  * stopping as soon as an answer arrives, as a client that reads its answer would, or, with
  * `deaf`, sending all of them whatever the answer, as curl does.
  */
-function send(opts: { path: string; method?: string; headers?: Record<string, string>; body?: string; stream?: number; deaf?: boolean; from?: string }): Promise<Answer> {
+function send(opts: {
+  path: string;
+  method?: string;
+  headers?: Record<string, string>;
+  body?: string;
+  stream?: number;
+  deaf?: boolean;
+  from?: string;
+}): Promise<Answer> {
   return new Promise((resolve, reject) => {
     let answered = false;
     const timer = setTimeout(() => {
       req.destroy();
       reject(new Error(`no answer to ${opts.method ?? "GET"} ${opts.path} within 30 s`));
     }, 30_000);
-    const req = http.request({ host: "127.0.0.1", port, path: opts.path, method: opts.method ?? "GET", headers: opts.headers, localAddress: opts.from }, (res) => {
-      answered = true;
-      let body = "";
-      res.setEncoding("utf8");
-      res.on("data", (d) => (body += d));
-      res.on("end", () => {
-        clearTimeout(timer);
-        resolve({ status: res.statusCode!, headers: res.headers, body });
-        if (!opts.deaf) req.destroy();
-      });
-      res.on("error", () => {});
-    });
+    const req = http.request(
+      {
+        host: "127.0.0.1",
+        port,
+        path: opts.path,
+        method: opts.method ?? "GET",
+        headers: opts.headers,
+        localAddress: opts.from,
+      },
+      (res) => {
+        answered = true;
+        let body = "";
+        res.setEncoding("utf8");
+        res.on("data", (d) => (body += d));
+        res.on("end", () => {
+          clearTimeout(timer);
+          resolve({ status: res.statusCode!, headers: res.headers, body });
+          if (!opts.deaf) req.destroy();
+        });
+        res.on("error", () => {});
+      },
+    );
     req.on("error", (err) => {
       if (!answered) {
         clearTimeout(timer);
@@ -105,7 +131,11 @@ describe("request bodies are bounded before any route reads them (issue 14 §1)"
     const over = await send({
       path: "/api/ingest",
       method: "POST",
-      headers: { Authorization: `Bearer ${sensor.id}.${sensor.secret}`, "Content-Type": "application/json", "Transfer-Encoding": "chunked" },
+      headers: {
+        Authorization: `Bearer ${sensor.id}.${sensor.secret}`,
+        "Content-Type": "application/json",
+        "Transfer-Encoding": "chunked",
+      },
       stream: 5 * 1024 * 1024,
       deaf: true,
     });
@@ -128,7 +158,12 @@ describe("request bodies are bounded before any route reads them (issue 14 §1)"
     const over = await send({
       path: `/sites/${site.id}/import`,
       method: "POST",
-      headers: { Cookie: cookie, Origin: origin(), "Content-Type": "multipart/form-data; boundary=nwboundary", "Transfer-Encoding": "chunked" },
+      headers: {
+        Cookie: cookie,
+        Origin: origin(),
+        "Content-Type": "multipart/form-data; boundary=nwboundary",
+        "Transfer-Encoding": "chunked",
+      },
       stream: 22 * 1024 * 1024,
     });
     expect(over.status).toBe(413);
@@ -136,22 +171,47 @@ describe("request bodies are bounded before any route reads them (issue 14 §1)"
   });
 
   it("a form post declaring 200 MB, or chunked past 1 MB, gets 413 (forms: 64 KB)", async () => {
-    const declared = await send({ path: "/sign-in", method: "POST", headers: { "Content-Type": FORM, "Content-Length": String(200 * 1024 * 1024) }, stream: 1024 * 1024 });
+    const declared = await send({
+      path: "/sign-in",
+      method: "POST",
+      headers: { "Content-Type": FORM, "Content-Length": String(200 * 1024 * 1024) },
+      stream: 1024 * 1024,
+    });
     expect(declared.status).toBe(413);
-    const chunked = await send({ path: "/sign-in", method: "POST", headers: { "Content-Type": FORM, "Transfer-Encoding": "chunked" }, stream: 1024 * 1024 + 1 });
+    const chunked = await send({
+      path: "/sign-in",
+      method: "POST",
+      headers: { "Content-Type": FORM, "Transfer-Encoding": "chunked" },
+      stream: 1024 * 1024 + 1,
+    });
     expect(chunked.status).toBe(413);
     // A malformed Origin is refused, not a 500.
-    const badOrigin = await send({ path: "/sign-in", method: "POST", headers: { "Content-Type": FORM, Origin: "http://[bad" }, body: "email=a" });
+    const badOrigin = await send({
+      path: "/sign-in",
+      method: "POST",
+      headers: { "Content-Type": FORM, Origin: "http://[bad" },
+      body: "email=a",
+    });
     expect(badOrigin.status).toBe(403);
     // The ingest and import limits are not for requests without their credentials.
-    const anonymousIngest = await send({ path: "/api/ingest", method: "POST", headers: { "Transfer-Encoding": "chunked" }, stream: 1024 * 1024 });
+    const anonymousIngest = await send({
+      path: "/api/ingest",
+      method: "POST",
+      headers: { "Transfer-Encoding": "chunked" },
+      stream: 1024 * 1024,
+    });
     expect(anonymousIngest.status).toBe(413);
     const { user } = await signedIn();
     const site = await makeSite(user);
     const madeUpSession = await send({
       path: `/sites/${site.id}/import`,
       method: "POST",
-      headers: { Cookie: "nw_session=madeup", Origin: origin(), "Content-Type": "multipart/form-data; boundary=nwboundary", "Transfer-Encoding": "chunked" },
+      headers: {
+        Cookie: "nw_session=madeup",
+        Origin: origin(),
+        "Content-Type": "multipart/form-data; boundary=nwboundary",
+        "Transfer-Encoding": "chunked",
+      },
       stream: 1024 * 1024,
     });
     expect(madeUpSession.status).toBe(413);
@@ -160,18 +220,30 @@ describe("request bodies are bounded before any route reads them (issue 14 §1)"
 
   it("past the budget of bodies held at once, a post gets 503 with Retry-After, and the budget is given back", async () => {
     // The server's own copy (Vite's module graph, which the routes and the adapter share).
-    const { BODY_BUDGETS } = (await running.load("/app/.server/http-adapter.ts")) as typeof import("~/.server/http-adapter");
+    const { BODY_BUDGETS } = (await running.load(
+      "/app/.server/http-adapter.ts",
+    )) as typeof import("~/.server/http-adapter");
     const before = BODY_BUDGETS.form.used;
     // As if many other form posts were being read at this moment.
     BODY_BUDGETS.form.used += BODY_BUDGETS.form.max;
     try {
-      const r = await send({ path: "/sign-in", method: "POST", headers: { "Content-Type": FORM, Origin: origin() }, body: form({ email: "a@example.test", password: "x" }) });
+      const r = await send({
+        path: "/sign-in",
+        method: "POST",
+        headers: { "Content-Type": FORM, Origin: origin() },
+        body: form({ email: "a@example.test", password: "x" }),
+      });
       expect(r.status).toBe(503);
       expect(r.headers["retry-after"]).toBeDefined();
     } finally {
       BODY_BUDGETS.form.used -= BODY_BUDGETS.form.max;
     }
-    const ok = await send({ path: "/sign-in", method: "POST", headers: { "Content-Type": FORM, Origin: origin() }, body: form({ email: "a@example.test", password: "x" }) });
+    const ok = await send({
+      path: "/sign-in",
+      method: "POST",
+      headers: { "Content-Type": FORM, Origin: origin() },
+      body: form({ email: "a@example.test", password: "x" }),
+    });
     expect(ok.status).toBe(200);
     // Given back when the server has closed the exchange, which may follow the answer by a moment.
     for (let i = 0; i < 100 && BODY_BUDGETS.form.used !== before; i++) await new Promise((r) => setTimeout(r, 20));
@@ -184,8 +256,19 @@ describe("request bodies are bounded before any route reads them (issue 14 §1)"
     const spot = await makeSpot(site);
     const sensor = await makeSensor(site, spot);
     // A body that cannot be parsed: read first, it was a 500; checked first, it is the sign-in redirect.
-    for (const path of [`/sites/${site.id}/alerts`, `/sites/${site.id}/members`, `/sites/${site.id}/spots/${spot.id}/alerts`, `/sites/${site.id}/sensors/${sensor.id}`, `/api/sites/${site.id}/notes`]) {
-      const r = await send({ path, method: "POST", headers: { Origin: origin(), "Content-Type": "multipart/form-data; boundary=nw" }, body: "not multipart at all" });
+    for (const path of [
+      `/sites/${site.id}/alerts`,
+      `/sites/${site.id}/members`,
+      `/sites/${site.id}/spots/${spot.id}/alerts`,
+      `/sites/${site.id}/sensors/${sensor.id}`,
+      `/api/sites/${site.id}/notes`,
+    ]) {
+      const r = await send({
+        path,
+        method: "POST",
+        headers: { Origin: origin(), "Content-Type": "multipart/form-data; boundary=nw" },
+        body: "not multipart at all",
+      });
       expect(r.status, path).toBe(302);
       expect(r.headers.location, path).toMatch(/^\/sign-in\?next=/);
     }
@@ -205,12 +288,22 @@ describe("security headers and the production policy (issue 14 §1)", () => {
     // tests/e2e/security-headers.spec.ts.
     expect(csp).toContain("script-src 'self' 'unsafe-inline'");
     const { contentSecurityPolicy } = await import("~/.server/http-adapter");
-    expect(contentSecurityPolicy("abc").split("; ").find((d) => d.startsWith("script-src"))).toBe("script-src 'self' 'nonce-abc'");
+    expect(
+      contentSecurityPolicy("abc")
+        .split("; ")
+        .find((d) => d.startsWith("script-src")),
+    ).toBe("script-src 'self' 'nonce-abc'");
   });
 });
 
 const signInPost = (fields: Record<string, string>, headers: Record<string, string> = {}, from?: string) =>
-  send({ path: "/sign-in", method: "POST", headers: { "Content-Type": FORM, Origin: origin(), ...headers }, body: form(fields), from });
+  send({
+    path: "/sign-in",
+    method: "POST",
+    headers: { "Content-Type": FORM, Origin: origin(), ...headers },
+    body: form(fields),
+    from,
+  });
 
 const locked = (r: Answer) => r.status === 200 && r.body.includes("Too many failed attempts");
 
@@ -221,16 +314,25 @@ describe("the sign-in rate limit is keyed on the client's socket address (issue 
 
   it("a client cannot escape the limit by sending X-Nichewise-Client or X-Forwarded-For itself", async () => {
     for (let i = 0; i < MAX_FAILURES_PER_ADDRESS; i++) {
-      const r = await signInPost({ email: `nobody${i}@example.test`, password: "wrong password" }, { "X-Nichewise-Client": `10.9.${i}.1`, "X-Forwarded-For": `10.8.${i}.1` }, "127.0.0.4");
+      const r = await signInPost(
+        { email: `nobody${i}@example.test`, password: "wrong password" },
+        { "X-Nichewise-Client": `10.9.${i}.1`, "X-Forwarded-For": `10.8.${i}.1` },
+        "127.0.0.4",
+      );
       expect(locked(r)).toBe(false);
     }
-    const next = await signInPost({ email: "nobody-else@example.test", password: "wrong password" }, { "X-Nichewise-Client": "10.7.7.7", "X-Forwarded-For": "10.6.6.6" }, "127.0.0.4");
+    const next = await signInPost(
+      { email: "nobody-else@example.test", password: "wrong password" },
+      { "X-Nichewise-Client": "10.7.7.7", "X-Forwarded-For": "10.6.6.6" },
+      "127.0.0.4",
+    );
     expect(locked(next)).toBe(true);
   });
 
   it("a flood of failures on made-up accounts, and on a real one, from one address does not lock the real owner out elsewhere", async () => {
     const owner = await makeUser();
-    for (let i = 0; i < MAX_FAILURES_PER_ADDRESS; i++) await signInPost({ email: `made-up${i}@example.test`, password: "wrong password" }, {}, "127.0.0.5");
+    for (let i = 0; i < MAX_FAILURES_PER_ADDRESS; i++)
+      await signInPost({ email: `made-up${i}@example.test`, password: "wrong password" }, {}, "127.0.0.5");
     for (let i = 0; i < 6; i++) await signInPost({ email: owner.email, password: "wrong password" }, {}, "127.0.0.6");
     expect(locked(await signInPost({ email: owner.email, password: owner.password }, {}, "127.0.0.5"))).toBe(true);
     const r = await signInPost({ email: owner.email, password: owner.password }, {}, "127.0.0.7");
@@ -240,7 +342,16 @@ describe("the sign-in rate limit is keyed on the client's socket address (issue 
 });
 
 describe("`next` after sign-in and sign-up stays on this site (issue 14 §2, OWASP Unvalidated Redirects Cheat Sheet)", () => {
-  const payloads = ["/\\evil.example/x", "/%09/evil.example/x", "/\t/evil.example/x", "//evil.example/x", "https://evil.example/x", "/\\/evil.example", "/./\\evil.example", "\\\\evil.example"];
+  const payloads = [
+    "/\\evil.example/x",
+    "/%09/evil.example/x",
+    "/\t/evil.example/x",
+    "//evil.example/x",
+    "https://evil.example/x",
+    "/\\/evil.example",
+    "/./\\evil.example",
+    "\\\\evil.example",
+  ];
 
   it("refuses off-site targets after a sign-in and keeps on-site ones", async () => {
     const u = await makeUser();
@@ -257,7 +368,10 @@ describe("`next` after sign-in and sign-up stays on this site (issue 14 §2, OWA
     const { cookie } = await signedIn();
     for (const page of ["/sign-in", "/sign-up"]) {
       for (const next of payloads) {
-        const r = await send({ path: `${page}?next=${encodeURIComponent(decodeURIComponent(next))}`, headers: { Cookie: cookie } });
+        const r = await send({
+          path: `${page}?next=${encodeURIComponent(decodeURIComponent(next))}`,
+          headers: { Cookie: cookie },
+        });
         expect(r.status, `${page} ${next}`).toBe(302);
         expect(r.headers.location, `${page} ${next}`).toBe("/");
       }
@@ -269,7 +383,10 @@ describe("sessions (issue 14 §2)", () => {
   it("a session renewed in the database is sent to the browser again with its new expiry", async () => {
     const { user, token, cookie } = await signedIn();
     // Ten days left: past the half-way point, so the next request renews it to thirty.
-    await db().update(sessions).set({ expiresAt: new Date(Date.now() + 10 * 86_400_000) }).where(eq(sessions.id, sessionIdFromToken(token)));
+    await db()
+      .update(sessions)
+      .set({ expiresAt: new Date(Date.now() + 10 * 86_400_000) })
+      .where(eq(sessions.id, sessionIdFromToken(token)));
     const r = await send({ path: "/", headers: { Cookie: cookie } });
     expect(r.status).toBe(200);
     const set = ([] as string[]).concat(r.headers["set-cookie"] ?? []).find((c) => c.startsWith("nw_session="));
@@ -290,8 +407,18 @@ describe("sign-up answers the same whether the address has an account (issue 14 
 
   it("redirects both alike, signs in only the new account, and tells the address's owner by e-mail", async () => {
     const existing = await makeUser();
-    const taken = await signUp({ name: "Someone", email: existing.email, password: "another long password", next: "/settings" });
-    const fresh = await signUp({ name: "New grower", email: `new-${Date.now()}@example.test`, password: "another long password", next: "/settings" });
+    const taken = await signUp({
+      name: "Someone",
+      email: existing.email,
+      password: "another long password",
+      next: "/settings",
+    });
+    const fresh = await signUp({
+      name: "New grower",
+      email: `new-${Date.now()}@example.test`,
+      password: "another long password",
+      next: "/settings",
+    });
     expect(taken.status).toBe(302);
     expect(fresh.status).toBe(302);
     expect(taken.headers.location).toBe(fresh.headers.location);

@@ -31,13 +31,16 @@ beforeAll(async () => {
   const token = generateSessionToken();
   await createSession(token, carer.id);
   carerToken = token;
-  await db().insert(wishlist).values([
-    { siteId: site.id, plantKey: "cattleya", mustHave: true, pots: 2 },
-    { siteId: site.id, plantKey: "masdevallia", mustHave: false, pots: 1 },
-  ]);
+  await db()
+    .insert(wishlist)
+    .values([
+      { siteId: site.id, plantKey: "cattleya", mustHave: true, pots: 2 },
+      { siteId: site.id, plantKey: "masdevallia", mustHave: false, pots: 1 },
+    ]);
 });
 
-const wishes = async () => (await db().select().from(wishlist).where(eq(wishlist.siteId, site.id))).map((w) => w.plantKey).sort();
+const wishes = async () =>
+  (await db().select().from(wishlist).where(eq(wishlist.siteId, site.id))).map((w) => w.plantKey).sort();
 
 describe("removing from the wishlist", () => {
   it("keeps a must-have until the removal is confirmed, then hands back what went", async () => {
@@ -64,7 +67,10 @@ describe("removing from the wishlist", () => {
 
   it("puts a removed must-have back as it was", async () => {
     await post(carerToken, site.id, { intent: "save", restore: "1", plantKey: "cattleya", pots: "2", mustHave: "on" });
-    const [w] = await db().select().from(wishlist).where(and(eq(wishlist.siteId, site.id), eq(wishlist.plantKey, "cattleya")));
+    const [w] = await db()
+      .select()
+      .from(wishlist)
+      .where(and(eq(wishlist.siteId, site.id), eq(wishlist.plantKey, "cattleya")));
     expect(w).toMatchObject({ mustHave: true, pots: 2 });
   });
 });

@@ -49,7 +49,12 @@ export class AlertEngine {
     this.clock = opts.clock ?? systemClock;
     this.maxPending = opts.maxPending ?? MAX_PENDING;
     this.notifier = new Notifier({ clock: this.clock, log: opts.log });
-    this.evaluator = new Evaluator({ clock: this.clock, notifier: this.notifier, minuteMs: opts.minuteMs ?? 60_000, maxLagMs: opts.maxLagMs ?? 6 * 3_600_000 });
+    this.evaluator = new Evaluator({
+      clock: this.clock,
+      notifier: this.notifier,
+      minuteMs: opts.minuteMs ?? 60_000,
+      maxLagMs: opts.maxLagMs ?? 6 * 3_600_000,
+    });
     this.silence = new SilenceWatcher({ clock: this.clock, notifier: this.notifier });
   }
 
@@ -131,7 +136,10 @@ export class AlertEngine {
       this.settled = [];
       waiting.forEach((f) => f());
     } catch (err) {
-      console.error(`[alerts] evaluation failed, ${this.pendingCount} readings kept; retrying in ${this.retryDelay} ms:`, store.failure(err));
+      console.error(
+        `[alerts] evaluation failed, ${this.pendingCount} readings kept; retrying in ${this.retryDelay} ms:`,
+        store.failure(err),
+      );
       this.retryTimer = setTimeout(() => {
         this.retryTimer = null;
         void this.enqueue(() => this.flush());
@@ -173,7 +181,8 @@ export class AlertEngine {
       new Promise<boolean>((r) => (timer = setTimeout(() => r(true), ms))),
     ]);
     clearTimeout(timer);
-    if (gaveUp) console.error(`[alerts] stopped with ${this.pendingCount} readings unevaluated; the next start re-reads them`);
+    if (gaveUp)
+      console.error(`[alerts] stopped with ${this.pendingCount} readings unevaluated; the next start re-reads them`);
     if (this.retryTimer) clearTimeout(this.retryTimer);
   }
 
@@ -181,8 +190,17 @@ export class AlertEngine {
   private async handleBatch(spotId: number, rows: CommittedReading[]) {
     const ws = await store.watchesOfSpots([spotId], { withSilent: true });
     const live = ws.filter((w) => w.kind !== "silent");
-    for (const w of ws) if (w.kind === "silent") await this.silence.heard(w, rows.map((r) => r.measuredAt));
-    if (live.length > 0) await this.evaluator.readings(live, rows.map((r) => ({ at: r.measuredAt, t: r.t, h: r.h, battery: r.battery })));
+    for (const w of ws)
+      if (w.kind === "silent")
+        await this.silence.heard(
+          w,
+          rows.map((r) => r.measuredAt),
+        );
+    if (live.length > 0)
+      await this.evaluator.readings(
+        live,
+        rows.map((r) => ({ at: r.measuredAt, t: r.t, h: r.h, battery: r.battery })),
+      );
   }
 
   /** Opens silent-sensor events that are due. */

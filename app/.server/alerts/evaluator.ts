@@ -7,7 +7,16 @@ import type { Notifier } from "~/.server/alerts/notifier";
 import * as store from "~/.server/alerts/store";
 import type { SpotPoint, Tx, WatchInContext } from "~/.server/alerts/store";
 import { EARLY_WARNING_HISTORY_MINUTES, projectBatch } from "~/domain/alerts/early-warning";
-import { evaluate, isBack, valueFor, worse, type AlertKind, type Point, type RuleSettings, type Transition } from "~/domain/alerts/rules";
+import {
+  evaluate,
+  isBack,
+  valueFor,
+  worse,
+  type AlertKind,
+  type Point,
+  type RuleSettings,
+  type Transition,
+} from "~/domain/alerts/rules";
 
 export type EvaluatorOptions = {
   clock: Clock;
@@ -19,7 +28,11 @@ export type EvaluatorOptions = {
 };
 
 /** The watch's values among the readings, oldest first; `after` excludes readings at or before it. */
-export function pointsOf(kind: AlertKind, rows: { at: Date; t: number | null; h: number | null; battery: number | null }[], after = -Infinity): Point[] {
+export function pointsOf(
+  kind: AlertKind,
+  rows: { at: Date; t: number | null; h: number | null; battery: number | null }[],
+  after = -Infinity,
+): Point[] {
   const points: Point[] = [];
   for (const r of rows) {
     if (r.at.getTime() <= after) continue;
@@ -109,7 +122,8 @@ export class Evaluator {
         if (t.type === "open") {
           const peak = await this.peakSince(tx, w, t);
           openId = await store.insertEvent(tx, w, t.startedAt, peak);
-          if (next.open && transitions[transitions.length - 1] === t) next.open.peak = worse(w.kind, next.open.peak, peak);
+          if (next.open && transitions[transitions.length - 1] === t)
+            next.open.peak = worse(w.kind, next.open.peak, peak);
           notices.push({ eventId: openId, message: "open" });
         } else if (openId != null) {
           await store.closeEvent(tx, openId, t.at, t.peak);
@@ -120,7 +134,12 @@ export class Evaluator {
       }
       if (next.open && openId != null) await store.setEventPeak(tx, openId, next.open.peak);
       stillOpen = next.open != null;
-      const saved = { pendingSince: next.pendingSince, clearingSince: next.clearingSince, evaluatedTo: next.cursor ?? null, clearWarning: cleared };
+      const saved = {
+        pendingSince: next.pendingSince,
+        clearingSince: next.clearingSince,
+        evaluatedTo: next.cursor ?? null,
+        clearWarning: cleared,
+      };
       await store.saveWatchState(tx, w.id, saved);
       if (cleared) w.warnedAt = null;
     });
@@ -138,7 +157,8 @@ export class Evaluator {
   /** The worst value since the condition began: the pending stretch may span earlier batches. */
   private async peakSince(tx: Tx, w: WatchInContext, t: Extract<Transition, { type: "open" }>) {
     let peak = t.peak;
-    for (const p of pointsOf(w.kind, await store.spotPoints(w.spotId, new Date(t.startedAt.getTime() - 1), t.at, tx))) peak = worse(w.kind, peak, p.value);
+    for (const p of pointsOf(w.kind, await store.spotPoints(w.spotId, new Date(t.startedAt.getTime() - 1), t.at, tx)))
+      peak = worse(w.kind, peak, p.value);
     return peak;
   }
 
@@ -146,13 +166,17 @@ export class Evaluator {
     if (!w.earlyWarning || (w.kind !== "cold" && w.kind !== "heat")) return;
     const latest = batch[batch.length - 1];
     const windowMs = EARLY_WARNING_HISTORY_MINUTES * this.o.minuteMs;
-    const history = pointsOf(w.kind, await store.spotPoints(w.spotId, new Date(batch[0].at.getTime() - windowMs), latest.at));
+    const history = pointsOf(
+      w.kind,
+      await store.spotPoints(w.spotId, new Date(batch[0].at.getTime() - windowMs), latest.at),
+    );
     const projection = projectBatch(w.kind, w.threshold, history, batch, this.o.minuteMs);
     const now = this.o.clock.now();
     if (w.warnedAt) {
       // Re-arm once the spot is clearly back and the line no longer points at the threshold.
       const settled = now.getTime() - w.warnedAt.getTime() > w.clearMinutes * this.o.minuteMs;
-      if (!projection && settled && isBack(w.kind, w.threshold, w.hysteresis, latest.value)) await store.rearmWarning(w.id);
+      if (!projection && settled && isBack(w.kind, w.threshold, w.hysteresis, latest.value))
+        await store.rearmWarning(w.id);
       return;
     }
     if (!projection) return;

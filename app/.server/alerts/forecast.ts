@@ -43,7 +43,10 @@ async function tenderPlant(spotId: number, siteId: number): Promise<TenderPlant 
     }
     const own = custom.find((c) => c.key === key)?.profile as Partial<PlantProfile> | undefined;
     if (own && typeof own.name === "string" && typeof own.minNightC === "number") {
-      plants.push({ name: own.name, damageC: typeof own.damageNightC === "number" ? own.damageNightC : own.minNightC - 4 });
+      plants.push({
+        name: own.name,
+        damageC: typeof own.damageNightC === "number" ? own.damageNightC : own.minNightC - 4,
+      });
     }
   }
   return mostTender(plants);
@@ -143,7 +146,9 @@ export class ForecastWarnings {
       // A new night, or one cleared (or ended with its plants gone) that crosses again: a new event.
       if ((await store.openForecastWarning(spot.id, n.key, figures(n), at)) === null) continue;
       warned++;
-      this.log(`Forecast warning for ${spot.name}: night of ${n.key} likely ${n.likely.toFixed(1)} °C, ${tender.name}'s line ${tender.damageC} °C`);
+      this.log(
+        `Forecast warning for ${spot.name}: night of ${n.key} likely ${n.likely.toFixed(1)} °C, ${tender.name}'s line ${tender.damageC} °C`,
+      );
     }
     for (const n of plan.keep) await store.updateForecastWarning(spot.id, n.key, figures(n));
     for (const key of plan.clear) {
@@ -187,7 +192,9 @@ export class ForecastWarnings {
           timeZone: spot.timeZone,
           unit: r.unit,
         };
-        return message === "warn" ? forecastWarningMessage(ctx, facts(w, spot.name)) : forecastClearMessage(ctx, facts(w, spot.name));
+        return message === "warn"
+          ? forecastWarningMessage(ctx, facts(w, spot.name))
+          : forecastClearMessage(ctx, facts(w, spot.name));
       },
     });
     // A failed send is tried again on the next pass (the others may then hear twice: better than a frost unheard).

@@ -81,7 +81,10 @@ export class Notifier {
       } catch (err) {
         failed = true;
         await letter.release?.(r);
-        console.error(`[alerts] ${letter.source} e-mail to ${r.email} not sent${letter.release ? " (will retry)" : ""}:`, store.failure(err));
+        console.error(
+          `[alerts] ${letter.source} e-mail to ${r.email} not sent${letter.release ? " (will retry)" : ""}:`,
+          store.failure(err),
+        );
       }
     }
     return !failed;
@@ -101,7 +104,8 @@ export class Notifier {
       source: "alert",
       siteId: w.siteId,
       for: (r) =>
-        wantsKind(r, w.kind) && (heard ? heard.has(r.userId) : KINDS[w.kind].urgent || !inQuietHours(now, w.timeZone, r.quietFrom, r.quietTo)),
+        wantsKind(r, w.kind) &&
+        (heard ? heard.has(r.userId) : KINDS[w.kind].urgent || !inQuietHours(now, w.timeZone, r.quietFrom, r.quietTo)),
       claim: (r) => store.claimDelivery(ev.id, r.userId, message),
       release: (r) => store.releaseDelivery(ev.id, r.userId, message),
       compose: (r) =>
@@ -113,7 +117,11 @@ export class Notifier {
               lastSeenAt: latest.at,
               lastTemperature: latest.t,
             })
-          : clearMessage(messageContext(w, r), { startedAt: ev.startedAt, endedAt: ev.endedAt ?? now, peak: ev.peak ?? w.threshold }),
+          : clearMessage(messageContext(w, r), {
+              startedAt: ev.startedAt,
+              endedAt: ev.endedAt ?? now,
+              peak: ev.peak ?? w.threshold,
+            }),
     });
     if (!sent) return;
     await store.markNotified(ev.id, message, this.clock.now());
@@ -133,13 +141,22 @@ export class Notifier {
       source: "early",
       siteId: w.siteId,
       for: (r) => wantsKind(r, w.kind),
-      compose: (r) => earlyMessage(messageContext(w, r), { minutes: roundMinutes(projection.minutes), ratePerHour: projection.ratePerHour, latest }),
+      compose: (r) =>
+        earlyMessage(messageContext(w, r), {
+          minutes: roundMinutes(projection.minutes),
+          ratePerHour: projection.ratePerHour,
+          latest,
+        }),
     });
   }
 
   private async latest(w: WatchInContext): Promise<{ at: Date | null; value: number | null; t: number | null }> {
     const row = await latestReading(w.spotId);
     if (!row) return { at: null, value: null, t: null };
-    return { at: new Date(row.measured_at), value: valueFor(w.kind, { t: row.temp, h: row.rh, battery: row.battery }), t: row.temp };
+    return {
+      at: new Date(row.measured_at),
+      value: valueFor(w.kind, { t: row.temp, h: row.rh, battery: row.battery }),
+      t: row.temp,
+    };
   }
 }

@@ -12,7 +12,10 @@ import { alertEvents, alertPreferences, watches, spots, users, type Role } from 
 /** Kind and pause of every watch of the spots, for the site's alerts page. */
 export async function watchMarks(spotIds: number[]) {
   if (spotIds.length === 0) return [];
-  return db().select({ spotId: watches.spotId, kind: watches.kind, paused: watches.paused }).from(watches).where(inArray(watches.spotId, spotIds));
+  return db()
+    .select({ spotId: watches.spotId, kind: watches.kind, paused: watches.paused })
+    .from(watches)
+    .where(inArray(watches.spotId, spotIds));
 }
 
 export async function listRules(spotId: number) {
@@ -23,7 +26,10 @@ export async function listRules(spotId: number) {
 export async function getRule(spotId: number, ruleId: unknown) {
   const id = toId(ruleId);
   if (id === null) throw data("Choose a watch; reload the page and try again.", { status: 400 });
-  const [rule] = await db().select().from(watches).where(and(eq(watches.id, id), eq(watches.spotId, spotId)));
+  const [rule] = await db()
+    .select()
+    .from(watches)
+    .where(and(eq(watches.id, id), eq(watches.spotId, spotId)));
   if (!rule) notFound();
   return rule;
 }
@@ -64,7 +70,11 @@ export async function acknowledge(siteId: number, eventId: unknown, userId: numb
     .where(and(eq(alertEvents.id, id), eq(spots.siteId, siteId)));
   if (!ev) notFound();
   // The first acknowledgement stands: it records who took charge.
-  if (!ev.acknowledgedAt) await db().update(alertEvents).set({ acknowledgedBy: userId, acknowledgedAt: new Date() }).where(eq(alertEvents.id, id));
+  if (!ev.acknowledgedAt)
+    await db()
+      .update(alertEvents)
+      .set({ acknowledgedBy: userId, acknowledgedAt: new Date() })
+      .where(eq(alertEvents.id, id));
 }
 
 /** How long an early warning stays on the banner. */
@@ -74,16 +84,45 @@ const WARNING_SHOWN_MS = 3 * 3_600_000;
 export async function alertBanner(siteId: number, now = new Date()) {
   const open = await siteEvents(siteId, { openOnly: true, limit: 10 });
   const warned = await db()
-    .select({ ruleId: watches.id, kind: watches.kind, spotId: spots.id, spotName: spots.name, threshold: watches.threshold, warnedAt: watches.warnedAt })
+    .select({
+      ruleId: watches.id,
+      kind: watches.kind,
+      spotId: spots.id,
+      spotName: spots.name,
+      threshold: watches.threshold,
+      warnedAt: watches.warnedAt,
+    })
     .from(watches)
     .innerJoin(spots, eq(spots.id, watches.spotId))
-    .where(and(eq(spots.siteId, siteId), eq(watches.paused, false), gt(watches.warnedAt, new Date(now.getTime() - WARNING_SHOWN_MS))));
+    .where(
+      and(
+        eq(spots.siteId, siteId),
+        eq(watches.paused, false),
+        gt(watches.warnedAt, new Date(now.getTime() - WARNING_SHOWN_MS)),
+      ),
+    );
   const openRules = new Set(open.map((e) => `${e.spotId}:${e.kind}`));
   return {
-    open: open.map((e) => ({ id: e.id, kind: e.kind, spotId: e.spotId, spotName: e.spotName, startedAt: e.startedAt.toISOString(), peak: e.peak, threshold: e.threshold, acknowledgedBy: e.acknowledgedBy })),
+    open: open.map((e) => ({
+      id: e.id,
+      kind: e.kind,
+      spotId: e.spotId,
+      spotName: e.spotName,
+      startedAt: e.startedAt.toISOString(),
+      peak: e.peak,
+      threshold: e.threshold,
+      acknowledgedBy: e.acknowledgedBy,
+    })),
     warnings: warned
       .filter((w) => !openRules.has(`${w.spotId}:${w.kind}`))
-      .map((w) => ({ ruleId: w.ruleId, kind: w.kind, spotId: w.spotId, spotName: w.spotName, threshold: w.threshold, warnedAt: w.warnedAt!.toISOString() })),
+      .map((w) => ({
+        ruleId: w.ruleId,
+        kind: w.kind,
+        spotId: w.spotId,
+        spotName: w.spotName,
+        threshold: w.threshold,
+        warnedAt: w.warnedAt!.toISOString(),
+      })),
     forecast: await openForecastWarnings(siteId, now),
   };
 }
@@ -91,18 +130,35 @@ export type AlertBannerData = Awaited<ReturnType<typeof alertBanner>>;
 
 /** The member's alert e-mails for the site; defaults (defaultKinds) when they never saved any. */
 export async function getPreferences(userId: number, siteId: number, role: Role) {
-  const [p] = await db().select().from(alertPreferences).where(and(eq(alertPreferences.userId, userId), eq(alertPreferences.siteId, siteId)));
+  const [p] = await db()
+    .select()
+    .from(alertPreferences)
+    .where(and(eq(alertPreferences.userId, userId), eq(alertPreferences.siteId, siteId)));
   return p ?? { userId, siteId, email: true, kinds: defaultKinds(role), quietFrom: null, quietTo: null };
 }
 
-export async function savePreferences(p: { userId: number; siteId: number; email: boolean; kinds: string[]; quietFrom: number | null; quietTo: number | null }) {
+export async function savePreferences(p: {
+  userId: number;
+  siteId: number;
+  email: boolean;
+  kinds: string[];
+  quietFrom: number | null;
+  quietTo: number | null;
+}) {
   await db()
     .insert(alertPreferences)
     .values(p)
-    .onConflictDoUpdate({ target: [alertPreferences.userId, alertPreferences.siteId], set: { email: p.email, kinds: p.kinds, quietFrom: p.quietFrom, quietTo: p.quietTo } });
+    .onConflictDoUpdate({
+      target: [alertPreferences.userId, alertPreferences.siteId],
+      set: { email: p.email, kinds: p.kinds, quietFrom: p.quietFrom, quietTo: p.quietTo },
+    });
 }
 
 export async function outdoorSpotIds(siteId: number) {
-  return (await db().select({ id: spots.id }).from(spots).where(and(eq(spots.siteId, siteId), eq(spots.indoor, false)))).map((s) => s.id);
+  return (
+    await db()
+      .select({ id: spots.id })
+      .from(spots)
+      .where(and(eq(spots.siteId, siteId), eq(spots.indoor, false)))
+  ).map((s) => s.id);
 }
-

@@ -41,7 +41,10 @@ export async function siteRecipients(siteId: number, q: Tx = db()): Promise<Reci
     })
     .from(memberships)
     .innerJoin(users, eq(users.id, memberships.userId))
-    .leftJoin(alertPreferences, and(eq(alertPreferences.userId, memberships.userId), eq(alertPreferences.siteId, memberships.siteId)))
+    .leftJoin(
+      alertPreferences,
+      and(eq(alertPreferences.userId, memberships.userId), eq(alertPreferences.siteId, memberships.siteId)),
+    )
     .where(eq(memberships.siteId, siteId))
     .orderBy(asc(users.id));
   return rows.map((r) => ({

@@ -3,7 +3,24 @@
 // the schema's own tables and inferred types (who gets the e-mails: recipients.ts). Drizzle's
 // query builder throughout; raw `sql` only for what it cannot say (calibrated values, greatest(),
 // epoch arithmetic). Times come from the caller's clock: nothing here reads the database's now().
-import { and, asc, desc, eq, exists, getTableColumns, gt, gte, inArray, isNotNull, isNull, lt, lte, ne, or, sql } from "drizzle-orm";
+import {
+  and,
+  asc,
+  desc,
+  eq,
+  exists,
+  getTableColumns,
+  gt,
+  gte,
+  inArray,
+  isNotNull,
+  isNull,
+  lt,
+  lte,
+  ne,
+  or,
+  sql,
+} from "drizzle-orm";
 import { db, type Db } from "~/.server/db";
 import { calibratedSql } from "~/.server/ingest/calibrated";
 import {
@@ -35,7 +52,13 @@ export type OpenEvent = { id: number; startedAt: Date; peak: number | null };
 export type SpotPoint = { at: Date; t: number | null; h: number | null; battery: number | null };
 export type DeliveryMessage = (typeof alertDeliveries.$inferSelect)["message"];
 
-const contextColumns = { ...getTableColumns(watches), spotName: spots.name, siteId: spots.siteId, siteName: sites.name, timeZone: sites.timeZone };
+const contextColumns = {
+  ...getTableColumns(watches),
+  spotName: spots.name,
+  siteId: spots.siteId,
+  siteName: sites.name,
+  timeZone: sites.timeZone,
+};
 
 const inContext = (q: Tx) =>
   q
@@ -56,24 +79,45 @@ export async function lockWatch(q: Tx, id: number): Promise<WatchInContext | und
 }
 
 /** Unpaused watches of the spots, in id order; silent-sensor ones too when asked. */
-export function watchesOfSpots(spotIds: number[], opts: { withSilent: boolean }, q: Tx = db()): Promise<WatchInContext[]> {
+export function watchesOfSpots(
+  spotIds: number[],
+  opts: { withSilent: boolean },
+  q: Tx = db(),
+): Promise<WatchInContext[]> {
   if (spotIds.length === 0) return Promise.resolve([]);
   return inContext(q)
-    .where(and(inArray(watches.spotId, spotIds), eq(watches.paused, false), opts.withSilent ? undefined : ne(watches.kind, "silent")))
+    .where(
+      and(
+        inArray(watches.spotId, spotIds),
+        eq(watches.paused, false),
+        opts.withSilent ? undefined : ne(watches.kind, "silent"),
+      ),
+    )
     .orderBy(asc(watches.id));
 }
 
 /** Spots with a live watch evaluated before: after a restart they are re-read from each cursor. */
 export async function evaluatedSpots(q: Tx = db()): Promise<number[]> {
-  const rows = await q.selectDistinct({ spotId: watches.spotId }).from(watches).where(and(live, isNotNull(watches.evaluatedTo)));
+  const rows = await q
+    .selectDistinct({ spotId: watches.spotId })
+    .from(watches)
+    .where(and(live, isNotNull(watches.evaluatedTo)));
   return rows.map((r) => r.spotId);
 }
 
-export type WatchState = { pendingSince: Date | null; clearingSince: Date | null; evaluatedTo: Date | null; clearWarning: boolean };
+export type WatchState = {
+  pendingSince: Date | null;
+  clearingSince: Date | null;
+  evaluatedTo: Date | null;
+  clearWarning: boolean;
+};
 
 export async function saveWatchState(q: Tx, id: number, s: WatchState) {
   const { clearWarning, ...state } = s;
-  await q.update(watches).set({ ...state, ...(clearWarning ? { warnedAt: null } : {}) }).where(eq(watches.id, id));
+  await q
+    .update(watches)
+    .set({ ...state, ...(clearWarning ? { warnedAt: null } : {}) })
+    .where(eq(watches.id, id));
 }
 
 /** Claims the watch's early warning: whoever sets warnedAt sends it, so it goes once. */
@@ -84,7 +128,10 @@ export async function claimWarning(id: number, now: Date, q: Tx = db()): Promise
 
 /** Re-arms the early warning, unless the condition has started holding meanwhile. */
 export async function rearmWarning(id: number, q: Tx = db()) {
-  await q.update(watches).set({ warnedAt: null }).where(and(eq(watches.id, id), isNull(watches.pendingSince)));
+  await q
+    .update(watches)
+    .set({ warnedAt: null })
+    .where(and(eq(watches.id, id), isNull(watches.pendingSince)));
 }
 
 // ---- events
@@ -95,8 +142,16 @@ export async function openEvent(watchId: number, q: Tx = db()): Promise<OpenEven
   return (await q.select(columns).from(alertEvents).where(open).orderBy(desc(alertEvents.startedAt)).limit(1))[0];
 }
 
-export async function insertEvent(q: Tx, w: Pick<Watch, "id" | "spotId" | "kind">, startedAt: Date, peak: number): Promise<number> {
-  const [row] = await q.insert(alertEvents).values({ ruleId: w.id, spotId: w.spotId, kind: w.kind, startedAt, peak }).returning({ id: alertEvents.id });
+export async function insertEvent(
+  q: Tx,
+  w: Pick<Watch, "id" | "spotId" | "kind">,
+  startedAt: Date,
+  peak: number,
+): Promise<number> {
+  const [row] = await q
+    .insert(alertEvents)
+    .values({ ruleId: w.id, spotId: w.spotId, kind: w.kind, startedAt, peak })
+    .returning({ id: alertEvents.id });
   return row.id;
 }
 
@@ -122,14 +177,22 @@ export async function getEvent(id: number, q: Tx = db()) {
 }
 
 /** Events whose open or all-clear e-mail is still owed, from the last day, oldest first. */
-export async function undeliveredEvents(since: Date, q: Tx = db()): Promise<{ id: number; message: DeliveryMessage }[]> {
+export async function undeliveredEvents(
+  since: Date,
+  q: Tx = db(),
+): Promise<{ id: number; message: DeliveryMessage }[]> {
   const rows = await q
     .select({ id: alertEvents.id, notifiedAt: alertEvents.notifiedAt })
     .from(alertEvents)
     .where(
       or(
         and(isNull(alertEvents.notifiedAt), gt(alertEvents.startedAt, since)),
-        and(isNotNull(alertEvents.endedAt), isNotNull(alertEvents.notifiedAt), isNull(alertEvents.clearNotifiedAt), gt(alertEvents.endedAt, since)),
+        and(
+          isNotNull(alertEvents.endedAt),
+          isNotNull(alertEvents.notifiedAt),
+          isNull(alertEvents.clearNotifiedAt),
+          gt(alertEvents.endedAt, since),
+        ),
       ),
     )
     .orderBy(asc(alertEvents.id));
@@ -137,18 +200,38 @@ export async function undeliveredEvents(since: Date, q: Tx = db()): Promise<{ id
 }
 
 export async function markNotified(id: number, message: DeliveryMessage, now: Date, q: Tx = db()) {
-  await q.update(alertEvents).set(message === "open" ? { notifiedAt: now } : { clearNotifiedAt: now }).where(eq(alertEvents.id, id));
+  await q
+    .update(alertEvents)
+    .set(message === "open" ? { notifiedAt: now } : { clearNotifiedAt: now })
+    .where(eq(alertEvents.id, id));
 }
 
 // ---- deliveries: one row per event, member and message, claimed before the e-mail goes
 
-export async function claimDelivery(eventId: number, userId: number, message: DeliveryMessage, q: Tx = db()): Promise<boolean> {
-  const rows = await q.insert(alertDeliveries).values({ eventId, userId, message }).onConflictDoNothing().returning({ eventId: alertDeliveries.eventId });
+export async function claimDelivery(
+  eventId: number,
+  userId: number,
+  message: DeliveryMessage,
+  q: Tx = db(),
+): Promise<boolean> {
+  const rows = await q
+    .insert(alertDeliveries)
+    .values({ eventId, userId, message })
+    .onConflictDoNothing()
+    .returning({ eventId: alertDeliveries.eventId });
   return rows.length > 0;
 }
 
 export async function releaseDelivery(eventId: number, userId: number, message: DeliveryMessage, q: Tx = db()) {
-  await q.delete(alertDeliveries).where(and(eq(alertDeliveries.eventId, eventId), eq(alertDeliveries.userId, userId), eq(alertDeliveries.message, message)));
+  await q
+    .delete(alertDeliveries)
+    .where(
+      and(
+        eq(alertDeliveries.eventId, eventId),
+        eq(alertDeliveries.userId, userId),
+        eq(alertDeliveries.message, message),
+      ),
+    );
 }
 
 /** Members who were sent the event's opening: the only ones to get its all-clear. */
@@ -192,7 +275,9 @@ export async function silentWatches(q: Tx = db()): Promise<(WatchInContext & { q
   const quiet = q
     .select({
       spotId: placements.spotId,
-      quietSince: sql<string>`max(greatest(${sensors.lastSeenAt}, ${placements.fromAt}, ${placements.createdAt}))`.as("quiet_since"),
+      quietSince: sql<string>`max(greatest(${sensors.lastSeenAt}, ${placements.fromAt}, ${placements.createdAt}))`.as(
+        "quiet_since",
+      ),
     })
     .from(placements)
     .innerJoin(sensors, eq(sensors.id, placements.sensorId))
@@ -214,19 +299,42 @@ export async function silentWatches(q: Tx = db()): Promise<(WatchInContext & { q
 // ---- forecast warnings: one row per spot and night, the e-mails claimed on the row
 
 export type ForecastWarning = typeof forecastWarnings.$inferSelect;
-export type ForecastSpot = { id: number; name: string; indoor: boolean; siteId: number; siteName: string; timeZone: string };
+export type ForecastSpot = {
+  id: number;
+  name: string;
+  indoor: boolean;
+  siteId: number;
+  siteName: string;
+  timeZone: string;
+};
 /** A night's figures as stored: the plant's line and the forecast's lows. */
-export type NightFigures = Pick<ForecastWarning, "plantName" | "damageC" | "likelyC" | "expectedLowC" | "lowerBoundC" | "leafLowC" | "lowAt" | "forecastAt">;
+export type NightFigures = Pick<
+  ForecastWarning,
+  "plantName" | "damageC" | "likelyC" | "expectedLowC" | "lowerBoundC" | "leafLowC" | "lowAt" | "forecastAt"
+>;
 
 const fw = forecastWarnings;
 const stillWarned = (spotId: number) => and(eq(fw.spotId, spotId), isNull(fw.endedAt), isNull(fw.clearedAt));
 
 /** Spots of the site (or every site) with placed plants or a warning still standing. */
 export function forecastSpots(siteId: number | null, q: Tx = db()): Promise<ForecastSpot[]> {
-  const planted = q.select({ one: sql`1` }).from(spotPlants).where(eq(spotPlants.spotId, spots.id));
-  const warned = q.select({ one: sql`1` }).from(fw).where(and(eq(fw.spotId, spots.id), isNull(fw.endedAt)));
+  const planted = q
+    .select({ one: sql`1` })
+    .from(spotPlants)
+    .where(eq(spotPlants.spotId, spots.id));
+  const warned = q
+    .select({ one: sql`1` })
+    .from(fw)
+    .where(and(eq(fw.spotId, spots.id), isNull(fw.endedAt)));
   return q
-    .select({ id: spots.id, name: spots.name, indoor: spots.indoor, siteId: spots.siteId, siteName: sites.name, timeZone: sites.timeZone })
+    .select({
+      id: spots.id,
+      name: spots.name,
+      indoor: spots.indoor,
+      siteId: spots.siteId,
+      siteName: sites.name,
+      timeZone: sites.timeZone,
+    })
     .from(spots)
     .innerJoin(sites, eq(sites.id, spots.siteId))
     .where(and(siteId === null ? undefined : eq(spots.siteId, siteId), or(exists(planted), exists(warned))))
@@ -234,15 +342,24 @@ export function forecastSpots(siteId: number | null, q: Tx = db()): Promise<Fore
 }
 
 export async function plantsOfSpot(spotId: number, siteId: number, q: Tx = db()) {
-  const placed = await q.select({ plantKey: spotPlants.plantKey }).from(spotPlants).where(eq(spotPlants.spotId, spotId));
+  const placed = await q
+    .select({ plantKey: spotPlants.plantKey })
+    .from(spotPlants)
+    .where(eq(spotPlants.spotId, spotId));
   if (placed.length === 0) return { placed: [], custom: [] };
-  const custom = await q.select({ key: customPlants.key, profile: customPlants.profile }).from(customPlants).where(eq(customPlants.siteId, siteId));
+  const custom = await q
+    .select({ key: customPlants.key, profile: customPlants.profile })
+    .from(customPlants)
+    .where(eq(customPlants.siteId, siteId));
   return { placed: placed.map((p) => p.plantKey), custom };
 }
 
 /** Ends the spot's standing warnings (all, or those whose low came before `lowBefore`): no longer shown, no all-clear. */
 export async function endForecastWarnings(spotId: number, at: Date, lowBefore?: Date, q: Tx = db()) {
-  await q.update(fw).set({ endedAt: at }).where(and(eq(fw.spotId, spotId), isNull(fw.endedAt), lowBefore ? lt(fw.lowAt, lowBefore) : undefined));
+  await q
+    .update(fw)
+    .set({ endedAt: at })
+    .where(and(eq(fw.spotId, spotId), isNull(fw.endedAt), lowBefore ? lt(fw.lowAt, lowBefore) : undefined));
 }
 
 export function standingWarnings(spotId: number, q: Tx = db()): Promise<ForecastWarning[]> {
@@ -250,7 +367,13 @@ export function standingWarnings(spotId: number, q: Tx = db()): Promise<Forecast
 }
 
 /** A new warned night, or one cleared (or ended) that crosses again; null when it stands already. */
-export async function openForecastWarning(spotId: number, night: string, f: NightFigures, at: Date, q: Tx = db()): Promise<number | null> {
+export async function openForecastWarning(
+  spotId: number,
+  night: string,
+  f: NightFigures,
+  at: Date,
+  q: Tx = db(),
+): Promise<number | null> {
   const [row] = await q
     .insert(fw)
     .values({ spotId, night, ...f, openedAt: at })
@@ -264,26 +387,66 @@ export async function openForecastWarning(spotId: number, night: string, f: Nigh
 }
 
 /** Updates a standing warning's figures (cleared too when `clearedAt` is given); false when none stands. */
-export async function updateForecastWarning(spotId: number, night: string, f: Partial<NightFigures> & { clearedAt?: Date }, q: Tx = db()): Promise<boolean> {
-  return (await q.update(fw).set(f).where(and(stillWarned(spotId), eq(fw.night, night))).returning({ id: fw.id })).length > 0;
+export async function updateForecastWarning(
+  spotId: number,
+  night: string,
+  f: Partial<NightFigures> & { clearedAt?: Date },
+  q: Tx = db(),
+): Promise<boolean> {
+  return (
+    (
+      await q
+        .update(fw)
+        .set(f)
+        .where(and(stillWarned(spotId), eq(fw.night, night)))
+        .returning({ id: fw.id })
+    ).length > 0
+  );
 }
 
 /** Warnings and all-clears of the spot not yet e-mailed, oldest first. */
-export async function unsentForecastMessages(spotId: number, q: Tx = db()): Promise<(ForecastWarning & { message: "warn" | "clear" })[]> {
-  const unsent = or(and(isNull(fw.clearedAt), isNull(fw.notifiedAt)), and(isNotNull(fw.clearedAt), isNull(fw.clearNotifiedAt)));
-  const rows = await q.select().from(fw).where(and(eq(fw.spotId, spotId), isNull(fw.endedAt), unsent)).orderBy(asc(fw.id));
+export async function unsentForecastMessages(
+  spotId: number,
+  q: Tx = db(),
+): Promise<(ForecastWarning & { message: "warn" | "clear" })[]> {
+  const unsent = or(
+    and(isNull(fw.clearedAt), isNull(fw.notifiedAt)),
+    and(isNotNull(fw.clearedAt), isNull(fw.clearNotifiedAt)),
+  );
+  const rows = await q
+    .select()
+    .from(fw)
+    .where(and(eq(fw.spotId, spotId), isNull(fw.endedAt), unsent))
+    .orderBy(asc(fw.id));
   return rows.map((r) => ({ ...r, message: r.clearedAt ? "clear" : "warn" }));
 }
 
 /** Claims the warning's e-mail (or its all-clear's): whoever sets the column sends it. */
-export async function claimForecastMessage(id: number, message: "warn" | "clear", at: Date, q: Tx = db()): Promise<boolean> {
-  const [column, set] = message === "warn" ? [fw.notifiedAt, { notifiedAt: at }] : [fw.clearNotifiedAt, { clearNotifiedAt: at }];
-  return (await q.update(fw).set(set).where(and(eq(fw.id, id), isNull(column))).returning({ id: fw.id })).length > 0;
+export async function claimForecastMessage(
+  id: number,
+  message: "warn" | "clear",
+  at: Date,
+  q: Tx = db(),
+): Promise<boolean> {
+  const [column, set] =
+    message === "warn" ? [fw.notifiedAt, { notifiedAt: at }] : [fw.clearNotifiedAt, { clearNotifiedAt: at }];
+  return (
+    (
+      await q
+        .update(fw)
+        .set(set)
+        .where(and(eq(fw.id, id), isNull(column)))
+        .returning({ id: fw.id })
+    ).length > 0
+  );
 }
 
 /** Gives the claim back after a failed send: the next pass sends it again. */
 export async function releaseForecastMessage(id: number, message: "warn" | "clear", q: Tx = db()) {
-  await q.update(fw).set(message === "warn" ? { notifiedAt: null } : { clearNotifiedAt: null }).where(eq(fw.id, id));
+  await q
+    .update(fw)
+    .set(message === "warn" ? { notifiedAt: null } : { clearNotifiedAt: null })
+    .where(eq(fw.id, id));
 }
 
 /** Standing warnings of a site whose night is still to come or under way (low after `lowAfter`). */

@@ -6,7 +6,15 @@ import { MqttClient, type IClientOptions } from "mqtt";
 import { connect as netConnect, isIP } from "node:net";
 import { connect as tlsConnect } from "node:tls";
 import { randomBytes } from "node:crypto";
-import { isDiscoveryConfigTopic, MAX_BRIDGED_PAYLOAD_BYTES, parseDiscoveryConfig, recognise, type DiscoveryHint, type Mapping, type Values } from "~/domain/payloads/presets";
+import {
+  isDiscoveryConfigTopic,
+  MAX_BRIDGED_PAYLOAD_BYTES,
+  parseDiscoveryConfig,
+  recognise,
+  type DiscoveryHint,
+  type Mapping,
+  type Values,
+} from "~/domain/payloads/presets";
 import { PacketSizeGuard } from "./packet-guard";
 import { endpoint, MAX_BRIDGE_PACKET_BYTES } from "./state";
 import type { BridgeConfig } from "./store";
@@ -62,15 +70,29 @@ export function listeningFor(siteId: number): Listening | null {
 
 export function startListening(config: BridgeConfig, prefix: string, opts: { durationMs?: number } = {}): Listening {
   holder.listening.get(config.siteId)?.stop();
-  for (const [siteId, other] of holder.listening) if (other.status !== "listening" && Date.now() - other.endsAt > KEEP_HEARD_MS) holder.listening.delete(siteId);
+  for (const [siteId, other] of holder.listening)
+    if (other.status !== "listening" && Date.now() - other.endsAt > KEEP_HEARD_MS) holder.listening.delete(siteId);
   const busy = [...holder.listening.values()].filter((o) => o.status === "listening").length;
-  if (busy >= MAX_LISTENING) throw new ListenRefused(`${MAX_LISTENING} sites are listening right now: try again in a minute.`);
+  if (busy >= MAX_LISTENING)
+    throw new ListenRefused(`${MAX_LISTENING} sites are listening right now: try again in a minute.`);
   const { tls, host, port, ca } = endpoint(config);
   const now = Date.now();
-  const l: Listening = { prefix, startedAt: now, endsAt: now + Math.min(opts.durationMs ?? LISTEN_MS, LISTEN_MS), status: "listening", note: null, topics: new Map(), hints: new Map(), bytes: 0, stop: () => {} };
+  const l: Listening = {
+    prefix,
+    startedAt: now,
+    endsAt: now + Math.min(opts.durationMs ?? LISTEN_MS, LISTEN_MS),
+    status: "listening",
+    note: null,
+    topics: new Map(),
+    hints: new Map(),
+    bytes: 0,
+    stop: () => {},
+  };
   holder.listening.set(config.siteId, l);
   const build = () => {
-    const socket = tls ? tlsConnect({ host, port, ca, servername: isIP(host) ? undefined : host }) : netConnect({ host, port });
+    const socket = tls
+      ? tlsConnect({ host, port, ca, servername: isIP(host) ? undefined : host })
+      : netConnect({ host, port });
     const guard = new PacketSizeGuard(MAX_BRIDGE_PACKET_BYTES);
     socket.on("data", (chunk: Buffer) => {
       if (guard.feed(chunk)) return;
@@ -101,11 +123,18 @@ export function startListening(config: BridgeConfig, prefix: string, opts: { dur
   l.stop = () => finish("done", "stopped");
   client.on("connect", () => {
     const filters = [prefix ? `${prefix}/#` : "#"];
-    if (prefix !== HA_DISCOVERY_PREFIX && !prefix.startsWith(`${HA_DISCOVERY_PREFIX}/`)) filters.push(`${HA_DISCOVERY_PREFIX}/#`);
-    client.subscribe(filters, { qos: 0 }, (err) => err && finish("failed", `The broker refused the subscription: ${err.message}`));
+    if (prefix !== HA_DISCOVERY_PREFIX && !prefix.startsWith(`${HA_DISCOVERY_PREFIX}/`))
+      filters.push(`${HA_DISCOVERY_PREFIX}/#`);
+    client.subscribe(
+      filters,
+      { qos: 0 },
+      (err) => err && finish("failed", `The broker refused the subscription: ${err.message}`),
+    );
   });
   client.on("error", (err) => finish("failed", err.message));
-  client.on("close", () => finish(l.topics.size ? "done" : "failed", l.topics.size ? null : "The connection closed before anything was heard"));
+  client.on("close", () =>
+    finish(l.topics.size ? "done" : "failed", l.topics.size ? null : "The connection closed before anything was heard"),
+  );
   client.on("message", (topic, payload, packet) => {
     if (l.status !== "listening") return;
     if (isDiscoveryConfigTopic(topic) && topic.startsWith(`${HA_DISCOVERY_PREFIX}/`)) {
@@ -115,7 +144,8 @@ export function startListening(config: BridgeConfig, prefix: string, opts: { dur
     }
     let heard = l.topics.get(topic);
     if (!heard) {
-      if (l.topics.size >= MAX_TOPICS) return finish("done", `stopped at ${MAX_TOPICS} topics: listen under a narrower prefix`);
+      if (l.topics.size >= MAX_TOPICS)
+        return finish("done", `stopped at ${MAX_TOPICS} topics: listen under a narrower prefix`);
       l.topics.set(topic, (heard = { count: 0, lastAt: 0, payload: null, tooBig: 0, retained: false }));
     }
     heard.count++;
@@ -139,15 +169,34 @@ export function foundTopics(l: Listening, timeZone: string): Found[] {
   for (const [topic, h] of [...l.topics].sort(([a], [b]) => a.localeCompare(b))) {
     const base = { topic, count: h.count, lastAt: h.lastAt };
     if (!h.payload) {
-      out.push({ ...base, device: null, mapping: null, preview: [], note: h.tooBig ? `messages over ${MAX_BRIDGED_PAYLOAD_BYTES} bytes` : "no message yet" });
+      out.push({
+        ...base,
+        device: null,
+        mapping: null,
+        preview: [],
+        note: h.tooBig ? `messages over ${MAX_BRIDGED_PAYLOAD_BYTES} bytes` : "no message yet",
+      });
       continue;
     }
     const found = recognise(topic, h.payload, ctx, l.hints.get(topic));
     if (found.length === 0) {
-      out.push({ ...base, device: null, mapping: null, preview: [], note: "not a shape Nichewise knows: attach it with your own mapping below" });
+      out.push({
+        ...base,
+        device: null,
+        mapping: null,
+        preview: [],
+        note: "not a shape Nichewise knows: attach it with your own mapping below",
+      });
       continue;
     }
-    for (const f of found) out.push({ ...base, device: f.mapping.device ?? null, mapping: f.mapping, preview: f.items.map((i) => i.values), note: null });
+    for (const f of found)
+      out.push({
+        ...base,
+        device: f.mapping.device ?? null,
+        mapping: f.mapping,
+        preview: f.items.map((i) => i.values),
+        note: null,
+      });
   }
   return out;
 }

@@ -5,7 +5,15 @@ import { describe, expect, it } from "vitest";
 import { PacketSizeGuard } from "./packet-guard";
 
 const publish = (bytes: number) =>
-  mqttPacket.generate({ cmd: "publish", topic: "a/b", payload: Buffer.alloc(bytes, 120), qos: 1, messageId: 7, retain: false, dup: false });
+  mqttPacket.generate({
+    cmd: "publish",
+    topic: "a/b",
+    payload: Buffer.alloc(bytes, 120),
+    qos: 1,
+    messageId: 7,
+    retain: false,
+    dup: false,
+  });
 
 describe("PacketSizeGuard", () => {
   it("lets packets under the limit through, fed a byte at a time or all at once", () => {

@@ -35,7 +35,13 @@ import { kept } from "~/.server/kept";
 type Deps = { writer: ReadingWriter; log?: (s: string) => void; reconnectMs?: number; maxReconnectMs?: number };
 
 export class SiteBridge {
-  readonly state: BridgeState = { status: "stopped", connectedSince: null, lastMessageAt: null, lastError: null, counts: zeroCounts() };
+  readonly state: BridgeState = {
+    status: "stopped",
+    connectedSince: null,
+    lastMessageAt: null,
+    lastError: null,
+    counts: zeroCounts(),
+  };
   private client: MqttClient | null = null;
   /** Bumped whenever a connection is given up: a commit that finishes after that must not ack on the next one. */
   private generation = 0;
@@ -91,7 +97,8 @@ export class SiteBridge {
       if (err) return this.fail(`Could not subscribe: ${err.message}`);
       for (const g of granted ?? []) {
         // 0x80 (3.1.1) or a reason code of 0x80 and over (5): the broker refused this topic to our user.
-        if (g.qos >= 0x80) this.fail(`The broker refused the subscription to ${g.topic}: check the user's access to it`);
+        if (g.qos >= 0x80)
+          this.fail(`The broker refused the subscription to ${g.topic}: check the user's access to it`);
         else this.subscribed.add(g.topic);
       }
     });
@@ -107,12 +114,16 @@ export class SiteBridge {
     const { tls, host, port, ca } = endpoint(this.config);
     const v5 = this.config.protocolVersion === 5;
     const build = () => {
-      const socket = tls ? tlsConnect({ host, port, ca, servername: isIP(host) ? undefined : host }) : netConnect({ host, port });
+      const socket = tls
+        ? tlsConnect({ host, port, ca, servername: isIP(host) ? undefined : host })
+        : netConnect({ host, port });
       socket.setNoDelay(true);
       const guard = new PacketSizeGuard(MAX_BRIDGE_PACKET_BYTES);
       socket.on("data", (chunk: Buffer) => {
         if (guard.feed(chunk)) return;
-        this.fail(`The broker sent a packet of ${guard.tooBig} bytes, over ${MAX_BRIDGE_PACKET_BYTES}: connection closed (set a smaller message size limit on the broker)`);
+        this.fail(
+          `The broker sent a packet of ${guard.tooBig} bytes, over ${MAX_BRIDGE_PACKET_BYTES}: connection closed (set a smaller message size limit on the broker)`,
+        );
         socket.destroy();
       });
       return socket;
@@ -129,7 +140,15 @@ export class SiteBridge {
       resubscribe: false,
       // MQTT 5: keep the session while we are away, hold at most 20 unacknowledged messages in
       // flight to us, and send nothing bigger than we take.
-      ...(v5 ? { properties: { sessionExpiryInterval: SESSION_EXPIRY_S, receiveMaximum: 20, maximumPacketSize: MAX_BRIDGE_V5_PACKET_BYTES } } : {}),
+      ...(v5
+        ? {
+            properties: {
+              sessionExpiryInterval: SESSION_EXPIRY_S,
+              receiveMaximum: 20,
+              maximumPacketSize: MAX_BRIDGE_V5_PACKET_BYTES,
+            },
+          }
+        : {}),
     };
     const client = new MqttClient(build as never, options);
     this.client = client;
@@ -144,7 +163,9 @@ export class SiteBridge {
       // it) holds none.
       if (!connack.sessionPresent) this.subscribed.clear();
       this.subscribeMissing(client);
-      this.deps.log?.(`[bridge ${this.config.siteId}] connected to ${this.config.url}${connack.sessionPresent ? " (session resumed)" : ""}`);
+      this.deps.log?.(
+        `[bridge ${this.config.siteId}] connected to ${this.config.url}${connack.sessionPresent ? " (session resumed)" : ""}`,
+      );
     });
     client.on("reconnect", () => {
       this.state.counts.reconnects++;
@@ -194,7 +215,8 @@ export class SiteBridge {
       },
       (err: Error) => {
         this.state.counts.writeFailures++;
-        if (generation === this.generation) this.dropConnection(`Could not store a reading (${err.message}); the broker will send it again`);
+        if (generation === this.generation)
+          this.dropConnection(`Could not store a reading (${err.message}); the broker will send it again`);
       },
     );
   }
@@ -215,11 +237,13 @@ export class SiteBridge {
     const rejections: Rejected[] = [];
     const reject = (sensorId: number | null, reason: string, key = `${topic}|${reason}`) => {
       this.state.counts.rejected++;
-      if (this.recorded.due(key, now)) rejections.push({ sensorId, source: "mqtt", topic, reason: `home broker: ${reason}`, payload: preview() });
+      if (this.recorded.due(key, now))
+        rejections.push({ sensorId, source: "mqtt", topic, reason: `home broker: ${reason}`, payload: preview() });
     };
     try {
       await this.pacer.pace(topic, () => this.state.counts.heldBack++);
-      if (payload.length > MAX_BRIDGED_PAYLOAD_BYTES) return reject(links[0].sensorId, `payload over ${MAX_BRIDGED_PAYLOAD_BYTES} bytes`);
+      if (payload.length > MAX_BRIDGED_PAYLOAD_BYTES)
+        return reject(links[0].sensorId, `payload over ${MAX_BRIDGED_PAYLOAD_BYTES} bytes`);
       const readings: Reading[] = [];
       let matched = false;
       let read = false;
@@ -247,7 +271,11 @@ export class SiteBridge {
             this.state.counts.staleRetained++;
             continue;
           }
-          const r = validateReading(link.sensorId, toPayload(item.values), { now: new Date(now), kind: info.kind, previous: lastTemperature(link.sensorId) });
+          const r = validateReading(link.sensorId, toPayload(item.values), {
+            now: new Date(now),
+            kind: info.kind,
+            previous: lastTemperature(link.sensorId),
+          });
           if (!r.ok) {
             reject(link.sensorId, r.reason, `${topic}|${link.device}|${r.reason}`);
             continue;
@@ -261,7 +289,13 @@ export class SiteBridge {
         // Recorded like an unknown sensor, but once an hour per topic: a gateway hears every
         // neighbour's tags, and a row for each would push the real refusals out of the record.
         if (unattached && this.recorded.due(`${topic}|other`, now, 3_600_000)) {
-          rejections.push({ sensorId: null, source: "mqtt", topic, reason: `home broker: device ${unattached} in this topic is not attached to a sensor (others may be too)`, payload: preview() });
+          rejections.push({
+            sensorId: null,
+            source: "mqtt",
+            topic,
+            reason: `home broker: device ${unattached} in this topic is not attached to a sensor (others may be too)`,
+            payload: preview(),
+          });
         }
         return;
       }
@@ -272,9 +306,17 @@ export class SiteBridge {
       this.state.counts.outsideSpot += result.outsideSpot;
       if (result.conflicts > 0) {
         this.state.counts.rejected += result.conflicts;
-        if (this.recorded.due(`${topic}|conflict`, now)) rejections.push({ sensorId: readings[0].sensorId, source: "mqtt", topic, reason: CONFLICT_REASON, payload: preview() });
+        if (this.recorded.due(`${topic}|conflict`, now))
+          rejections.push({
+            sensorId: readings[0].sensorId,
+            source: "mqtt",
+            topic,
+            reason: CONFLICT_REASON,
+            payload: preview(),
+          });
       }
-      for (const r of readings) if (r.temperature !== null) noteTemperature(r.sensorId, r.measuredAt.getTime(), r.temperature);
+      for (const r of readings)
+        if (r.temperature !== null) noteTemperature(r.sensorId, r.measuredAt.getTime(), r.temperature);
     } finally {
       if (rejections.length) recordRejectionsSoon(rejections);
     }

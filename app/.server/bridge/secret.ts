@@ -50,7 +50,10 @@ export const keyFilePath = () => path.join(path.dirname(path.resolve(env().NW_PG
 
 function readKeyFile(file: string): Buffer {
   const hex = readFileSync(file, "utf8").trim();
-  if (!/^[0-9a-f]{64}$/.test(hex)) throw new Error(`${file} does not hold a 256-bit key (64 hex digits); move it away to make a new one (stored broker passwords must then be typed again)`);
+  if (!/^[0-9a-f]{64}$/.test(hex))
+    throw new Error(
+      `${file} does not hold a 256-bit key (64 hex digits); move it away to make a new one (stored broker passwords must then be typed again)`,
+    );
   return Buffer.from(hex, "hex");
 }
 

@@ -50,17 +50,38 @@ export type BridgeState = {
   counts: BridgeCounts;
 };
 
-
-export const zeroCounts = (): BridgeCounts => ({ received: 0, stored: 0, outsideSpot: 0, rejected: 0, unattached: 0, otherDevices: 0, heldBack: 0, staleRetained: 0, writeFailures: 0, reconnects: 0 });
+export const zeroCounts = (): BridgeCounts => ({
+  received: 0,
+  stored: 0,
+  outsideSpot: 0,
+  rejected: 0,
+  unattached: 0,
+  otherDevices: 0,
+  heldBack: 0,
+  staleRetained: 0,
+  writeFailures: 0,
+  reconnects: 0,
+});
 
 /** The socket options for a bridge's broker address. */
 export function endpoint(config: Pick<BridgeConfig, "url" | "caCert">) {
   const u = new URL(config.url);
   const tls = u.protocol === "mqtts:";
-  return { tls, host: u.hostname.replace(/^\[|\]$/g, ""), port: Number(u.port) || (tls ? 8883 : 1883), ca: config.caCert ?? undefined };
+  return {
+    tls,
+    host: u.hostname.replace(/^\[|\]$/g, ""),
+    port: Number(u.port) || (tls ? 8883 : 1883),
+    ca: config.caCert ?? undefined,
+  };
 }
 
 /** A preset's values as the payload the ingest validation reads (°C, time as epoch ms). */
 export function toPayload(v: Values) {
-  return { temperature: v.temperature, humidity: v.humidity, lux: v.lux, battery: v.battery, ...(v.at ? { time: v.at.getTime() } : {}) };
+  return {
+    temperature: v.temperature,
+    humidity: v.humidity,
+    lux: v.lux,
+    battery: v.battery,
+    ...(v.at ? { time: v.at.getTime() } : {}),
+  };
 }

@@ -69,13 +69,25 @@ export async function enabledBridges(): Promise<BridgeConfig[]> {
 
 export async function listLinks(bridgeId: number): Promise<BridgeLink[]> {
   return db()
-    .select({ id: bridgeLinks.id, sensorId: bridgeLinks.sensorId, topic: bridgeLinks.topic, device: bridgeLinks.device, mapping: bridgeLinks.mapping })
+    .select({
+      id: bridgeLinks.id,
+      sensorId: bridgeLinks.sensorId,
+      topic: bridgeLinks.topic,
+      device: bridgeLinks.device,
+      mapping: bridgeLinks.mapping,
+    })
     .from(bridgeLinks)
     .where(eq(bridgeLinks.bridgeId, bridgeId))
     .orderBy(bridgeLinks.topic, bridgeLinks.device);
 }
 
-async function audit(tx: Parameters<Parameters<ReturnType<typeof db>["transaction"]>[0]>[0], siteId: number, actorId: number | null, action: string, detail: Record<string, unknown>) {
+async function audit(
+  tx: Parameters<Parameters<ReturnType<typeof db>["transaction"]>[0]>[0],
+  siteId: number,
+  actorId: number | null,
+  action: string,
+  detail: Record<string, unknown>,
+) {
   await tx.insert(auditLog).values({ siteId, actorId, action, detail } as typeof auditLog.$inferInsert);
 }
 
@@ -102,14 +114,31 @@ export async function saveBridge(opts: {
         : kept !== null && !isSealed(kept)
           ? sealBridgePassword(opts.siteId, kept)
           : kept;
-    const values = { url: opts.url, username: opts.username, password, caCert: opts.caCert, protocolVersion: opts.protocolVersion, enabled: opts.enabled, updatedAt: new Date() };
+    const values = {
+      url: opts.url,
+      username: opts.username,
+      password,
+      caCert: opts.caCert,
+      protocolVersion: opts.protocolVersion,
+      enabled: opts.enabled,
+      updatedAt: new Date(),
+    };
     const [row] = old
       ? await tx.update(bridges).set(values).where(eq(bridges.id, old.id)).returning()
       : await tx
           .insert(bridges)
-          .values({ ...values, siteId: opts.siteId, clientId: `nichewise-${opts.siteId}-${randomBytes(4).toString("hex")}` })
+          .values({
+            ...values,
+            siteId: opts.siteId,
+            clientId: `nichewise-${opts.siteId}-${randomBytes(4).toString("hex")}`,
+          })
           .returning();
-    await audit(tx, opts.siteId, opts.actorId, "bridge.save", { url: opts.url, username: opts.username, protocolVersion: opts.protocolVersion, enabled: opts.enabled });
+    await audit(tx, opts.siteId, opts.actorId, "bridge.save", {
+      url: opts.url,
+      username: opts.username,
+      protocolVersion: opts.protocolVersion,
+      enabled: opts.enabled,
+    });
     return asConfig(row);
   });
 }
@@ -117,18 +146,35 @@ export async function saveBridge(opts: {
 export class LinkError extends Error {}
 
 /** Attaches a topic (or one device in it) to a sensor of the same site; attaching again replaces the mapping. */
-export async function attachTopic(opts: { siteId: number; actorId: number | null; sensorId: number; topic: string; mapping: Mapping }) {
+export async function attachTopic(opts: {
+  siteId: number;
+  actorId: number | null;
+  sensorId: number;
+  topic: string;
+  mapping: Mapping;
+}) {
   return db().transaction(async (tx) => {
     const [bridge] = await tx.select({ id: bridges.id }).from(bridges).where(eq(bridges.siteId, opts.siteId));
     if (!bridge) throw new LinkError("Connect the home broker first.");
-    const [sensor] = await tx.select({ id: sensors.id }).from(sensors).where(and(eq(sensors.id, opts.sensorId), eq(sensors.siteId, opts.siteId)));
+    const [sensor] = await tx
+      .select({ id: sensors.id })
+      .from(sensors)
+      .where(and(eq(sensors.id, opts.sensorId), eq(sensors.siteId, opts.siteId)));
     if (!sensor) throw new LinkError("That sensor is not in this site.");
     const device = opts.mapping.device ?? "";
     await tx
       .insert(bridgeLinks)
       .values({ bridgeId: bridge.id, sensorId: sensor.id, topic: opts.topic, device, mapping: opts.mapping })
-      .onConflictDoUpdate({ target: [bridgeLinks.bridgeId, bridgeLinks.topic, bridgeLinks.device], set: { sensorId: sensor.id, mapping: opts.mapping } });
-    await audit(tx, opts.siteId, opts.actorId, "bridge.attach", { sensorId: sensor.id, topic: opts.topic, device, preset: opts.mapping.preset });
+      .onConflictDoUpdate({
+        target: [bridgeLinks.bridgeId, bridgeLinks.topic, bridgeLinks.device],
+        set: { sensorId: sensor.id, mapping: opts.mapping },
+      });
+    await audit(tx, opts.siteId, opts.actorId, "bridge.attach", {
+      sensorId: sensor.id,
+      topic: opts.topic,
+      device,
+      preset: opts.mapping.preset,
+    });
   });
 }
 

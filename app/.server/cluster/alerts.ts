@@ -68,7 +68,8 @@ export function parseSpans(payload: string): [number, number, number][] {
   const out: [number, number, number][] = [];
   for (const part of payload.split(",")) {
     const [spot, from, to] = part.split(":").map(Number);
-    if (Number.isSafeInteger(spot) && Number.isFinite(from) && Number.isFinite(to) && from <= to) out.push([spot, from, to]);
+    if (Number.isSafeInteger(spot) && Number.isFinite(from) && Number.isFinite(to) && from <= to)
+      out.push([spot, from, to]);
   }
   return out;
 }
@@ -106,7 +107,14 @@ export function startAlertsUnderLease(
               merge(spans, spotId, s.from, s.to); // read again on the next round
               continue;
             }
-            const rows: CommittedReading[] = points.map((p) => ({ spotId, sensorId: 0, measuredAt: p.at, t: p.t, h: p.h, battery: p.battery }));
+            const rows: CommittedReading[] = points.map((p) => ({
+              spotId,
+              sensorId: 0,
+              measuredAt: p.at,
+              t: p.t,
+              h: p.h,
+              battery: p.battery,
+            }));
             if (rows.length > 0) void engine.accept(rows);
           }
         } finally {

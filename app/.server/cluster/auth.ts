@@ -25,10 +25,15 @@ const sensorOf = (username: string | undefined) => {
 };
 
 /** May this sensor use this routing key (MQTT topic with "/" as ".") for `permission`? */
-export function topicAllowed(sensorId: number, permission: string | undefined, routingKey: string | undefined): boolean {
+export function topicAllowed(
+  sensorId: number,
+  permission: string | undefined,
+  routingKey: string | undefined,
+): boolean {
   if (!routingKey) return false;
   const parts = routingKey.split(".");
-  if (parts.length !== 4 || parts[0] !== "nichewise" || parts[1] !== "sensors" || parts[2] !== String(sensorId)) return false;
+  if (parts.length !== 4 || parts[0] !== "nichewise" || parts[1] !== "sensors" || parts[2] !== String(sensorId))
+    return false;
   if (permission === "write") return CHANNELS.has(parts[3]);
   // Subscribing to its own topics (a sensor hearing its own messages), never with a wildcard for the id.
   if (permission === "read") return parts[3] === "#" || CHANNELS.has(parts[3]);
@@ -38,7 +43,8 @@ export function topicAllowed(sensorId: number, permission: string | undefined, r
 /** What a sensor may touch besides topics: write to the MQTT exchange; its own subscription queues. */
 export function resourceAllowed(f: Form): boolean {
   if (f.vhost !== "/") return false;
-  if (f.resource === "exchange") return f.name === MQTT_EXCHANGE && (f.permission === "write" || f.permission === "read");
+  if (f.resource === "exchange")
+    return f.name === MQTT_EXCHANGE && (f.permission === "write" || f.permission === "read");
   if (f.resource === "queue") return !!f.name?.startsWith("mqtt-subscription-");
   return false;
 }
@@ -55,7 +61,9 @@ export function engineAuthRouter(key: string): express.Router {
   const router = express.Router();
   // The plugin's forms are a few hundred bytes; a secret is at most 200 characters.
   router.use(express.urlencoded({ extended: false, limit: "4kb", parameterLimit: 20 }));
-  router.use((req, res, next) => (keyMatches(req.query.key, key) ? next() : void res.status(403).type("text/plain").send("deny")));
+  router.use((req, res, next) =>
+    keyMatches(req.query.key, key) ? next() : void res.status(403).type("text/plain").send("deny"),
+  );
   const answer = (res: express.Response, ok: boolean) => void res.type("text/plain").send(ok ? "allow" : "deny");
   router.post("/user", (req, res) => {
     const f = req.body as Form;
@@ -78,7 +86,10 @@ export function engineAuthRouter(key: string): express.Router {
   router.post("/topic", (req, res) => {
     const f = req.body as Form;
     const id = sensorOf(f.username);
-    answer(res, id !== null && f.vhost === "/" && f.name === MQTT_EXCHANGE && topicAllowed(id, f.permission, f.routing_key));
+    answer(
+      res,
+      id !== null && f.vhost === "/" && f.name === MQTT_EXCHANGE && topicAllowed(id, f.permission, f.routing_key),
+    );
   });
   return router;
 }

@@ -15,7 +15,10 @@ describe("routing keys and MQTT topics", () => {
 
 describe("commit announcements", () => {
   it("reads spot and time spans and skips what is malformed", () => {
-    expect(parseSpans("4:1000:2000,7:5:5")).toEqual([[4, 1000, 2000], [7, 5, 5]]);
+    expect(parseSpans("4:1000:2000,7:5:5")).toEqual([
+      [4, 1000, 2000],
+      [7, 5, 5],
+    ]);
     expect(parseSpans("4:2000:1000,x:1:2,:,,9:1")).toEqual([]);
     expect(parseSpans("a".repeat(10_000))).toEqual([]);
   });

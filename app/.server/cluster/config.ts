@@ -32,13 +32,19 @@ export function clusterEnv(source: NodeJS.ProcessEnv = process.env): ClusterEnv 
 function parse(source: NodeJS.ProcessEnv): ClusterEnv {
   const result = schema.safeParse(source);
   if (!result.success) {
-    throw new Error(`Invalid environment:\n${result.error.issues.map((i) => `  ${i.path.join(".")}: ${i.message}`).join("\n")}`);
+    throw new Error(
+      `Invalid environment:\n${result.error.issues.map((i) => `  ${i.path.join(".")}: ${i.message}`).join("\n")}`,
+    );
   }
   return result.data;
 }
 
 export const clusterRole = () => clusterEnv().NW_ROLE;
-export const amqpUrls = () => clusterEnv().NW_AMQP_URLS.split(",").map((u) => u.trim()).filter(Boolean);
+export const amqpUrls = () =>
+  clusterEnv()
+    .NW_AMQP_URLS.split(",")
+    .map((u) => u.trim())
+    .filter(Boolean);
 
 /** The engine's name for a topic: MQTT's "/" is AMQP's "." and the other way round (RabbitMQ's MQTT plugin). */
 export const routingKeyToTopic = (key: string) => key.replace(/[./]/g, (c) => (c === "." ? "/" : "."));

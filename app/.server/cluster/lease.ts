@@ -40,7 +40,11 @@ export function startLease(o: LeaseOptions): Lease {
 
   async function attempt() {
     timer = null;
-    const c = new pg.Client({ connectionString: o.connectionString, keepAlive: true, application_name: "nichewise-lease" });
+    const c = new pg.Client({
+      connectionString: o.connectionString,
+      keepAlive: true,
+      application_name: "nichewise-lease",
+    });
     c.on("error", () => void lose(c, "connection error"));
     try {
       await c.connect();

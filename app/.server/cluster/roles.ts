@@ -17,7 +17,11 @@ function databaseUrl() {
 }
 
 /** NW_ROLE=ingest: a queue consumer and the writer, nothing else. */
-export async function startIngestRole(stops: (() => Promise<void>)[], stopAll: () => Promise<void>, log: (s: string) => void) {
+export async function startIngestRole(
+  stops: (() => Promise<void>)[],
+  stopAll: () => Promise<void>,
+  log: (s: string) => void,
+) {
   const url = databaseUrl();
   const c = clusterEnv();
   const { closeDb } = await import("~/.server/db");
@@ -25,7 +29,15 @@ export async function startIngestRole(stops: (() => Promise<void>)[], stopAll: (
   const { writer } = await import("~/.server/ingest/writer");
   const stopAnnouncing = announceCommits(writer());
   stops.push(async () => stopAnnouncing());
-  const worker = await startIngestWorker({ urls: amqpUrls(), queue: c.NW_AMQP_QUEUE, shards: c.NW_AMQP_SHARDS, connectionString: url, prefetch: c.NW_AMQP_PREFETCH, writer: writer(), log });
+  const worker = await startIngestWorker({
+    urls: amqpUrls(),
+    queue: c.NW_AMQP_QUEUE,
+    shards: c.NW_AMQP_SHARDS,
+    connectionString: url,
+    prefetch: c.NW_AMQP_PREFETCH,
+    writer: writer(),
+    log,
+  });
   stops.push(worker.close);
   log(`ingest role: writing to ${url.replace(/\/\/[^@]*@/, "//")}`);
   return { stop: stopAll, url: "", mqttPort: 0, port: 0 };
@@ -38,7 +50,11 @@ let alertLease: Lease | null = null;
 export function startWebAlerts(w: ReadingWriter, opts: AlertEngineOptions): () => Promise<void> {
   const lag = clusterEnv().NW_ALERT_MAX_LAG_MS;
   const stopAnnouncing = announceCommits(w);
-  const lease = startAlertsUnderLease(w, { ...opts, ...(lag ? { maxLagMs: lag } : {}), connectionString: databaseUrl() });
+  const lease = startAlertsUnderLease(w, {
+    ...opts,
+    ...(lag ? { maxLagMs: lag } : {}),
+    connectionString: databaseUrl(),
+  });
   alertLease = lease;
   return async () => {
     stopAnnouncing();
@@ -61,10 +77,15 @@ type Passes = { runner: { run: (siteId?: number) => Promise<{ spots: number; war
  * picks them up at its next round. Without it every web instance fetched every site's weather and
  * checked every forecast. Call right after starting both (before their first tick).
  */
-export function onlyInLeaseHolder(weather: Rounds, warnings: Passes, lease: Pick<Lease, "holding"> | null = alertLease) {
+export function onlyInLeaseHolder(
+  weather: Rounds,
+  warnings: Passes,
+  lease: Pick<Lease, "holding"> | null = alertLease,
+) {
   const holding = () => lease?.holding() ?? false;
   const round = weather.job.round.bind(weather.job);
   const run = warnings.runner.run.bind(warnings.runner);
   weather.job.round = () => (holding() ? round() : Promise.resolve(0));
-  warnings.runner.run = (siteId?: number) => (holding() ? run(siteId) : Promise.resolve({ spots: 0, warned: 0, cleared: 0 }));
+  warnings.runner.run = (siteId?: number) =>
+    holding() ? run(siteId) : Promise.resolve({ spots: 0, warned: 0, cleared: 0 });
 }

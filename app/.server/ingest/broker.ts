@@ -10,11 +10,25 @@ import { Aedes, type AedesOptions, type Client } from "aedes";
 import { createServer, type Server, type Socket } from "node:net";
 import http from "node:http";
 import { WebSocketServer, createWebSocketStream } from "ws";
-import { decodeMessage, isSensorId, MAX_PAYLOAD_BYTES, parseTopic, TOPIC_PREFIX, validateReading } from "~/domain/ingest/payload";
+import {
+  decodeMessage,
+  isSensorId,
+  MAX_PAYLOAD_BYTES,
+  parseTopic,
+  TOPIC_PREFIX,
+  validateReading,
+} from "~/domain/ingest/payload";
 import { env, publicUrl } from "~/.server/env";
 import { kept } from "~/.server/kept";
 import { recordRejectionsSoon } from "~/.server/ingest/rejections";
-import { cachedSensorInfo, lastTemperature, noteTemperature, sensorInfo, verifySensorSecret, type SensorInfo } from "~/.server/ingest/sensor-cache";
+import {
+  cachedSensorInfo,
+  lastTemperature,
+  noteTemperature,
+  sensorInfo,
+  verifySensorSecret,
+  type SensorInfo,
+} from "~/.server/ingest/sensor-cache";
 import type { ReadingWriter, WriteResult } from "~/.server/ingest/writer";
 
 /**
@@ -26,11 +40,18 @@ import type { ReadingWriter, WriteResult } from "~/.server/ingest/writer";
 export const MAX_CONNECT_BYTES = 4 * 1024;
 export const MAX_PUBLISH_BYTES = MAX_PAYLOAD_BYTES + 1024;
 const MAX_OTHER_BYTES = 4 * 1024;
-const packetLimit = (cmd: string) => (cmd === "publish" ? MAX_PUBLISH_BYTES : cmd === "connect" ? MAX_CONNECT_BYTES : MAX_OTHER_BYTES);
+const packetLimit = (cmd: string) =>
+  cmd === "publish" ? MAX_PUBLISH_BYTES : cmd === "connect" ? MAX_CONNECT_BYTES : MAX_OTHER_BYTES;
 /** A connection that has not sent a complete CONNECT within this is closed (aedes' connectTimeout). */
 export const CONNECT_TIMEOUT_MS = 10_000;
 
-export type BrokerStats = { startedAt: Date; accepted: number; rejected: number; refusedConnections: number; writeFailures: number };
+export type BrokerStats = {
+  startedAt: Date;
+  accepted: number;
+  rejected: number;
+  refusedConnections: number;
+  writeFailures: number;
+};
 
 export type RunningBroker = {
   broker: Aedes;
@@ -43,7 +64,8 @@ export type RunningBroker = {
 };
 
 /** The reason recorded for a reading whose time already holds a different value. */
-export const CONFLICT_REASON = "conflicting duplicate: a different value is already stored for this sensor and time (kept the stored one)";
+export const CONFLICT_REASON =
+  "conflicting duplicate: a different value is already stored for this sensor and time (kept the stored one)";
 
 type Holder = { running?: RunningBroker };
 const holder = kept<Holder>("broker", () => ({}));
@@ -95,7 +117,13 @@ export async function startBroker(opts: {
   const maxConnections = opts.maxConnections ?? env().MQTT_MAX_CONNECTIONS;
   const sensorOf = new WeakMap<Client, number>();
   const clientsOf = new Map<number, Set<Client>>();
-  const stats: BrokerStats = { startedAt: new Date(), accepted: 0, rejected: 0, refusedConnections: 0, writeFailures: 0 };
+  const stats: BrokerStats = {
+    startedAt: new Date(),
+    accepted: 0,
+    rejected: 0,
+    refusedConnections: 0,
+    writeFailures: 0,
+  };
   let openConnections = 0;
 
   const options: AedesOptions = {
@@ -130,7 +158,11 @@ export async function startBroker(opts: {
     },
     authorizeSubscribe(client, sub, done) {
       const id = sensorOf.get(client);
-      if (id && (sub.topic === `${TOPIC_PREFIX}/${id}/#` || sub.topic.startsWith(`${TOPIC_PREFIX}/${id}/`)) && !sub.topic.includes("+")) {
+      if (
+        id &&
+        (sub.topic === `${TOPIC_PREFIX}/${id}/#` || sub.topic.startsWith(`${TOPIC_PREFIX}/${id}/`)) &&
+        !sub.topic.includes("+")
+      ) {
         return done(null, sub);
       }
       done(new Error("A sensor may subscribe only to its own topics"));
@@ -143,7 +175,15 @@ export async function startBroker(opts: {
         if (!id || !match || match.sensorId !== id) {
           // Refusing closes the connection; publishing outside its topic is not a payload mistake.
           stats.rejected++;
-          recordRejectionsSoon([{ sensorId: id ?? null, source: "mqtt", topic: packet.topic, reason: "topic not allowed for this sensor", payload: "" }]);
+          recordRejectionsSoon([
+            {
+              sensorId: id ?? null,
+              source: "mqtt",
+              topic: packet.topic,
+              reason: "topic not allowed for this sensor",
+              payload: "",
+            },
+          ]);
           return done(new Error("topic not allowed"));
         }
         const decoded = decodeMessage(match.channel, packet.payload as Buffer);
@@ -167,7 +207,15 @@ export async function startBroker(opts: {
   /** Acks a message that can't be stored (a refused QoS 1 publish would be resent forever) and records why. */
   function refuse(sensorId: number, packet: Publish, reason: string, done: Done) {
     stats.rejected++;
-    recordRejectionsSoon([{ sensorId, source: "mqtt", topic: packet.topic, reason, payload: (packet.payload as Buffer).subarray(0, 500).toString("utf8") }]);
+    recordRejectionsSoon([
+      {
+        sensorId,
+        source: "mqtt",
+        topic: packet.topic,
+        reason,
+        payload: (packet.payload as Buffer).subarray(0, 500).toString("utf8"),
+      },
+    ]);
     done(null);
   }
 
@@ -177,9 +225,20 @@ export async function startBroker(opts: {
   }
 
   /** Validates and stores one message; `done` (the PUBACK) comes after the commit. */
-  function writeOrRefuse(sensorId: number, info: SensorInfo | null, packet: Publish, payload: unknown, partial: boolean, done: Done) {
+  function writeOrRefuse(
+    sensorId: number,
+    info: SensorInfo | null,
+    packet: Publish,
+    payload: unknown,
+    partial: boolean,
+    done: Done,
+  ) {
     if (!info) return refuse(sensorId, packet, "unknown sensor (deleted?)", done);
-    const parsed = validateReading(sensorId, payload as never, { now: new Date(), kind: info.kind, previous: lastTemperature(sensorId) });
+    const parsed = validateReading(sensorId, payload as never, {
+      now: new Date(),
+      kind: info.kind,
+      previous: lastTemperature(sensorId),
+    });
     if (!parsed.ok) return refuse(sensorId, packet, parsed.reason, done);
     const reading = parsed.reading;
     opts.writer.store([partial ? { ...reading, partial } : reading]).then(
@@ -187,10 +246,19 @@ export async function startBroker(opts: {
         // Acked all the same: the sensor can do nothing about it, and the stored value stays.
         if (r.conflicts > 0) {
           stats.rejected++;
-          recordRejectionsSoon([{ sensorId, source: "mqtt", topic: packet.topic, reason: CONFLICT_REASON, payload: (packet.payload as Buffer).subarray(0, 500).toString("utf8") }]);
+          recordRejectionsSoon([
+            {
+              sensorId,
+              source: "mqtt",
+              topic: packet.topic,
+              reason: CONFLICT_REASON,
+              payload: (packet.payload as Buffer).subarray(0, 500).toString("utf8"),
+            },
+          ]);
         } else {
           stats.accepted++;
-          if (reading.temperature !== null) noteTemperature(sensorId, reading.measuredAt.getTime(), reading.temperature);
+          if (reading.temperature !== null)
+            noteTemperature(sensorId, reading.measuredAt.getTime(), reading.temperature);
         }
         done(null);
       },
@@ -202,7 +270,14 @@ export async function startBroker(opts: {
     const sensorId = sensorOf.get(client);
     if (sensorId === undefined) return;
     stats.rejected++;
-    recordRejectionsSoon([{ sensorId, source: "mqtt", reason: `${cmd} packet of ${length} bytes is over ${packetLimit(cmd)} bytes: connection closed`, payload: "" }]);
+    recordRejectionsSoon([
+      {
+        sensorId,
+        source: "mqtt",
+        reason: `${cmd} packet of ${length} bytes is over ${packetLimit(cmd)} bytes: connection closed`,
+        payload: "",
+      },
+    ]);
   }
 
   /** Counts a new connection, or refuses it when the broker is full. */
@@ -221,7 +296,11 @@ export async function startBroker(opts: {
   // may subscribe only to its own topics. After the PUBACK aedes would still match every reading
   // against offline and live subscriptions (two topic-tree lookups, a promise and a few objects per
   // message); the messages the server publishes itself (no client) are delivered as before.
-  const deliver = broker.publish.bind(broker) as unknown as (packet: unknown, client: Client | null, done?: (err?: Error | null) => void) => void;
+  const deliver = broker.publish.bind(broker) as unknown as (
+    packet: unknown,
+    client: Client | null,
+    done?: (err?: Error | null) => void,
+  ) => void;
   (broker as unknown as { publish: typeof deliver }).publish = (packet, client, done) => {
     if (client && typeof client === "object") return done?.(null);
     deliver(packet, client, done);
@@ -252,7 +331,9 @@ export async function startBroker(opts: {
   let wsPort: number | null = null;
   if (opts.wsPort !== null && opts.wsPort !== undefined) {
     wsServer = http.createServer((_req, res) => {
-      res.writeHead(426, { "Content-Type": "text/plain" }).end("MQTT over WebSocket: connect with a WebSocket MQTT client\n");
+      res
+        .writeHead(426, { "Content-Type": "text/plain" })
+        .end("MQTT over WebSocket: connect with a WebSocket MQTT client\n");
     });
     // A page of another site must not open MQTT connections from a visitor's browser (browsers
     // send Origin on every WebSocket handshake, RFC 6455 §4.1); sensors and other non-browser

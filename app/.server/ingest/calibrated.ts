@@ -6,6 +6,7 @@ export type CalibratedChannel = "temperature" | "humidity" | "lux";
 export function calibratedSql(channel: CalibratedChannel, value: string, sensor = "s"): string {
   const offset = `coalesce((${sensor}.calibration->>'${channel}')::real, 0)`;
   if (channel === "temperature") return `(${value} + ${offset})`;
-  if (channel === "humidity") return `(CASE WHEN ${value} IS NOT NULL THEN least(100, greatest(0, ${value} + ${offset})) END)`;
+  if (channel === "humidity")
+    return `(CASE WHEN ${value} IS NOT NULL THEN least(100, greatest(0, ${value} + ${offset})) END)`;
   return `(CASE WHEN ${value} IS NOT NULL THEN greatest(0, ${value} + ${offset}) END)`;
 }

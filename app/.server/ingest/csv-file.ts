@@ -13,8 +13,10 @@ export class CsvLimitError extends Error {}
 /** An error in the file itself (a quote never closed, a row too long), not in the server. */
 export const isCsvFileError = (err: unknown): err is Error => err instanceof CsvError || err instanceof CsvLimitError;
 
-const tooBig = () => new CsvLimitError(`The file is over ${CSV_MAX_BYTES / 1024 / 1024} MB; split it and import the parts.`);
-const tooManyRows = () => new CsvLimitError(`The file has over ${CSV_MAX_ROWS.toLocaleString("en")} rows; split it and import the parts.`);
+const tooBig = () =>
+  new CsvLimitError(`The file is over ${CSV_MAX_BYTES / 1024 / 1024} MB; split it and import the parts.`);
+const tooManyRows = () =>
+  new CsvLimitError(`The file has over ${CSV_MAX_ROWS.toLocaleString("en")} rows; split it and import the parts.`);
 
 export function checkLimits(bytes: Uint8Array) {
   if (bytes.byteLength > CSV_MAX_BYTES) throw tooBig();
@@ -34,7 +36,7 @@ async function inspect(bytes: Uint8Array): Promise<Encoding> {
   if (bytes.byteLength > CSV_MAX_BYTES) throw tooBig();
   let lines = 0;
   let utf8 = true;
-  for (let start = 0; start < bytes.byteLength; ) {
+  for (let start = 0; start < bytes.byteLength;) {
     let end = Math.min(bytes.byteLength, start + CHECK_CHUNK);
     while (end < bytes.byteLength && end > start && (bytes[end] & 0xc0) === 0x80) end--;
     for (let i = start; i < end; i++) if (bytes[i] === 10) lines++;
@@ -73,16 +75,31 @@ export async function readCsvHead(bytes: Uint8Array): Promise<CsvHead> {
 function headOf(bytes: Uint8Array, encoding: Encoding): CsvHead {
   const bom = bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf;
   const start = bom ? 3 : 0;
-  const probe = Buffer.from(bytes.buffer, bytes.byteOffset + start, Math.min(bytes.byteLength - start, 64 * 1024)).toString(encoding);
+  const probe = Buffer.from(
+    bytes.buffer,
+    bytes.byteOffset + start,
+    Math.min(bytes.byteLength - start, 64 * 1024),
+  ).toString(encoding);
   const firstLine = probe.slice(0, probe.search(/\r?\n|\r/) >>> 0 || probe.length);
   const delimiter = guessDelimiter(firstLine);
   let first: string[] | null = null;
   const parser = newParser(delimiter, encoding);
   for (let at = start; at < bytes.byteLength && first === null; at += SLICE) {
-    const err = parser.api.parse(Buffer.from(bytes.buffer, bytes.byteOffset + at, Math.min(SLICE, bytes.byteLength - at)), false, (r) => (first ??= r), () => {});
+    const err = parser.api.parse(
+      Buffer.from(bytes.buffer, bytes.byteOffset + at, Math.min(SLICE, bytes.byteLength - at)),
+      false,
+      (r) => (first ??= r),
+      () => {},
+    );
     if (err) throw err;
   }
-  if (first === null) parser.api.parse(undefined, true, (r) => (first ??= r), () => {});
+  if (first === null)
+    parser.api.parse(
+      undefined,
+      true,
+      (r) => (first ??= r),
+      () => {},
+    );
   if (first === null) return { headers: [], hasHeader: false, delimiter, encoding, bom };
   const head: string[] = first;
   return looksLikeHeader(head)
@@ -92,7 +109,12 @@ function headOf(bytes: Uint8Array, encoding: Encoding): CsvHead {
 
 // csv-parse's push API (what its stream calls for each chunk), used directly so that a slice's
 // records come back synchronously and nothing queues inside a stream.
-type PushParser = { api: { parse(buf: Buffer | undefined, end: boolean, push: (r: string[]) => void, close: () => void): Error | undefined; info: { lines: number } } };
+type PushParser = {
+  api: {
+    parse(buf: Buffer | undefined, end: boolean, push: (r: string[]) => void, close: () => void): Error | undefined;
+    info: { lines: number };
+  };
+};
 
 function newParser(delimiter: string, encoding: Encoding): PushParser {
   return new Parser({ ...PARSE_OPTIONS, delimiter, encoding }) as unknown as PushParser;
@@ -102,14 +124,17 @@ function newParser(delimiter: string, encoding: Encoding): PushParser {
 export function parseCsv(bytes: Uint8Array): { headers: string[]; rows: string[][] } {
   checkLimits(bytes);
   const head = headOf(bytes, isUtf8(bytes) ? "utf8" : "latin1");
-  const text = Buffer.from(bytes.buffer, bytes.byteOffset + (head.bom ? 3 : 0), bytes.byteLength - (head.bom ? 3 : 0)).toString(head.encoding);
+  const text = Buffer.from(
+    bytes.buffer,
+    bytes.byteOffset + (head.bom ? 3 : 0),
+    bytes.byteLength - (head.bom ? 3 : 0),
+  ).toString(head.encoding);
   const records = parse(text, { ...PARSE_OPTIONS, delimiter: head.delimiter }) as string[][];
   return { headers: head.headers, rows: head.hasHeader ? records.slice(1) : records };
 }
 
 /** One record and the line of the file it ends on (the header is line 1). */
 export type CsvRow = { line: number; cells: string[] };
-
 
 /** The file's data rows in slices, with their lines in the file, a turn of the event loop apart. */
 async function* rowsOfBytes(bytes: Uint8Array, head: CsvHead): AsyncGenerator<CsvRow[]> {

@@ -75,13 +75,20 @@ export type CsvPreview = {
 };
 
 /** A pass over the whole file without writing: what an import would store, and where. */
-export async function previewCsv(source: CsvSource, mapping: CsvMapping, sensorId: number, opts: { head?: CsvHead; sample?: number } = {}): Promise<CsvPreview> {
+export async function previewCsv(
+  source: CsvSource,
+  mapping: CsvMapping,
+  sensorId: number,
+  opts: { head?: CsvHead; sample?: number } = {},
+): Promise<CsvPreview> {
   const ctx = await conversion(sensorId, mapping);
   const coverage = new SpotCoverage(await placementSpans(sensorId));
   const sampleSize = opts.sample ?? 10;
   const sample: PreviewRow[] = [];
   const firstFailures: { line: number; reason: string }[] = [];
-  let rows = 0, valid = 0, failed = 0;
+  let rows = 0,
+    valid = 0,
+    failed = 0;
   for await (const batch of rowsOf(source, opts.head)) {
     for (const row of batch) {
       rows++;
@@ -130,7 +137,12 @@ const IMPORT_BATCH = 5_000;
  * says at which line: the batches before it stay stored, and importing the file again adds only
  * what is missing.
  */
-export async function importCsv(source: CsvSource, mapping: CsvMapping, sensorId: number, opts: { head?: CsvHead } = {}) {
+export async function importCsv(
+  source: CsvSource,
+  mapping: CsvMapping,
+  sensorId: number,
+  opts: { head?: CsvHead } = {},
+) {
   const ctx = await conversion(sensorId, mapping);
   const coverage = new SpotCoverage(await placementSpans(sensorId));
   const firstFailures: Failure[] = [];
@@ -160,7 +172,8 @@ export async function importCsv(source: CsvSource, mapping: CsvMapping, sensorId
   let pendingLine = 0;
   const flush = async () => {
     await settle();
-    if (!stopped && pending.length > 0) writing = { result: writer().write(pending), rows: pending.length, line: pendingLine };
+    if (!stopped && pending.length > 0)
+      writing = { result: writer().write(pending), rows: pending.length, line: pendingLine };
     pending = [];
   };
   let lastLine = 1;
@@ -176,7 +189,10 @@ export async function importCsv(source: CsvSource, mapping: CsvMapping, sensorId
   } catch (err) {
     // The file itself breaks off (the preview would have said so): what came before is written.
     await flush();
-    stopped ??= { line: lastLine + 1, reason: `the file could not be read as CSV from there: ${(err as Error).message}` };
+    stopped ??= {
+      line: lastLine + 1,
+      reason: `the file could not be read as CSV from there: ${(err as Error).message}`,
+    };
   }
   async function convertBatch(batch: CsvRow[]) {
     for (const row of batch) {
@@ -195,7 +211,12 @@ export async function importCsv(source: CsvSource, mapping: CsvMapping, sensorId
   await flush();
   await settle();
   recordRejectionsSoon(
-    firstFailures.map((f) => ({ sensorId, source: "csv" as const, reason: f.reason, payload: f.row.join(",").slice(0, 300) })),
+    firstFailures.map((f) => ({
+      sensorId,
+      source: "csv" as const,
+      reason: f.reason,
+      payload: f.row.join(",").slice(0, 300),
+    })),
   );
   return {
     rows,
@@ -227,7 +248,13 @@ export function csvSlot(userKey: string): (() => void) | null {
 }
 
 /** One audit row per import: who imported how much into which sensor. */
-export async function auditCsvImport(opts: { siteId: number; actorId: number; sensorId: number; sensorName: string; result: CsvImportResult }) {
+export async function auditCsvImport(opts: {
+  siteId: number;
+  actorId: number;
+  sensorId: number;
+  sensorName: string;
+  result: CsvImportResult;
+}) {
   const { rows, stored, duplicates, failed, outsideSpots, stopped } = opts.result;
   await db()
     .insert(auditLog)
@@ -235,6 +262,15 @@ export async function auditCsvImport(opts: { siteId: number; actorId: number; se
       siteId: opts.siteId,
       actorId: opts.actorId,
       action: "csv.import",
-      detail: { sensorId: opts.sensorId, sensor: opts.sensorName, rows, stored, duplicates, failed, outsideSpots, stoppedAtLine: stopped?.line ?? null },
+      detail: {
+        sensorId: opts.sensorId,
+        sensor: opts.sensorName,
+        rows,
+        stored,
+        duplicates,
+        failed,
+        outsideSpots,
+        stoppedAtLine: stopped?.line ?? null,
+      },
     });
 }

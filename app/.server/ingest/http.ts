@@ -17,8 +17,7 @@ const preview = (item: unknown) => {
   }
 };
 
-const json = (body: unknown, status = 200) =>
-  Response.json(body, { status, headers: { "Cache-Control": "no-store" } });
+const json = (body: unknown, status = 200) => Response.json(body, { status, headers: { "Cache-Control": "no-store" } });
 
 /** Reads at most `limit` bytes of the body, refusing more without buffering it. */
 export async function readLimited(request: Request, limit: number): Promise<string | null> {
@@ -122,7 +121,8 @@ export async function handleHttpIngest(request: Request, w: ReadingWriter = writ
   if (result.conflictsAt) {
     const at = new Set(result.conflictsAt);
     ok.forEach((r, i) => {
-      if (at.has(r.measuredAt.getTime())) conflicts.push({ index: okIndex[i], time: r.measuredAt.toISOString(), reason: ALREADY_STORED });
+      if (at.has(r.measuredAt.getTime()))
+        conflicts.push({ index: okIndex[i], time: r.measuredAt.toISOString(), reason: ALREADY_STORED });
     });
     conflicts.sort((a, b) => a.index - b.index);
   }
@@ -138,7 +138,9 @@ export async function handleHttpIngest(request: Request, w: ReadingWriter = writ
     conflicting: conflicts.slice(0, 1000),
     outsideSpot: result.outsideSpot,
     ...(result.outsideSpot > 0
-      ? { message: `${result.outsideSpot} readings were stored but fall outside any placement of this sensor: assign them on the sensor page` }
+      ? {
+          message: `${result.outsideSpot} readings were stored but fall outside any placement of this sensor: assign them on the sensor page`,
+        }
       : {}),
     rejected,
   });

@@ -6,7 +6,13 @@ export const MAX_REASON_CHARS = 300;
 export const MAX_TOPIC_CHARS = 200;
 export const MAX_PAYLOAD_CHARS = 500;
 
-export type Rejected = { sensorId: number | null; source: "mqtt" | "http" | "csv"; topic?: string; reason: string; payload: string };
+export type Rejected = {
+  sensorId: number | null;
+  source: "mqtt" | "http" | "csv";
+  topic?: string;
+  reason: string;
+  payload: string;
+};
 
 /** Rejections by reason since the process started (the health page). */
 const counts = new Map<string, number>();
@@ -15,7 +21,8 @@ const counts = new Map<string, number>();
  * Text as PostgreSQL's text takes it: a NUL byte (which it refuses, failing the whole INSERT)
  * shown as `\0`, and at most `max` characters.
  */
-export const storable = (s: string, max: number) => (s.includes("\u0000") ? s.replace(/\u0000/g, "\\0") : s).slice(0, max);
+export const storable = (s: string, max: number) =>
+  (s.includes("\u0000") ? s.replace(/\u0000/g, "\\0") : s).slice(0, max);
 
 // One statement: the rows and each sensor's count go in together or not at all, so the counts on
 // the sensor pages always equal the rows on the health page.

@@ -52,7 +52,12 @@ const known = new LRUCache<number, SensorInfo>({
  * no query per try; apart from the known sensors so that a client trying made-up ids can neither
  * grow memory nor push known sensors out. A lapsed entry is dropped, not served.
  */
-const unknown = new LRUCache<number, true>({ max: MAX_UNKNOWN_IDS, ttl: UNKNOWN_TTL_MS, ttlResolution: 0, perf: clock });
+const unknown = new LRUCache<number, true>({
+  max: MAX_UNKNOWN_IDS,
+  ttl: UNKNOWN_TTL_MS,
+  ttlResolution: 0,
+  perf: clock,
+});
 
 /** Each sensor's latest accepted temperature (°C as sent, by measuring time), for the jump check. */
 const latest = new Map<number, LastTemperature>();
@@ -90,7 +95,13 @@ export async function sensorInfo(id: number): Promise<SensorInfo | null> {
 }
 
 async function querySensorInfo(id: number): Promise<SensorInfo | null> {
-  const res = await pool().query<{ id: number; site_id: number; time_zone: string; secret_hash: string; indoor: boolean | null }>(
+  const res = await pool().query<{
+    id: number;
+    site_id: number;
+    time_zone: string;
+    secret_hash: string;
+    indoor: boolean | null;
+  }>(
     `SELECT s.id, s.site_id, si.time_zone, s.secret_hash, sp.indoor FROM sensors s
      JOIN sites si ON si.id = s.site_id
      LEFT JOIN placements p ON p.sensor_id = s.id AND p.to_at IS NULL
@@ -99,7 +110,13 @@ async function querySensorInfo(id: number): Promise<SensorInfo | null> {
   );
   const row = res.rows[0];
   return row
-    ? { id: row.id, siteId: row.site_id, timeZone: row.time_zone, secretHash: row.secret_hash, kind: row.indoor == null ? "unplaced" : row.indoor ? "indoor" : "outdoor" }
+    ? {
+        id: row.id,
+        siteId: row.site_id,
+        timeZone: row.time_zone,
+        secretHash: row.secret_hash,
+        kind: row.indoor == null ? "unplaced" : row.indoor ? "indoor" : "outdoor",
+      }
     : null;
 }
 
@@ -141,7 +158,11 @@ export async function verifySensorSecret(id: number, secret: string): Promise<Se
   if (legacy) {
     // Only if the hash is still the one just checked (a rotation in between wins).
     await pool()
-      .query("UPDATE sensors SET secret_hash = $1 WHERE id = $2 AND secret_hash = $3", [hashSensorSecret(secret), id, info.secretHash])
+      .query("UPDATE sensors SET secret_hash = $1 WHERE id = $2 AND secret_hash = $3", [
+        hashSensorSecret(secret),
+        id,
+        info.secretHash,
+      ])
       .then(() => invalidateSensorCache(id))
       .catch(() => {}); // the next connect checks the old hash again
   }

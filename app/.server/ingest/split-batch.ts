@@ -28,7 +28,8 @@ export function splitOneSensor(rows: Reading[], timeZone: string): [Reading[], R
   const middle = ordered.length >> 1;
   for (let step = 0; step < middle; step++) {
     for (const cut of [middle + step, middle - step]) {
-      if (cut > 0 && cut < ordered.length && hourOf(ordered[cut]) !== hourOf(ordered[cut - 1])) return [ordered.slice(0, cut), ordered.slice(cut)];
+      if (cut > 0 && cut < ordered.length && hourOf(ordered[cut]) !== hourOf(ordered[cut - 1]))
+        return [ordered.slice(0, cut), ordered.slice(cut)];
     }
   }
   return null;
@@ -55,7 +56,14 @@ export async function halvesOf(rows: Reading[]): Promise<[Reading[], Reading[]] 
  * updated by the later half after the earlier committed). A lock timeout breaks a wait that a
  * third writer, sharing a spot's rollups with both halves, could otherwise close into a cycle.
  */
-export async function writeInHalves(getPool: () => pg.Pool, halves: [Reading[], Reading[]], merge: boolean, withRows: boolean, withKeys: boolean, withOutside: boolean): Promise<{ results: StatementRow[]; failure: Error | null }> {
+export async function writeInHalves(
+  getPool: () => pg.Pool,
+  halves: [Reading[], Reading[]],
+  merge: boolean,
+  withRows: boolean,
+  withKeys: boolean,
+  withOutside: boolean,
+): Promise<{ results: StatementRow[]; failure: Error | null }> {
   const variant = { merge, withRows, withKeys, withSeen: false, withOutside };
   // What the whole batch says about the sensor, set once the earlier half has committed.
   const [earlierRows, laterRows] = halves;

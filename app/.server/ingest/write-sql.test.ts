@@ -5,7 +5,14 @@
 import { describe, expect, it } from "vitest";
 import { columns, SEEN_SQL, sqlFor, type Variant } from "~/.server/ingest/write-sql";
 
-const base: Variant = { merge: false, withRows: false, withKeys: false, withSeen: true, optimistic: true, withOutside: false };
+const base: Variant = {
+  merge: false,
+  withRows: false,
+  withKeys: false,
+  withSeen: true,
+  optimistic: true,
+  withOutside: false,
+};
 
 const VARIANTS: [string, Variant][] = [
   ["a broker batch, tried first as a plain INSERT", base],
@@ -13,7 +20,10 @@ const VARIANTS: [string, Variant][] = [
   ["single-channel readings merged into their rows", { ...base, merge: true, optimistic: false }],
   ["with the committed rows for the alert engine", { ...base, withRows: true }],
   ["one HTTP or CSV caller, told the readings outside every spot", { ...base, withOutside: true }],
-  ["several counting callers in one group commit, told their keys", { ...base, optimistic: false, withKeys: true, withOutside: true }],
+  [
+    "several counting callers in one group commit, told their keys",
+    { ...base, optimistic: false, withKeys: true, withOutside: true },
+  ],
   ["a half of a large one-sensor batch (the sensor row set apart)", { ...base, withSeen: false, withOutside: true }],
 ];
 
@@ -28,7 +38,9 @@ describe("the writer's SQL variants", () => {
   it("names every variant apart, and a merging variant is never optimistic", () => {
     const names = VARIANTS.map(([, v]) => sqlFor(v).name);
     expect(new Set(names).size).toBe(VARIANTS.length);
-    expect(sqlFor({ ...base, merge: true, optimistic: true })).toEqual(sqlFor({ ...base, merge: true, optimistic: false }));
+    expect(sqlFor({ ...base, merge: true, optimistic: true })).toEqual(
+      sqlFor({ ...base, merge: true, optimistic: false }),
+    );
   });
 
   it("the split batch's sensor update", () => {
@@ -44,8 +56,23 @@ describe("the statement's parameters", () => {
     const at = new Date("2026-01-17T03:00:00Z");
     const cols = columns([
       { sensorId: 7, measuredAt: at, temperature: 9.5, humidity: null, lux: null, battery: 88 },
-      { sensorId: 7, measuredAt: new Date(at.getTime() + 60_000), temperature: null, humidity: 91, lux: 0, battery: null, partial: true },
+      {
+        sensorId: 7,
+        measuredAt: new Date(at.getTime() + 60_000),
+        temperature: null,
+        humidity: 91,
+        lux: 0,
+        battery: null,
+        partial: true,
+      },
     ]);
-    expect(cols).toEqual(["{7,7}", `{${at.getTime()},${at.getTime() + 60_000}}`, "{9.5,NULL}", "{NULL,91}", "{NULL,0}", "{88,NULL}"]);
+    expect(cols).toEqual([
+      "{7,7}",
+      `{${at.getTime()},${at.getTime() + 60_000}}`,
+      "{9.5,NULL}",
+      "{NULL,91}",
+      "{NULL,0}",
+      "{88,NULL}",
+    ]);
   });
 });

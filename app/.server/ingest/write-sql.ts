@@ -82,8 +82,10 @@ WITH ${input}, ins AS (
     ${calibratedSql("humidity", "f.humidity")} AS h,
     ${calibratedSql("lux", "f.lux")} AS l,${
       // A merged row's dew point is of the whole row, not only of the channels this statement added.
-      merge ? `
-    dew_point_margin(${calibratedSql("temperature", "f.t_row")}, ${calibratedSql("humidity", "f.h_row")}) AS dp,` : ""
+      merge
+        ? `
+    dew_point_margin(${calibratedSql("temperature", "f.t_row")}, ${calibratedSql("humidity", "f.h_row")}) AS dp,`
+        : ""
     }
     ${LOCAL_HOUR_START("f.measured_at", "si.time_zone")} AS hour
   FROM fresh f
@@ -113,7 +115,9 @@ WITH ${input}, ins AS (
     lux_sum = CASE WHEN r.lux_sum IS NULL THEN excluded.lux_sum ELSE r.lux_sum + coalesce(excluded.lux_sum, 0) END,
     lux_max = greatest(r.lux_max, excluded.lux_max)
   RETURNING 1
-), seen AS (${withSeen ? `
+), seen AS (${
+    withSeen
+      ? `
   UPDATE sensors s SET last_seen_at = greatest(s.last_seen_at, x.last_at),
     battery = coalesce(x.battery, s.battery)
   FROM (
@@ -122,14 +126,20 @@ WITH ${input}, ins AS (
     FROM input GROUP BY sensor_id
   ) x
   WHERE s.id = x.sensor_id AND (s.last_seen_at IS NULL OR x.last_at >= s.last_seen_at)
-  RETURNING 1` : "SELECT 1 WHERE false"}
+  RETURNING 1`
+      : "SELECT 1 WHERE false"
+  }
 )${conflicts}
 SELECT (SELECT count(*)::int FROM ins) AS inserted, (SELECT count(*)::int FROM up) AS hours,
   ${optimistic ? "NULL::json" : `(SELECT json_agg(json_build_array(sensor_id, (extract(epoch FROM measured_at) * 1000)::bigint)) FROM conflicts)`} AS conflicts,
   ${withOutside ? "greatest(0, (SELECT count(*) FROM fresh) - (SELECT count(*) FROM placed))::int" : "0"} AS outside,
   (SELECT count(*)::int FROM seen) AS seen,
-  ${withRows ? `coalesce((SELECT json_agg(json_build_array(spot_id, sensor_id, measured_at, t, h, battery) ORDER BY measured_at)
-    FROM placed), '[]'::json)` : `'[]'::json`} AS placed`;
+  ${
+    withRows
+      ? `coalesce((SELECT json_agg(json_build_array(spot_id, sensor_id, measured_at, t, h, battery) ORDER BY measured_at)
+    FROM placed), '[]'::json)`
+      : `'[]'::json`
+  } AS placed`;
 }
 
 // The committed rows go back to the process only when someone listens (the alert engine). The
@@ -140,7 +150,14 @@ const SQL = new Map<string, string>();
 // (no speculative insertion), tried first for batches without single-channel readings. The
 // primary key still refuses any duplicate; the batch is then written with ON CONFLICT.
 // `withOutside`: count inserted rows in no placement (write() callers are told; store() skips it).
-export type Variant = { merge: boolean; withRows: boolean; withKeys: boolean; withSeen: boolean; optimistic: boolean; withOutside: boolean };
+export type Variant = {
+  merge: boolean;
+  withRows: boolean;
+  withKeys: boolean;
+  withSeen: boolean;
+  optimistic: boolean;
+  withOutside: boolean;
+};
 /** The statement text of a variant, and a name to prepare it under. */
 export function sqlFor(v: Variant): { text: string; name: string } {
   const optimistic = v.optimistic && !v.merge;

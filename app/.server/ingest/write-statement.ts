@@ -23,7 +23,12 @@ const isDuplicate = (err: unknown) => (err as { code?: string }).code === UNIQUE
  * second) run prepared: parsing and planning this statement costs about a millisecond, a tenth of
  * a small batch's commit; bulk batches keep a plan made for their size.
  */
-export async function writeStatement(client: pg.PoolClient, v: Omit<Variant, "optimistic">, cols: string[], opts: { prepared: boolean; inTransaction?: boolean }): Promise<StatementRow> {
+export async function writeStatement(
+  client: pg.PoolClient,
+  v: Omit<Variant, "optimistic">,
+  cols: string[],
+  opts: { prepared: boolean; inTransaction?: boolean },
+): Promise<StatementRow> {
   const run = (optimistic: boolean) => {
     const { text, name } = sqlFor({ ...v, optimistic });
     return client.query(opts.prepared ? { name, text, values: cols } : { text, values: cols });

@@ -9,7 +9,14 @@ import type pg from "pg";
 import { pool } from "~/.server/db";
 import type { Reading } from "~/domain/ingest/payload";
 
-export type CommittedReading = { spotId: number; sensorId: number; measuredAt: Date; t: number | null; h: number | null; battery: number | null };
+export type CommittedReading = {
+  spotId: number;
+  sensorId: number;
+  measuredAt: Date;
+  t: number | null;
+  h: number | null;
+  battery: number | null;
+};
 export type BatchListener = (rows: CommittedReading[]) => void | Promise<void>;
 /**
  * `inserted`: rows new to the database. `conflicts`: readings whose sensor and time already held a
@@ -44,7 +51,15 @@ type Shard = { pending: Pending[]; count: number; timer: NodeJS.Timeout | null; 
 export class ReadingWriter {
   private shards: Shard[];
   private listeners = new Set<BatchListener>();
-  readonly stats: WriterStats = { batches: 0, readings: 0, inserted: 0, failures: 0, lastCommitMs: 0, commitMs: [], splitBatches: 0 };
+  readonly stats: WriterStats = {
+    batches: 0,
+    readings: 0,
+    inserted: 0,
+    failures: 0,
+    lastCommitMs: 0,
+    commitMs: [],
+    splitBatches: 0,
+  };
 
   constructor(
     private readonly getPool: () => pg.Pool = pool,
@@ -52,7 +67,12 @@ export class ReadingWriter {
     readonly maxBatch = 2000,
     shardCount = 2,
   ) {
-    this.shards = Array.from({ length: Math.max(1, shardCount) }, () => ({ pending: [], count: 0, timer: null, flushing: null }));
+    this.shards = Array.from({ length: Math.max(1, shardCount) }, () => ({
+      pending: [],
+      count: 0,
+      timer: null,
+      flushing: null,
+    }));
   }
 
   onBatch(listener: BatchListener) {
@@ -78,10 +98,13 @@ export class ReadingWriter {
     if (readings.length === 0) return Promise.resolve({ inserted: 0, conflicts: 0, outsideSpot: 0 });
     const k = this.shards.length;
     const first = readings[0].sensorId % k;
-    if (k === 1 || readings.every((r) => r.sensorId % k === first)) return this.enqueue(this.shards[first], readings, counted);
+    if (k === 1 || readings.every((r) => r.sensorId % k === first))
+      return this.enqueue(this.shards[first], readings, counted);
     const parts: Reading[][] = this.shards.map(() => []);
     for (const r of readings) parts[r.sensorId % k].push(r);
-    return Promise.all(parts.map((part, i) => (part.length > 0 ? this.enqueue(this.shards[i], part, counted) : null))).then((rs) => {
+    return Promise.all(
+      parts.map((part, i) => (part.length > 0 ? this.enqueue(this.shards[i], part, counted) : null)),
+    ).then((rs) => {
       const sum: WriteResult = { inserted: 0, conflicts: 0, outsideSpot: 0 };
       for (const r of rs) {
         if (!r) continue;
@@ -173,7 +196,12 @@ export class ReadingWriter {
     const placed = results.length === 1 ? results[0].placed : results.flatMap((r) => r.placed);
     if (this.listeners.size > 0 && placed.length > 0) {
       const committed = placed.map(([spotId, sensorId, at, t, h, battery]) => ({
-        spotId, sensorId, measuredAt: new Date(at), t, h, battery,
+        spotId,
+        sensorId,
+        measuredAt: new Date(at),
+        t,
+        h,
+        battery,
       }));
       for (const l of this.listeners) {
         Promise.resolve()
@@ -200,11 +228,22 @@ export class ReadingWriter {
         inserted += r.inserted;
         outsideSpot += r.outside;
       }
-      batch[0].resolve(conflicting ? { inserted, conflicts: conflicting.size, outsideSpot, conflictsAt: [...conflicting].map((k) => Number(k.split(":")[1])) } : { inserted, conflicts: 0, outsideSpot });
+      batch[0].resolve(
+        conflicting
+          ? {
+              inserted,
+              conflicts: conflicting.size,
+              outsideSpot,
+              conflictsAt: [...conflicting].map((k) => Number(k.split(":")[1])),
+            }
+          : { inserted, conflicts: 0, outsideSpot },
+      );
       return;
     }
     const fresh = withKeys ? new Set(results.flatMap((r) => r.keys ?? []).map(([id, ms]) => `${id}:${ms}`)) : null;
-    const outside = withKeys ? new Set(results.flatMap((r) => r.outside_keys ?? []).map(([id, ms]) => `${id}:${ms}`)) : null;
+    const outside = withKeys
+      ? new Set(results.flatMap((r) => r.outside_keys ?? []).map(([id, ms]) => `${id}:${ms}`))
+      : null;
     for (const p of batch) {
       let inserted = 0;
       let conflicts = 0;
@@ -229,10 +268,19 @@ export class ReadingWriter {
   }
 
   /** One statement, its own transaction: it has committed when the result comes back. */
-  private async statement(cols: string[], rows: number, merge: boolean, withRows: boolean, withKeys: boolean, withOutside: boolean): Promise<StatementRow> {
+  private async statement(
+    cols: string[],
+    rows: number,
+    merge: boolean,
+    withRows: boolean,
+    withKeys: boolean,
+    withOutside: boolean,
+  ): Promise<StatementRow> {
     const client = await this.getPool().connect();
     try {
-      const row = await writeStatement(client, { merge, withRows, withKeys, withSeen: true, withOutside }, cols, { prepared: rows <= PREPARED_MAX_ROWS });
+      const row = await writeStatement(client, { merge, withRows, withKeys, withSeen: true, withOutside }, cols, {
+        prepared: rows <= PREPARED_MAX_ROWS,
+      });
       client.release();
       return row;
     } catch (err) {
@@ -250,7 +298,6 @@ export class ReadingWriter {
       await Promise.all(busy.map((s) => s.flushing ?? new Promise((r) => setTimeout(r, 1))));
     }
   }
-
 }
 
 // Beside its one use, so that the SQL builder's move above merges cleanly.

@@ -24,9 +24,20 @@ export async function fetchRollups(spotIds: number[], from: Date, to: Date): Pro
     for (let i = 0; i < hour.length; i++) {
       list.push({
         hour: new Date(hour[i]!),
-        tN: tN[i] ?? 0, tMin: tMin[i], tMax: tMax[i], tSum: tSum[i],
-        hN: hN[i] ?? 0, hMin: hMin[i], hMax: hMax[i], hSum: hSum[i],
-        dpMarginMin: dp[i], luxN: luxN[i] ?? 0, luxSum: luxSum[i], luxMax: luxMax[i], dpN: dpN[i] ?? 0, dpUnderN: dpUnderN[i] ?? 0,
+        tN: tN[i] ?? 0,
+        tMin: tMin[i],
+        tMax: tMax[i],
+        tSum: tSum[i],
+        hN: hN[i] ?? 0,
+        hMin: hMin[i],
+        hMax: hMax[i],
+        hSum: hSum[i],
+        dpMarginMin: dp[i],
+        luxN: luxN[i] ?? 0,
+        luxSum: luxSum[i],
+        luxMax: luxMax[i],
+        dpN: dpN[i] ?? 0,
+        dpUnderN: dpUnderN[i] ?? 0,
       });
     }
   }
@@ -51,7 +62,10 @@ type CacheKey = number | string;
  * (about 100 MB) and more spots with less history. Least recently used spots go first.
  */
 const MAX_CACHED_ROWS = 64 * 8760;
-const rollupCache = new LRUCache<CacheKey, CachedRollups>({ maxSize: MAX_CACHED_ROWS, sizeCalculation: (e) => Math.max(1, e.rows.length) });
+const rollupCache = new LRUCache<CacheKey, CachedRollups>({
+  maxSize: MAX_CACHED_ROWS,
+  sizeCalculation: (e) => Math.max(1, e.rows.length),
+});
 /** What the cache did since the process started: spots served from it whole, appended to, read afresh. */
 const rollupCacheCounts = { hits: 0, appended: 0, read: 0 };
 
@@ -69,7 +83,8 @@ export async function pruneRollupChanges() {
 
 /** Index of the first row at or after `ms` (rows in hour order). */
 function firstAtOrAfter(rows: HourlyRollup[], ms: number): number {
-  let lo = 0, hi = rows.length;
+  let lo = 0,
+    hi = rows.length;
   while (lo < hi) {
     const mid = (lo + hi) >> 1;
     if (rows[mid].hour.getTime() < ms) lo = mid + 1;
@@ -113,17 +128,32 @@ export async function loadRollups(spotIds: number[], fromAsked: Date, to: Date):
   for (const list of behind.values()) for (const { spotId, hit } of list) used.set(spotId, hit);
   if (stale.length > 0) {
     rollupCacheCounts.read += stale.length;
-    const fresh = await fetchRollups(stale.map((c) => c.spotId), new Date(from), new Date(edge));
+    const fresh = await fetchRollups(
+      stale.map((c) => c.spotId),
+      new Date(from),
+      new Date(edge),
+    );
     for (const c of stale) remember(c.spotId, { from, edge, check: c.check, rows: fresh.get(c.spotId)! });
   }
   for (const [readTo, list] of behind) {
     rollupCacheCounts.appended += list.length;
-    const more = await fetchRollups(list.map((l) => l.spotId), new Date(readTo), new Date(edge));
+    const more = await fetchRollups(
+      list.map((l) => l.spotId),
+      new Date(readTo),
+      new Date(edge),
+    );
     // Appending newly past hours also drops those before this period: a rolling window would
     // otherwise keep every hour since the server started.
-    for (const { spotId, hit } of list) remember(spotId, { ...hit, from, edge, rows: [...hit.rows.slice(firstAtOrAfter(hit.rows, from)), ...more.get(spotId)!] });
+    for (const { spotId, hit } of list)
+      remember(spotId, {
+        ...hit,
+        from,
+        edge,
+        rows: [...hit.rows.slice(firstAtOrAfter(hit.rows, from)), ...more.get(spotId)!],
+      });
   }
-  const recent = edge < to.getTime() ? await fetchRollups(spotIds, new Date(edge), to) : new Map<number, HourlyRollup[]>();
+  const recent =
+    edge < to.getTime() ? await fetchRollups(spotIds, new Date(edge), to) : new Map<number, HourlyRollup[]>();
   return new Map(
     spotIds.map((id) => {
       const { rows } = used.get(id)!;

@@ -26,7 +26,11 @@ const responseSchema = z.object({
   latitude: z.number(),
   longitude: z.number(),
   utc_offset_seconds: z.number().int(),
-  hourly_units: z.object({ time: z.literal("unixtime"), temperature_2m: z.literal("°C"), wind_speed_10m: z.literal("km/h") }),
+  hourly_units: z.object({
+    time: z.literal("unixtime"),
+    temperature_2m: z.literal("°C"),
+    wind_speed_10m: z.literal("km/h"),
+  }),
   hourly: z.object({
     time: z.array(z.number().int()).max(MAX_HOURS),
     temperature_2m: column,
@@ -39,9 +43,16 @@ const responseSchema = z.object({
 
 export class WeatherServiceError extends Error {}
 
-export type HourlyRequest = { kind: "archive"; startDate: string; endDate: string } | { kind: "forecast"; pastDays: number; forecastDays: number };
+export type HourlyRequest =
+  | { kind: "archive"; startDate: string; endDate: string }
+  | { kind: "forecast"; pastDays: number; forecastDays: number };
 
-export async function fetchHourly(ep: WeatherEndpoints, place: { latitude: number; longitude: number }, req: HourlyRequest, signal?: AbortSignal): Promise<HourlySeries> {
+export async function fetchHourly(
+  ep: WeatherEndpoints,
+  place: { latitude: number; longitude: number },
+  req: HourlyRequest,
+  signal?: AbortSignal,
+): Promise<HourlySeries> {
   const url = new URL(req.kind === "archive" ? ep.archiveUrl : ep.forecastUrl);
   const q = url.searchParams;
   q.set("latitude", place.latitude.toFixed(4));
@@ -59,7 +70,10 @@ export async function fetchHourly(ep: WeatherEndpoints, place: { latitude: numbe
   }
   if (ep.apiKey) q.set("apikey", ep.apiKey);
   const timeout = AbortSignal.timeout(ep.timeoutMs ?? 20_000);
-  const res = await fetch(url, { signal: signal ? AbortSignal.any([signal, timeout]) : timeout, headers: { accept: "application/json" } }).catch((err: unknown) => {
+  const res = await fetch(url, {
+    signal: signal ? AbortSignal.any([signal, timeout]) : timeout,
+    headers: { accept: "application/json" },
+  }).catch((err: unknown) => {
     throw new WeatherServiceError(`weather service unreachable: ${err instanceof Error ? err.message : err}`);
   });
   const text = await readBounded(res);
@@ -71,21 +85,38 @@ export async function fetchHourly(ep: WeatherEndpoints, place: { latitude: numbe
   }
   if (!res.ok) {
     const reason = z.object({ reason: z.string() }).safeParse(body);
-    throw new WeatherServiceError(`weather service answered ${res.status}: ${reason.success ? reason.data.reason.slice(0, 200) : "no reason given"}`);
+    throw new WeatherServiceError(
+      `weather service answered ${res.status}: ${reason.success ? reason.data.reason.slice(0, 200) : "no reason given"}`,
+    );
   }
   const parsed = responseSchema.safeParse(body);
-  if (!parsed.success) throw new WeatherServiceError(`weather service answer not understood: ${parsed.error.issues[0]?.path.join(".")} ${parsed.error.issues[0]?.message}`);
+  if (!parsed.success)
+    throw new WeatherServiceError(
+      `weather service answer not understood: ${parsed.error.issues[0]?.path.join(".")} ${parsed.error.issues[0]?.message}`,
+    );
   const h = parsed.data.hourly;
   const n = h.time.length;
-  if ([h.temperature_2m, h.relative_humidity_2m, h.cloud_cover, h.wind_speed_10m, h.shortwave_radiation].some((c) => c.length !== n)) {
+  if (
+    [h.temperature_2m, h.relative_humidity_2m, h.cloud_cover, h.wind_speed_10m, h.shortwave_radiation].some(
+      (c) => c.length !== n,
+    )
+  ) {
     throw new WeatherServiceError("weather service answer has columns of different lengths");
   }
   if (n === 0) return { start: 0, temperature: [], humidity: [], cloud: [], wind: [], shortwave: [] };
   const start = h.time[0] * 1000;
   for (let i = 0; i < n; i++) {
-    if (h.time[i] * 1000 !== start + i * HOUR) throw new WeatherServiceError("weather service answer is not a run of whole hours");
+    if (h.time[i] * 1000 !== start + i * HOUR)
+      throw new WeatherServiceError("weather service answer is not a run of whole hours");
   }
-  return { start, temperature: h.temperature_2m, humidity: h.relative_humidity_2m, cloud: h.cloud_cover, wind: h.wind_speed_10m, shortwave: h.shortwave_radiation };
+  return {
+    start,
+    temperature: h.temperature_2m,
+    humidity: h.relative_humidity_2m,
+    cloud: h.cloud_cover,
+    wind: h.wind_speed_10m,
+    shortwave: h.shortwave_radiation,
+  };
 }
 
 async function readBounded(res: Response): Promise<string> {

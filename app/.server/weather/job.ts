@@ -82,7 +82,12 @@ export class WeatherJob {
          AND (f.site_id IS NULL OR f.latitude <> s.latitude OR f.longitude <> s.longitude OR f.forecast_at IS NULL
               OR f.forecast_at <= $2 OR f.archive_from IS NULL OR f.archive_from > $3::date OR f.archive_to < $4::date)
        ORDER BY f.archive_from IS NOT NULL, f.forecast_at NULLS FIRST, s.id LIMIT 200`,
-      [new Date(now), new Date(now - FORECAST_EVERY_MS), isoDay(Date.UTC(new Date(now).getUTCFullYear() - this.opts.years, 0, 1)), isoDay(Math.floor(now / DAY) * DAY - (ARCHIVE_DELAY_DAYS + 1) * DAY)],
+      [
+        new Date(now),
+        new Date(now - FORECAST_EVERY_MS),
+        isoDay(Date.UTC(new Date(now).getUTCFullYear() - this.opts.years, 0, 1)),
+        isoDay(Math.floor(now / DAY) * DAY - (ARCHIVE_DELAY_DAYS + 1) * DAY),
+      ],
     );
     let budget = this.opts.perRound ?? 4;
     let made = 0;
@@ -99,31 +104,50 @@ export class WeatherJob {
 
   /** What a site needs next, if anything. */
   private nextRequest(row: FetchRow, now: number): HourlyRequest | null {
-    const moved = row.latitude == null || Math.abs(row.latitude - row.site_latitude) > 1e-6 || Math.abs(row.longitude - row.site_longitude) > 1e-6;
-    if (moved || !row.forecast_at || now - row.forecast_at.getTime() > FORECAST_EVERY_MS) return { kind: "forecast", pastDays: 92, forecastDays: 16 };
+    const moved =
+      row.latitude == null ||
+      Math.abs(row.latitude - row.site_latitude) > 1e-6 ||
+      Math.abs(row.longitude - row.site_longitude) > 1e-6;
+    if (moved || !row.forecast_at || now - row.forecast_at.getTime() > FORECAST_EVERY_MS)
+      return { kind: "forecast", pastDays: 92, forecastDays: 16 };
     const today = Math.floor(now / DAY) * DAY;
     const archiveEnd = today - ARCHIVE_DELAY_DAYS * DAY;
     const wantFrom = Date.UTC(new Date(now).getUTCFullYear() - this.opts.years, 0, 1);
     if (row.archive_from === null || row.archive_to === null) {
-      return { kind: "archive", startDate: isoDay(archiveEnd - (ARCHIVE_CHUNK_DAYS - 1) * DAY), endDate: isoDay(archiveEnd) };
+      return {
+        kind: "archive",
+        startDate: isoDay(archiveEnd - (ARCHIVE_CHUNK_DAYS - 1) * DAY),
+        endDate: isoDay(archiveEnd),
+      };
     }
     const from = dayMs(row.archive_from);
     if (from > wantFrom) {
       const end = from - DAY;
-      return { kind: "archive", startDate: isoDay(Math.max(wantFrom, end - (ARCHIVE_CHUNK_DAYS - 1) * DAY)), endDate: isoDay(end) };
+      return {
+        kind: "archive",
+        startDate: isoDay(Math.max(wantFrom, end - (ARCHIVE_CHUNK_DAYS - 1) * DAY)),
+        endDate: isoDay(end),
+      };
     }
     const to = dayMs(row.archive_to);
     const checked = this.archiveChecked.get(row.site_id) ?? 0;
     if (to < archiveEnd - DAY && now - checked > ARCHIVE_EVERY_MS) {
       this.archiveChecked.set(row.site_id, now);
-      return { kind: "archive", startDate: isoDay(to + DAY), endDate: isoDay(Math.min(archiveEnd, to + ARCHIVE_CHUNK_DAYS * DAY)) };
+      return {
+        kind: "archive",
+        startDate: isoDay(to + DAY),
+        endDate: isoDay(Math.min(archiveEnd, to + ARCHIVE_CHUNK_DAYS * DAY)),
+      };
     }
     return null;
   }
 
   private async fetchOne(row: Omit<FetchRow, "archive_checked">, req: HourlyRequest, now: number) {
     const place = { latitude: row.site_latitude, longitude: row.site_longitude };
-    const moved = row.latitude == null || Math.abs(row.latitude - place.latitude) > 1e-6 || Math.abs(row.longitude - place.longitude) > 1e-6;
+    const moved =
+      row.latitude == null ||
+      Math.abs(row.latitude - place.latitude) > 1e-6 ||
+      Math.abs(row.longitude - place.longitude) > 1e-6;
     try {
       const series = await fetchHourly(this.opts.endpoints, place, req, this.abort.signal);
       if (moved) {
@@ -137,11 +161,14 @@ export class WeatherJob {
       }
       const stored = await storeHours(row.site_id, series, req.kind === "forecast");
       if (req.kind === "forecast") {
-        await pool().query(`UPDATE weather_fetches SET forecast_at = $2, failures = 0, next_attempt_at = NULL, last_error = NULL WHERE site_id = $1`, [row.site_id, new Date(now)]);
+        await pool().query(
+          `UPDATE weather_fetches SET forecast_at = $2, failures = 0, next_attempt_at = NULL, last_error = NULL WHERE site_id = $1`,
+          [row.site_id, new Date(now)],
+        );
       } else {
         // An archive chunk with no whole day (all inside the archive's lag) still counts as asked.
         const first = stored?.first ?? req.startDate;
-        const last = stored?.last ?? (row.archive_to ?? req.startDate);
+        const last = stored?.last ?? row.archive_to ?? req.startDate;
         await pool().query(
           `UPDATE weather_fetches SET archive_from = LEAST(coalesce(archive_from, $2::date), $2::date), archive_to = GREATEST(coalesce(archive_to, $3::date), $3::date),
              failures = 0, next_attempt_at = NULL, last_error = NULL WHERE site_id = $1`,
@@ -154,18 +181,32 @@ export class WeatherJob {
       const failures = row.failures + 1;
       const backoff = Math.min(MAX_BACKOFF_MS, 60_000 * 2 ** Math.min(failures - 1, 12)) * (0.8 + 0.4 * Math.random());
       const message = (err instanceof Error ? err.message : String(err)).slice(0, 300);
-      await pool().query(
-        `INSERT INTO weather_fetches (site_id, latitude, longitude, failures, next_attempt_at, last_error) VALUES ($1, $2, $3, $4, $5, $6)
+      await pool()
+        .query(
+          `INSERT INTO weather_fetches (site_id, latitude, longitude, failures, next_attempt_at, last_error) VALUES ($1, $2, $3, $4, $5, $6)
          ON CONFLICT (site_id) DO UPDATE SET failures = $4, next_attempt_at = $5, last_error = $6`,
-        [row.site_id, row.latitude ?? place.latitude, row.longitude ?? place.longitude, failures, new Date(now + backoff), message],
-      ).catch(() => {});
-      this.opts.log?.(`weather for site ${row.site_id} not fetched (${message}); next try in ${Math.round(backoff / 60_000)} min`);
+          [
+            row.site_id,
+            row.latitude ?? place.latitude,
+            row.longitude ?? place.longitude,
+            failures,
+            new Date(now + backoff),
+            message,
+          ],
+        )
+        .catch(() => {});
+      this.opts.log?.(
+        `weather for site ${row.site_id} not fetched (${message}); next try in ${Math.round(backoff / 60_000)} min`,
+      );
     }
   }
 }
 
 /** Starts the job on a timer; the returned stop ends it (and any request in flight). */
-export function startWeatherJob(opts: WeatherJobOptions & { everyMs?: number }): { job: WeatherJob; stop: () => Promise<void> } {
+export function startWeatherJob(opts: WeatherJobOptions & { everyMs?: number }): {
+  job: WeatherJob;
+  stop: () => Promise<void>;
+} {
   const job = new WeatherJob(opts);
   const tick = () => {
     job.round().catch((err) => opts.log?.(`weather round failed: ${err instanceof Error ? err.message : err}`));

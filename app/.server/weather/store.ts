@@ -26,7 +26,11 @@ const COLUMNS = Object.keys(scale) as Column[];
 const isoDay = (ms: number) => new Date(ms).toISOString().slice(0, 10);
 
 /** Stores the whole UTC days of `series`; returns the first and last day stored (null when none). */
-export async function storeHours(siteId: number, series: HourlySeries, forecast: boolean): Promise<{ first: string; last: string; days: number } | null> {
+export async function storeHours(
+  siteId: number,
+  series: HourlySeries,
+  forecast: boolean,
+): Promise<{ first: string; last: string; days: number } | null> {
   const rows: unknown[][] = [];
   const firstDay = Math.ceil(series.start / DAY) * DAY;
   const n = series.temperature.length;
@@ -114,17 +118,38 @@ export async function loadHours(siteId: number, from: Date, to: Date): Promise<O
 
 export type WeatherStatus =
   | { state: "not-fetched"; lastError: string | null }
-  | { state: "ready"; archiveFrom: string | null; archiveTo: string | null; forecastAt: Date | null; years: number; lastError: string | null };
+  | {
+      state: "ready";
+      archiveFrom: string | null;
+      archiveTo: string | null;
+      forecastAt: Date | null;
+      years: number;
+      lastError: string | null;
+    };
 
 /** What a page can say about a site's weather, from one small query: never waits on the service. */
 export async function weatherStatus(siteId: number): Promise<WeatherStatus> {
-  const res = await pool().query<{ archive_from: string | null; archive_to: string | null; forecast_at: Date | null; last_error: string | null }>(
+  const res = await pool().query<{
+    archive_from: string | null;
+    archive_to: string | null;
+    forecast_at: Date | null;
+    last_error: string | null;
+  }>(
     `SELECT to_char(archive_from, 'YYYY-MM-DD') AS archive_from, to_char(archive_to, 'YYYY-MM-DD') AS archive_to, forecast_at, last_error
      FROM weather_fetches WHERE site_id = $1`,
     [siteId],
   );
   const r = res.rows[0];
-  if (!r || (r.archive_from === null && r.forecast_at === null)) return { state: "not-fetched", lastError: r?.last_error ?? null };
-  const years = r.archive_from && r.archive_to ? (Date.parse(r.archive_to) - Date.parse(r.archive_from)) / (365.25 * DAY) : 0;
-  return { state: "ready", archiveFrom: r.archive_from, archiveTo: r.archive_to, forecastAt: r.forecast_at, years: Math.round(years * 10) / 10, lastError: r.last_error };
+  if (!r || (r.archive_from === null && r.forecast_at === null))
+    return { state: "not-fetched", lastError: r?.last_error ?? null };
+  const years =
+    r.archive_from && r.archive_to ? (Date.parse(r.archive_to) - Date.parse(r.archive_from)) / (365.25 * DAY) : 0;
+  return {
+    state: "ready",
+    archiveFrom: r.archive_from,
+    archiveTo: r.archive_to,
+    forecastAt: r.forecast_at,
+    years: Math.round(years * 10) / 10,
+    lastError: r.last_error,
+  };
 }

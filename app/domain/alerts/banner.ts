@@ -5,7 +5,23 @@ import type { ForecastWarningFacts } from "~/domain/alerts/forecast-warning";
 import type { AlertKind } from "~/domain/alerts/rules";
 
 export type AlertBannerData = {
-  open: { id: number; kind: AlertKind; spotId: number; spotName: string; startedAt: string; peak: number | null; threshold: number; acknowledgedBy: string | null }[];
-  warnings: { ruleId: number; kind: AlertKind; spotId: number; spotName: string; threshold: number; warnedAt: string }[];
+  open: {
+    id: number;
+    kind: AlertKind;
+    spotId: number;
+    spotName: string;
+    startedAt: string;
+    peak: number | null;
+    threshold: number;
+    acknowledgedBy: string | null;
+  }[];
+  warnings: {
+    ruleId: number;
+    kind: AlertKind;
+    spotId: number;
+    spotName: string;
+    threshold: number;
+    warnedAt: string;
+  }[];
   forecast: (Omit<ForecastWarningFacts, "lowAt"> & { id: number; spotId: number; lowAt: string })[];
 };

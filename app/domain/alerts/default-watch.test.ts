@@ -10,7 +10,10 @@ describe("defaultColdWatch", () => {
   it("follows the most cold-tender plant: its lowest safe night plus the margin", () => {
     const tender = [...PLANT_LIBRARY].sort((a, b) => b.minNightC - a.minNightC)[0];
     const hardy = [...PLANT_LIBRARY].sort((a, b) => a.minNightC - b.minNightC)[0];
-    const w = defaultColdWatch([{ plantKey: hardy.key }, { plantKey: tender.key, nickname: "Big pink" }], PLANT_LIBRARY);
+    const w = defaultColdWatch(
+      [{ plantKey: hardy.key }, { plantKey: tender.key, nickname: "Big pink" }],
+      PLANT_LIBRARY,
+    );
     expect(w!.threshold).toBe(tender.minNightC + DEFAULT_MARGIN_C);
     expect(w!.reason).toContain("Big pink");
     expect(w!.reason).toContain(`${tender.minNightC} °C`);

@@ -9,7 +9,10 @@ export const DEFAULT_MARGIN_C = 2;
 
 export type DefaultWatch = { threshold: number; reason: string };
 
-export function defaultColdWatch(placed: { plantKey: string; nickname?: string }[], library: Pick<PlantProfile, "key" | "name" | "minNightC">[]): DefaultWatch | null {
+export function defaultColdWatch(
+  placed: { plantKey: string; nickname?: string }[],
+  library: Pick<PlantProfile, "key" | "name" | "minNightC">[],
+): DefaultWatch | null {
   let tender: { name: string; minNightC: number } | null = null;
   for (const p of placed) {
     const profile = library.find((l) => l.key === p.plantKey);

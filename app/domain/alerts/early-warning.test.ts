@@ -15,19 +15,30 @@ function replay(points: Point[], threshold: number) {
   for (let i = 1; i <= points.length; i++) {
     const p = points[i - 1];
     if (crossedAt === null && p.value < threshold) crossedAt = p.at.getTime();
-    if (warnedAt === null && crossedAt === null && projectCrossing("cold", threshold, points.slice(0, i))) warnedAt = p.at.getTime();
+    if (warnedAt === null && crossedAt === null && projectCrossing("cold", threshold, points.slice(0, i)))
+      warnedAt = p.at.getTime();
   }
   return { warnedAt, crossedAt };
 }
 
 const front = (seed: number, intervalMin = 5) => {
   const start = new Date(T0 + 2 * HOUR);
-  return [...generate(DEMO_SITE, OUTDOOR, coldFrontScenario(start), { from: new Date(T0), to: new Date(T0 + 12 * HOUR), intervalMs: intervalMin * MIN, sensorSeed: seed })].map((r) => ({ at: r.measuredAt, value: r.temperature }));
+  return [
+    ...generate(DEMO_SITE, OUTDOOR, coldFrontScenario(start), {
+      from: new Date(T0),
+      to: new Date(T0 + 12 * HOUR),
+      intervalMs: intervalMin * MIN,
+      sensorSeed: seed,
+    }),
+  ].map((r) => ({ at: r.measuredAt, value: r.temperature }));
 };
 
 describe("projectCrossing", () => {
   it("on a steady fall of 3 °C an hour, says 8 °C is 40 minutes away from 10 °C", () => {
-    const pts = Array.from({ length: 13 }, (_, i) => ({ at: new Date(T0 + i * 5 * MIN), value: 13 - (3 * i * 5) / 60 }));
+    const pts = Array.from({ length: 13 }, (_, i) => ({
+      at: new Date(T0 + i * 5 * MIN),
+      value: 13 - (3 * i * 5) / 60,
+    }));
     const p = projectCrossing("cold", 8, pts)!;
     expect(p.fittedNow).toBeCloseTo(10, 6);
     expect(p.minutes).toBeCloseTo(40, 6);
@@ -54,7 +65,14 @@ describe("projectCrossing", () => {
 
   it("does not warn through a whole simulated day without a front", () => {
     const quiet = { ...coldFrontScenario(new Date(T0)), coldFront: undefined };
-    const pts = [...generate(DEMO_SITE, OUTDOOR, quiet, { from: new Date(T0), to: new Date(T0 + 48 * HOUR), intervalMs: 5 * MIN, sensorSeed: 101 })].map((r) => ({ at: r.measuredAt, value: r.temperature }));
+    const pts = [
+      ...generate(DEMO_SITE, OUTDOOR, quiet, {
+        from: new Date(T0),
+        to: new Date(T0 + 48 * HOUR),
+        intervalMs: 5 * MIN,
+        sensorSeed: 101,
+      }),
+    ].map((r) => ({ at: r.measuredAt, value: r.temperature }));
     expect(replay(pts, 10).warnedAt).toBeNull();
   });
 
@@ -65,7 +83,10 @@ describe("projectCrossing", () => {
   });
 
   it("scales with the rule minute for the compressed demo front", () => {
-    const pts = Array.from({ length: 13 }, (_, i) => ({ at: new Date(T0 + i * 5 * 1000), value: 13 - (3 * i * 5) / 60 }));
+    const pts = Array.from({ length: 13 }, (_, i) => ({
+      at: new Date(T0 + i * 5 * 1000),
+      value: 13 - (3 * i * 5) / 60,
+    }));
     expect(projectCrossing("cold", 8, pts, 1000)?.minutes).toBeCloseTo(40, 6);
   });
 
@@ -114,9 +135,9 @@ describe("projectCrossing", () => {
   });
 });
 
-
 describe("projectBatch", () => {
-  const fall = (from: number, n: number) => Array.from({ length: n }, (_, i) => ({ at: new Date(from + i * 5 * MIN), value: 13 - (3 * i * 5) / 60 }));
+  const fall = (from: number, n: number) =>
+    Array.from({ length: n }, (_, i) => ({ at: new Date(from + i * 5 * MIN), value: 13 - (3 * i * 5) / 60 }));
 
   it("counts the crossing from the batch's last reading, however the readings were batched", () => {
     const pts = fall(T0, 13); // 13 °C falling 3 °C an hour: 10 °C after an hour

@@ -28,7 +28,14 @@ export const EARLY_WARNING: { windows: FitWindow[] } = {
     { windowMinutes: 30, horizonMinutes: 60, minPoints: 5, minSpanShare: 0.6, minRatePerHour: 2, minRSquared: 0.85 },
     // A clear night loses 0.5–1 °C an hour for hours on end (common practice): warn up to two hours
     // ahead, but only on a long, clean line so the evening's ordinary cooling stays quiet.
-    { windowMinutes: 180, horizonMinutes: 120, minPoints: 4, minSpanShare: 0.6, minRatePerHour: 0.4, minRSquared: 0.85 },
+    {
+      windowMinutes: 180,
+      horizonMinutes: 120,
+      minPoints: 4,
+      minSpanShare: 0.6,
+      minRatePerHour: 0.4,
+      minRSquared: 0.85,
+    },
   ],
 };
 
@@ -40,7 +47,13 @@ export const EARLY_WARNING_HISTORY_MINUTES = Math.max(...EARLY_WARNING.windows.m
  * the spot is already past it, or the fit is not trustworthy. `points` sorted by time; `minuteMs`
  * scales the window, horizon and rate for the compressed demo front.
  */
-export function projectCrossing(kind: AlertKind, threshold: number, points: Point[], minuteMs = 60_000, cfg = EARLY_WARNING): Projection | null {
+export function projectCrossing(
+  kind: AlertKind,
+  threshold: number,
+  points: Point[],
+  minuteMs = 60_000,
+  cfg = EARLY_WARNING,
+): Projection | null {
   if (kind !== "cold" && kind !== "heat") return null;
   if (points.length === 0) return null;
   for (const w of cfg.windows) {
@@ -50,7 +63,13 @@ export function projectCrossing(kind: AlertKind, threshold: number, points: Poin
   return null;
 }
 
-function fitWindow(kind: AlertKind, threshold: number, points: Point[], minuteMs: number, cfg: FitWindow): Projection | null {
+function fitWindow(
+  kind: AlertKind,
+  threshold: number,
+  points: Point[],
+  minuteMs: number,
+  cfg: FitWindow,
+): Projection | null {
   const last = points[points.length - 1].at.getTime();
   const windowMs = cfg.windowMinutes * minuteMs;
   const recent = points.filter((p) => p.at.getTime() > last - windowMs && Number.isFinite(p.value));
@@ -79,7 +98,13 @@ function fitWindow(kind: AlertKind, threshold: number, points: Point[], minuteMs
  * Null when none projects a crossing, or the latest reading is already past the threshold (that is
  * the alert's business, not a warning's). `history` sorted by time and covering the batch.
  */
-export function projectBatch(kind: AlertKind, threshold: number, history: Point[], batch: Point[], minuteMs = 60_000): Projection | null {
+export function projectBatch(
+  kind: AlertKind,
+  threshold: number,
+  history: Point[],
+  batch: Point[],
+  minuteMs = 60_000,
+): Projection | null {
   if (batch.length === 0) return null;
   const latest = batch[batch.length - 1];
   let projection: Projection | null = null;

@@ -31,7 +31,8 @@ export function mostTender(plants: { name: string; damageC: number }[]): TenderP
 }
 
 /** The figure compared with the line: the lower bound, or the leaves' low when lower. */
-export const likelyLow = (n: Pick<ForecastNight, "lowerBound" | "leafLow">) => Math.min(n.lowerBound, n.leafLow ?? Number.POSITIVE_INFINITY);
+export const likelyLow = (n: Pick<ForecastNight, "lowerBound" | "leafLow">) =>
+  Math.min(n.lowerBound, n.leafLow ?? Number.POSITIVE_INFINITY);
 
 export type NightWarning = ForecastNight & { likely: number };
 export type OpenNight = { night: string };
@@ -40,7 +41,12 @@ export type OpenNight = { night: string };
  * What to do with a spot's forecast: nights to warn of (not warned already), warned nights to clear
  * (still ahead, now clearly above the line), and warned nights to keep (updated figures, no mail).
  */
-export function planForecast(input: { now: number; nights: ForecastNight[]; tender: TenderPlant | null; open: OpenNight[] }): {
+export function planForecast(input: {
+  now: number;
+  nights: ForecastNight[];
+  tender: TenderPlant | null;
+  open: OpenNight[];
+}): {
   warn: NightWarning[];
   keep: NightWarning[];
   clear: string[];
@@ -59,7 +65,8 @@ export function planForecast(input: { now: number; nights: ForecastNight[]; tend
       else keep.push({ ...n, likely });
       continue;
     }
-    if (ahead >= FORECAST_WINDOW.fromHours * HOUR && ahead <= FORECAST_WINDOW.toHours * HOUR && likely <= damage) warn.push({ ...n, likely });
+    if (ahead >= FORECAST_WINDOW.fromHours * HOUR && ahead <= FORECAST_WINDOW.toHours * HOUR && likely <= damage)
+      warn.push({ ...n, likely });
   }
   return { warn, keep, clear };
 }
@@ -91,20 +98,29 @@ export type ForecastWarningFacts = {
  * reaches is said as a real possibility, not as the expectation.
  */
 export function forecastHeadline(
-  w: Pick<ForecastWarningFacts, "night" | "spotName" | "plantName" | "damageC" | "expectedLowC" | "lowerBoundC" | "leafLowC">,
+  w: Pick<
+    ForecastWarningFacts,
+    "night" | "spotName" | "plantName" | "damageC" | "expectedLowC" | "lowerBoundC" | "leafLowC"
+  >,
   unit: Unit,
 ): string {
   const t = (c: number) => formatTemp(c, unit);
   let what: string;
   if (w.expectedLowC <= w.damageC) what = `${t(w.expectedLowC)} expected on ${w.spotName}`;
-  else if (w.leafLowC !== null && w.leafLowC <= w.damageC) what = `${t(w.leafLowC)} expected on the leaves at ${w.spotName} under a clear, still sky (air ${t(w.expectedLowC)})`;
+  else if (w.leafLowC !== null && w.leafLowC <= w.damageC)
+    what = `${t(w.leafLowC)} expected on the leaves at ${w.spotName} under a clear, still sky (air ${t(w.expectedLowC)})`;
   else what = `${t(w.expectedLowC)} expected on ${w.spotName}, and ${t(w.lowerBoundC)} quite possible`;
   return `${nightName(w.night)}: ${what}; the ${w.plantName}'s limit is ${t(w.damageC)} — bring it in.`;
 }
 
 /** How the figure was reached, in words. */
 export function forecastDetail(w: ForecastWarningFacts, unit: Unit, timeZone: string): string {
-  const at = new Intl.DateTimeFormat("en-GB", { timeZone, weekday: "short", hour: "2-digit", minute: "2-digit" }).format(w.lowAt);
+  const at = new Intl.DateTimeFormat("en-GB", {
+    timeZone,
+    weekday: "short",
+    hour: "2-digit",
+    minute: "2-digit",
+  }).format(w.lowAt);
   const leaf =
     w.leafLowC !== null
       ? ` The night looks clear and still: leaves under the open sky run about ${formatDelta(Math.abs(w.expectedLowC - w.leafLowC), unit)} below the air, so about ${formatTemp(w.leafLowC, unit)} on the leaves.`
@@ -112,17 +128,34 @@ export function forecastDetail(w: ForecastWarningFacts, unit: Unit, timeZone: st
   return `The forecast through this spot's model: lowest about ${formatTemp(w.expectedLowC, unit)} around ${at}, with a 1-in-10 chance of ${formatTemp(w.lowerBoundC, unit)} or lower.${leaf}`;
 }
 
-export type ForecastMailContext = { siteName: string; spotName: string; spotUrl: string; alertsUrl: string; timeZone: string; unit: Unit };
+export type ForecastMailContext = {
+  siteName: string;
+  spotName: string;
+  spotUrl: string;
+  alertsUrl: string;
+  timeZone: string;
+  unit: Unit;
+};
 export type Composed = { subject: string; text: string; html: string };
 
-const escape = (s: string) => s.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;");
+const escape = (s: string) =>
+  s.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;");
 
 function render(subject: string, lines: string[], c: ForecastMailContext): Composed {
   const why = `You get this because you are a member of ${c.siteName} and asked for cold-snap alerts.`;
-  const footer = [`Open ${c.spotName}: ${c.spotUrl}`, "", FORECAST_CAUTION, "", `${why} Change which alerts you get by e-mail: ${c.alertsUrl}`];
+  const footer = [
+    `Open ${c.spotName}: ${c.spotUrl}`,
+    "",
+    FORECAST_CAUTION,
+    "",
+    `${why} Change which alerts you get by e-mail: ${c.alertsUrl}`,
+  ];
   const text = [...lines, "", ...footer].join("\n");
   const html = `<!doctype html><html><body style="font-family: Inter, Arial, sans-serif; color: #2b2722; line-height: 1.5">
-${lines.filter((l) => l !== "").map((l) => `<p>${escape(l)}</p>`).join("\n")}
+${lines
+  .filter((l) => l !== "")
+  .map((l) => `<p>${escape(l)}</p>`)
+  .join("\n")}
 <p><a href="${escape(c.spotUrl)}" style="color: #a9502b; font-weight: 600">Open ${escape(c.spotName)}</a></p>
 <p style="color: #6f675c; font-size: 13px">${escape(FORECAST_CAUTION)}</p>
 <p style="color: #6f675c; font-size: 13px">${escape(why)} <a href="${escape(c.alertsUrl)}" style="color: #6f675c">Change which alerts you get by e-mail</a>.</p>

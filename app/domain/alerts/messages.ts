@@ -65,7 +65,8 @@ export function describeCondition(c: Pick<MessageContext, "kind" | "threshold" |
   }
 }
 
-const escape = (s: string) => s.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;");
+const escape = (s: string) =>
+  s.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;");
 
 function render(subject: string, lines: string[], c: MessageContext, why: string): Composed {
   const footer = [
@@ -77,7 +78,10 @@ function render(subject: string, lines: string[], c: MessageContext, why: string
   ];
   const text = [...lines, "", ...footer].join("\n");
   const html = `<!doctype html><html><body style="font-family: Inter, Arial, sans-serif; color: #2b2722; line-height: 1.5">
-${lines.filter((l) => l !== "").map((l) => `<p>${escape(l)}</p>`).join("\n")}
+${lines
+  .filter((l) => l !== "")
+  .map((l) => `<p>${escape(l)}</p>`)
+  .join("\n")}
 <p><a href="${escape(c.spotUrl)}" style="color: #a9502b; font-weight: 600">Open ${escape(c.spotName)}</a></p>
 <p style="color: #6f675c; font-size: 13px">${escape(CAUTION)}</p>
 <p style="color: #6f675c; font-size: 13px">${escape(why)} <a href="${escape(c.alertsUrl)}" style="color: #6f675c">Change which alerts you get by e-mail</a>.</p>
@@ -85,13 +89,25 @@ ${lines.filter((l) => l !== "").map((l) => `<p>${escape(l)}</p>`).join("\n")}
   return { subject, text, html };
 }
 
-const whyYou = (c: MessageContext) => `You get this because you are a member of ${c.siteName} and asked for ${KINDS[c.kind].label.toLowerCase()} alerts.`;
+const whyYou = (c: MessageContext) =>
+  `You get this because you are a member of ${c.siteName} and asked for ${KINDS[c.kind].label.toLowerCase()} alerts.`;
 
-export function openMessage(c: MessageContext, e: { startedAt: Date; peak: number; latest: number | null; lastSeenAt?: Date | null; lastTemperature?: number | null }): Composed {
+export function openMessage(
+  c: MessageContext,
+  e: {
+    startedAt: Date;
+    peak: number;
+    latest: number | null;
+    lastSeenAt?: Date | null;
+    lastTemperature?: number | null;
+  },
+): Composed {
   const info = KINDS[c.kind];
   const where = `${c.spotName} (${c.siteName})`;
   if (c.kind === "silent") {
-    const last = e.lastSeenAt ? `The last reading came at ${clock(e.lastSeenAt, c.timeZone)}` : "No reading has come yet";
+    const last = e.lastSeenAt
+      ? `The last reading came at ${clock(e.lastSeenAt, c.timeZone)}`
+      : "No reading has come yet";
     const lastT = e.lastTemperature != null ? `, at ${formatValue("cold", e.lastTemperature, c.unit)}` : "";
     return render(
       `Silent sensor: nothing from ${c.spotName} for ${formatDuration(e.peak)}`,
@@ -131,7 +147,10 @@ export function clearMessage(c: MessageContext, e: { startedAt: Date; endedAt: D
   if (c.kind === "silent") {
     return render(
       `All clear: ${c.spotName} is sending again`,
-      [`Readings from ${c.spotName} (${c.siteName}) arrive again since ${clock(e.endedAt, c.timeZone)}, after ${lasted} of silence.`, "Look at the spot's chart for what happened while it was silent."],
+      [
+        `Readings from ${c.spotName} (${c.siteName}) arrive again since ${clock(e.endedAt, c.timeZone)}, after ${lasted} of silence.`,
+        "Look at the spot's chart for what happened while it was silent.",
+      ],
       c,
       whyYou(c),
     );
@@ -144,7 +163,9 @@ export function clearMessage(c: MessageContext, e: { startedAt: Date; endedAt: D
     [
       `${c.spotName} (${c.siteName}) has been back ${backWord} ${formatValue(c.kind, backPast, c.unit)} since ${clock(e.endedAt, c.timeZone)}.`,
       `The spell lasted ${lasted}; the ${worst} was ${formatValue(c.kind, e.peak, c.unit)}.`,
-      c.kind === "cold" ? "Check tender plants for soft or darkened leaves over the next days before moving them back." : "",
+      c.kind === "cold"
+        ? "Check tender plants for soft or darkened leaves over the next days before moving them back."
+        : "",
     ],
     c,
     whyYou(c),

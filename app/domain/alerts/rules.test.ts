@@ -7,19 +7,29 @@ const MIN = 60_000;
 const T0 = Date.UTC(2026, 11, 1, 0, 0);
 const cold: RuleSettings = { kind: "cold", threshold: 10, durationMinutes: 10, hysteresis: 1, clearMinutes: 30 };
 const empty: RuleState = { pendingSince: null, clearingSince: null, open: null };
-const series = (values: number[], stepMin = 1, from = T0): Point[] => values.map((value, i) => ({ at: new Date(from + i * stepMin * MIN), value }));
+const series = (values: number[], stepMin = 1, from = T0): Point[] =>
+  values.map((value, i) => ({ at: new Date(from + i * stepMin * MIN), value }));
 
 describe("evaluate", () => {
   it("opens only after the condition held for the duration, starting when it began", () => {
     const pts = series([12, 11, 9.8, 9.6, 9.5, 9.4, 9.3, 9.2, 9.1, 9, 8.9, 8.8, 8.7]);
     const { state, transitions } = evaluate(cold, empty, pts);
     expect(transitions).toHaveLength(1);
-    expect(transitions[0]).toMatchObject({ type: "open", startedAt: new Date(T0 + 2 * MIN), at: new Date(T0 + 12 * MIN), peak: 8.7 });
+    expect(transitions[0]).toMatchObject({
+      type: "open",
+      startedAt: new Date(T0 + 2 * MIN),
+      at: new Date(T0 + 12 * MIN),
+      peak: 8.7,
+    });
     expect(state.open?.peak).toBe(8.7);
   });
 
   it("does not open on a dip shorter than the duration", () => {
-    const { transitions, state } = evaluate(cold, empty, series([12, 9.5, 9.5, 9.5, 12, 12, 12, 12, 12, 12, 12, 12, 12]));
+    const { transitions, state } = evaluate(
+      cold,
+      empty,
+      series([12, 9.5, 9.5, 9.5, 12, 12, 12, 12, 12, 12, 12, 12, 12]),
+    );
     expect(transitions).toEqual([]);
     expect(state.pendingSince).toBeNull();
   });
@@ -42,13 +52,17 @@ describe("evaluate", () => {
 
   it("property: however readings are split into batches, the transitions are the same", () => {
     fc.assert(
-      fc.property(fc.array(fc.double({ min: 5, max: 15, noNaN: true }), { minLength: 1, maxLength: 200 }), fc.integer({ min: 1, max: 50 }), (values, cut) => {
-        const pts = series(values);
-        const whole = evaluate(cold, empty, pts).transitions;
-        const first = evaluate(cold, empty, pts.slice(0, cut));
-        const second = evaluate(cold, first.state, pts.slice(cut));
-        expect([...first.transitions, ...second.transitions]).toEqual(whole);
-      }),
+      fc.property(
+        fc.array(fc.double({ min: 5, max: 15, noNaN: true }), { minLength: 1, maxLength: 200 }),
+        fc.integer({ min: 1, max: 50 }),
+        (values, cut) => {
+          const pts = series(values);
+          const whole = evaluate(cold, empty, pts).transitions;
+          const first = evaluate(cold, empty, pts.slice(0, cut));
+          const second = evaluate(cold, first.state, pts.slice(cut));
+          expect([...first.transitions, ...second.transitions]).toEqual(whole);
+        },
+      ),
     );
   });
 
@@ -58,7 +72,9 @@ describe("evaluate", () => {
         const { transitions } = evaluate(cold, empty, series(values));
         transitions.forEach((t, i) => expect(t.type).toBe(i % 2 === 0 ? "open" : "clear"));
         for (let i = 1; i < transitions.length; i += 2) {
-          expect(transitions[i].at.getTime() - transitions[i - 1].at.getTime()).toBeGreaterThanOrEqual(cold.clearMinutes * MIN);
+          expect(transitions[i].at.getTime() - transitions[i - 1].at.getTime()).toBeGreaterThanOrEqual(
+            cold.clearMinutes * MIN,
+          );
         }
       }),
     );
@@ -131,7 +147,14 @@ describe("evaluate", () => {
 
   it("a simulated cold front opens one event with the front's minimum and clears once after it", () => {
     const start = new Date(T0 + 2 * 3_600_000);
-    const readings = [...generate(DEMO_SITE, { kind: "outdoor", facing: "none", hasLight: true }, coldFrontScenario(start), { from: new Date(T0), to: new Date(T0 + 14 * 3_600_000), intervalMs: 5 * MIN, sensorSeed: 101 })];
+    const readings = [
+      ...generate(DEMO_SITE, { kind: "outdoor", facing: "none", hasLight: true }, coldFrontScenario(start), {
+        from: new Date(T0),
+        to: new Date(T0 + 14 * 3_600_000),
+        intervalMs: 5 * MIN,
+        sensorSeed: 101,
+      }),
+    ];
     const pts = readings.map((r) => ({ at: r.measuredAt, value: r.temperature }));
     const { transitions } = evaluate(cold, empty, pts);
     expect(transitions.map((t) => t.type)).toEqual(["open", "clear"]);

@@ -93,10 +93,14 @@ export type RuleState = {
   cursor?: Date | null;
 };
 export type Point = { at: Date; value: number };
-export type Transition = { type: "open"; startedAt: Date; at: Date; peak: number } | { type: "clear"; at: Date; peak: number };
+export type Transition =
+  { type: "open"; startedAt: Date; at: Date; peak: number } | { type: "clear"; at: Date; peak: number };
 
 /** The reading's value that a rule of this kind watches, or null when the reading lacks it. */
-export function valueFor(kind: AlertKind, r: { t: number | null; h: number | null; battery: number | null }): number | null {
+export function valueFor(
+  kind: AlertKind,
+  r: { t: number | null; h: number | null; battery: number | null },
+): number | null {
   switch (kind) {
     case "cold":
     case "heat":
@@ -123,7 +127,8 @@ export const isBack = (kind: AlertKind, threshold: number, hysteresis: number, v
   KINDS[kind].direction === "below" ? v >= threshold + hysteresis : v <= threshold - hysteresis;
 
 /** The worse of two values for this kind (lowest for cold, highest for heat). */
-export const worse = (kind: AlertKind, a: number, b: number) => (KINDS[kind].direction === "below" ? Math.min(a, b) : Math.max(a, b));
+export const worse = (kind: AlertKind, a: number, b: number) =>
+  KINDS[kind].direction === "below" ? Math.min(a, b) : Math.max(a, b);
 
 /**
  * Feeds points through the rule in time order. `minuteMs` is the length of a rule minute; only the
@@ -135,7 +140,12 @@ export const worse = (kind: AlertKind, a: number, b: number) => (KINDS[kind].dir
  * count towards an open event's peak when they fall inside it. Points at the cursor's instant
  * (another sensor's reading of the same minute) are evaluated.
  */
-export function evaluate(rule: RuleSettings, state: RuleState, points: Point[], minuteMs = 60_000): { state: RuleState; transitions: Transition[] } {
+export function evaluate(
+  rule: RuleSettings,
+  state: RuleState,
+  points: Point[],
+  minuteMs = 60_000,
+): { state: RuleState; transitions: Transition[] } {
   let { pendingSince, clearingSince, open } = state;
   let cursor = state.cursor ?? null;
   open = open ? { ...open } : null;

@@ -48,8 +48,9 @@ describe("foot-candles", () => {
     expect(LUX_PER_FOOT_CANDLE).toBeCloseTo(10.764, 3);
     expect(footCandlesToLux(1000)).toBeCloseTo(10_763.9, 1);
     fc.assert(
-      fc.property(fc.double({ min: 0, max: 1e6, noNaN: true }), (lux) =>
-        Math.abs(footCandlesToLux(luxToFootCandles(lux)) - lux) <= 1e-9 * Math.max(1, lux),
+      fc.property(
+        fc.double({ min: 0, max: 1e6, noNaN: true }),
+        (lux) => Math.abs(footCandlesToLux(luxToFootCandles(lux)) - lux) <= 1e-9 * Math.max(1, lux),
       ),
     );
   });

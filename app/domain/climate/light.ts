@@ -51,7 +51,9 @@ export const LIGHT_SOURCE_LABELS: Readonly<Record<LightSource, string>> = {
 
 /** The factor for a light source; anything unknown counts as sunlight, the default. */
 export function luxPerPpfdFor(source: string | null | undefined): number {
-  return (LIGHT_SOURCES as readonly string[]).includes(source ?? "") ? LIGHT_SOURCE_LUX_PER_PPFD[source as LightSource] : SUNLIGHT_LUX_PER_PPFD;
+  return (LIGHT_SOURCES as readonly string[]).includes(source ?? "")
+    ? LIGHT_SOURCE_LUX_PER_PPFD[source as LightSource]
+    : SUNLIGHT_LUX_PER_PPFD;
 }
 
 /** 1 foot-candle = 1 lm/ft² = 1/0.3048² lux (international foot, exact). */

@@ -1,14 +1,7 @@
 import { describe, it, expect } from "vitest";
 import fc from "fast-check";
 import psychrolib from "psychrolib";
-import {
-  MAGNUS_WATER,
-  cToF,
-  dewPoint,
-  dewPointMargin,
-  fToC,
-  saturationVapourPressure,
-} from "~/domain/climate/psychro";
+import { MAGNUS_WATER, cToF, dewPoint, dewPointMargin, fToC, saturationVapourPressure } from "~/domain/climate/psychro";
 
 // Reference library: psychrolib 1.1.1, the ASHRAE Handbook — Fundamentals (2017) ch. 1 equations
 // (Hyland & Wexler 1983). It works in Pa and takes RH as a fraction.
@@ -139,8 +132,6 @@ describe("cToF / fToC", () => {
     expect(fToC(-40)).toBe(-40);
     // The orchid night categories quoted in °F by grower societies: 55 °F ≈ 13 °C.
     expect(fToC(55)).toBeCloseTo(12.78, 2);
-    fc.assert(
-      fc.property(fc.double({ min: -100, max: 100, noNaN: true }), (t) => Math.abs(fToC(cToF(t)) - t) < 1e-9),
-    );
+    fc.assert(fc.property(fc.double({ min: -100, max: 100, noNaN: true }), (t) => Math.abs(fToC(cToF(t)) - t) < 1e-9));
   });
 });

@@ -62,7 +62,6 @@ export function noonElevationByMonth(lat: number, year: number = DEFAULT_YEAR): 
   return sampleDates(year).map((date, m) => ({ month: m + 1, date, elevation: noonElevation(lat, date) }));
 }
 
-
 /** Azimuth of the outward normal of a window, degrees clockwise from north. */
 export const FACING_AZIMUTH: Readonly<Record<WindowFacing, number>> = {
   N: 0,
@@ -153,8 +152,18 @@ function directSunOnThe21st(lat: number, normal: number, year: number, monthInde
 }
 
 const MONTH_NAMES = [
-  "January", "February", "March", "April", "May", "June",
-  "July", "August", "September", "October", "November", "December",
+  "January",
+  "February",
+  "March",
+  "April",
+  "May",
+  "June",
+  "July",
+  "August",
+  "September",
+  "October",
+  "November",
+  "December",
 ];
 
 function formatLatitude(lat: number): string {

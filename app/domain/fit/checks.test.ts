@@ -50,10 +50,26 @@ describe("cold nights: comfort line, damage line, snap or season", () => {
 
   it("names a brief dip past comfort but above damage: the night, its low and its hours — care, not a fail", () => {
     const r = coldNights(phal, withPatches(coldSnaps(1, 1, 13.9)), T);
-    expect(r).toMatchObject({ level: "care", months: ["01"], facts: [{ kind: "cold-snap", nights: 1, comfortC: 16, damageC: 10, worst: [{ date: "2025-01-01", valueC: 13.9, hours: 1 }] }] });
-    expect(describeReason(r)).toBe("A brief cold snap: 1 night under 16 °C (1 Jan: 13.9 °C for 1 hour), above the 10 °C damage line — cover it or bring it in on such nights.");
+    expect(r).toMatchObject({
+      level: "care",
+      months: ["01"],
+      facts: [
+        {
+          kind: "cold-snap",
+          nights: 1,
+          comfortC: 16,
+          damageC: 10,
+          worst: [{ date: "2025-01-01", valueC: 13.9, hours: 1 }],
+        },
+      ],
+    });
+    expect(describeReason(r)).toBe(
+      "A brief cold snap: 1 night under 16 °C (1 Jan: 13.9 °C for 1 hour), above the 10 °C damage line — cover it or bring it in on such nights.",
+    );
     // The same facts in °F for a grower who chose it.
-    expect(describeReason(r, F)).toBe("A brief cold snap: 1 night under 60.8 °F (Jan 1: 57 °F for 1 hour), above the 50 °F damage line — cover it or bring it in on such nights.");
+    expect(describeReason(r, F)).toBe(
+      "A brief cold snap: 1 night under 60.8 °F (Jan 1: 57 °F for 1 hour), above the 50 °F damage line — cover it or bring it in on such nights.",
+    );
   });
 
   it("is poor once the damage line is crossed, even for one night", () => {
@@ -65,8 +81,13 @@ describe("cold nights: comfort line, damage line, snap or season", () => {
   it(`tells a season (${T.seasonNights} nights within ${T.seasonWindowDays} days) from a snap`, () => {
     expect(coldNights(phal, withPatches(coldSnaps(1, T.seasonNights - 1, 14)), T).facts[0].kind).toBe("cold-snap");
     const season = coldNights(phal, withPatches(coldSnaps(1, T.seasonNights, 14)), T);
-    expect(season).toMatchObject({ level: "care", facts: [{ kind: "cold-season", nights: T.seasonNights, typicalLowC: 14 }] });
-    expect(describeReason(season)).toMatch(/^A cold season, not a snap: 10 nights under 16 °C in January, typically 14 °C/);
+    expect(season).toMatchObject({
+      level: "care",
+      facts: [{ kind: "cold-season", nights: T.seasonNights, typicalLowC: 14 }],
+    });
+    expect(describeReason(season)).toMatch(
+      /^A cold season, not a snap: 10 nights under 16 °C in January, typically 14 °C/,
+    );
   });
 
   it("is poor for a season whose typical night sits nearer the damage line than comfort", () => {
@@ -75,7 +96,10 @@ describe("cold nights: comfort line, damage line, snap or season", () => {
   });
 
   it("takes a Cymbidium's 4.9 °C night as a snap (AOS: nights near 2–4 °C without frost)", () => {
-    expect(coldNights(cymbidium, withPatches(coldSnaps(1, 1, 4.9)), T)).toMatchObject({ level: "care", facts: [{ kind: "cold-snap" }] });
+    expect(coldNights(cymbidium, withPatches(coldSnaps(1, 1, 4.9)), T)).toMatchObject({
+      level: "care",
+      facts: [{ kind: "cold-snap" }],
+    });
   });
 
   it("defaults the damage line to 4 °C under comfort for a profile without one", () => {
@@ -94,7 +118,10 @@ describe("warm nights for cool growers", () => {
 
   it("is care for a season just over the maximum night, good for a few warm nights", () => {
     expect(warmNights(masdevallia, spotYear({ month: () => ({ night: 17, day: 22 }) }), T).level).toBe("care");
-    expect(warmNights(masdevallia, spotYear({ month: () => ({ night: 12, day: 20 }), patches: coldSnaps(7, 3, 19) }), T).level).toBe("good");
+    expect(
+      warmNights(masdevallia, spotYear({ month: () => ({ night: 12, day: 20 }), patches: coldSnaps(7, 3, 19) }), T)
+        .level,
+    ).toBe("good");
   });
 
   it("doesn't apply to groups without a maximum night", () => {
@@ -105,14 +132,22 @@ describe("warm nights for cool growers", () => {
 describe("hot days", () => {
   it("is poor past the heat damage line (Masdevallia above 27 °C)", () => {
     const r = hotDays(masdevallia, withPatches(hotAfternoons(7, 1, 28)), T);
-    expect(r).toMatchObject({ level: "poor", facts: [{ kind: "heat-damage", days: 1, damageC: 27, worst: [{ date: "2025-07-01", valueC: 28, hours: 1 }] }] });
+    expect(r).toMatchObject({
+      level: "poor",
+      facts: [{ kind: "heat-damage", days: 1, damageC: 27, worst: [{ date: "2025-07-01", valueC: 28, hours: 1 }] }],
+    });
   });
 
   it("is care for a hot spell under the damage line, and says Phalaenopsis won't spike in a hot season", () => {
-    expect(hotDays(phal, withPatches(hotAfternoons(7, 3, 31)), T)).toMatchObject({ level: "care", facts: [{ kind: "heat-snap", costsSpikes: true }] });
+    expect(hotDays(phal, withPatches(hotAfternoons(7, 3, 31)), T)).toMatchObject({
+      level: "care",
+      facts: [{ kind: "heat-snap", costsSpikes: true }],
+    });
     const season = hotDays(phal, withPatches(hotAfternoons(7, 21, 30)), T);
     expect(season).toMatchObject({ level: "care", facts: [{ kind: "heat-season", days: 21 }] });
-    expect(describeReason(season, undefined, "Phalaenopsis")).toContain("Phalaenopsis won't spike while days stay this warm");
+    expect(describeReason(season, undefined, "Phalaenopsis")).toContain(
+      "Phalaenopsis won't spike while days stay this warm",
+    );
     expect(hotDays(phal, withPatches(hotAfternoons(7, 21, 33)), T).level).toBe("poor");
   });
 });
@@ -122,18 +157,29 @@ describe("humidity by its dry hours", () => {
     const season = spotYear({ month: (m) => ({ ...steadyRoom(m), ...(m === 1 ? { rhDay: 30, rhNight: 70 } : {}) }) });
     expect(season.year[0].humidity.mean).toBeGreaterThanOrEqual(50);
     const r = humidityBand(phal, season, T);
-    expect(r).toMatchObject({ level: "care", months: ["01"], facts: [{ kind: "humidity-dry", minPct: 50, typicalDailyMinPct: 30, months: [1] }] });
+    expect(r).toMatchObject({
+      level: "care",
+      months: ["01"],
+      facts: [{ kind: "humidity-dry", minPct: 50, typicalDailyMinPct: 30, months: [1] }],
+    });
   });
 
   it("is good when the daily low stays in the band", () => {
-    expect(humidityBand(phal, room, T)).toMatchObject({ level: "good", facts: [{ kind: "humidity-ok", lowestDailyMinPct: 60 }] });
+    expect(humidityBand(phal, room, T)).toMatchObject({
+      level: "good",
+      facts: [{ kind: "humidity-ok", lowestDailyMinPct: 60 }],
+    });
   });
 });
 
 describe("light by month", () => {
   const lux = (f: (m: number) => number) => spotYear({ month: (m) => ({ ...steadyRoom(m), lux: f(m) }) });
   it("sees 19 mol in June and 3 in December, which the yearly mean hides", () => {
-    const r = lightBand(phal, lux((m) => (m >= 5 && m <= 7 ? 17500 : m === 12 ? 5500 : 8000)), T);
+    const r = lightBand(
+      phal,
+      lux((m) => (m >= 5 && m <= 7 ? 17500 : m === 12 ? 5500 : 8000)),
+      T,
+    );
     const fact = r.facts[0] as { scorch: number[]; months: { month: number; dli: number }[] };
     expect(fact.scorch).toEqual([5, 6, 7]);
     expect(fact.months.find((m) => m.month === 6)!.dli).toBeGreaterThan(18);
@@ -162,14 +208,28 @@ describe("light by month", () => {
 
 describe("flowering cues in their season", () => {
   it("Phalaenopsis spikes in a constant 20 or 23 °C room: day temperature alone (Blanchard & Runkle 2006)", () => {
-    for (const t of [20, 23]) expect(floweringNeeds(phal, spotYear({ month: () => ({ night: t, day: t }) }), T).level).toBe("good");
-    expect(floweringNeeds(phal, spotYear({ month: () => ({ night: 22, day: 29 }) }), T).facts[0].kind).toBe("cue-missed");
+    for (const t of [20, 23])
+      expect(floweringNeeds(phal, spotYear({ month: () => ({ night: t, day: t }) }), T).level).toBe("good");
+    expect(floweringNeeds(phal, spotYear({ month: () => ({ night: 22, day: 29 }) }), T).facts[0].kind).toBe(
+      "cue-missed",
+    );
   });
 
   it("Cymbidium's cool nights in December–February come too late; in September–October they count", () => {
-    const late = floweringNeeds(cymbidium, spotYear({ month: (m) => ({ night: m === 12 || m <= 2 ? 10 : 16, day: 22 }) }), T);
-    expect(late).toMatchObject({ level: "care", facts: [{ kind: "cue-missed", outOfSeason: [12, 1, 2], cueMonths: [8, 9, 10, 11] }] });
-    const autumn = floweringNeeds(cymbidium, spotYear({ month: (m) => ({ night: m === 9 || m === 10 ? 11 : 16, day: 22 }) }), T);
+    const late = floweringNeeds(
+      cymbidium,
+      spotYear({ month: (m) => ({ night: m === 12 || m <= 2 ? 10 : 16, day: 22 }) }),
+      T,
+    );
+    expect(late).toMatchObject({
+      level: "care",
+      facts: [{ kind: "cue-missed", outOfSeason: [12, 1, 2], cueMonths: [8, 9, 10, 11] }],
+    });
+    const autumn = floweringNeeds(
+      cymbidium,
+      spotYear({ month: (m) => ({ night: m === 9 || m === 10 ? 11 : 16, day: 22 }) }),
+      T,
+    );
     expect(autumn).toMatchObject({ level: "good", facts: [{ kind: "cue-met" }] });
   });
 
@@ -194,8 +254,14 @@ describe("flowering cues in their season", () => {
 describe("condensation reconciled with the group's humidity range", () => {
   const wet = spotYear({ month: (m) => ({ ...steadyRoom(m), rh: 89, dpMargin: 1 }) });
   it("is expected for a group whose range reaches ~88 % (Masdevallia), care for one whose doesn't", () => {
-    expect(condensation(masdevallia, wet, T)).toMatchObject({ level: "good", facts: [{ kind: "condensation-wet", expected: true }] });
-    expect(condensation(phal, wet, T)).toMatchObject({ level: "care", facts: [{ kind: "condensation-wet", expected: false }] });
+    expect(condensation(masdevallia, wet, T)).toMatchObject({
+      level: "good",
+      facts: [{ kind: "condensation-wet", expected: true }],
+    });
+    expect(condensation(phal, wet, T)).toMatchObject({
+      level: "care",
+      facts: [{ kind: "condensation-wet", expected: false }],
+    });
     // Never "inside its range" and "wet 100 % of hours" as a warning at once.
     expect(humidityBand(masdevallia, wet, T).level).toBe("good");
   });
@@ -215,7 +281,15 @@ describe("shared rule results (judgeAll)", () => {
   // its sharing key leaves out, a plant differing only in that field would get another plant's result.
   const seasons = [
     room,
-    spotYear({ month: (m) => ({ night: 6 + Math.abs(m - 7) * -0.5 + 8, day: 20 + (m > 4 && m < 10 ? 12 : 0), rh: 40 + m * 3, lux: 9000 + m * 800, dpMargin: m === 1 ? 1 : 5 }) }),
+    spotYear({
+      month: (m) => ({
+        night: 6 + Math.abs(m - 7) * -0.5 + 8,
+        day: 20 + (m > 4 && m < 10 ? 12 : 0),
+        rh: 40 + m * 3,
+        lux: 9000 + m * 800,
+        dpMargin: m === 1 ? 1 : 5,
+      }),
+    }),
     spotYear({ observed: [1, 2, 3, 10, 11, 12], patches: [...coldSnaps(1, 12, 4), ...hotAfternoons(2, 3, 35)] }),
   ];
   const variants = (p: PlantProfile): PlantProfile[] => [
@@ -224,9 +298,26 @@ describe("shared rule results (judgeAll)", () => {
     { ...p, key: `${p.key}-c`, humidityMin: p.humidityMin + 15, humidityMax: p.humidityMax - 5 },
     { ...p, key: `${p.key}-d`, dliMin: p.dliMin * 3, dliMax: p.dliMax * 3 },
     { ...p, key: `${p.key}-e`, name: `Other${p.name}`, coldTolerance: `${p.coldTolerance}!` },
-    { ...p, key: `${p.key}-f`, flowering: { ...p.flowering, difC: (p.flowering.difC ?? 4) + 3, note: `${p.flowering.note}.` } },
-    { ...p, key: `${p.key}-g`, flowering: { ...p.flowering, coolPeriod: { weeks: 3, maxNightC: 12, maxDayC: 22, months: "in autumn", cueMonths: [9, 10] } } },
-    { ...p, key: `${p.key}-h`, damageNightC: (p.damageNightC ?? 5) - 2, damageDayC: (p.damageDayC ?? 30) + 2, maxNightC: 15 },
+    {
+      ...p,
+      key: `${p.key}-f`,
+      flowering: { ...p.flowering, difC: (p.flowering.difC ?? 4) + 3, note: `${p.flowering.note}.` },
+    },
+    {
+      ...p,
+      key: `${p.key}-g`,
+      flowering: {
+        ...p.flowering,
+        coolPeriod: { weeks: 3, maxNightC: 12, maxDayC: 22, months: "in autumn", cueMonths: [9, 10] },
+      },
+    },
+    {
+      ...p,
+      key: `${p.key}-h`,
+      damageNightC: (p.damageNightC ?? 5) - 2,
+      damageDayC: (p.damageDayC ?? 30) + 2,
+      maxNightC: 15,
+    },
   ];
   it("gives every plant exactly what the rules give it on their own", () => {
     for (const season of seasons) {

@@ -14,7 +14,15 @@ import { coldNights, hotDays, warmNights } from "~/domain/fit/temperature";
 import type { PlantProfile } from "~/domain/plants/library";
 import type { SeasonProfile } from "~/domain/season/types";
 
-export const FIT_CHECKS: FitCheck[] = [coldNights, warmNights, hotDays, humidityBand, lightBand, floweringNeeds, condensation];
+export const FIT_CHECKS: FitCheck[] = [
+  coldNights,
+  warmNights,
+  hotDays,
+  humidityBand,
+  lightBand,
+  floweringNeeds,
+  condensation,
+];
 
 /**
  * What each rule reads of a plant profile. Plants alike in these get the same result in the same

@@ -22,7 +22,8 @@ export function paneMonths(season: SeasonProfile, glass: GlassContext) {
     if (inside === null || rh === null || outside === undefined || outside >= inside) continue;
     const paneC = paneInsideC(inside, outside, glass.uValue);
     const dewPointC = dewPoint(inside, rh);
-    if (paneC <= dewPointC) out.push({ month: m.month, paneC: Math.round(paneC * 10) / 10, dewPointC: Math.round(dewPointC * 10) / 10 });
+    if (paneC <= dewPointC)
+      out.push({ month: m.month, paneC: Math.round(paneC * 10) / 10, dewPointC: Math.round(dewPointC * 10) / 10 });
   }
   return out;
 }

@@ -15,7 +15,12 @@ export const condensation: FitCheck = (profile, season, t) => {
   const total = round1(months.reduce((n, m) => n + m.condensationHours, 0));
   const share = (m: MonthOfYearProfile) => m.condensationHours / m.coverage.hoursObserved;
   const wet = months.filter((m) => share(m) >= t.condensationCareShare);
-  if (wet.length === 0) return { rule: "condensation", level: "good", facts: [{ kind: "condensation-ok", hours: total, marginC: CONDENSATION_MARGIN_C }] };
+  if (wet.length === 0)
+    return {
+      rule: "condensation",
+      level: "good",
+      facts: [{ kind: "condensation-ok", hours: total, marginC: CONDENSATION_MARGIN_C }],
+    };
   const worst = wet.reduce((a, b) => (share(b) > share(a) ? b : a));
   const expected = profile.humidityMax >= 88;
   return {

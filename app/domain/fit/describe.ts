@@ -25,14 +25,18 @@ export function delta(dc: number, f: Format): string {
   return `${formatNumber(deltaToUnit(dc, f.unit), f.locale)} °${f.unit}`;
 }
 /** Degree-hours in the grower's unit (K·h or °F·h). */
-const degreeHours = (dh: number, f: Format) => `${numberFormat(f.locale, 0).format(Math.round(deltaToUnit(dh, f.unit)))} degree-hours`;
+const degreeHours = (dh: number, f: Format) =>
+  `${numberFormat(f.locale, 0).format(Math.round(deltaToUnit(dh, f.unit)))} degree-hours`;
 
-const count = (n: number, one: string, many = `${one}s`, f?: Format) => `${numberFormat(f?.locale, 0).format(n)} ${n === 1 ? one : many}`;
+const count = (n: number, one: string, many = `${one}s`, f?: Format) =>
+  `${numberFormat(f?.locale, 0).format(n)} ${n === 1 ? one : many}`;
 
 /** "17 Jan" from a local date key "2026-01-17", in the locale. */
 export function day(key: string, f: Format): string {
   const [y, m, d] = key.split("-").map(Number);
-  return new Intl.DateTimeFormat(f.locale ?? "en-GB", { day: "numeric", month: "short", timeZone: "UTC" }).format(new Date(Date.UTC(y, m - 1, d)));
+  return new Intl.DateTimeFormat(f.locale ?? "en-GB", { day: "numeric", month: "short", timeZone: "UTC" }).format(
+    new Date(Date.UTC(y, m - 1, d)),
+  );
 }
 
 function monthRuns(months: number[]): number[][] {
@@ -44,7 +48,8 @@ function monthRuns(months: number[]): number[][] {
   }
   return runs;
 }
-const joinAnd = (parts: string[]) => (parts.length <= 1 ? parts.join("") : `${parts.slice(0, -1).join(", ")} and ${parts.at(-1)}`);
+const joinAnd = (parts: string[]) =>
+  parts.length <= 1 ? parts.join("") : `${parts.slice(0, -1).join(", ")} and ${parts.at(-1)}`;
 
 /** "in July", "in July and August", "from November to February", "in January, March and June". */
 export function describeMonths(months: number[]): string {
@@ -59,7 +64,6 @@ export function describeMonths(months: number[]): string {
 
 const episodes = (list: { date: string; valueC: number; hours: number }[], f: Format) =>
   joinAnd(list.map((e) => `${day(e.date, f)}: ${temp(e.valueC, f)} for ${count(e.hours, "hour", "hours", f)}`));
-
 
 const pct = (x: number) => `${Math.round(x)} %`;
 const DLI = "mol m⁻² d⁻¹";
@@ -113,12 +117,26 @@ export function describeFact(fact: Fact, f: Format = DEFAULT_FORMAT, name = "thi
     case "humidity-damp":
       return `The air averaged up to ${pct(fact.meanPct)} ${describeMonths(fact.months)}, above ${name}'s ${pct(fact.maxPct)}; more air movement lets leaves dry between waterings.`;
     case "light-months": {
-      const parts = [`Daily light by month against ${formatNumber(fact.minDli, f.locale)}–${formatNumber(fact.maxDli, f.locale)} ${DLI}:`];
-      const at = (ms: number[]) => ms.map((m) => `${MONTH_NAMES[m - 1].slice(0, 3)} ${formatNumber(fact.months.find((x) => x.month === m)!.dli, f.locale)}`).join(", ");
-      if (fact.dim.length) parts.push(`too dim ${describeMonths(fact.dim)} (${at(fact.dim)}) — a brighter place or a grow light then;`);
-      if (fact.scorch.length) parts.push(`far too bright ${describeMonths(fact.scorch)} (${at(fact.scorch)}) — shade from direct sun or it scorches;`);
-      else if (fact.bright.length) parts.push(`too bright ${describeMonths(fact.bright)} (${at(fact.bright)}) — some shade then;`);
-      if (!fact.dim.length && !fact.bright.length) parts.push(`inside it in every measured month (${at(fact.months.map((x) => x.month))});`);
+      const parts = [
+        `Daily light by month against ${formatNumber(fact.minDli, f.locale)}–${formatNumber(fact.maxDli, f.locale)} ${DLI}:`,
+      ];
+      const at = (ms: number[]) =>
+        ms
+          .map(
+            (m) =>
+              `${MONTH_NAMES[m - 1].slice(0, 3)} ${formatNumber(fact.months.find((x) => x.month === m)!.dli, f.locale)}`,
+          )
+          .join(", ");
+      if (fact.dim.length)
+        parts.push(`too dim ${describeMonths(fact.dim)} (${at(fact.dim)}) — a brighter place or a grow light then;`);
+      if (fact.scorch.length)
+        parts.push(
+          `far too bright ${describeMonths(fact.scorch)} (${at(fact.scorch)}) — shade from direct sun or it scorches;`,
+        );
+      else if (fact.bright.length)
+        parts.push(`too bright ${describeMonths(fact.bright)} (${at(fact.bright)}) — some shade then;`);
+      if (!fact.dim.length && !fact.bright.length)
+        parts.push(`inside it in every measured month (${at(fact.months.map((x) => x.month))});`);
       if (fact.unmeasured.length) parts.push(`not measured ${describeMonths(fact.unmeasured)}.`);
       return parts.join(" ").replace(/;$/, ".");
     }
@@ -141,14 +159,32 @@ export function describeFact(fact: Fact, f: Format = DEFAULT_FORMAT, name = "thi
     case "cue-none":
       return "No temperature cue needed to flower.";
     case "cue-met": {
-      const cond = [fact.maxNightC !== undefined ? `nights at ${temp(fact.maxNightC, f)} or below` : "", fact.maxDayC !== undefined ? `days at ${temp(fact.maxDayC, f)} or below` : ""].filter(Boolean).join(" and ");
-      return `Flowering cue met: ${count(fact.days, "day", "days", f)} with ${cond} ${describeMonths(fact.months)}, in season for ${name} (${fact.weeks} weeks needed).` + (fact.dryRest ? " Keep it nearly dry through that rest: watered, it grows instead of flowering." : "");
+      const cond = [
+        fact.maxNightC !== undefined ? `nights at ${temp(fact.maxNightC, f)} or below` : "",
+        fact.maxDayC !== undefined ? `days at ${temp(fact.maxDayC, f)} or below` : "",
+      ]
+        .filter(Boolean)
+        .join(" and ");
+      return (
+        `Flowering cue met: ${count(fact.days, "day", "days", f)} with ${cond} ${describeMonths(fact.months)}, in season for ${name} (${fact.weeks} weeks needed).` +
+        (fact.dryRest ? " Keep it nearly dry through that rest: watered, it grows instead of flowering." : "")
+      );
     }
     case "cue-missed": {
-      const cond = [fact.maxNightC !== undefined ? `nights at ${temp(fact.maxNightC, f)} or below` : "", fact.maxDayC !== undefined ? `days at ${temp(fact.maxDayC, f)} or below` : ""].filter(Boolean).join(" and ");
+      const cond = [
+        fact.maxNightC !== undefined ? `nights at ${temp(fact.maxNightC, f)} or below` : "",
+        fact.maxDayC !== undefined ? `days at ${temp(fact.maxDayC, f)} or below` : "",
+      ]
+        .filter(Boolean)
+        .join(" and ");
       const when = fact.cueMonths.length ? ` ${describeMonths(fact.cueMonths)}` : "";
-      const late = fact.outOfSeason.length ? ` The cool spell here comes ${describeMonths(fact.outOfSeason)}, out of season for spiking.` : "";
-      return `Flowering cue missed: ${name} wants about ${fact.weeks} weeks of ${cond}${when}; the best stretch here had ${count(fact.bestDays, "day", "days", f)}.${late} It may grow but not flower.` + (fact.dryRest ? " The rest must also be kept nearly dry." : "");
+      const late = fact.outOfSeason.length
+        ? ` The cool spell here comes ${describeMonths(fact.outOfSeason)}, out of season for spiking.`
+        : "";
+      return (
+        `Flowering cue missed: ${name} wants about ${fact.weeks} weeks of ${cond}${when}; the best stretch here had ${count(fact.bestDays, "day", "days", f)}.${late} It may grow but not flower.` +
+        (fact.dryRest ? " The rest must also be kept nearly dry." : "")
+      );
     }
     case "dif-met":
       return `Day–night difference (the day's high minus its low) of ${delta(fact.needC, f)} or more ${describeMonths(fact.months.map((x) => x.month))} (${fact.months.map((x) => `${MONTH_NAMES[x.month - 1].slice(0, 3)} ${delta(x.difC, f)}`).join(", ")}).`;
@@ -197,13 +233,19 @@ export function describeFact(fact: Fact, f: Format = DEFAULT_FORMAT, name = "thi
   }
 }
 
-const rangeWords = (r: [number, number], f: Format) => `${formatNumber(toUnit(r[0], f.unit), f.locale)} to ${temp(r[1], f)}`;
+const rangeWords = (r: [number, number], f: Format) =>
+  `${formatNumber(toUnit(r[0], f.unit), f.locale)} to ${temp(r[1], f)}`;
 const pastYears = (years: number) => `from ${years} past ${years === 1 ? "year" : "years"} of weather`;
 
 /** "17 May" from a local date key, with the year when it is not this one's. */
 function firmDate(key: string, f: Format, now: Date): string {
   const [y, m, d] = key.split("-").map(Number);
-  const opts: Intl.DateTimeFormatOptions = { day: "numeric", month: "long", timeZone: "UTC", ...(y !== now.getUTCFullYear() ? { year: "numeric" } : {}) };
+  const opts: Intl.DateTimeFormatOptions = {
+    day: "numeric",
+    month: "long",
+    timeZone: "UTC",
+    ...(y !== now.getUTCFullYear() ? { year: "numeric" } : {}),
+  };
   return new Intl.DateTimeFormat(f.locale ?? "en-GB", opts).format(new Date(Date.UTC(y, m - 1, d)));
 }
 
@@ -213,15 +255,28 @@ function firmDate(key: string, f: Format, now: Date): string {
  * the verdict as it is.
  */
 export function describeVerdict(
-  fit: { verdict: string; confidence: "measured" | "projected" | "mixed"; basis: { measuredMonths: number[]; projectedMonths: number[]; blendedMonths: number[]; years: number; firmBy: string | null } | null },
+  fit: {
+    verdict: string;
+    confidence: "measured" | "projected" | "mixed";
+    basis: {
+      measuredMonths: number[];
+      projectedMonths: number[];
+      blendedMonths: number[];
+      years: number;
+      firmBy: string | null;
+    } | null;
+  },
   f: Format = DEFAULT_FORMAT,
   now = new Date(),
 ): string {
   // "Not enough data yet" is no verdict to call likely (months neither measured nor projected remain).
   if (fit.confidence === "measured" || !fit.basis || fit.verdict === "not enough data yet") return fit.verdict;
   const b = fit.basis;
-  const measured = b.measuredMonths.length === 0 ? "no month measured yet" : `${b.measuredMonths.length} of 12 months measured`;
-  const partly = b.blendedMonths.length ? ` (${b.blendedMonths.length === 1 ? MONTH_NAMES[b.blendedMonths[0] - 1] : `${b.blendedMonths.length} months`} partly)` : "";
+  const measured =
+    b.measuredMonths.length === 0 ? "no month measured yet" : `${b.measuredMonths.length} of 12 months measured`;
+  const partly = b.blendedMonths.length
+    ? ` (${b.blendedMonths.length === 1 ? MONTH_NAMES[b.blendedMonths[0] - 1] : `${b.blendedMonths.length} months`} partly)`
+    : "";
   const rest = b.measuredMonths.length === 0 ? "all projected" : "the rest projected";
   const firm = b.firmBy ? `; firm by ${firmDate(b.firmBy, f, now)}` : "";
   return `likely ${fit.verdict} — ${measured}${partly}, ${rest} ${pastYears(b.years)}${firm}`;
@@ -238,6 +293,9 @@ export function describeReason(r: CheckResult, f: Format = DEFAULT_FORMAT, name?
 }
 
 /** "Good from May to September; bring it in before nights fall under 4.5 °C." */
-export function describeSeasonal(seasonal: { months: number[]; bringInBelowC: number }, f: Format = DEFAULT_FORMAT): string {
+export function describeSeasonal(
+  seasonal: { months: number[]; bringInBelowC: number },
+  f: Format = DEFAULT_FORMAT,
+): string {
   return `Good ${describeMonths(seasonal.months)}; bring it in before nights fall under ${temp(seasonal.bringInBelowC, f)}.`;
 }

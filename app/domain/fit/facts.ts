@@ -14,41 +14,155 @@ export type Fact =
   // Temperature, cold side
   | { kind: "cold-ok"; comfortC: number; lowestC: number }
   | { kind: "cold-snap"; comfortC: number; damageC: number; nights: number; worst: Episode[]; degreeHours: number }
-  | { kind: "cold-season"; comfortC: number; damageC: number; nights: number; months: number[]; typicalLowC: number; degreeHours: number }
+  | {
+      kind: "cold-season";
+      comfortC: number;
+      damageC: number;
+      nights: number;
+      months: number[];
+      typicalLowC: number;
+      degreeHours: number;
+    }
   | { kind: "cold-damage"; damageC: number; nights: number; worst: Episode[]; degreeHours: number }
   // Warm nights for cool growers
   | { kind: "warm-nights-ok"; maxNightC: number; warmestLowC: number }
   | { kind: "warm-nights"; maxNightC: number; nights: number; months: number[]; typicalLowC: number; season: boolean }
   // Temperature, hot side
   | { kind: "heat-ok"; comfortC: number; highestC: number }
-  | { kind: "heat-snap"; comfortC: number; damageC: number; days: number; worst: Episode[]; degreeHours: number; costsSpikes: boolean }
-  | { kind: "heat-season"; comfortC: number; damageC: number; days: number; months: number[]; typicalHighC: number; degreeHours: number; costsSpikes: boolean }
+  | {
+      kind: "heat-snap";
+      comfortC: number;
+      damageC: number;
+      days: number;
+      worst: Episode[];
+      degreeHours: number;
+      costsSpikes: boolean;
+    }
+  | {
+      kind: "heat-season";
+      comfortC: number;
+      damageC: number;
+      days: number;
+      months: number[];
+      typicalHighC: number;
+      degreeHours: number;
+      costsSpikes: boolean;
+    }
   | { kind: "heat-damage"; damageC: number; days: number; worst: Episode[]; degreeHours: number }
   // Humidity by its dry hours (daily minimum)
   | { kind: "humidity-ok"; minPct: number; maxPct: number; lowestDailyMinPct: number }
-  | { kind: "humidity-dry"; minPct: number; dryDays: number; days: number; months: number[]; typicalDailyMinPct: number; lowestPct: number }
+  | {
+      kind: "humidity-dry";
+      minPct: number;
+      dryDays: number;
+      days: number;
+      months: number[];
+      typicalDailyMinPct: number;
+      lowestPct: number;
+    }
   | { kind: "humidity-damp"; maxPct: number; months: number[]; meanPct: number }
   // Light by month
-  | { kind: "light-months"; minDli: number; maxDli: number; months: { month: number; dli: number }[]; dim: number[]; bright: number[]; scorch: number[]; unmeasured: number[] }
+  | {
+      kind: "light-months";
+      minDli: number;
+      maxDli: number;
+      months: { month: number; dli: number }[];
+      dim: number[];
+      bright: number[];
+      scorch: number[];
+      unmeasured: number[];
+    }
   | { kind: "light-clipped"; months: number[] }
-  | { kind: "light-window"; facing: string; sunnyMonths: number; strongSunMonths: number[]; need: "high" | "medium" | "low"; verdict: "shade" | "scorch" | "fits" }
-  | { kind: "light-unknown"; need: "high" | "medium" | "low"; minDli: number; maxDli: number; reason: "no-sensor" | "outdoor" }
+  | {
+      kind: "light-window";
+      facing: string;
+      sunnyMonths: number;
+      strongSunMonths: number[];
+      need: "high" | "medium" | "low";
+      verdict: "shade" | "scorch" | "fits";
+    }
+  | {
+      kind: "light-unknown";
+      need: "high" | "medium" | "low";
+      minDli: number;
+      maxDli: number;
+      reason: "no-sensor" | "outdoor";
+    }
   // Flowering cues
   | { kind: "cue-none" }
-  | { kind: "cue-met"; maxNightC?: number; maxDayC?: number; weeks: number; months: number[]; days: number; dryRest: boolean }
-  | { kind: "cue-missed"; maxNightC?: number; maxDayC?: number; weeks: number; bestDays: number; cueMonths: number[]; outOfSeason: number[]; dryRest: boolean }
+  | {
+      kind: "cue-met";
+      maxNightC?: number;
+      maxDayC?: number;
+      weeks: number;
+      months: number[];
+      days: number;
+      dryRest: boolean;
+    }
+  | {
+      kind: "cue-missed";
+      maxNightC?: number;
+      maxDayC?: number;
+      weeks: number;
+      bestDays: number;
+      cueMonths: number[];
+      outOfSeason: number[];
+      dryRest: boolean;
+    }
   | { kind: "dif-met"; needC: number; months: { month: number; difC: number }[] }
   | { kind: "dif-missed"; needC: number; bestC: number; bestMonth: number | null }
   // Condensation
   | { kind: "condensation-ok"; hours: number; marginC: number }
-  | { kind: "condensation-wet"; hours: number; marginC: number; months: number[]; worstMonth: number; worstShare: number; expected: boolean }
+  | {
+      kind: "condensation-wet";
+      hours: number;
+      marginC: number;
+      months: number[];
+      worstMonth: number;
+      worstShare: number;
+      expected: boolean;
+    }
   | { kind: "cold-glass"; months: { month: number; paneC: number; dewPointC: number }[]; uValue: number }
   // Projected months (fit/projected.ts): figures from the spot's response model played through
   // `years` past years of weather, each with its 80 % range. "likely", never certain.
-  | { kind: "projected-cold"; line: "damage" | "comfort" | "snap"; lineC: number; months: number[]; worstMonth: number; lowC: number; rangeC: [number, number]; years: number }
-  | { kind: "projected-heat"; line: "damage" | "comfort" | "snap"; lineC: number; months: number[]; worstMonth: number; highC: number; rangeC: [number, number]; years: number }
-  | { kind: "projected-warm-nights"; maxNightC: number; months: number[]; worstMonth: number; lowC: number; rangeC: [number, number]; years: number }
-  | { kind: "projected-humidity"; side: "dry" | "damp"; limitPct: number; months: number[]; worstMonth: number; meanPct: number; years: number }
+  | {
+      kind: "projected-cold";
+      line: "damage" | "comfort" | "snap";
+      lineC: number;
+      months: number[];
+      worstMonth: number;
+      lowC: number;
+      rangeC: [number, number];
+      years: number;
+    }
+  | {
+      kind: "projected-heat";
+      line: "damage" | "comfort" | "snap";
+      lineC: number;
+      months: number[];
+      worstMonth: number;
+      highC: number;
+      rangeC: [number, number];
+      years: number;
+    }
+  | {
+      kind: "projected-warm-nights";
+      maxNightC: number;
+      months: number[];
+      worstMonth: number;
+      lowC: number;
+      rangeC: [number, number];
+      years: number;
+    }
+  | {
+      kind: "projected-humidity";
+      side: "dry" | "damp";
+      limitPct: number;
+      months: number[];
+      worstMonth: number;
+      meanPct: number;
+      years: number;
+    }
   | { kind: "projected-ok"; side: "cold" | "heat"; months: number[]; valueC: number; lineC: number; years: number }
   | { kind: "projected-cue"; cue: "cool" | "dif"; months: number[]; years: number };
 
@@ -68,7 +182,8 @@ export type CheckResult = {
   likely?: "poor";
 };
 
-export type CheckName = "cold-nights" | "warm-nights" | "hot-days" | "humidity" | "light" | "flowering" | "condensation";
+export type CheckName =
+  "cold-nights" | "warm-nights" | "hot-days" | "humidity" | "light" | "flowering" | "condensation";
 
 /** Where each rule turns; our own choices (common practice) unless noted. Kept as data so a page can show them. */
 export type FitThresholds = {
@@ -140,7 +255,8 @@ export const monthKeyOf = (month: number) => String(month).padStart(2, "0");
 export function cyclicOrder(months: number[]): number[] {
   const sorted = [...new Set(months)].sort((a, b) => a - b);
   if (sorted.length <= 1) return sorted;
-  let start = 0, widest = -1;
+  let start = 0,
+    widest = -1;
   for (let i = 0; i < sorted.length; i++) {
     const prev = sorted[(i - 1 + sorted.length) % sorted.length];
     const gap = (sorted[i] - prev + 12) % 12 || 12;

@@ -1,6 +1,17 @@
 // The fit's flowering check: the cues a group needs to flower (cool autumn nights, a wide
 // day–night difference), in their season, for long enough.
-import { cyclicOrder, hemisphereMonths, median, monthKeys, round1, unknown, worstLevel, type Fact, type FitCheck, type CheckLevel } from "~/domain/fit/facts";
+import {
+  cyclicOrder,
+  hemisphereMonths,
+  median,
+  monthKeys,
+  round1,
+  unknown,
+  worstLevel,
+  type Fact,
+  type FitCheck,
+  type CheckLevel,
+} from "~/domain/fit/facts";
 import type { SeasonProfile } from "~/domain/season/types";
 
 /**
@@ -23,7 +34,9 @@ function bestCoolSpell(
     if (inSeason(d.month) && cond({ low: d.low!, high: d.high! })) flags[d.dayNumber - first] = 1;
   }
   const width = Math.min(weeks * 7, flags.length);
-  let count = 0, best = 0, bestEnd = width - 1;
+  let count = 0,
+    best = 0,
+    bestEnd = width - 1;
   for (let i = 0; i < flags.length; i++) {
     count += flags[i] - (i >= width ? flags[i - width] : 0);
     if (i >= width - 1 && count > best) {
@@ -46,7 +59,8 @@ function monthlySwings(season: SeasonProfile, minDays: number) {
     const swings: number[][] = Array.from({ length: 13 }, () => []);
     for (const d of season.days) if (d.low !== null && d.high !== null) swings[d.month].push(d.high - d.low);
     out = [];
-    for (let m = 1; m <= 12; m++) if (swings[m].length >= minDays) out.push({ month: m, difC: round1(median(swings[m])) });
+    for (let m = 1; m <= 12; m++)
+      if (swings[m].length >= minDays) out.push({ month: m, difC: round1(median(swings[m])) });
     byMin.set(minDays, out);
   }
   return out;
@@ -67,14 +81,24 @@ export const floweringNeeds: FitCheck = (profile, season, t) => {
   const levels: CheckLevel[] = [];
   const months: number[] = [];
   if (cool) {
-    const cond = (d: { low: number; high: number }) => (cool.maxNightC === undefined || d.low <= cool.maxNightC) && (cool.maxDayC === undefined || d.high <= cool.maxDayC);
+    const cond = (d: { low: number; high: number }) =>
+      (cool.maxNightC === undefined || d.low <= cool.maxNightC) &&
+      (cool.maxDayC === undefined || d.high <= cool.maxDayC);
     const cueMonths = cool.cueMonths ? hemisphereMonths(cool.cueMonths, season) : null;
     const inSeason = (m: number) => !cueMonths || cueMonths.includes(m);
     const needDays = Math.ceil(cool.weeks * 7 * t.coolSpellShare);
     const hit = bestCoolSpell(season, cond, inSeason, cool.weeks);
     const dryRest = cool.dryRest ?? false;
     if (hit.best >= needDays) {
-      facts.push({ kind: "cue-met", maxNightC: cool.maxNightC, maxDayC: cool.maxDayC, weeks: cool.weeks, months: hit.months, days: hit.best, dryRest });
+      facts.push({
+        kind: "cue-met",
+        maxNightC: cool.maxNightC,
+        maxDayC: cool.maxDayC,
+        weeks: cool.weeks,
+        months: hit.months,
+        days: hit.best,
+        dryRest,
+      });
       levels.push("good");
       months.push(...hit.months);
     } else {
@@ -84,7 +108,11 @@ export const floweringNeeds: FitCheck = (profile, season, t) => {
       if (anyTime.best >= needDays) {
         for (let m = 1; m <= 12; m++) {
           const inMonth = days.filter((d) => d.month === m);
-          if (inMonth.length && inMonth.filter((d) => cond({ low: d.low!, high: d.high! })).length * 2 >= inMonth.length) coolMonths.push(m);
+          if (
+            inMonth.length &&
+            inMonth.filter((d) => cond({ low: d.low!, high: d.high! })).length * 2 >= inMonth.length
+          )
+            coolMonths.push(m);
         }
       }
       facts.push({
@@ -114,5 +142,10 @@ export const floweringNeeds: FitCheck = (profile, season, t) => {
       levels.push("care");
     }
   }
-  return { rule: "flowering", level: worstLevel(levels), facts, ...(months.length ? { months: monthKeys(months) } : {}) };
+  return {
+    rule: "flowering",
+    level: worstLevel(levels),
+    facts,
+    ...(months.length ? { months: monthKeys(months) } : {}),
+  };
 };

@@ -1,6 +1,16 @@
 // The fit's humidity and light checks: the group's humidity band by its dry hours, and its light
 // band by month.
-import { cyclicOrder, hemisphereMonths, median, monthKeys, round1, unknown, type Fact, type FitCheck, type CheckLevel } from "~/domain/fit/facts";
+import {
+  cyclicOrder,
+  hemisphereMonths,
+  median,
+  monthKeys,
+  round1,
+  unknown,
+  type Fact,
+  type FitCheck,
+  type CheckLevel,
+} from "~/domain/fit/facts";
 import type { SeasonProfile } from "~/domain/season/types";
 
 /** Each month's daily humidity minimums, sorted, once per season. */
@@ -9,7 +19,8 @@ function dailyHumidity(season: SeasonProfile) {
   let h = humidityCache.get(season);
   if (!h) {
     const byMonth: number[][] = Array.from({ length: 13 }, () => []);
-    let lowest = Infinity, count = 0;
+    let lowest = Infinity,
+      count = 0;
     for (const d of season.days) {
       if (d.rhLow === undefined || d.rhLow === null) continue;
       byMonth[d.month].push(d.rhLow);
@@ -35,7 +46,8 @@ export const humidityBand: FitCheck = (profile, season, t) => {
   const facts: Fact[] = [];
   const dryMonths: number[] = [];
   const dryDayMins: number[] = [];
-  let dryDays = 0, daysInDryMonths = 0;
+  let dryDays = 0,
+    daysInDryMonths = 0;
   for (let m = 1; m <= 12; m++) {
     const mins = byMonth[m];
     if (mins.length === 0) continue;
@@ -62,11 +74,27 @@ export const humidityBand: FitCheck = (profile, season, t) => {
   }
   const damp = months.filter((m) => m.humidity.mean! > profile.humidityMax);
   if (damp.length > 0) {
-    facts.push({ kind: "humidity-damp", maxPct: profile.humidityMax, months: cyclicOrder(damp.map((m) => m.month)), meanPct: Math.round(Math.max(...damp.map((m) => m.humidity.mean!))) });
+    facts.push({
+      kind: "humidity-damp",
+      maxPct: profile.humidityMax,
+      months: cyclicOrder(damp.map((m) => m.month)),
+      meanPct: Math.round(Math.max(...damp.map((m) => m.humidity.mean!))),
+    });
   }
   if (facts.length === 0) {
     const lowest = count ? lowestDaily : Math.min(...months.map((m) => m.humidity.lowest ?? m.humidity.mean!));
-    return { rule: "humidity", level: "good", facts: [{ kind: "humidity-ok", minPct: profile.humidityMin, maxPct: profile.humidityMax, lowestDailyMinPct: Math.round(lowest) }] };
+    return {
+      rule: "humidity",
+      level: "good",
+      facts: [
+        {
+          kind: "humidity-ok",
+          minPct: profile.humidityMin,
+          maxPct: profile.humidityMax,
+          lowestDailyMinPct: Math.round(lowest),
+        },
+      ],
+    };
   }
   return { rule: "humidity", level: "care", months: monthKeys([...dryMonths, ...damp.map((m) => m.month)]), facts };
 };
@@ -83,15 +111,21 @@ export const lightBand: FitCheck = (profile, season, t) => {
   const months = measured.map((m) => ({ month: m.month, dli: round1(m.light.meanDli!) }));
   // A lux chip that clips in direct sun reads low: a clipped month isn't called dim on its word.
   const clipped = measured.filter((m) => (m.light as { luxClipped?: number | boolean }).luxClipped).map((m) => m.month);
-  const dim = months.filter((m) => m.dli < profile.dliMin * (1 - t.lightEdgeShare) && !clipped.includes(m.month)).map((m) => m.month);
+  const dim = months
+    .filter((m) => m.dli < profile.dliMin * (1 - t.lightEdgeShare) && !clipped.includes(m.month))
+    .map((m) => m.month);
   const bright = months.filter((m) => m.dli > profile.dliMax * (1 + t.lightEdgeShare)).map((m) => m.month);
   const scorch = months.filter((m) => m.dli > profile.dliMax * t.lightFarFactor).map((m) => m.month);
   // Winter is dim at any window at high latitudes; what rules a group out is a growing season far
   // too dim: most of April–September (October–March in the south) under dliMin ÷ lightFarFactor.
   const growing = hemisphereMonths([4, 5, 6, 7, 8, 9], season);
-  const farDim = months.filter((m) => growing.includes(m.month) && !clipped.includes(m.month) && m.dli < profile.dliMin / t.lightFarFactor).map((m) => m.month);
+  const farDim = months
+    .filter((m) => growing.includes(m.month) && !clipped.includes(m.month) && m.dli < profile.dliMin / t.lightFarFactor)
+    .map((m) => m.month);
   const unmeasured = [1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12].filter((m) => !measured.some((x) => x.month === m));
-  const facts: Fact[] = [{ kind: "light-months", minDli: profile.dliMin, maxDli: profile.dliMax, months, dim, bright, scorch, unmeasured }];
+  const facts: Fact[] = [
+    { kind: "light-months", minDli: profile.dliMin, maxDli: profile.dliMax, months, dim, bright, scorch, unmeasured },
+  ];
   if (clipped.length) facts.push({ kind: "light-clipped", months: clipped });
   const level: CheckLevel =
     (profile.light === "low" && scorch.length >= t.scorchPoorMonths) || farDim.length >= 4

@@ -28,7 +28,8 @@ const DAMAGE_KINDS = new Set<Fact["kind"]>(["cold-damage", "heat-damage"]);
 
 const monthsOfFact = (f: Fact): number[] => {
   if (f.kind === "light-months") return [...f.dim, ...f.bright];
-  if ("months" in f && Array.isArray(f.months)) return (f.months as unknown[]).filter((m): m is number => typeof m === "number");
+  if ("months" in f && Array.isArray(f.months))
+    return (f.months as unknown[]).filter((m): m is number => typeof m === "number");
   return [];
 };
 
@@ -78,7 +79,8 @@ export function monthStrip(
   }
   if (named.size === 0 && reason.level !== "good") return null;
   // A poor light rule whose dim/bright months are all care but no scorch: still a fail somewhere? Then every named month fails.
-  if (reason.level === "poor" && ![...named.values()].some((c) => c.state === "fail")) for (const c of named.values()) c.state = "fail";
+  if (reason.level === "poor" && ![...named.values()].some((c) => c.state === "fail"))
+    for (const c of named.values()) c.state = "fail";
   return STRIP_ORDER.map((month) => {
     const n = named.get(month);
     if (n) return { month, state: n.state, projected: n.projected || (!measured.has(month) && projected.has(month)) };
@@ -95,9 +97,14 @@ const CODE: Record<MonthState, string> = { pass: "p", care: "c", fail: "f", unme
 const STATE_OF: Record<string, MonthState> = { p: "pass", c: "care", f: "fail", u: "unmeasured" };
 
 /** Twelve letters for the page's data (p pass, c care, f fail, u not measured; upper case: projected). */
-export const encodeStrip = (cells: StripCell[]) => cells.map((c) => (c.projected ? CODE[c.state].toUpperCase() : CODE[c.state])).join("");
+export const encodeStrip = (cells: StripCell[]) =>
+  cells.map((c) => (c.projected ? CODE[c.state].toUpperCase() : CODE[c.state])).join("");
 export function decodeStrip(code: string): StripCell[] {
-  return [...code.slice(0, 12)].map((ch, i) => ({ month: STRIP_ORDER[i], state: STATE_OF[ch.toLowerCase()] ?? "unmeasured", projected: ch !== ch.toLowerCase() }));
+  return [...code.slice(0, 12)].map((ch, i) => ({
+    month: STRIP_ORDER[i],
+    state: STATE_OF[ch.toLowerCase()] ?? "unmeasured",
+    projected: ch !== ch.toLowerCase(),
+  }));
 }
 
 /** Consecutive months (in strip order, wrapping round the year) as "Mar–Nov", "Dec, Jan, Feb" for three or fewer... */
@@ -115,10 +122,21 @@ function monthsWords(months: number[]): string {
     if (last && last.at(-1) === prev) last.push(m);
     else runs.push([m]);
   }
-  return runs.map((r) => (r.length >= 4 ? `${MONTH_SHORT[r[0] - 1]}–${MONTH_SHORT[r.at(-1)! - 1]}` : r.map((m) => MONTH_SHORT[m - 1]).join(", "))).join(", ");
+  return runs
+    .map((r) =>
+      r.length >= 4
+        ? `${MONTH_SHORT[r[0] - 1]}–${MONTH_SHORT[r.at(-1)! - 1]}`
+        : r.map((m) => MONTH_SHORT[m - 1]).join(", "),
+    )
+    .join(", ");
 }
 
-const PHRASE: Record<MonthState, string> = { fail: "fails", care: "asks for care", pass: "passes", unmeasured: "not measured" };
+const PHRASE: Record<MonthState, string> = {
+  fail: "fails",
+  care: "asks for care",
+  pass: "passes",
+  unmeasured: "not measured",
+};
 
 /** The strip's accessible name: "Cold nights: fails in Dec, Jan, Feb; passes Mar–Nov". Worst first; projected months said as likely. */
 export function stripLabel(rule: string, cells: StripCell[]): string {

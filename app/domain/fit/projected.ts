@@ -3,7 +3,17 @@
 // comfort and damage lines as the measured nights and days. Facts, not sentences (describe.ts
 // words them). A projection never rules a plant out with the certainty of a measurement: what
 // would be poor on projected months alone is a warning at care level, worded as likely.
-import { type Fact, type FitThresholds, type CheckLevel, type CheckName, type CheckResult, cyclicOrder, hemisphereMonths, linesOf, monthKeyOf } from "~/domain/fit/facts";
+import {
+  type Fact,
+  type FitThresholds,
+  type CheckLevel,
+  type CheckName,
+  type CheckResult,
+  cyclicOrder,
+  hemisphereMonths,
+  linesOf,
+  monthKeyOf,
+} from "~/domain/fit/facts";
 import type { PlantProfile } from "~/domain/plants/library";
 import type { Figure, ProjectedMonth } from "~/domain/projection/project";
 import type { SeasonProfile } from "~/domain/season/types";
@@ -50,7 +60,18 @@ function cold(p: PlantProfile, months: ProjectedMonth[], years: number, t: FitTh
     return {
       level: "poor",
       months: damaged.map((m) => m.month),
-      facts: [{ kind: "projected-cold", line: "damage", lineC: damage, months: cyclicOrder(damaged.map((m) => m.month)), worstMonth: worst.month, lowC: round1(low.value), rangeC: range(low), years }],
+      facts: [
+        {
+          kind: "projected-cold",
+          line: "damage",
+          lineC: damage,
+          months: cyclicOrder(damaged.map((m) => m.month)),
+          worstMonth: worst.month,
+          lowC: round1(low.value),
+          rangeC: range(low),
+          years,
+        },
+      ],
     };
   }
   // A cold season: the month's typical night (mean daily low) under comfort, beyond the sensor's margin.
@@ -61,7 +82,18 @@ function cold(p: PlantProfile, months: ProjectedMonth[], years: number, t: FitTh
     return {
       level: typical.value < (comfort + damage) / 2 ? "poor" : "care",
       months: season.map((m) => m.month),
-      facts: [{ kind: "projected-cold", line: "comfort", lineC: comfort, months: cyclicOrder(season.map((m) => m.month)), worstMonth: coldest.month, lowC: round1(typical.value), rangeC: range(typical), years }],
+      facts: [
+        {
+          kind: "projected-cold",
+          line: "comfort",
+          lineC: comfort,
+          months: cyclicOrder(season.map((m) => m.month)),
+          worstMonth: coldest.month,
+          lowC: round1(typical.value),
+          rangeC: range(typical),
+          years,
+        },
+      ],
     };
   }
   const nightsUnder = withLow.filter((m) => m.figures.lowest!.value < comfort - t.sensorMarginC);
@@ -70,10 +102,34 @@ function cold(p: PlantProfile, months: ProjectedMonth[], years: number, t: FitTh
     return {
       level: "care",
       months: nightsUnder.map((m) => m.month),
-      facts: [{ kind: "projected-cold", line: "snap", lineC: comfort, months: cyclicOrder(nightsUnder.map((m) => m.month)), worstMonth: worst.month, lowC: round1(low.value), rangeC: range(low), years }],
+      facts: [
+        {
+          kind: "projected-cold",
+          line: "snap",
+          lineC: comfort,
+          months: cyclicOrder(nightsUnder.map((m) => m.month)),
+          worstMonth: worst.month,
+          lowC: round1(low.value),
+          rangeC: range(low),
+          years,
+        },
+      ],
     };
   }
-  return { level: "good", months: [], facts: [{ kind: "projected-ok", side: "cold", months: cyclicOrder(withLow.map((m) => m.month)), valueC: round1(worst.figures.lowest!.value), lineC: comfort, years }] };
+  return {
+    level: "good",
+    months: [],
+    facts: [
+      {
+        kind: "projected-ok",
+        side: "cold",
+        months: cyclicOrder(withLow.map((m) => m.month)),
+        valueC: round1(worst.figures.lowest!.value),
+        lineC: comfort,
+        years,
+      },
+    ],
+  };
 }
 
 /** Hot side, as for the cold. */
@@ -88,7 +144,18 @@ function heat(p: PlantProfile, months: ProjectedMonth[], years: number, t: FitTh
     return {
       level: "poor",
       months: damaged.map((m) => m.month),
-      facts: [{ kind: "projected-heat", line: "damage", lineC: damage, months: cyclicOrder(damaged.map((m) => m.month)), worstMonth: worst.month, highC: round1(high.value), rangeC: range(high), years }],
+      facts: [
+        {
+          kind: "projected-heat",
+          line: "damage",
+          lineC: damage,
+          months: cyclicOrder(damaged.map((m) => m.month)),
+          worstMonth: worst.month,
+          highC: round1(high.value),
+          rangeC: range(high),
+          years,
+        },
+      ],
     };
   }
   const season = withHigh.filter((m) => m.figures.meanDailyHigh!.value > comfort + t.sensorMarginC);
@@ -98,7 +165,18 @@ function heat(p: PlantProfile, months: ProjectedMonth[], years: number, t: FitTh
     return {
       level: typical.value > (comfort + damage) / 2 ? "poor" : "care",
       months: season.map((m) => m.month),
-      facts: [{ kind: "projected-heat", line: "comfort", lineC: comfort, months: cyclicOrder(season.map((m) => m.month)), worstMonth: hottest.month, highC: round1(typical.value), rangeC: range(typical), years }],
+      facts: [
+        {
+          kind: "projected-heat",
+          line: "comfort",
+          lineC: comfort,
+          months: cyclicOrder(season.map((m) => m.month)),
+          worstMonth: hottest.month,
+          highC: round1(typical.value),
+          rangeC: range(typical),
+          years,
+        },
+      ],
     };
   }
   const daysOver = withHigh.filter((m) => m.figures.highest!.value > comfort + t.sensorMarginC);
@@ -107,10 +185,34 @@ function heat(p: PlantProfile, months: ProjectedMonth[], years: number, t: FitTh
     return {
       level: "care",
       months: daysOver.map((m) => m.month),
-      facts: [{ kind: "projected-heat", line: "snap", lineC: comfort, months: cyclicOrder(daysOver.map((m) => m.month)), worstMonth: worst.month, highC: round1(high.value), rangeC: range(high), years }],
+      facts: [
+        {
+          kind: "projected-heat",
+          line: "snap",
+          lineC: comfort,
+          months: cyclicOrder(daysOver.map((m) => m.month)),
+          worstMonth: worst.month,
+          highC: round1(high.value),
+          rangeC: range(high),
+          years,
+        },
+      ],
     };
   }
-  return { level: "good", months: [], facts: [{ kind: "projected-ok", side: "heat", months: cyclicOrder(withHigh.map((m) => m.month)), valueC: round1(worst.figures.highest!.value), lineC: comfort, years }] };
+  return {
+    level: "good",
+    months: [],
+    facts: [
+      {
+        kind: "projected-ok",
+        side: "heat",
+        months: cyclicOrder(withHigh.map((m) => m.month)),
+        valueC: round1(worst.figures.highest!.value),
+        lineC: comfort,
+        years,
+      },
+    ],
+  };
 }
 
 /** Warm nights for cool growers: months whose typical night stays 2 °C or more above the group's maximum night. */
@@ -126,7 +228,17 @@ function warm(p: PlantProfile, months: ProjectedMonth[], years: number, t: FitTh
   return {
     level: typical.value >= maxNightC + 2 ? "poor" : "care",
     months: warmMonths.map((m) => m.month),
-    facts: [{ kind: "projected-warm-nights", maxNightC, months: cyclicOrder(warmMonths.map((m) => m.month)), worstMonth: warmest.month, lowC: round1(typical.value), rangeC: range(typical), years }],
+    facts: [
+      {
+        kind: "projected-warm-nights",
+        maxNightC,
+        months: cyclicOrder(warmMonths.map((m) => m.month)),
+        worstMonth: warmest.month,
+        lowC: round1(typical.value),
+        rangeC: range(typical),
+        years,
+      },
+    ],
   };
 }
 
@@ -139,13 +251,31 @@ function humidity(p: PlantProfile, months: ProjectedMonth[], years: number): Jud
   const facts: Fact[] = [];
   if (dry.length) {
     const driest = dry.reduce((a, b) => (b.figures.humidityMean!.value < a.figures.humidityMean!.value ? b : a));
-    facts.push({ kind: "projected-humidity", side: "dry", limitPct: p.humidityMin, months: cyclicOrder(dry.map((m) => m.month)), worstMonth: driest.month, meanPct: Math.round(driest.figures.humidityMean!.value), years });
+    facts.push({
+      kind: "projected-humidity",
+      side: "dry",
+      limitPct: p.humidityMin,
+      months: cyclicOrder(dry.map((m) => m.month)),
+      worstMonth: driest.month,
+      meanPct: Math.round(driest.figures.humidityMean!.value),
+      years,
+    });
   }
   if (damp.length) {
     const dampest = damp.reduce((a, b) => (b.figures.humidityMean!.value > a.figures.humidityMean!.value ? b : a));
-    facts.push({ kind: "projected-humidity", side: "damp", limitPct: p.humidityMax, months: cyclicOrder(damp.map((m) => m.month)), worstMonth: dampest.month, meanPct: Math.round(dampest.figures.humidityMean!.value), years });
+    facts.push({
+      kind: "projected-humidity",
+      side: "damp",
+      limitPct: p.humidityMax,
+      months: cyclicOrder(damp.map((m) => m.month)),
+      worstMonth: dampest.month,
+      meanPct: Math.round(dampest.figures.humidityMean!.value),
+      years,
+    });
   }
-  return facts.length ? { level: "care", months: [...dry, ...damp].map((m) => m.month), facts } : { level: "good", months: [], facts: [] };
+  return facts.length
+    ? { level: "care", months: [...dry, ...damp].map((m) => m.month), facts }
+    : { level: "good", months: [], facts: [] };
 }
 
 /**
@@ -154,7 +284,13 @@ function humidity(p: PlantProfile, months: ProjectedMonth[], years: number): Jud
  * month's typical high minus its typical low reaches it. Only ever good here, and only when every
  * cue the group has is likely met: otherwise the measured judgement stands.
  */
-function flowering(p: PlantProfile, months: ProjectedMonth[], years: number, season: SeasonProfile, t: FitThresholds): Judged | null {
+function flowering(
+  p: PlantProfile,
+  months: ProjectedMonth[],
+  years: number,
+  season: SeasonProfile,
+  t: FitThresholds,
+): Judged | null {
   const cool = p.flowering.coolPeriod;
   const facts: Fact[] = [];
   const met: number[] = [];
@@ -165,7 +301,9 @@ function flowering(p: PlantProfile, months: ProjectedMonth[], years: number, sea
       const high = m.figures.meanDailyHigh?.value;
       if (low === undefined || high === undefined) return false;
       if (cue && !cue.includes(m.month)) return false;
-      return (cool.maxNightC === undefined || low <= cool.maxNightC) && (cool.maxDayC === undefined || high <= cool.maxDayC);
+      return (
+        (cool.maxNightC === undefined || low <= cool.maxNightC) && (cool.maxDayC === undefined || high <= cool.maxDayC)
+      );
     });
     if (ok.length >= Math.max(1, Math.ceil(cool.weeks / 4))) {
       facts.push({ kind: "projected-cue", cue: "cool", months: cyclicOrder(ok.map((m) => m.month)), years });
@@ -174,7 +312,12 @@ function flowering(p: PlantProfile, months: ProjectedMonth[], years: number, sea
   }
   const need = p.flowering.difC;
   if (need !== undefined) {
-    const ok = months.filter((m) => m.figures.meanDailyHigh && m.figures.meanDailyLow && m.figures.meanDailyHigh.value - m.figures.meanDailyLow.value >= need - t.sensorMarginC);
+    const ok = months.filter(
+      (m) =>
+        m.figures.meanDailyHigh &&
+        m.figures.meanDailyLow &&
+        m.figures.meanDailyHigh.value - m.figures.meanDailyLow.value >= need - t.sensorMarginC,
+    );
     if (ok.length) {
       facts.push({ kind: "projected-cue", cue: "dif", months: cyclicOrder(ok.map((m) => m.month)), years });
       met.push(...ok.map((m) => m.month));
@@ -201,12 +344,22 @@ function merge(measured: CheckResult, projected: Judged, rule: CheckName): Check
   const own = (projected.monthKeys ??= cyclicOrder(projected.months).map(monthKeyOf));
   if (rule === "flowering") {
     // A cue likely met on projected months lifts a measured miss (or no data) to good.
-    if (!m || m.level !== "good") return { rule, level: "good", facts: projected.facts, months: own, confidence: "projected" };
+    if (!m || m.level !== "good")
+      return { rule, level: "good", facts: projected.facts, months: own, confidence: "projected" };
     return { ...m, facts: [...m.facts, ...projected.facts], confidence: "mixed" };
   }
-  if (!m) return { rule, level: pLevel, facts: projected.facts, months: own, confidence: "projected", ...(projected.level === "poor" ? { likely: "poor" as const } : {}) };
+  if (!m)
+    return {
+      rule,
+      level: pLevel,
+      facts: projected.facts,
+      months: own,
+      confidence: "projected",
+      ...(projected.level === "poor" ? { likely: "poor" as const } : {}),
+    };
   const level = worse(m.level, pLevel);
-  const confidence: Confidence = level === "good" ? "mixed" : ORDER.indexOf(pLevel) > ORDER.indexOf(m.level) ? "projected" : "measured";
+  const confidence: Confidence =
+    level === "good" ? "mixed" : ORDER.indexOf(pLevel) > ORDER.indexOf(m.level) ? "projected" : "measured";
   return {
     ...m,
     level,
@@ -215,7 +368,11 @@ function merge(measured: CheckResult, projected: Judged, rule: CheckName): Check
       confidence === "projected"
         ? [...projected.facts.filter((f) => f.kind !== "projected-ok"), ...m.facts]
         : [...m.facts, ...projected.facts.filter((f) => f.kind !== "projected-ok" || level === "good")],
-    months: !m.months?.length ? own : own.length === 0 ? m.months : cyclicOrder([...m.months.map(Number), ...projected.months]).map(monthKeyOf),
+    months: !m.months?.length
+      ? own
+      : own.length === 0
+        ? m.months
+        : cyclicOrder([...m.months.map(Number), ...projected.months]).map(monthKeyOf),
     confidence,
     ...(confidence === "projected" && projected.level === "poor" ? { likely: "poor" as const } : {}),
   };
@@ -224,8 +381,22 @@ function merge(measured: CheckResult, projected: Judged, rule: CheckName): Check
 // A fit table judges many plants alike in what a rule reads (fit/checks.ts CHECK_INPUTS): each
 // projection's judgement is kept per rule and plant inputs, and each merge per pair of results.
 type JudgeKey = (p: PlantProfile) => string;
-const JUDGES: { rule: CheckName; key: JudgeKey; judge: (p: PlantProfile, months: ProjectedMonth[], years: number, t: FitThresholds, season: SeasonProfile) => Judged | null }[] = [
-  { rule: "cold-nights", key: (p) => `${p.minNightC}|${linesOf(p).damageNightC}`, judge: (p, m, y, t) => cold(p, m, y, t) },
+const JUDGES: {
+  rule: CheckName;
+  key: JudgeKey;
+  judge: (
+    p: PlantProfile,
+    months: ProjectedMonth[],
+    years: number,
+    t: FitThresholds,
+    season: SeasonProfile,
+  ) => Judged | null;
+}[] = [
+  {
+    rule: "cold-nights",
+    key: (p) => `${p.minNightC}|${linesOf(p).damageNightC}`,
+    judge: (p, m, y, t) => cold(p, m, y, t),
+  },
   { rule: "hot-days", key: (p) => `${p.maxDayC}|${linesOf(p).damageDayC}`, judge: (p, m, y, t) => heat(p, m, y, t) },
   { rule: "warm-nights", key: (p) => `${p.maxNightC}`, judge: (p, m, y, t) => warm(p, m, y, t) },
   { rule: "humidity", key: (p) => `${p.humidityMin}|${p.humidityMax}`, judge: (p, m, y) => humidity(p, m, y) },
@@ -237,7 +408,13 @@ const mergedCache = new WeakMap<CheckResult, Map<Judged, CheckResult>>();
 const plantKeys = new WeakMap<PlantProfile, string[]>();
 
 /** Each measured rule result joined with the projected months' judgement of the same rule. */
-export function withProjection(profile: PlantProfile, season: SeasonProfile, reasons: CheckResult[], projection: FitProjection, t: FitThresholds): CheckResult[] {
+export function withProjection(
+  profile: PlantProfile,
+  season: SeasonProfile,
+  reasons: CheckResult[],
+  projection: FitProjection,
+  t: FitThresholds,
+): CheckResult[] {
   let byT = judgedCache.get(projection);
   if (!byT) judgedCache.set(projection, (byT = new WeakMap()));
   let known = byT.get(t);
@@ -250,7 +427,8 @@ export function withProjection(profile: PlantProfile, season: SeasonProfile, rea
     const j = JUDGES[i];
     const key = keys[i];
     let judged = known.get(key);
-    if (judged === undefined) known.set(key, (judged = j.judge(profile, projection.months, projection.years, t, season)));
+    if (judged === undefined)
+      known.set(key, (judged = j.judge(profile, projection.months, projection.years, t, season)));
     if (!judged || (r.level === "poor" && !r.noData)) return r;
     let merges = mergedCache.get(r);
     if (!merges) mergedCache.set(r, (merges = new Map()));

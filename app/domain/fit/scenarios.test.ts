@@ -10,9 +10,20 @@ import type { SeasonProfile } from "~/domain/season/types";
 
 // DLI from a lux level held through the sun-up hours (sunlight factor 54): at 51.5° N, 10 klux
 // gives about 5.6 mol in March and 9.9 in June.
-const steady = (night: number, day: number, extra: Partial<MonthSpec> = {}) => () => ({ night, day, rh: 60, dpMargin: 8, ...extra });
-const byMonth = (f: (m: number) => Partial<MonthSpec> & { night: number; day: number }) => (m: number) => ({ rh: 60, dpMargin: 8, ...f(m) });
-const dip = (month: number, dayOfMonth: number, hour: number, t: number): HourPatch => ({ month, dayOfMonth, hour, value: { t } });
+const steady =
+  (night: number, day: number, extra: Partial<MonthSpec> = {}) =>
+  () => ({ night, day, rh: 60, dpMargin: 8, ...extra });
+const byMonth = (f: (m: number) => Partial<MonthSpec> & { night: number; day: number }) => (m: number) => ({
+  rh: 60,
+  dpMargin: 8,
+  ...f(m),
+});
+const dip = (month: number, dayOfMonth: number, hour: number, t: number): HourPatch => ({
+  month,
+  dayOfMonth,
+  hour,
+  value: { t },
+});
 const summer = (m: number) => m >= 5 && m <= 9;
 const east = { window: { latitude: 51.5, facing: "E" as const, indoor: true } };
 const northEast = { window: { latitude: 51.5, facing: "NE" as const, indoor: true } };
@@ -39,7 +50,8 @@ const SCENARIOS: Scenario[] = [
     season: () => spotYear({ month: steady(20, 23) }),
     plant: "phalaenopsis",
     verdict: "possible with care",
-    source: "Blanchard & Runkle (2006): constant 20 and 23 °C both spiked; light unknown never gets the top verdict (issue 15)",
+    source:
+      "Blanchard & Runkle (2006): constant 20 and 23 °C both spiked; light unknown never gets the top verdict (issue 15)",
     check: (r) => {
       expect(rule(r, "flowering").level).toBe("good");
       expect(rule(r, "light").level).toBe("unknown");
@@ -61,13 +73,25 @@ const SCENARIOS: Scenario[] = [
     check: (r) => {
       const cold = rule(r, "cold-nights");
       expect(cold.level).toBe("care");
-      expect(cold.facts[0]).toMatchObject({ kind: "cold-snap", nights: 1, worst: [{ date: "2025-01-17", valueC: 13.9, hours: 1 }] });
+      expect(cold.facts[0]).toMatchObject({
+        kind: "cold-snap",
+        nights: 1,
+        worst: [{ date: "2025-01-17", valueC: 13.9, hours: 1 }],
+      });
       expect(describeReason(cold)).toContain("17 Jan: 13.9 °C for 1 hour");
     },
   },
   {
     name: "one 4.9 °C night on a Cymbidium bench",
-    season: () => spotYear({ month: byMonth((m) => ({ night: m >= 8 && m <= 11 ? 11 : summer(m) ? 14 : 9, day: summer(m) ? 24 : 18, lux: 25000 })), patches: [dip(1, 10, 23, 4.9)] }),
+    season: () =>
+      spotYear({
+        month: byMonth((m) => ({
+          night: m >= 8 && m <= 11 ? 11 : summer(m) ? 14 : 9,
+          day: summer(m) ? 24 : 18,
+          lux: 25000,
+        })),
+        patches: [dip(1, 10, 23, 4.9)],
+      }),
     plant: "cymbidium",
     verdict: "possible with care",
     source: "AOS Cymbidium culture sheet: takes nights near 2–4 °C without frost",
@@ -75,7 +99,15 @@ const SCENARIOS: Scenario[] = [
   },
   {
     name: "cool autumn bench: Cymbidium gets its spiking nights in August–November",
-    season: () => spotYear({ month: byMonth((m) => ({ night: m >= 8 && m <= 11 ? 11 : summer(m) ? 14 : 9, day: m >= 8 && m <= 11 ? 22 : 20, rh: 55, lux: 25000 })) }),
+    season: () =>
+      spotYear({
+        month: byMonth((m) => ({
+          night: m >= 8 && m <= 11 ? 11 : summer(m) ? 14 : 9,
+          day: m >= 8 && m <= 11 ? 22 : 20,
+          rh: 55,
+          lux: 25000,
+        })),
+      }),
     plant: "cymbidium",
     verdict: "thrives here",
     source: "AOS Cymbidium culture sheet: late-summer to autumn nights 10–16 °C initiate spikes",
@@ -83,7 +115,8 @@ const SCENARIOS: Scenario[] = [
   },
   {
     name: "Cymbidium with cool nights only in December–February: the cue comes too late",
-    season: () => spotYear({ month: byMonth((m) => ({ night: m === 12 || m <= 2 ? 10 : 16, day: 22, rh: 55, lux: 25000 })) }),
+    season: () =>
+      spotYear({ month: byMonth((m) => ({ night: m === 12 || m <= 2 ? 10 : 16, day: 22, rh: 55, lux: 25000 })) }),
     plant: "cymbidium",
     verdict: "possible with care",
     source: "REFERENCES.md (common practice, society culture sheets): spikes initiate in late summer and autumn",
@@ -110,7 +143,11 @@ const SCENARIOS: Scenario[] = [
   },
   {
     name: "Masdevallia through 15 days at 28 °C: past its heat damage line",
-    season: () => spotYear({ month: byMonth(() => ({ night: 13, day: 20, rh: 80, lux: 5000 })), patches: Array.from({ length: 15 }, (_, i) => dip(7, i + 1, 13, 28)) }),
+    season: () =>
+      spotYear({
+        month: byMonth(() => ({ night: 13, day: 20, rh: 80, lux: 5000 })),
+        patches: Array.from({ length: 15 }, (_, i) => dip(7, i + 1, 13, 28)),
+      }),
     plant: "masdevallia",
     verdict: "struggles here",
     source: "library profile (memory): heat above about 27 °C kills Masdevallia",
@@ -125,7 +162,11 @@ const SCENARIOS: Scenario[] = [
   },
   {
     name: "three weeks at 30 °C for Phalaenopsis: a hot spell, not a fail",
-    season: () => spotYear({ month: steady(19, 24, { lux: 7000 }), patches: Array.from({ length: 21 }, (_, i) => dip(7, i + 1, 13, 30)) }),
+    season: () =>
+      spotYear({
+        month: steady(19, 24, { lux: 7000 }),
+        patches: Array.from({ length: 21 }, (_, i) => dip(7, i + 1, 13, 30)),
+      }),
     plant: "phalaenopsis",
     verdict: "possible with care",
     source: "AOS Phalaenopsis culture sheet: days to 85 °F, more with shade; harm well above 30 °C (memory)",
@@ -149,11 +190,24 @@ const SCENARIOS: Scenario[] = [
   },
   {
     name: "dry heated winter: 30 % by day, 70 % by night (mean about 50 %)",
-    season: () => spotYear({ month: byMonth((m) => ({ night: 18, day: 22, lux: 7000, ...(m >= 11 || m <= 3 ? { rhDay: 30, rhNight: 70 } : { rh: 60 }) })) }),
+    season: () =>
+      spotYear({
+        month: byMonth((m) => ({
+          night: 18,
+          day: 22,
+          lux: 7000,
+          ...(m >= 11 || m <= 3 ? { rhDay: 30, rhNight: 70 } : { rh: 60 }),
+        })),
+      }),
     plant: "phalaenopsis",
     verdict: "possible with care",
     source: "AOS Phalaenopsis culture sheet: 50–80 %; the dry part of the day is what harms (issue 15)",
-    check: (r) => expect(rule(r, "humidity").facts[0]).toMatchObject({ kind: "humidity-dry", months: [11, 12, 1, 2, 3], typicalDailyMinPct: 30 }),
+    check: (r) =>
+      expect(rule(r, "humidity").facts[0]).toMatchObject({
+        kind: "humidity-dry",
+        months: [11, 12, 1, 2, 3],
+        typicalDailyMinPct: 30,
+      }),
   },
   {
     name: "north-east window, no light sensor: Vanda too dim",
@@ -161,7 +215,8 @@ const SCENARIOS: Scenario[] = [
     plant: "vanda",
     context: northEast,
     verdict: "possible with care",
-    source: "AOS Vanda guidance (memory): strong light with several hours of sun; a NE window at 51.5° N gets under an hour October–February",
+    source:
+      "AOS Vanda guidance (memory): strong light with several hours of sun; a NE window at 51.5° N gets under an hour October–February",
     check: (r) => expect(rule(r, "light").facts[0]).toMatchObject({ kind: "light-window", verdict: "shade" }),
   },
   {
@@ -183,10 +238,14 @@ const SCENARIOS: Scenario[] = [
   },
   {
     name: "June at 19 mol, December at 3: a low-light group scorched in summer, the mean hides it",
-    season: () => spotYear({ month: byMonth((m) => ({ night: 19, day: 24, lux: summer(m) ? 17500 : m === 12 || m === 1 ? 6500 : 9000 })) }),
+    season: () =>
+      spotYear({
+        month: byMonth((m) => ({ night: 19, day: 24, lux: summer(m) ? 17500 : m === 12 || m === 1 ? 6500 : 9000 })),
+      }),
     plant: "phalaenopsis",
     verdict: "struggles here",
-    source: "AOS Phalaenopsis culture sheet: little or no direct sun; DLI over twice its maximum burns leaves (common practice)",
+    source:
+      "AOS Phalaenopsis culture sheet: little or no direct sun; DLI over twice its maximum burns leaves (common practice)",
     check: (r) => {
       const light = rule(r, "light");
       expect(light.facts[0]).toMatchObject({ kind: "light-months" });
@@ -209,7 +268,15 @@ const SCENARIOS: Scenario[] = [
   },
   {
     name: "cool, dry winter rest for nobile Dendrobium",
-    season: () => spotYear({ month: byMonth((m) => ({ night: m >= 10 || m === 1 ? 8 : 15, day: m >= 10 || m === 1 ? 17 : 25, rh: 55, lux: 20000 })) }),
+    season: () =>
+      spotYear({
+        month: byMonth((m) => ({
+          night: m >= 10 || m === 1 ? 8 : 15,
+          day: m >= 10 || m === 1 ? 17 : 25,
+          rh: 55,
+          lux: 20000,
+        })),
+      }),
     plant: "dendrobium-nobile",
     verdict: "thrives here",
     source: "REFERENCES.md (common practice): nobile Dendrobium needs a cool, nearly dry winter rest",
@@ -225,7 +292,8 @@ const SCENARIOS: Scenario[] = [
     plant: "paphiopedilum-mottled",
     verdict: "possible with care",
     source: "AOS Paphiopedilum culture sheet: warm types 16–18 °C nights; brief cooler nights survived",
-    check: (r) => expect(rule(r, "cold-nights").facts[0]).toMatchObject({ kind: "cold-season", months: [11, 12, 1, 2] }),
+    check: (r) =>
+      expect(rule(r, "cold-nights").facts[0]).toMatchObject({ kind: "cold-season", months: [11, 12, 1, 2] }),
   },
   {
     name: "Maudiae through a winter of 11 °C nights: a cold season near its damage line",
@@ -259,7 +327,15 @@ const SCENARIOS: Scenario[] = [
   },
   {
     name: "summer-only bench: Cymbidium good from May to September",
-    season: () => spotYear({ month: byMonth((m) => ({ night: summer(m) ? 12 : m === 4 || m === 10 ? 5 : -2, day: summer(m) ? 22 : 8, rh: 70, lux: 30000 })) }),
+    season: () =>
+      spotYear({
+        month: byMonth((m) => ({
+          night: summer(m) ? 12 : m === 4 || m === 10 ? 5 : -2,
+          day: summer(m) ? 22 : 8,
+          rh: 70,
+          lux: 30000,
+        })),
+      }),
     plant: "cymbidium",
     context: bench,
     verdict: "good for part of the year",
@@ -267,7 +343,15 @@ const SCENARIOS: Scenario[] = [
   },
   {
     name: "summer-only bench with a hot July: Odontoglossum suits it for two months around it, not in July",
-    season: () => spotYear({ month: byMonth((m) => ({ night: summer(m) ? 12 : m === 4 || m === 10 ? 5 : -2, day: summer(m) ? (m === 7 ? 28 : 22) : 8, rh: 70, lux: 12000 })) }),
+    season: () =>
+      spotYear({
+        month: byMonth((m) => ({
+          night: summer(m) ? 12 : m === 4 || m === 10 ? 5 : -2,
+          day: summer(m) ? (m === 7 ? 28 : 22) : 8,
+          rh: 70,
+          lux: 12000,
+        })),
+      }),
     plant: "odontoglossum",
     context: bench,
     verdict: "good for part of the year",
@@ -275,7 +359,15 @@ const SCENARIOS: Scenario[] = [
   },
   {
     name: "summer-only bench: Phalaenopsis never suits it",
-    season: () => spotYear({ month: byMonth((m) => ({ night: summer(m) ? 12 : m === 4 || m === 10 ? 5 : -2, day: summer(m) ? 22 : 8, rh: 70, lux: 30000 })) }),
+    season: () =>
+      spotYear({
+        month: byMonth((m) => ({
+          night: summer(m) ? 12 : m === 4 || m === 10 ? 5 : -2,
+          day: summer(m) ? 22 : 8,
+          rh: 70,
+          lux: 30000,
+        })),
+      }),
     plant: "phalaenopsis",
     context: bench,
     verdict: "struggles here",
@@ -298,11 +390,22 @@ describe("spot scenarios, each with the verdict an experienced grower would give
 
 describe("seasonal use", () => {
   it("says when an outdoor bench suits a group and the night to bring it in before, in the grower's unit", () => {
-    const season = spotYear({ month: byMonth((m) => ({ night: summer(m) ? 12 : m === 4 || m === 10 ? 5 : -2, day: summer(m) ? 22 : 8, rh: 70, lux: 30000 })) });
+    const season = spotYear({
+      month: byMonth((m) => ({
+        night: summer(m) ? 12 : m === 4 || m === 10 ? 5 : -2,
+        day: summer(m) ? 22 : 8,
+        rh: 70,
+        lux: 30000,
+      })),
+    });
     const fit = fitPlant(plantByKey("cymbidium")!, season, undefined, bench);
     expect(fit.seasonal).toEqual({ months: [5, 6, 7, 8, 9], bringInBelowC: 4.5 });
-    expect(describeSeasonal(fit.seasonal!)).toBe("Good from May to September; bring it in before nights fall under 4.5 °C.");
-    expect(describeSeasonal(fit.seasonal!, { unit: "F" })).toBe("Good from May to September; bring it in before nights fall under 40.1 °F.");
+    expect(describeSeasonal(fit.seasonal!)).toBe(
+      "Good from May to September; bring it in before nights fall under 4.5 °C.",
+    );
+    expect(describeSeasonal(fit.seasonal!, { unit: "F" })).toBe(
+      "Good from May to September; bring it in before nights fall under 40.1 °F.",
+    );
     // Indoors the same temperatures are judged for the whole year: no seasonal use.
     expect(fitPlant(plantByKey("cymbidium")!, season, undefined, east).seasonal).toBeNull();
   });
@@ -310,18 +413,23 @@ describe("seasonal use", () => {
 
 describe("ranking by how far the spot misses", () => {
   it("on a frost bench the hardiest groups come first and warm growers last (common practice)", () => {
-    const frost = spotYear({ month: byMonth((m) => ({ night: summer(m) ? 10 : -4, day: summer(m) ? 20 : 5, rh: 75 })) });
+    const frost = spotYear({
+      month: byMonth((m) => ({ night: summer(m) ? 10 : -4, day: summer(m) ? 20 : 5, rh: 75 })),
+    });
     const ranked = rankPlantsForSpot(PLANT_LIBRARY, frost, undefined, bench);
     const keys = ranked.map((r) => r.plant.key);
     expect(keys[0]).toBe("pleione");
-    for (const warm of ["phalaenopsis", "vanda", "nepenthes-lowland"]) expect(keys.indexOf(warm)).toBeGreaterThan(keys.length - 10);
+    for (const warm of ["phalaenopsis", "vanda", "nepenthes-lowland"])
+      expect(keys.indexOf(warm)).toBeGreaterThan(keys.length - 10);
     // damage-hours rise down the list among those that struggle
     const struggling = ranked.filter((r) => r.fit.verdict === "struggles here").map((r) => r.fit.miss.damage);
     expect([...struggling].sort((a, b) => a - b)).toEqual(struggling);
   });
 
   it("an ordinary heated room doesn't rule out most groups", () => {
-    const room = spotYear({ month: byMonth((m) => ({ night: m >= 11 || m <= 3 ? 16 : 18, day: 22, rhDay: 45, rhNight: 60 })) });
+    const room = spotYear({
+      month: byMonth((m) => ({ night: m >= 11 || m <= 3 ? 16 : 18, day: 22, rhDay: 45, rhNight: 60 })),
+    });
     const ranked = rankPlantsForSpot(PLANT_LIBRARY, room, undefined, east);
     const struggles = ranked.filter((r) => r.fit.verdict === "struggles here").length;
     expect(struggles).toBeLessThanOrEqual(4);

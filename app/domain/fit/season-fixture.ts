@@ -16,7 +16,12 @@ export type MonthSpec = {
   dpMargin?: number; // °C all month
 };
 
-export type HourPatch = { month: number; dayOfMonth: number; hour: number; value: { t?: number; rh?: number; dp?: number } };
+export type HourPatch = {
+  month: number;
+  dayOfMonth: number;
+  hour: number;
+  value: { t?: number; rh?: number; dp?: number };
+};
 
 export type SpotYearSpec = {
   month?: (month: number) => MonthSpec;
@@ -62,8 +67,14 @@ export function spotYear(spec: SpotYearSpec = {}): SeasonProfile {
     const lux = m.lux === undefined ? undefined : up ? m.lux : 0;
     rollups.push({
       hour: d,
-      tN: 4, tMin: t, tMax: t, tSum: t * 4,
-      hN: 4, hMin: rh, hMax: rh, hSum: rh * 4,
+      tN: 4,
+      tMin: t,
+      tMax: t,
+      tSum: t * 4,
+      hN: 4,
+      hMin: rh,
+      hMax: rh,
+      hSum: rh * 4,
       dpMarginMin: patch.dp ?? m.dpMargin ?? 8,
       luxN: lux === undefined ? 0 : 4,
       luxSum: lux === undefined ? null : lux * 4,

@@ -37,7 +37,8 @@ export function groupFits(fits: FitLike[], top: number): FitGroup[] {
     groups.set(key, g);
   }
   return [...groups.values()].sort(
-    (a, b) => VERDICT_ORDER.indexOf(a.verdict as Verdict) - VERDICT_ORDER.indexOf(b.verdict as Verdict) || b.names.length - a.names.length,
+    (a, b) =>
+      VERDICT_ORDER.indexOf(a.verdict as Verdict) - VERDICT_ORDER.indexOf(b.verdict as Verdict) ||
+      b.names.length - a.names.length,
   );
 }
-

@@ -1,9 +1,17 @@
 // The fit's temperature checks: cold nights, warm nights (for cool growers) and hot days, each
 // against the group's comfort line and damage line, by nights or days, degree-hours, and whether
 // it is a brief snap or a season of weeks.
-import { cyclicOrder, linesOf, median, monthKeys, round1, unknown, type Episode, type FitCheck } from "~/domain/fit/facts";
+import {
+  cyclicOrder,
+  linesOf,
+  median,
+  monthKeys,
+  round1,
+  unknown,
+  type Episode,
+  type FitCheck,
+} from "~/domain/fit/facts";
 import type { NightSummary, SeasonProfile } from "~/domain/season/types";
-
 
 /** The most items (by day number) in any window of `width` days. */
 function densestWindow(dayNumbers: number[], width: number): number {
@@ -63,18 +71,45 @@ export const coldNights: FitCheck = (profile, season, t) => {
       level: "poor",
       months: monthKeys(damaged.map((n) => n.month)),
       miss,
-      facts: [{ kind: "cold-damage", damageC: damage, nights: damaged.length, worst: worstNights(damaged, damage), degreeHours: round1(damageDh) }],
+      facts: [
+        {
+          kind: "cold-damage",
+          damageC: damage,
+          nights: damaged.length,
+          worst: worstNights(damaged, damage),
+          degreeHours: round1(damageDh),
+        },
+      ],
     };
   }
-  if (cold.length === 0) return { rule: "cold-nights", level: "good", miss, facts: [{ kind: "cold-ok", comfortC: comfort, lowestC: round1(lowest) }] };
-  const isSeason = densestWindow(cold.map((n) => n.dayNumber), t.seasonWindowDays) >= t.seasonNights;
+  if (cold.length === 0)
+    return {
+      rule: "cold-nights",
+      level: "good",
+      miss,
+      facts: [{ kind: "cold-ok", comfortC: comfort, lowestC: round1(lowest) }],
+    };
+  const isSeason =
+    densestWindow(
+      cold.map((n) => n.dayNumber),
+      t.seasonWindowDays,
+    ) >= t.seasonNights;
   if (!isSeason) {
     return {
       rule: "cold-nights",
       level: "care",
       months: monthKeys(cold.map((n) => n.month)),
       miss,
-      facts: [{ kind: "cold-snap", comfortC: comfort, damageC: damage, nights: cold.length, worst: worstNights(cold, comfort), degreeHours: round1(comfortDh) }],
+      facts: [
+        {
+          kind: "cold-snap",
+          comfortC: comfort,
+          damageC: damage,
+          nights: cold.length,
+          worst: worstNights(cold, comfort),
+          degreeHours: round1(comfortDh),
+        },
+      ],
     };
   }
   // The season's months: those with a season's worth of cold nights (pro rata), else all cold months.
@@ -88,7 +123,17 @@ export const coldNights: FitCheck = (profile, season, t) => {
     level: typical < (comfort + damage) / 2 ? "poor" : "care",
     months: monthKeys(months),
     miss,
-    facts: [{ kind: "cold-season", comfortC: comfort, damageC: damage, nights: cold.length, months: cyclicOrder(months), typicalLowC: round1(typical), degreeHours: round1(comfortDh) }],
+    facts: [
+      {
+        kind: "cold-season",
+        comfortC: comfort,
+        damageC: damage,
+        nights: cold.length,
+        months: cyclicOrder(months),
+        typicalLowC: round1(typical),
+        degreeHours: round1(comfortDh),
+      },
+    ],
   };
 };
 
@@ -102,8 +147,17 @@ export const warmNights: FitCheck = (profile, season, t) => {
   if (season.nights.length === 0) return unknown("warm-nights");
   const warm = season.nights.filter((n) => n.low > maxNightC + t.sensorMarginC);
   const warmest = Math.max(...season.nights.map((n) => n.low));
-  if (warm.length === 0) return { rule: "warm-nights", level: "good", facts: [{ kind: "warm-nights-ok", maxNightC, warmestLowC: round1(warmest) }] };
-  const isSeason = densestWindow(warm.map((n) => n.dayNumber), t.seasonWindowDays) >= t.seasonNights;
+  if (warm.length === 0)
+    return {
+      rule: "warm-nights",
+      level: "good",
+      facts: [{ kind: "warm-nights-ok", maxNightC, warmestLowC: round1(warmest) }],
+    };
+  const isSeason =
+    densestWindow(
+      warm.map((n) => n.dayNumber),
+      t.seasonWindowDays,
+    ) >= t.seasonNights;
   const typical = median(warm.map((n) => n.low));
   const months = cyclicOrder(warm.map((n) => n.month));
   const comfortDh = warm.reduce((s, n) => s + Math.max(0, n.low - maxNightC) * Math.max(1, n.hoursObserved), 0);
@@ -112,7 +166,9 @@ export const warmNights: FitCheck = (profile, season, t) => {
     level: !isSeason ? "good" : typical >= maxNightC + 2 ? "poor" : "care",
     months: monthKeys(months),
     miss: { damage: 0, comfort: round1(comfortDh) },
-    facts: [{ kind: "warm-nights", maxNightC, nights: warm.length, months, typicalLowC: round1(typical), season: isSeason }],
+    facts: [
+      { kind: "warm-nights", maxNightC, nights: warm.length, months, typicalLowC: round1(typical), season: isSeason },
+    ],
   };
 };
 
@@ -131,7 +187,8 @@ export const hotDays: FitCheck = (profile, season, t) => {
       .sort((a, b) => b.high! - a.high! || a.dayNumber - b.dayNumber)
       .slice(0, 3)
       .map((d) => ({ date: d.key, valueC: round1(d.high!), hours: Math.max(1, hoursOver(d.temps, line)) }));
-  let comfortDh = 0, damageDh = 0;
+  let comfortDh = 0,
+    damageDh = 0;
   for (const d of hot) comfortDh += degreeHoursOver(d.temps, comfort, d.high!);
   for (const d of damaged) damageDh += degreeHoursOver(d.temps, damage, d.high!);
   const miss = { damage: round1(damageDh), comfort: round1(comfortDh) };
@@ -141,18 +198,46 @@ export const hotDays: FitCheck = (profile, season, t) => {
       level: "poor",
       months: monthKeys(damaged.map((d) => d.month)),
       miss,
-      facts: [{ kind: "heat-damage", damageC: damage, days: damaged.length, worst: episodes(damaged, damage), degreeHours: round1(damageDh) }],
+      facts: [
+        {
+          kind: "heat-damage",
+          damageC: damage,
+          days: damaged.length,
+          worst: episodes(damaged, damage),
+          degreeHours: round1(damageDh),
+        },
+      ],
     };
   }
-  if (hot.length === 0) return { rule: "hot-days", level: "good", miss, facts: [{ kind: "heat-ok", comfortC: comfort, highestC: round1(highest) }] };
-  const isSeason = densestWindow(hot.map((d) => d.dayNumber), t.seasonWindowDays) >= t.seasonNights;
+  if (hot.length === 0)
+    return {
+      rule: "hot-days",
+      level: "good",
+      miss,
+      facts: [{ kind: "heat-ok", comfortC: comfort, highestC: round1(highest) }],
+    };
+  const isSeason =
+    densestWindow(
+      hot.map((d) => d.dayNumber),
+      t.seasonWindowDays,
+    ) >= t.seasonNights;
   if (!isSeason) {
     return {
       rule: "hot-days",
       level: "care",
       months: monthKeys(hot.map((d) => d.month)),
       miss,
-      facts: [{ kind: "heat-snap", comfortC: comfort, damageC: damage, days: hot.length, worst: episodes(hot, comfort), degreeHours: round1(comfortDh), costsSpikes }],
+      facts: [
+        {
+          kind: "heat-snap",
+          comfortC: comfort,
+          damageC: damage,
+          days: hot.length,
+          worst: episodes(hot, comfort),
+          degreeHours: round1(comfortDh),
+          costsSpikes,
+        },
+      ],
     };
   }
   const typical = median(hot.map((d) => d.high!));
@@ -162,6 +247,17 @@ export const hotDays: FitCheck = (profile, season, t) => {
     level: typical > (comfort + damage) / 2 ? "poor" : "care",
     months: monthKeys(months),
     miss,
-    facts: [{ kind: "heat-season", comfortC: comfort, damageC: damage, days: hot.length, months, typicalHighC: round1(typical), degreeHours: round1(comfortDh), costsSpikes }],
+    facts: [
+      {
+        kind: "heat-season",
+        comfortC: comfort,
+        damageC: damage,
+        days: hot.length,
+        months,
+        typicalHighC: round1(typical),
+        degreeHours: round1(comfortDh),
+        costsSpikes,
+      },
+    ],
   };
 };

@@ -19,9 +19,21 @@ const porch = spotYear({ month: (m) => ({ night: NIGHT[m - 1], day: DAY[m - 1], 
 describe("fitPlant", () => {
   it("says a plant thrives when a full year passes every rule", () => {
     const fit = fitPlant(phal, room);
-    expect(fit).toMatchObject({ plantKey: "phalaenopsis", verdict: "thrives here", missingMonths: [], missingAdvice: null });
+    expect(fit).toMatchObject({
+      plantKey: "phalaenopsis",
+      verdict: "thrives here",
+      missingMonths: [],
+      missingAdvice: null,
+    });
     expect(fit.level).toBe("good");
-    expect(fit.reasons.map((r) => r.rule).sort()).toEqual(["cold-nights", "condensation", "flowering", "hot-days", "humidity", "light"]);
+    expect(fit.reasons.map((r) => r.rule).sort()).toEqual([
+      "cold-nights",
+      "condensation",
+      "flowering",
+      "hot-days",
+      "humidity",
+      "light",
+    ]);
   });
 
   it("never says thrives with light unknown (issue 15): it says what is known and what is not", () => {
@@ -75,7 +87,13 @@ describe("fitPlant", () => {
   });
 
   it("publishes its rule table in the order it applies", () => {
-    expect(VERDICT_RULES.map((r) => r.verdict)).toEqual(["struggles here", "good for part of the year", "not enough data yet", "possible with care", "thrives here"]);
+    expect(VERDICT_RULES.map((r) => r.verdict)).toEqual([
+      "struggles here",
+      "good for part of the year",
+      "not enough data yet",
+      "possible with care",
+      "thrives here",
+    ]);
     for (const r of VERDICT_RULES) expect(r.when.length).toBeGreaterThan(20);
   });
 });
@@ -105,7 +123,9 @@ describe("ranking", () => {
   it("among groups asking for care, puts what a humidity tray fixes before a window too dark to flower them", () => {
     // A north window with a dry winter: Phalaenopsis only needs a tray; Brassavola needs sun it won't get.
     const north = { latitude: 51.5, facing: "N" as const, indoor: true };
-    const season = spotYear({ month: (m) => ({ ...steadyRoom(m), night: 19, day: 24, ...(m <= 2 ? { rhDay: 40, rhNight: 60 } : {}) }) });
+    const season = spotYear({
+      month: (m) => ({ ...steadyRoom(m), night: 19, day: 24, ...(m <= 2 ? { rhDay: 40, rhNight: 60 } : {}) }),
+    });
     const keys = rankPlantsForSpot([plantByKey("brassavola")!, phal], season, undefined, north).map((r) => r.plant.key);
     expect(keys).toEqual(["phalaenopsis", "brassavola"]);
   });
@@ -126,7 +146,12 @@ describe("ranking", () => {
   it("prefers the spot whose cool autumn lets Cymbidium flower", () => {
     const ranked = rankSpotsForPlant(cymbidium, [
       { id: "heated", season: spotYear({ month: (m) => ({ ...steadyRoom(m), rh: 55, lux: 25000 }) }) },
-      { id: "cool-landing", season: spotYear({ month: (m) => ({ ...steadyRoom(m), night: m >= 9 && m <= 11 ? 11 : 16, rh: 55, lux: 25000 }) }) },
+      {
+        id: "cool-landing",
+        season: spotYear({
+          month: (m) => ({ ...steadyRoom(m), night: m >= 9 && m <= 11 ? 11 : 16, rh: 55, lux: 25000 }),
+        }),
+      },
     ]);
     expect(ranked.map((r) => [r.spot.id, r.fit.verdict])).toEqual([
       ["cool-landing", "thrives here"],

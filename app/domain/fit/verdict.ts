@@ -1,4 +1,10 @@
-import { DEFAULT_FIT_THRESHOLDS, linesOf, type FitThresholds, type CheckLevel, type CheckResult } from "~/domain/fit/facts";
+import {
+  DEFAULT_FIT_THRESHOLDS,
+  linesOf,
+  type FitThresholds,
+  type CheckLevel,
+  type CheckResult,
+} from "~/domain/fit/facts";
 import { judgeAll } from "~/domain/fit/checks";
 import type { PlantProfile } from "~/domain/plants/library";
 import { MONTH_NAMES } from "~/domain/season/profile";
@@ -8,7 +14,8 @@ import { windowLight, type SpotWindow } from "~/domain/fit/window-light";
 import { coldGlass, type GlassContext } from "~/domain/fit/cold-glass";
 import { basisOf, withProjection, type Confidence, type FitBasis, type FitProjection } from "~/domain/fit/projected";
 
-export type Verdict = "thrives here" | "possible with care" | "good for part of the year" | "struggles here" | "not enough data yet";
+export type Verdict =
+  "thrives here" | "possible with care" | "good for part of the year" | "struggles here" | "not enough data yet";
 
 /** The stable code of a verdict, for the API: good, care, poor, unknown. */
 export type FitLevel = "good" | "care" | "poor" | "unknown";
@@ -67,7 +74,13 @@ export const VERDICT_RULES: { verdict: Verdict; when: string }[] = [
 ];
 
 /** Best first; used to rank. */
-export const VERDICT_ORDER: Verdict[] = ["thrives here", "possible with care", "good for part of the year", "not enough data yet", "struggles here"];
+export const VERDICT_ORDER: Verdict[] = [
+  "thrives here",
+  "possible with care",
+  "good for part of the year",
+  "not enough data yet",
+  "struggles here",
+];
 
 const LEVEL_ORDER: Record<CheckLevel, number> = { poor: 0, care: 1, unknown: 2, good: 3 };
 /** Within a level, what a grower needs to hear first: what harms, then what stops flowering, then what a tray or a blind fixes. */
@@ -95,7 +108,11 @@ function missingMonthsOf(season: SeasonProfile): number[] {
  * bring-in line, at most five days over the comfortable day and none past the heat damage line, at
  * most five warm nights for a cool grower.
  */
-export function seasonalUse(profile: PlantProfile, season: SeasonProfile, t: FitThresholds = DEFAULT_FIT_THRESHOLDS): SeasonalUse | null {
+export function seasonalUse(
+  profile: PlantProfile,
+  season: SeasonProfile,
+  t: FitThresholds = DEFAULT_FIT_THRESHOLDS,
+): SeasonalUse | null {
   const l = linesOf(profile);
   // A plant summered outdoors rides out a few nights under its comfort line (REFERENCES.md: cool
   // growers stay out through nights a little under 10 °C); it comes in before nights reach halfway
@@ -107,7 +124,9 @@ export function seasonalUse(profile: PlantProfile, season: SeasonProfile, t: Fit
     const nights = season.nights.filter((n) => n.month === m);
     const days = season.days.filter((d) => d.month === m && d.high !== null);
     const cold = nights.filter((n) => n.low < l.comfortNightC - t.sensorMarginC).length;
-    const damaged = nights.some((n) => n.low < bringIn) || days.some((d) => d.high! > l.damageDayC || (d.low ?? Infinity) < l.damageNightC);
+    const damaged =
+      nights.some((n) => n.low < bringIn) ||
+      days.some((d) => d.high! > l.damageDayC || (d.low ?? Infinity) < l.damageNightC);
     const hot = days.filter((d) => d.high! > l.comfortDayC + t.sensorMarginC).length;
     const maxNight = l.maxNightC;
     const warm = maxNight === undefined ? 0 : nights.filter((n) => n.low > maxNight + t.sensorMarginC).length;
@@ -128,8 +147,14 @@ export function seasonalUse(profile: PlantProfile, season: SeasonProfile, t: Fit
 /** `projection` fills the months of the period not measured yet (fit/projected.ts). */
 // Measured months always win: a projected month the season has measured is never judged. Kept
 // per season and projection, so a fit table's plants share one filtered projection (and its cache).
-const unmeasuredCache = new WeakMap<SeasonProfile, WeakMap<FitProjection, { projection: FitProjection; basis: FitBasis | null }>>();
-function unmeasured(season: SeasonProfile, projection: FitProjection): { projection: FitProjection; basis: FitBasis | null } {
+const unmeasuredCache = new WeakMap<
+  SeasonProfile,
+  WeakMap<FitProjection, { projection: FitProjection; basis: FitBasis | null }>
+>();
+function unmeasured(
+  season: SeasonProfile,
+  projection: FitProjection,
+): { projection: FitProjection; basis: FitBasis | null } {
   let bySeason = unmeasuredCache.get(season);
   if (!bySeason) unmeasuredCache.set(season, (bySeason = new WeakMap()));
   let hit = bySeason.get(projection);
@@ -169,7 +194,8 @@ export function fitPlant(
   const unfilled = missing.filter((m) => !projectedMonths.has(m));
   const levels = new Set(reasons.map((r) => r.level));
   // Seasonal use is for spots a plant can be carried out to and back in: outdoors.
-  const seasonal = levels.has("poor") && ctx.window && !ctx.window.indoor ? seasonalUse(profile, season, thresholds) : null;
+  const seasonal =
+    levels.has("poor") && ctx.window && !ctx.window.indoor ? seasonalUse(profile, season, thresholds) : null;
   const verdict: Verdict = levels.has("poor")
     ? seasonal
       ? "good for part of the year"
@@ -186,7 +212,8 @@ export function fitPlant(
   }
   const missingMonths = missing.map((m) => MONTH_NAMES[m - 1]);
   // A verdict ruled by a measured poor rests on the measurement; any other rests on every month judged.
-  const confidence: Confidence = !basis || (levels.has("poor") && verdict === "struggles here") ? "measured" : basis.confidence;
+  const confidence: Confidence =
+    !basis || (levels.has("poor") && verdict === "struggles here") ? "measured" : basis.confidence;
   return {
     plantKey: profile.key,
     verdict,
@@ -217,10 +244,17 @@ type Rank = { verdict: number; damage: number; comfort: number; tail: number };
 const CARE_WEIGHT: Record<string, number> = { humidity: 1, condensation: 1 };
 function fitRank(f: PlantFit): Rank {
   let care = 0;
-  for (const r of f.reasons) if (r.level === "care" || r.level === "unknown") care += r.level === "unknown" ? 1 : (CARE_WEIGHT[r.rule] ?? 2);
-  return { verdict: VERDICT_ORDER.indexOf(f.verdict), damage: f.miss.damage, comfort: f.miss.comfort, tail: care * 16 + f.missingMonths.length };
+  for (const r of f.reasons)
+    if (r.level === "care" || r.level === "unknown") care += r.level === "unknown" ? 1 : (CARE_WEIGHT[r.rule] ?? 2);
+  return {
+    verdict: VERDICT_ORDER.indexOf(f.verdict),
+    damage: f.miss.damage,
+    comfort: f.miss.comfort,
+    tail: care * 16 + f.missingMonths.length,
+  };
 }
-const compareRanks = (a: Rank, b: Rank) => a.verdict - b.verdict || a.damage - b.damage || a.comfort - b.comfort || a.tail - b.tail;
+const compareRanks = (a: Rank, b: Rank) =>
+  a.verdict - b.verdict || a.damage - b.damage || a.comfort - b.comfort || a.tail - b.tail;
 const byName = new Intl.Collator("en").compare;
 
 /** Plants for one spot, best fit first; ties by name. */
@@ -240,14 +274,16 @@ export function rankPlantsForSpot(
 }
 
 /** Spots for one plant, best fit first; ties keep the given order. */
-export function rankSpotsForPlant<S extends { season: SeasonProfile; window?: SpotWindow; glass?: GlassContext; projection?: FitProjection }>(
-  plant: PlantProfile,
-  spots: S[],
-  thresholds: FitThresholds = DEFAULT_FIT_THRESHOLDS,
-): { spot: S; fit: PlantFit }[] {
+export function rankSpotsForPlant<
+  S extends { season: SeasonProfile; window?: SpotWindow; glass?: GlassContext; projection?: FitProjection },
+>(plant: PlantProfile, spots: S[], thresholds: FitThresholds = DEFAULT_FIT_THRESHOLDS): { spot: S; fit: PlantFit }[] {
   return spots
     .map((spot) => {
-      const fit = fitPlant(plant, spot.season, thresholds, { window: spot.window, glass: spot.glass, projection: spot.projection });
+      const fit = fitPlant(plant, spot.season, thresholds, {
+        window: spot.window,
+        glass: spot.glass,
+        projection: spot.projection,
+      });
       return { spot, fit, rank: fitRank(fit) };
     })
     .sort((a, b) => compareRanks(a.rank, b.rank))

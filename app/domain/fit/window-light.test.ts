@@ -13,10 +13,16 @@ const w = (facing: "N" | "NE" | "E" | "S" | "SW" | "W" | "none", indoor = true) 
 
 describe("windowLight", () => {
   it("asks for care for a high-light group behind a north or north-east window at 51.5° N", () => {
-    expect(windowLight(cattleya, w("N"))).toMatchObject({ rule: "light", level: "care", facts: [{ kind: "light-window", verdict: "shade" }] });
+    expect(windowLight(cattleya, w("N"))).toMatchObject({
+      rule: "light",
+      level: "care",
+      facts: [{ kind: "light-window", verdict: "shade" }],
+    });
     const ne = windowLight(vanda, w("NE"));
     expect(ne).toMatchObject({ level: "care", facts: [{ verdict: "shade" }] });
-    expect(describeReason(ne, undefined, "Vanda")).toMatch(/north-east-facing window gets a few hours of strong sun in (no month|only \d+ months?)/);
+    expect(describeReason(ne, undefined, "Vanda")).toMatch(
+      /north-east-facing window gets a few hours of strong sun in (no month|only \d+ months?)/,
+    );
   });
 
   it("east and west windows don't give Vanda enough strong sun either (AOS: strong light)", () => {
@@ -29,18 +35,25 @@ describe("windowLight", () => {
   });
 
   it("warns of scorch for a low-light group behind a south, south-west or west window, not an east one", () => {
-    for (const f of ["S", "SW", "W"] as const) expect(windowLight(phal, w(f)), f).toMatchObject({ level: "care", facts: [{ verdict: "scorch" }] });
+    for (const f of ["S", "SW", "W"] as const)
+      expect(windowLight(phal, w(f)), f).toMatchObject({ level: "care", facts: [{ verdict: "scorch" }] });
     expect(windowLight(phal, w("E"))).toMatchObject({ level: "good", facts: [{ verdict: "fits" }] });
     expect(windowLight(phal, w("N")).level).toBe("good");
   });
 
   it("in the southern hemisphere the hot window faces north (Sydney, 33.9° S)", () => {
-    expect(windowLight(phal, { latitude: -33.9, facing: "N", indoor: true })).toMatchObject({ level: "care", facts: [{ verdict: "scorch" }] });
+    expect(windowLight(phal, { latitude: -33.9, facing: "N", indoor: true })).toMatchObject({
+      level: "care",
+      facts: [{ verdict: "scorch" }],
+    });
     expect(windowLight(phal, { latitude: -33.9, facing: "S", indoor: true }).level).toBe("good");
   });
 
   it("says light is unknown with no facing set, and outdoors", () => {
-    expect(windowLight(cattleya, w("none"))).toMatchObject({ level: "unknown", facts: [{ kind: "light-unknown", reason: "no-sensor" }] });
+    expect(windowLight(cattleya, w("none"))).toMatchObject({
+      level: "unknown",
+      facts: [{ kind: "light-unknown", reason: "no-sensor" }],
+    });
     expect(describeReason(windowLight(cattleya, w("none")))).toContain("no window facing set");
     expect(windowLight(cattleya, w("none", false))).toMatchObject({ level: "unknown", facts: [{ reason: "outdoor" }] });
   });
@@ -49,9 +62,16 @@ describe("windowLight", () => {
 describe("fitPlant with a window", () => {
   it("judges light from the window only when there is no light sensor", () => {
     const room = spotYear(); // no light readings
-    expect(fitPlant(cattleya, room, undefined, w("N")).reasons.find((r) => r.rule === "light")).toMatchObject({ level: "care" });
-    expect(fitPlant(cattleya, room).reasons.find((r) => r.rule === "light")).toMatchObject({ level: "unknown", noData: true });
+    expect(fitPlant(cattleya, room, undefined, w("N")).reasons.find((r) => r.rule === "light")).toMatchObject({
+      level: "care",
+    });
+    expect(fitPlant(cattleya, room).reasons.find((r) => r.rule === "light")).toMatchObject({
+      level: "unknown",
+      noData: true,
+    });
     const lit = spotYear({ month: () => ({ night: 18, day: 24, lux: 20000 }) });
-    expect(fitPlant(cattleya, lit, undefined, w("N")).reasons.find((r) => r.rule === "light")!.facts[0].kind).toBe("light-months");
+    expect(fitPlant(cattleya, lit, undefined, w("N")).reasons.find((r) => r.rule === "light")!.facts[0].kind).toBe(
+      "light-months",
+    );
   });
 });

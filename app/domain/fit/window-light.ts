@@ -28,20 +28,47 @@ const HOT_FACINGS = new Set(["SE", "S", "SW", "W"]);
 export function windowLight(profile: PlantProfile, window: SpotWindow): CheckResult {
   const need = profile.light;
   if (!window.indoor) {
-    return { rule: "light", level: "unknown", noData: true, facts: [{ kind: "light-unknown", need, minDli: profile.dliMin, maxDli: profile.dliMax, reason: "outdoor" }] };
+    return {
+      rule: "light",
+      level: "unknown",
+      noData: true,
+      facts: [{ kind: "light-unknown", need, minDli: profile.dliMin, maxDli: profile.dliMax, reason: "outdoor" }],
+    };
   }
   if (window.facing === "none") {
-    return { rule: "light", level: "unknown", noData: true, facts: [{ kind: "light-unknown", need, minDli: profile.dliMin, maxDli: profile.dliMax, reason: "no-sensor" }] };
+    return {
+      rule: "light",
+      level: "unknown",
+      noData: true,
+      facts: [{ kind: "light-unknown", need, minDli: profile.dliMin, maxDli: profile.dliMax, reason: "no-sensor" }],
+    };
   }
   const est = directSunMonths(window.latitude, window.facing).months ?? [];
   const strong = est.filter((m) => m.faceOnHours >= STRONG_SUN_HOURS);
-  const hot = HOT_FACINGS.has(window.facing) ? strong.filter((m) => m.noonElevation >= SCORCH_MIN_ELEVATION).map((m) => m.month) : [];
+  const hot = HOT_FACINGS.has(window.facing)
+    ? strong.filter((m) => m.noonElevation >= SCORCH_MIN_ELEVATION).map((m) => m.month)
+    : [];
   // In the southern hemisphere the sun stands in the north: swap the hot facings.
-  const hotMonths = window.latitude < 0 ? (["NE", "N", "NW", "W"].includes(window.facing) ? strong.filter((m) => m.noonElevation >= SCORCH_MIN_ELEVATION).map((m) => m.month) : []) : hot;
-  const base = { facing: window.facing, sunnyMonths: strong.length, strongSunMonths: strong.map((m) => m.month), need } as const;
+  const hotMonths =
+    window.latitude < 0
+      ? ["NE", "N", "NW", "W"].includes(window.facing)
+        ? strong.filter((m) => m.noonElevation >= SCORCH_MIN_ELEVATION).map((m) => m.month)
+        : []
+      : hot;
+  const base = {
+    facing: window.facing,
+    sunnyMonths: strong.length,
+    strongSunMonths: strong.map((m) => m.month),
+    need,
+  } as const;
   if (need === "low") {
     if (hotMonths.length >= SCORCH_MIN_MONTHS) {
-      return { rule: "light", level: "care", months: hotMonths.map((m) => String(m).padStart(2, "0")), facts: [{ kind: "light-window", ...base, strongSunMonths: hotMonths, verdict: "scorch" }] };
+      return {
+        rule: "light",
+        level: "care",
+        months: hotMonths.map((m) => String(m).padStart(2, "0")),
+        facts: [{ kind: "light-window", ...base, strongSunMonths: hotMonths, verdict: "scorch" }],
+      };
     }
     return { rule: "light", level: "good", facts: [{ kind: "light-window", ...base, verdict: "fits" }] };
   }

@@ -31,7 +31,12 @@ export type WishPlan = {
   everywhereStruggles?: boolean;
 };
 
-export type SpotRoom = WishSpot & { mustHavePots: number; otherPots: number; free: number | null; filledByMustHaves: boolean };
+export type SpotRoom = WishSpot & {
+  mustHavePots: number;
+  otherPots: number;
+  free: number | null;
+  filledByMustHaves: boolean;
+};
 
 /**
  * A plant can stand in a spot when the verdict is not "struggles here" nor "good for part of the
@@ -51,7 +56,9 @@ export function planWishlist(spots: WishSpot[], wishes: Wish[]): { wishes: WishP
   const plans: WishPlan[] = new Array(wishes.length);
   for (const i of order) {
     const w = wishes[i];
-    const fits = [...w.fits].filter((f) => room.has(f.spotId)).sort((a, b) => VERDICT_ORDER.indexOf(a.verdict) - VERDICT_ORDER.indexOf(b.verdict));
+    const fits = [...w.fits]
+      .filter((f) => room.has(f.spotId))
+      .sort((a, b) => VERDICT_ORDER.indexOf(a.verdict) - VERDICT_ORDER.indexOf(b.verdict));
     const best = fits[0] ?? null;
     if (!best || !usable(best.verdict)) {
       plans[i] = {
@@ -91,7 +98,11 @@ export function planWishlist(spots: WishSpot[], wishes: Wish[]): { wishes: WishP
     wishes: plans,
     spots: [...room.values()].map((s) => {
       const free = s.capacity === 0 ? null : s.capacity - s.standingPots - s.mustHavePots - s.otherPots;
-      return { ...s, free, filledByMustHaves: s.capacity > 0 && s.mustHavePots > 0 && s.capacity - s.standingPots - s.mustHavePots <= 0 };
+      return {
+        ...s,
+        free,
+        filledByMustHaves: s.capacity > 0 && s.mustHavePots > 0 && s.capacity - s.standingPots - s.mustHavePots <= 0,
+      };
     }),
   };
 }

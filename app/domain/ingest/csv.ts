@@ -25,7 +25,9 @@ export function guessDelimiter(firstLine: string): string {
   return counts[0][1] > 1 ? counts[0][0] : ",";
 }
 
-export function guessMapping(headers: string[]): Pick<CsvMapping, "timestamp" | "temperature" | "humidity" | "lux" | "unit"> {
+export function guessMapping(
+  headers: string[],
+): Pick<CsvMapping, "timestamp" | "temperature" | "humidity" | "lux" | "unit"> {
   const find = (re: RegExp) => {
     const i = headers.findIndex((h) => re.test(h));
     return i >= 0 ? i : null;
@@ -40,7 +42,8 @@ export function guessMapping(headers: string[]): Pick<CsvMapping, "timestamp" | 
   };
 }
 
-const WALL = /^(\d{1,4})[-/.](\d{1,2})[-/.](\d{1,4})(?:[T ,]+(\d{1,2}):(\d{2})(?::(\d{2})(?:\.\d+)?)?\s*([ap]\.?m\.?)?)?$/i;
+const WALL =
+  /^(\d{1,4})[-/.](\d{1,2})[-/.](\d{1,4})(?:[T ,]+(\d{1,2}):(\d{2})(?::(\d{2})(?:\.\d+)?)?\s*([ap]\.?m\.?)?)?$/i;
 const ZONED = /(Z|[+-]\d{2}:?\d{2})$/i;
 
 /**
@@ -103,7 +106,13 @@ export function rowToReading(
   const pick = (i: number | null) => (i == null ? null : cellNumber(row[i]));
   return validateReading(
     sensorId,
-    { time: at.getTime(), temperature: pick(mapping.temperature) as never, humidity: pick(mapping.humidity) as never, lux: pick(mapping.lux) as never, unit: mapping.unit },
+    {
+      time: at.getTime(),
+      temperature: pick(mapping.temperature) as never,
+      humidity: pick(mapping.humidity) as never,
+      lux: pick(mapping.lux) as never,
+      unit: mapping.unit,
+    },
     opts,
   );
 }

@@ -3,7 +3,17 @@
 // throws. Property-based with fast-check, plus hand-picked nasties.
 import fc from "fast-check";
 import { describe, expect, it } from "vitest";
-import { CHANNEL_TOPICS, decodeMessage, LIMITS, MAX_FUTURE_MS, MAX_PAST_MS, implausibleJump, parseInstant, validateReading, type ChannelTopic } from "~/domain/ingest/payload";
+import {
+  CHANNEL_TOPICS,
+  decodeMessage,
+  LIMITS,
+  MAX_FUTURE_MS,
+  MAX_PAST_MS,
+  implausibleJump,
+  parseInstant,
+  validateReading,
+  type ChannelTopic,
+} from "~/domain/ingest/payload";
 
 const NOW = new Date("2026-06-15T12:00:00Z");
 const CHANNELS: (ChannelTopic | "reading")[] = ["reading", ...CHANNEL_TOPICS];
@@ -53,10 +63,19 @@ const timeArb = fc.oneof(
   fc.integer({ min: -1e15, max: 1e15 }),
   fc.double(),
   fc.string({ maxLength: 45 }),
-  fc.date({ min: new Date("2023-01-01"), max: new Date("2026-06-15T12:04:00Z"), noInvalidDate: true }).map((d) => Math.floor(d.getTime() / 1000)),
+  fc
+    .date({ min: new Date("2023-01-01"), max: new Date("2026-06-15T12:04:00Z"), noInvalidDate: true })
+    .map((d) => Math.floor(d.getTime() / 1000)),
 );
 const payloadArb = fc.record(
-  { time: timeArb, temperature: field, humidity: field, lux: field, battery: field, unit: fc.constantFrom("C", "F", "K", "f", 1) },
+  {
+    time: timeArb,
+    temperature: field,
+    humidity: field,
+    lux: field,
+    battery: field,
+    unit: fc.constantFrom("C", "F", "K", "f", 1),
+  },
   { requiredKeys: [] },
 );
 
@@ -72,9 +91,15 @@ describe("MQTT payloads, property-based", () => {
 
   it("random JSON values and strings on the reading topic", () => {
     fc.assert(
-      fc.property(fc.oneof(fc.jsonValue().map((v) => JSON.stringify(v) ?? "null"), fc.string({ unit: "binary" })), (text) => {
-        ingest("reading", utf8(text));
-      }),
+      fc.property(
+        fc.oneof(
+          fc.jsonValue().map((v) => JSON.stringify(v) ?? "null"),
+          fc.string({ unit: "binary" }),
+        ),
+        (text) => {
+          ingest("reading", utf8(text));
+        },
+      ),
       { numRuns: 2000 },
     );
   });
@@ -94,17 +119,26 @@ describe("MQTT payloads, property-based", () => {
 
   it("plain numbers on the channel topics: a finite number in range, or a reason", () => {
     fc.assert(
-      fc.property(fc.constantFrom(...CHANNEL_TOPICS), fc.oneof(fc.double().map(String), fc.string({ maxLength: 30 })), (channel, text) => {
-        const r = ingest(channel, utf8(text));
-        if (r.ok && "reading" in r) expect(r.reading[channel]).toBeCloseTo(Number(text.trim()), 6);
-      }),
+      fc.property(
+        fc.constantFrom(...CHANNEL_TOPICS),
+        fc.oneof(fc.double().map(String), fc.string({ maxLength: 30 })),
+        (channel, text) => {
+          const r = ingest(channel, utf8(text));
+          if (r.ok && "reading" in r) expect(r.reading[channel]).toBeCloseTo(Number(text.trim()), 6);
+        },
+      ),
       { numRuns: 2000 },
     );
   });
 });
 
 describe("MQTT payloads, hand-picked nasties", () => {
-  const refused = (channel: ChannelTopic | "reading", input: string | Uint8Array, reason: RegExp, kind: keyof typeof LIMITS = "indoor") => {
+  const refused = (
+    channel: ChannelTopic | "reading",
+    input: string | Uint8Array,
+    reason: RegExp,
+    kind: keyof typeof LIMITS = "indoor",
+  ) => {
     const r = ingest(channel, typeof input === "string" ? utf8(input) : input, kind);
     expect(r.ok).toBe(false);
     if (!r.ok) expect(r.reason).toMatch(reason);
@@ -154,13 +188,37 @@ describe("MQTT payloads, hand-picked nasties", () => {
   it("dates in odd formats", () => {
     const at = (time: unknown) => ingest("reading", utf8(JSON.stringify({ time, temperature: 20 })));
     // Accepted: ISO 8601 instants with a zone (ISO 8601-1:2019 §4.3), epoch seconds and milliseconds.
-    for (const ok of ["2026-06-15T11:00:00Z", "2026-06-15T12:00:00+01:00", "2026-06-15 11:00:00.123456789Z", "2026-06-15T11:00+0000", 1781521200, 1781521200000, "1781521200"]) {
+    for (const ok of [
+      "2026-06-15T11:00:00Z",
+      "2026-06-15T12:00:00+01:00",
+      "2026-06-15 11:00:00.123456789Z",
+      "2026-06-15T11:00+0000",
+      1781521200,
+      1781521200000,
+      "1781521200",
+    ]) {
       const r = at(ok);
       expect(r.ok, String(ok)).toBe(true);
     }
     // Refused with a reason: no zone, impossible calendar dates, other calendars' notations, far ends.
-    for (const bad of ["2026-06-15T11:00:00", "15/06/2026 11:00", "June 15, 2026 11:00 UTC", "2026-13-01T00:00Z", "2026-02-30T00:00:00Z",
-      "2026-04-31T00:00:00Z", "2025-02-29T12:00:00Z", "2026-06-15T11:60:00Z", "2026-06-15T11:00:00+25:00", "+002026-06-15T11:00Z", "Mon, 15 Jun 2026 11:00:00 GMT", "", "  ", -1, 1e20, 0]) {
+    for (const bad of [
+      "2026-06-15T11:00:00",
+      "15/06/2026 11:00",
+      "June 15, 2026 11:00 UTC",
+      "2026-13-01T00:00Z",
+      "2026-02-30T00:00:00Z",
+      "2026-04-31T00:00:00Z",
+      "2025-02-29T12:00:00Z",
+      "2026-06-15T11:60:00Z",
+      "2026-06-15T11:00:00+25:00",
+      "+002026-06-15T11:00Z",
+      "Mon, 15 Jun 2026 11:00:00 GMT",
+      "",
+      "  ",
+      -1,
+      1e20,
+      0,
+    ]) {
       const r = at(bad);
       expect(r.ok, JSON.stringify(bad)).toBe(false);
       if (!r.ok) expect(r.reason).toMatch(/time|payload/);
@@ -189,7 +247,12 @@ describe("values PostgreSQL's real cannot hold", () => {
     const plain = ingest("temperature", utf8("5e-324"));
     expect(plain.ok).toBe(false);
     // Zero and a tiny but normal value stay readings (the latter rounded to the sensor's resolution).
-    for (const [t, stored] of [[0, 0], [-0, 0], [1e-7, 0], [0.0625, 0.0625]]) {
+    for (const [t, stored] of [
+      [0, 0],
+      [-0, 0],
+      [1e-7, 0],
+      [0.0625, 0.0625],
+    ]) {
       const r = ingest("reading", utf8(JSON.stringify({ temperature: t })));
       expect(r.ok && "reading" in r ? r.reading.temperature : r).toBe(stored);
     }
@@ -207,14 +270,18 @@ describe("jumps no sensor makes", () => {
     expect(r.ok).toBe(false);
     if (!r.ok) expect(r.reason).toMatch(/^temperature: 18 → 64\.4 °C in 60 s is a jump no sensor makes .*"unit":"F"/);
     // The same value with its unit is 18 °C and fine.
-    expect(check({ ms: at(0).getTime(), t: 18 }, { time: at(60).toISOString(), temperature: 64.4, unit: "F" }).ok).toBe(true);
+    expect(check({ ms: at(0).getTime(), t: 18 }, { time: at(60).toISOString(), temperature: 64.4, unit: "F" }).ok).toBe(
+      true,
+    );
   });
 
   it("accepts real swings, a large step after a gap of more than five minutes, and a first reading", () => {
     // A sun patch or a heater: a few °C a minute (common practice), well inside 20 °C + 5 °C/min.
     expect(check({ ms: at(0).getTime(), t: 18 }, { time: at(60).toISOString(), temperature: 26 }).ok).toBe(true);
     expect(check({ ms: at(0).getTime(), t: 24.9 }, { time: at(1).toISOString(), temperature: 18 }).ok).toBe(true);
-    expect(check({ ms: at(0).getTime() - 6 * 60_000, t: 18 }, { time: at(0).toISOString(), temperature: 64.4 }).ok).toBe(true);
+    expect(
+      check({ ms: at(0).getTime() - 6 * 60_000, t: 18 }, { time: at(0).toISOString(), temperature: 64.4 }).ok,
+    ).toBe(true);
     expect(check(undefined, { time: at(0).toISOString(), temperature: 64.4 }).ok).toBe(true);
     // A reading earlier than the previous one is compared the same way.
     expect(check({ ms: at(60).getTime(), t: 64.4 }, { time: at(0).toISOString(), temperature: 18 }).ok).toBe(false);

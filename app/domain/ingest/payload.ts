@@ -69,9 +69,22 @@ export type SpotKindForLimits = keyof typeof LIMITS;
 
 const finite = z.number().refine(Number.isFinite, "not a finite number");
 const num = z
-  .union([finite, z.string().trim().regex(/^-?\d+(\.\d+)?$/).transform(Number)], { error: "not a number" })
+  .union(
+    [
+      finite,
+      z
+        .string()
+        .trim()
+        .regex(/^-?\d+(\.\d+)?$/)
+        .transform(Number),
+    ],
+    { error: "not a number" },
+  )
   .refine(Number.isFinite, "not a finite number")
-  .refine((n) => n === 0 || Math.abs(n) >= FLOAT32_MIN_NORMAL, "a subnormal number (raw bits read as a float?), not a measurement");
+  .refine(
+    (n) => n === 0 || Math.abs(n) >= FLOAT32_MIN_NORMAL,
+    "a subnormal number (raw bits read as a float?), not a measurement",
+  );
 
 const timeField = z.union([
   z.number().refine(Number.isFinite, "not a finite number"),
@@ -156,9 +169,11 @@ export function validateReading(
     return { ok: false, reason: `humidity: ${round1(humidity)} % is outside 0–100 %` };
   }
   const lux = p.lux ?? null;
-  if (lux != null && (lux < 0 || lux > 200_000)) return { ok: false, reason: `lux: ${round1(lux)} is outside 0–200,000` };
+  if (lux != null && (lux < 0 || lux > 200_000))
+    return { ok: false, reason: `lux: ${round1(lux)} is outside 0–200,000` };
   const battery = p.battery ?? null;
-  if (battery != null && (battery < 0 || battery > 100)) return { ok: false, reason: `battery: ${round1(battery)} is outside 0–100 %` };
+  if (battery != null && (battery < 0 || battery > 100))
+    return { ok: false, reason: `battery: ${round1(battery)} is outside 0–100 %` };
   return {
     ok: true,
     reading: {
@@ -205,12 +220,16 @@ export function decodeMessage(
   if (bytes.length > MAX_PAYLOAD_BYTES) return { ok: false, reason: `payload over ${MAX_PAYLOAD_BYTES} bytes` };
   let text: string;
   try {
-    text = utf8.decode(bytes).replace(/^\uFEFF/, "").trim();
+    text = utf8
+      .decode(bytes)
+      .replace(/^\uFEFF/, "")
+      .trim();
   } catch {
     return { ok: false, reason: "payload is not UTF-8 text" };
   }
   if (channel !== "reading") {
-    if (!/^-?\d+(\.\d+)?([eE][-+]?\d+)?$/.test(text)) return { ok: false, reason: `${channel}: plain payload is not a number` };
+    if (!/^-?\d+(\.\d+)?([eE][-+]?\d+)?$/.test(text))
+      return { ok: false, reason: `${channel}: plain payload is not a number` };
     return { ok: true, payload: { [channel]: Number(text) } };
   }
   let value: unknown;

@@ -16,7 +16,10 @@ const path = z
   .string()
   .trim()
   .max(100)
-  .regex(/^$|^[A-Za-z0-9_@$\- ]+(\.[A-Za-z0-9_@$\- ]+){0,15}$/, "Write a path as names joined by dots, like env.temp or values.0")
+  .regex(
+    /^$|^[A-Za-z0-9_@$\- ]+(\.[A-Za-z0-9_@$\- ]+){0,15}$/,
+    "Write a path as names joined by dots, like env.temp or values.0",
+  )
   .optional()
   .transform((s) => (s ? s : undefined));
 
@@ -40,7 +43,10 @@ export const mappingSchema = z
     return out;
   })
   .refine((m) => m.preset !== "esphome" || m.channel, { message: "Choose what the number measures", path: ["channel"] })
-  .refine((m) => m.preset !== "custom" || m.channel || BRIDGE_CHANNELS.some((c) => m.paths?.[c]), { message: "Give the path of at least one value, or what a plain number measures", path: ["paths"] });
+  .refine((m) => m.preset !== "custom" || m.channel || BRIDGE_CHANNELS.some((c) => m.paths?.[c]), {
+    message: "Give the path of at least one value, or what a plain number measures",
+    path: ["paths"],
+  });
 
 /** mqtt://host[:port] or mqtts://host[:port]; nothing else (no paths, no credentials in the address). */
 export const brokerUrlSchema = z
@@ -61,7 +67,10 @@ export const brokerUrlSchema = z
       return z.NEVER;
     }
     if (!u.hostname || u.username || u.password || (u.pathname && u.pathname !== "/") || u.search) {
-      ctx.addIssue({ code: "custom", message: "Only a host and a port: the user name and password have their own fields" });
+      ctx.addIssue({
+        code: "custom",
+        message: "Only a host and a port: the user name and password have their own fields",
+      });
       return z.NEVER;
     }
     return `${u.protocol}//${u.host}`;
@@ -69,9 +78,18 @@ export const brokerUrlSchema = z
 
 export const bridgeSettingsSchema = z.object({
   url: brokerUrlSchema,
-  username: z.string().trim().max(200).optional().transform((s) => s || null),
+  username: z
+    .string()
+    .trim()
+    .max(200)
+    .optional()
+    .transform((s) => s || null),
   /** Empty keeps the stored password; `clearPassword` removes it. */
-  password: z.string().max(500).optional().transform((s) => s || null),
+  password: z
+    .string()
+    .max(500)
+    .optional()
+    .transform((s) => s || null),
   clearPassword: z.literal("on").optional(),
   protocolVersion: z.enum(["4", "5"]).transform(Number),
   caCert: z
@@ -80,8 +98,14 @@ export const bridgeSettingsSchema = z.object({
     .max(20_000, "A CA certificate is a few kilobytes of PEM")
     .optional()
     .transform((s) => s || null)
-    .refine((s) => s === null || /-----BEGIN CERTIFICATE-----[\s\S]+-----END CERTIFICATE-----/.test(s), "Paste the CA certificate as PEM (-----BEGIN CERTIFICATE----- …)"),
-  enabled: z.literal("on").optional().transform((v) => v === "on"),
+    .refine(
+      (s) => s === null || /-----BEGIN CERTIFICATE-----[\s\S]+-----END CERTIFICATE-----/.test(s),
+      "Paste the CA certificate as PEM (-----BEGIN CERTIFICATE----- …)",
+    ),
+  enabled: z
+    .literal("on")
+    .optional()
+    .transform((v) => v === "on"),
 });
 
 export const listenSchema = z.object({

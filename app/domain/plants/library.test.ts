@@ -1,5 +1,12 @@
 import { describe, expect, it } from "vitest";
-import { CATEGORY_NIGHTS, DLI_BANDS, PLANT_LIBRARY, SOURCED_FIELDS, categoryForNight, plantByKey } from "~/domain/plants/library";
+import {
+  CATEGORY_NIGHTS,
+  DLI_BANDS,
+  PLANT_LIBRARY,
+  SOURCED_FIELDS,
+  categoryForNight,
+  plantByKey,
+} from "~/domain/plants/library";
 
 describe("plant library", () => {
   it("holds at least 22 profiles with unique keys", () => {
@@ -10,10 +17,30 @@ describe("plant library", () => {
   it("covers the groups hobby growers keep", () => {
     const names = PLANT_LIBRARY.map((p) => p.name).join(" | ");
     for (const genus of [
-      "Phalaenopsis", "Paphiopedilum", "Cattleya", "Oncidium", "Cymbidium", "Dendrobium", "Vanda",
-      "Miltoniopsis", "Masdevallia", "Zygopetalum", "Coelogyne", "Ludisia", "Pleione", "Encyclia",
-      "Prosthechea", "Brassavola", "Neofinetia", "Tillandsia", "Anthurium", "Begonia", "Hoya",
-      "Nepenthes", "Calathea", "Goeppertia",
+      "Phalaenopsis",
+      "Paphiopedilum",
+      "Cattleya",
+      "Oncidium",
+      "Cymbidium",
+      "Dendrobium",
+      "Vanda",
+      "Miltoniopsis",
+      "Masdevallia",
+      "Zygopetalum",
+      "Coelogyne",
+      "Ludisia",
+      "Pleione",
+      "Encyclia",
+      "Prosthechea",
+      "Brassavola",
+      "Neofinetia",
+      "Tillandsia",
+      "Anthurium",
+      "Begonia",
+      "Hoya",
+      "Nepenthes",
+      "Calathea",
+      "Goeppertia",
     ]) {
       expect(names).toContain(genus);
     }
@@ -82,7 +109,10 @@ describe("plant library: two lines per limit (issue 15)", () => {
       expect(p.damageNightC, p.key).toBeLessThan(p.minNightC);
       expect(p.damageDayC, p.key).toBeGreaterThan(p.maxDayC);
       if (p.maxNightC !== undefined) expect(p.maxNightC, p.key).toBeGreaterThan(p.minNightC);
-      expect(p.sources.some((s) => s.field.startsWith("damageNightC")), p.key).toBe(true);
+      expect(
+        p.sources.some((s) => s.field.startsWith("damageNightC")),
+        p.key,
+      ).toBe(true);
     }
   });
 

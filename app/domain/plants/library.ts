@@ -74,7 +74,11 @@ const aos = (field: string, sheet: string, checked = false): Source => ({
   source: `American Orchid Society culture sheet, ${sheet}${checked ? " (wording checked against a published copy)" : ""}`,
   ...(checked ? {} : { memory: true }),
 });
-const rhs = (field: string, plant: string): Source => ({ field, source: `RHS houseplant guidance, ${plant}`, memory: true });
+const rhs = (field: string, plant: string): Source => ({
+  field,
+  source: `RHS houseplant guidance, ${plant}`,
+  memory: true,
+});
 const reid = (field = "coldTolerance"): Source => ({
   field,
   source: "Reid (1991), Acta Horticulturae 298: chilling injury of tropical foliage plants and flowers below 7–10 °C",
@@ -101,8 +105,7 @@ const BASE_LIBRARY: PlantProfile[] = [
     dliMax: 8,
     flowering: {
       coolPeriod: { maxDayC: 26, weeks: 4, months: "any time of year, usually autumn" },
-      note:
-        "Spikes are set by cooler days: spikes formed at 20/14 and 23/17 °C day/night and none at 29 °C days. A few weeks of days under about 26 °C usually bring a spike.",
+      note: "Spikes are set by cooler days: spikes formed at 20/14 and 23/17 °C day/night and none at 29 °C days. A few weeks of days under about 26 °C usually bring a spike.",
     },
     coldTolerance: "chilling damage below about 10 °C; keep nights above 15 °C",
     summary: "The easiest orchid for a warm room with bright light but no direct midday sun.",
@@ -135,7 +138,8 @@ const BASE_LIBRARY: PlantProfile[] = [
     dliMin: 3,
     dliMax: 6,
     flowering: { note: "No temperature cue needed; flowers when mature and given steady warmth." },
-    coldTolerance: "grows best with nights of 16 °C or more; a spell of nights under about 13 °C stops growth; a brief night near 10 °C is survived if kept dry",
+    coldTolerance:
+      "grows best with nights of 16 °C or more; a spell of nights under about 13 °C stops growth; a brief night near 10 °C is survived if kept dry",
     summary: "A slipper orchid for a warm, shaded windowsill that stays evenly moist.",
     sources: [
       CATEGORY,
@@ -145,7 +149,10 @@ const BASE_LIBRARY: PlantProfile[] = [
       aos("light", "Paphiopedilum: shady east or west window", true),
       dli(),
       memo("flowering", "no temperature cue for mottled types (memory)"),
-      memo("coldTolerance", "AOS sheet: warm types want 60–65 °F nights; a brief cooler night is survived (memory of the wording); the 13 °C growth line and 10 °C damage line are ours"),
+      memo(
+        "coldTolerance",
+        "AOS sheet: warm types want 60–65 °F nights; a brief cooler night is survived (memory of the wording); the 13 °C growth line and 10 °C damage line are ours",
+      ),
     ],
   },
   {
@@ -272,17 +279,37 @@ const BASE_LIBRARY: PlantProfile[] = [
     dliMin: 12,
     dliMax: 25,
     flowering: {
-      coolPeriod: { maxNightC: 10, weeks: 4, months: "autumn to early winter, kept nearly dry", cueMonths: [10, 11, 12, 1], dryRest: true },
+      coolPeriod: {
+        maxNightC: 10,
+        weeks: 4,
+        months: "autumn to early winter, kept nearly dry",
+        cueMonths: [10, 11, 12, 1],
+        dryRest: true,
+      },
       note: "Needs a cool, dry winter rest (nights about 10 °C or a little below) to flower; kept warm and wet it makes plantlets instead.",
     },
     coldTolerance: "takes nights near 5 °C when dry; frost kills",
     summary: "Cane orchid for a bright, cool spot that can be left dry and cold through early winter.",
     sources: [
       CATEGORY,
-      { field: "minNightC", source: "Marie Selby Botanical Gardens, 'Dendrobium – Nobile Type': lows of 50–55 °F in growth, 50 °F or a little below at rest; 7 °C is ours" },
-      { field: "maxDayC", source: "Marie Selby Botanical Gardens, 'Dendrobium – Nobile Type': tolerates 85 °F or higher" },
-      { field: "humidityMin/humidityMax", source: "Marie Selby Botanical Gardens: 50–60 % ideal; 40 % lower bound is ours" },
-      { field: "flowering", source: "Marie Selby Botanical Gardens: cool (50 °F) and dry after growth; nursery guidance: under 50 °F at night for a month" },
+      {
+        field: "minNightC",
+        source:
+          "Marie Selby Botanical Gardens, 'Dendrobium – Nobile Type': lows of 50–55 °F in growth, 50 °F or a little below at rest; 7 °C is ours",
+      },
+      {
+        field: "maxDayC",
+        source: "Marie Selby Botanical Gardens, 'Dendrobium – Nobile Type': tolerates 85 °F or higher",
+      },
+      {
+        field: "humidityMin/humidityMax",
+        source: "Marie Selby Botanical Gardens: 50–60 % ideal; 40 % lower bound is ours",
+      },
+      {
+        field: "flowering",
+        source:
+          "Marie Selby Botanical Gardens: cool (50 °F) and dry after growth; nursery guidance: under 50 °F at night for a month",
+      },
       memo("light", "common practice: bright, some direct sun"),
       dli(),
       memo("coldTolerance", "grower experience (memory)"),
@@ -334,7 +361,10 @@ const BASE_LIBRARY: PlantProfile[] = [
       memo("minNightC", "AOS culture guidance for Vanda: nights 60–65 °F (memory)"),
       memo("maxDayC", "AOS culture guidance: days to 95 °F with humidity (memory)"),
       memo("humidityMin/humidityMax", "AOS culture guidance: about 80 % (memory)"),
-      { field: "light", source: "New York Botanical Garden, Vanda guide: about 3,500–4,000 foot-candles, south window" },
+      {
+        field: "light",
+        source: "New York Botanical Garden, Vanda guide: about 3,500–4,000 foot-candles, south window",
+      },
       dli(),
       memo("flowering", "grower experience (memory)"),
       reid(),
@@ -431,7 +461,13 @@ const BASE_LIBRARY: PlantProfile[] = [
     dliMin: 8,
     dliMax: 15,
     flowering: {
-      coolPeriod: { maxNightC: 10, weeks: 6, months: "winter, kept on the dry side", cueMonths: [11, 12, 1, 2], dryRest: true },
+      coolPeriod: {
+        maxNightC: 10,
+        weeks: 6,
+        months: "winter, kept on the dry side",
+        cueMonths: [11, 12, 1, 2],
+        dryRest: true,
+      },
       note: "Needs a cold, fairly dry winter (nights about 5–10 °C) to flower.",
     },
     coldTolerance: "takes nights near 3–5 °C when dry; frost kills",
@@ -486,7 +522,13 @@ const BASE_LIBRARY: PlantProfile[] = [
     dliMin: 8,
     dliMax: 14,
     flowering: {
-      coolPeriod: { maxNightC: 5, weeks: 10, months: "winter dormancy, bulbs kept dry", cueMonths: [11, 12, 1, 2, 3], dryRest: true },
+      coolPeriod: {
+        maxNightC: 5,
+        weeks: 10,
+        months: "winter dormancy, bulbs kept dry",
+        cueMonths: [11, 12, 1, 2, 3],
+        dryRest: true,
+      },
       note: "Needs a cold, dry winter dormancy just above freezing to flower in spring.",
     },
     coldTolerance: "dormant bulbs take 1–5 °C; hard frost kills",
@@ -817,39 +859,115 @@ type Limits = { damageNightC: number; damageDayC: number; maxNightC?: number; so
  * memory of culture guidance unless named.
  */
 const LIMITS: Record<string, Limits> = {
-  phalaenopsis: { damageNightC: 10, damageDayC: 35, source: "cold: Reid (1991) chilling below 10 °C; heat 35 °C: AOS 'can stand 95 °F' for warm growers (memory)", memory: true },
-  "paphiopedilum-mottled": { damageNightC: 10, damageDayC: 35, source: "AOS: can stand 95 °F; cold line ours from the sheet's brief cool night (memory)", memory: true },
-  "paphiopedilum-complex": { damageNightC: 4, damageDayC: 35, source: "AOS Paphiopedilum sheet: can stand 95 °F (memory of the wording); cold line from grower experience (memory)", memory: true },
-  cattleya: { damageNightC: 5, damageDayC: 35, source: "cold tolerance above; heat from AOS 'more with shade and humidity' (memory)", memory: true },
+  phalaenopsis: {
+    damageNightC: 10,
+    damageDayC: 35,
+    source: "cold: Reid (1991) chilling below 10 °C; heat 35 °C: AOS 'can stand 95 °F' for warm growers (memory)",
+    memory: true,
+  },
+  "paphiopedilum-mottled": {
+    damageNightC: 10,
+    damageDayC: 35,
+    source: "AOS: can stand 95 °F; cold line ours from the sheet's brief cool night (memory)",
+    memory: true,
+  },
+  "paphiopedilum-complex": {
+    damageNightC: 4,
+    damageDayC: 35,
+    source:
+      "AOS Paphiopedilum sheet: can stand 95 °F (memory of the wording); cold line from grower experience (memory)",
+    memory: true,
+  },
+  cattleya: {
+    damageNightC: 5,
+    damageDayC: 35,
+    source: "cold tolerance above; heat from AOS 'more with shade and humidity' (memory)",
+    memory: true,
+  },
   oncidium: { damageNightC: 8, damageDayC: 35, source: "grower experience (memory)", memory: true },
-  cymbidium: { damageNightC: 2, damageDayC: 35, source: "AOS Cymbidium sheet: takes nights near 35–40 °F without frost (memory of the wording)", memory: true },
+  cymbidium: {
+    damageNightC: 2,
+    damageDayC: 35,
+    source: "AOS Cymbidium sheet: takes nights near 35–40 °F without frost (memory of the wording)",
+    memory: true,
+  },
   "dendrobium-nobile": { damageNightC: 3, damageDayC: 35, source: "grower experience (memory)", memory: true },
-  "dendrobium-phalaenanthe": { damageNightC: 10, damageDayC: 38, source: "cold tolerance above; heat from memory", memory: true },
-  vanda: { damageNightC: 10, damageDayC: 38, source: "Reid (1991) chilling below 10 °C; heat from memory", memory: true },
-  miltoniopsis: { damageNightC: 5, damageDayC: 29, maxNightC: 17, source: "AOS guidance: suffers above 80 °F (memory)", memory: true },
-  masdevallia: { damageNightC: 3, damageDayC: 27, maxNightC: 16, source: "profile above: heat above about 27 °C kills; warm nights (18–20 °C) stop flowering (memory)", memory: true },
+  "dendrobium-phalaenanthe": {
+    damageNightC: 10,
+    damageDayC: 38,
+    source: "cold tolerance above; heat from memory",
+    memory: true,
+  },
+  vanda: {
+    damageNightC: 10,
+    damageDayC: 38,
+    source: "Reid (1991) chilling below 10 °C; heat from memory",
+    memory: true,
+  },
+  miltoniopsis: {
+    damageNightC: 5,
+    damageDayC: 29,
+    maxNightC: 17,
+    source: "AOS guidance: suffers above 80 °F (memory)",
+    memory: true,
+  },
+  masdevallia: {
+    damageNightC: 3,
+    damageDayC: 27,
+    maxNightC: 16,
+    source: "profile above: heat above about 27 °C kills; warm nights (18–20 °C) stop flowering (memory)",
+    memory: true,
+  },
   odontoglossum: { damageNightC: 4, damageDayC: 29, maxNightC: 16, source: "grower experience (memory)", memory: true },
   zygopetalum: { damageNightC: 4, damageDayC: 33, source: "grower experience (memory)", memory: true },
   "coelogyne-cristata": { damageNightC: 1, damageDayC: 32, source: "cold tolerance above (memory)", memory: true },
   ludisia: { damageNightC: 10, damageDayC: 35, source: "Reid (1991); heat from memory", memory: true },
-  pleione: { damageNightC: -3, damageDayC: 30, maxNightC: 18, source: "grower experience: light frost on dry bulbs survived, hard frost kills (memory)", memory: true },
+  pleione: {
+    damageNightC: -3,
+    damageDayC: 30,
+    maxNightC: 18,
+    source: "grower experience: light frost on dry bulbs survived, hard frost kills (memory)",
+    memory: true,
+  },
   "encyclia-prosthechea": { damageNightC: 7, damageDayC: 35, source: "grower experience (memory)", memory: true },
   brassavola: { damageNightC: 10, damageDayC: 38, source: "cold tolerance above; heat from memory", memory: true },
   neofinetia: { damageNightC: 2, damageDayC: 36, source: "cold tolerance above (memory)", memory: true },
   tillandsia: { damageNightC: 5, damageDayC: 38, source: "cold tolerance above (memory)", memory: true },
   anthurium: { damageNightC: 10, damageDayC: 35, source: "Reid (1991) chilling; heat from memory", memory: true },
-  "begonia-rex": { damageNightC: 8, damageDayC: 35, source: "RHS guidance and grower experience (memory)", memory: true },
+  "begonia-rex": {
+    damageNightC: 8,
+    damageDayC: 35,
+    source: "RHS guidance and grower experience (memory)",
+    memory: true,
+  },
   hoya: { damageNightC: 5, damageDayC: 38, source: "grower experience (memory)", memory: true },
-  "nepenthes-highland": { damageNightC: 3, damageDayC: 30, maxNightC: 18, source: "carnivorous-plant society guidance: highlands want a night drop (memory)", memory: true },
+  "nepenthes-highland": {
+    damageNightC: 3,
+    damageDayC: 30,
+    maxNightC: 18,
+    source: "carnivorous-plant society guidance: highlands want a night drop (memory)",
+    memory: true,
+  },
   "nepenthes-lowland": { damageNightC: 13, damageDayC: 40, source: "cold tolerance above (memory)", memory: true },
-  calathea: { damageNightC: 10, damageDayC: 35, source: "Reid (1991) chilling below 10 °C; heat from memory", memory: true },
+  calathea: {
+    damageNightC: 10,
+    damageDayC: 35,
+    source: "Reid (1991) chilling below 10 °C; heat from memory",
+    memory: true,
+  },
 };
 
 export const PLANT_LIBRARY: PlantProfile[] = [...BASE_LIBRARY, ODONTOGLOSSUM].map((p) => {
   const l = LIMITS[p.key];
   const band = DLI_BANDS[p.light];
   const sources = p.sources.map((s) =>
-    s.field === "dliMin/dliMax" ? { field: s.field, source: `group range from memory, inside the ${p.light}-light class band ${band.min}–${band.max} mol m⁻² d⁻¹ (common practice)`, memory: true } : s,
+    s.field === "dliMin/dliMax"
+      ? {
+          field: s.field,
+          source: `group range from memory, inside the ${p.light}-light class band ${band.min}–${band.max} mol m⁻² d⁻¹ (common practice)`,
+          memory: true,
+        }
+      : s,
   );
   if (!l) return { ...p, sources };
   return {
@@ -857,7 +975,10 @@ export const PLANT_LIBRARY: PlantProfile[] = [...BASE_LIBRARY, ODONTOGLOSSUM].ma
     damageNightC: l.damageNightC,
     damageDayC: l.damageDayC,
     ...(l.maxNightC !== undefined ? { maxNightC: l.maxNightC } : {}),
-    sources: [...sources, { field: "damageNightC/damageDayC/maxNightC", source: l.source, ...(l.memory ? { memory: true } : {}) }],
+    sources: [
+      ...sources,
+      { field: "damageNightC/damageDayC/maxNightC", source: l.source, ...(l.memory ? { memory: true } : {}) },
+    ],
   };
 });
 
@@ -866,4 +987,13 @@ export function plantByKey(key: string): PlantProfile | undefined {
 }
 
 /** The fields every profile must name a source for (or mark as memory). */
-export const SOURCED_FIELDS = ["category", "minNightC", "maxDayC", "humidityMin/humidityMax", "light", "dliMin/dliMax", "flowering", "coldTolerance"] as const;
+export const SOURCED_FIELDS = [
+  "category",
+  "minNightC",
+  "maxDayC",
+  "humidityMin/humidityMax",
+  "light",
+  "dliMin/dliMax",
+  "flowering",
+  "coldTolerance",
+] as const;

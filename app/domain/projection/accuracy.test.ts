@@ -8,7 +8,9 @@ import { accuracyTable, formatTable } from "../../../simulator/projection-accura
 describe("projected months against a simulated year (fit on 14 days, one run per season)", () => {
   it("beats both naive baselines, within loose error and coverage bounds", () => {
     const rows = accuracyTable();
-    console.log(`Monthly mean daily low and high, median absolute error over months not fitted on:\n${formatTable(rows)}`);
+    console.log(
+      `Monthly mean daily low and high, median absolute error over months not fitted on:\n${formatTable(rows)}`,
+    );
     for (const r of rows) {
       // Loose: the goals (≤ 1.0 / 1.5 °C, ~80 %) are reported in the table, not asserted.
       expect(r.model, r.spot).toBeLessThan(Math.max(r.firstWeeks, 1));

@@ -22,7 +22,12 @@ export function measuredFigures(m: MonthOfYearProfile): MonthFigures {
   };
 }
 
-function blend(measured: Figure | null, projected: Figure | null, w: number, kind: "mean" | "min" | "max"): Figure | null {
+function blend(
+  measured: Figure | null,
+  projected: Figure | null,
+  w: number,
+  kind: "mean" | "min" | "max",
+): Figure | null {
   if (!measured) return projected;
   if (!projected) return measured;
   const m = measured.value;
@@ -30,10 +35,18 @@ function blend(measured: Figure | null, projected: Figure | null, w: number, kin
     // An extreme already measured stands; the rest of the month can only add to it.
     const pick = kind === "min" ? Math.min : Math.max;
     const value = pick(m, projected.value);
-    return { value, low: kind === "min" ? Math.min(m, projected.low) : m, high: kind === "max" ? Math.max(m, projected.high) : m };
+    return {
+      value,
+      low: kind === "min" ? Math.min(m, projected.low) : m,
+      high: kind === "max" ? Math.max(m, projected.high) : m,
+    };
   }
   const value = w * m + (1 - w) * projected.value;
-  return { value, low: value - (1 - w) * (projected.value - projected.low), high: value + (1 - w) * (projected.high - projected.value) };
+  return {
+    value,
+    low: value - (1 - w) * (projected.value - projected.low),
+    high: value + (1 - w) * (projected.high - projected.value),
+  };
 }
 
 /**
@@ -46,7 +59,15 @@ export function combineMonths(projected: ProjectedMonth[], measured: MonthOfYear
     if (!m || m.coverage.daysObserved === 0) return p;
     const days = m.coverage.daysObserved;
     const daysInMonth = m.coverage.daysInPeriod / Math.max(1, m.monthsIncluded.length);
-    if (m.coverage.enough) return { month: p.month, source: "measured", measuredDays: days, daysInMonth, figures: measuredFigures(m), years: 0 };
+    if (m.coverage.enough)
+      return {
+        month: p.month,
+        source: "measured",
+        measuredDays: days,
+        daysInMonth,
+        figures: measuredFigures(m),
+        years: 0,
+      };
     const w = Math.min(1, days / daysInMonth);
     const mf = measuredFigures(m);
     const f = p.figures;
@@ -71,7 +92,11 @@ export function combineMonths(projected: ProjectedMonth[], measured: MonthOfYear
           const mb = mf.below.find((x) => x.thresholdC === b.thresholdC);
           if (!mb) return b;
           // Hours below: those measured plus the projection's share for the days not yet measured.
-          const add = (x: Figure, y: Figure): Figure => ({ value: x.value + (1 - w) * y.value, low: x.value + (1 - w) * y.low, high: x.value + (1 - w) * y.high });
+          const add = (x: Figure, y: Figure): Figure => ({
+            value: x.value + (1 - w) * y.value,
+            low: x.value + (1 - w) * y.low,
+            high: x.value + (1 - w) * y.high,
+          });
           return { thresholdC: b.thresholdC, hours: add(mb.hours, b.hours), nights: add(mb.nights, b.nights) };
         }),
       },

@@ -74,7 +74,11 @@ export function drivers(w: OutdoorSeries, timeZone: string, place?: Place): Driv
   let lastT = NaN;
   let lastSw = 0;
   let lastRh = 80;
-  for (let i = 0; i < n; i++) if (Number.isFinite(w.temperature[i])) { lastT = w.temperature[i]; break; }
+  for (let i = 0; i < n; i++)
+    if (Number.isFinite(w.temperature[i])) {
+      lastT = w.temperature[i];
+      break;
+    }
   if (!Number.isFinite(lastT)) lastT = 10;
   const alpha = TAUS.map((tau) => 1 - Math.exp(-1 / tau));
   const s = TAUS.map(() => lastT);
@@ -112,7 +116,7 @@ export function drivers(w: OutdoorSeries, timeZone: string, place?: Place): Driv
       offsetDay = day;
       offset = clock.offsetAt(t + 12 * HOUR_MS);
     }
-    hourOfDay[i] = Math.floor((((t + offset) % DAY_MS) + DAY_MS) % DAY_MS / HOUR_MS);
+    hourOfDay[i] = Math.floor(((((t + offset) % DAY_MS) + DAY_MS) % DAY_MS) / HOUR_MS);
     localDay[i] = Math.floor((t + offset) / DAY_MS);
   }
   // Centred 24-hour mean, for telling which outdoor conditions the fit has seen.
@@ -124,7 +128,21 @@ export function drivers(w: OutdoorSeries, timeZone: string, place?: Place): Driv
     if (lo >= 0 && hi < n) acc += now[hi] - now[lo];
     dailyMean[i] = lo >= 0 && hi < n ? acc / 24 : now[i];
   }
-  return { start: w.start, n, now, smooth, sun, hourOfDay, localDay, windowSun, hasWindow: facingAz !== null, dailyMean, outdoorVapour, cloud, wind };
+  return {
+    start: w.start,
+    n,
+    now,
+    smooth,
+    sun,
+    hourOfDay,
+    localDay,
+    windowSun,
+    hasWindow: facingAz !== null,
+    dailyMean,
+    outdoorVapour,
+    cloud,
+    wind,
+  };
 }
 
 /**

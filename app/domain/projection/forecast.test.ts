@@ -19,7 +19,14 @@ function weather(overrideNight?: { cloud: number; wind: number }) {
   const start = NOW - 20 * DAY;
   const n = (23 * DAY) / HOUR;
   const w = outdoorWeather(DEMO_SITE, scenario);
-  const out = { start, temperature: new Float32Array(n), humidity: new Float32Array(n), shortwave: new Float32Array(n), cloud: new Float32Array(n), wind: new Float32Array(n) };
+  const out = {
+    start,
+    temperature: new Float32Array(n),
+    humidity: new Float32Array(n),
+    shortwave: new Float32Array(n),
+    cloud: new Float32Array(n),
+    wind: new Float32Array(n),
+  };
   for (let i = 0; i < n; i++) {
     const o = w(new Date(start + i * HOUR));
     out.temperature[i] = WEATHER_VARIABLES.temperature_2m.pick(o);
@@ -33,9 +40,27 @@ function weather(overrideNight?: { cloud: number; wind: number }) {
 
 function benchRollups(): HourlyRollup[] {
   const byHour = new Map<number, HourlyRollup>();
-  for (const r of generate(DEMO_SITE, BENCH, scenario, { from: new Date(NOW - 14 * DAY), to: new Date(NOW), intervalMs: 600_000, sensorSeed: 101 })) {
+  for (const r of generate(DEMO_SITE, BENCH, scenario, {
+    from: new Date(NOW - 14 * DAY),
+    to: new Date(NOW),
+    intervalMs: 600_000,
+    sensorSeed: 101,
+  })) {
     const h = Math.floor(r.measuredAt.getTime() / HOUR) * HOUR;
-    const x = byHour.get(h) ?? { hour: new Date(h), tN: 0, tMin: 99, tMax: -99, tSum: 0, hN: 0, hMin: null, hMax: null, hSum: null, dpMarginMin: null, luxN: 0, luxSum: null };
+    const x = byHour.get(h) ?? {
+      hour: new Date(h),
+      tN: 0,
+      tMin: 99,
+      tMax: -99,
+      tSum: 0,
+      hN: 0,
+      hMin: null,
+      hMax: null,
+      hSum: null,
+      dpMarginMin: null,
+      luxN: 0,
+      luxSum: null,
+    };
     x.tN++;
     x.tSum! += r.temperature;
     x.tMin = Math.min(x.tMin!, r.temperature);
@@ -51,7 +76,16 @@ describe("forecastSpot", () => {
     const model = fitResponse(benchRollups(), d, { indoor: false, timeZone: DEMO_SITE.timeZone })!;
     const { hours, nights } = forecastSpot(model, d, NOW, { outdoor: true, hours: 48 });
     expect(hours).toHaveLength(48);
-    const truth = Math.min(...[...generate(DEMO_SITE, BENCH, scenario, { from: front.start, to: new Date(front.start.getTime() + 14 * HOUR), intervalMs: 600_000, sensorSeed: 101 })].map((r) => r.temperature));
+    const truth = Math.min(
+      ...[
+        ...generate(DEMO_SITE, BENCH, scenario, {
+          from: front.start,
+          to: new Date(front.start.getTime() + 14 * HOUR),
+          intervalMs: 600_000,
+          sensorSeed: 101,
+        }),
+      ].map((r) => r.temperature),
+    );
     const coldest = nights.reduce((a, n) => (n.expectedLow < a.expectedLow ? n : a));
     const lead = (coldest.at.getTime() - NOW) / HOUR;
     expect(lead).toBeGreaterThanOrEqual(12);

@@ -40,9 +40,15 @@ export type ForecastNight = {
  * The next `hours` hours from `from` (UTC ms, rounded down to the hour) where the drivers have
  * weather, and the nights (NIGHT_START_HOUR to NIGHT_END_HOUR local) that start in them.
  */
-export function forecastSpot(model: ResponseModel, d: Drivers, from: number, opts: { hours?: number; outdoor: boolean }): { hours: ForecastHour[]; nights: ForecastNight[] } {
+export function forecastSpot(
+  model: ResponseModel,
+  d: Drivers,
+  from: number,
+  opts: { hours?: number; outdoor: boolean },
+): { hours: ForecastHour[]; nights: ForecastNight[] } {
   const residuals = model.residualDays.flat();
-  const residualSd = residuals.length > 1 ? Math.sqrt(residuals.reduce((a, r) => a + r * r, 0) / (residuals.length - 1)) : 0.5;
+  const residualSd =
+    residuals.length > 1 ? Math.sqrt(residuals.reduce((a, r) => a + r * r, 0) / (residuals.length - 1)) : 0.5;
   const first = Math.max(0, Math.floor((from - d.start) / HOUR_MS));
   const last = Math.min(d.n, first + (opts.hours ?? 48));
   const hours: ForecastHour[] = [];
@@ -50,8 +56,15 @@ export function forecastSpot(model: ResponseModel, d: Drivers, from: number, opt
   for (let i = first; i < last; i++) {
     const expected = predictHour(model, d, i, x);
     const sd = Math.sqrt(residualSd ** 2 + forecastSd(i - first) ** 2);
-    const clearStill = d.cloud[i] <= RADIATIVE_FROST.maxCloudPercent && d.wind[i] <= RADIATIVE_FROST.maxWindKmh && d.sun[i] === 0;
-    hours.push({ at: new Date(d.start + i * HOUR_MS), expected, low: expected - Z80 * sd, high: expected + Z80 * sd, clearStill });
+    const clearStill =
+      d.cloud[i] <= RADIATIVE_FROST.maxCloudPercent && d.wind[i] <= RADIATIVE_FROST.maxWindKmh && d.sun[i] === 0;
+    hours.push({
+      at: new Date(d.start + i * HOUR_MS),
+      expected,
+      low: expected - Z80 * sd,
+      high: expected + Z80 * sd,
+      clearStill,
+    });
   }
   const nights = new Map<number, ForecastNight>();
   for (let k = 0; k < hours.length; k++) {

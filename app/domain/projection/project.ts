@@ -45,7 +45,6 @@ const Z80 = 1.2816;
 // (chosen on the simulator's spots so that about 80 % of months fall inside; see the accuracy test).
 const EXTRAPOLATION_ERROR_PER_C = 0.3;
 
-
 function quantile(sorted: number[], q: number): number {
   if (sorted.length === 1) return sorted[0];
   const pos = (sorted.length - 1) * q;
@@ -78,7 +77,12 @@ export type ProjectionOptions = {
  * rollup objects for seasonProfile took four times as long). `weather` must cover the years (and a
  * week before the first, for the smoothing to settle).
  */
-export function projectYear(model: ResponseModel, weather: OutdoorSeries | Drivers, site: Site, opts: ProjectionOptions): ProjectedMonth[] {
+export function projectYear(
+  model: ResponseModel,
+  weather: OutdoorSeries | Drivers,
+  site: Site,
+  opts: ProjectionOptions,
+): ProjectedMonth[] {
   const d = "smooth" in weather ? weather : drivers(weather, site.timeZone);
   const rand = mulberry32(opts.seed ?? 1);
   const years = [...opts.years].sort((a, b) => a - b);
@@ -107,7 +111,17 @@ export function projectYear(model: ResponseModel, weather: OutdoorSeries | Drive
       const key = year * 100 + date.getUTCMonth() + 1;
       let acc = stats.get(key);
       if (!acc && wanted.has(year)) stats.set(key, (acc = newMonth(thresholds.length)));
-      day = { dayNumber: ld, acc: acc ?? null, hours: 0, low: Infinity, high: -Infinity, daySum: 0, dayN: 0, nightSum: 0, nightN: 0 };
+      day = {
+        dayNumber: ld,
+        acc: acc ?? null,
+        hours: 0,
+        low: Infinity,
+        high: -Infinity,
+        daySum: 0,
+        dayN: 0,
+        nightSum: 0,
+        nightN: 0,
+      };
     }
     const p = predictHour(model, d, i, x) + block[h % block.length];
     const acc = day.acc;
@@ -153,7 +167,10 @@ export function projectYear(model: ResponseModel, weather: OutdoorSeries | Drive
   const base2 = q ? q.biasC ** 2 + ((q.dailyLowMaeC + q.dailyHighMaeC) / 2) ** 2 / 2 : 1;
   const out: ProjectedMonth[] = [];
   for (let month = 1; month <= 12; month++) {
-    const months = years.map((y) => stats.get(y * 100 + month)).filter((m): m is MonthAcc => !!m && m.completeDays >= 20).map(summarise);
+    const months = years
+      .map((y) => stats.get(y * 100 + month))
+      .filter((m): m is MonthAcc => !!m && m.completeDays >= 20)
+      .map(summarise);
     const outdoorMean = months.length ? months.reduce((a, m) => a + m.outdoorMean, 0) / months.length : NaN;
     const [lo, hi] = model.outdoorRange;
     const beyond = Number.isFinite(outdoorMean) ? Math.max(0, lo - outdoorMean, outdoorMean - hi) : 0;
@@ -179,18 +196,37 @@ export function projectYear(model: ResponseModel, weather: OutdoorSeries | Drive
         humidityMean: humid ? pick((m) => m.humidityMean, 3 * sigma) : null,
         humidityLowest: humid ? pick((m) => m.humidityLowest, 3 * sigma) : null,
         humidityHighest: humid ? pick((m) => m.humidityHighest, 3 * sigma) : null,
-        below: months.length === 0 ? [] : thresholds.map((thresholdC, k) => ({
-          thresholdC,
-          hours: figure(months.map((m) => m.belowHours[k]), 0)!,
-          nights: figure(months.map((m) => m.belowNights[k]), 0)!,
-        })),
+        below:
+          months.length === 0
+            ? []
+            : thresholds.map((thresholdC, k) => ({
+                thresholdC,
+                hours: figure(
+                  months.map((m) => m.belowHours[k]),
+                  0,
+                )!,
+                nights: figure(
+                  months.map((m) => m.belowNights[k]),
+                  0,
+                )!,
+              })),
       },
     });
   }
   return out;
 }
 
-type DayAcc = { dayNumber: number; acc: MonthAcc | null; hours: number; low: number; high: number; daySum: number; dayN: number; nightSum: number; nightN: number };
+type DayAcc = {
+  dayNumber: number;
+  acc: MonthAcc | null;
+  hours: number;
+  low: number;
+  high: number;
+  daySum: number;
+  dayN: number;
+  nightSum: number;
+  nightN: number;
+};
 type MonthAcc = {
   hourly: Float64Array;
   nHourly: number;
@@ -263,7 +299,11 @@ function finishDay(day: DayAcc, acc: MonthAcc) {
   }
 }
 
-function finishNight(night: { key: number; low: number; hours: number }, stats: Map<number, MonthAcc>, thresholds: number[]) {
+function finishNight(
+  night: { key: number; low: number; hours: number },
+  stats: Map<number, MonthAcc>,
+  thresholds: number[],
+) {
   const date = new Date(night.key * 86_400_000);
   const acc = stats.get(date.getUTCFullYear() * 100 + date.getUTCMonth() + 1);
   if (!acc) return;

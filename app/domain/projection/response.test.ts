@@ -12,8 +12,14 @@ const weather = demoWeather();
 function fit(name: string) {
   const index = DEMO_HOUSEHOLD.spots.findIndex((s) => s.name === name);
   const spot = DEMO_HOUSEHOLD.spots[index];
-  const rollups = yearRollups(index).filter((r) => r.hour.getTime() >= FROM && r.hour.getTime() < FROM + 14 * 86_400_000);
-  const d = drivers(weather, site.timeZone, { latitude: site.latitude, longitude: site.longitude, facing: spot.indoor ? spot.facing : "none" });
+  const rollups = yearRollups(index).filter(
+    (r) => r.hour.getTime() >= FROM && r.hour.getTime() < FROM + 14 * 86_400_000,
+  );
+  const d = drivers(weather, site.timeZone, {
+    latitude: site.latitude,
+    longitude: site.longitude,
+    facing: spot.indoor ? spot.facing : "none",
+  });
   return fitResponse(rollups, d, { indoor: spot.indoor, timeZone: site.timeZone })!;
 }
 

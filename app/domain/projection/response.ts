@@ -54,7 +54,6 @@ const RIDGE = 0.02;
 const CLIP_MARGIN_C = 0.4;
 export const MIN_DAYS = 5;
 
-
 // sin and cos of the hour of day and of twice it, by hour: ten years of hours ask for them.
 const HARMONICS = Array.from({ length: 24 }, (_, hour) => {
   const h = (2 * Math.PI * hour) / 24;
@@ -118,7 +117,14 @@ function samples(rollups: HourlyRollup[], d: Drivers): Sample[] {
     const i = Math.round((r.hour.getTime() - d.start) / HOUR_MS);
     if (i < 0 || i >= d.n) continue;
     const y = r.tSum / r.tN;
-    out.push({ i, y, yMin: r.tMin ?? y, yMax: r.tMax ?? y, rh: r.hN > 0 && r.hSum !== null ? r.hSum / r.hN : null, day: Math.floor((r.hour.getTime() + 0) / DAY_MS) });
+    out.push({
+      i,
+      y,
+      yMin: r.tMin ?? y,
+      yMax: r.tMax ?? y,
+      rh: r.hN > 0 && r.hSum !== null ? r.hSum / r.hN : null,
+      day: Math.floor((r.hour.getTime() + 0) / DAY_MS),
+    });
   }
   return out;
 }
@@ -234,7 +240,11 @@ function detectClip(d: Drivers, data: Sample[], beta: number[], sign: 1 | -1): (
 export type FitOptions = { indoor: boolean; timeZone: string; place?: Place; holdOutDays?: number };
 
 /** Fits the response of one spot; null when fewer than MIN_DAYS days line up with the weather. */
-export function fitResponse(rollups: HourlyRollup[], weather: OutdoorSeries | Drivers, opts: FitOptions): ResponseModel | null {
+export function fitResponse(
+  rollups: HourlyRollup[],
+  weather: OutdoorSeries | Drivers,
+  opts: FitOptions,
+): ResponseModel | null {
   const d = "smooth" in weather ? weather : drivers(weather, opts.timeZone, opts.place);
   const all = samples(rollups, d);
   const days = [...new Set(all.map((s) => s.day))].sort((a, b) => a - b);
@@ -266,7 +276,10 @@ function fitOn(data: Sample[], d: Drivers, opts: FitOptions): ResponseModel {
     ceiling = detectClip(d, data, against, -1) ?? (round === 0 ? null : ceiling);
     const free = data.filter((s) => {
       const h = d.hourOfDay[s.i];
-      return !(floor?.[h] != null && s.y < floor[h]! + CLIP_MARGIN_C) && !(ceiling?.[h] != null && s.y > ceiling[h]! - CLIP_MARGIN_C);
+      return (
+        !(floor?.[h] != null && s.y < floor[h]! + CLIP_MARGIN_C) &&
+        !(ceiling?.[h] != null && s.y > ceiling[h]! - CLIP_MARGIN_C)
+      );
     });
     beta = ridge(d, free, b0, free.length < data.length ? RIDGE * 5 : RIDGE);
     if (!floor && !ceiling) break;

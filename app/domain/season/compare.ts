@@ -5,7 +5,13 @@ import type { Hemisphere, SeasonName } from "~/domain/season/types";
 
 export type CompareMonth = {
   month: number;
-  temperature: { lowest: number | null; highest: number | null; meanDailyLow: number | null; meanDailyHigh: number | null; meanDayNightDifference: number | null };
+  temperature: {
+    lowest: number | null;
+    highest: number | null;
+    meanDailyLow: number | null;
+    meanDailyHigh: number | null;
+    meanDayNightDifference: number | null;
+  };
   humidity: { mean: number | null };
   below: { thresholdC: number; hours: number }[];
   condensationHours: number;
@@ -93,9 +99,13 @@ export function compareHeadlines(spots: { name: string; seasons: SeasonFigures[]
   if (spots.length < 2) return [];
   const asks: { season: SeasonName; kind: Headline["kind"]; by: Headline["by"]; sign: 1 | -1 }[] = [
     { season: "winter", kind: "warmest", by: "meanDailyLow", sign: 1 },
-    ...(spots.length > 2 ? [{ season: "winter" as const, kind: "coldest" as const, by: "meanDailyLow" as const, sign: -1 as const }] : []),
+    ...(spots.length > 2
+      ? [{ season: "winter" as const, kind: "coldest" as const, by: "meanDailyLow" as const, sign: -1 as const }]
+      : []),
     { season: "summer", kind: "coolest", by: "meanDailyHigh", sign: -1 },
-    ...(spots.length > 2 ? [{ season: "summer" as const, kind: "hottest" as const, by: "meanDailyHigh" as const, sign: 1 as const }] : []),
+    ...(spots.length > 2
+      ? [{ season: "summer" as const, kind: "hottest" as const, by: "meanDailyHigh" as const, sign: 1 as const }]
+      : []),
   ];
   const out: Headline[] = [];
   for (const ask of asks) {
@@ -103,7 +113,9 @@ export function compareHeadlines(spots: { name: string; seasons: SeasonFigures[]
     if (rows.some((r) => r.f.monthsCovered < 2 || r.f[ask.by] == null)) continue;
     const pick = rows.reduce((a, b) => (ask.sign * (b.f[ask.by]! - a.f[ask.by]!) > 0 ? b : a));
     const figure = pick.f[ask.by]!;
-    const sameAs = rows.filter((r) => r !== pick && Math.abs(r.f[ask.by]! - figure) < SAME_WITHIN_C).map((r) => ({ spot: r.name, figure: r.f[ask.by]! }));
+    const sameAs = rows
+      .filter((r) => r !== pick && Math.abs(r.f[ask.by]! - figure) < SAME_WITHIN_C)
+      .map((r) => ({ spot: r.name, figure: r.f[ask.by]! }));
     const allSame = sameAs.length === rows.length - 1;
     if (allSame && out.some((h) => h.season === ask.season && h.allSame)) continue;
     out.push({ season: ask.season, kind: ask.kind, spot: pick.name, figure, by: ask.by, sameAs, allSame });

@@ -13,8 +13,12 @@ describe("seasonProfile — light and condensation", () => {
     // Computed checks (REFERENCES): 10 klux of sunlight for 10 h → 6.67 mol m⁻² d⁻¹ (÷54,
     // Thimijan & Heins 1983; DLI = Σ PPFD·Δt/10⁶, Torres & Lopez, Purdue HO-238-W);
     // 200 µmol m⁻² s⁻¹ (10 800 lux of sunlight) for 12 h → 8.64.
-    const a = dayHours("2025-01-10T00:00:00Z").map((ms, i) => rollup(ms, { t: 20, lux: i >= 7 && i < 17 ? 10_000 : 0 }));
-    const b = dayHours("2025-01-11T00:00:00Z").map((ms, i) => rollup(ms, { t: 20, lux: i >= 6 && i < 18 ? 10_800 : 0 }));
+    const a = dayHours("2025-01-10T00:00:00Z").map((ms, i) =>
+      rollup(ms, { t: 20, lux: i >= 7 && i < 17 ? 10_000 : 0 }),
+    );
+    const b = dayHours("2025-01-11T00:00:00Z").map((ms, i) =>
+      rollup(ms, { t: 20, lux: i >= 6 && i < 18 ? 10_800 : 0 }),
+    );
     const p = seasonProfile([...a, ...b], london, yearOpts);
     expect(p.days[0].dli).toBeCloseTo(6.67, 2);
     expect(p.days[1].dli).toBeCloseTo(8.64, 9);
@@ -22,7 +26,9 @@ describe("seasonProfile — light and condensation", () => {
   });
 
   it("leaves out days with fewer than 20 hours of light samples", () => {
-    const rollups = dayHours("2025-01-10T00:00:00Z").map((ms, i) => rollup(ms, { t: 20, lux: i < 19 ? 5_000 : undefined }));
+    const rollups = dayHours("2025-01-10T00:00:00Z").map((ms, i) =>
+      rollup(ms, { t: 20, lux: i < 19 ? 5_000 : undefined }),
+    );
     const p = seasonProfile(rollups, london, yearOpts);
     expect(p.days[0]).toMatchObject({ lightHours: 19, dli: null });
     expect(p.months[0].light).toEqual({ meanDli: null, daysWithLight: 0 });
@@ -32,7 +38,9 @@ describe("seasonProfile — light and condensation", () => {
   it("uses the spot's light source for DLI: white LED 70 lux per µmol, not sunlight's 54", () => {
     // 10,800 lux for 12 h: 8.64 mol m⁻² d⁻¹ of sunlight (REFERENCES check, Thimijan & Heins 1983);
     // under white LEDs (70 lux per µmol, memory) 10,800 / 70 × 0.0036 × 12 ≈ 6.66.
-    const rollups = dayHours("2025-01-11T00:00:00Z").map((ms, i) => rollup(ms, { t: 20, lux: i >= 6 && i < 18 ? 10_800 : 0 }));
+    const rollups = dayHours("2025-01-11T00:00:00Z").map((ms, i) =>
+      rollup(ms, { t: 20, lux: i >= 6 && i < 18 ? 10_800 : 0 }),
+    );
     const sun = seasonProfile(rollups, london, yearOpts);
     const led = seasonProfile(rollups, london, { ...yearOpts, lightSource: "led" });
     const tubes = seasonProfile(rollups, london, { ...yearOpts, lightSource: "fluorescent" });
@@ -68,11 +76,18 @@ describe("seasonProfile — light and condensation", () => {
           return x > 0 && x < 1 ? Math.min(ceiling, peak * Math.sin(Math.PI * x)) : 0;
         });
         const r = rollup(ms, { t: 20 });
-        return { ...r, luxN: 6, luxSum: samples.reduce((a, b) => a + b, 0), luxMax: withMax ? Math.max(...samples) : undefined };
+        return {
+          ...r,
+          luxN: 6,
+          luxSum: samples.reduce((a, b) => a + b, 0),
+          luxMax: withMax ? Math.max(...samples) : undefined,
+        };
       });
     }
     const june = (n: number, peakOf: (d: number) => number, ceiling?: number, withMax?: boolean) =>
-      Array.from({ length: n }, (_, d) => sunDay(`2025-06-${String(d + 1).padStart(2, "0")}T00:00:00Z`, peakOf(d), ceiling, withMax)).flat();
+      Array.from({ length: n }, (_, d) =>
+        sunDay(`2025-06-${String(d + 1).padStart(2, "0")}T00:00:00Z`, peakOf(d), ceiling, withMax),
+      ).flat();
 
     it("is noticed: many hours at one ceiling near 55 klux, per month and overall", () => {
       // Sunny and dull days alternate: the sunny ones clip, the dull ones (30 klux) do not.
@@ -88,14 +103,30 @@ describe("seasonProfile — light and condensation", () => {
     });
 
     it("is noticed from hourly means alone in rollups stored before the maximum was kept", () => {
-      const p = seasonProfile(june(20, () => 100_000, CHIP, false), london, yearOpts);
+      const p = seasonProfile(
+        june(20, () => 100_000, CHIP, false),
+        london,
+        yearOpts,
+      );
       expect(p.luxClipped?.ceilingLux).toBeCloseTo(CHIP, 6);
     });
 
     it("is not claimed for daylight that never reaches the chip's ceiling, even on days of the same peak", () => {
       // Clear days with peaks a few per cent apart, and twenty identical clear days: a sloping top.
-      expect(seasonProfile(june(20, (d) => 50_000 + (d % 5) * 400), london, yearOpts).luxClipped).toBeNull();
-      expect(seasonProfile(june(20, () => 50_000), london, yearOpts).luxClipped).toBeNull();
+      expect(
+        seasonProfile(
+          june(20, (d) => 50_000 + (d % 5) * 400),
+          london,
+          yearOpts,
+        ).luxClipped,
+      ).toBeNull();
+      expect(
+        seasonProfile(
+          june(20, () => 50_000),
+          london,
+          yearOpts,
+        ).luxClipped,
+      ).toBeNull();
     });
 
     it("is not looked for under lamps alone, whose steady light is flat by nature", () => {

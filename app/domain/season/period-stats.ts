@@ -3,7 +3,13 @@
 // difference, humidity, hours under the lines, light, and the light sensor's ceiling.
 import { quantileSorted } from "simple-statistics";
 import { dayDli, dayNightDifference, finiteOrNull, meanOrNull, type DayAgg } from "~/domain/season/days";
-import { CLIP_MIN_DAYS, CLIP_MIN_HOURS, CLIP_MIN_LUX, CLIP_TOLERANCE, MIN_HOURS_FOR_DAY } from "~/domain/season/thresholds";
+import {
+  CLIP_MIN_DAYS,
+  CLIP_MIN_HOURS,
+  CLIP_MIN_LUX,
+  CLIP_TOLERANCE,
+  MIN_HOURS_FOR_DAY,
+} from "~/domain/season/thresholds";
 import type { LuxClipping, PeriodStats } from "~/domain/season/types";
 
 export type Stats = Omit<PeriodStats, "coverage"> & { hoursObserved: number; daysObserved: number };
@@ -18,7 +24,9 @@ export function findLuxCeiling(days: DayAgg[]): Ceiling | null {
   if (!(top >= CLIP_MIN_LUX)) return null;
   const edge = top * (1 - CLIP_TOLERANCE);
   const shoulder = top * 0.9;
-  let at = 0, daysAt = 0, near = 0;
+  let at = 0,
+    daysAt = 0,
+    near = 0;
   for (const d of days) {
     let here = 0;
     for (const v of d.luxTops) {
@@ -34,7 +42,8 @@ export function findLuxCeiling(days: DayAgg[]): Ceiling | null {
 /** Hours and days of `days` at the ceiling. */
 export function clippingIn(days: DayAgg[], ceiling: Ceiling | null): LuxClipping | null {
   if (!ceiling) return null;
-  let hours = 0, withHours = 0;
+  let hours = 0,
+    withHours = 0;
   for (const d of days) {
     let here = 0;
     for (const v of d.luxTops) if (v >= ceiling.edge) here++;
@@ -63,7 +72,9 @@ export function mergeSorted(parts: Float64Array[]): Float64Array {
   let merged: Float64Array = new Float64Array(0);
   for (const part of parts) {
     const out = new Float64Array(merged.length + part.length);
-    let i = 0, j = 0, k = 0;
+    let i = 0,
+      j = 0,
+      k = 0;
     while (i < merged.length && j < part.length) out[k++] = merged[i] <= part[j] ? merged[i++] : part[j++];
     while (i < merged.length) out[k++] = merged[i++];
     while (j < part.length) out[k++] = part[j++];
@@ -73,12 +84,23 @@ export function mergeSorted(parts: Float64Array[]): Float64Array {
 }
 
 /** `hourly`: the days' hourly mean temperatures, sorted (the caller may have them already). */
-export function aggregate(days: DayAgg[], thresholds: number[], ceiling: Ceiling | null, hourly: Float64Array = sortedHourlyMeans(days)): Stats {
+export function aggregate(
+  days: DayAgg[],
+  thresholds: number[],
+  ceiling: Ceiling | null,
+  hourly: Float64Array = sortedHourlyMeans(days),
+): Stats {
   const complete = days.filter((d) => d.hours >= MIN_HOURS_FOR_DAY);
   const difs: number[] = [];
   const dlis: number[] = [];
-  let lowest = Infinity, highest = -Infinity, rhLow = Infinity, rhHigh = -Infinity;
-  let condensationHours = 0, rhSum = 0, rhN = 0, hoursObserved = 0;
+  let lowest = Infinity,
+    highest = -Infinity,
+    rhLow = Infinity,
+    rhHigh = -Infinity;
+  let condensationHours = 0,
+    rhSum = 0,
+    rhN = 0,
+    hoursObserved = 0;
   const below = thresholds.map((thresholdC) => ({ thresholdC, hours: 0, nights: 0 }));
   for (const d of days) {
     lowest = Math.min(lowest, d.low);

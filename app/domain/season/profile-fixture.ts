@@ -31,7 +31,12 @@ export function rollup(ms: number, h: Hour): HourlyRollup {
 // once-per-day offset cache under test.
 export function localParts(ms: number, timeZone: string) {
   const parts = new Intl.DateTimeFormat("en-GB", {
-    timeZone, hourCycle: "h23", year: "numeric", month: "numeric", day: "numeric", hour: "numeric",
+    timeZone,
+    hourCycle: "h23",
+    year: "numeric",
+    month: "numeric",
+    day: "numeric",
+    hour: "numeric",
   }).formatToParts(new Date(ms));
   const get = (type: string) => Number(parts.find((p) => p.type === type)!.value);
   return { year: get("year"), month: get("month"), day: get("day"), hour: get("hour") };

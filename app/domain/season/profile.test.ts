@@ -6,7 +6,17 @@ import type { Site } from "~/domain/season/types";
 import { coldNights } from "~/domain/fit/temperature";
 import { DEFAULT_FIT_THRESHOLDS } from "~/domain/fit/facts";
 import { PLANT_LIBRARY } from "~/domain/plants/library";
-import { HOUR, hoursBetween, localParts, london, londonYear, NIGHTS, rollup, southern, yearOpts } from "~/domain/season/profile-fixture";
+import {
+  HOUR,
+  hoursBetween,
+  localParts,
+  london,
+  londonYear,
+  NIGHTS,
+  rollup,
+  southern,
+  yearOpts,
+} from "~/domain/season/profile-fixture";
 
 describe("seasonProfile — synthetic London year", () => {
   const profile = seasonProfile(londonYear(), london, { ...yearOpts, thresholds: [13] });
@@ -89,7 +99,10 @@ describe("seasonProfile — local months and days", () => {
       { from: new Date("2025-01-01T00:00:00Z"), to: new Date("2025-04-30T23:00:00Z") }, // local midnight, 1 May
     );
     expect(p.months.map((m) => [m.key, m.coverage.hoursObserved])).toEqual([
-      ["2025-01", 1], ["2025-02", 0], ["2025-03", 1], ["2025-04", 1],
+      ["2025-01", 1],
+      ["2025-02", 0],
+      ["2025-03", 1],
+      ["2025-04", 1],
     ]);
     expect(p.days.map((d) => d.key)).toEqual(["2025-01-31", "2025-03-31", "2025-04-01"]);
   });
@@ -106,7 +119,11 @@ describe("seasonProfile — local months and days", () => {
     expect(p.months.at(-1)!.key).toBe("2025-12");
     expect(p.months.every((m) => m.coverage.enough)).toBe(true);
     expect(p.seasons.map((s) => s.label)).toEqual([
-      "summer 2024–25", "autumn 2025", "winter 2025", "spring 2025", "summer 2025–26",
+      "summer 2024–25",
+      "autumn 2025",
+      "winter 2025",
+      "spring 2025",
+      "summer 2025–26",
     ]);
     const winter = p.seasons.find((s) => s.season === "winter")!;
     expect(winter.key).toBe("2025-06/2025-08");
@@ -141,7 +158,10 @@ describe("seasonProfile — coverage", () => {
         return p.day <= days && p.hour < hoursPerDay;
       })
       .map((ms) => rollup(ms, { t: 15 }));
-    return seasonProfile(rollups, london, { from: new Date("2025-03-31T23:00:00Z"), to: new Date("2025-04-30T23:00:00Z") });
+    return seasonProfile(rollups, london, {
+      from: new Date("2025-03-31T23:00:00Z"),
+      to: new Date("2025-04-30T23:00:00Z"),
+    });
   }
 
   it(`counts a day with ${MIN_HOURS_FOR_DAY} hours as observed, not one with fewer`, () => {
@@ -154,7 +174,11 @@ describe("seasonProfile — coverage", () => {
   });
 
   it(`marks a month enough at ${MIN_DAYS_FOR_MONTH} observed days, not at one fewer`, () => {
-    expect(aprilWith(MIN_DAYS_FOR_MONTH, 24).months[0].coverage).toMatchObject({ daysObserved: 20, daysInPeriod: 30, enough: true });
+    expect(aprilWith(MIN_DAYS_FOR_MONTH, 24).months[0].coverage).toMatchObject({
+      daysObserved: 20,
+      daysInPeriod: 30,
+      enough: true,
+    });
     expect(aprilWith(MIN_DAYS_FOR_MONTH - 1, 24).months[0].coverage.enough).toBe(false);
   });
 
@@ -171,7 +195,10 @@ describe("seasonProfile — coverage", () => {
   });
 
   it("counts range days of a month that is only partly requested", () => {
-    const p = seasonProfile([], london, { from: new Date("2025-01-15T00:00:00Z"), to: new Date("2025-02-10T00:00:00Z") });
+    const p = seasonProfile([], london, {
+      from: new Date("2025-01-15T00:00:00Z"),
+      to: new Date("2025-02-10T00:00:00Z"),
+    });
     expect(p.months.map((m) => [m.key, m.coverage.daysInRange, m.coverage.daysInPeriod])).toEqual([
       ["2025-01", 17, 31],
       ["2025-02", 9, 28],
@@ -217,7 +244,6 @@ describe("seasonProfile — day and night", () => {
   });
 });
 
-
 describe("seasonProfile — nights and time near the dew point", () => {
   // A week of 20 °C in a London January, with one cold spell.
   const week = (cold: (local: { day: number; hour: number }) => boolean) =>
@@ -234,13 +260,23 @@ describe("seasonProfile — nights and time near the dew point", () => {
     const phal = PLANT_LIBRARY.find((p) => p.name.startsWith("Phalaenopsis"))!;
     const verdict = coldNights(phal, season, DEFAULT_FIT_THRESHOLDS);
     // 8 °C is under Phalaenopsis' 10 °C damage line: one night, named by the date it starts.
-    expect(verdict.facts[0]).toMatchObject({ kind: "cold-damage", nights: 1, worst: [{ date: "2025-01-10", valueC: 8, hours: 8 }] });
+    expect(verdict.facts[0]).toMatchObject({
+      kind: "cold-damage",
+      nights: 1,
+      worst: [{ date: "2025-01-10", valueC: 8, hours: 8 }],
+    });
   });
 
   it("two cold evenings are two nights, and a cold morning belongs to the night before", () => {
-    const rollups = week((p) => (p.day === 9 && p.hour === 23) || (p.day === 12 && p.hour === 5) || (p.day === 12 && p.hour === 19));
+    const rollups = week(
+      (p) => (p.day === 9 && p.hour === 23) || (p.day === 12 && p.hour === 5) || (p.day === 12 && p.hour === 19),
+    );
     const season = seasonProfile(rollups, london, { ...yearOpts, thresholds: [10] });
-    expect(season.nights.filter((n) => n.low < 10).map((n) => n.key)).toEqual(["2025-01-09", "2025-01-11", "2025-01-12"]);
+    expect(season.nights.filter((n) => n.low < 10).map((n) => n.key)).toEqual([
+      "2025-01-09",
+      "2025-01-11",
+      "2025-01-12",
+    ]);
     expect(season.months[0].below.find((b) => b.thresholdC === 10)!.nights).toBe(3);
   });
 

@@ -25,13 +25,47 @@ import type {
   SeasonProfile,
   Site,
 } from "~/domain/season/types";
-import { addHour, dayDli, dayNightDifference, finiteOrNull, HOUR_MS, newDay, sunWindow, type DayAgg, type Night } from "~/domain/season/days";
-import { aggregate, clippingIn, findLuxCeiling, mergeSorted, sortedHourlyMeans, withCoverage, type Stats } from "~/domain/season/period-stats";
-import { DEFAULT_THRESHOLDS_C, MIN_DAYS_FOR_MONTH, MIN_HOURS_FOR_DAY, NIGHT_END_HOUR, NIGHT_START_HOUR } from "~/domain/season/thresholds";
+import {
+  addHour,
+  dayDli,
+  dayNightDifference,
+  finiteOrNull,
+  HOUR_MS,
+  newDay,
+  sunWindow,
+  type DayAgg,
+  type Night,
+} from "~/domain/season/days";
+import {
+  aggregate,
+  clippingIn,
+  findLuxCeiling,
+  mergeSorted,
+  sortedHourlyMeans,
+  withCoverage,
+  type Stats,
+} from "~/domain/season/period-stats";
+import {
+  DEFAULT_THRESHOLDS_C,
+  MIN_DAYS_FOR_MONTH,
+  MIN_HOURS_FOR_DAY,
+  NIGHT_END_HOUR,
+  NIGHT_START_HOUR,
+} from "~/domain/season/thresholds";
 
 export const MONTH_NAMES = [
-  "January", "February", "March", "April", "May", "June",
-  "July", "August", "September", "October", "November", "December",
+  "January",
+  "February",
+  "March",
+  "April",
+  "May",
+  "June",
+  "July",
+  "August",
+  "September",
+  "October",
+  "November",
+  "December",
 ] as const;
 
 /** `lightSource` picks the lux → PPFD factor of the DLI (default sunlight) and whether clipping is looked for. */
@@ -127,7 +161,11 @@ export function seasonProfile(rollups: HourlyRollup[], site: Site, opts: SeasonP
     const lastDay = clock.localDayNumber(toMs - 1);
     const first = dateOfDayNumber(firstDay);
     const last = dateOfDayNumber(lastDay);
-    for (let ym = { year: first.year, month: first.month }; ym.year * 12 + ym.month <= last.year * 12 + last.month; ym = addMonths(ym.year, ym.month, 1)) {
+    for (
+      let ym = { year: first.year, month: first.month };
+      ym.year * 12 + ym.month <= last.year * 12 + last.month;
+      ym = addMonths(ym.year, ym.month, 1)
+    ) {
       const key = monthKey(ym.year, ym.month);
       const dim = daysInMonth(ym.year, ym.month);
       const start = dayNumberOf(ym.year, ym.month, 1);
@@ -159,19 +197,31 @@ export function seasonProfile(rollups: HourlyRollup[], site: Site, opts: SeasonP
     const end = addMonths(start.year, start.month, 2);
     const season = SEASON_BY_START[hemisphere][start.month];
     const label =
-      start.month === 12 ? `${season} ${start.year}–${String((start.year + 1) % 100).padStart(2, "0")}` : `${season} ${start.year}`;
+      start.month === 12
+        ? `${season} ${start.year}–${String((start.year + 1) % 100).padStart(2, "0")}`
+        : `${season} ${start.year}`;
     const daysInPeriod = [0, 1, 2].reduce((n, i) => {
       const ym = addMonths(start.year, start.month, i);
       return n + daysInMonth(ym.year, ym.month);
     }, 0);
-    const stats = aggregate(ms.flatMap((m) => monthDays.get(m.key)!), thresholds, ceiling, mergeSorted(ms.map((m) => monthHourly.get(m.key)!)));
+    const stats = aggregate(
+      ms.flatMap((m) => monthDays.get(m.key)!),
+      thresholds,
+      ceiling,
+      mergeSorted(ms.map((m) => monthHourly.get(m.key)!)),
+    );
     const enough = ms.length === 3 && ms.every((m) => m.coverage.enough);
     return {
       key: `${monthKey(start.year, start.month)}/${monthKey(end.year, end.month)}`,
       season,
       label,
       months: ms.map((m) => m.key),
-      ...withCoverage(stats, daysInPeriod, ms.reduce((n, m) => n + m.coverage.daysInRange, 0), enough),
+      ...withCoverage(
+        stats,
+        daysInPeriod,
+        ms.reduce((n, m) => n + m.coverage.daysInRange, 0),
+        enough,
+      ),
     };
   });
 
@@ -181,7 +231,12 @@ export function seasonProfile(rollups: HourlyRollup[], site: Site, opts: SeasonP
     const stats =
       included.length === 1
         ? monthStats.get(included[0].key)!
-        : aggregate(included.flatMap((m) => monthDays.get(m.key)!), thresholds, ceiling, mergeSorted(included.map((m) => monthHourly.get(m.key)!)));
+        : aggregate(
+            included.flatMap((m) => monthDays.get(m.key)!),
+            thresholds,
+            ceiling,
+            mergeSorted(included.map((m) => monthHourly.get(m.key)!)),
+          );
     return {
       key: String(month).padStart(2, "0"),
       month,
@@ -218,7 +273,14 @@ export function seasonProfile(rollups: HourlyRollup[], site: Site, opts: SeasonP
     .sort((a, b) => a.dayNumber - b.dayNumber)
     .map((n) => {
       const date = dateOfDayNumber(n.dayNumber);
-      return { key: dayKey(date), month: date.month, dayNumber: n.dayNumber, hoursObserved: n.hours, low: n.low, temps: n.temps };
+      return {
+        key: dayKey(date),
+        month: date.month,
+        dayNumber: n.dayNumber,
+        hoursObserved: n.hours,
+        low: n.low,
+        temps: n.temps,
+      };
     });
 
   return {

@@ -8,19 +8,51 @@ export function slimProfile(season: SeasonProfile) {
     hemisphere: season.hemisphere,
     luxPerPpfd: season.luxPerPpfd,
     luxClipped: season.luxClipped,
-    year: season.year.map(({ key, month, name, temperature, humidity, below, condensationHours, light, luxClipped, coverage }) => ({
-      key, month, name, temperature, humidity, below, condensationHours, light, luxClipped, coverage,
-    })),
-    seasons: season.seasons.map(({ key, label, season: name, temperature, humidity, below, condensationHours, light, luxClipped, coverage }) => ({
-      key, label, season: name, temperature, humidity, below, condensationHours, light, luxClipped, coverage,
-    })),
+    year: season.year.map(
+      ({ key, month, name, temperature, humidity, below, condensationHours, light, luxClipped, coverage }) => ({
+        key,
+        month,
+        name,
+        temperature,
+        humidity,
+        below,
+        condensationHours,
+        light,
+        luxClipped,
+        coverage,
+      }),
+    ),
+    seasons: season.seasons.map(
+      ({ key, label, season: name, temperature, humidity, below, condensationHours, light, luxClipped, coverage }) => ({
+        key,
+        label,
+        season: name,
+        temperature,
+        humidity,
+        below,
+        condensationHours,
+        light,
+        luxClipped,
+        coverage,
+      }),
+    ),
   };
 }
 export type SlimProfile = ReturnType<typeof slimProfile>;
 
 /** Calendar months of the period (for a period shorter or longer than a year), same figures as the year. */
 export function slimMonths(season: SeasonProfile) {
-  return season.months.map(({ key, year, month, temperature, humidity, below, condensationHours, light, coverage }) => ({
-    key, year, month, temperature, humidity, below, condensationHours, light, coverage,
-  }));
+  return season.months.map(
+    ({ key, year, month, temperature, humidity, below, condensationHours, light, coverage }) => ({
+      key,
+      year,
+      month,
+      temperature,
+      humidity,
+      below,
+      condensationHours,
+      light,
+      coverage,
+    }),
+  );
 }

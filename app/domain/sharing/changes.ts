@@ -68,7 +68,14 @@ export function describeChange(action: string, detail: ChangeDetail): string {
   }
 }
 
-const WATCH_WORD: Record<string, string> = { cold: "cold-snap", heat: "too-hot", dry: "dry-air", condensation: "condensation", silent: "silent-sensor", battery: "battery" };
+const WATCH_WORD: Record<string, string> = {
+  cold: "cold-snap",
+  heat: "too-hot",
+  dry: "dry-air",
+  condensation: "condensation",
+  silent: "silent-sensor",
+  battery: "battery",
+};
 const watchWord = (k: unknown) => WATCH_WORD[String(k)] ?? "alert";
 
 /** Member changes first-class: the owners' list can be narrowed to them. */

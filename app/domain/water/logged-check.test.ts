@@ -47,9 +47,13 @@ describe("checkEc", () => {
 
 describe("labels", () => {
   it("says where the ppm came from", () => {
-    expect(ppmLabel({ ppm: 15, ec: null, ecScale: null, ph: null })).toBe("15 ppm (TDS, scale not given) = 21–30 µS/cm");
+    expect(ppmLabel({ ppm: 15, ec: null, ecScale: null, ph: null })).toBe(
+      "15 ppm (TDS, scale not given) = 21–30 µS/cm",
+    );
     expect(ppmLabel({ ppm: 15, ec: null, ecScale: 0.5, ph: null })).toBe("15 ppm (TDS, 0.5 scale) = 30 µS/cm");
-    expect(ppmLabel({ ppm: null, ec: 560, ecScale: 0.5, ph: null })).toBe("560 µS/cm (EC) = 280 ppm on a 0.5 meter, 392 on a 0.7");
+    expect(ppmLabel({ ppm: null, ec: 560, ecScale: 0.5, ph: null })).toBe(
+      "560 µS/cm (EC) = 280 ppm on a 0.5 meter, 392 on a 0.7",
+    );
   });
 
   it("names sources", () => {

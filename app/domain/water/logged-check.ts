@@ -15,7 +15,9 @@ export const isScale = (s: number | null | undefined): s is TdsScale => s === 0.
 
 /** The sample the verdict reads: an EC reading as conductivity, a TDS reading with its scale if known. */
 export function checkSample(c: StoredCheck): WaterSample {
-  return c.ec != null ? { ec: c.ec, ppm: null, ph: c.ph } : { ppm: c.ppm, scale: isScale(c.ecScale) ? c.ecScale : null, ph: c.ph };
+  return c.ec != null
+    ? { ec: c.ec, ppm: null, ph: c.ph }
+    : { ppm: c.ppm, scale: isScale(c.ecScale) ? c.ecScale : null, ph: c.ph };
 }
 
 /** Conductivity in µS/cm when it is known exactly (an EC reading, or ppm on a known scale), else null. */
@@ -38,9 +40,11 @@ const round = (v: number, d = 0) => Number(v.toFixed(d)).toLocaleString("en");
  * "560 µS/cm (EC) = 280 ppm on a 0.5 meter, 392 on a 0.7".
  */
 export function ppmLabel(c: StoredCheck): string {
-  if (c.ec != null) return `${round(c.ec)} µS/cm (EC) = ${round(ecToPpm(c.ec, 0.5))} ppm on a 0.5 meter, ${round(ecToPpm(c.ec, 0.7))} on a 0.7`;
+  if (c.ec != null)
+    return `${round(c.ec)} µS/cm (EC) = ${round(ecToPpm(c.ec, 0.5))} ppm on a 0.5 meter, ${round(ecToPpm(c.ec, 0.7))} on a 0.7`;
   if (c.ppm != null) {
-    if (isScale(c.ecScale)) return `${round(c.ppm)} ppm (TDS, ${c.ecScale} scale) = ${round(ppmToEc(c.ppm, c.ecScale))} µS/cm`;
+    if (isScale(c.ecScale))
+      return `${round(c.ppm)} ppm (TDS, ${c.ecScale} scale) = ${round(ppmToEc(c.ppm, c.ecScale))} µS/cm`;
     return `${round(c.ppm)} ppm (TDS, scale not given) = ${round(ppmToEc(c.ppm, 0.7))}–${round(ppmToEc(c.ppm, 0.5))} µS/cm`;
   }
   return "not measured";
@@ -48,7 +52,9 @@ export function ppmLabel(c: StoredCheck): string {
 
 /** A source's display name: the standard ones capitalised, a grower's own name as typed. */
 export function sourceName(source: string): string {
-  return (STANDARD_SOURCES as readonly string[]).includes(source) ? `${source[0].toUpperCase()}${source.slice(1)} water` : source;
+  return (STANDARD_SOURCES as readonly string[]).includes(source)
+    ? `${source[0].toUpperCase()}${source.slice(1)} water`
+    : source;
 }
 
 /** Normalises what the form sent: a standard key, or a trimmed own name of 1–40 characters. */

@@ -151,13 +151,18 @@ export function waterVerdict(sample: WaterSample): WaterAssessment {
         `the potting mix and fertiliser set the pH at the roots (common practice).`,
     );
   } else {
-    const unknownBuffer = buffered === null ? ` If this is rain or RO water, its pH means little: measure TDS or EC to tell.` : "";
+    const unknownBuffer =
+      buffered === null ? ` If this is rain or RO water, its pH means little: measure TDS or EC to tell.` : "";
     if (ph < PH_MIN) {
       needsWork = true;
-      reasons.push(`pH ${formatNumber(ph, 1)} is more acidic than the ${PH_MIN}–${PH_MAX} growers aim for.${unknownBuffer}`);
+      reasons.push(
+        `pH ${formatNumber(ph, 1)} is more acidic than the ${PH_MIN}–${PH_MAX} growers aim for.${unknownBuffer}`,
+      );
     } else if (ph > PH_MAX) {
       needsWork = true;
-      reasons.push(`pH ${formatNumber(ph, 1)} is more alkaline than the ${PH_MIN}–${PH_MAX} growers aim for.${unknownBuffer}`);
+      reasons.push(
+        `pH ${formatNumber(ph, 1)} is more alkaline than the ${PH_MIN}–${PH_MAX} growers aim for.${unknownBuffer}`,
+      );
     } else {
       reasons.push(`pH ${formatNumber(ph, 1)} is in the ${PH_MIN}–${PH_MAX} range growers aim for.`);
     }
