@@ -27,6 +27,19 @@ export default defineConfig({
           fileParallelism: false,
         },
       },
+      {
+        // Cluster mode against a real RabbitMQ node: `npm run test:cluster` (RabbitMQ is not needed by `npm test`).
+        resolve: { alias },
+        test: {
+          name: "cluster",
+          include: ["tests/cluster/**/*.test.ts"],
+          globalSetup: ["tests/integration/global-setup.ts"],
+          setupFiles: ["tests/integration/setup.ts"],
+          testTimeout: 120_000,
+          hookTimeout: 300_000,
+          fileParallelism: false,
+        },
+      },
     ],
   },
 });

@@ -15,8 +15,8 @@ import { engineAuthRouter } from "~/.server/cluster/auth";
 import { startIngestWorker, type RunningWorker } from "~/.server/cluster/worker";
 import { pool } from "~/.server/db";
 import { ReadingWriter } from "~/.server/ingest/writer";
-import { startEngineCluster, type EngineCluster } from "../cluster/engine";
-import { makeSensor, makeSite, makeSpot, makeUser } from "./helpers";
+import { startEngineCluster, type EngineCluster } from "./engine";
+import { makeSensor, makeSite, makeSpot, makeUser } from "../integration/helpers";
 
 const KEY = "s".repeat(24);
 const SHARDS = 4;
