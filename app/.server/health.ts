@@ -35,7 +35,9 @@ export async function ingestHealth() {
        WHERE n.nspname = 'public' AND c.relkind IN ('r', 'p') AND NOT c.relispartition ORDER BY 2 DESC`,
     ),
     p.query<{ oldest: string | null; newest: string | null; total: string }>(
-      `SELECT min(measured_at) AS oldest, max(measured_at) AS newest, (SELECT sum(reltuples)::bigint FROM pg_class WHERE relname LIKE 'readings_%') AS total FROM readings`,
+      `SELECT min(measured_at) AS oldest, max(measured_at) AS newest, ` +
+        `(SELECT sum(reltuples)::bigint FROM pg_class WHERE relname LIKE ` +
+        `'readings_%') AS total FROM readings`,
     ),
   ]);
   const b = runningBroker();

@@ -172,7 +172,11 @@ export default function ApiDocs({ loaderData: d }: Route.ComponentProps) {
         <Endpoint
           method="GET"
           path="/api/sites/:siteId/spots/:spotId/fits?from=YYYY-MM&to=YYYY-MM&glazing=single|old_double|double|triple"
-          who="Any member of the site. from and to are months in the site's time zone (at most 36 months); without them, the spot's latest twelve months with readings, as on the spot page."
+          who={
+            "Any member of the site. from and to are months in the site's " +
+            "time zone (at most 36 months); without them, the spot's latest " +
+            "twelve months with readings, as on the spot page."
+          }
         >
           <p className="text-sm">
             Every plant group of the site, best fit first (ranked by how far the spot misses each: degree-hours past the

@@ -161,7 +161,10 @@ export type Variant = {
 /** The statement text of a variant, and a name to prepare it under. */
 export function sqlFor(v: Variant): { text: string; name: string } {
   const optimistic = v.optimistic && !v.merge;
-  const name = `nw-write-${v.merge ? "m" : "p"}${v.withRows ? "r" : ""}${v.withKeys ? "k" : ""}${v.withSeen ? "s" : ""}${optimistic ? "o" : ""}${v.withOutside ? "c" : ""}`;
+  const name =
+    `nw-write-${v.merge ? "m" : "p"}${v.withRows ? "r" : ""}` +
+    `${v.withKeys ? "k" : ""}${v.withSeen ? "s" : ""}` +
+    `${optimistic ? "o" : ""}${v.withOutside ? "c" : ""}`;
   let text = SQL.get(name);
   if (!text) SQL.set(name, (text = buildWriteSql({ ...v, optimistic }) + (v.withKeys ? KEYS : "")));
   return { text, name };

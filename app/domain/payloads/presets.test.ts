@@ -167,7 +167,9 @@ describe("Home Assistant MQTT discovery config", () => {
   it("reads state topic, channel, unit and a simple value_json path", () => {
     const hint = parseDiscoveryConfig(
       b(
-        '{"device_class":"temperature","state_topic":"tele/tasmota_ble/ATC264902","name":"ATC Temperature","unit_of_measurement":"°F","value_template":"{{ value_json.Temperature }}"}',
+        '{"device_class":"temperature","state_topic":"tele/tasmota_ble/ATC264902","name":"ATC ' +
+          'Temperature","unit_of_measurement":"°F","value_template":"{{ ' +
+          'value_json.Temperature }}"}',
       ),
     );
     expect(hint).toEqual({
