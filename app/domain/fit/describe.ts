@@ -279,13 +279,21 @@ export function describeFact(fact: Fact, f: Format = DEFAULT_FORMAT, name = "thi
             `${MONTH_NAMES[fact.worstMonth - 1]}): leaves stay wet, which ` +
             `invites rot. More air movement and watering early in ` +
             `the day help.`;
-    case "cold-glass":
+    case "cold-glass": {
+      const panes = fact.months
+        .map(
+          (m) =>
+            `in ${MONTH_NAMES[m.month - 1]} sits near ${temp(m.paneC, f)}, ` +
+            `at or under the room's ${temp(m.dewPointC, f)} dew point`,
+        )
+        .join("; ");
       return (
         `Cold glass: with U ${formatNumber(fact.uValue, f.locale)} ` +
         `glazing the pane's inside ` +
-        `${fact.months.map((m) => `in ${MONTH_NAMES[m.month - 1]} sits near ${temp(m.paneC, f)}, ` + `at or under the room's ${temp(m.dewPointC, f)} dew point`).join("; ")}` +
+        `${panes}` +
         ` — water runs on the glass; keep leaves off it.`
       );
+    }
     case "projected-cold": {
       const month = MONTH_NAMES[fact.worstMonth - 1];
       const within = `(80 % range ${rangeWords(fact.rangeC, f)}, ${pastYears(fact.years)})`;
