@@ -194,11 +194,17 @@ export function accuracyTable(): Row[] {
 export function formatTable(rows: Row[]): string {
   const f = (x: number) => x.toFixed(1);
   const lines = [
-    "| spot | kind | months projected | model MAE °C | outdoor climate MAE °C | first 2 weeks repeated MAE °C | inside 80 % interval | held-out hourly RMSE °C | model MAE by run: winter / spring / summer / autumn |",
+    "| spot | kind | months projected | model MAE °C | outdoor " +
+      "climate MAE °C | first 2 weeks repeated MAE °C | inside 80 % " +
+      "interval | held-out hourly RMSE °C | model MAE by run: winter / " +
+      "spring / summer / autumn |",
     "|---|---|---|---|---|---|---|---|---|",
     ...rows.map(
       (r) =>
-        `| ${r.spot} | ${r.kind} | ${r.months} | ${f(r.model)} | ${f(r.outdoor)} | ${f(r.firstWeeks)} | ${Math.round(r.coverage * 100)} % | ${f(r.heldOutRmse)} | ${RUN_STARTS.map((run) => f(r.bySeason[run.season])).join(" / ")} |`,
+        `| ${r.spot} | ${r.kind} | ${r.months} | ${f(r.model)} | ` +
+        `${f(r.outdoor)} | ${f(r.firstWeeks)} | ` +
+        `${Math.round(r.coverage * 100)} % | ${f(r.heldOutRmse)} | ` +
+        `${RUN_STARTS.map((run) => f(r.bySeason[run.season])).join(" / ")} |`,
     ),
   ];
   return lines.join("\n");

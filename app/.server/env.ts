@@ -125,6 +125,9 @@ export function demoPolicy(e: Pick<Env, "NW_DEMO" | "HOST">): { seed: boolean; w
     ? { seed: true, why: "listening on loopback: demo household on an empty database (NW_DEMO=0 to skip)" }
     : {
         seed: false,
-        why: `listening on ${e.HOST}, beyond loopback: no demo household with known logins (NW_DEMO=1 to seed it anyway; \`npm run admin:create\` makes the first admin)`,
+        why:
+          `listening on ${e.HOST}, beyond loopback: no demo household ` +
+          `with known logins (NW_DEMO=1 to seed it anyway; \`npm run ` +
+          `admin:create\` makes the first admin)`,
       };
 }

@@ -30,12 +30,15 @@ export async function ingestHealth() {
       payload: string;
     }>(`SELECT id, at, sensor_id, source, topic, reason, payload FROM rejected_messages ORDER BY id DESC LIMIT 20`),
     p.query<{ name: string; bytes: string }>(
-      `SELECT c.relname AS name, pg_total_relation_size(c.oid) + coalesce((SELECT sum(pg_total_relation_size(i.inhrelid)) FROM pg_inherits i WHERE i.inhparent = c.oid), 0) AS bytes
+      `SELECT c.relname AS name, pg_total_relation_size(c.oid) + ` +
+        `coalesce((SELECT sum(pg_total_relation_size(i.inhrelid)) FROM pg_inherits i WHERE i.inhparent = c.oid), 0) AS bytes
        FROM pg_class c JOIN pg_namespace n ON n.oid = c.relnamespace
        WHERE n.nspname = 'public' AND c.relkind IN ('r', 'p') AND NOT c.relispartition ORDER BY 2 DESC`,
     ),
     p.query<{ oldest: string | null; newest: string | null; total: string }>(
-      `SELECT min(measured_at) AS oldest, max(measured_at) AS newest, (SELECT sum(reltuples)::bigint FROM pg_class WHERE relname LIKE 'readings_%') AS total FROM readings`,
+      `SELECT min(measured_at) AS oldest, max(measured_at) AS newest, ` +
+        `(SELECT sum(reltuples)::bigint FROM pg_class WHERE relname LIKE ` +
+        `'readings_%') AS total FROM readings`,
     ),
   ]);
   const b = runningBroker();

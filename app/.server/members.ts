@@ -166,7 +166,9 @@ async function checkInvitationLimits(tx: Tx, opts: { siteId: number; userId: num
   if (mine.n >= INVITES_PER_USER_PER_DAY) {
     const retryAt = new Date(new Date(mine.oldest!).getTime() + 86_400_000);
     throw new InvitationLimitError(
-      `You have sent ${INVITES_PER_USER_PER_DAY} invitations in the last 24 hours, the most we send for one person. Try again in ${minutesUntil(retryAt, opts.now)}.`,
+      `You have sent ${INVITES_PER_USER_PER_DAY} invitations in the ` +
+        `last 24 hours, the most we send for one person. Try again in ` +
+        `${minutesUntil(retryAt, opts.now)}.`,
       retryAt,
     );
   }
@@ -230,7 +232,10 @@ export async function acceptInvitation(token: string, user: { id: number; email:
       .where(eq(invitations.tokenHash, invitationTokenHash(token)));
     if (sent && !sameAddress(sent.email, user.email)) {
       throw new WrongAccountError(
-        `This invitation was sent to ${sent.email}, and you are signed in as ${user.email}. Sign out and sign in (or create an account) as ${sent.email}, or ask the owner to invite ${user.email}.`,
+        `This invitation was sent to ${sent.email}, and you are signed ` +
+          `in as ${user.email}. Sign out and sign in (or create an ` +
+          `account) as ${sent.email}, or ask the owner to invite ` +
+          `${user.email}.`,
       );
     }
     const [inv] = await tx

@@ -56,7 +56,9 @@ export async function placeSensor(opts: {
     );
     if (laterMove) {
       throw new PlacementError(
-        "The sensor was already placed somewhere after that time. To change where it was earlier, edit its placements on this sensor's page (move a start or split a placement).",
+        "The sensor was already placed somewhere after that time. To " +
+          "change where it was earlier, edit its placements on this " +
+          "sensor's page (move a start or split a placement).",
       );
     }
     if (current?.spotId === spotId) throw new PlacementError("The sensor is already in that spot.");

@@ -74,7 +74,9 @@ export async function projectedProfile(
     longitude: number;
     time_zone: string;
   }>(
-    `SELECT sp.id, sp.indoor, sp.facing, s.id AS site_id, s.latitude, s.longitude, s.time_zone FROM spots sp JOIN sites s ON s.id = sp.site_id WHERE sp.id = $1`,
+    `SELECT sp.id, sp.indoor, sp.facing, s.id AS site_id, ` +
+      `s.latitude, s.longitude, s.time_zone FROM spots sp JOIN sites s ` +
+      `ON s.id = sp.site_id WHERE sp.id = $1`,
     [spotId],
   );
   const spot = spotRes.rows[0];
@@ -95,7 +97,10 @@ export async function projectedProfile(
   const yearAgo = new Date(now.getTime() - 365 * DAY);
   const rollups = (await loadRollups([spotId], yearAgo, now)).get(spotId) ?? [];
   const hours = rollups.reduce((n, r) => n + (r.tN > 0 ? 1 : 0), 0);
-  const weatherKey = `${weather.archiveFrom}:${weather.archiveTo}:${weather.forecastAt?.getTime()}:${site.latitude}:${site.longitude}:${opts.thresholds?.join(",") ?? ""}`;
+  const weatherKey =
+    `${weather.archiveFrom}:${weather.archiveTo}:` +
+    `${weather.forecastAt?.getTime()}:${site.latitude}:` +
+    `${site.longitude}:${opts.thresholds?.join(",") ?? ""}`;
   const hit = cache.get(spotId);
   if (
     hit &&

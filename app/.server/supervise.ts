@@ -61,7 +61,9 @@ export function supervise(opts: SuperviseOptions): Supervisor {
       delay = ranMs >= stableMs ? minDelay : restarts === 0 ? minDelay : Math.min(delay * 2, maxDelay);
       restarts++;
       log(
-        `the server ${describeExit(code, signal)} after ${Math.round(ranMs / 1000)} s; starting it again in ${Math.round(delay / 100) / 10} s (restart ${restarts})`,
+        `the server ${describeExit(code, signal)} after ` +
+          `${Math.round(ranMs / 1000)} s; starting it again in ` +
+          `${Math.round(delay / 100) / 10} s (restart ${restarts})`,
       );
       timer = setTimeout(start, delay);
     });

@@ -263,7 +263,9 @@ export async function setWatchPaused(opts: {
 const PAUSE_EFFECT: Partial<Record<AlertKind, string>> = {
   cold: "Cold-snap alerts for this spot are off until someone resumes the watch: nobody will be e-mailed on a cold night.",
   silent:
-    "Silent-sensor alerts for this spot are off until someone resumes the watch: if its sensor stops sending, nobody will be told, and a cold night can pass unseen.",
+    "Silent-sensor alerts for this spot are off until someone " +
+    "resumes the watch: if its sensor stops sending, nobody will be " +
+    "told, and a cold night can pass unseen.",
 };
 
 async function tellOwnersOfPause(

@@ -36,7 +36,9 @@ export function AlertBanner({ siteId, initial, unit }: { siteId: number; initial
           </Link>
           {e.kind === "silent"
             ? " — no readings are arriving; you cannot see a cold night coming."
-            : ` — ${KINDS[e.kind].direction === "below" ? "lowest" : "highest"} ${e.peak != null ? formatValue(e.kind, e.peak, unit) : "–"}, line ${formatValue(e.kind, e.threshold, unit)}.`}{" "}
+            : ` — ${KINDS[e.kind].direction === "below" ? "lowest" : "highest"}` +
+              ` ${e.peak != null ? formatValue(e.kind, e.peak, unit) : "–"}, ` +
+              `line ${formatValue(e.kind, e.threshold, unit)}.`}{" "}
           {e.acknowledgedBy ? <span className="text-muted">Acknowledged by {e.acknowledgedBy}.</span> : null}{" "}
           <Link className="link font-medium" to={`/sites/${siteId}/alerts`}>
             See alerts

@@ -63,7 +63,8 @@ export function Inventory({
             ? "Nothing recorded in this spot yet."
             : `${pots} ${pots === 1 ? "pot" : "pots"}${capacity ? ` of room for ${capacity}` : ""}.`}
           {tender
-            ? ` Most tender: ${tender.name}, which wants nights of ${formatTemp(tender.minNightC, unit, 0)} or more — cold alerts for this spot start from it.`
+            ? ` Most tender: ${tender.name}, which wants nights of ${formatTemp(tender.minNightC, unit, 0)} or more — ` +
+              "cold alerts for this spot start from it."
             : ""}
         </p>
       </div>

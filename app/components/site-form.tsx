@@ -99,7 +99,9 @@ export function SiteForm({
         </button>
         <p className="text-sm text-muted" role="status" data-testid="location-status">
           {locating.state === "done"
-            ? `Filled in from this device (to about ${locating.accuracy < 1000 ? `${Math.round(locating.accuracy)} m` : `${Math.round(locating.accuracy / 1000)} km`}). Check them before saving.`
+            ? `Filled in from this device (to about ` +
+              `${locating.accuracy < 1000 ? `${Math.round(locating.accuracy)} m` : `${Math.round(locating.accuracy / 1000)} km`}` +
+              `). Check them before saving.`
             : locating.state === "failed"
               ? locating.message
               : "Or type them: the browser asks before it shares anything, and only the two numbers are saved."}

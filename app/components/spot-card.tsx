@@ -232,7 +232,8 @@ export function SpotCard({
       <p className="mt-auto flex items-start gap-1.5 border-t border-stone-line pt-2 text-xs text-muted tabular-nums">
         <SensorIcon size={14} className="mt-px" />
         {spot.latest
-          ? `Latest hour: ${spot.latest.t != null ? formatTemp(spot.latest.t, unit) : "–"}${spot.latest.h != null ? `, ${Math.round(spot.latest.h)} % RH` : ""}${
+          ? `Latest hour: ${spot.latest.t != null ? formatTemp(spot.latest.t, unit) : "–"}` +
+            `${spot.latest.h != null ? `, ${Math.round(spot.latest.h)} % RH` : ""}${
               hourAge < 3_600_000
                 ? " (so far this hour)"
                 : ` · nothing heard for ${timeAgo(new Date(new Date(spot.latest.hour).getTime() + 3_600_000), now).replace(" ago", "")}`

@@ -63,9 +63,13 @@ export function YearStrip({
   );
   const label =
     coldest && warmest
-      ? `${title}. ${read.length} of 12 months read; lowest ${f(coldest.temperature.lowest!)} in ${coldest.name}, highest ${f(warmest.temperature.highest!)} in ${warmest.name}` +
+      ? `${title}. ${read.length} of 12 months read; lowest ` +
+        `${f(coldest.temperature.lowest!)} in ${coldest.name}, highest ` +
+        `${f(warmest.temperature.highest!)} in ${warmest.name}` +
         (band
-          ? `; ${band.label} runs ${f(band.low)} to ${f(band.high)}, left in ${read.filter((m) => m.temperature.lowest! < band.low || m.temperature.highest! > band.high).length} months.`
+          ? `; ${band.label} runs ${f(band.low)} to ${f(band.high)}, left ` +
+            `in ` +
+            `${read.filter((m) => m.temperature.lowest! < band.low || m.temperature.highest! > band.high).length} months.`
           : ".")
       : `${title}: no months read yet.`;
   // A wide strip for desktops and a taller one with larger type for a phone held next to the spot.

@@ -157,7 +157,9 @@ describe("a logger's file of naive local times, read in file order", () => {
     });
     expect(gap).toMatchObject({ kind: "skipped", rows: 3 });
     expect(describeDstChange(repeat)).toBe(
-      "4 rows in the repeated hour of 26 October 2025 were read in file order: 2 rows as the first occurrence, UTC+02:00, then 2 rows after the clock went back as the second, UTC+01:00.",
+      "4 rows in the repeated hour of 26 October 2025 were read in " +
+        "file order: 2 rows as the first occurrence, UTC+02:00, then 2 " +
+        "rows after the clock went back as the second, UTC+01:00.",
     );
     expect(describeDstChange(gap)).toBe(
       "3 rows in the skipped hour of 30 March 2025 (clocks went forward, so those times never happened) were read as 1 h later, UTC+02:00 (02:00 as 03:00).",

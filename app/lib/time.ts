@@ -262,13 +262,21 @@ export function describeDstChange(c: DstChange): string {
     const gap = c.offsetAfterMin - c.offsetBeforeMin;
     const by = gap % 60 === 0 ? `${gap / 60} h` : `${gap} min`;
     const example = c.example ? ` (${c.example.wall} as ${c.example.readAs})` : "";
-    return `${rows(c.rows)} in the skipped hour of ${when} (clocks went forward, so those times never happened) were read as ${by} later, ${formatOffset(c.offsetAfterMin)}${example}.`;
+    return (
+      `${rows(c.rows)} in the skipped hour of ${when} (clocks went ` +
+      `forward, so those times never happened) were read as ${by} ` +
+      `later, ${formatOffset(c.offsetAfterMin)}${example}.`
+    );
   }
   const second =
     c.second > 0
       ? `, then ${rows(c.second)} after the clock went back as the second, ${formatOffset(c.offsetAfterMin)}`
       : "";
-  return `${rows(c.rows)} in the repeated hour of ${when} were read in file order: ${rows(c.first)} as the first occurrence, ${formatOffset(c.offsetBeforeMin)}${second}.`;
+  return (
+    `${rows(c.rows)} in the repeated hour of ${when} were read in ` +
+    `file order: ${rows(c.first)} as the first occurrence, ` +
+    `${formatOffset(c.offsetBeforeMin)}${second}.`
+  );
 }
 
 const NAIVE = /^(\d{4})-(\d{2})-(\d{2})[T ](\d{2}):(\d{2})(?::(\d{2}))?$/;

@@ -172,7 +172,11 @@ export default function ApiDocs({ loaderData: d }: Route.ComponentProps) {
         <Endpoint
           method="GET"
           path="/api/sites/:siteId/spots/:spotId/fits?from=YYYY-MM&to=YYYY-MM&glazing=single|old_double|double|triple"
-          who="Any member of the site. from and to are months in the site's time zone (at most 36 months); without them, the spot's latest twelve months with readings, as on the spot page."
+          who={
+            "Any member of the site. from and to are months in the site's " +
+            "time zone (at most 36 months); without them, the spot's latest " +
+            "twelve months with readings, as on the spot page."
+          }
         >
           <p className="text-sm">
             Every plant group of the site, best fit first (ranked by how far the spot misses each: degree-hours past the
@@ -203,10 +207,12 @@ export default function ApiDocs({ loaderData: d }: Route.ComponentProps) {
             <code>projected-ok</code> or <code>projected-cue</code>, each with the month, the figure and its 80 % range
             (<code>rangeC</code>). Measured months always win: a measured month is never judged from its projection.
           </p>
-          <Code>{`curl -b cookies.txt '${spot}/fits?from=2025-01&to=2025-12'
+          <Code>
+            {`curl -b cookies.txt '${spot}/fits?from=2025-01&to=2025-12'
 {"spot":{"id":1,…},"period":{"from":"2025-01-01T00:00:00.000Z","to":"2026-01-01T00:00:00.000Z","firstMonth":"2025-01","lastMonth":"2025-12","toToday":false},
  "basis":{"confidence":"measured","measuredMonths":[1,2,3,4,5,6,7,8,9,10,11,12],"projectedMonths":[],"blendedMonths":[],"years":0,"firmBy":null},
- "fits":[{"key":"phalaenopsis","level":"care","verdict":"possible with care","confidence":"measured","verdictText":"possible with care","miss":{"damage":0,"comfort":3},
+ "fits":[{"key":"phalaenopsis","level":"care","verdict":"possible with care","confidence":"measured","verdictText":"possible with care",` +
+              `"miss":{"damage":0,"comfort":3},
    "rules":[{"rule":"cold-nights","level":"care","confidence":"measured","months":["01"],
      "facts":[{"kind":"cold-snap","comfortC":16,"damageC":10,"nights":1,"worst":[{"date":"2025-01-17","valueC":13.9,"hours":1}],"degreeHours":2.1}],
      "text":"A brief cold snap: 1 night under 16 °C (17 Jan: 13.9 °C for 1 hour), above the 10 °C damage line — …"},…]},…]}
@@ -215,10 +221,13 @@ export default function ApiDocs({ loaderData: d }: Route.ComponentProps) {
 curl -b cookies.txt '${spot}/fits'
 {…,"basis":{"confidence":"mixed","measuredMonths":[11],"projectedMonths":[1,2,3,4,5,6,7,8,9,10,12],"blendedMonths":[12],"years":10,"firmBy":"2027-10-20"},
  "fits":[…,{"key":"phalaenopsis","level":"care","verdict":"possible with care","confidence":"mixed",
-   "verdictText":"likely possible with care — 1 of 12 months measured (December partly), the rest projected from 10 past years of weather; firm by 20 October 2027",
+   "verdictText":"likely possible with care — 1 of 12 months measured (December partly), ` +
+              `the rest projected from 10 past years of weather; firm by 20 October 2027",
    "rules":[{"rule":"cold-nights","level":"care","confidence":"projected","likely":"poor","months":["01"],
      "facts":[{"kind":"projected-cold","line":"damage","lineC":10,"months":[1],"worstMonth":1,"lowC":6,"rangeC":[4,8],"years":10},…],
-     "text":"January is likely to fall to 6 °C here (80 % range 4 to 8 °C, from 10 past years of weather), under Phalaenopsis's 10 °C damage line: plan to move it in January. …"},…]},…]}`}</Code>
+     "text":"January is likely to fall to 6 °C here (80 % range 4 to 8 °C, from 10 past years of weather), ` +
+              `under Phalaenopsis's 10 °C damage line: plan to move it in January. …"},…]},…]}`}
+          </Code>
         </Endpoint>
       </section>
 

@@ -296,7 +296,9 @@ export default function Import({ loaderData }: Route.ComponentProps) {
             <div className="mt-4" role="alert" data-testid="csv-outside">
               <p className="text-poor font-semibold">
                 {preview.beforeFirstPlacement > 0
-                  ? `${preview.beforeFirstPlacement.toLocaleString("en")} ${preview.beforeFirstPlacement === 1 ? "row falls" : "rows fall"} before this sensor's placement`
+                  ? `${preview.beforeFirstPlacement.toLocaleString("en")} ` +
+                    `${preview.beforeFirstPlacement === 1 ? "row falls" : "rows fall"}` +
+                    ` before this sensor's placement`
                   : ""}
                 {preview.beforeFirstPlacement > 0 && preview.outsideSpots > preview.beforeFirstPlacement ? "; " : ""}
                 {preview.outsideSpots > preview.beforeFirstPlacement

@@ -161,8 +161,14 @@ export default function SensorPage({ loaderData, actionData }: Route.ComponentPr
   const shownSecret = secret ?? "YOUR-SENSOR-SECRET";
   const topic = `nichewise/sensors/${sensor.id}/reading`;
   const example = `{"time":"2026-12-01T21:00:00Z","temperature":18.4,"humidity":56}`;
-  const mosquitto = `mosquitto_pub -h ${connect.host} -p ${connect.port} -q 1 -u ${sensor.id} -P '${shownSecret}' -t ${topic} -m '{"temperature":18.4,"humidity":56}'`;
-  const curl = `curl -X POST ${connect.httpUrl} -H 'Authorization: Bearer ${sensor.id}.${shownSecret}' -H 'Content-Type: application/json' -d '{"readings":[${example}]}'`;
+  const mosquitto =
+    `mosquitto_pub -h ${connect.host} -p ${connect.port} -q 1 -u ` +
+    `${sensor.id} -P '${shownSecret}' -t ${topic} -m ` +
+    `'{"temperature":18.4,"humidity":56}'`;
+  const curl =
+    `curl -X POST ${connect.httpUrl} -H 'Authorization: Bearer ` +
+    `${sensor.id}.${shownSecret}' -H 'Content-Type: ` +
+    `application/json' -d '{"readings":[${example}]}'`;
 
   return (
     <div className="grid grid-cols-1 gap-6 lg:grid-cols-[minmax(0,1fr)_22rem]">

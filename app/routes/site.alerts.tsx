@@ -123,7 +123,8 @@ export default function SiteAlerts({ loaderData, actionData }: Route.ComponentPr
         <p className="text-sm text-muted">
           since {formatInZone(e.startedAt, site.timeZone)}
           {e.endedAt
-            ? ` · ended ${formatInZone(e.endedAt, site.timeZone)} · lasted ${formatDuration((new Date(e.endedAt).getTime() - new Date(e.startedAt).getTime()) / 60_000)}`
+            ? ` · ended ${formatInZone(e.endedAt, site.timeZone)} · lasted ` +
+              `${formatDuration((new Date(e.endedAt).getTime() - new Date(e.startedAt).getTime()) / 60_000)}`
             : ` · ${timeAgo(e.startedAt, now)}`}
         </p>
       </div>

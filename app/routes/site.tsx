@@ -99,7 +99,13 @@ function SiteFrame({
         {/* A phone gets a menu that names the section you are in (closed again after each move);
             a wider screen gets every tab, wrapping rather than scrolling out of sight. */}
         <details key={location.pathname} className="group sm:hidden" data-testid="site-menu">
-          <summary className="flex cursor-pointer items-center justify-between gap-3 rounded-t-[1.1rem] rounded-b-[0.2rem] border border-b-[3px] border-stone-line bg-card px-4 py-3">
+          <summary
+            className={
+              "flex cursor-pointer items-center justify-between gap-3 " +
+              "rounded-t-[1.1rem] rounded-b-[0.2rem] border border-b-[3px] " +
+              "border-stone-line bg-card px-4 py-3"
+            }
+          >
             <span>
               <span className="eyebrow block">Section</span>
               <span className="font-semibold">{current?.label ?? "Choose a section"}</span>
@@ -131,7 +137,13 @@ function SiteFrame({
               <Link
                 to={t.to}
                 {...here(t)}
-                className="-mb-0.5 block rounded-t-[1.1rem] border-2 border-transparent px-3.5 pt-2.5 pb-2 text-sm font-medium text-muted hover:text-ink data-[here]:border-stone-line data-[here]:border-b-card data-[here]:bg-card data-[here]:font-semibold data-[here]:text-ink"
+                className={
+                  "-mb-0.5 block rounded-t-[1.1rem] border-2 border-transparent " +
+                  "px-3.5 pt-2.5 pb-2 text-sm font-medium text-muted " +
+                  "hover:text-ink data-[here]:border-stone-line " +
+                  "data-[here]:border-b-card data-[here]:bg-card " +
+                  "data-[here]:font-semibold data-[here]:text-ink"
+                }
               >
                 {t.label}
               </Link>

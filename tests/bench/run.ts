@@ -510,12 +510,19 @@ async function bench() {
     const pgCpu = await postgresCpuMsSince(pg0);
     const rate = r.acked / (r.ms / 1000);
     log(
-      `${label}: ${fmt(rate)}/s acked ${r.acked} failed ${r.failed} p50 ${r.p50?.toFixed(1)} ms p99 ${r.p99?.toFixed(1)} ms; CPU s: loadgen ${fmt(r.cpuMs / 1000, 1)}, broker+writer ${fmt(brokerCpu / 1000, 1)}, PostgreSQL ${fmt(pgCpu / 1000, 1)} over ${fmt(wall / 1000, 1)} s`,
+      `${label}: ${fmt(rate)}/s acked ${r.acked} failed ${r.failed} ` +
+        `p50 ${r.p50?.toFixed(1)} ms p99 ${r.p99?.toFixed(1)} ms; CPU s: ` +
+        `loadgen ${fmt(r.cpuMs / 1000, 1)}, broker+writer ` +
+        `${fmt(brokerCpu / 1000, 1)}, PostgreSQL ${fmt(pgCpu / 1000, 1)} ` +
+        `over ${fmt(wall / 1000, 1)} s`,
     );
     return {
       ...r,
       rate,
-      cpu: `CPU s — load generator ${fmt(r.cpuMs / 1000, 1)}, broker + writer ${fmt(brokerCpu / 1000, 1)}, PostgreSQL ${fmt(pgCpu / 1000, 1)} (wall ${fmt(wall / 1000, 1)} s)`,
+      cpu:
+        `CPU s — load generator ${fmt(r.cpuMs / 1000, 1)}, broker + ` +
+        `writer ${fmt(brokerCpu / 1000, 1)}, PostgreSQL ` +
+        `${fmt(pgCpu / 1000, 1)} (wall ${fmt(wall / 1000, 1)} s)`,
     };
   }
 
@@ -735,7 +742,11 @@ async function bench() {
   // Columns of the rebuild SELECT are unnamed aggregates; name them so both paths read the same.
   const named = RAW_HOURLY.replace(
     /SELECT spot_id, hour, count\(t\)::int, min\(t\), max\(t\), sum\(t\), count\(h\)::int, min\(h\), max\(h\), sum\(h\),\s*min\(dew_point_margin\(t, h\)\), count\(l\)::int, sum\(l\), max\(l\)/,
-    "SELECT spot_id, hour, count(t)::int AS t_n, min(t) AS t_min, max(t) AS t_max, sum(t) AS t_sum, count(h)::int AS h_n, min(h) AS h_min, max(h) AS h_max, sum(h) AS h_sum, min(dew_point_margin(t, h)) AS dp, count(l)::int AS lux_n, sum(l) AS lux_sum, max(l) AS lux_max",
+    "SELECT spot_id, hour, count(t)::int AS t_n, min(t) AS t_min, " +
+      "max(t) AS t_max, sum(t) AS t_sum, count(h)::int AS h_n, min(h) " +
+      "AS h_min, max(h) AS h_max, sum(h) AS h_sum, " +
+      "min(dew_point_margin(t, h)) AS dp, count(l)::int AS lux_n, " +
+      "sum(l) AS lux_sum, max(l) AS lux_max",
   );
   async function fromRawNamed(from: Date, to: Date) {
     const res = await p.query(named + " ORDER BY hour", [[target], from, to]);
@@ -796,7 +807,11 @@ async function bench() {
     baseline: `${fmt(rw, 1)} (same figures from raw readings)`,
     ratio: `${fmt(rw / pr)}× faster`,
     target: "≥ 100× and ≤ 20 ms",
-    note: `${fmt(rawCount)} raw readings in the table; largest difference between the two ${maxDiff.toFixed(4)} °C (tolerance 0.01 °C); median of 9 after 20 loads to warm up (the first load after start, reading the rollups, took ${fmt(firstMs)} ms)`,
+    note:
+      `${fmt(rawCount)} raw readings in the table; largest difference ` +
+      `between the two ${maxDiff.toFixed(4)} °C (tolerance 0.01 °C); ` +
+      `median of 9 after 20 loads to warm up (the first load after ` +
+      `start, reading the rollups, took ${fmt(firstMs)} ms)`,
   });
   rows.push({
     figure: "Season profile as above, rollups read without the cache (first load) (ms)",
@@ -841,7 +856,9 @@ async function bench() {
     seriesTimes.push(ms);
   }
   const hourly = await p.query(
-    "SELECT extract(epoch FROM hour)::bigint AS t, t_sum / nullif(t_n, 0) AS temp FROM hourly_rollups WHERE spot_id = $1 AND hour > now() - interval '1 year' ORDER BY hour",
+    "SELECT extract(epoch FROM hour)::bigint AS t, t_sum / " +
+      "nullif(t_n, 0) AS temp FROM hourly_rollups WHERE spot_id = $1 " +
+      "AND hour > now() - interval '1 year' ORDER BY hour",
     [target],
   );
   const hourlyPayload = JSON.stringify({
@@ -917,7 +934,13 @@ async function phoneBench() {
 }
 
 function output(started: Date) {
-  const header = `Nichewise benchmark — ${started.toISOString().slice(0, 16).replace("T", " ")} UTC — ${os.cpus().length} cores (${os.cpus()[0]?.model ?? ""}), ${Math.round(os.totalmem() / 2 ** 30)} GiB, Node ${process.version}, PostgreSQL 15 on loopback${QUICK ? " — QUICK (smaller data)" : ""}`;
+  const header =
+    `Nichewise benchmark — ` +
+    `${started.toISOString().slice(0, 16).replace("T", " ")} UTC — ` +
+    `${os.cpus().length} cores (${os.cpus()[0]?.model ?? ""}), ` +
+    `${Math.round(os.totalmem() / 2 ** 30)} GiB, Node ` +
+    `${process.version}, PostgreSQL 15 on loopback` +
+    `${QUICK ? " — QUICK (smaller data)" : ""}`;
   const md = [
     `**${header}**`,
     "",
@@ -1024,9 +1047,22 @@ async function csvUnderLoad(opts: { sensorId: number; creds: { id: number; secre
   await new Promise((r) => ingest.once("exit", r));
   rmSync(file, { force: true });
   log(
-    `CSV under MQTT load: ${fmt(csv.rows)} rows, preview ${fmt(csv.previewMs)} ms, import ${fmt(csv.importMs)} ms (${fmt(csv.stored)} stored, ${csv.dst} clock changes); event loop p50 ${csv.p50Ms.toFixed(1)} / p99 ${csv.p99Ms.toFixed(1)} / max ${csv.maxMs.toFixed(1)} ms; RSS +${fmt(csv.growthMb)} MB at peak (heap ${fmt(csv.heapUsedMb)} of ${fmt(csv.heapTotalMb)} MB at the end, +${fmt(csv.afterGcMb)} MB after a collection); MQTT acked ${mqtt.acked} failed ${mqtt.failed} p99 ${mqtt.p99.toFixed(1)} ms`,
+    `CSV under MQTT load: ${fmt(csv.rows)} rows, preview ` +
+      `${fmt(csv.previewMs)} ms, import ${fmt(csv.importMs)} ms (` +
+      `${fmt(csv.stored)} stored, ${csv.dst} clock changes); event ` +
+      `loop p50 ${csv.p50Ms.toFixed(1)} / p99 ${csv.p99Ms.toFixed(1)} ` +
+      `/ max ${csv.maxMs.toFixed(1)} ms; RSS +${fmt(csv.growthMb)} MB ` +
+      `at peak (heap ${fmt(csv.heapUsedMb)} of ${fmt(csv.heapTotalMb)} ` +
+      `MB at the end, +${fmt(csv.afterGcMb)} MB after a collection); ` +
+      `MQTT acked ${mqtt.acked} failed ${mqtt.failed} p99 ` +
+      `${mqtt.p99.toFixed(1)} ms`,
   );
-  const note = `${fmt(csv.rows)}-row CSV (${opts.timeZone} local times) previewed in ${fmt(csv.previewMs / 1000, 1)} s and imported in ${fmt(csv.importMs / 1000, 1)} s (${fmt(csv.rows / (csv.importMs / 1000))} rows/s) in the ingest process, beside 20 MQTT sensors at ${fmt(rate)} readings/s`;
+  const note =
+    `${fmt(csv.rows)}-row CSV (${opts.timeZone} local times) ` +
+    `previewed in ${fmt(csv.previewMs / 1000, 1)} s and imported in ` +
+    `${fmt(csv.importMs / 1000, 1)} s (` +
+    `${fmt(csv.rows / (csv.importMs / 1000))} rows/s) in the ingest ` +
+    `process, beside 20 MQTT sensors at ${fmt(rate)} readings/s`;
   rows.push({
     figure: "Event-loop delay while a CSV is previewed and imported beside MQTT load, p50 / p99 / max (ms)",
     ours: `${csv.p50Ms.toFixed(1)} / ${csv.p99Ms.toFixed(1)} / ${csv.maxMs.toFixed(1)}`,

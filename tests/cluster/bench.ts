@@ -155,7 +155,14 @@ export async function clusterBench(o: {
       const pgMs = await o.postgresCpuMsSince(pg0);
       const rate = r.acked / (storedMs / 1000);
       const wall = (performance.now() - t) / 1000;
-      const note = `engine acked ${fmt(r.acked / (r.ms / 1000))}/s (ack p50 / p99 ${r.p50.toFixed(1)} / ${r.p99.toFixed(1)} ms); CPU s — load generator ${fmt(r.cpuMs / 1000, 1)}, RabbitMQ (3 nodes) ${fmt((cpu1.engine - cpu0.engine) / 1000, 1)}, worker${workers.length > 1 ? "s" : ""} ${fmt((cpu1.workers - cpu0.workers) / 1000, 1)}, PostgreSQL ${fmt(pgMs / 1000, 1)} (wall ${fmt(wall, 1)} s)`;
+      const note =
+        `engine acked ${fmt(r.acked / (r.ms / 1000))}/s (ack p50 / p99 ` +
+        `${r.p50.toFixed(1)} / ${r.p99.toFixed(1)} ms); CPU s — load ` +
+        `generator ${fmt(r.cpuMs / 1000, 1)}, RabbitMQ (3 nodes) ` +
+        `${fmt((cpu1.engine - cpu0.engine) / 1000, 1)}, worker` +
+        `${workers.length > 1 ? "s" : ""} ` +
+        `${fmt((cpu1.workers - cpu0.workers) / 1000, 1)}, PostgreSQL ` +
+        `${fmt(pgMs / 1000, 1)} (wall ${fmt(wall, 1)} s)`;
       o.log(`cluster section: ${label} ${fmt(rate)}/s stored; ${note}`);
       rows.push({
         figure: `Cluster mode, 3 RabbitMQ nodes → ${label}: readings stored/s, 20 clients × 50 in flight`,
@@ -186,7 +193,9 @@ export async function clusterBench(o: {
       baseline: "—",
       ratio: "—",
       target: "—",
-      note: `resident memory after the runs: ${engine.nodes.map((n) => `${fmt(Number(/VmRSS:\s+(\d+)/.exec(safeRead(`/proc/${engine.pid(n.index)}/status`))?.[1] ?? 0) / 1024)} MB`).join(", ")}`,
+      note:
+        `resident memory after the runs: ` +
+        `${engine.nodes.map((n) => `${fmt(Number(/VmRSS:\s+(\d+)/.exec(safeRead(`/proc/${engine.pid(n.index)}/status`))?.[1] ?? 0) / 1024)} MB`).join(", ")}`,
     });
   } finally {
     for (const w of workers) {

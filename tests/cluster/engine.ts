@@ -176,7 +176,10 @@ export async function startEngineCluster(o: {
     }
   };
   log(
-    `RabbitMQ: ${count} nodes in one cluster after ${startSeconds.toFixed(1)} s (AMQP ${nodes.map((n) => n.amqpPort).join(", ")}; MQTT ${nodes.map((n) => n.mqttPort).join(", ")})`,
+    `RabbitMQ: ${count} nodes in one cluster after ` +
+      `${startSeconds.toFixed(1)} s (AMQP ` +
+      `${nodes.map((n) => n.amqpPort).join(", ")}; MQTT ` +
+      `${nodes.map((n) => n.mqttPort).join(", ")})`,
   );
   return {
     nodes,

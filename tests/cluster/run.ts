@@ -165,7 +165,10 @@ async function main() {
     console.log(`\ncluster mode: 3 RabbitMQ nodes, 2 ingest workers, 2 web instances\n${formatReport(report)}`);
     console.log(`active shards (of 4) at the first fault: ${spreadAtStart.text}; at the end: ${shardReport()}`);
     console.log(
-      `engine start ${engine.startSeconds.toFixed(1)} s; ingest takeover ${workerTakeoverMs ?? "-"} ms; alert lease takeover ${takeoverMs ?? "-"} ms (engine running after ${engineMs ?? "-"} ms); resident memory before the faults: ${memory.join(", ")}`,
+      `engine start ${engine.startSeconds.toFixed(1)} s; ingest ` +
+        `takeover ${workerTakeoverMs ?? "-"} ms; alert lease takeover ` +
+        `${takeoverMs ?? "-"} ms (engine running after ${engineMs ?? "-"}` +
+        ` ms); resident memory before the faults: ${memory.join(", ")}`,
     );
     failed = soakFailed(report) || takeoverMs === null || workerTakeoverMs === null;
     console.log(

@@ -147,7 +147,10 @@ describe("ingest workers sharing the stream (sharded by sensor)", () => {
     expect(await eventually(async () => (await stored()) >= sent)).toBe(true);
 
     console.log(
-      `${round} rounds, ${sent} readings; worker a stored ${a.stats.accepted} (shards [${a.activeShards()}]), b ${b.stats.accepted} (shards [${b.activeShards()}])\n${logs.join("\n")}`,
+      `${round} rounds, ${sent} readings; worker a stored ` +
+        `${a.stats.accepted} (shards [${a.activeShards()}]), b ` +
+        `${b.stats.accepted} (shards [${b.activeShards()}])\n` +
+        `${logs.join("\n")}`,
     );
     // Both workers wrote readings: the stream is shared, not one active worker and a standby.
     expect(a.stats.accepted).toBeGreaterThan(0);

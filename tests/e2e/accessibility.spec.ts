@@ -24,7 +24,9 @@ async function violations(page: Page, path: string) {
     .filter((v) => v.impact === "serious" || v.impact === "critical")
     .map(
       (v) =>
-        `${path}: ${v.id} (${v.impact}) ${v.nodes.length}× e.g. ${v.nodes[0]?.target.join(" ")} — ${v.nodes[0]?.failureSummary?.split("\n")[1]?.trim() ?? v.help}`,
+        `${path}: ${v.id} (${v.impact}) ${v.nodes.length}× e.g. ` +
+        `${v.nodes[0]?.target.join(" ")} — ` +
+        `${v.nodes[0]?.failureSummary?.split("\n")[1]?.trim() ?? v.help}`,
     );
 }
 

@@ -53,7 +53,9 @@ test("CSV preview: says how a repeated hour was read and warns of rows before th
   await page.getByLabel("Readings from sensor").selectOption({ label: "Spare room sensor (in Spare room (heated))" });
   await page.getByRole("button", { name: "Preview" }).click();
   await expect(page.getByTestId("csv-dst")).toContainText(
-    "4 rows in the repeated hour of 27 October 2024 were read in file order: 2 rows as the first occurrence, UTC+01:00, then 2 rows after the clock went back as the second, UTC+00:00.",
+    "4 rows in the repeated hour of 27 October 2024 were read in " +
+      "file order: 2 rows as the first occurrence, UTC+01:00, then 2 " +
+      "rows after the clock went back as the second, UTC+00:00.",
   );
   const outside = page.getByTestId("csv-outside");
   await expect(outside).toContainText("6 rows fall before this sensor's placement");

@@ -40,20 +40,23 @@ test("the water form: a pH of 15 is refused at its field before sending, a futur
   await expect(page.getByTestId("water-sources")).not.toContainText("Water butt");
 });
 
-test("settings: a short new password is refused at its field, and a wrong current one by the server (the answer carries neither: tests/integration/form-schemas.test.ts)", async ({
-  page,
-}) => {
-  await signIn(page, DEMO.owner);
-  await page.goto("/settings");
-  const form = page.locator("form#password");
-  await form.getByLabel("Current password").fill("not the password");
-  await form.getByLabel("New password (at least 10 characters)").fill("short");
-  await form.getByRole("button", { name: "Change password" }).click();
-  await expect(form.getByText("Use at least 10 characters")).toBeVisible();
-  await form.getByLabel("New password (at least 10 characters)").fill("a long enough new one");
-  await form.getByRole("button", { name: "Change password" }).click();
-  await expect(form.getByText("Your current password is not right.")).toBeVisible();
-});
+test(
+  "settings: a short new password is refused at its field, and a " +
+    "wrong current one by the server (the answer carries neither: " +
+    "tests/integration/form-schemas.test.ts)",
+  async ({ page }) => {
+    await signIn(page, DEMO.owner);
+    await page.goto("/settings");
+    const form = page.locator("form#password");
+    await form.getByLabel("Current password").fill("not the password");
+    await form.getByLabel("New password (at least 10 characters)").fill("short");
+    await form.getByRole("button", { name: "Change password" }).click();
+    await expect(form.getByText("Use at least 10 characters")).toBeVisible();
+    await form.getByLabel("New password (at least 10 characters)").fill("a long enough new one");
+    await form.getByRole("button", { name: "Change password" }).click();
+    await expect(form.getByText("Your current password is not right.")).toBeVisible();
+  },
+);
 
 test("a watch: minutes that are not a whole number are refused at that field of that watch only, and the line typed stays", async ({
   page,

@@ -504,9 +504,14 @@ export async function runSoak(o: SoakOptions): Promise<SoakReport> {
     if (alerts) c.alerts = await alerts.check(openBefore);
     figures.push({ kind: f.kind, at: f.at, inFlight, outageMs, firstAckMs, recoveredMs, check: c });
     log(
-      `${c.after}: down ${outageMs} ms, recovered ${recoveredMs} ms after; acked ${c.acked}, stored ${c.stored}, lost ${c.lost}, double-counted ${c.doubleCounted}, rollup hours differing ${c.rollupHoursDiffering}` +
+      `${c.after}: down ${outageMs} ms, recovered ${recoveredMs} ms ` +
+        `after; acked ${c.acked}, stored ${c.stored}, lost ${c.lost}, ` +
+        `double-counted ${c.doubleCounted}, rollup hours differing ` +
+        `${c.rollupHoursDiffering}` +
         (c.alerts
-          ? `; alert events ${c.alerts.events} (${c.alerts.open} open), open twice ${c.alerts.repeated}, overlapping ${c.alerts.overlapping}, open ones lost ${c.alerts.lostOpen}`
+          ? `; alert events ${c.alerts.events} (${c.alerts.open} open), ` +
+            `open twice ${c.alerts.repeated}, overlapping ` +
+            `${c.alerts.overlapping}, open ones lost ${c.alerts.lostOpen}`
           : ""),
     );
   }
@@ -624,23 +629,40 @@ export function formatReport(r: SoakReport): string {
   const lines = [
     `clients ${r.clients}; readings ${r.distinct} distinct in ${r.messages} messages (simulator duplicates included)`,
     `sent ${r.sent} publish calls (MQTT.js's own resends not counted), acked ${r.acked}, stored ${r.stored}`,
-    `lost ${r.lost}, double-counted ${r.doubleCounted}, stored but never sent ${r.unexpected}, values differing ${r.valueMismatches}, rollup hours differing from raw ${r.rollupHoursDiffering}`,
+    `lost ${r.lost}, double-counted ${r.doubleCounted}, stored but ` +
+      `never sent ${r.unexpected}, values differing ` +
+      `${r.valueMismatches}, rollup hours differing from raw ` +
+      `${r.rollupHoursDiffering}`,
     `refused by the broker ${r.rejectedByBroker}, failed writes ${r.writeFailures}, client reconnects ${r.reconnects}`,
     `${r.seconds.toFixed(1)} s in all, ${r.readingsPerSecond} readings/s including faults`,
     "fault                 at  in flight  down ms  first ack ms  recovered ms  acked   lost  double",
     ...r.faults.map(
       (f) =>
-        `${f.kind.padEnd(20)} ${String(Math.round(f.at * 100)).padStart(3)} % ${String(f.inFlight).padStart(9)} ${String(f.outageMs).padStart(8)} ${String(f.firstAckMs ?? "-").padStart(13)} ${String(f.recoveredMs).padStart(13)} ${String(f.check.acked).padStart(6)} ${String(f.check.lost).padStart(6)} ${String(f.check.doubleCounted).padStart(7)}`,
+        `${f.kind.padEnd(20)} ` +
+        `${String(Math.round(f.at * 100)).padStart(3)} % ` +
+        `${String(f.inFlight).padStart(9)} ` +
+        `${String(f.outageMs).padStart(8)} ` +
+        `${String(f.firstAckMs ?? "-").padStart(13)} ` +
+        `${String(f.recoveredMs).padStart(13)} ` +
+        `${String(f.check.acked).padStart(6)} ` +
+        `${String(f.check.lost).padStart(6)} ` +
+        `${String(f.check.doubleCounted).padStart(7)}`,
     ),
   ];
   if (r.alerts) {
     const a = r.alerts;
     lines.push(
-      `alerts: ${a.rules} rules, ${a.events} events (${a.open} open at the end); open twice ${a.repeated}, open events lost in a fault ${a.lostOpen}, events of one rule overlapping in time ${a.overlapping}`,
+      `alerts: ${a.rules} rules, ${a.events} events (${a.open} open ` +
+        `at the end); open twice ${a.repeated}, open events lost in a ` +
+        `fault ${a.lostOpen}, events of one rule overlapping in time ` +
+        `${a.overlapping}`,
     );
     if (a.reference)
       lines.push(
-        `alerts re-evaluated over the stored readings in time order: ${a.reference.events} events, ${a.reference.withoutEngineEvent} with no overlapping engine event; engine events with no re-evaluated one ${a.reference.engineWithoutReference}`,
+        `alerts re-evaluated over the stored readings in time order: ` +
+          `${a.reference.events} events, ${a.reference.withoutEngineEvent} ` +
+          `with no overlapping engine event; engine events with no ` +
+          `re-evaluated one ${a.reference.engineWithoutReference}`,
       );
     const problems = alertProblems(a);
     lines.push(

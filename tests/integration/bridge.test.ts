@@ -311,7 +311,9 @@ describe("bridge mode through a real Mosquitto", () => {
       );
       expect(all).toBe(true);
       const res = await pool().query(
-        "SELECT count(*)::int AS n, count(DISTINCT measured_at)::int AS d, min(measured_at) AS first, max(measured_at) AS last FROM readings WHERE sensor_id = $1",
+        "SELECT count(*)::int AS n, count(DISTINCT measured_at)::int AS " +
+          "d, min(measured_at) AS first, max(measured_at) AS last FROM " +
+          "readings WHERE sensor_id = $1",
         [sensor.id],
       );
       expect(res.rows[0]).toMatchObject({ n: N, d: N });

@@ -73,7 +73,9 @@ describe("the import page's action", () => {
     expect(preview.failed.map((f) => f.line)).toEqual([4]);
     expect(preview.dstChanges).toEqual([
       // The row with a bad temperature counts too: its time was read before the row was refused.
-      "4 rows in the repeated hour of 26 October 2025 were read in file order: 2 rows as the first occurrence, UTC+02:00, then 2 rows after the clock went back as the second, UTC+01:00.",
+      "4 rows in the repeated hour of 26 October 2025 were read in " +
+        "file order: 2 rows as the first occurrence, UTC+02:00, then 2 " +
+        "rows after the clock went back as the second, UTC+01:00.",
     ]);
     expect(preview.beforeFirstPlacement).toBe(1);
     expect(preview.sensorPage).toBe(`/sites/${site.id}/sensors/${sensor.id}#placements`);
@@ -125,46 +127,51 @@ describe("the import page's action", () => {
     }
   });
 
-  it("answers a bad time zone, date format and column with errors on those fields, keeping what was chosen; 'none' leaves a column out (issue 18)", async () => {
-    const { site, sensor, token } = await setup();
-    const fields = {
-      intent: "preview",
-      sensorId: String(sensor.id),
-      dateFormat: "yyyy",
-      timeZone: "Mars/Olympus_Mons",
-      humidity: "second",
-    };
-    const { status, body } = answer(await post(site.id, token, CSV, fields));
-    expect(status).toBe(400);
-    const reply = body.result as { error: Record<string, string[]>; initialValue: Record<string, unknown> };
-    expect(reply.error).toMatchObject({
-      dateFormat: ["Choose how the dates are written"],
-      timeZone: ["Choose a time zone from the list."],
-      humidity: ["Choose a column of the file"],
-    });
-    expect(reply.initialValue).toMatchObject({
-      sensorId: String(sensor.id),
-      dateFormat: "yyyy",
-      timeZone: "Mars/Olympus_Mons",
-      humidity: "second",
-    });
-    expect(reply.initialValue).not.toHaveProperty("file"); // a File cannot go back to the page
-    const noSensor = answer(await post(site.id, token, CSV, { intent: "preview", sensorId: "" }));
-    expect((noSensor.body.result as { error: Record<string, string[]> }).error.sensorId).toEqual([
-      "Choose the sensor the readings came from.",
-    ]);
-
-    const good = answer(
-      await post(site.id, token, CSV, {
+  it(
+    "answers a bad time zone, date format and column with errors on " +
+      "those fields, keeping what was chosen; 'none' leaves a column " +
+      "out (issue 18)",
+    async () => {
+      const { site, sensor, token } = await setup();
+      const fields = {
         intent: "preview",
         sensorId: String(sensor.id),
-        temperature: "none",
-        timestamp: "0",
-      }),
-    );
-    expect(good.status).toBe(200);
-    expect((good.body.preview as { mapping: { temperature: number | null; timestamp: number } }).mapping).toMatchObject(
-      { temperature: null, timestamp: 0 },
-    );
-  });
+        dateFormat: "yyyy",
+        timeZone: "Mars/Olympus_Mons",
+        humidity: "second",
+      };
+      const { status, body } = answer(await post(site.id, token, CSV, fields));
+      expect(status).toBe(400);
+      const reply = body.result as { error: Record<string, string[]>; initialValue: Record<string, unknown> };
+      expect(reply.error).toMatchObject({
+        dateFormat: ["Choose how the dates are written"],
+        timeZone: ["Choose a time zone from the list."],
+        humidity: ["Choose a column of the file"],
+      });
+      expect(reply.initialValue).toMatchObject({
+        sensorId: String(sensor.id),
+        dateFormat: "yyyy",
+        timeZone: "Mars/Olympus_Mons",
+        humidity: "second",
+      });
+      expect(reply.initialValue).not.toHaveProperty("file"); // a File cannot go back to the page
+      const noSensor = answer(await post(site.id, token, CSV, { intent: "preview", sensorId: "" }));
+      expect((noSensor.body.result as { error: Record<string, string[]> }).error.sensorId).toEqual([
+        "Choose the sensor the readings came from.",
+      ]);
+
+      const good = answer(
+        await post(site.id, token, CSV, {
+          intent: "preview",
+          sensorId: String(sensor.id),
+          temperature: "none",
+          timestamp: "0",
+        }),
+      );
+      expect(good.status).toBe(200);
+      expect(
+        (good.body.preview as { mapping: { temperature: number | null; timestamp: number } }).mapping,
+      ).toMatchObject({ temperature: null, timestamp: 0 });
+    },
+  );
 });

@@ -129,255 +129,289 @@ describe("alert e-mails", () => {
 });
 
 describe("water checks", () => {
-  it("an own source without a name and a pH of 15 are errors on their fields, every value typed is sent back and nothing is stored; a decimal comma still reads", async () => {
-    const { user, token } = await signedIn();
-    const site = await makeSite(user);
-    const params = { siteId: String(site.id) };
-    const typed = {
-      intent: "log",
-      source: "other",
-      ownSource: "",
-      checkedOn: "2025-05-01",
-      measure: "ec",
-      value: "150",
-      scale: "0.7",
-      ph: "15",
-    };
-    const bad = await call(waterAction as Fn, post(token, "/", typed), params);
-    expect(bad.status).toBe(400);
-    const reply = (bad.body as { result: Reply }).result;
-    expect(reply.error?.ph).toEqual(["pH is between 0 and 14."]);
-    expect(reply.initialValue).toMatchObject({
-      source: "other",
-      checkedOn: "2025-05-01",
-      measure: "ec",
-      value: "150",
-      scale: "0.7",
-      ph: "15",
-    });
-    const noName = await call(waterAction as Fn, post(token, "/", { ...typed, ph: "6,5" }), params);
-    expect((noName.body as { result: Reply }).result.error?.ownSource).toEqual([
-      "Name the water source (up to 40 characters), or choose tap, rain or filtered.",
-    ]);
-    const future = await call(
-      waterAction as Fn,
-      post(token, "/", { ...typed, ownSource: "Water butt", ph: "6,5", checkedOn: "2999-01-01" }),
-      params,
-    );
-    expect((future.body as { result: Reply }).result.error?.checkedOn).toEqual(["The date cannot be in the future."]);
-    expect(await listWaterChecks(site.id)).toHaveLength(0);
+  it(
+    "an own source without a name and a pH of 15 are errors on " +
+      "their fields, every value typed is sent back and nothing is " +
+      "stored; a decimal comma still reads",
+    async () => {
+      const { user, token } = await signedIn();
+      const site = await makeSite(user);
+      const params = { siteId: String(site.id) };
+      const typed = {
+        intent: "log",
+        source: "other",
+        ownSource: "",
+        checkedOn: "2025-05-01",
+        measure: "ec",
+        value: "150",
+        scale: "0.7",
+        ph: "15",
+      };
+      const bad = await call(waterAction as Fn, post(token, "/", typed), params);
+      expect(bad.status).toBe(400);
+      const reply = (bad.body as { result: Reply }).result;
+      expect(reply.error?.ph).toEqual(["pH is between 0 and 14."]);
+      expect(reply.initialValue).toMatchObject({
+        source: "other",
+        checkedOn: "2025-05-01",
+        measure: "ec",
+        value: "150",
+        scale: "0.7",
+        ph: "15",
+      });
+      const noName = await call(waterAction as Fn, post(token, "/", { ...typed, ph: "6,5" }), params);
+      expect((noName.body as { result: Reply }).result.error?.ownSource).toEqual([
+        "Name the water source (up to 40 characters), or choose tap, rain or filtered.",
+      ]);
+      const future = await call(
+        waterAction as Fn,
+        post(token, "/", { ...typed, ownSource: "Water butt", ph: "6,5", checkedOn: "2999-01-01" }),
+        params,
+      );
+      expect((future.body as { result: Reply }).result.error?.checkedOn).toEqual(["The date cannot be in the future."]);
+      expect(await listWaterChecks(site.id)).toHaveLength(0);
 
-    expect(
-      (await call(waterAction as Fn, post(token, "/", { ...typed, ownSource: "Water butt", ph: "6,5" }), params)).body,
-    ).toMatchObject({ ok: true, source: "Water butt" });
-    expect((await listWaterChecks(site.id)).map((c) => [c.source, c.ec, c.ecScale, c.ph])).toEqual([
-      ["Water butt", 150, 0.7, 6.5],
-    ]);
-  });
+      expect(
+        (await call(waterAction as Fn, post(token, "/", { ...typed, ownSource: "Water butt", ph: "6,5" }), params))
+          .body,
+      ).toMatchObject({ ok: true, source: "Water butt" });
+      expect((await listWaterChecks(site.id)).map((c) => [c.source, c.ec, c.ecScale, c.ph])).toEqual([
+        ["Water butt", 150, 0.7, 6.5],
+      ]);
+    },
+  );
 });
 
 describe("wishes", () => {
-  it("0 pots on the wishlist or a plant's page is an error on the pots with the plant and must-have kept; an unknown plant is refused on its field", async () => {
-    const { user, token } = await signedIn();
-    const site = await makeSite(user);
-    const params = { siteId: String(site.id) };
-    const bad = await call(
-      wishlistAction as Fn,
-      post(token, "/", { intent: "save", plantKey: "hoya", pots: "0", mustHave: "on" }),
-      params,
-    );
-    expect(bad.status).toBe(400);
-    const reply = bad.body as { plantKey: string; result: Reply };
-    expect(reply.plantKey).toBe("hoya");
-    expect(reply.result.error?.pots).toEqual(["At least one pot"]);
-    expect(reply.result.initialValue).toMatchObject({ plantKey: "hoya", pots: "0", mustHave: "on" });
-    const unknown = await call(
-      wishlistAction as Fn,
-      post(token, "/", { intent: "save", plantKey: "no-such-plant", pots: "1" }),
-      params,
-    );
-    expect((unknown.body as { result: Reply }).result.error?.plantKey).toEqual(["Choose a plant from the list."]);
-    expect(await siteWishlist(site.id)).toHaveLength(0);
+  it(
+    "0 pots on the wishlist or a plant's page is an error on the " +
+      "pots with the plant and must-have kept; an unknown plant is " +
+      "refused on its field",
+    async () => {
+      const { user, token } = await signedIn();
+      const site = await makeSite(user);
+      const params = { siteId: String(site.id) };
+      const bad = await call(
+        wishlistAction as Fn,
+        post(token, "/", { intent: "save", plantKey: "hoya", pots: "0", mustHave: "on" }),
+        params,
+      );
+      expect(bad.status).toBe(400);
+      const reply = bad.body as { plantKey: string; result: Reply };
+      expect(reply.plantKey).toBe("hoya");
+      expect(reply.result.error?.pots).toEqual(["At least one pot"]);
+      expect(reply.result.initialValue).toMatchObject({ plantKey: "hoya", pots: "0", mustHave: "on" });
+      const unknown = await call(
+        wishlistAction as Fn,
+        post(token, "/", { intent: "save", plantKey: "no-such-plant", pots: "1" }),
+        params,
+      );
+      expect((unknown.body as { result: Reply }).result.error?.plantKey).toEqual(["Choose a plant from the list."]);
+      expect(await siteWishlist(site.id)).toHaveLength(0);
 
-    const onPage = await call(plantAction as Fn, post(token, "/", { intent: "wish", pots: "1.5" }), {
-      ...params,
-      plantKey: "hoya",
-    });
-    expect(onPage.status).toBe(400);
-    expect((onPage.body as { result: Reply }).result.error?.pots).toEqual(["Whole pots only"]);
+      const onPage = await call(plantAction as Fn, post(token, "/", { intent: "wish", pots: "1.5" }), {
+        ...params,
+        plantKey: "hoya",
+      });
+      expect(onPage.status).toBe(400);
+      expect((onPage.body as { result: Reply }).result.error?.pots).toEqual(["Whole pots only"]);
 
-    expect(
-      (
-        await call(
-          wishlistAction as Fn,
-          post(token, "/", { intent: "save", plantKey: "hoya", pots: "3", mustHave: "on" }),
-          params,
-        )
-      ).body,
-    ).toEqual({ saved: "hoya", restored: null });
-    expect(
-      (await call(plantAction as Fn, post(token, "/", { intent: "wish", pots: "2" }), { ...params, plantKey: "hoya" }))
-        .body,
-    ).toEqual({ saved: true });
-    expect((await siteWishlist(site.id)).map((w) => [w.plantKey, w.mustHave, w.pots])).toEqual([["hoya", false, 2]]);
-    expect(
-      (await call(wishlistAction as Fn, post(token, "/", { intent: "remove", plantKey: "x".repeat(500) }), params))
-        .status,
-    ).toBe(400);
-  });
+      expect(
+        (
+          await call(
+            wishlistAction as Fn,
+            post(token, "/", { intent: "save", plantKey: "hoya", pots: "3", mustHave: "on" }),
+            params,
+          )
+        ).body,
+      ).toEqual({ saved: "hoya", restored: null });
+      expect(
+        (
+          await call(plantAction as Fn, post(token, "/", { intent: "wish", pots: "2" }), {
+            ...params,
+            plantKey: "hoya",
+          })
+        ).body,
+      ).toEqual({ saved: true });
+      expect((await siteWishlist(site.id)).map((w) => [w.plantKey, w.mustHave, w.pots])).toEqual([["hoya", false, 2]]);
+      expect(
+        (await call(wishlistAction as Fn, post(token, "/", { intent: "remove", plantKey: "x".repeat(500) }), params))
+          .status,
+      ).toBe(400);
+    },
+  );
 });
 
 describe("watches", () => {
-  it("a threshold that is not a number and a dry-air line of 120 % are errors on their fields with the typed values kept; a change keeps the stored kind", async () => {
-    const { user, token } = await signedIn();
-    const site = await makeSite(user);
-    const spot = await makeSpot(site);
-    const params = { siteId: String(site.id), spotId: String(spot.id) };
-    const typed = {
-      intent: "add",
-      kind: "dry",
-      threshold: "forty",
-      durationMinutes: "30",
-      hysteresis: "5",
-      clearMinutes: "30",
-    };
-    const bad = await call(watchAction as Fn, post(token, "/", typed), params);
-    expect(bad.status).toBe(400);
-    const reply = bad.body as { ruleId: string; kind: string; result: Reply };
-    expect([reply.ruleId, reply.kind]).toEqual(["new", "dry"]);
-    expect(reply.result.error?.threshold).toEqual(["Enter the threshold as a number."]);
-    expect(reply.result.initialValue).toMatchObject({ kind: "dry", threshold: "forty", durationMinutes: "30" });
-    const over = await call(watchAction as Fn, post(token, "/", { ...typed, threshold: "120" }), params);
-    expect((over.body as { result: Reply }).result.error?.threshold).toEqual(["Enter a percentage between 0 and 100."]);
-    const noDuration = await call(
-      watchAction as Fn,
-      post(token, "/", { ...typed, threshold: "40", durationMinutes: "" }),
-      params,
-    );
-    expect((noDuration.body as { result: Reply }).result.error?.durationMinutes).toEqual([
-      "Minutes before the alert: a whole number from 0 to 1,440.",
-    ]);
-    expect(await listRules(spot.id)).toHaveLength(0);
-
-    expect((await call(watchAction as Fn, post(token, "/", { ...typed, threshold: "40,5" }), params)).status).toBe(200);
-    const [dry] = await listRules(spot.id);
-    expect([dry.kind, dry.threshold]).toEqual(["dry", 40.5]);
-    // The page cannot turn a dry-air watch into a silent one: the stored kind's limits apply.
-    const change = await call(
-      watchAction as Fn,
-      post(token, "/", {
-        intent: "update",
-        ruleId: String(dry.id),
-        kind: "silent",
-        threshold: "500",
+  it(
+    "a threshold that is not a number and a dry-air line of 120 % " +
+      "are errors on their fields with the typed values kept; a change " +
+      "keeps the stored kind",
+    async () => {
+      const { user, token } = await signedIn();
+      const site = await makeSite(user);
+      const spot = await makeSpot(site);
+      const params = { siteId: String(site.id), spotId: String(spot.id) };
+      const typed = {
+        intent: "add",
+        kind: "dry",
+        threshold: "forty",
         durationMinutes: "30",
         hysteresis: "5",
         clearMinutes: "30",
-      }),
-      params,
-    );
-    expect(change.status).toBe(400);
-    expect((change.body as { ruleId: string; result: Reply }).ruleId).toBe(String(dry.id));
-    expect((change.body as { result: Reply }).result.error?.threshold).toEqual([
-      "Enter a percentage between 0 and 100.",
-    ]);
-    expect((await call(watchAction as Fn, post(token, "/", { intent: "pause", ruleId: "0" }), params)).status).toBe(
-      400,
-    );
-  });
+      };
+      const bad = await call(watchAction as Fn, post(token, "/", typed), params);
+      expect(bad.status).toBe(400);
+      const reply = bad.body as { ruleId: string; kind: string; result: Reply };
+      expect([reply.ruleId, reply.kind]).toEqual(["new", "dry"]);
+      expect(reply.result.error?.threshold).toEqual(["Enter the threshold as a number."]);
+      expect(reply.result.initialValue).toMatchObject({ kind: "dry", threshold: "forty", durationMinutes: "30" });
+      const over = await call(watchAction as Fn, post(token, "/", { ...typed, threshold: "120" }), params);
+      expect((over.body as { result: Reply }).result.error?.threshold).toEqual([
+        "Enter a percentage between 0 and 100.",
+      ]);
+      const noDuration = await call(
+        watchAction as Fn,
+        post(token, "/", { ...typed, threshold: "40", durationMinutes: "" }),
+        params,
+      );
+      expect((noDuration.body as { result: Reply }).result.error?.durationMinutes).toEqual([
+        "Minutes before the alert: a whole number from 0 to 1,440.",
+      ]);
+      expect(await listRules(spot.id)).toHaveLength(0);
+
+      expect((await call(watchAction as Fn, post(token, "/", { ...typed, threshold: "40,5" }), params)).status).toBe(
+        200,
+      );
+      const [dry] = await listRules(spot.id);
+      expect([dry.kind, dry.threshold]).toEqual(["dry", 40.5]);
+      // The page cannot turn a dry-air watch into a silent one: the stored kind's limits apply.
+      const change = await call(
+        watchAction as Fn,
+        post(token, "/", {
+          intent: "update",
+          ruleId: String(dry.id),
+          kind: "silent",
+          threshold: "500",
+          durationMinutes: "30",
+          hysteresis: "5",
+          clearMinutes: "30",
+        }),
+        params,
+      );
+      expect(change.status).toBe(400);
+      expect((change.body as { ruleId: string; result: Reply }).ruleId).toBe(String(dry.id));
+      expect((change.body as { result: Reply }).result.error?.threshold).toEqual([
+        "Enter a percentage between 0 and 100.",
+      ]);
+      expect((await call(watchAction as Fn, post(token, "/", { intent: "pause", ruleId: "0" }), params)).status).toBe(
+        400,
+      );
+    },
+  );
 });
 
 describe("members", () => {
-  it("an invitation to a broken address is an error on the address with the address and role typed sent back; a role that does not exist is refused beside the member", async () => {
-    const { user, token } = await signedIn();
-    const site = await makeSite(user);
-    const carer = await makeUser();
-    await addMember(site, carer, "carer");
-    const params = { siteId: String(site.id) };
-    const bad = await call(
-      membersAction as Fn,
-      post(token, "/", { intent: "invite", email: "someone@", role: "mentor" }),
-      params,
-    );
-    expect(bad.status).toBe(400);
-    const reply = (bad.body as { result: Reply }).result;
-    expect(reply.error?.email).toEqual(["That is not an e-mail address"]);
-    expect(reply.initialValue).toMatchObject({ email: "someone@", role: "mentor" });
-    const owner = await call(
-      membersAction as Fn,
-      post(token, "/", { intent: "invite", email: "friend@example.test", role: "owner" }),
-      params,
-    );
-    expect((owner.body as { result: Reply }).result.error?.role).toEqual(["Choose carer or mentor"]);
+  it(
+    "an invitation to a broken address is an error on the address " +
+      "with the address and role typed sent back; a role that does not " +
+      "exist is refused beside the member",
+    async () => {
+      const { user, token } = await signedIn();
+      const site = await makeSite(user);
+      const carer = await makeUser();
+      await addMember(site, carer, "carer");
+      const params = { siteId: String(site.id) };
+      const bad = await call(
+        membersAction as Fn,
+        post(token, "/", { intent: "invite", email: "someone@", role: "mentor" }),
+        params,
+      );
+      expect(bad.status).toBe(400);
+      const reply = (bad.body as { result: Reply }).result;
+      expect(reply.error?.email).toEqual(["That is not an e-mail address"]);
+      expect(reply.initialValue).toMatchObject({ email: "someone@", role: "mentor" });
+      const owner = await call(
+        membersAction as Fn,
+        post(token, "/", { intent: "invite", email: "friend@example.test", role: "owner" }),
+        params,
+      );
+      expect((owner.body as { result: Reply }).result.error?.role).toEqual(["Choose carer or mentor"]);
 
-    const role = await call(
-      membersAction as Fn,
-      post(token, "/", { intent: "role", userId: String(carer.id), role: "gardener" }),
-      params,
-    );
-    expect(role).toEqual({ status: 400, body: { intent: "role", error: "Choose a role.", userId: carer.id } });
-    expect(
-      (
-        await call(
-          membersAction as Fn,
-          post(token, "/", { intent: "role", userId: String(carer.id), role: "mentor" }),
-          params,
-        )
-      ).body,
-    ).toEqual({ intent: "role", ok: true, userId: carer.id });
-    expect(
-      (
-        await call(
-          membersAction as Fn,
-          post(token, "/", { intent: "invite", email: " Friend@Example.test ", role: "carer" }),
-          params,
-        )
-      ).body,
-    ).toEqual({ intent: "invite", invited: "friend@example.test" });
-  });
+      const role = await call(
+        membersAction as Fn,
+        post(token, "/", { intent: "role", userId: String(carer.id), role: "gardener" }),
+        params,
+      );
+      expect(role).toEqual({ status: 400, body: { intent: "role", error: "Choose a role.", userId: carer.id } });
+      expect(
+        (
+          await call(
+            membersAction as Fn,
+            post(token, "/", { intent: "role", userId: String(carer.id), role: "mentor" }),
+            params,
+          )
+        ).body,
+      ).toEqual({ intent: "role", ok: true, userId: carer.id });
+      expect(
+        (
+          await call(
+            membersAction as Fn,
+            post(token, "/", { intent: "invite", email: " Friend@Example.test ", role: "carer" }),
+            params,
+          )
+        ).body,
+      ).toEqual({ intent: "invite", invited: "friend@example.test" });
+    },
+  );
 });
 
 describe("plants in a spot", () => {
-  it("a nickname of 61 characters is an error on it with the plant and pots typed sent back, a NUL in one is dropped, and a move without a spot is refused", async () => {
-    const { user, token } = await signedIn();
-    const site = await makeSite(user);
-    const spot = await makeSpot(site);
-    const params = { siteId: String(site.id), spotId: String(spot.id) };
-    const bad = await call(
-      spotAction as Fn,
-      post(token, "/", { intent: "plant-add", plantKey: "hoya", nickname: "n".repeat(61), pots: "3" }),
-      params,
-    );
-    expect(bad.status).toBe(400);
-    const reply = (bad.body as { plantResult: Reply }).plantResult;
-    expect(reply.error?.nickname).toEqual(["Keep the name under 60 characters"]);
-    expect(reply.initialValue).toMatchObject({ plantKey: "hoya", pots: "3" });
-    const unknown = await call(
-      spotAction as Fn,
-      post(token, "/", { intent: "plant-add", plantKey: "no-such-plant", pots: "1" }),
-      params,
-    );
-    expect((unknown.body as { plantResult: Reply }).plantResult.error?.plantKey).toEqual([
-      "Choose a plant from the list.",
-    ]);
-    expect(await siteInventory(site.id)).toHaveLength(0);
+  it(
+    "a nickname of 61 characters is an error on it with the plant " +
+      "and pots typed sent back, a NUL in one is dropped, and a move " +
+      "without a spot is refused",
+    async () => {
+      const { user, token } = await signedIn();
+      const site = await makeSite(user);
+      const spot = await makeSpot(site);
+      const params = { siteId: String(site.id), spotId: String(spot.id) };
+      const bad = await call(
+        spotAction as Fn,
+        post(token, "/", { intent: "plant-add", plantKey: "hoya", nickname: "n".repeat(61), pots: "3" }),
+        params,
+      );
+      expect(bad.status).toBe(400);
+      const reply = (bad.body as { plantResult: Reply }).plantResult;
+      expect(reply.error?.nickname).toEqual(["Keep the name under 60 characters"]);
+      expect(reply.initialValue).toMatchObject({ plantKey: "hoya", pots: "3" });
+      const unknown = await call(
+        spotAction as Fn,
+        post(token, "/", { intent: "plant-add", plantKey: "no-such-plant", pots: "1" }),
+        params,
+      );
+      expect((unknown.body as { plantResult: Reply }).plantResult.error?.plantKey).toEqual([
+        "Choose a plant from the list.",
+      ]);
+      expect(await siteInventory(site.id)).toHaveLength(0);
 
-    expect(
-      (
-        await call(
-          spotAction as Fn,
-          post(token, "/", { intent: "plant-add", plantKey: "hoya", nickname: "the pink\u0000 one", pots: "3" }),
-          params,
-        )
-      ).status,
-    ).toBe(200);
-    const [row] = await siteInventory(site.id);
-    expect([row.plantKey, row.nickname, row.pots]).toEqual(["hoya", "the pink one", 3]);
-    const move = await call(
-      spotAction as Fn,
-      post(token, "/", { intent: "plant-move", id: String(row.id), toSpotId: "" }),
-      params,
-    );
-    expect(move).toEqual({ status: 400, body: { plantError: "Choose the spot to move it to." } });
-  });
+      expect(
+        (
+          await call(
+            spotAction as Fn,
+            post(token, "/", { intent: "plant-add", plantKey: "hoya", nickname: "the pink\u0000 one", pots: "3" }),
+            params,
+          )
+        ).status,
+      ).toBe(200);
+      const [row] = await siteInventory(site.id);
+      expect([row.plantKey, row.nickname, row.pots]).toEqual(["hoya", "the pink one", 3]);
+      const move = await call(
+        spotAction as Fn,
+        post(token, "/", { intent: "plant-move", id: String(row.id), toSpotId: "" }),
+        params,
+      );
+      expect(move).toEqual({ status: 400, body: { plantError: "Choose the spot to move it to." } });
+    },
+  );
 });

@@ -611,66 +611,72 @@ describe("a large batch of one sensor, written as two halves at once", () => {
   // Europe/London leaves summer time on 2025-10-26 at 01:00 UTC (Summer Time Order 2002); India
   // Standard Time is UTC+05:30 all year, so its local hours start at :30 UTC (IANA tz database).
   for (const timeZone of ["Europe/London", "Asia/Kolkata"]) {
-    it(`${timeZone}: each reading stored once, rollups equal an aggregation of raw rows, one ordered batch for the alerts, the sensor row from the whole batch`, async () => {
-      const user = await makeUser();
-      const site = await makeSite(user, { timeZone });
-      const spot = await makeSpot(site);
-      const sensor = await makeSensor(site, spot);
-      const w = new ReadingWriter();
-      const batches: CommittedReading[][] = [];
-      w.onBatch((rows) => void batches.push(rows));
-      const start = Date.UTC(2025, 9, 22, 12, 17);
-      const readings: Reading[] = Array.from({ length: 10_000 }, (_, k) => ({
-        sensorId: sensor.id,
-        measuredAt: new Date(start + k * MIN),
-        temperature: 10 + (k % 50) / 10,
-        humidity: 60 + (k % 20),
-        lux: null,
-        battery: k < 3000 ? 80 - Math.floor(k / 1000) : null, // battery only in the earlier half
-      }));
-      // Resent readings from around the middle, at the end: the batch arrives out of order.
-      const res = await w.write([...readings, ...readings.slice(4990, 5010)]);
-      expect(res.inserted).toBe(10_000);
-      expect(w.stats.splitBatches).toBe(1);
-      await new Promise((r) => setImmediate(r));
-      expect(batches.map((b) => b.length)).toEqual([10_000]);
-      expect(batches[0].every((r, i) => i === 0 || r.measuredAt >= batches[0][i - 1].measuredAt)).toBe(true);
-      const stored = await storedRollups(spot.id);
-      expect(sumN(stored)).toBe(10_000);
-      expectRollupsMatch(stored, await freshRollups(spot.id));
-      const row = (await pool().query("SELECT last_seen_at, battery FROM sensors WHERE id = $1", [sensor.id])).rows[0];
-      expect(row.last_seen_at.getTime()).toBe(start + 9_999 * MIN);
-      expect(row.battery).toBe(78);
-      // The same batch again stores nothing and tells the alerts nothing.
-      expect((await w.write(readings)).inserted).toBe(0);
-      await new Promise((r) => setImmediate(r));
-      expect(batches).toHaveLength(1);
+    it(
+      `${timeZone}: each reading stored once, rollups equal an ` +
+        `aggregation of raw rows, one ordered batch for the alerts, the ` +
+        `sensor row from the whole batch`,
+      async () => {
+        const user = await makeUser();
+        const site = await makeSite(user, { timeZone });
+        const spot = await makeSpot(site);
+        const sensor = await makeSensor(site, spot);
+        const w = new ReadingWriter();
+        const batches: CommittedReading[][] = [];
+        w.onBatch((rows) => void batches.push(rows));
+        const start = Date.UTC(2025, 9, 22, 12, 17);
+        const readings: Reading[] = Array.from({ length: 10_000 }, (_, k) => ({
+          sensorId: sensor.id,
+          measuredAt: new Date(start + k * MIN),
+          temperature: 10 + (k % 50) / 10,
+          humidity: 60 + (k % 20),
+          lux: null,
+          battery: k < 3000 ? 80 - Math.floor(k / 1000) : null, // battery only in the earlier half
+        }));
+        // Resent readings from around the middle, at the end: the batch arrives out of order.
+        const res = await w.write([...readings, ...readings.slice(4990, 5010)]);
+        expect(res.inserted).toBe(10_000);
+        expect(w.stats.splitBatches).toBe(1);
+        await new Promise((r) => setImmediate(r));
+        expect(batches.map((b) => b.length)).toEqual([10_000]);
+        expect(batches[0].every((r, i) => i === 0 || r.measuredAt >= batches[0][i - 1].measuredAt)).toBe(true);
+        const stored = await storedRollups(spot.id);
+        expect(sumN(stored)).toBe(10_000);
+        expectRollupsMatch(stored, await freshRollups(spot.id));
+        const row = (await pool().query("SELECT last_seen_at, battery FROM sensors WHERE id = $1", [sensor.id]))
+          .rows[0];
+        expect(row.last_seen_at.getTime()).toBe(start + 9_999 * MIN);
+        expect(row.battery).toBe(78);
+        // The same batch again stores nothing and tells the alerts nothing.
+        expect((await w.write(readings)).inserted).toBe(0);
+        await new Promise((r) => setImmediate(r));
+        expect(batches).toHaveLength(1);
 
-      // Single-channel readings (plain-number topics) take the merging statement: humidity sent on
-      // its own for the same instants fills the rows' humidity once.
-      const later = start + 20_000 * MIN;
-      const temps: Reading[] = readings.map((r, k) => ({
-        ...r,
-        measuredAt: new Date(later + k * MIN),
-        humidity: null,
-        battery: null,
-        partial: true,
-      }));
-      const hums: Reading[] = readings.map((r, k) => ({
-        ...r,
-        measuredAt: new Date(later + k * MIN),
-        temperature: null,
-        battery: null,
-        partial: true,
-      }));
-      expect((await w.write(temps)).inserted).toBe(10_000);
-      await w.write(hums);
-      await w.write(hums);
-      expect(w.stats.splitBatches).toBe(5);
-      const merged = await storedRollups(spot.id);
-      expect(sumN(merged)).toBe(20_000);
-      expectRollupsMatch(merged, await freshRollups(spot.id));
-    });
+        // Single-channel readings (plain-number topics) take the merging statement: humidity sent on
+        // its own for the same instants fills the rows' humidity once.
+        const later = start + 20_000 * MIN;
+        const temps: Reading[] = readings.map((r, k) => ({
+          ...r,
+          measuredAt: new Date(later + k * MIN),
+          humidity: null,
+          battery: null,
+          partial: true,
+        }));
+        const hums: Reading[] = readings.map((r, k) => ({
+          ...r,
+          measuredAt: new Date(later + k * MIN),
+          temperature: null,
+          battery: null,
+          partial: true,
+        }));
+        expect((await w.write(temps)).inserted).toBe(10_000);
+        await w.write(hums);
+        await w.write(hums);
+        expect(w.stats.splitBatches).toBe(5);
+        const merged = await storedRollups(spot.id);
+        expect(sumN(merged)).toBe(20_000);
+        expectRollupsMatch(merged, await freshRollups(spot.id));
+      },
+    );
   }
 });
 

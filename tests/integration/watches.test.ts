@@ -89,32 +89,37 @@ const PHAL = PLANT_LIBRARY.find((p) => p.key === "phalaenopsis")!;
 const CYMB = PLANT_LIBRARY.find((p) => p.key === "cymbidium")!;
 
 describe("the default cold watch comes with the plants", () => {
-  it("an empty outdoor spot gets no watch, from the demo seed either; a tender plant placed there adds one from its lowest safe night + 2 °C, with the reason", async () => {
-    const h = await household();
-    await seedAlerts(h.site.id, () => {});
-    expect(await rulesOf(h.spot.id)).toHaveLength(0);
-    const page = await call(spotAlertsLoader as Fn, get(h.owner.token, "/"), {
-      siteId: String(h.site.id),
-      spotId: String(h.spot.id),
-    });
-    expect((page.body as { suggestion: unknown }).suggestion).toBeNull();
+  it(
+    "an empty outdoor spot gets no watch, from the demo seed " +
+      "either; a tender plant placed there adds one from its lowest " +
+      "safe night + 2 °C, with the reason",
+    async () => {
+      const h = await household();
+      await seedAlerts(h.site.id, () => {});
+      expect(await rulesOf(h.spot.id)).toHaveLength(0);
+      const page = await call(spotAlertsLoader as Fn, get(h.owner.token, "/"), {
+        siteId: String(h.site.id),
+        spotId: String(h.spot.id),
+      });
+      expect((page.body as { suggestion: unknown }).suggestion).toBeNull();
 
-    // A carer places a cymbidium: the spot gets its cold watch (and a silent-sensor watch).
-    expect((await placePlant(h, h.carer.token, "cymbidium")).status).toBe(200);
-    let rules = await rulesOf(h.spot.id);
-    expect(rules.map((r) => r.kind)).toEqual(["cold", "silent"]);
-    const cold = rules.find((r) => r.kind === "cold")!;
-    // Common practice (and this product's rule): act 2 °C above the plant's lowest safe night.
-    expect(cold.threshold).toBe(CYMB.minNightC + 2);
-    expect(cold.reason).toContain(`${CYMB.minNightC} °C`);
-    expect((await auditOf(h.site.id, "watch.")).map((a) => a.action)).toEqual(["watch.add", "watch.add"]);
+      // A carer places a cymbidium: the spot gets its cold watch (and a silent-sensor watch).
+      expect((await placePlant(h, h.carer.token, "cymbidium")).status).toBe(200);
+      let rules = await rulesOf(h.spot.id);
+      expect(rules.map((r) => r.kind)).toEqual(["cold", "silent"]);
+      const cold = rules.find((r) => r.kind === "cold")!;
+      // Common practice (and this product's rule): act 2 °C above the plant's lowest safe night.
+      expect(cold.threshold).toBe(CYMB.minNightC + 2);
+      expect(cold.reason).toContain(`${CYMB.minNightC} °C`);
+      expect((await auditOf(h.site.id, "watch.")).map((a) => a.action)).toEqual(["watch.add", "watch.add"]);
 
-    // A more tender plant raises the untouched default watch; an owner-set line is left alone.
-    await placePlant(h, h.carer.token, "phalaenopsis");
-    rules = await rulesOf(h.spot.id);
-    expect(rules.find((r) => r.kind === "cold")!.threshold).toBe(PHAL.minNightC + 2);
-    expect(rules).toHaveLength(2);
-  });
+      // A more tender plant raises the untouched default watch; an owner-set line is left alone.
+      await placePlant(h, h.carer.token, "phalaenopsis");
+      rules = await rulesOf(h.spot.id);
+      expect(rules.find((r) => r.kind === "cold")!.threshold).toBe(PHAL.minNightC + 2);
+      expect(rules).toHaveLength(2);
+    },
+  );
 
   it("an indoor spot gets none; turning it outdoor with a plant in it adds one in the same change", async () => {
     const h = await household();
@@ -280,36 +285,41 @@ describe("mentors and cold-snap e-mail", () => {
 });
 
 describe("spot changes in one place", () => {
-  it("editing a spot indoor → outdoor is audited with what changed and its sensors' cached kind is forgotten; deleting one audits and forgets too", async () => {
-    const h = await household();
-    const spot = await makeSpot(h.site, { indoor: true, name: "Sill" });
-    const sensor = await makeSensor(h.site, spot);
-    invalidateSensorCache(sensor.id);
-    expect((await sensorInfo(sensor.id))!.kind).toBe("indoor");
-    await updateSpot({
-      siteId: h.site.id,
-      actorId: h.owner.id,
-      spot,
-      values: { name: "Sill", indoor: false, facing: "S", capacity: 4, notes: "" },
-    });
-    expect((await sensorInfo(sensor.id))!.kind).toBe("outdoor"); // read again at once, not after the cache's 10 s
-    const [upd] = await auditOf(h.site.id, "spot.update");
-    expect(upd.detail).toMatchObject({
-      spotId: spot.id,
-      changes: { indoor: [true, false], facing: ["none", "S"], capacity: [0, 4] },
-    });
+  it(
+    "editing a spot indoor → outdoor is audited with what changed " +
+      "and its sensors' cached kind is forgotten; deleting one audits " +
+      "and forgets too",
+    async () => {
+      const h = await household();
+      const spot = await makeSpot(h.site, { indoor: true, name: "Sill" });
+      const sensor = await makeSensor(h.site, spot);
+      invalidateSensorCache(sensor.id);
+      expect((await sensorInfo(sensor.id))!.kind).toBe("indoor");
+      await updateSpot({
+        siteId: h.site.id,
+        actorId: h.owner.id,
+        spot,
+        values: { name: "Sill", indoor: false, facing: "S", capacity: 4, notes: "" },
+      });
+      expect((await sensorInfo(sensor.id))!.kind).toBe("outdoor"); // read again at once, not after the cache's 10 s
+      const [upd] = await auditOf(h.site.id, "spot.update");
+      expect(upd.detail).toMatchObject({
+        spotId: spot.id,
+        changes: { indoor: [true, false], facing: ["none", "S"], capacity: [0, 4] },
+      });
 
-    expect(await deleteSpot({ siteId: h.site.id, actorId: h.owner.id, spot })).toBe(true);
-    expect((await sensorInfo(sensor.id))!.kind).toBe("unplaced");
-    expect((await auditOf(h.site.id, "spot.delete"))[0].detail).toMatchObject({ spotId: spot.id, name: "Sill" });
-    // A spot of another site is neither changed nor deleted through this one.
-    const other = await makeSpot(await makeSite(h.owner));
-    expect(await deleteSpot({ siteId: h.site.id, actorId: h.owner.id, spot: other })).toBe(false);
-    expect(
-      await db()
-        .select()
-        .from(auditLog)
-        .where(and(eq(auditLog.siteId, h.site.id), eq(auditLog.action, "spot.delete"))),
-    ).toHaveLength(1);
-  });
+      expect(await deleteSpot({ siteId: h.site.id, actorId: h.owner.id, spot })).toBe(true);
+      expect((await sensorInfo(sensor.id))!.kind).toBe("unplaced");
+      expect((await auditOf(h.site.id, "spot.delete"))[0].detail).toMatchObject({ spotId: spot.id, name: "Sill" });
+      // A spot of another site is neither changed nor deleted through this one.
+      const other = await makeSpot(await makeSite(h.owner));
+      expect(await deleteSpot({ siteId: h.site.id, actorId: h.owner.id, spot: other })).toBe(false);
+      expect(
+        await db()
+          .select()
+          .from(auditLog)
+          .where(and(eq(auditLog.siteId, h.site.id), eq(auditLog.action, "spot.delete"))),
+      ).toHaveLength(1);
+    },
+  );
 });

@@ -25,7 +25,8 @@ afterAll(() => fake.close());
 describe("weather service fake", () => {
   it("speaks the service's JSON: hourly.time in unixtime, units, UTC offset, and nulls past the archive's end", async () => {
     const res = await fetch(
-      `${fake.url}/v1/archive?latitude=51.7&longitude=-2.2&start_date=2026-11-14&end_date=2026-11-16&hourly=temperature_2m,cloud_cover&timezone=GMT&timeformat=unixtime`,
+      `${fake.url}/v1/archive?latitude=51.7&longitude=-2.2&start_date=2026-11-14&end_date=2026-11-16` +
+        "&hourly=temperature_2m,cloud_cover&timezone=GMT&timeformat=unixtime",
     );
     const body = await res.json();
     expect(res.status).toBe(200);

@@ -122,7 +122,9 @@ export class SiteBridge {
       socket.on("data", (chunk: Buffer) => {
         if (guard.feed(chunk)) return;
         this.fail(
-          `The broker sent a packet of ${guard.tooBig} bytes, over ${MAX_BRIDGE_PACKET_BYTES}: connection closed (set a smaller message size limit on the broker)`,
+          `The broker sent a packet of ${guard.tooBig} bytes, over ` +
+            `${MAX_BRIDGE_PACKET_BYTES}: connection closed (set a smaller ` +
+            `message size limit on the broker)`,
         );
         socket.destroy();
       });

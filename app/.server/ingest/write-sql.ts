@@ -18,7 +18,8 @@ import { DP_COUNTS, LOCAL_HOUR_START } from "~/.server/rollups/sql";
 function buildWriteSql({ merge, withRows, withSeen, optimistic, withOutside }: Variant) {
   const input = merge
     ? `raw_input AS (
-  SELECT sensor_id, to_timestamp(ms / 1000) AS measured_at, temperature, humidity, lux, battery FROM unnest($1::int[], $2::float8[], $3::real[], $4::real[], $5::real[], $6::real[])
+  SELECT sensor_id, to_timestamp(ms / 1000) AS measured_at, temperature, humidity, lux, battery ` +
+      `FROM unnest($1::int[], $2::float8[], $3::real[], $4::real[], $5::real[], $6::real[])
     AS u(sensor_id, ms, temperature, humidity, lux, battery)
 ), input AS (
   SELECT sensor_id, measured_at, max(temperature) AS temperature, max(humidity) AS humidity,
@@ -30,7 +31,8 @@ function buildWriteSql({ merge, withRows, withSeen, optimistic, withOutside }: V
   WHERE r.measured_at >= (SELECT min(measured_at) FROM input) AND r.measured_at <= (SELECT max(measured_at) FROM input)
 )`
     : `input AS (
-  SELECT sensor_id, to_timestamp(ms / 1000) AS measured_at, temperature, humidity, lux, battery FROM unnest($1::int[], $2::float8[], $3::real[], $4::real[], $5::real[], $6::real[])
+  SELECT sensor_id, to_timestamp(ms / 1000) AS measured_at, temperature, humidity, lux, battery ` +
+      `FROM unnest($1::int[], $2::float8[], $3::real[], $4::real[], $5::real[], $6::real[])
     AS u(sensor_id, ms, temperature, humidity, lux, battery)
 )`;
   const conflict = merge
@@ -161,7 +163,10 @@ export type Variant = {
 /** The statement text of a variant, and a name to prepare it under. */
 export function sqlFor(v: Variant): { text: string; name: string } {
   const optimistic = v.optimistic && !v.merge;
-  const name = `nw-write-${v.merge ? "m" : "p"}${v.withRows ? "r" : ""}${v.withKeys ? "k" : ""}${v.withSeen ? "s" : ""}${optimistic ? "o" : ""}${v.withOutside ? "c" : ""}`;
+  const name =
+    `nw-write-${v.merge ? "m" : "p"}${v.withRows ? "r" : ""}` +
+    `${v.withKeys ? "k" : ""}${v.withSeen ? "s" : ""}` +
+    `${optimistic ? "o" : ""}${v.withOutside ? "c" : ""}`;
   let text = SQL.get(name);
   if (!text) SQL.set(name, (text = buildWriteSql({ ...v, optimistic }) + (v.withKeys ? KEYS : "")));
   return { text, name };

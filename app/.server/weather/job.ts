@@ -170,7 +170,8 @@ export class WeatherJob {
         const first = stored?.first ?? req.startDate;
         const last = stored?.last ?? row.archive_to ?? req.startDate;
         await pool().query(
-          `UPDATE weather_fetches SET archive_from = LEAST(coalesce(archive_from, $2::date), $2::date), archive_to = GREATEST(coalesce(archive_to, $3::date), $3::date),
+          `UPDATE weather_fetches SET archive_from = LEAST(coalesce(archive_from, $2::date), $2::date), ` +
+            `archive_to = GREATEST(coalesce(archive_to, $3::date), $3::date),
              failures = 0, next_attempt_at = NULL, last_error = NULL WHERE site_id = $1`,
           [row.site_id, first < req.startDate ? first : req.startDate, last],
         );

@@ -55,7 +55,11 @@ export async function storeHours(
     const values = chunk.map((r) => {
       const base = params.length;
       params.push(...r);
-      return `($1, $${base + 1}::date, $${base + 2}::smallint[], $${base + 3}::smallint[], $${base + 4}::smallint[], $${base + 5}::smallint[], $${base + 6}::smallint[], $2)`;
+      return (
+        `($1, $${base + 1}::date, $${base + 2}::smallint[], $${base + 3}` +
+        `::smallint[], $${base + 4}::smallint[], $${base + 5}` +
+        `::smallint[], $${base + 6}::smallint[], $2)`
+      );
     });
     await pool().query(
       `INSERT INTO weather_days (site_id, day, temperature, humidity, cloud, wind, shortwave, forecast) VALUES ${values.join(",")}

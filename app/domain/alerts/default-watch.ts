@@ -25,6 +25,9 @@ export function defaultColdWatch(
   const threshold = tender.minNightC + DEFAULT_MARGIN_C;
   return {
     threshold,
-    reason: `${tender.name} is the most cold-tender plant here: its lowest safe night is ${tender.minNightC} °C, plus a ${DEFAULT_MARGIN_C} °C margin so you hear before it gets there.`,
+    reason:
+      `${tender.name} is the most cold-tender plant here: its lowest ` +
+      `safe night is ${tender.minNightC} °C, plus a ${DEFAULT_MARGIN_C}` +
+      ` °C margin so you hear before it gets there.`,
   };
 }

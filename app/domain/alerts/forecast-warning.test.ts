@@ -80,7 +80,9 @@ describe("words", () => {
     );
     const w = { ...base, likelyC: 1, expectedLowC: 3, lowerBoundC: 1.4, leafLowC: 1 };
     expect(forecastHeadline(w, "C")).toBe(
-      "Thursday night (3 Dec): 1.0 °C expected on the leaves at the bench under a clear, still sky (air 3.0 °C); the Cymbidium's limit is 2.0 °C — bring it in.",
+      "Thursday night (3 Dec): 1.0 °C expected on the leaves at the " +
+        "bench under a clear, still sky (air 3.0 °C); the Cymbidium's " +
+        "limit is 2.0 °C — bring it in.",
     );
     // Only the 80 % lower bound crosses: said as a possibility, not as the expectation.
     const loose = { ...base, likelyC: 1.4, expectedLowC: 3.4, lowerBoundC: 1.4, leafLowC: null };

@@ -19,7 +19,11 @@ export const FORECAST_WINDOW = { fromHours: 12, toHours: 48 } as const;
 export const FORECAST_CLEAR_MARGIN_C = 0.5;
 
 export const FORECAST_CAUTION =
-  "Forecast warnings are a help, not a guarantee: a forecast can be wrong by several degrees, frost can settle in hollows the forecast does not see, and a spot's model is learned from a few weeks of readings. On a cold night, look at your plants yourself.";
+  "Forecast warnings are a help, not a guarantee: a forecast can " +
+  "be wrong by several degrees, frost can settle in hollows the " +
+  "forecast does not see, and a spot's model is learned from a few " +
+  "weeks of readings. On a cold night, look at your " +
+  "plants yourself.";
 
 export type TenderPlant = { name: string; damageC: number };
 
@@ -123,9 +127,18 @@ export function forecastDetail(w: ForecastWarningFacts, unit: Unit, timeZone: st
   }).format(w.lowAt);
   const leaf =
     w.leafLowC !== null
-      ? ` The night looks clear and still: leaves under the open sky run about ${formatDelta(Math.abs(w.expectedLowC - w.leafLowC), unit)} below the air, so about ${formatTemp(w.leafLowC, unit)} on the leaves.`
+      ? ` The night looks clear and still: leaves under the open sky ` +
+        `run about ` +
+        `${formatDelta(Math.abs(w.expectedLowC - w.leafLowC), unit)} ` +
+        `below the air, so about ${formatTemp(w.leafLowC, unit)} ` +
+        `on the leaves.`
       : "";
-  return `The forecast through this spot's model: lowest about ${formatTemp(w.expectedLowC, unit)} around ${at}, with a 1-in-10 chance of ${formatTemp(w.lowerBoundC, unit)} or lower.${leaf}`;
+  return (
+    `The forecast through this spot's model: lowest about ` +
+    `${formatTemp(w.expectedLowC, unit)} around ${at}, with a ` +
+    `1-in-10 chance of ${formatTemp(w.lowerBoundC, unit)} or ` +
+    `lower.${leaf}`
+  );
 }
 
 export type ForecastMailContext = {
@@ -169,8 +182,12 @@ export function forecastWarningMessage(c: ForecastMailContext, w: ForecastWarnin
     [
       forecastHeadline(w, c.unit),
       forecastDetail(w, c.unit, c.timeZone),
-      `What to do: before dusk, bring the ${w.plantName} (and anything as tender) indoors or into a frost-free shed; if it cannot move, fleece it and keep it off cold ground.`,
-      "You will get an all-clear if the forecast changes and the night no longer looks likely to cross the line. Your live cold watch still alerts you on the night.",
+      `What to do: before dusk, bring the ${w.plantName} (and ` +
+        `anything as tender) indoors or into a frost-free shed; if it ` +
+        `cannot move, fleece it and keep it off cold ground.`,
+      "You will get an all-clear if the forecast changes and the " +
+        "night no longer looks likely to cross the line. Your live cold " +
+        "watch still alerts you on the night.",
     ],
     c,
   );
@@ -180,7 +197,10 @@ export function forecastClearMessage(c: ForecastMailContext, w: ForecastWarningF
   return render(
     `All clear: ${nightName(w.night).replace(/ \(.*\)$/, "")} no longer looks too cold at ${c.spotName}`,
     [
-      `The forecast has changed: ${nightName(w.night)} at ${c.spotName} (${c.siteName}) no longer looks likely to fall under the ${w.plantName}'s ${formatTemp(w.damageC, c.unit)} limit.`,
+      `The forecast has changed: ${nightName(w.night)} at ` +
+        `${c.spotName} (${c.siteName}) no longer looks likely to fall ` +
+        `under the ${w.plantName}'s ` +
+        `${formatTemp(w.damageC, c.unit)} limit.`,
       forecastDetail(w, c.unit, c.timeZone),
       "Forecasts change again: if the plant is already in, leaving it in for the night does no harm.",
     ],

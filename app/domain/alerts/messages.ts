@@ -132,7 +132,9 @@ export function openMessage(
     subject,
     [
       `${where} has been ${describeCondition(c)} since ${clock(e.startedAt, c.timeZone)}.`,
-      `${now}${worst} so far ${formatValue(c.kind, e.peak, c.unit)}. Your watch: ${describeCondition(c)} for ${c.durationMinutes} min.${c.reason ? ` ${c.reason}` : ""}`,
+      `${now}${worst} so far ${formatValue(c.kind, e.peak, c.unit)}. ` +
+        `Your watch: ${describeCondition(c)} for ${c.durationMinutes} ` +
+        `min.${c.reason ? ` ${c.reason}` : ""}`,
       `What to do: ${info.whatToDo}`,
       c.kind === "cold" ? "Cold-snap alerts are sent during your quiet hours too." : "",
     ],

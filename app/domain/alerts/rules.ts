@@ -64,7 +64,9 @@ export const KINDS: Record<AlertKind, KindInfo> = {
     urgent: true,
     defaults: { threshold: 60, durationMinutes: 0, hysteresis: 0, clearMinutes: 0 },
     whatToDo:
-      "Check the sensor's battery, its Wi-Fi or radio link and the hub. Until it is back you cannot see a cold snap coming — on a cold night, check the plants yourself.",
+      "Check the sensor's battery, its Wi-Fi or radio link and the " +
+      "hub. Until it is back you cannot see a cold snap coming — on a " +
+      "cold night, check the plants yourself.",
   },
   battery: {
     label: "Battery low",

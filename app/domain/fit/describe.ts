@@ -80,42 +80,75 @@ export function describeFact(fact: Fact, f: Format = DEFAULT_FORMAT, name = "thi
       );
     case "cold-season":
       return (
-        `A cold season, not a snap: ${count(fact.nights, "night", "nights", f)} under ${temp(fact.comfortC, f)} ${describeMonths(fact.months)}, typically ${temp(fact.typicalLowC, f)} ` +
+        `A cold season, not a snap: ` +
+        `${count(fact.nights, "night", "nights", f)} under ` +
+        `${temp(fact.comfortC, f)} ${describeMonths(fact.months)}, ` +
+        `typically ${temp(fact.typicalLowC, f)} ` +
         `(${degreeHours(fact.degreeHours, f)} under); ${name} slows down in such a spell and is harmed under ${temp(fact.damageC, f)}.`
       );
     case "cold-damage":
-      return `Cold past the damage line: ${count(fact.nights, "night", "nights", f)} under ${temp(fact.damageC, f)} (${episodes(fact.worst, f)}), where ${name} is harmed.`;
+      return (
+        `Cold past the damage line: ` +
+        `${count(fact.nights, "night", "nights", f)} under ` +
+        `${temp(fact.damageC, f)} (${episodes(fact.worst, f)}), where ` +
+        `${name} is harmed.`
+      );
     case "warm-nights-ok":
       return `Nights cooled to ${temp(fact.maxNightC, f)} or below (warmest night's low ${temp(fact.warmestLowC, f)}).`;
     case "warm-nights":
       return fact.season
-        ? `Warm nights for a cool grower: ${count(fact.nights, "night", "nights", f)} stayed above ${temp(fact.maxNightC, f)} ${describeMonths(fact.months)}, typically ${temp(fact.typicalLowC, f)} — ${name} grows and flowers poorly without cool nights.`
-        : `A few warm nights (${count(fact.nights, "night", "nights", f)} above ${temp(fact.maxNightC, f)} ${describeMonths(fact.months)}), not a season of them.`;
+        ? `Warm nights for a cool grower: ` +
+            `${count(fact.nights, "night", "nights", f)} stayed above ` +
+            `${temp(fact.maxNightC, f)} ${describeMonths(fact.months)}, ` +
+            `typically ${temp(fact.typicalLowC, f)} — ${name} grows and ` +
+            `flowers poorly without cool nights.`
+        : `A few warm nights (${count(fact.nights, "night", "nights", f)} ` +
+            `above ${temp(fact.maxNightC, f)} ${describeMonths(fact.months)}` +
+            `), not a season of them.`;
     case "heat-ok":
       return `Days stayed at ${temp(fact.comfortC, f)} or below (highest ${temp(fact.highestC, f)}).`;
     case "heat-snap":
       return (
-        `A brief hot spell: ${count(fact.days, "day", "days", f)} over ${temp(fact.comfortC, f)} (${episodes(fact.worst, f)}), under the ${temp(fact.damageC, f)} damage line. ` +
+        `A brief hot spell: ${count(fact.days, "day", "days", f)} over ` +
+        `${temp(fact.comfortC, f)} (${episodes(fact.worst, f)}), under ` +
+        `the ${temp(fact.damageC, f)} damage line. ` +
         (fact.costsSpikes ? `Warm days hold back ${name}'s spikes. ` : "") +
         "Shade at midday and moving air help."
       );
     case "heat-season":
       return (
-        `A hot season, not a spell: ${count(fact.days, "day", "days", f)} over ${temp(fact.comfortC, f)} ${describeMonths(fact.months)}, typically ${temp(fact.typicalHighC, f)}; ` +
+        `A hot season, not a spell: ` +
+        `${count(fact.days, "day", "days", f)} over ` +
+        `${temp(fact.comfortC, f)} ${describeMonths(fact.months)}, ` +
+        `typically ${temp(fact.typicalHighC, f)}; ` +
         `harm starts above ${temp(fact.damageC, f)}.` +
         (fact.costsSpikes ? ` ${name} won't spike while days stay this warm.` : "")
       );
     case "heat-damage":
-      return `Heat past the damage line: ${count(fact.days, "day", "days", f)} over ${temp(fact.damageC, f)} (${episodes(fact.worst, f)}), where ${name} is harmed.`;
+      return (
+        `Heat past the damage line: ` +
+        `${count(fact.days, "day", "days", f)} over ` +
+        `${temp(fact.damageC, f)} (${episodes(fact.worst, f)}), where ` +
+        `${name} is harmed.`
+      );
     case "humidity-ok":
       return `Humidity stayed in ${name}'s ${fact.minPct}–${pct(fact.maxPct)} range through the day (driest daily low ${pct(fact.lowestDailyMinPct)}).`;
     case "humidity-dry":
       return (
-        `Dry hours: on ${numberFormat(f.locale, 0).format(fact.dryDays)} of ${count(fact.days, "day", "days", f)} ${describeMonths(fact.months)} the air fell under ${pct(fact.minPct)}, typically to ${pct(fact.typicalDailyMinPct)} ` +
+        `Dry hours: on ${numberFormat(f.locale, 0).format(fact.dryDays)}` +
+        ` of ${count(fact.days, "day", "days", f)} ` +
+        `${describeMonths(fact.months)} the air fell under ` +
+        `${pct(fact.minPct)}, typically to ` +
+        `${pct(fact.typicalDailyMinPct)} ` +
         `(lowest ${pct(fact.lowestPct)}). A tray of wet gravel, grouping plants or a humidifier raises it.`
       );
     case "humidity-damp":
-      return `The air averaged up to ${pct(fact.meanPct)} ${describeMonths(fact.months)}, above ${name}'s ${pct(fact.maxPct)}; more air movement lets leaves dry between waterings.`;
+      return (
+        `The air averaged up to ${pct(fact.meanPct)} ` +
+        `${describeMonths(fact.months)}, above ${name}'s ` +
+        `${pct(fact.maxPct)}; more air movement lets leaves dry ` +
+        `between waterings.`
+      );
     case "light-months": {
       const parts = [
         `Daily light by month against ${formatNumber(fact.minDli, f.locale)}–${formatNumber(fact.maxDli, f.locale)} ${DLI}:`,
@@ -145,17 +178,37 @@ export function describeFact(fact: Fact, f: Format = DEFAULT_FORMAT, name = "thi
     case "light-window": {
       const where = `a ${FACING_WORDS[fact.facing as WindowFacing] ?? fact.facing}-facing window`;
       if (fact.verdict === "scorch")
-        return `No light sensor; by the sun's path ${where} gets hot direct sun ${describeMonths(fact.strongSunMonths)} — ${name} wants little or no direct sun, so shade it then (a sheer curtain) or it scorches.`;
+        return (
+          `No light sensor; by the sun's path ${where} gets hot direct ` +
+          `sun ${describeMonths(fact.strongSunMonths)} — ${name} wants ` +
+          `little or no direct sun, so shade it then (a sheer curtain) or ` +
+          `it scorches.`
+        );
       if (fact.verdict === "shade")
-        return `No light sensor; by the sun's path ${where} gets a few hours of strong sun in ${fact.sunnyMonths === 0 ? "no month" : `only ${count(fact.sunnyMonths, "month", "months", f)}`} — ${name} wants ${fact.need === "high" ? "strong light with some direct sun" : "bright light"}; it may grow but rarely flower without a grow light.`;
+        return (
+          `No light sensor; by the sun's path ${where} gets a few hours ` +
+          `of strong sun in ` +
+          `${fact.sunnyMonths === 0 ? "no month" : `only ${count(fact.sunnyMonths, "month", "months", f)}`}` +
+          ` — ${name} wants ` +
+          `${fact.need === "high" ? "strong light with some direct sun" : "bright light"}` +
+          `; it may grow but rarely flower without a grow light.`
+        );
       return fact.need === "low"
         ? `No light sensor; ${where} gets no hot direct sun, which suits ${name}; how bright it is isn't measured.`
-        : `No light sensor; by the sun's path ${where} can give ${name} enough sun, but trees, walls and curtains can take it away — a light sensor would tell.`;
+        : `No light sensor; by the sun's path ${where} can give ${name} ` +
+            `enough sun, but trees, walls and curtains can take it away — a ` +
+            `light sensor would tell.`;
     }
     case "light-unknown":
       return fact.reason === "outdoor"
-        ? `Light isn't measured here; ${name} wants ${formatNumber(fact.minDli, f.locale)}–${formatNumber(fact.maxDli, f.locale)} ${DLI}${fact.need === "low" ? " — keep it in shade outdoors" : ""}.`
-        : `Light isn't known: no light sensor and no window facing set. ${name} wants ${formatNumber(fact.minDli, f.locale)}–${formatNumber(fact.maxDli, f.locale)} ${DLI}; set the window facing or add a light sensor.`;
+        ? `Light isn't measured here; ${name} wants ` +
+            `${formatNumber(fact.minDli, f.locale)}–` +
+            `${formatNumber(fact.maxDli, f.locale)} ${DLI}` +
+            `${fact.need === "low" ? " — keep it in shade outdoors" : ""}.`
+        : `Light isn't known: no light sensor and no window facing set. ` +
+            `${name} wants ${formatNumber(fact.minDli, f.locale)}–` +
+            `${formatNumber(fact.maxDli, f.locale)} ${DLI}; set the window ` +
+            `facing or add a light sensor.`;
     case "cue-none":
       return "No temperature cue needed to flower.";
     case "cue-met": {
@@ -166,7 +219,9 @@ export function describeFact(fact: Fact, f: Format = DEFAULT_FORMAT, name = "thi
         .filter(Boolean)
         .join(" and ");
       return (
-        `Flowering cue met: ${count(fact.days, "day", "days", f)} with ${cond} ${describeMonths(fact.months)}, in season for ${name} (${fact.weeks} weeks needed).` +
+        `Flowering cue met: ${count(fact.days, "day", "days", f)} with ` +
+        `${cond} ${describeMonths(fact.months)}, in season for ${name} (` +
+        `${fact.weeks} weeks needed).` +
         (fact.dryRest ? " Keep it nearly dry through that rest: watered, it grows instead of flowering." : "")
       );
     }
@@ -182,46 +237,130 @@ export function describeFact(fact: Fact, f: Format = DEFAULT_FORMAT, name = "thi
         ? ` The cool spell here comes ${describeMonths(fact.outOfSeason)}, out of season for spiking.`
         : "";
       return (
-        `Flowering cue missed: ${name} wants about ${fact.weeks} weeks of ${cond}${when}; the best stretch here had ${count(fact.bestDays, "day", "days", f)}.${late} It may grow but not flower.` +
+        `Flowering cue missed: ${name} wants about ${fact.weeks} weeks ` +
+        `of ${cond}${when}; the best stretch here had ` +
+        `${count(fact.bestDays, "day", "days", f)}.${late} It may grow ` +
+        `but not flower.` +
         (fact.dryRest ? " The rest must also be kept nearly dry." : "")
       );
     }
     case "dif-met":
-      return `Day–night difference (the day's high minus its low) of ${delta(fact.needC, f)} or more ${describeMonths(fact.months.map((x) => x.month))} (${fact.months.map((x) => `${MONTH_NAMES[x.month - 1].slice(0, 3)} ${delta(x.difC, f)}`).join(", ")}).`;
+      return (
+        `Day–night difference (the day's high minus its low) of ` +
+        `${delta(fact.needC, f)} or more ` +
+        `${describeMonths(fact.months.map((x) => x.month))} (` +
+        `${fact.months.map((x) => `${MONTH_NAMES[x.month - 1].slice(0, 3)} ${delta(x.difC, f)}`).join(", ")}).`
+      );
     case "dif-missed":
-      return `The day's high ran at most ${delta(fact.bestC, f)} over its low in a typical day of any month${fact.bestMonth ? ` (${MONTH_NAMES[fact.bestMonth - 1]})` : ""}; ${name} flowers best with about ${delta(fact.needC, f)} — it may grow but flower poorly.`;
+      return (
+        `The day's high ran at most ${delta(fact.bestC, f)} over its ` +
+        `low in a typical day of any month` +
+        `${fact.bestMonth ? ` (${MONTH_NAMES[fact.bestMonth - 1]})` : ""}` +
+        `; ${name} flowers best with about ${delta(fact.needC, f)} — it ` +
+        `may grow but flower poorly.`
+      );
     case "condensation-ok":
-      return `The air came within ${delta(fact.marginC, f)} of its dew point for ${count(Math.round(fact.hours), "hour", "hours", f)} in all — little risk of wet leaves.`;
+      return (
+        `The air came within ${delta(fact.marginC, f)} of its dew point ` +
+        `for ${count(Math.round(fact.hours), "hour", "hours", f)} in all ` +
+        `— little risk of wet leaves.`
+      );
     case "condensation-wet":
       return fact.expected
-        ? `Near the dew point for ${count(Math.round(fact.hours), "hour", "hours", f)} (${Math.round(fact.worstShare * 100)} % of the time in ${MONTH_NAMES[fact.worstMonth - 1]}) — normal for ${name}'s humid range; keep the air moving so leaves dry.`
-        : `The air sat within ${delta(fact.marginC, f)} of its dew point for ${count(Math.round(fact.hours), "hour", "hours", f)}, ${fact.months.length === 12 ? "in every month" : `most ${describeMonths(fact.months)}`} (${Math.round(fact.worstShare * 100)} % of the time in ${MONTH_NAMES[fact.worstMonth - 1]}): leaves stay wet, which invites rot. More air movement and watering early in the day help.`;
-    case "cold-glass":
-      return `Cold glass: with U ${formatNumber(fact.uValue, f.locale)} glazing the pane's inside ${fact.months.map((m) => `in ${MONTH_NAMES[m.month - 1]} sits near ${temp(m.paneC, f)}, at or under the room's ${temp(m.dewPointC, f)} dew point`).join("; ")} — water runs on the glass; keep leaves off it.`;
+        ? `Near the dew point for ` +
+            `${count(Math.round(fact.hours), "hour", "hours", f)} (` +
+            `${Math.round(fact.worstShare * 100)} % of the time in ` +
+            `${MONTH_NAMES[fact.worstMonth - 1]}) — normal for ${name}'s ` +
+            `humid range; keep the air moving so leaves dry.`
+        : `The air sat within ${delta(fact.marginC, f)} of its dew point ` +
+            `for ${count(Math.round(fact.hours), "hour", "hours", f)}, ` +
+            `${fact.months.length === 12 ? "in every month" : `most ${describeMonths(fact.months)}`}` +
+            ` (${Math.round(fact.worstShare * 100)} % of the time in ` +
+            `${MONTH_NAMES[fact.worstMonth - 1]}): leaves stay wet, which ` +
+            `invites rot. More air movement and watering early in ` +
+            `the day help.`;
+    case "cold-glass": {
+      const panes = fact.months
+        .map(
+          (m) =>
+            `in ${MONTH_NAMES[m.month - 1]} sits near ${temp(m.paneC, f)}, ` +
+            `at or under the room's ${temp(m.dewPointC, f)} dew point`,
+        )
+        .join("; ");
+      return (
+        `Cold glass: with U ${formatNumber(fact.uValue, f.locale)} ` +
+        `glazing the pane's inside ` +
+        `${panes}` +
+        ` — water runs on the glass; keep leaves off it.`
+      );
+    }
     case "projected-cold": {
       const month = MONTH_NAMES[fact.worstMonth - 1];
       const within = `(80 % range ${rangeWords(fact.rangeC, f)}, ${pastYears(fact.years)})`;
       if (fact.line === "damage")
-        return `${month} is likely to fall to ${temp(fact.lowC, f)} here ${within}, under ${name}'s ${temp(fact.lineC, f)} damage line: plan to move it ${describeMonths(fact.months)}. Not measured yet — a projection.`;
+        return (
+          `${month} is likely to fall to ${temp(fact.lowC, f)} here ` +
+          `${within}, under ${name}'s ${temp(fact.lineC, f)} damage line: ` +
+          `plan to move it ${describeMonths(fact.months)}. Not measured ` +
+          `yet — a projection.`
+        );
       if (fact.line === "comfort")
-        return `Nights ${describeMonths(fact.months)} are likely to run under ${temp(fact.lineC, f)}, typically ${temp(fact.lowC, f)} in ${month} ${within}: a cold season for ${name}; plan a warmer place then. Not measured yet — a projection.`;
-      return `A few nights ${describeMonths(fact.months)} are likely to dip under ${temp(fact.lineC, f)} (about ${temp(fact.lowC, f)} at the coldest in ${month}, ${within.slice(1, -1)}): cover it or bring it in then.`;
+        return (
+          `Nights ${describeMonths(fact.months)} are likely to run under ` +
+          `${temp(fact.lineC, f)}, typically ${temp(fact.lowC, f)} in ` +
+          `${month} ${within}: a cold season for ${name}; plan a warmer ` +
+          `place then. Not measured yet — a projection.`
+        );
+      return (
+        `A few nights ${describeMonths(fact.months)} are likely to dip ` +
+        `under ${temp(fact.lineC, f)} (about ${temp(fact.lowC, f)} at ` +
+        `the coldest in ${month}, ${within.slice(1, -1)}): cover it or ` +
+        `bring it in then.`
+      );
     }
     case "projected-heat": {
       const month = MONTH_NAMES[fact.worstMonth - 1];
       const within = `(80 % range ${rangeWords(fact.rangeC, f)}, ${pastYears(fact.years)})`;
       if (fact.line === "damage")
-        return `${month} is likely to reach ${temp(fact.highC, f)} here ${within}, over ${name}'s ${temp(fact.lineC, f)} damage line: plan shade or another place ${describeMonths(fact.months)}. Not measured yet — a projection.`;
+        return (
+          `${month} is likely to reach ${temp(fact.highC, f)} here ` +
+          `${within}, over ${name}'s ${temp(fact.lineC, f)} damage line: ` +
+          `plan shade or another place ${describeMonths(fact.months)}. Not ` +
+          `measured yet — a projection.`
+        );
       if (fact.line === "comfort")
-        return `Days ${describeMonths(fact.months)} are likely to run over ${temp(fact.lineC, f)}, typically ${temp(fact.highC, f)} in ${month} ${within}: plan shade and moving air then. Not measured yet — a projection.`;
-      return `A few days ${describeMonths(fact.months)} are likely to pass ${temp(fact.lineC, f)} (about ${temp(fact.highC, f)} at the warmest in ${month}, ${within.slice(1, -1)}): shade at midday then.`;
+        return (
+          `Days ${describeMonths(fact.months)} are likely to run over ` +
+          `${temp(fact.lineC, f)}, typically ${temp(fact.highC, f)} in ` +
+          `${month} ${within}: plan shade and moving air then. Not ` +
+          `measured yet — a projection.`
+        );
+      return (
+        `A few days ${describeMonths(fact.months)} are likely to pass ` +
+        `${temp(fact.lineC, f)} (about ${temp(fact.highC, f)} at the ` +
+        `warmest in ${month}, ${within.slice(1, -1)}): shade at ` +
+        `midday then.`
+      );
     }
     case "projected-warm-nights":
-      return `Nights ${describeMonths(fact.months)} are likely to stay above ${temp(fact.maxNightC, f)}, typically ${temp(fact.lowC, f)} in ${MONTH_NAMES[fact.worstMonth - 1]} (80 % range ${rangeWords(fact.rangeC, f)}, ${pastYears(fact.years)}): ${name} grows and flowers poorly without cool nights. Not measured yet — a projection.`;
+      return (
+        `Nights ${describeMonths(fact.months)} are likely to stay above ` +
+        `${temp(fact.maxNightC, f)}, typically ${temp(fact.lowC, f)} in ` +
+        `${MONTH_NAMES[fact.worstMonth - 1]} (80 % range ` +
+        `${rangeWords(fact.rangeC, f)}, ${pastYears(fact.years)}): ` +
+        `${name} grows and flowers poorly without cool nights. Not ` +
+        `measured yet — a projection.`
+      );
     case "projected-humidity":
       return fact.side === "dry"
-        ? `The air is likely to average about ${pct(fact.meanPct)} ${describeMonths(fact.months)}, under ${name}'s ${pct(fact.limitPct)} (${pastYears(fact.years)}): plan a tray, grouping or a humidifier then.`
-        : `The air is likely to average about ${pct(fact.meanPct)} ${describeMonths(fact.months)}, above ${name}'s ${pct(fact.limitPct)} (${pastYears(fact.years)}): keep the air moving then.`;
+        ? `The air is likely to average about ${pct(fact.meanPct)} ` +
+            `${describeMonths(fact.months)}, under ${name}'s ` +
+            `${pct(fact.limitPct)} (${pastYears(fact.years)}): plan a tray, ` +
+            `grouping or a humidifier then.`
+        : `The air is likely to average about ${pct(fact.meanPct)} ` +
+            `${describeMonths(fact.months)}, above ${name}'s ` +
+            `${pct(fact.limitPct)} (${pastYears(fact.years)}): keep the air ` +
+            `moving then.`;
     case "projected-ok":
       return fact.side === "cold"
         ? `The months not measured yet are likely to stay above ${temp(fact.lineC, f)} (coldest likely ${temp(fact.valueC, f)}, ${pastYears(fact.years)}).`

@@ -43,7 +43,8 @@ describe("fitPlant", () => {
   });
 
   it("says possible with care when a rule asks for care", () => {
-    const fit = fitPlant(cymbidium, spotYear({ month: (m) => ({ ...steadyRoom(m), rh: 55, lux: 25000 }) })); // grows in a warm bright room, but no cool spell to flower
+    // Grows in a warm bright room, but no cool spell to flower.
+    const fit = fitPlant(cymbidium, spotYear({ month: (m) => ({ ...steadyRoom(m), rh: 55, lux: 25000 }) }));
     expect(fit.verdict).toBe("possible with care");
     expect(fit.reasons[0]).toMatchObject({ rule: "flowering", level: "care" }); // most serious first
   });

@@ -56,11 +56,18 @@ export type PlantFit = {
 export const VERDICT_RULES: { verdict: Verdict; when: string }[] = [
   {
     verdict: "struggles here",
-    when: "A rule is poor: the spot crossed the group's damage line, or held it past its comfort range for a season (or stopped its growth), even with months still missing — unless it suits the group for a run of months.",
+    when:
+      "A rule is poor: the spot crossed the group's damage line, or " +
+      "held it past its comfort range for a season (or stopped its " +
+      "growth), even with months still missing — unless it suits the " +
+      "group for a run of months.",
   },
   {
     verdict: "good for part of the year",
-    when: "An outdoor spot rules the group out over the year, but suits it for a run of two or more months: use it then and bring the plant in before nights fall under its comfort line.",
+    when:
+      "An outdoor spot rules the group out over the year, but suits " +
+      "it for a run of two or more months: use it then and bring the " +
+      "plant in before nights fall under its comfort line.",
   },
   {
     verdict: "not enough data yet",
@@ -229,7 +236,9 @@ export function fitPlant(
         ? null
         : missingMonths.length === 12
           ? "No month has enough readings yet: leave the sensor in this spot through a whole year."
-          : `Still missing ${missingMonths.length === 1 ? missingMonths[0] : `${missingMonths.slice(0, -1).join(", ")} and ${missingMonths.at(-1)}`}: leave the sensor where it is through ${missingMonths.at(-1)}.`,
+          : `Still missing ` +
+            `${missingMonths.length === 1 ? missingMonths[0] : `${missingMonths.slice(0, -1).join(", ")} and ${missingMonths.at(-1)}`}` +
+            `: leave the sensor where it is through ${missingMonths.at(-1)}.`,
   };
 }
 

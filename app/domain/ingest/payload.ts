@@ -51,7 +51,13 @@ export function implausibleJump(previous: { ms: number; t: number } | undefined,
   const step = Math.abs(t - previous.t);
   const minutes = dt / 60_000;
   if (step <= maxTemperatureStep(minutes)) return null;
-  return `temperature: ${round1(previous.t)} → ${round1(t)} °C in ${dt <= 60_000 ? `${Math.round(dt / 1000)} s` : `${round1(minutes)} min`} is a jump no sensor makes (over ${round1(maxTemperatureStep(minutes))} °C); a °F sensor without "unit":"F"?`;
+  return (
+    `temperature: ${round1(previous.t)} → ${round1(t)} °C in ` +
+    `${dt <= 60_000 ? `${Math.round(dt / 1000)} s` : `${round1(minutes)} min`}` +
+    ` is a jump no sensor makes (over ` +
+    `${round1(maxTemperatureStep(minutes))} °C); a °F sensor ` +
+    `without "unit":"F"?`
+  );
 }
 
 // The smallest normal single-precision float. A non-zero value below it is no measurement: it is
@@ -156,7 +162,10 @@ export function validateReading(
   if (temperature != null && (temperature < lim.tMin || temperature > lim.tMax)) {
     return {
       ok: false,
-      reason: `temperature: ${round1(temperature)} °C is outside what ${opts.kind === "indoor" ? "an indoor" : "this"} spot can see (${lim.tMin} to ${lim.tMax} °C)`,
+      reason:
+        `temperature: ${round1(temperature)} °C is outside what ` +
+        `${opts.kind === "indoor" ? "an indoor" : "this"} spot can see (` +
+        `${lim.tMin} to ${lim.tMax} °C)`,
     };
   }
   const measuredMs = Math.floor(measuredAt.getTime() / 1000) * 1000;

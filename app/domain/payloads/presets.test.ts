@@ -105,7 +105,8 @@ describe("Shelly Gen2+ NotifyStatus", () => {
   // time in UTC; component keys "type:id"); the Temperature and Humidity components' status (tC, tF, rh).
   it("reads temperature:0 and humidity:0 with params.ts as the time", () => {
     const r = decode(
-      '{"src":"shellyhtg3-84fce63bc2a8","dst":"shellyhtg3-84fce63bc2a8/events","method":"NotifyStatus","params":{"ts":1780315200.52,"temperature:0":{"id":0,"tC":19.8,"tF":67.6}}}',
+      '{"src":"shellyhtg3-84fce63bc2a8","dst":"shellyhtg3-84fce63bc2a8/events","method":"NotifyStatus",' +
+        '"params":{"ts":1780315200.52,"temperature:0":{"id":0,"tC":19.8,"tF":67.6}}}',
       { preset: "shelly" },
     );
     expect(r.ok && r.items).toEqual([
@@ -139,7 +140,8 @@ describe("OpenMQTTGateway / Theengs BLE JSON", () => {
   // tempf, hum, batt) and https://decoder.theengs.io/devices/LYWSD03MMC_ATC.html (memory: field names).
   it("reads one advertisement with its MAC as the device", () => {
     const r = decode(
-      '{"id":"A4:C1:38:1E:5B:6F","name":"ATC_1E5B6F","rssi":-67,"brand":"Xiaomi","model":"LYWSD03MMC","model_id":"LYWSD03MMC_ATC","tempc":22.6,"tempf":72.68,"hum":53,"batt":89,"volt":2.96}',
+      '{"id":"A4:C1:38:1E:5B:6F","name":"ATC_1E5B6F","rssi":-67,"brand":"Xiaomi","model":"LYWSD03MMC",' +
+        '"model_id":"LYWSD03MMC_ATC","tempc":22.6,"tempf":72.68,"hum":53,"batt":89,"volt":2.96}',
       { preset: "ble-gateway" },
     );
     expect(r.ok && r.items).toEqual([
@@ -167,7 +169,9 @@ describe("Home Assistant MQTT discovery config", () => {
   it("reads state topic, channel, unit and a simple value_json path", () => {
     const hint = parseDiscoveryConfig(
       b(
-        '{"device_class":"temperature","state_topic":"tele/tasmota_ble/ATC264902","name":"ATC Temperature","unit_of_measurement":"°F","value_template":"{{ value_json.Temperature }}"}',
+        '{"device_class":"temperature","state_topic":"tele/tasmota_ble/ATC264902","name":"ATC ' +
+          'Temperature","unit_of_measurement":"°F","value_template":"{{ ' +
+          'value_json.Temperature }}"}',
       ),
     );
     expect(hint).toEqual({

@@ -105,7 +105,10 @@ const BASE_LIBRARY: PlantProfile[] = [
     dliMax: 8,
     flowering: {
       coolPeriod: { maxDayC: 26, weeks: 4, months: "any time of year, usually autumn" },
-      note: "Spikes are set by cooler days: spikes formed at 20/14 and 23/17 °C day/night and none at 29 °C days. A few weeks of days under about 26 °C usually bring a spike.",
+      note:
+        "Spikes are set by cooler days: spikes formed at 20/14 and " +
+        "23/17 °C day/night and none at 29 °C days. A few weeks of days " +
+        "under about 26 °C usually bring a spike.",
     },
     coldTolerance: "chilling damage below about 10 °C; keep nights above 15 °C",
     summary: "The easiest orchid for a warm room with bright light but no direct midday sun.",
@@ -119,7 +122,9 @@ const BASE_LIBRARY: PlantProfile[] = [
       {
         field: "flowering",
         source:
-          "Blanchard & Runkle (2006), J. Exp. Bot. 57, 4043–4049: spiking at 14–23 °C, 20/14 and 23/17 °C, none at 29 °C days; 26 °C is our midpoint between tested temperatures",
+          "Blanchard & Runkle (2006), J. Exp. Bot. 57, 4043–4049: spiking " +
+          "at 14–23 °C, 20/14 and 23/17 °C, none at 29 °C days; 26 °C is " +
+          "our midpoint between tested temperatures",
       },
       memo("flowering.weeks", "weeks of cool days before a spike shows (memory)"),
       reid(),
@@ -151,7 +156,9 @@ const BASE_LIBRARY: PlantProfile[] = [
       memo("flowering", "no temperature cue for mottled types (memory)"),
       memo(
         "coldTolerance",
-        "AOS sheet: warm types want 60–65 °F nights; a brief cooler night is survived (memory of the wording); the 13 °C growth line and 10 °C damage line are ours",
+        "AOS sheet: warm types want 60–65 °F nights; a brief cooler " +
+          "night is survived (memory of the wording); the 13 °C growth " +
+          "line and 10 °C damage line are ours",
       ),
     ],
   },

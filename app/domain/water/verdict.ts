@@ -86,7 +86,10 @@ export function sampleEc(sample: WaterSample): { low: number; high: number } | n
   return { low: ppmToEc(sample.ppm, TDS_SCALE_442), high: ppmToEc(sample.ppm, TDS_SCALE_NACL) };
 }
 
-const LIMIT_TEXT = `${ROUTINE_WATERING_MAX_EC} µS/cm (${routineLimitPpm(TDS_SCALE_NACL)} ppm on a 0.5 meter, ${routineLimitPpm(TDS_SCALE_442)} ppm on a 0.7 meter)`;
+const LIMIT_TEXT =
+  `${ROUTINE_WATERING_MAX_EC} µS/cm (` +
+  `${routineLimitPpm(TDS_SCALE_NACL)} ppm on a 0.5 meter, ` +
+  `${routineLimitPpm(TDS_SCALE_442)} ppm on a 0.7 meter)`;
 
 /**
  * Verdict and plain-word reasons for one water check. A value exactly on a threshold is within
