@@ -94,7 +94,8 @@ describe("dewPoint", () => {
     fc.assert(
       fc.property(air, rh, rh, (t, h1, h2) => {
         const [lo, hi] = h1 <= h2 ? [h1, h2] : [h2, h1];
-        return dewPoint(t, lo) <= dewPoint(t, hi);
+        // Within rounding: two RH values a few ulps apart can round the logarithm either way.
+        return dewPoint(t, lo) <= dewPoint(t, hi) + 1e-9;
       }),
     );
   });
