@@ -5,22 +5,7 @@
 import type { DirectSunEstimate } from "~/domain/climate/sun";
 import { SpotsAndSeasons } from "~/components/illustration";
 import { formatDelta, formatTemp, type TempUnit } from "~/domain/units";
-
-const MONTHS = ["Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"];
-const MONTH_NAMES = [
-  "January",
-  "February",
-  "March",
-  "April",
-  "May",
-  "June",
-  "July",
-  "August",
-  "September",
-  "October",
-  "November",
-  "December",
-];
+import { MONTH_NAMES, MONTH_SHORT } from "~/lib/time";
 
 export type DayOneView = {
   measuredMonths: number;
@@ -80,7 +65,7 @@ function aboveWords(dc: number, unit: TempUnit) {
 
 export function DayOne({ view, sun, unit }: { view: DayOneView; sun: DirectSunEstimate; unit: TempUnit }) {
   const { model, climate, versus } = view;
-  const sunny = sun.months?.filter((m) => m.getsDirectSun).map((m) => MONTHS[m.month - 1]) ?? [];
+  const sunny = sun.months?.filter((m) => m.getsDirectSun).map((m) => MONTH_SHORT[m.month - 1]) ?? [];
   const coldest = climate?.months.reduce((a, b) => (b.meanDailyLowC < a.meanDailyLowC ? b : a));
   const warmest = climate?.months.reduce((a, b) => (b.meanDailyHighC > a.meanDailyHighC ? b : a));
   return (
@@ -216,7 +201,7 @@ export function DayOne({ view, sun, unit }: { view: DayOneView; sun: DirectSunEs
                 </tr>
               </thead>
               <tbody>
-                {MONTHS.map((name, i) => {
+                {MONTH_SHORT.map((name, i) => {
                   const c = climate?.months.find((m) => m.month === i + 1);
                   const s = sun.months?.find((m) => m.month === i + 1);
                   return (

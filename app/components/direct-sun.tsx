@@ -1,11 +1,11 @@
 // The direct-sun estimate for a spot's window facing, in words first and a month table second.
 import type { DirectSunEstimate } from "~/domain/climate/sun";
+import { MONTH_SHORT } from "~/lib/time";
 
-const MONTHS = ["Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"];
 const hours = (h: number) => `${Math.round(h * 2) / 2} h`;
 
 export function DirectSun({ estimate, hasLightSensor }: { estimate: DirectSunEstimate; hasLightSensor: boolean }) {
-  const sunny = estimate.months?.filter((m) => m.getsDirectSun).map((m) => MONTHS[m.month - 1]) ?? [];
+  const sunny = estimate.months?.filter((m) => m.getsDirectSun).map((m) => MONTH_SHORT[m.month - 1]) ?? [];
   return (
     <section className="card space-y-3" data-testid="direct-sun">
       <h3 className="h2">Direct sun through the window</h3>
@@ -42,7 +42,7 @@ export function DirectSun({ estimate, hasLightSensor }: { estimate: DirectSunEst
               <tbody>
                 {estimate.months.map((m) => (
                   <tr key={m.month}>
-                    <td>{MONTHS[m.month - 1]}</td>
+                    <td>{MONTH_SHORT[m.month - 1]}</td>
                     <td>{Math.round(m.noonElevation)}° up</td>
                     <td>{m.getsDirectSun ? hours(m.hours) : "none"}</td>
                     <td>{m.getsDirectSun ? `${hours(m.morningHours)} / ${hours(m.afternoonHours)}` : "–"}</td>
@@ -73,7 +73,7 @@ function SunBars({ months }: { months: SunMonth[] }) {
   const ticks = Array.from({ length: max / 2 + 1 }, (_, i) => i * 2).filter((t) => max <= 8 || t % 4 === 0);
   const label =
     "Hours of direct sun through the window on the 21st of each month: " +
-    months.map((m) => `${MONTHS[m.month - 1]} ${m.getsDirectSun ? hours(m.hours) : "none"}`).join(", ") +
+    months.map((m) => `${MONTH_SHORT[m.month - 1]} ${m.getsDirectSun ? hours(m.hours) : "none"}`).join(", ") +
     ".";
   return (
     <figure>
@@ -111,7 +111,7 @@ function SunBars({ months }: { months: SunMonth[] }) {
                 />
               ) : null}
               <text x={x + colW / 2} y={H - 6} textAnchor="middle" fontSize="10" fill="#182338">
-                {MONTHS[m.month - 1]}
+                {MONTH_SHORT[m.month - 1]}
               </text>
             </g>
           );

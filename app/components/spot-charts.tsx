@@ -5,9 +5,10 @@ import { useMemo } from "react";
 import type uPlot from "uplot";
 import { Chart, SITE_LOCALE, TEMP_COLOURS, useSeries, type ChartSpec } from "~/components/chart";
 import { deltaToUnit, formatDelta, formatTemp, toUnit, type TempUnit } from "~/domain/units";
+import { MONTH_SHORT } from "~/lib/time";
 
 const AXIS = { stroke: "#4a5767", grid: { stroke: "#d4dcdb" }, ticks: { stroke: "#d4dcdb" } };
-export const MONTHS_SHORT = ["Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"];
+export { MONTH_SHORT as MONTHS_SHORT };
 /** Dew-point margin under which glass and leaves are taken to be wet (the brief; same as the season profile). */
 const WET_MARGIN_C = 2;
 

@@ -238,7 +238,8 @@ export function formatOffset(minutes: number): string {
   return `UTC${sign}${String(Math.floor(m / 60)).padStart(2, "0")}:${String(m % 60).padStart(2, "0")}`;
 }
 
-const MONTHS = [
+/** The English month names, January first. */
+export const MONTH_NAMES = [
   "January",
   "February",
   "March",
@@ -251,12 +252,28 @@ const MONTHS = [
   "October",
   "November",
   "December",
-];
+] as const;
+
+/** The three-letter English month names, Jan first. */
+export const MONTH_SHORT = [
+  "Jan",
+  "Feb",
+  "Mar",
+  "Apr",
+  "May",
+  "Jun",
+  "Jul",
+  "Aug",
+  "Sep",
+  "Oct",
+  "Nov",
+  "Dec",
+] as const;
 
 /** One sentence on how the rows at a clock change were read, for the import preview. */
 export function describeDstChange(c: DstChange): string {
   const [y, mo, d] = c.date.split("-").map(Number);
-  const when = `${d} ${MONTHS[mo - 1]} ${y}`;
+  const when = `${d} ${MONTH_NAMES[mo - 1]} ${y}`;
   const rows = (n: number) => `${n.toLocaleString("en")} ${n === 1 ? "row" : "rows"}`;
   if (c.kind === "skipped") {
     const gap = c.offsetAfterMin - c.offsetBeforeMin;

@@ -10,6 +10,7 @@
 // forecast hovering at the line warns once and does not flap.
 import type { ForecastNight } from "~/domain/projection/forecast";
 import { formatDelta, formatTemp } from "~/domain/units";
+import { MONTH_SHORT } from "~/lib/time";
 
 export type Unit = "C" | "F";
 const HOUR = 3_600_000;
@@ -75,13 +76,11 @@ export function planForecast(input: {
   return { warn, keep, clear };
 }
 
-const MONTHS = ["Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"];
-
 /** "Wednesday night (16 Sep)", from the night's local start date. */
 export function nightName(key: string): string {
   const d = new Date(`${key}T12:00:00Z`);
   const weekday = new Intl.DateTimeFormat("en-GB", { weekday: "long", timeZone: "UTC" }).format(d);
-  return `${weekday} night (${d.getUTCDate()} ${MONTHS[d.getUTCMonth()]})`;
+  return `${weekday} night (${d.getUTCDate()} ${MONTH_SHORT[d.getUTCMonth()]})`;
 }
 
 export type ForecastWarningFacts = {

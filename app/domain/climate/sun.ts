@@ -3,6 +3,7 @@
 // from north).
 import * as SunCalc from "suncalc";
 import { median } from "simple-statistics";
+import { MONTH_NAMES } from "~/lib/time";
 import { FACING_WORDS, type SpotFacing, type WindowFacing } from "~/domain/vocabulary";
 
 const DEG = Math.PI / 180;
@@ -150,21 +151,6 @@ function directSunOnThe21st(lat: number, normal: number, year: number, monthInde
     getsDirectSun: hours >= 0.5,
   };
 }
-
-const MONTH_NAMES = [
-  "January",
-  "February",
-  "March",
-  "April",
-  "May",
-  "June",
-  "July",
-  "August",
-  "September",
-  "October",
-  "November",
-  "December",
-];
 
 function formatLatitude(lat: number): string {
   return `${Number(Math.abs(lat).toFixed(1))}° ${lat >= 0 ? "N" : "S"}`;

@@ -3,13 +3,14 @@
 // state rests on the projection (fit/projected.ts) rather than on readings. Pure: the summary
 // (.server/profiles.ts) derives it from a rule's result and the fit's basis; the page draws it.
 import type { Fact, CheckResult } from "~/domain/fit/facts";
+import { MONTH_SHORT } from "~/lib/time";
 
 export type MonthState = "pass" | "care" | "fail" | "unmeasured";
 export type StripCell = { month: number; state: MonthState; projected: boolean };
 
 /** The months in the order the site's year strip draws them: January to December in both hemispheres, so a reason's strip lines up with the year above it. */
 export const STRIP_ORDER = [1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12];
-export const MONTH_SHORT = ["Jan", "Feb", "Mar", "Apr", "May", "Jun", "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"];
+export { MONTH_SHORT };
 
 /** Rules judged month by month. Flowering is a cue over weeks in its season, not a monthly pass or fail: no strip. */
 const STRIP_RULES = new Set(["cold-nights", "warm-nights", "hot-days", "humidity", "light", "condensation"]);

@@ -12,7 +12,7 @@ import {
 } from "~/domain/season/local-time";
 import { luxPerPpfdFor } from "~/domain/climate/light";
 import type { LightSource } from "~/domain/vocabulary";
-import { resolveWall } from "~/lib/time";
+import { MONTH_NAMES, resolveWall } from "~/lib/time";
 import type {
   DaySummary,
   Hemisphere,
@@ -53,20 +53,7 @@ import {
   NIGHT_START_HOUR,
 } from "~/domain/season/thresholds";
 
-export const MONTH_NAMES = [
-  "January",
-  "February",
-  "March",
-  "April",
-  "May",
-  "June",
-  "July",
-  "August",
-  "September",
-  "October",
-  "November",
-  "December",
-] as const;
+export { MONTH_NAMES };
 
 /** `lightSource` picks the lux → PPFD factor of the DLI (default sunlight) and whether clipping is looked for. */
 export type SeasonProfileOptions = { from: Date; to: Date; thresholds?: number[]; lightSource?: LightSource };
