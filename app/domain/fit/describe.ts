@@ -1,72 +1,35 @@
 // Words for the fit rules' facts, in the grower's unit and locale. The rules return numbers and
 // dates only (checks.ts); this is the one place that turns them into sentences.
-import { cyclicOrder, type Fact, type CheckResult } from "~/domain/fit/facts";
+import type { Fact, CheckResult } from "~/domain/fit/facts";
 import { MONTH_NAMES } from "~/domain/season/profile";
-import { deltaToUnit, toUnit, type TempUnit } from "~/domain/units";
 import { FACING_WORDS, type WindowFacing } from "~/domain/vocabulary";
+import {
+  type Format,
+  DEFAULT_FORMAT,
+  numberFormat,
+  formatNumber,
+  temp,
+  delta,
+  degreeHours,
+  count,
+  describeMonths,
+  episodes,
+  pct,
+  DLI,
+  rangeWords,
+  pastYears,
+} from "~/domain/fit/describe-format";
 
-export type Format = { unit: TempUnit; locale?: string };
-export const DEFAULT_FORMAT: Format = { unit: "C", locale: "en-GB" };
-
-const numberFormat = (locale: string | undefined, digits: number) =>
-  new Intl.NumberFormat(locale ?? "en-GB", { maximumFractionDigits: digits, minimumFractionDigits: 0 });
-
-/** 7.24 → "7.2", 13.0 → "13", −0.04 → "0". */
-export function formatNumber(x: number, locale?: string): string {
-  const r = Math.round(x * 10) / 10;
-  return numberFormat(locale, 1).format(Object.is(r, -0) ? 0 : r);
-}
-
-export function temp(c: number, f: Format): string {
-  const v = Math.round(toUnit(c, f.unit) * 10) / 10;
-  return `${formatNumber(v, f.locale)} °${f.unit}`;
-}
-export function delta(dc: number, f: Format): string {
-  return `${formatNumber(deltaToUnit(dc, f.unit), f.locale)} °${f.unit}`;
-}
-/** Degree-hours in the grower's unit (K·h or °F·h). */
-const degreeHours = (dh: number, f: Format) =>
-  `${numberFormat(f.locale, 0).format(Math.round(deltaToUnit(dh, f.unit)))} degree-hours`;
-
-const count = (n: number, one: string, many = `${one}s`, f?: Format) =>
-  `${numberFormat(f?.locale, 0).format(n)} ${n === 1 ? one : many}`;
-
-/** "17 Jan" from a local date key "2026-01-17", in the locale. */
-export function day(key: string, f: Format): string {
-  const [y, m, d] = key.split("-").map(Number);
-  return new Intl.DateTimeFormat(f.locale ?? "en-GB", { day: "numeric", month: "short", timeZone: "UTC" }).format(
-    new Date(Date.UTC(y, m - 1, d)),
-  );
-}
-
-function monthRuns(months: number[]): number[][] {
-  const runs: number[][] = [];
-  for (const m of cyclicOrder(months)) {
-    const last = runs.at(-1);
-    if (last && m === (last.at(-1)! % 12) + 1) last.push(m);
-    else runs.push([m]);
-  }
-  return runs;
-}
-const joinAnd = (parts: string[]) =>
-  parts.length <= 1 ? parts.join("") : `${parts.slice(0, -1).join(", ")} and ${parts.at(-1)}`;
-
-/** "in July", "in July and August", "from November to February", "in January, March and June". */
-export function describeMonths(months: number[]): string {
-  const runs = monthRuns(months);
-  const name = (m: number) => MONTH_NAMES[m - 1];
-  if (runs.length === 0) return "";
-  if (runs.length === 1 && runs[0].length === 12) return "all year";
-  if (runs.length === 1 && runs[0].length >= 3) return `from ${name(runs[0][0])} to ${name(runs[0].at(-1)!)}`;
-  const parts = runs.flatMap((r) => (r.length >= 3 ? [`${name(r[0])}–${name(r.at(-1)!)}`] : r.map(name)));
-  return `in ${joinAnd(parts)}`;
-}
-
-const episodes = (list: { date: string; valueC: number; hours: number }[], f: Format) =>
-  joinAnd(list.map((e) => `${day(e.date, f)}: ${temp(e.valueC, f)} for ${count(e.hours, "hour", "hours", f)}`));
-
-const pct = (x: number) => `${Math.round(x)} %`;
-const DLI = "mol m⁻² d⁻¹";
+export {
+  DEFAULT_FORMAT,
+  day,
+  delta,
+  describeMonths,
+  formatNumber,
+  temp,
+  type Format,
+} from "~/domain/fit/describe-format";
+export { describeSeasonal, describeVerdict } from "~/domain/fit/describe-verdict";
 
 /** One fact in words. */
 export function describeFact(fact: Fact, f: Format = DEFAULT_FORMAT, name = "this group"): string {
@@ -372,55 +335,6 @@ export function describeFact(fact: Fact, f: Format = DEFAULT_FORMAT, name = "thi
   }
 }
 
-const rangeWords = (r: [number, number], f: Format) =>
-  `${formatNumber(toUnit(r[0], f.unit), f.locale)} to ${temp(r[1], f)}`;
-const pastYears = (years: number) => `from ${years} past ${years === 1 ? "year" : "years"} of weather`;
-
-/** "17 May" from a local date key, with the year when it is not this one's. */
-function firmDate(key: string, f: Format, now: Date): string {
-  const [y, m, d] = key.split("-").map(Number);
-  const opts: Intl.DateTimeFormatOptions = {
-    day: "numeric",
-    month: "long",
-    timeZone: "UTC",
-    ...(y !== now.getUTCFullYear() ? { year: "numeric" } : {}),
-  };
-  return new Intl.DateTimeFormat(f.locale ?? "en-GB", opts).format(new Date(Date.UTC(y, m - 1, d)));
-}
-
-/**
- * The verdict with what it rests on: "likely thrives here — 3 of 12 months measured, the rest
- * projected from 10 past years of weather; firm by 14 May". A verdict on measured months alone is
- * the verdict as it is.
- */
-export function describeVerdict(
-  fit: {
-    verdict: string;
-    confidence: "measured" | "projected" | "mixed";
-    basis: {
-      measuredMonths: number[];
-      projectedMonths: number[];
-      blendedMonths: number[];
-      years: number;
-      firmBy: string | null;
-    } | null;
-  },
-  f: Format = DEFAULT_FORMAT,
-  now = new Date(),
-): string {
-  // "Not enough data yet" is no verdict to call likely (months neither measured nor projected remain).
-  if (fit.confidence === "measured" || !fit.basis || fit.verdict === "not enough data yet") return fit.verdict;
-  const b = fit.basis;
-  const measured =
-    b.measuredMonths.length === 0 ? "no month measured yet" : `${b.measuredMonths.length} of 12 months measured`;
-  const partly = b.blendedMonths.length
-    ? ` (${b.blendedMonths.length === 1 ? MONTH_NAMES[b.blendedMonths[0] - 1] : `${b.blendedMonths.length} months`} partly)`
-    : "";
-  const rest = b.measuredMonths.length === 0 ? "all projected" : "the rest projected";
-  const firm = b.firmBy ? `; firm by ${firmDate(b.firmBy, f, now)}` : "";
-  return `likely ${fit.verdict} — ${measured}${partly}, ${rest} ${pastYears(b.years)}${firm}`;
-}
-
 /** A rule's result in words: its facts joined, or what is not known. */
 export function describeReason(r: CheckResult, f: Format = DEFAULT_FORMAT, name?: string): string {
   if (r.facts.length === 0) {
@@ -429,12 +343,4 @@ export function describeReason(r: CheckResult, f: Format = DEFAULT_FORMAT, name?
       : `No ${r.rule === "humidity" ? "humidity" : r.rule === "condensation" ? "temperature and humidity" : "temperature"} readings yet, so this isn't judged.`;
   }
   return r.facts.map((x) => describeFact(x, f, name)).join(" ");
-}
-
-/** "Good from May to September; bring it in before nights fall under 4.5 °C." */
-export function describeSeasonal(
-  seasonal: { months: number[]; bringInBelowC: number },
-  f: Format = DEFAULT_FORMAT,
-): string {
-  return `Good ${describeMonths(seasonal.months)}; bring it in before nights fall under ${temp(seasonal.bringInBelowC, f)}.`;
 }
