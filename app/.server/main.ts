@@ -11,7 +11,7 @@ import type { ServerBuild } from "react-router";
 import type { ViteDevServer } from "vite";
 import { demoPolicy, env, publicUrl } from "~/.server/env";
 import { startBroker } from "~/.server/ingest/broker";
-import { startBridges } from "~/.server/bridge/runtime";
+import { startBridges } from "~/.server/bridge/registry";
 import { startEmbeddedPostgres, type EmbeddedPostgres } from "~/.server/postgres";
 
 const log = (s: string) => console.log(`[nichewise] ${s}`);

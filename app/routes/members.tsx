@@ -4,7 +4,6 @@ import { parseWithZod } from "@conform-to/zod/v4";
 import { data, Form, redirect, useNavigation } from "react-router";
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
 import {
-  changeRole,
   InvitationLimitError,
   INVITES_PER_SITE_PER_HOUR,
   inviteMember,
@@ -12,9 +11,9 @@ import {
   listMembers,
   MembershipError,
   recentChanges,
-  removeMember,
   revokeInvitation,
 } from "~/.server/members";
+import { changeRole, removeMember } from "~/.server/member-roles";
 import { readForm, refuseForm, toId } from "~/.server/ids";
 import { useNow } from "~/components/use-now";
 import { describeChange, type ChangeDetail } from "~/domain/sharing/changes";

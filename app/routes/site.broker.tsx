@@ -5,7 +5,7 @@ import { readForm, toId } from "~/.server/ids";
 import { getSite } from "~/.server/sites";
 import { createSensor, listSensors, PlacementError } from "~/.server/sensors.server";
 import { getSpot, listSpots } from "~/.server/spots";
-import { bridgeState, reloadBridge } from "~/.server/bridge/runtime";
+import { bridgeState, reloadBridge } from "~/.server/bridge/registry";
 import { foundTopics, ListenRefused, listeningFor, startListening } from "~/.server/bridge/discovery";
 import { attachTopic, detachTopic, getBridge, LinkError, listLinks, saveBridge, viewOf } from "~/.server/bridge/store";
 import { PRESET_LABELS, sensorChannelsFor, sensorNameFor } from "~/domain/payloads/presets";

@@ -7,7 +7,6 @@ import { sunkMail } from "~/.server/mail";
 import { createSession, generateSessionToken } from "~/.server/auth";
 import {
   acceptInvitation,
-  changeRole,
   findInvitation,
   InvitationLimitError,
   invitationTokenHash,
@@ -17,10 +16,10 @@ import {
   MAIL_NAME_MAX,
   MembershipError,
   recentChanges,
-  removeMember,
   revokeInvitation,
   WrongAccountError,
 } from "~/.server/members";
+import { changeRole, removeMember } from "~/.server/member-roles";
 import { auditLog, invitations, memberships, sites } from "~/db/schema.server";
 import { action as inviteAction, loader as inviteLoader } from "~/routes/invite";
 import { action as membersAction } from "~/routes/members";
