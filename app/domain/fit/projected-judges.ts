@@ -17,83 +17,96 @@ const range = (f: Figure): [number, number] => [round1(f.low), round1(f.high)];
 
 export type Judged = { level: CheckLevel; facts: Fact[]; months: number[]; monthKeys?: string[] };
 
-/** Cold side: a projected month whose lowest falls past the damage line, or whose nights typically sit under comfort. */
-export function cold(p: PlantProfile, months: ProjectedMonth[], years: number, t: FitThresholds): Judged | null {
-  const { comfortNightC: comfort, damageNightC: damage } = linesOf(p);
-  const withLow = months.filter((m) => m.figures.lowest && m.figures.meanDailyLow);
-  if (withLow.length === 0) return null;
-  const worst = withLow.reduce((a, b) => (b.figures.lowest!.value < a.figures.lowest!.value ? b : a));
-  const damaged = withLow.filter((m) => m.figures.lowest!.value < damage);
-  if (damaged.length > 0) {
-    const low = worst.figures.lowest!;
-    return {
-      level: "poor",
-      months: damaged.map((m) => m.month),
-      facts: [
-        {
-          kind: "projected-cold",
-          line: "damage",
-          lineC: damage,
-          months: cyclicOrder(damaged.map((m) => m.month)),
-          worstMonth: worst.month,
-          lowC: round1(low.value),
-          rangeC: range(low),
-          years,
-        },
-      ],
-    };
-  }
-  // A cold season: the month's typical night (mean daily low) under comfort, beyond the sensor's margin.
-  const season = withLow.filter((m) => m.figures.meanDailyLow!.value < comfort - t.sensorMarginC);
+type Side = {
+  name: "cold" | "heat";
+  /** −1 for the cold side (lower is worse), +1 for the hot side. */
+  sign: -1 | 1;
+  extreme: "lowest" | "highest";
+  typical: "meanDailyLow" | "meanDailyHigh";
+  lines: (p: PlantProfile) => { comfort: number; damage: number };
+  fact: (at: Where, f: Figure) => Fact;
+};
+type Where = {
+  line: "damage" | "comfort" | "snap";
+  lineC: number;
+  months: number[];
+  worstMonth: number;
+  years: number;
+};
+
+const COLD: Side = {
+  name: "cold",
+  sign: -1,
+  extreme: "lowest",
+  typical: "meanDailyLow",
+  lines: (p) => ({ comfort: linesOf(p).comfortNightC, damage: linesOf(p).damageNightC }),
+  fact: (at, f) => ({ kind: "projected-cold", ...at, lowC: round1(f.value), rangeC: range(f) }),
+};
+
+const HEAT: Side = {
+  name: "heat",
+  sign: 1,
+  extreme: "highest",
+  typical: "meanDailyHigh",
+  lines: (p) => ({ comfort: linesOf(p).comfortDayC, damage: linesOf(p).damageDayC }),
+  fact: (at, f) => ({ kind: "projected-heat", ...at, highC: round1(f.value), rangeC: range(f) }),
+};
+
+/**
+ * One side of the temperature range: a projected month whose extreme goes past the damage line, or
+ * whose typical day (hot side) or night (cold side) sits past comfort beyond the sensor's margin, or
+ * single days or nights past comfort.
+ */
+function extremes(
+  side: Side,
+  p: PlantProfile,
+  months: ProjectedMonth[],
+  years: number,
+  t: FitThresholds,
+): Judged | null {
+  const { comfort, damage } = side.lines(p);
+  const { sign, extreme, typical } = side;
+  /** Positive when a value lies past a line on this side (colder, or hotter). */
+  const past = (value: number, line: number) => sign * (value - line);
+  /** A line moved outwards by the sensor's margin. */
+  const beyondMargin = (line: number) => line + sign * t.sensorMarginC;
+  const judged = months.filter((m) => m.figures[extreme] && m.figures[typical]);
+  if (judged.length === 0) return null;
+  const extremeOf = (m: ProjectedMonth) => m.figures[extreme]!;
+  const typicalOf = (m: ProjectedMonth) => m.figures[typical]!;
+  const worst = judged.reduce((a, b) => (past(extremeOf(b).value, extremeOf(a).value) > 0 ? b : a));
+  const found = (
+    level: CheckLevel,
+    line: Where["line"],
+    lineC: number,
+    hit: ProjectedMonth[],
+    at: ProjectedMonth,
+    f: Figure,
+  ): Judged => ({
+    level,
+    months: hit.map((m) => m.month),
+    facts: [side.fact({ line, lineC, months: cyclicOrder(hit.map((m) => m.month)), worstMonth: at.month, years }, f)],
+  });
+  const damaged = judged.filter((m) => past(extremeOf(m).value, damage) > 0);
+  if (damaged.length > 0) return found("poor", "damage", damage, damaged, worst, extremeOf(worst));
+  // A cold (or hot) season: the month's typical night (or day) past comfort, beyond the sensor's margin.
+  const season = judged.filter((m) => past(typicalOf(m).value, beyondMargin(comfort)) > 0);
   if (season.length > 0) {
-    const coldest = season.reduce((a, b) => (b.figures.meanDailyLow!.value < a.figures.meanDailyLow!.value ? b : a));
-    const typical = coldest.figures.meanDailyLow!;
-    return {
-      level: typical.value < (comfort + damage) / 2 ? "poor" : "care",
-      months: season.map((m) => m.month),
-      facts: [
-        {
-          kind: "projected-cold",
-          line: "comfort",
-          lineC: comfort,
-          months: cyclicOrder(season.map((m) => m.month)),
-          worstMonth: coldest.month,
-          lowC: round1(typical.value),
-          rangeC: range(typical),
-          years,
-        },
-      ],
-    };
+    const most = season.reduce((a, b) => (past(typicalOf(b).value, typicalOf(a).value) > 0 ? b : a));
+    const level = past(typicalOf(most).value, (comfort + damage) / 2) > 0 ? "poor" : "care";
+    return found(level, "comfort", comfort, season, most, typicalOf(most));
   }
-  const nightsUnder = withLow.filter((m) => m.figures.lowest!.value < comfort - t.sensorMarginC);
-  if (nightsUnder.length > 0) {
-    const low = worst.figures.lowest!;
-    return {
-      level: "care",
-      months: nightsUnder.map((m) => m.month),
-      facts: [
-        {
-          kind: "projected-cold",
-          line: "snap",
-          lineC: comfort,
-          months: cyclicOrder(nightsUnder.map((m) => m.month)),
-          worstMonth: worst.month,
-          lowC: round1(low.value),
-          rangeC: range(low),
-          years,
-        },
-      ],
-    };
-  }
+  const single = judged.filter((m) => past(extremeOf(m).value, beyondMargin(comfort)) > 0);
+  if (single.length > 0) return found("care", "snap", comfort, single, worst, extremeOf(worst));
   return {
     level: "good",
     months: [],
     facts: [
       {
         kind: "projected-ok",
-        side: "cold",
-        months: cyclicOrder(withLow.map((m) => m.month)),
-        valueC: round1(worst.figures.lowest!.value),
+        side: side.name,
+        months: cyclicOrder(judged.map((m) => m.month)),
+        valueC: round1(extremeOf(worst).value),
         lineC: comfort,
         years,
       },
@@ -101,88 +114,13 @@ export function cold(p: PlantProfile, months: ProjectedMonth[], years: number, t
   };
 }
 
+/** Cold side: a projected month whose lowest falls past the damage line, or whose nights typically sit under comfort. */
+export const cold = (p: PlantProfile, months: ProjectedMonth[], years: number, t: FitThresholds) =>
+  extremes(COLD, p, months, years, t);
+
 /** Hot side, as for the cold. */
-export function heat(p: PlantProfile, months: ProjectedMonth[], years: number, t: FitThresholds): Judged | null {
-  const { comfortDayC: comfort, damageDayC: damage } = linesOf(p);
-  const withHigh = months.filter((m) => m.figures.highest && m.figures.meanDailyHigh);
-  if (withHigh.length === 0) return null;
-  const worst = withHigh.reduce((a, b) => (b.figures.highest!.value > a.figures.highest!.value ? b : a));
-  const damaged = withHigh.filter((m) => m.figures.highest!.value > damage);
-  if (damaged.length > 0) {
-    const high = worst.figures.highest!;
-    return {
-      level: "poor",
-      months: damaged.map((m) => m.month),
-      facts: [
-        {
-          kind: "projected-heat",
-          line: "damage",
-          lineC: damage,
-          months: cyclicOrder(damaged.map((m) => m.month)),
-          worstMonth: worst.month,
-          highC: round1(high.value),
-          rangeC: range(high),
-          years,
-        },
-      ],
-    };
-  }
-  const season = withHigh.filter((m) => m.figures.meanDailyHigh!.value > comfort + t.sensorMarginC);
-  if (season.length > 0) {
-    const hottest = season.reduce((a, b) => (b.figures.meanDailyHigh!.value > a.figures.meanDailyHigh!.value ? b : a));
-    const typical = hottest.figures.meanDailyHigh!;
-    return {
-      level: typical.value > (comfort + damage) / 2 ? "poor" : "care",
-      months: season.map((m) => m.month),
-      facts: [
-        {
-          kind: "projected-heat",
-          line: "comfort",
-          lineC: comfort,
-          months: cyclicOrder(season.map((m) => m.month)),
-          worstMonth: hottest.month,
-          highC: round1(typical.value),
-          rangeC: range(typical),
-          years,
-        },
-      ],
-    };
-  }
-  const daysOver = withHigh.filter((m) => m.figures.highest!.value > comfort + t.sensorMarginC);
-  if (daysOver.length > 0) {
-    const high = worst.figures.highest!;
-    return {
-      level: "care",
-      months: daysOver.map((m) => m.month),
-      facts: [
-        {
-          kind: "projected-heat",
-          line: "snap",
-          lineC: comfort,
-          months: cyclicOrder(daysOver.map((m) => m.month)),
-          worstMonth: worst.month,
-          highC: round1(high.value),
-          rangeC: range(high),
-          years,
-        },
-      ],
-    };
-  }
-  return {
-    level: "good",
-    months: [],
-    facts: [
-      {
-        kind: "projected-ok",
-        side: "heat",
-        months: cyclicOrder(withHigh.map((m) => m.month)),
-        valueC: round1(worst.figures.highest!.value),
-        lineC: comfort,
-        years,
-      },
-    ],
-  };
-}
+export const heat = (p: PlantProfile, months: ProjectedMonth[], years: number, t: FitThresholds) =>
+  extremes(HEAT, p, months, years, t);
 
 /** Warm nights for cool growers: months whose typical night stays 2 °C or more above the group's maximum night. */
 export function warm(p: PlantProfile, months: ProjectedMonth[], years: number, t: FitThresholds): Judged | null {
