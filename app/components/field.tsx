@@ -15,12 +15,15 @@ export function TextField({
   label,
   hint,
   type = "text",
+  inlineError = true,
   ...rest
 }: {
   meta: Meta;
   label: string;
   hint?: React.ReactNode;
   type?: "text" | "email" | "password" | "number" | "datetime-local" | "date";
+  /** false where the form lists its fields' errors under a row of fields. */
+  inlineError?: boolean;
 } & Omit<React.InputHTMLAttributes<HTMLInputElement>, "type">) {
   return (
     <div>
@@ -37,7 +40,7 @@ export function TextField({
           {hint}
         </p>
       ) : null}
-      <FieldError meta={meta} />
+      {inlineError ? <FieldError meta={meta} /> : null}
     </div>
   );
 }
@@ -47,11 +50,14 @@ export function SelectField({
   label,
   hint,
   options,
+  inlineError = true,
 }: {
   meta: Meta;
   label: string;
   hint?: React.ReactNode;
   options: { value: string; label: string }[];
+  /** false where the form lists its fields' errors under a row of fields. */
+  inlineError?: boolean;
 }) {
   return (
     <div>
@@ -66,7 +72,7 @@ export function SelectField({
         ))}
       </select>
       {hint ? <p className="hint">{hint}</p> : null}
-      <FieldError meta={meta} />
+      {inlineError ? <FieldError meta={meta} /> : null}
     </div>
   );
 }

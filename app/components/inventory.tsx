@@ -1,8 +1,8 @@
 // The plants standing in a spot now: add, move to another spot, remove (owner and carer).
-import { getFormProps, getInputProps, getSelectProps, useForm, type SubmissionResult } from "@conform-to/react";
+import { getFormProps, useForm, type SubmissionResult } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
 import { Form } from "react-router";
-import { FieldError, FormErrors } from "~/components/field";
+import { FieldError, FormErrors, SelectField, TextField } from "~/components/field";
 import { addPlantSchema } from "~/forms/inventory";
 import { VerdictBadge } from "~/components/season";
 import { PlantIcon } from "~/components/icons";
@@ -130,35 +130,20 @@ export function Inventory({
             {...getFormProps(addForm)}
           >
             <input type="hidden" name="intent" value="plant-add" />
-            <div>
-              <label className="label" htmlFor={addFields.plantKey.id}>
-                Plant
-              </label>
-              <select className="field" {...getSelectProps(addFields.plantKey)}>
-                {plants.map((p) => (
-                  <option key={p.key} value={p.key}>
-                    {p.name}
-                  </option>
-                ))}
-              </select>
-            </div>
-            <div>
-              <label className="label" htmlFor={addFields.nickname.id}>
-                Its name (optional)
-              </label>
-              <input
-                className="field"
-                maxLength={60}
-                placeholder="e.g. the pink one from the fair"
-                {...getInputProps(addFields.nickname, { type: "text" })}
-              />
-            </div>
-            <div>
-              <label className="label" htmlFor={addFields.pots.id}>
-                Pots
-              </label>
-              <input min={1} max={100} className="field" {...getInputProps(addFields.pots, { type: "number" })} />
-            </div>
+            <SelectField
+              meta={addFields.plantKey}
+              label="Plant"
+              options={plants.map((p) => ({ value: p.key, label: p.name }))}
+              inlineError={false}
+            />
+            <TextField
+              meta={addFields.nickname}
+              label="Its name (optional)"
+              maxLength={60}
+              placeholder="e.g. the pink one from the fair"
+              inlineError={false}
+            />
+            <TextField meta={addFields.pots} label="Pots" type="number" min={1} max={100} inlineError={false} />
             <button className="btn" disabled={busy}>
               Add here
             </button>

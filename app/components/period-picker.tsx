@@ -1,16 +1,8 @@
 // Which twelve months a verdict judges, said on the page, and a picker for another period.
 import { Form } from "react-router";
+import { monthLabel } from "~/domain/season/period";
 
-export type PeriodView = { firstMonth: string; lastMonth: string; toToday: boolean };
-
-const monthFormat = new Intl.DateTimeFormat("en-GB", { month: "short", year: "numeric", timeZone: "UTC" });
-/** "2025-01" → "Jan 2025". */
-export const monthLabel = (key: string) =>
-  monthFormat.format(new Date(Date.UTC(Number(key.slice(0, 4)), Number(key.slice(5, 7)) - 1, 15)));
-
-/** "Jan 2025 – Dec 2025", or "Dec 2025 – today" for a period that runs to today. */
-export const periodLabel = (p: PeriodView) =>
-  `${monthLabel(p.firstMonth)} – ${p.toToday ? "today" : monthLabel(p.lastMonth)}`;
+export { periodLabel } from "~/domain/season/period";
 
 export function PeriodPicker({
   chosen,

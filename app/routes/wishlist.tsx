@@ -1,19 +1,14 @@
 import { useEffect, useRef } from "react";
-import { getFormProps, getInputProps, getSelectProps, useForm } from "@conform-to/react";
+import { getFormProps, getInputProps, useForm } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
 import { data, Form, Link, useNavigation } from "react-router";
 import { ALL_ROLES, requireSiteRole, WRITERS } from "~/.server/auth";
 import { readForm, refuseForm } from "~/.server/ids";
-import { ConfirmRemoval, removeWish, saveWish, siteInventory, sitePlants, siteWishlist } from "~/.server/plants";
-import { fitSummary, judgedPeriods, parsePeriod, pickableMonths, spotProfiles, windowOf } from "~/.server/profiles";
-import { periodLabel, PeriodPicker } from "~/components/period-picker";
-import { getSite } from "~/.server/sites";
-import { listSpots } from "~/.server/spots";
-import { VerdictBadge } from "~/components/season";
-import { rankSpotsForPlant, VERDICT_ORDER } from "~/domain/fit/verdict";
-import { planWishlist } from "~/domain/fit/wishlist";
-import { fitProjections } from "~/.server/projections";
-import { FieldError, FormErrors } from "~/components/field";
+import { ConfirmRemoval, removeWish, saveWish, sitePlants } from "~/.server/plants";
+import { wishlistView } from "~/.server/wishlist";
+import { PeriodPicker } from "~/components/period-picker";
+import { RoomInSpots, WishItem } from "~/components/wishlist";
+import { FieldError, FormErrors, SelectField, TextField } from "~/components/field";
 import { saveWishSchema, wishlistSchema } from "~/forms/wishlist";
 import type { Route } from "./+types/wishlist";
 
@@ -21,123 +16,12 @@ export const meta: Route.MetaFunction = () => [{ title: "Wishlist · Nichewise" 
 
 export async function loader({ request, params }: Route.LoaderArgs) {
   const { siteId, role, user } = await requireSiteRole(request, params.siteId, ALL_ROLES);
-  const [site, spots, plants, wishes, inventory] = await Promise.all([
-    getSite(siteId),
-    listSpots(siteId),
-    sitePlants(siteId),
-    siteWishlist(siteId),
-    siteInventory(siteId),
-  ]);
-  const byKey = new Map(plants.map((p) => [p.key, p]));
-  const wanted = wishes.filter((w) => byKey.has(w.plantKey));
-  const now = new Date();
-  const { choice, problem: periodProblem } = parsePeriod(
-    new URL(request.url).searchParams.get("period"),
-    now,
-    site.timeZone,
-  );
-  const periods = wanted.length
-    ? await judgedPeriods(
-        site,
-        spots.map((s) => s.id),
-        choice,
-        now,
-      )
-    : new Map();
-  const profiles = wanted.length
-    ? await spotProfiles(
-        site,
-        spots.map((s) => s.id),
-        now,
-        { plants, periods },
-      )
-    : new Map();
-  // Months not measured yet are judged from each spot's projection (issue 16); a past period stays as measured.
-  const projections = wanted.length
-    ? await fitProjections(
-        new Map(spots.filter((s) => periods.get(s.id)?.toToday).map((s) => [s.id, profiles.get(s.id)!] as const)),
-        { now },
-      )
-    : new Map();
-  const withSeason = spots.map((s) => ({
-    spot: s,
-    season: profiles.get(s.id)!,
-    window: windowOf(site, s),
-    projection: projections.get(s.id),
-  }));
-  const ranked = wanted.map((w) => ({
-    wish: w,
-    fits: rankSpotsForPlant(byKey.get(w.plantKey)!, withSeason).map((r) => ({
-      spotId: r.spot.spot.id,
-      verdict: r.fit.verdict,
-      likely: !!r.fit.confidence && r.fit.confidence !== "measured" && r.fit.verdict !== "not enough data yet",
-      reason: fitSummary(byKey.get(w.plantKey)!, r.fit, { unit: user.temperatureUnit }).reasons[0]?.message ?? null,
-    })),
-  }));
-  const reasonIn = (i: number, spotId: number | undefined) =>
-    ranked[i].fits.find((f) => f.spotId === spotId)?.reason ?? null;
-  const plan = planWishlist(
-    spots.map((s) => ({
-      id: s.id,
-      name: s.name,
-      capacity: s.capacity,
-      standingPots: inventory.filter((i) => i.spotId === s.id).reduce((n, i) => n + i.pots, 0),
-    })),
-    ranked.map((r) => ({ plantKey: r.wish.plantKey, mustHave: r.wish.mustHave, pots: r.wish.pots, fits: r.fits })),
-  );
-  const spotName = new Map(spots.map((s) => [s.id, s.name]));
-  const rows = ranked
-    .map((r, i) => {
-      const p = plan.wishes[i];
-      const bestFit = r.fits[0];
-      return {
-        plantKey: r.wish.plantKey,
-        name: byKey.get(r.wish.plantKey)!.name,
-        mustHave: r.wish.mustHave,
-        pots: r.wish.pots,
-        best: p.best
-          ? {
-              spot: spotName.get(p.best.spotId)!,
-              verdict: p.best.verdict,
-              likely: r.fits.find((f) => f.spotId === p.best!.spotId)?.likely ?? false,
-              reason: bestFit?.reason ?? null,
-            }
-          : null,
-        placed: p.placed
-          ? { spot: spotName.get(p.placed.spotId)!, verdict: p.placed.verdict, reason: reasonIn(i, p.placed.spotId) }
-          : null,
-        note: p.note,
-        everywhereStruggles: p.everywhereStruggles ?? false,
-      };
-    })
-    .sort(
-      (a, b) =>
-        VERDICT_ORDER.indexOf(a.best?.verdict ?? "struggles here") -
-          VERDICT_ORDER.indexOf(b.best?.verdict ?? "struggles here") || Number(b.mustHave) - Number(a.mustHave),
-    );
-  return {
-    siteId,
-    canEdit: role !== "mentor",
-    rows,
-    spots: plan.spots.filter((s) => s.capacity > 0 || s.mustHavePots + s.otherPots > 0),
-    choices: plants.filter((p) => !wishes.some((w) => w.plantKey === p.key)).map((p) => ({ key: p.key, name: p.name })),
-    period: {
-      chosen: choice.kind === "latest" ? "latest" : choice.month,
-      months: pickableMonths(now, site.timeZone),
-      problem: periodProblem,
-      // A chosen period is the same for every spot; by default each spot has its own.
-      judged:
-        choice.kind === "ending"
-          ? periodLabel(
-              periods.values().next().value ?? { firstMonth: choice.month, lastMonth: choice.month, toToday: false },
-            )
-          : null,
-      bySpot:
-        choice.kind === "latest"
-          ? spots.filter((s) => periods.has(s.id)).map((s) => `${s.name}: ${periodLabel(periods.get(s.id))}`)
-          : [],
-    },
-  };
+  const view = await wishlistView(siteId, {
+    unit: user.temperatureUnit,
+    period: new URL(request.url).searchParams.get("period"),
+    now: new Date(),
+  });
+  return { siteId, canEdit: role !== "mentor", ...view };
 }
 
 export async function action({ request, params }: Route.ActionArgs) {
@@ -191,7 +75,9 @@ export default function Wishlist({ loaderData, actionData }: Route.ComponentProp
   // A refused change of a listed plant shows at its row; anything else at the add form.
   const failed = actionData && "result" in actionData ? actionData : null;
   const rowError = (plantKey: string) =>
-    failed && failed.plantKey === plantKey ? Object.values(failed.result.error ?? {}).flat()[0] : undefined;
+    failed && failed.plantKey === plantKey
+      ? (Object.values(failed.result.error ?? {}).flat()[0] ?? undefined)
+      : undefined;
   const [wishForm, addFields] = useForm({
     id: "wish-add",
     lastResult: failed && !rows.some((r) => r.plantKey === failed.plantKey) ? failed.result : undefined,
@@ -296,141 +182,20 @@ export default function Wishlist({ loaderData, actionData }: Route.ComponentProp
         ) : (
           <ul className="divide-y divide-line" data-testid="wishlist">
             {rows.map((r) => (
-              <li key={r.plantKey} className="space-y-1.5 py-3">
-                <div className="flex flex-wrap items-center gap-x-3 gap-y-1">
-                  <Link to={`/sites/${siteId}/plants/${r.plantKey}`} className="link font-semibold">
-                    {r.name}
-                  </Link>
-                  {r.mustHave ? <span className="tag">must-have</span> : null}
-                  <span className="text-sm text-muted">
-                    {r.pots} {r.pots === 1 ? "pot" : "pots"}
-                  </span>
-                  {r.best ? (
-                    <span className="ml-auto">
-                      <VerdictBadge verdict={r.best.verdict} likely={r.best.likely} />
-                    </span>
-                  ) : null}
-                </div>
-                {r.everywhereStruggles && r.best ? (
-                  <p className="text-sm" data-testid="wish-struggles">
-                    {r.note}
-                    {r.best.reason ? (
-                      <span className="text-muted">
-                        {" "}
-                        Closest is {r.best.spot}: {r.best.reason}
-                      </span>
-                    ) : null}
-                  </p>
-                ) : r.best ? (
-                  <>
-                    <p className="text-sm">
-                      Best spot: <span className="font-medium">{r.best.spot}</span>
-                      {r.best.reason ? <span className="text-muted"> — {r.best.reason}</span> : null}
-                    </p>
-                    {r.placed && r.placed.spot !== r.best.spot ? (
-                      <p className="text-sm" data-testid="wish-planned">
-                        Planned for <span className="font-medium">{r.placed.spot}</span> ({r.placed.verdict})
-                        {r.placed.reason ? <span className="text-muted"> — {r.placed.reason}</span> : null}
-                      </p>
-                    ) : null}
-                    {r.note ? <p className="text-sm text-care">{r.note}</p> : null}
-                  </>
-                ) : r.note ? (
-                  <p className="text-sm text-care">{r.note}</p>
-                ) : null}
-                {canEdit ? (
-                  <div className="flex flex-wrap items-center gap-2">
-                    <Form method="post" className="flex flex-wrap items-center gap-2">
-                      <input type="hidden" name="intent" value="save" />
-                      <input type="hidden" name="plantKey" value={r.plantKey} />
-                      <label className="inline-flex items-center gap-1.5 text-sm">
-                        <input type="checkbox" name="mustHave" defaultChecked={r.mustHave} /> Must-have
-                      </label>
-                      <label className="sr-only" htmlFor={`pots-${r.plantKey}`}>
-                        Pots of {r.name}
-                      </label>
-                      <input
-                        id={`pots-${r.plantKey}`}
-                        name="pots"
-                        type="number"
-                        min={1}
-                        max={100}
-                        defaultValue={r.pots}
-                        className="field w-20 py-1 text-sm"
-                      />
-                      <button className="btn-quiet py-1 text-sm" disabled={busy}>
-                        Save
-                      </button>
-                      {rowError(r.plantKey) ? (
-                        <p className="error w-full" role="alert">
-                          {rowError(r.plantKey)}
-                        </p>
-                      ) : null}
-                    </Form>
-                    <Form method="post">
-                      <input type="hidden" name="intent" value="remove" />
-                      <input type="hidden" name="plantKey" value={r.plantKey} />
-                      <button
-                        className="btn-quiet py-1 text-sm"
-                        disabled={busy}
-                        aria-label={`Remove ${r.name} from the wishlist`}
-                      >
-                        Remove
-                      </button>
-                    </Form>
-                  </div>
-                ) : null}
-              </li>
+              <WishItem
+                key={r.plantKey}
+                row={r}
+                siteId={siteId}
+                canEdit={canEdit}
+                busy={busy}
+                error={rowError(r.plantKey)}
+              />
             ))}
           </ul>
         )}
       </section>
 
-      {spots.length > 0 ? (
-        <section className="card">
-          <h3 className="h2 mb-3">Room in each spot</h3>
-          {/* Under `sm` each spot is a card of label–value pairs (.stack-table), so "Left" is on a phone's screen. */}
-          <div
-            className="sm:-mx-5 sm:overflow-x-auto sm:px-5"
-            tabIndex={0}
-            role="region"
-            aria-label="Room in each spot"
-          >
-            <table className="table stack-table" data-testid="wishlist-room">
-              <thead>
-                <tr>
-                  <th>Spot</th>
-                  <th>Room for</th>
-                  <th>Standing now</th>
-                  <th>Must-haves planned</th>
-                  <th>Others planned</th>
-                  <th>Left</th>
-                </tr>
-              </thead>
-              <tbody>
-                {spots.map((s) => (
-                  <tr key={s.id}>
-                    <th scope="row" className="font-medium text-ink">
-                      {s.name}
-                    </th>
-                    <td data-label="Room for">{s.capacity || "not set"}</td>
-                    <td data-label="Standing now">{s.standingPots}</td>
-                    <td data-label="Must-haves planned">{s.mustHavePots}</td>
-                    <td data-label="Others planned">{s.otherPots}</td>
-                    <td
-                      data-label="Left"
-                      data-testid="room-left"
-                      className={s.free != null && s.free <= 0 ? "font-semibold text-care" : "font-semibold"}
-                    >
-                      {s.free == null ? "–" : s.free <= 0 ? `none (${s.free})` : s.free}
-                    </td>
-                  </tr>
-                ))}
-              </tbody>
-            </table>
-          </div>
-        </section>
-      ) : null}
+      {spots.length > 0 ? <RoomInSpots spots={spots} /> : null}
 
       {canEdit ? (
         <Form
@@ -441,24 +206,13 @@ export default function Wishlist({ loaderData, actionData }: Route.ComponentProp
           {...getFormProps(wishForm)}
         >
           <input type="hidden" name="intent" value="save" />
-          <div>
-            <label className="label" htmlFor={addFields.plantKey.id}>
-              Plant
-            </label>
-            <select className="field" {...getSelectProps(addFields.plantKey)}>
-              {choices.map((p) => (
-                <option key={p.key} value={p.key}>
-                  {p.name}
-                </option>
-              ))}
-            </select>
-          </div>
-          <div>
-            <label className="label" htmlFor={addFields.pots.id}>
-              Pots
-            </label>
-            <input min={1} max={100} className="field" {...getInputProps(addFields.pots, { type: "number" })} />
-          </div>
+          <SelectField
+            meta={addFields.plantKey}
+            label="Plant"
+            options={choices.map((p) => ({ value: p.key, label: p.name }))}
+            inlineError={false}
+          />
+          <TextField meta={addFields.pots} label="Pots" type="number" min={1} max={100} inlineError={false} />
           <label className="inline-flex items-center gap-2 pb-2 text-sm">
             <input {...getInputProps(addFields.mustHave, { type: "checkbox" })} /> Must-have
           </label>

@@ -38,6 +38,19 @@ export type SpotRoom = WishSpot & {
   filledByMustHaves: boolean;
 };
 
+/** One wished plant as the wishlist shows it: its best spot, where the plan puts it, and why. */
+export type WishRow = {
+  plantKey: string;
+  name: string;
+  mustHave: boolean;
+  pots: number;
+  /** "likely" when the verdict leans on projected months rather than measured ones. */
+  best: { spot: string; verdict: Verdict; likely: boolean; reason: string | null } | null;
+  placed: { spot: string; verdict: Verdict; reason: string | null } | null;
+  note: string | null;
+  everywhereStruggles: boolean;
+};
+
 /**
  * A plant can stand in a spot when the verdict is not "struggles here" nor "good for part of the
  * year" (a summer bench is no home for the winter). "Not enough data yet" counts, with its caveat shown.
