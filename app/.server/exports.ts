@@ -5,6 +5,7 @@ import { calibratedSql } from "~/.server/ingest/calibrated";
 import { pool } from "~/.server/db";
 import { zonedToUtc } from "~/lib/time";
 import { spotProfiles } from "~/.server/profiles";
+import { periodFigures } from "~/domain/season/slim";
 import type { Site, Spot } from "~/db/schema.server";
 
 export const EXPORT_BATCH = 5000;
@@ -253,28 +254,8 @@ export async function exportProfile(opts: { spot: Spot; site: Site; format: Expo
       timeZone: opts.site.timeZone,
       hemisphere: profile.hemisphere,
     },
-    months: profile.months.map(({ key, temperature, humidity, below, condensationHours, light, coverage }) => ({
-      key,
-      temperature,
-      humidity,
-      below,
-      condensationHours,
-      light,
-      coverage,
-    })),
-    seasons: profile.seasons.map(
-      ({ key, label, season, temperature, humidity, below, condensationHours, light, coverage }) => ({
-        key,
-        label,
-        season,
-        temperature,
-        humidity,
-        below,
-        condensationHours,
-        light,
-        coverage,
-      }),
-    ),
+    months: profile.months.map((m) => ({ key: m.key, ...periodFigures(m) })),
+    seasons: profile.seasons.map((s) => ({ key: s.key, label: s.label, season: s.season, ...periodFigures(s) })),
   });
   return new ReadableStream<Uint8Array>({
     start(c) {

@@ -1,6 +1,16 @@
 // What a page gets of a season profile: the figures its tables show, without the days and nights
 // behind them. Shared by the loaders that send it and the components that draw it.
-import type { SeasonProfile } from "~/domain/season/types";
+import type { PeriodStats, SeasonProfile } from "~/domain/season/types";
+
+/** The figures of one month or season that tables and exports show (PeriodStats without the lux ceiling's note). */
+export const periodFigures = ({ temperature, humidity, below, condensationHours, light, coverage }: PeriodStats) => ({
+  temperature,
+  humidity,
+  below,
+  condensationHours,
+  light,
+  coverage,
+});
 
 /** The figures a page needs from a season profile, without the per-day detail. */
 export function slimProfile(season: SeasonProfile) {
@@ -8,51 +18,25 @@ export function slimProfile(season: SeasonProfile) {
     hemisphere: season.hemisphere,
     luxPerPpfd: season.luxPerPpfd,
     luxClipped: season.luxClipped,
-    year: season.year.map(
-      ({ key, month, name, temperature, humidity, below, condensationHours, light, luxClipped, coverage }) => ({
-        key,
-        month,
-        name,
-        temperature,
-        humidity,
-        below,
-        condensationHours,
-        light,
-        luxClipped,
-        coverage,
-      }),
-    ),
-    seasons: season.seasons.map(
-      ({ key, label, season: name, temperature, humidity, below, condensationHours, light, luxClipped, coverage }) => ({
-        key,
-        label,
-        season: name,
-        temperature,
-        humidity,
-        below,
-        condensationHours,
-        light,
-        luxClipped,
-        coverage,
-      }),
-    ),
+    year: season.year.map((m) => ({
+      key: m.key,
+      month: m.month,
+      name: m.name,
+      ...periodFigures(m),
+      luxClipped: m.luxClipped,
+    })),
+    seasons: season.seasons.map((s) => ({
+      key: s.key,
+      label: s.label,
+      season: s.season,
+      ...periodFigures(s),
+      luxClipped: s.luxClipped,
+    })),
   };
 }
 export type SlimProfile = ReturnType<typeof slimProfile>;
 
 /** Calendar months of the period (for a period shorter or longer than a year), same figures as the year. */
 export function slimMonths(season: SeasonProfile) {
-  return season.months.map(
-    ({ key, year, month, temperature, humidity, below, condensationHours, light, coverage }) => ({
-      key,
-      year,
-      month,
-      temperature,
-      humidity,
-      below,
-      condensationHours,
-      light,
-      coverage,
-    }),
-  );
+  return season.months.map((m) => ({ key: m.key, year: m.year, month: m.month, ...periodFigures(m) }));
 }
