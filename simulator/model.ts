@@ -5,6 +5,7 @@
 // start of a run, so a backfill and a live run that overlap produce the same readings at the
 // same instants — exactly what ingest deduplication must cope with.
 import * as SunCalc from "suncalc";
+import { FACING_AZIMUTH } from "~/domain/climate/sun";
 import { zoneClock } from "~/domain/season/local-time";
 import { mulberry32 } from "~/lib/random";
 
@@ -489,17 +490,6 @@ export function scenarioAt(latitude: number, longitude: number): Scenario {
 const EXTRATERRESTRIAL_LUX = 128_000;
 const WINDOW_DIRECT_SHARE = 0.35;
 const WINDOW_DIFFUSE_SHARE = 0.15;
-
-const FACING_AZIMUTH: Record<Exclude<Facing, "none">, number> = {
-  N: 0,
-  NE: 45,
-  E: 90,
-  SE: 135,
-  S: 180,
-  SW: 225,
-  W: 270,
-  NW: 315,
-};
 
 type Sky = { directNormal: number; diffuseHorizontal: number };
 
