@@ -132,6 +132,55 @@ const dayLabel = (epochS: number, timeZone: string) =>
     new Date(epochS * 1000),
   );
 
+type Week = ReturnType<typeof weekly>[number];
+
+/** A chart's figures as a folded table, a row per week, for readers who cannot use the chart. */
+function WeekByWeek({
+  title,
+  label,
+  testId,
+  columns,
+  weeks,
+  timeZone,
+  cells,
+}: {
+  title: string;
+  label: string;
+  testId: string;
+  columns: string[];
+  weeks: Week[];
+  timeZone: string;
+  cells: (w: Week) => React.ReactNode[];
+}) {
+  return (
+    <details className="text-sm">
+      <summary className="cursor-pointer font-medium">{title}</summary>
+      <div className="mt-2 max-h-96 overflow-auto" tabIndex={0} role="region" aria-label={label}>
+        <table className="table" data-testid={testId}>
+          <thead>
+            <tr>
+              <th>Week from</th>
+              {columns.map((c) => (
+                <th key={c}>{c}</th>
+              ))}
+            </tr>
+          </thead>
+          <tbody>
+            {weeks.map((w) => (
+              <tr key={w.from}>
+                <td>{dayLabel(w.from, timeZone)}</td>
+                {cells(w).map((c, i) => (
+                  <td key={i}>{c}</td>
+                ))}
+              </tr>
+            ))}
+          </tbody>
+        </table>
+      </div>
+    </details>
+  );
+}
+
 export function YearCharts({ url, unit, timeZone }: { url: string; unit: TempUnit; timeZone: string }) {
   const series = useSeries(url);
   const bandSpec = useMemo(() => yearBandSpec(unit), [unit]);
@@ -149,29 +198,15 @@ export function YearCharts({ url, unit, timeZone }: { url: string; unit: TempUni
           The shaded band runs from each day's lowest to its highest reading (local days).
         </p>
         {series.error ? <p className="error">Could not load the year: {series.error}</p> : null}
-        <details className="text-sm">
-          <summary className="cursor-pointer font-medium">The year as a table (week by week)</summary>
-          <div className="mt-2 max-h-96 overflow-auto" tabIndex={0} role="region" aria-label="The year, week by week">
-            <table className="table" data-testid="year-table">
-              <thead>
-                <tr>
-                  <th>Week from</th>
-                  <th>Lowest</th>
-                  <th>Highest</th>
-                </tr>
-              </thead>
-              <tbody>
-                {weeks.map((w) => (
-                  <tr key={w.from}>
-                    <td>{dayLabel(w.from, timeZone)}</td>
-                    <td>{formatTemp(w.low, unit)}</td>
-                    <td>{formatTemp(w.high, unit)}</td>
-                  </tr>
-                ))}
-              </tbody>
-            </table>
-          </div>
-        </details>
+        <WeekByWeek
+          title="The year as a table (week by week)"
+          label="The year, week by week"
+          testId="year-table"
+          columns={["Lowest", "Highest"]}
+          weeks={weeks}
+          timeZone={timeZone}
+          cells={(w) => [formatTemp(w.low, unit), formatTemp(w.high, unit)]}
+        />
       </section>
       <section className="card space-y-3">
         <Chart spec={mSpec} data={series.data} timeZone={timeZone} testId="chart-margin" />
@@ -182,34 +217,15 @@ export function YearCharts({ url, unit, timeZone }: { url: string; unit: TempUni
             ? "that never happened here in the last year."
             : `that happened on ${wetDays} ${wetDays === 1 ? "day" : "days"} here in the last year.`}
         </p>
-        <details className="text-sm">
-          <summary className="cursor-pointer font-medium">The dew-point margin as a table (week by week)</summary>
-          <div
-            className="mt-2 max-h-96 overflow-auto"
-            tabIndex={0}
-            role="region"
-            aria-label="Dew-point margin, week by week"
-          >
-            <table className="table" data-testid="margin-table">
-              <thead>
-                <tr>
-                  <th>Week from</th>
-                  <th>Smallest margin</th>
-                  <th>Days under {formatDelta(WET_MARGIN_C, unit, 0)}</th>
-                </tr>
-              </thead>
-              <tbody>
-                {weeks.map((w) => (
-                  <tr key={w.from}>
-                    <td>{dayLabel(w.from, timeZone)}</td>
-                    <td>{formatDelta(w.margin, unit)}</td>
-                    <td>{w.wetDays}</td>
-                  </tr>
-                ))}
-              </tbody>
-            </table>
-          </div>
-        </details>
+        <WeekByWeek
+          title="The dew-point margin as a table (week by week)"
+          label="Dew-point margin, week by week"
+          testId="margin-table"
+          columns={["Smallest margin", `Days under ${formatDelta(WET_MARGIN_C, unit, 0)}`]}
+          weeks={weeks}
+          timeZone={timeZone}
+          cells={(w) => [formatDelta(w.margin, unit), w.wetDays]}
+        />
       </section>
     </>
   );
