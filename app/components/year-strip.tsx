@@ -1,19 +1,16 @@
 // The year strip: twelve months side by side, each a bar from the month's lowest to highest with the
 // 5–95 % band and the mean daily low and high marked, and a plant's comfortable band laid over it.
 import { coverageLabel, stripTicks } from "~/components/chart-scale";
+import type { PeriodStats } from "~/domain/season/types";
 import { toUnit, type TempUnit } from "~/domain/units";
 
 export type StripMonth = {
   key: string;
   name: string;
-  temperature: {
-    lowest: number | null;
-    highest: number | null;
-    p05: number | null;
-    p95: number | null;
-    meanDailyLow: number | null;
-    meanDailyHigh: number | null;
-  };
+  temperature: Pick<
+    PeriodStats["temperature"],
+    "lowest" | "highest" | "p05" | "p95" | "meanDailyLow" | "meanDailyHigh"
+  >;
   coverage: { enough: boolean; daysObserved: number; hoursObserved?: number };
 };
 
