@@ -2,8 +2,6 @@
 import { Form } from "react-router";
 import { monthLabel } from "~/domain/season/period";
 
-export { periodLabel } from "~/domain/season/period";
-
 export function PeriodPicker({
   chosen,
   months,

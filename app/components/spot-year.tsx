@@ -1,6 +1,7 @@
 // The spot page's year: the year strip of the judged period with a plant's comfortable range laid
 // over it, the picker for another period, and the choice of that plant.
-import { periodLabel, PeriodPicker, type PeriodView } from "~/components/period-picker";
+import { PeriodPicker } from "~/components/period-picker";
+import { periodLabel, type PeriodView } from "~/domain/season/period";
 import { YearStrip, type StripMonth } from "~/components/year-strip";
 import type { TempUnit } from "~/domain/units";
 

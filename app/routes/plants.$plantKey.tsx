@@ -13,7 +13,8 @@ import {
   siteWishlist,
 } from "~/.server/plants";
 import { fitSummary, judgedPeriods, parsePeriod, pickableMonths, spotProfiles, windowOf } from "~/.server/profiles";
-import { periodLabel, PeriodPicker } from "~/components/period-picker";
+import { PeriodPicker } from "~/components/period-picker";
+import { periodLabel } from "~/domain/season/period";
 import { getSite } from "~/.server/sites";
 import { listSpots } from "~/.server/spots";
 import { VerdictBadge } from "~/components/season";

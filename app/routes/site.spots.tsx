@@ -6,7 +6,7 @@ import { useNow } from "~/components/use-now";
 import { SpotCard, WhereMatrix } from "~/components/spot-card";
 import { VerdictKey } from "~/components/verdict-mark";
 import { SpotsAndSeasons } from "~/components/illustration";
-import { periodLabel } from "~/components/period-picker";
+import { periodLabel } from "~/domain/season/period";
 import type { Route } from "./+types/site.spots";
 
 export async function loader({ request, params }: Route.LoaderArgs) {

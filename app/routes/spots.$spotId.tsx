@@ -12,7 +12,7 @@ import { SpotKindIcon, WatchIcon } from "~/components/icons";
 import { NotesPanel } from "~/components/notes-panel";
 import { Inventory } from "~/components/inventory";
 import { DayOne } from "~/components/day-one";
-import { periodLabel } from "~/components/period-picker";
+import { periodLabel } from "~/domain/season/period";
 import { LiveTile } from "~/components/spot-live";
 import { SpotYear } from "~/components/spot-year";
 import { SpotFits } from "~/components/spot-fits";
