@@ -91,7 +91,6 @@ export async function rearmWarning(id: number, q: Tx = db()) {
     .where(and(eq(watches.id, id), isNull(watches.pendingSince)));
 }
 
-
 /**
  * Unpaused silent-sensor watches with the instant their spot went quiet: the latest of a placed
  * sensor's last reading, the start of its placement and the moment that placement was made (a

@@ -30,7 +30,7 @@ export type TakenFrom = {
 /** How long a failed write waits before its delivery goes back to the queue (the database may be restarting). */
 const RETRY_MS = 1000;
 
-export const topicOf = (msg: ConsumeMessage) => routingKeyToTopic(msg.fields.routingKey);
+const topicOf = (msg: ConsumeMessage) => routingKeyToTopic(msg.fields.routingKey);
 
 /** Hands the delivery back to the queue. */
 export function handBack(ch: Channel, msg: ConsumeMessage) {

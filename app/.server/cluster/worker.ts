@@ -19,7 +19,13 @@ import amqp, { type ChannelModel, type ConsumeMessage } from "amqplib";
 import type pg from "pg";
 import type { ReadingWriter } from "~/.server/ingest/writer";
 import { deliveryHandler, handBack, type DeliveryStats, type TakenFrom } from "~/.server/cluster/deliveries";
-import { connectLockSession, countWorkers, lockSession, tryShardLock, unlockShard } from "~/.server/cluster/shard-locks";
+import {
+  connectLockSession,
+  countWorkers,
+  lockSession,
+  tryShardLock,
+  unlockShard,
+} from "~/.server/cluster/shard-locks";
 import { declareReadingsShards, shardQueue } from "~/.server/cluster/shards";
 
 export type WorkerStats = DeliveryStats & { reconnects: number; handovers: number };
