@@ -12,32 +12,23 @@
 // locks) to the engine and PostgreSQL, and the next consumer in line takes over; a reading stored
 // twice that way is one row (the writer deduplicates on sensor and time, as for an MQTT resend).
 //
-// The checks are the embedded broker's (app/.server/ingest/broker.ts): a bad payload, an unknown
-// sensor or a conflicting value is acknowledged and recorded with its reason; a failed write is
-// handed back to the queue after a pause, so a PostgreSQL outage delays readings and loses none.
-import amqp, { type Channel, type ChannelModel, type ConsumeMessage } from "amqplib";
-import pg from "pg";
-import { CHANNEL_TOPICS, decodeMessage, parseTopic, validateReading } from "~/domain/ingest/payload";
-import { CONFLICT_REASON } from "~/.server/ingest/broker";
-import { recordRejectionsSoon } from "~/.server/ingest/rejections";
-import {
-  cachedSensorInfo,
-  lastTemperature,
-  noteTemperature,
-  sensorInfo,
-  type SensorInfo,
-} from "~/.server/ingest/sensor-cache";
+// Here: the connection to the engine, the shards' consumers, their locks and handovers. How the
+// shards are declared: shards.ts; the lock session: shard-locks.ts; what becomes of one delivery
+// (the broker's checks, the write, the ack after its commit): deliveries.ts.
+import amqp, { type ChannelModel, type ConsumeMessage } from "amqplib";
+import type pg from "pg";
 import type { ReadingWriter } from "~/.server/ingest/writer";
-import { MQTT_EXCHANGE } from "~/.server/cluster/auth";
-import { routingKeyToTopic } from "~/.server/cluster/config";
+import { deliveryHandler, handBack, type DeliveryStats, type TakenFrom } from "~/.server/cluster/deliveries";
+import {
+  connectLockSession,
+  countWorkers,
+  lockSession,
+  tryShardLock,
+  unlockShard,
+} from "~/.server/cluster/shard-locks";
+import { declareReadingsShards, shardQueue } from "~/.server/cluster/shards";
 
-export type WorkerStats = {
-  accepted: number;
-  rejected: number;
-  writeFailures: number;
-  reconnects: number;
-  handovers: number;
-};
+export type WorkerStats = DeliveryStats & { reconnects: number; handovers: number };
 export type RunningWorker = {
   stats: WorkerStats;
   connectedTo: () => string | null;
@@ -46,61 +37,13 @@ export type RunningWorker = {
   close: () => Promise<void>;
 };
 
-/** How long a failed write waits before its delivery goes back to the queue (the database may be restarting). */
-const RETRY_MS = 1000;
 const RECONNECT_MS = 500;
 const LOCK_RETRY_MS = 100;
 const REBALANCE_MS = 2000;
-/** The shard locks' first key ("NWIS"); the second is the shard's number. */
-export const SHARD_LOCK_CLASS = 0x4e574953;
-/** Points per shard on the hash ring: with a handful of points the shards' shares of the sensors are very uneven. */
-const RING_WEIGHT = "20";
-const LOCK_SESSION_NAME = "nichewise-ingest-shards";
 
-/** One query at a time on the lock session (pg queues them, but asks callers not to rely on it). */
-const sessionQueues = new WeakMap<pg.Client, Promise<unknown>>();
-function ask<T extends pg.QueryResultRow>(session: pg.Client | null, text: string, params: unknown[]): Promise<T[]> {
-  if (!session) return Promise.reject(new Error("no lock session"));
-  const run = (sessionQueues.get(session) ?? Promise.resolve())
-    .catch(() => {})
-    .then(() => session.query<T>(text, params));
-  sessionQueues.set(session, run);
-  return run.then((r) => r.rows);
-}
-
-export const shardQueue = (queue: string, k: number) => `${queue}.${k}`;
-export const hashExchange = (queue: string) => `${queue}.by-sensor`;
-
-/**
- * Declares the shards (quorum queues: replicated on every node, a majority confirms each message;
- * single active consumer each) and the routes to them. They must exist before sensors publish: the
- * MQTT plugin acknowledges a message that no queue takes.
- *
- * Competing consumers on one queue would commit a sensor's readings out of order (each holds a
- * prefetch of deliveries) and could write two channel topics of one sensor and instant at once,
- * which the writer's merging statement assumes never happens (app/.server/ingest/writer.ts). So a
- * sensor's JSON readings all hash to one shard (the routing key is `nichewise.sensors.<id>.reading`)
- * and its channel topics all go to shard 0.
- */
-export async function declareReadingsShards(ch: Channel, queue: string, shards: number) {
-  const exchange = hashExchange(queue);
-  await ch.assertExchange(exchange, "x-consistent-hash", { durable: true });
-  await ch.bindExchange(exchange, MQTT_EXCHANGE, "nichewise.sensors.*.reading");
-  for (let k = 0; k < shards; k++) {
-    const q = shardQueue(queue, k);
-    await ch.assertQueue(q, {
-      durable: true,
-      arguments: { "x-queue-type": "quorum", "x-single-active-consumer": true },
-    });
-    await ch.bindQueue(q, exchange, RING_WEIGHT);
-  }
-  for (const channel of CHANNEL_TOPICS)
-    await ch.bindQueue(shardQueue(queue, 0), MQTT_EXCHANGE, `nichewise.sensors.*.${channel}`);
-}
-
-type Shard = {
+/** A shard's consumer on this worker's connection. */
+type Shard = TakenFrom & {
   k: number;
-  ch: Channel;
   tag: string | null;
   /** Has had a delivery since it last registered: the engine made this worker the shard's active consumer. */
   active: boolean;
@@ -109,9 +52,6 @@ type Shard = {
   locking: boolean;
   /** Deliveries waiting for the lock, in order. */
   waiting: ConsumeMessage[];
-  /** Deliveries taken and not yet acknowledged or handed back. */
-  outstanding: number;
-  drained: (() => void)[];
 };
 
 export async function startIngestWorker(opts: {
@@ -138,44 +78,10 @@ export async function startIngestWorker(opts: {
   let rebalancer: NodeJS.Timeout | null = null;
   let handingOver = false;
 
-  const topicOf = (msg: ConsumeMessage) => routingKeyToTopic(msg.fields.routingKey);
   const activeList = () => shards.filter((s) => s.active).map((s) => s.k);
   const noteActive = () => log(`ingest worker: active on shards [${activeList().join(",")}] of ${opts.shards}`);
 
-  function settled(s: Shard) {
-    s.outstanding--;
-    if (s.outstanding === 0) for (const f of s.drained.splice(0)) f();
-  }
-
-  function reject(s: Shard, msg: ConsumeMessage, sensorId: number | null, reason: string) {
-    stats.rejected++;
-    recordRejectionsSoon([
-      { sensorId, source: "mqtt", topic: topicOf(msg), reason, payload: msg.content.subarray(0, 500).toString("utf8") },
-    ]);
-    ack(s, msg);
-  }
-
-  // A channel closed meanwhile (its node died) has handed the delivery back already.
-  const ack = (s: Shard, msg: ConsumeMessage) => {
-    try {
-      s.ch.ack(msg);
-    } catch {
-      // closed: the engine has it back
-    }
-    settled(s);
-  };
-
-  function failed(s: Shard, msg: ConsumeMessage) {
-    stats.writeFailures++;
-    setTimeout(() => {
-      try {
-        s.ch.nack(msg, false, true);
-      } catch {
-        // closed: the engine has it back
-      }
-      settled(s);
-    }, RETRY_MS).unref();
-  }
+  const handle = deliveryHandler(opts.writer, stats);
 
   function deliver(s: Shard, msg: ConsumeMessage | null) {
     if (!msg) return; // the queue was deleted; the channel closes and we reconnect
@@ -197,10 +103,7 @@ export async function startIngestWorker(opts: {
     const session = locks;
     try {
       while (!closing && session === locks && session) {
-        const got = (
-          await ask<{ ok: boolean }>(session, "SELECT pg_try_advisory_lock($1, $2) AS ok", [SHARD_LOCK_CLASS, s.k])
-        )[0].ok;
-        if (got) {
+        if (await tryShardLock(session, s.k)) {
           s.locked = true;
           for (const msg of s.waiting.splice(0)) handle(s, msg);
           return;
@@ -213,54 +116,6 @@ export async function startIngestWorker(opts: {
     } finally {
       s.locking = false;
     }
-  }
-
-  function handle(s: Shard, msg: ConsumeMessage) {
-    try {
-      const match = parseTopic(topicOf(msg));
-      // The engine let only the sensor itself publish here (see auth.ts); anything else is not a reading.
-      if (!match) return reject(s, msg, null, "topic not allowed for this sensor");
-      const id = match.sensorId;
-      const decoded = decodeMessage(match.channel, msg.content);
-      if (!decoded.ok) return reject(s, msg, id, decoded.reason);
-      const partial = match.channel !== "reading";
-      const info = cachedSensorInfo(id);
-      if (info !== undefined) return write(s, msg, id, info, decoded.payload, partial);
-      sensorInfo(id).then(
-        (fetched) => write(s, msg, id, fetched, decoded.payload, partial),
-        () => failed(s, msg),
-      );
-    } catch (err) {
-      console.error("[ingest-worker]", err);
-      failed(s, msg);
-    }
-  }
-
-  function write(
-    s: Shard,
-    msg: ConsumeMessage,
-    sensorId: number,
-    info: SensorInfo | null,
-    payload: unknown,
-    partial: boolean,
-  ) {
-    if (!info) return reject(s, msg, sensorId, "unknown sensor (deleted?)");
-    const parsed = validateReading(sensorId, payload as never, {
-      now: new Date(),
-      kind: info.kind,
-      previous: lastTemperature(sensorId),
-    });
-    if (!parsed.ok) return reject(s, msg, sensorId, parsed.reason);
-    const reading = parsed.reading;
-    opts.writer.store([partial ? { ...reading, partial } : reading]).then(
-      (r) => {
-        if (r.conflicts > 0) return reject(s, msg, sensorId, CONFLICT_REASON);
-        stats.accepted++;
-        if (reading.temperature !== null) noteTemperature(sensorId, reading.measuredAt.getTime(), reading.temperature);
-        ack(s, msg); // after COMMIT
-      },
-      () => failed(s, msg),
-    );
   }
 
   async function consume(s: Shard) {
@@ -278,17 +133,13 @@ export async function startIngestWorker(opts: {
     s.tag = null;
     s.active = false;
     for (const msg of s.waiting.splice(0)) {
-      try {
-        s.ch.nack(msg, false, true);
-      } catch {
-        // closed: the engine has it back
-      }
+      handBack(s.ch, msg);
       s.outstanding--;
     }
     if (s.outstanding > 0) await new Promise<void>((r) => s.drained.push(r));
     if (s.locked) {
       s.locked = false;
-      await ask(locks, "SELECT pg_advisory_unlock($1, $2)", [SHARD_LOCK_CLASS, s.k]);
+      await unlockShard(locks, s.k);
     }
     stats.handovers++;
     log(`ingest worker: handed ${shardQueue(opts.queue, s.k)} over`);
@@ -302,16 +153,7 @@ export async function startIngestWorker(opts: {
     handingOver = true;
     try {
       // The queues count only their active consumers, so the workers are counted by their lock sessions.
-      const workers = Math.max(
-        1,
-        (
-          await ask<{ n: number }>(
-            locks,
-            "SELECT count(*)::int AS n FROM pg_stat_activity WHERE application_name = $1 AND datname = current_database()",
-            [LOCK_SESSION_NAME],
-          )
-        )[0].n,
-      );
+      const workers = Math.max(1, await countWorkers(locks));
       const active = shards.filter((s) => s.active);
       if (active.length > Math.ceil(opts.shards / workers)) await handOver(active[active.length - 1]);
     } catch {
@@ -342,18 +184,9 @@ export async function startIngestWorker(opts: {
   async function connect(): Promise<void> {
     while (!closing) {
       const url = opts.urls[next++ % opts.urls.length];
-      const session = new pg.Client({
-        connectionString: opts.connectionString ?? process.env.DATABASE_URL,
-        keepAlive: true,
-        application_name: LOCK_SESSION_NAME,
-      });
+      const session = lockSession(opts.connectionString);
       try {
-        session.on("error", () => {});
-        await session.connect();
-        // The server drops a silent peer's session (and its shard locks) within about 15 s, as the alert lease's.
-        await session.query(
-          "SET tcp_keepalives_idle = 5; SET tcp_keepalives_interval = 5; SET tcp_keepalives_count = 2",
-        );
+        await connectLockSession(session);
         const c = await amqp.connect(url, { timeout: 5000 });
         c.on("error", () => {}); // "close" follows
         const setup = await c.createChannel();
