@@ -6,6 +6,10 @@ import { kept } from "~/.server/kept";
 import * as schema from "~/db/schema.server";
 
 export type Db = NodePgDatabase<typeof schema> & { $client: pg.Pool };
+/** A transaction of the database, as `db().transaction(work)` hands it to `work`. */
+export type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
+/** What a query runs on: the database itself or one of its transactions. */
+export type Queryable = Db | Tx;
 
 type Holder = { pool?: pg.Pool; db?: Db };
 const holder = kept<Holder>("db", () => ({}));

@@ -1,10 +1,8 @@
 /** Role changes and removals, guarded so a site always keeps at least one owner. */
 import { and, eq, sql } from "drizzle-orm";
-import { db, type Db } from "~/.server/db";
+import { db, type Tx } from "~/.server/db";
 import { MembershipError } from "~/.server/members";
 import { auditLog, memberships, type Role } from "~/db/schema.server";
-
-type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
 
 /** Locks the site's memberships and returns them, so the last-owner check holds until commit. */
 async function lockMembers(tx: Tx, siteId: number) {

@@ -3,7 +3,7 @@
 // removed: the owner rows of the site are locked first, so two owners demoting each other at once
 // cannot both succeed.
 import { and, asc, desc, eq, gt, isNull, sql } from "drizzle-orm";
-import { db, type Db } from "~/.server/db";
+import { db, type Tx } from "~/.server/db";
 import { publicUrl } from "~/.server/env";
 import { sendMail } from "~/.server/mail";
 import { oneLine } from "~/.server/ids";
@@ -51,8 +51,6 @@ export const INVITES_PER_SITE_PER_HOUR = 10;
 export const INVITES_PER_USER_PER_DAY = 30;
 /** Longest name (of a person or a site) put into an invitation e-mail. */
 export const MAIL_NAME_MAX = 60;
-
-type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
 
 export const invitationTokenHash = sha256Hex;
 

@@ -4,7 +4,7 @@
 // gets the cold watch its plants call for, in the same transaction.
 import { and, asc, eq, isNull } from "drizzle-orm";
 import { notFound } from "~/.server/auth";
-import { db } from "~/.server/db";
+import { db, type Tx } from "~/.server/db";
 import { cleanText, paramId } from "~/.server/ids";
 import { invalidateSensorCache } from "~/.server/ingest/sensor-cache";
 import { ensureColdWatch } from "~/.server/watches";
@@ -114,8 +114,6 @@ export async function deleteSpot(opts: { siteId: number; actorId: number; spot: 
   for (const id of sensorIds ?? []) invalidateSensorCache(id);
   return sensorIds !== null;
 }
-
-type Tx = Parameters<Parameters<ReturnType<typeof db>["transaction"]>[0]>[0];
 
 async function placedSensors(tx: Tx, spotId: number) {
   const rows = await tx

@@ -4,7 +4,7 @@
 // with the plants: when a plant is placed in an outdoor spot, the spot gets a cold-snap watch set
 // from its most cold-tender plant (and a silent-sensor watch), never on an empty spot.
 import { and, eq, isNull, ne } from "drizzle-orm";
-import { db, type Db } from "~/.server/db";
+import { db, type Db, type Tx } from "~/.server/db";
 import { publicUrl } from "~/.server/env";
 import { oneLine } from "~/.server/ids";
 import { sendMail } from "~/.server/mail";
@@ -24,7 +24,6 @@ import { defaultColdWatch, type DefaultWatch } from "~/domain/alerts/default-wat
 import { KINDS, type AlertKind } from "~/domain/alerts/rules";
 import { PLANT_LIBRARY } from "~/domain/plants/library";
 
-type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
 type Q = Db | Tx;
 
 export type WatchSettings = {

@@ -5,7 +5,8 @@
 import type { Clock } from "~/.server/alerts/clock";
 import type { Notifier } from "~/.server/alerts/notifier";
 import * as store from "~/.server/alerts/store";
-import type { SpotPoint, Tx, WatchInContext } from "~/.server/alerts/store";
+import type { SpotPoint, WatchInContext } from "~/.server/alerts/store";
+import type { Queryable } from "~/.server/db";
 import { EARLY_WARNING_HISTORY_MINUTES, projectBatch } from "~/domain/alerts/early-warning";
 import {
   evaluate,
@@ -155,7 +156,7 @@ export class Evaluator {
   }
 
   /** The worst value since the condition began: the pending stretch may span earlier batches. */
-  private async peakSince(tx: Tx, w: WatchInContext, t: Extract<Transition, { type: "open" }>) {
+  private async peakSince(tx: Queryable, w: WatchInContext, t: Extract<Transition, { type: "open" }>) {
     let peak = t.peak;
     for (const p of pointsOf(w.kind, await store.spotPoints(w.spotId, new Date(t.startedAt.getTime() - 1), t.at, tx)))
       peak = worse(w.kind, peak, p.value);

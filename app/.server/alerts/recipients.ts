@@ -1,8 +1,7 @@
 // Who hears of a site's alerts: every member, with the kinds and quiet hours they chose, or their
 // role's defaults when they never chose. Read by the notifier for each letter it posts.
 import { and, asc, eq } from "drizzle-orm";
-import type { Tx } from "~/.server/alerts/store";
-import { db } from "~/.server/db";
+import { db, type Queryable } from "~/.server/db";
 import { alertPreferences, memberships, users, type Role } from "~/db/schema.server";
 import { ALERT_KINDS } from "~/domain/alerts/rules";
 
@@ -27,7 +26,7 @@ export function defaultKinds(role: Role): string[] {
 }
 
 /** Every member of the site with their alert preferences (defaults for their role when they never saved any). */
-export async function siteRecipients(siteId: number, q: Tx = db()): Promise<Recipient[]> {
+export async function siteRecipients(siteId: number, q: Queryable = db()): Promise<Recipient[]> {
   const rows = await q
     .select({
       userId: users.id,

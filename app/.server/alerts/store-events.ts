@@ -2,21 +2,20 @@
 // minutes it lasted), the events whose open or all-clear is still owed, and the deliveries, one row
 // per event, member and message, claimed before the e-mail goes. Part of the one store (store.ts).
 import { and, asc, desc, eq, gt, isNotNull, isNull, or, sql } from "drizzle-orm";
-import { db } from "~/.server/db";
-import type { Tx } from "~/.server/alerts/store";
+import { db, type Queryable } from "~/.server/db";
 import { alertDeliveries, alertEvents, type Watch } from "~/db/schema.server";
 
 export type OpenEvent = { id: number; startedAt: Date; peak: number | null };
 export type DeliveryMessage = (typeof alertDeliveries.$inferSelect)["message"];
 
-export async function openEvent(watchId: number, q: Tx = db()): Promise<OpenEvent | undefined> {
+export async function openEvent(watchId: number, q: Queryable = db()): Promise<OpenEvent | undefined> {
   const open = and(eq(alertEvents.ruleId, watchId), isNull(alertEvents.endedAt));
   const columns = { id: alertEvents.id, startedAt: alertEvents.startedAt, peak: alertEvents.peak };
   return (await q.select(columns).from(alertEvents).where(open).orderBy(desc(alertEvents.startedAt)).limit(1))[0];
 }
 
 export async function insertEvent(
-  q: Tx,
+  q: Queryable,
   w: Pick<Watch, "id" | "spotId" | "kind">,
   startedAt: Date,
   peak: number,
@@ -28,16 +27,16 @@ export async function insertEvent(
   return row.id;
 }
 
-export async function setEventPeak(q: Tx, id: number, peak: number) {
+export async function setEventPeak(q: Queryable, id: number, peak: number) {
   await q.update(alertEvents).set({ peak }).where(eq(alertEvents.id, id));
 }
 
-export async function closeEvent(q: Tx, id: number, endedAt: Date, peak: number) {
+export async function closeEvent(q: Queryable, id: number, endedAt: Date, peak: number) {
   await q.update(alertEvents).set({ endedAt, peak }).where(eq(alertEvents.id, id));
 }
 
 /** Closes the watch's open silence, if any, its peak at least the minutes it lasted. */
-export async function closeSilence(watchId: number, now: Date, q: Tx = db()): Promise<number[]> {
+export async function closeSilence(watchId: number, now: Date, q: Queryable = db()): Promise<number[]> {
   const lasted = sql`extract(epoch FROM ${now.toISOString()}::timestamptz - ${alertEvents.startedAt}) / 60`;
   const open = and(eq(alertEvents.ruleId, watchId), isNull(alertEvents.endedAt));
   const peak = sql<number>`greatest(${alertEvents.peak}, ${lasted})`;
@@ -45,14 +44,14 @@ export async function closeSilence(watchId: number, now: Date, q: Tx = db()): Pr
   return rows.map((r) => r.id);
 }
 
-export async function getEvent(id: number, q: Tx = db()) {
+export async function getEvent(id: number, q: Queryable = db()) {
   return (await q.select().from(alertEvents).where(eq(alertEvents.id, id)))[0];
 }
 
 /** Events whose open or all-clear e-mail is still owed, from the last day, oldest first. */
 export async function undeliveredEvents(
   since: Date,
-  q: Tx = db(),
+  q: Queryable = db(),
 ): Promise<{ id: number; message: DeliveryMessage }[]> {
   const rows = await q
     .select({ id: alertEvents.id, notifiedAt: alertEvents.notifiedAt })
@@ -72,7 +71,7 @@ export async function undeliveredEvents(
   return rows.map((r) => ({ id: r.id, message: r.notifiedAt ? "clear" : "open" }));
 }
 
-export async function markNotified(id: number, message: DeliveryMessage, now: Date, q: Tx = db()) {
+export async function markNotified(id: number, message: DeliveryMessage, now: Date, q: Queryable = db()) {
   await q
     .update(alertEvents)
     .set(message === "open" ? { notifiedAt: now } : { clearNotifiedAt: now })
@@ -85,7 +84,7 @@ export async function claimDelivery(
   eventId: number,
   userId: number,
   message: DeliveryMessage,
-  q: Tx = db(),
+  q: Queryable = db(),
 ): Promise<boolean> {
   const rows = await q
     .insert(alertDeliveries)
@@ -95,7 +94,7 @@ export async function claimDelivery(
   return rows.length > 0;
 }
 
-export async function releaseDelivery(eventId: number, userId: number, message: DeliveryMessage, q: Tx = db()) {
+export async function releaseDelivery(eventId: number, userId: number, message: DeliveryMessage, q: Queryable = db()) {
   await q
     .delete(alertDeliveries)
     .where(
@@ -108,7 +107,7 @@ export async function releaseDelivery(eventId: number, userId: number, message: 
 }
 
 /** Members who were sent the event's opening: the only ones to get its all-clear. */
-export async function heardOpen(eventId: number, q: Tx = db()): Promise<Set<number>> {
+export async function heardOpen(eventId: number, q: Queryable = db()): Promise<Set<number>> {
   const opened = and(eq(alertDeliveries.eventId, eventId), eq(alertDeliveries.message, "open"));
   const rows = await q.select({ userId: alertDeliveries.userId }).from(alertDeliveries).where(opened);
   return new Set(rows.map((r) => r.userId));

@@ -2,8 +2,7 @@
 // ended as the forecast changes, their e-mails claimed on the row; the spots they are worked out
 // for and those spots' plants. Part of the one store (store.ts).
 import { and, asc, eq, exists, getTableColumns, gt, isNotNull, isNull, lt, or, sql } from "drizzle-orm";
-import { db } from "~/.server/db";
-import type { Tx } from "~/.server/alerts/store";
+import { db, type Queryable } from "~/.server/db";
 import { customPlants, forecastWarnings, sites, spotPlants, spots } from "~/db/schema.server";
 
 export type ForecastWarning = typeof forecastWarnings.$inferSelect;
@@ -25,7 +24,7 @@ const fw = forecastWarnings;
 const stillWarned = (spotId: number) => and(eq(fw.spotId, spotId), isNull(fw.endedAt), isNull(fw.clearedAt));
 
 /** Spots of the site (or every site) with placed plants or a warning still standing. */
-export function forecastSpots(siteId: number | null, q: Tx = db()): Promise<ForecastSpot[]> {
+export function forecastSpots(siteId: number | null, q: Queryable = db()): Promise<ForecastSpot[]> {
   const planted = q
     .select({ one: sql`1` })
     .from(spotPlants)
@@ -49,7 +48,7 @@ export function forecastSpots(siteId: number | null, q: Tx = db()): Promise<Fore
     .orderBy(asc(spots.id));
 }
 
-export async function plantsOfSpot(spotId: number, siteId: number, q: Tx = db()) {
+export async function plantsOfSpot(spotId: number, siteId: number, q: Queryable = db()) {
   const placed = await q
     .select({ plantKey: spotPlants.plantKey })
     .from(spotPlants)
@@ -63,14 +62,14 @@ export async function plantsOfSpot(spotId: number, siteId: number, q: Tx = db())
 }
 
 /** Ends the spot's standing warnings (all, or those whose low came before `lowBefore`): no longer shown, no all-clear. */
-export async function endForecastWarnings(spotId: number, at: Date, lowBefore?: Date, q: Tx = db()) {
+export async function endForecastWarnings(spotId: number, at: Date, lowBefore?: Date, q: Queryable = db()) {
   await q
     .update(fw)
     .set({ endedAt: at })
     .where(and(eq(fw.spotId, spotId), isNull(fw.endedAt), lowBefore ? lt(fw.lowAt, lowBefore) : undefined));
 }
 
-export function standingWarnings(spotId: number, q: Tx = db()): Promise<ForecastWarning[]> {
+export function standingWarnings(spotId: number, q: Queryable = db()): Promise<ForecastWarning[]> {
   return q.select().from(fw).where(stillWarned(spotId));
 }
 
@@ -80,7 +79,7 @@ export async function openForecastWarning(
   night: string,
   f: NightFigures,
   at: Date,
-  q: Tx = db(),
+  q: Queryable = db(),
 ): Promise<number | null> {
   const [row] = await q
     .insert(fw)
@@ -99,7 +98,7 @@ export async function updateForecastWarning(
   spotId: number,
   night: string,
   f: Partial<NightFigures> & { clearedAt?: Date },
-  q: Tx = db(),
+  q: Queryable = db(),
 ): Promise<boolean> {
   return (
     (
@@ -115,7 +114,7 @@ export async function updateForecastWarning(
 /** Warnings and all-clears of the spot not yet e-mailed, oldest first. */
 export async function unsentForecastMessages(
   spotId: number,
-  q: Tx = db(),
+  q: Queryable = db(),
 ): Promise<(ForecastWarning & { message: "warn" | "clear" })[]> {
   const unsent = or(
     and(isNull(fw.clearedAt), isNull(fw.notifiedAt)),
@@ -134,7 +133,7 @@ export async function claimForecastMessage(
   id: number,
   message: "warn" | "clear",
   at: Date,
-  q: Tx = db(),
+  q: Queryable = db(),
 ): Promise<boolean> {
   const [column, set] =
     message === "warn" ? [fw.notifiedAt, { notifiedAt: at }] : [fw.clearNotifiedAt, { clearNotifiedAt: at }];
@@ -150,7 +149,7 @@ export async function claimForecastMessage(
 }
 
 /** Gives the claim back after a failed send: the next pass sends it again. */
-export async function releaseForecastMessage(id: number, message: "warn" | "clear", q: Tx = db()) {
+export async function releaseForecastMessage(id: number, message: "warn" | "clear", q: Queryable = db()) {
   await q
     .update(fw)
     .set(message === "warn" ? { notifiedAt: null } : { clearNotifiedAt: null })
@@ -158,7 +157,7 @@ export async function releaseForecastMessage(id: number, message: "warn" | "clea
 }
 
 /** Standing warnings of a site whose night is still to come or under way (low after `lowAfter`). */
-export function siteForecastWarnings(siteId: number, lowAfter: Date, q: Tx = db()) {
+export function siteForecastWarnings(siteId: number, lowAfter: Date, q: Queryable = db()) {
   return q
     .select({ ...getTableColumns(fw), spotName: spots.name })
     .from(fw)

@@ -1,15 +1,14 @@
 // The alert store's readings: a spot's calibrated readings from the sensors placed in it at the
 // time, as the evaluator (and cluster mode's alert engine) reads them. Part of the one store (store.ts).
 import { and, asc, eq, gt, gte, isNull, lt, lte, or, sql } from "drizzle-orm";
-import { db } from "~/.server/db";
-import type { Tx } from "~/.server/alerts/store";
+import { db, type Queryable } from "~/.server/db";
 import { calibratedSql } from "~/.server/ingest/calibrated";
 import { placements, readings, sensors } from "~/db/schema.server";
 
 export type SpotPoint = { at: Date; t: number | null; h: number | null; battery: number | null };
 
 /** Calibrated readings of the sensors placed in the spot at the time, from < at ≤ to, oldest first. */
-export async function spotPoints(spotId: number, from: Date, to: Date, q: Tx = db()): Promise<SpotPoint[]> {
+export async function spotPoints(spotId: number, from: Date, to: Date, q: Queryable = db()): Promise<SpotPoint[]> {
   return q
     .select({
       at: readings.measuredAt,

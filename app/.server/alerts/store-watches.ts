@@ -1,9 +1,8 @@
 // The alert store's watch rows: a watch read with its spot and site, locked for an evaluation, its
 // evaluation state saved, its early warning claimed and re-armed, and the silent-sensor watches with
-// the instant their spot went quiet. Part of the one store (store.ts), whose Tx every function takes.
+// the instant their spot went quiet. Part of the one store (store.ts), whose Queryable every function takes.
 import { and, asc, eq, getTableColumns, inArray, isNotNull, isNull, ne, sql } from "drizzle-orm";
-import { db } from "~/.server/db";
-import type { Tx } from "~/.server/alerts/store";
+import { db, type Queryable } from "~/.server/db";
 import { placements, sensors, sites, spots, watches, type Watch } from "~/db/schema.server";
 
 /** A watch with what its messages name: its spot and site. */
@@ -17,7 +16,7 @@ const contextColumns = {
   timeZone: sites.timeZone,
 };
 
-const inContext = (q: Tx) =>
+const inContext = (q: Queryable) =>
   q
     .select(contextColumns)
     .from(watches)
@@ -26,12 +25,12 @@ const inContext = (q: Tx) =>
 
 const live = and(eq(watches.paused, false), ne(watches.kind, "silent"));
 
-export async function getWatch(id: number, q: Tx = db()): Promise<WatchInContext | undefined> {
+export async function getWatch(id: number, q: Queryable = db()): Promise<WatchInContext | undefined> {
   return (await inContext(q).where(eq(watches.id, id)))[0];
 }
 
 /** The watch under a row lock for the rest of the transaction: two evaluations never interleave on it. */
-export async function lockWatch(q: Tx, id: number): Promise<WatchInContext | undefined> {
+export async function lockWatch(q: Queryable, id: number): Promise<WatchInContext | undefined> {
   return (await inContext(q).where(eq(watches.id, id)).for("update", { of: watches }))[0];
 }
 
@@ -39,7 +38,7 @@ export async function lockWatch(q: Tx, id: number): Promise<WatchInContext | und
 export function watchesOfSpots(
   spotIds: number[],
   opts: { withSilent: boolean },
-  q: Tx = db(),
+  q: Queryable = db(),
 ): Promise<WatchInContext[]> {
   if (spotIds.length === 0) return Promise.resolve([]);
   return inContext(q)
@@ -54,7 +53,7 @@ export function watchesOfSpots(
 }
 
 /** Spots with a live watch evaluated before: after a restart they are re-read from each cursor. */
-export async function evaluatedSpots(q: Tx = db()): Promise<number[]> {
+export async function evaluatedSpots(q: Queryable = db()): Promise<number[]> {
   const rows = await q
     .selectDistinct({ spotId: watches.spotId })
     .from(watches)
@@ -69,7 +68,7 @@ export type WatchState = {
   clearWarning: boolean;
 };
 
-export async function saveWatchState(q: Tx, id: number, s: WatchState) {
+export async function saveWatchState(q: Queryable, id: number, s: WatchState) {
   const { clearWarning, ...state } = s;
   await q
     .update(watches)
@@ -78,13 +77,13 @@ export async function saveWatchState(q: Tx, id: number, s: WatchState) {
 }
 
 /** Claims the watch's early warning: whoever sets warnedAt sends it, so it goes once. */
-export async function claimWarning(id: number, now: Date, q: Tx = db()): Promise<boolean> {
+export async function claimWarning(id: number, now: Date, q: Queryable = db()): Promise<boolean> {
   const claimed = and(eq(watches.id, id), isNull(watches.warnedAt), eq(watches.paused, false));
   return (await q.update(watches).set({ warnedAt: now }).where(claimed).returning({ id: watches.id })).length > 0;
 }
 
 /** Re-arms the early warning, unless the condition has started holding meanwhile. */
-export async function rearmWarning(id: number, q: Tx = db()) {
+export async function rearmWarning(id: number, q: Queryable = db()) {
   await q
     .update(watches)
     .set({ warnedAt: null })
@@ -96,7 +95,7 @@ export async function rearmWarning(id: number, q: Tx = db()) {
  * sensor's last reading, the start of its placement and the moment that placement was made (a
  * placement dated back, or a last reading from before the sensor came here, is not silence here).
  */
-export async function silentWatches(q: Tx = db()): Promise<(WatchInContext & { quietSince: Date })[]> {
+export async function silentWatches(q: Queryable = db()): Promise<(WatchInContext & { quietSince: Date })[]> {
   const quiet = q
     .select({
       spotId: placements.spotId,

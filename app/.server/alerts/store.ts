@@ -6,15 +6,12 @@
 // transaction they share. Drizzle's query builder throughout; raw `sql` only for what it cannot say
 // (calibrated values, greatest(), epoch arithmetic). Times come from the caller's clock: nothing
 // here reads the database's now().
-import { db, type Db } from "~/.server/db";
+import { db, type Tx } from "~/.server/db";
 
 export * from "~/.server/alerts/store-watches";
 export * from "~/.server/alerts/store-events";
 export * from "~/.server/alerts/store-readings";
 export * from "~/.server/alerts/store-forecast";
-
-/** The database or a transaction of it: every function reads and writes through either. */
-export type Tx = Db | Parameters<Parameters<Db["transaction"]>[0]>[0];
 
 /** Runs `work` in one transaction: its row locks hold until it commits. */
 export function inTransaction(work: (tx: Tx) => Promise<void>): Promise<void> {
