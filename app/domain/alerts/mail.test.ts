@@ -1,7 +1,11 @@
 import { describe, expect, it } from "vitest";
 import { composeMail } from "./mail";
 
-const links = { spotName: "Sill <east>", spotUrl: "https://example.test/s?a=1&b=2", alertsUrl: "https://example.test/a" };
+const links = {
+  spotName: "Sill <east>",
+  spotUrl: "https://example.test/s?a=1&b=2",
+  alertsUrl: "https://example.test/a",
+};
 
 describe("composeMail", () => {
   it("puts the lines, the link, the caution and the reason in the text, in that order", () => {
@@ -23,7 +27,7 @@ describe("composeMail", () => {
   });
 
   it("escapes what it puts into the HTML and leaves out empty lines (OWASP: HTML entity encoding)", () => {
-    const m = composeMail("S", ["a < b & \"c\"", ""], links, "Care.", "Why.");
+    const m = composeMail("S", ['a < b & "c"', ""], links, "Care.", "Why.");
     expect(m.html).toContain("<p>a &lt; b &amp; &quot;c&quot;</p>");
     expect(m.html).toContain('href="https://example.test/s?a=1&amp;b=2"');
     expect(m.html).toContain("Open Sill &lt;east&gt;</a>");
