@@ -8,7 +8,7 @@
 // later than that the forecast is too loose to act on, sooner the live cold watch and its early
 // warning take over. The all-clear needs the night to come back above the line by a margin, so a
 // forecast hovering at the line warns once and does not flap.
-import { composeMail, type Composed } from "~/domain/alerts/mail";
+import { composeMail, type Composed, type MailContext } from "~/domain/alerts/mail";
 import type { ForecastNight } from "~/domain/projection/forecast";
 import { formatDelta, formatTemp } from "~/domain/units";
 import { MONTH_SHORT } from "~/lib/time";
@@ -141,14 +141,7 @@ export function forecastDetail(w: ForecastWarningFacts, unit: Unit, timeZone: st
   );
 }
 
-export type ForecastMailContext = {
-  siteName: string;
-  spotName: string;
-  spotUrl: string;
-  alertsUrl: string;
-  timeZone: string;
-  unit: Unit;
-};
+export type ForecastMailContext = MailContext;
 
 function render(subject: string, lines: string[], c: ForecastMailContext): Composed {
   const why = `You get this because you are a member of ${c.siteName} and asked for cold-snap alerts.`;

@@ -1,16 +1,26 @@
 // The frame every alert e-mail shares, live watch and forecast alike: the message's lines, the link
 // to the spot, a caution, and why the reader gets it and where to change that. Plain text and HTML
 // carry the same words.
+import type { TempUnit } from "~/domain/units";
+
 export type Composed = { subject: string; text: string; html: string };
 
-/** Where the e-mail links to. */
-export type MailLinks = { spotName: string; spotUrl: string; alertsUrl: string };
+/** Whom an alert e-mail tells about which spot: the site, the links, the site's time zone, the reader's unit. */
+export type MailContext = Record<"siteName" | "spotName" | "spotUrl" | "alertsUrl" | "timeZone", string> & {
+  unit: TempUnit;
+};
 
 const escape = (s: string) =>
   s.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;");
 
 /** Empty lines separate paragraphs in the text and are left out of the HTML. */
-export function composeMail(subject: string, lines: string[], c: MailLinks, caution: string, why: string): Composed {
+export function composeMail(
+  subject: string,
+  lines: string[],
+  c: Pick<MailContext, "spotName" | "spotUrl" | "alertsUrl">,
+  caution: string,
+  why: string,
+): Composed {
   const footer = [
     `Open ${c.spotName}: ${c.spotUrl}`,
     "",

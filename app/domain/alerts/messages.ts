@@ -1,17 +1,11 @@
 // The words of alert e-mails, in the reader's temperature unit and the site's time zone. Plain text
 // and HTML carry the same facts: where, the numbers, what to do, and the link straight to the spot.
-import { composeMail, type Composed } from "~/domain/alerts/mail";
+import { composeMail, type Composed, type MailContext } from "~/domain/alerts/mail";
 import { KINDS, type AlertKind } from "~/domain/alerts/rules";
 import { formatDelta, formatTemp } from "~/domain/units";
 
 export type Unit = "C" | "F";
-export type MessageContext = {
-  siteName: string;
-  spotName: string;
-  spotUrl: string;
-  alertsUrl: string;
-  timeZone: string;
-  unit: Unit;
+export type MessageContext = MailContext & {
   kind: AlertKind;
   threshold: number;
   hysteresis: number;
