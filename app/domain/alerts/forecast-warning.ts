@@ -8,6 +8,7 @@
 // later than that the forecast is too loose to act on, sooner the live cold watch and its early
 // warning take over. The all-clear needs the night to come back above the line by a margin, so a
 // forecast hovering at the line warns once and does not flap.
+import { composeMail, type Composed, type MailContext } from "~/domain/alerts/mail";
 import type { ForecastNight } from "~/domain/projection/forecast";
 import { formatDelta, formatTemp } from "~/domain/units";
 import { MONTH_SHORT } from "~/lib/time";
@@ -140,39 +141,11 @@ export function forecastDetail(w: ForecastWarningFacts, unit: Unit, timeZone: st
   );
 }
 
-export type ForecastMailContext = {
-  siteName: string;
-  spotName: string;
-  spotUrl: string;
-  alertsUrl: string;
-  timeZone: string;
-  unit: Unit;
-};
-export type Composed = { subject: string; text: string; html: string };
-
-const escape = (s: string) =>
-  s.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;");
+export type ForecastMailContext = MailContext;
 
 function render(subject: string, lines: string[], c: ForecastMailContext): Composed {
   const why = `You get this because you are a member of ${c.siteName} and asked for cold-snap alerts.`;
-  const footer = [
-    `Open ${c.spotName}: ${c.spotUrl}`,
-    "",
-    FORECAST_CAUTION,
-    "",
-    `${why} Change which alerts you get by e-mail: ${c.alertsUrl}`,
-  ];
-  const text = [...lines, "", ...footer].join("\n");
-  const html = `<!doctype html><html><body style="font-family: Inter, Arial, sans-serif; color: #2b2722; line-height: 1.5">
-${lines
-  .filter((l) => l !== "")
-  .map((l) => `<p>${escape(l)}</p>`)
-  .join("\n")}
-<p><a href="${escape(c.spotUrl)}" style="color: #a9502b; font-weight: 600">Open ${escape(c.spotName)}</a></p>
-<p style="color: #6f675c; font-size: 13px">${escape(FORECAST_CAUTION)}</p>
-<p style="color: #6f675c; font-size: 13px">${escape(why)} <a href="${escape(c.alertsUrl)}" style="color: #6f675c">Change which alerts you get by e-mail</a>.</p>
-</body></html>`;
-  return { subject, text, html };
+  return composeMail(subject, lines, c, FORECAST_CAUTION, why);
 }
 
 export function forecastWarningMessage(c: ForecastMailContext, w: ForecastWarningFacts): Composed {

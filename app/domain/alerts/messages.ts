@@ -1,16 +1,11 @@
 // The words of alert e-mails, in the reader's temperature unit and the site's time zone. Plain text
 // and HTML carry the same facts: where, the numbers, what to do, and the link straight to the spot.
+import { composeMail, type Composed, type MailContext } from "~/domain/alerts/mail";
 import { KINDS, type AlertKind } from "~/domain/alerts/rules";
 import { formatDelta, formatTemp } from "~/domain/units";
 
 export type Unit = "C" | "F";
-export type MessageContext = {
-  siteName: string;
-  spotName: string;
-  spotUrl: string;
-  alertsUrl: string;
-  timeZone: string;
-  unit: Unit;
+export type MessageContext = MailContext & {
   kind: AlertKind;
   threshold: number;
   hysteresis: number;
@@ -18,7 +13,7 @@ export type MessageContext = {
   reason?: string;
 };
 
-export type Composed = { subject: string; text: string; html: string };
+export type { Composed };
 
 const CAUTION =
   "Alerts are a help, not a guarantee: a sensor can fail, its battery can run out or its connection can drop. On a cold night, look at your plants yourself.";
@@ -65,28 +60,8 @@ export function describeCondition(c: Pick<MessageContext, "kind" | "threshold" |
   }
 }
 
-const escape = (s: string) =>
-  s.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;");
-
 function render(subject: string, lines: string[], c: MessageContext, why: string): Composed {
-  const footer = [
-    `Open ${c.spotName}: ${c.spotUrl}`,
-    "",
-    CAUTION,
-    "",
-    `${why} Change which alerts you get by e-mail: ${c.alertsUrl}`,
-  ];
-  const text = [...lines, "", ...footer].join("\n");
-  const html = `<!doctype html><html><body style="font-family: Inter, Arial, sans-serif; color: #2b2722; line-height: 1.5">
-${lines
-  .filter((l) => l !== "")
-  .map((l) => `<p>${escape(l)}</p>`)
-  .join("\n")}
-<p><a href="${escape(c.spotUrl)}" style="color: #a9502b; font-weight: 600">Open ${escape(c.spotName)}</a></p>
-<p style="color: #6f675c; font-size: 13px">${escape(CAUTION)}</p>
-<p style="color: #6f675c; font-size: 13px">${escape(why)} <a href="${escape(c.alertsUrl)}" style="color: #6f675c">Change which alerts you get by e-mail</a>.</p>
-</body></html>`;
-  return { subject, text, html };
+  return composeMail(subject, lines, c, CAUTION, why);
 }
 
 const whyYou = (c: MessageContext) =>

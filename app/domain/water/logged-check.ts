@@ -1,6 +1,13 @@
 // One logged water check in the units the grower's meter gives, turned into the figure the rules
 // of thumb use (conductivity, µS/cm) with a label saying where it came from.
-import { ecToPpm, ppmToEc, sampleEc, type TdsScale, type WaterSample } from "~/domain/water/verdict";
+import {
+  ecToPpm,
+  ppmToEc,
+  sampleEc,
+  type TdsScale,
+  type WaterAssessment,
+  type WaterSample,
+} from "~/domain/water/verdict";
 
 export const STANDARD_SOURCES = ["tap", "rain", "filtered"] as const;
 
@@ -10,6 +17,16 @@ export const STANDARD_SOURCES = ["tap", "rain", "filtered"] as const;
  * meter it only says which ppm the grower's other tables mean.
  */
 export type StoredCheck = { ppm: number | null; ec: number | null; ecScale: number | null; ph: number | null };
+
+/** A check as the water page lists it: as stored, with who logged it, its exact conductivity and its verdict. */
+export type LoggedCheck = StoredCheck &
+  Pick<WaterAssessment, "verdict" | "reasons" | "buffered"> & {
+    id: number;
+    source: string;
+    checkedOn: Date;
+    byName: string | null;
+    ecExact: number | null;
+  };
 
 export const isScale = (s: number | null | undefined): s is TdsScale => s === 0.5 || s === 0.7;
 
