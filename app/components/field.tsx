@@ -77,6 +77,34 @@ export function SelectField({
   );
 }
 
+/** A required choice (a spot, a sensor) that starts unchosen, showing its placeholder. */
+export function ChoiceSelect({
+  id,
+  name,
+  choices,
+  placeholder = "Choose…",
+  className = "field",
+}: {
+  id: string;
+  name: string;
+  choices: { id: number; name: string }[];
+  placeholder?: string;
+  className?: string;
+}) {
+  return (
+    <select id={id} name={name} className={className} required defaultValue="">
+      <option value="" disabled>
+        {placeholder}
+      </option>
+      {choices.map((c) => (
+        <option key={c.id} value={c.id}>
+          {c.name}
+        </option>
+      ))}
+    </select>
+  );
+}
+
 export function TextAreaField({ meta, label, hint }: { meta: Meta; label: string; hint?: React.ReactNode }) {
   return (
     <div>

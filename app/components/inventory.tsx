@@ -2,11 +2,12 @@
 import { getFormProps, useForm, type SubmissionResult } from "@conform-to/react";
 import { parseWithZod } from "@conform-to/zod/v4";
 import { Form } from "react-router";
-import { FieldError, FormErrors, SelectField, TextField } from "~/components/field";
+import { ChoiceSelect, FieldError, FormErrors, SelectField, TextField } from "~/components/field";
 import { addPlantSchema } from "~/forms/inventory";
 import { VerdictBadge } from "~/components/season";
 import { PlantIcon } from "~/components/icons";
 import { formatTemp, type TempUnit } from "~/domain/units";
+import { IntentButton } from "~/components/intent-button";
 
 export type StandingPlant = {
   id: number;
@@ -89,32 +90,27 @@ export function Inventory({
                       <label className="sr-only" htmlFor={`move-${p.id}`}>
                         Move {p.nickname || p.plantName} to
                       </label>
-                      <select id={`move-${p.id}`} name="toSpotId" className="field w-auto py-1 text-sm" defaultValue="">
-                        <option value="" disabled>
-                          Move to…
-                        </option>
-                        {otherSpots.map((s) => (
-                          <option key={s.id} value={s.id}>
-                            {s.name}
-                          </option>
-                        ))}
-                      </select>
+                      <ChoiceSelect
+                        id={`move-${p.id}`}
+                        name="toSpotId"
+                        placeholder="Move to…"
+                        choices={otherSpots}
+                        className="field w-auto py-1 text-sm"
+                      />
                       <button className="btn-quiet py-1 text-sm" disabled={busy}>
                         Move
                       </button>
                     </Form>
                   ) : null}
-                  <Form method="post">
-                    <input type="hidden" name="intent" value="plant-remove" />
-                    <input type="hidden" name="id" value={p.id} />
-                    <button
-                      className="btn-quiet py-1 text-sm"
-                      disabled={busy}
-                      aria-label={`Remove ${p.nickname || p.plantName} from this spot`}
-                    >
-                      Remove
-                    </button>
-                  </Form>
+                  <IntentButton
+                    intent="plant-remove"
+                    fields={{ id: p.id }}
+                    className="btn-quiet py-1 text-sm"
+                    busy={busy}
+                    label={`Remove ${p.nickname || p.plantName} from this spot`}
+                  >
+                    Remove
+                  </IntentButton>
                 </div>
               ) : null}
             </li>

@@ -2,6 +2,7 @@ import { useState } from "react";
 import { Form } from "react-router";
 import { isFromFirstReading } from "~/lib/placements";
 import { formatInZone } from "~/lib/time";
+import { ChoiceSelect } from "~/components/field";
 
 export function PlacingTips() {
   return (
@@ -15,34 +16,6 @@ export function PlacingTips() {
         Don't let it touch the glass or a wall: a finger's width of air keeps it reading the air, not the surface.
       </li>
     </ul>
-  );
-}
-
-/** A required choice of spot or sensor that starts unchosen. */
-function ChoiceSelect({
-  id,
-  name,
-  choices,
-  placeholder = "Choose…",
-  className = "field",
-}: {
-  id: string;
-  name: string;
-  choices: { id: number; name: string }[];
-  placeholder?: string;
-  className?: string;
-}) {
-  return (
-    <select id={id} name={name} className={className} required defaultValue="">
-      <option value="" disabled>
-        {placeholder}
-      </option>
-      {choices.map((c) => (
-        <option key={c.id} value={c.id}>
-          {c.name}
-        </option>
-      ))}
-    </select>
   );
 }
 

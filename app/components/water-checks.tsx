@@ -1,9 +1,9 @@
 // The logged water checks: the latest of each source with its verdict and reasons, and the table of
 // every check with its remove button (for those who may log).
-import { Form } from "react-router";
 import { DropMark, WATER_VERDICT } from "~/components/water-marks";
 import { ppmLabel, sourceName, type LoggedCheck } from "~/domain/water/logged-check";
 import { formatInZone } from "~/lib/time";
+import { IntentButton } from "~/components/intent-button";
 
 const day = (d: Date | string, timeZone: string) => formatInZone(d, timeZone, { hour: undefined, minute: undefined });
 
@@ -100,18 +100,15 @@ export function AllChecks({
                 <td className="hidden sm:table-cell">{c.byName ?? "–"}</td>
                 {canLog ? (
                   <td>
-                    <Form
-                      method="post"
-                      onSubmit={(e) => {
-                        if (!confirm("Remove this water check?")) e.preventDefault();
-                      }}
+                    <IntentButton
+                      intent="delete"
+                      fields={{ checkId: c.id }}
+                      className="text-xs text-muted underline hover:text-poor"
+                      busy={busy}
+                      ask="Remove this water check?"
                     >
-                      <input type="hidden" name="intent" value="delete" />
-                      <input type="hidden" name="checkId" value={c.id} />
-                      <button className="text-xs text-muted underline hover:text-poor" disabled={busy}>
-                        Remove
-                      </button>
-                    </Form>
+                      Remove
+                    </IntentButton>
                   </td>
                 ) : null}
               </tr>

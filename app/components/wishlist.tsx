@@ -3,6 +3,7 @@
 import { Form, Link } from "react-router";
 import { VerdictBadge } from "~/components/season";
 import type { SpotRoom, WishRow } from "~/domain/fit/wishlist";
+import { IntentButton } from "~/components/intent-button";
 
 export function WishItem({
   row: r,
@@ -90,17 +91,15 @@ export function WishItem({
               </p>
             ) : null}
           </Form>
-          <Form method="post">
-            <input type="hidden" name="intent" value="remove" />
-            <input type="hidden" name="plantKey" value={r.plantKey} />
-            <button
-              className="btn-quiet py-1 text-sm"
-              disabled={busy}
-              aria-label={`Remove ${r.name} from the wishlist`}
-            >
-              Remove
-            </button>
-          </Form>
+          <IntentButton
+            intent="remove"
+            fields={{ plantKey: r.plantKey }}
+            className="btn-quiet py-1 text-sm"
+            busy={busy}
+            label={`Remove ${r.name} from the wishlist`}
+          >
+            Remove
+          </IntentButton>
         </div>
       ) : null}
     </li>

@@ -19,6 +19,7 @@ import { useNow } from "~/components/use-now";
 import { describeChange, type ChangeDetail } from "~/domain/sharing/changes";
 import { formatInZone, timeAgo } from "~/lib/time";
 import { FieldError, FormErrors } from "~/components/field";
+import { IntentButton } from "~/components/intent-button";
 import { inviteSchema, membersSchema } from "~/forms/members";
 import type { Route } from "./+types/members";
 
@@ -190,18 +191,15 @@ export default function Members({ loaderData, actionData }: Route.ComponentProps
                       </button>
                     </Form>
                     {m.userId !== me ? (
-                      <Form
-                        method="post"
-                        onSubmit={(e) => {
-                          if (!confirm(`Remove ${m.name} from this site?`)) e.preventDefault();
-                        }}
+                      <IntentButton
+                        intent="remove"
+                        fields={{ userId: m.userId }}
+                        className="btn-danger px-3 py-1.5"
+                        busy={busy}
+                        ask={`Remove ${m.name} from this site?`}
                       >
-                        <input type="hidden" name="intent" value="remove" />
-                        <input type="hidden" name="userId" value={m.userId} />
-                        <button className="btn-danger px-3 py-1.5" disabled={busy}>
-                          Remove
-                        </button>
-                      </Form>
+                        Remove
+                      </IntentButton>
                     ) : null}
                   </div>
                 ) : null}
@@ -322,13 +320,14 @@ export default function Members({ loaderData, actionData }: Route.ComponentProps
                     </span>
                   </span>
                   {i.state === "open" ? (
-                    <Form method="post">
-                      <input type="hidden" name="intent" value="revoke" />
-                      <input type="hidden" name="invitationId" value={i.id} />
-                      <button className="btn-quiet px-3 py-1.5" disabled={busy}>
-                        Withdraw
-                      </button>
-                    </Form>
+                    <IntentButton
+                      intent="revoke"
+                      fields={{ invitationId: i.id }}
+                      className="btn-quiet px-3 py-1.5"
+                      busy={busy}
+                    >
+                      Withdraw
+                    </IntentButton>
                   ) : null}
                 </li>
               ))}
