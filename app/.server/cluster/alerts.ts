@@ -89,9 +89,17 @@ export function startAlertsUnderLease(
     retryMs: opts.retryMs,
     log,
     onAcquire: async (session: pg.Client) => {
+      const spans = new Map<number, Span>();
+      session.on("notification", (n) => {
+        if (n.channel !== COMMITTED_CHANNEL || !n.payload) return;
+        for (const [spot, from, to] of parseSpans(n.payload)) merge(spans, spot, from, to);
+      });
+      // Listening before the engine starts (and catches up from its cursors): a commit in between is
+      // then read by the one or announced to the other, never missed by both. Re-read readings are
+      // skipped by the cursors.
+      await session.query(`LISTEN ${COMMITTED_CHANNEL}`);
       const stopEngine = await startAlerts(w, opts);
       const engine = stopEngine.engine;
-      const spans = new Map<number, Span>();
       let feeding = false;
       const feed = async () => {
         if (feeding || spans.size === 0) return;
@@ -121,11 +129,6 @@ export function startAlertsUnderLease(
           feeding = false;
         }
       };
-      session.on("notification", (n) => {
-        if (n.channel !== COMMITTED_CHANNEL || !n.payload) return;
-        for (const [spot, from, to] of parseSpans(n.payload)) merge(spans, spot, from, to);
-      });
-      await session.query(`LISTEN ${COMMITTED_CHANNEL}`);
       const feeder = setInterval(() => void feed(), FEED_EVERY_MS);
       const catchUp = setInterval(() => void engine.catchUp(), opts.catchUpEveryMs ?? CATCH_UP_EVERY_MS);
       log("alert engine: this instance holds the alert lease");
