@@ -3,7 +3,7 @@
 import { Form } from "react-router";
 import { PRESET_LABELS, sensorNameFor, type Mapping, type Values } from "~/domain/payloads/presets";
 import { formatTemp, type TempUnit } from "~/domain/units";
-import { formatInZone } from "~/lib/time";
+import { formatInZone } from "~/lib/date-words";
 import { SensorChoice, type SensorOption, type SpotOption } from "./broker-sensor-choice";
 
 export type HeardTopic = {

@@ -1,6 +1,6 @@
 // The bridge's state on the home-broker page: connected or not, its last message, its counts and its
 // last problem, in the grower's words.
-import { timeAgo } from "~/lib/time";
+import { timeAgo } from "~/lib/date-words";
 
 export type BrokerCounts = {
   stored: number;

@@ -1,5 +1,6 @@
 import { describe, expect, it } from "vitest";
-import { calendarTicks, coverageLabel, stripTicks, timeTickLabels } from "~/components/chart-scale";
+import { calendarTicks } from "~/components/chart-calendar";
+import { coverageLabel, stripTicks, timeTickLabels } from "~/components/chart-scale";
 
 const at = (iso: string) => Date.parse(iso) / 1000;
 

@@ -6,7 +6,7 @@ import { useEffect, useMemo, useRef, useState } from "react";
 import type uPlot from "uplot";
 import "uplot/dist/uPlot.min.css";
 import { DEFAULT_FORMAT } from "~/domain/fit/describe";
-import { calendarTicks, timeTickLabels } from "~/components/chart-scale";
+import { timeTickLabels } from "~/components/chart-scale";
 
 export const TEMP_COLOURS = { cold: "#3b6ea8", cool: "#6aa3c8", mild: "#cdbf9a", warm: "#e0a04a", hot: "#c4472f" };
 
@@ -120,84 +120,87 @@ export function Chart({
     let plot: uPlot | undefined;
     let observer: ResizeObserver | undefined;
     let cancelled = false;
-    import("uplot").then(({ default: UPlot }) => {
-      if (cancelled || !ref.current) return;
-      const width = ref.current.clientWidth || 600;
-      const started = performance.now();
-      const timeAxis = built.scales?.x?.time !== false;
-      // A fixed span (48 hours, a year) from the route, so a few minutes of data still sit on the right scale.
-      const xRange =
-        timeAxis && typeof meta.from === "number" && typeof meta.to === "number"
-          ? ([meta.from, meta.to] as [number, number])
-          : undefined;
-      const axisStyle = { stroke: "#4a5767", grid: { stroke: "#d4dcdb" }, ticks: { stroke: "#d4dcdb" } };
-      const axes = built.axes ?? [axisStyle, { ...axisStyle, label: `°${spec.unit}`, size: 50 }];
-      const el = ref.current;
-      if (timeAxis && axes[0] && spec.calendarAxis) {
-        let ticks: { splits: number[]; labels: string[] } = { splits: [], labels: [] };
-        axes[0] = {
-          ...axes[0],
-          // About one label per 80 px, so "Jul 2026" never runs into "Aug" on a phone.
-          splits: (u, _i, min, max) =>
-            (ticks = calendarTicks(min, max, loc, tz, Math.max(2, Math.floor(u.width / 80)))).splits,
-          values: (_u, splits) => {
-            const labels = splits.map((s) => ticks.labels[ticks.splits.indexOf(s)] ?? "");
-            el.dataset.xTicks = labels.join("|");
-            return labels;
+    // uPlot, and for a calendar axis its zone rules (Temporal), load after the page has painted.
+    Promise.all([import("uplot"), spec.calendarAxis ? import("~/components/chart-calendar") : null]).then(
+      ([{ default: UPlot }, calendar]) => {
+        if (cancelled || !ref.current) return;
+        const width = ref.current.clientWidth || 600;
+        const started = performance.now();
+        const timeAxis = built.scales?.x?.time !== false;
+        // A fixed span (48 hours, a year) from the route, so a few minutes of data still sit on the right scale.
+        const xRange =
+          timeAxis && typeof meta.from === "number" && typeof meta.to === "number"
+            ? ([meta.from, meta.to] as [number, number])
+            : undefined;
+        const axisStyle = { stroke: "#4a5767", grid: { stroke: "#d4dcdb" }, ticks: { stroke: "#d4dcdb" } };
+        const axes = built.axes ?? [axisStyle, { ...axisStyle, label: `°${spec.unit}`, size: 50 }];
+        const el = ref.current;
+        if (timeAxis && axes[0] && calendar) {
+          let ticks: { splits: number[]; labels: string[] } = { splits: [], labels: [] };
+          axes[0] = {
+            ...axes[0],
+            // About one label per 80 px, so "Jul 2026" never runs into "Aug" on a phone.
+            splits: (u, _i, min, max) =>
+              (ticks = calendar.calendarTicks(min, max, loc, tz, Math.max(2, Math.floor(u.width / 80)))).splits,
+            values: (_u, splits) => {
+              const labels = splits.map((s) => ticks.labels[ticks.splits.indexOf(s)] ?? "");
+              el.dataset.xTicks = labels.join("|");
+              return labels;
+            },
+          };
+        } else if (timeAxis && axes[0])
+          axes[0] = {
+            ...axes[0],
+            values: (_u, splits) => {
+              const labels = timeTickLabels(splits, loc, tz);
+              // The labels drawn, for tests and for anyone inspecting the page (the canvas has no text).
+              el.dataset.xTicks = labels.join("|");
+              return labels;
+            },
+          };
+        const dayFormat = new Intl.DateTimeFormat(loc, {
+          timeZone: tz,
+          day: "numeric",
+          month: "short",
+          hour: "2-digit",
+          minute: "2-digit",
+          hourCycle: "h23",
+        });
+        plot = new UPlot(
+          {
+            width,
+            height: spec.height ?? 240,
+            tzDate: timeAxis ? (ts) => UPlot.tzDate(new Date(ts * 1000), tz) : undefined,
+            series: [{}, ...built.series],
+            bands: built.bands,
+            scales: xRange ? { ...built.scales, x: { ...built.scales?.x, time: true, range: xRange } } : built.scales,
+            axes,
+            legend: { show: false },
+            cursor: { drag: { x: false, y: false } },
+            hooks: {
+              setCursor: [
+                (u) => {
+                  const idx = u.cursor.idx;
+                  if (idx == null) return setCursor(null);
+                  const x = u.data[0][idx];
+                  setCursor({
+                    label: timeAxis ? dayFormat.format(new Date(x * 1000)) : (spec.xLabel?.(x) ?? String(x)),
+                    values: built.series.map((_, i) => (u.data[i + 1]?.[idx] as number | null | undefined) ?? null),
+                  });
+                },
+              ],
+            },
           },
-        };
-      } else if (timeAxis && axes[0])
-        axes[0] = {
-          ...axes[0],
-          values: (_u, splits) => {
-            const labels = timeTickLabels(splits, loc, tz);
-            // The labels drawn, for tests and for anyone inspecting the page (the canvas has no text).
-            el.dataset.xTicks = labels.join("|");
-            return labels;
-          },
-        };
-      const dayFormat = new Intl.DateTimeFormat(loc, {
-        timeZone: tz,
-        day: "numeric",
-        month: "short",
-        hour: "2-digit",
-        minute: "2-digit",
-        hourCycle: "h23",
-      });
-      plot = new UPlot(
-        {
-          width,
-          height: spec.height ?? 240,
-          tzDate: timeAxis ? (ts) => UPlot.tzDate(new Date(ts * 1000), tz) : undefined,
-          series: [{}, ...built.series],
-          bands: built.bands,
-          scales: xRange ? { ...built.scales, x: { ...built.scales?.x, time: true, range: xRange } } : built.scales,
-          axes,
-          legend: { show: false },
-          cursor: { drag: { x: false, y: false } },
-          hooks: {
-            setCursor: [
-              (u) => {
-                const idx = u.cursor.idx;
-                if (idx == null) return setCursor(null);
-                const x = u.data[0][idx];
-                setCursor({
-                  label: timeAxis ? dayFormat.format(new Date(x * 1000)) : (spec.xLabel?.(x) ?? String(x)),
-                  values: built.series.map((_, i) => (u.data[i + 1]?.[idx] as number | null | undefined) ?? null),
-                });
-              },
-            ],
-          },
-        },
-        built.data,
-        ref.current,
-      );
-      ref.current.dataset.drawMs = (performance.now() - started).toFixed(1);
-      observer = new ResizeObserver(() => {
-        if (plot && ref.current) plot.setSize({ width: ref.current.clientWidth, height: spec.height ?? 240 });
-      });
-      observer.observe(ref.current);
-    });
+          built.data,
+          ref.current,
+        );
+        ref.current.dataset.drawMs = (performance.now() - started).toFixed(1);
+        observer = new ResizeObserver(() => {
+          if (plot && ref.current) plot.setSize({ width: ref.current.clientWidth, height: spec.height ?? 240 });
+        });
+        observer.observe(ref.current);
+      },
+    );
     return () => {
       cancelled = true;
       observer?.disconnect();

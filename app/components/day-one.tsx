@@ -5,7 +5,7 @@
 import type { DirectSunEstimate } from "~/domain/climate/sun";
 import { SpotsAndSeasons } from "~/components/illustration";
 import { formatDelta, formatTemp, type TempUnit } from "~/domain/units";
-import { MONTH_NAMES, MONTH_SHORT } from "~/lib/time";
+import { MONTH_NAMES, MONTH_SHORT } from "~/lib/date-words";
 
 export type DayOneView = {
   measuredMonths: number;

@@ -1,6 +1,6 @@
 // The direct-sun estimate for a spot's window facing, in words first and a month table second.
 import type { DirectSunEstimate } from "~/domain/climate/sun";
-import { MONTH_SHORT } from "~/lib/time";
+import { MONTH_SHORT } from "~/lib/date-words";
 
 const hours = (h: number) => `${Math.round(h * 2) / 2} h`;
 

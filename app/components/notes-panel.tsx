@@ -4,7 +4,7 @@
 import { useEffect, useRef } from "react";
 import { useFetcher } from "react-router";
 import type { Role } from "~/db/schema.server";
-import { formatInZone } from "~/lib/time";
+import { formatInZone } from "~/lib/date-words";
 import { NoteIcon } from "~/components/icons";
 
 export type PanelNote = {

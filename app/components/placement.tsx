@@ -1,7 +1,7 @@
 import { useState } from "react";
 import { Form } from "react-router";
 import { isFromFirstReading } from "~/lib/placements";
-import { formatInZone } from "~/lib/time";
+import { formatInZone } from "~/lib/date-words";
 import { ChoiceSelect } from "~/components/field";
 
 export function PlacingTips() {

@@ -5,7 +5,7 @@ import { Link } from "react-router";
 import { tempColour } from "~/components/year-strip";
 import { VerdictMark, VerdictWords, VERDICT_SHORT, type VerdictName } from "~/components/verdict-mark";
 import { formatTemp, toUnit, type TempUnit } from "~/domain/units";
-import { timeAgo } from "~/lib/time";
+import { timeAgo } from "~/lib/date-words";
 import { NoteIcon, PlantIcon, SensorIcon, SpotKindIcon, WatchIcon } from "~/components/icons";
 
 export type CardMonth = {

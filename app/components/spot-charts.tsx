@@ -5,7 +5,7 @@ import { useMemo } from "react";
 import type uPlot from "uplot";
 import { Chart, SITE_LOCALE, TEMP_COLOURS, useSeries, type ChartSpec } from "~/components/chart";
 import { deltaToUnit, formatDelta, formatTemp, toUnit, type TempUnit } from "~/domain/units";
-import { MONTH_SHORT } from "~/lib/time";
+import { MONTH_SHORT } from "~/lib/date-words";
 
 const AXIS = { stroke: "#4a5767", grid: { stroke: "#d4dcdb" }, ticks: { stroke: "#d4dcdb" } };
 export { MONTH_SHORT as MONTHS_SHORT };

@@ -4,7 +4,7 @@ import { useEffect } from "react";
 import { useFetcher } from "react-router";
 import { useNow } from "~/components/use-now";
 import { formatTemp, type TempUnit } from "~/domain/units";
-import { timeAgo } from "~/lib/time";
+import { timeAgo } from "~/lib/date-words";
 
 /** The spot's latest reading as the spot page's loader and `/api/…/latest` give it. */
 export type LatestReading = { measured_at: string; temp: number | null; rh: number | null };

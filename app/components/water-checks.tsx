@@ -2,7 +2,7 @@
 // every check with its remove button (for those who may log).
 import { DropMark, WATER_VERDICT } from "~/components/water-marks";
 import { ppmLabel, sourceName, type LoggedCheck } from "~/domain/water/logged-check";
-import { formatInZone } from "~/lib/time";
+import { formatInZone } from "~/lib/date-words";
 import { IntentButton } from "~/components/intent-button";
 
 const day = (d: Date | string, timeZone: string) => formatInZone(d, timeZone, { hour: undefined, minute: undefined });

@@ -4,6 +4,7 @@
 // CSV import converts a million rows, offsets are remembered per hour, and the library is asked
 // again only in an hour where the offset changes.
 import { Temporal } from "temporal-polyfill";
+import { MONTH_NAMES } from "~/lib/date-words";
 
 const HOUR_MS = 3_600_000;
 const CACHE_LIMIT = 200_000; // hours per zone (about 22 years); cleared rather than grown without bound
@@ -238,38 +239,6 @@ export function formatOffset(minutes: number): string {
   return `UTC${sign}${String(Math.floor(m / 60)).padStart(2, "0")}:${String(m % 60).padStart(2, "0")}`;
 }
 
-/** The English month names, January first. */
-export const MONTH_NAMES = [
-  "January",
-  "February",
-  "March",
-  "April",
-  "May",
-  "June",
-  "July",
-  "August",
-  "September",
-  "October",
-  "November",
-  "December",
-] as const;
-
-/** The three-letter English month names, Jan first. */
-export const MONTH_SHORT = [
-  "Jan",
-  "Feb",
-  "Mar",
-  "Apr",
-  "May",
-  "Jun",
-  "Jul",
-  "Aug",
-  "Sep",
-  "Oct",
-  "Nov",
-  "Dec",
-] as const;
-
 /** One sentence on how the rows at a clock change were read, for the import preview. */
 export function describeDstChange(c: DstChange): string {
   const [y, mo, d] = c.date.split("-").map(Number);
@@ -314,28 +283,6 @@ export function parseLocalDateTime(value: string, timeZone: string): Date | null
   )
     return null;
   return zonedToUtc(wall, timeZone);
-}
-
-export function formatInZone(instant: Date | string, timeZone: string, opts?: Intl.DateTimeFormatOptions) {
-  return new Intl.DateTimeFormat("en-GB", {
-    timeZone,
-    day: "numeric",
-    month: "short",
-    year: "numeric",
-    hour: "2-digit",
-    minute: "2-digit",
-    ...opts,
-  }).format(new Date(instant));
-}
-
-export function timeAgo(instant: Date | string | null | undefined, now = Date.now()): string {
-  if (!instant) return "never";
-  const s = Math.round((now - new Date(instant).getTime()) / 1000);
-  if (s < 0) return "just now";
-  if (s < 90) return `${s} s ago`;
-  if (s < 5400) return `${Math.round(s / 60)} min ago`;
-  if (s < 36 * 3600) return `${Math.round(s / 3600)} h ago`;
-  return `${Math.round(s / 86400)} days ago`;
 }
 
 export function toLocalInputValue(instant: Date, timeZone: string): string {

@@ -4,7 +4,7 @@ import { requireAdmin } from "~/.server/auth";
 import { ingestHealth } from "~/.server/health";
 import { toId } from "~/.server/ids";
 import { sunkMailPage } from "~/.server/mail";
-import { timeAgo } from "~/lib/time";
+import { timeAgo } from "~/lib/date-words";
 import type { Route } from "./+types/admin";
 
 export const meta: Route.MetaFunction = () => [{ title: "Ingest health · Nichewise" }];

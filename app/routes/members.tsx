@@ -17,7 +17,7 @@ import { changeRole, removeMember } from "~/.server/member-roles";
 import { readForm, refuseForm, toId } from "~/.server/ids";
 import { useNow } from "~/components/use-now";
 import { describeChange, type ChangeDetail } from "~/domain/sharing/changes";
-import { formatInZone, timeAgo } from "~/lib/time";
+import { formatInZone, timeAgo } from "~/lib/date-words";
 import { FieldError, FormErrors } from "~/components/field";
 import { IntentButton } from "~/components/intent-button";
 import { inviteSchema, membersSchema } from "~/forms/members";

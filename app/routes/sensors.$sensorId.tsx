@@ -21,7 +21,8 @@ import { CopyBlock, useSecretFromFragment } from "~/components/sensor-secret";
 import { useNow } from "~/components/use-now";
 import { calibrationSchema } from "~/forms/sensor";
 import { placementEditSchema } from "~/lib/placements";
-import { formatInZone, parseLocalDateTime, timeAgo } from "~/lib/time";
+import { parseLocalDateTime } from "~/lib/time";
+import { formatInZone, timeAgo } from "~/lib/date-words";
 import type { Route } from "./+types/sensors.$sensorId";
 
 export const meta: Route.MetaFunction = ({ data }) => [{ title: `${data?.sensor.name ?? "Sensor"} · Nichewise` }];

@@ -2,7 +2,7 @@ import { Link } from "react-router";
 import { ALL_ROLES, requireSiteRole } from "~/.server/auth";
 import { sensorsWithUnplaced } from "~/.server/placements";
 import { listSensors } from "~/.server/sensors.server";
-import { timeAgo } from "~/lib/time";
+import { timeAgo } from "~/lib/date-words";
 import type { Route } from "./+types/sensors";
 import { SensorIcon } from "~/components/icons";
 

@@ -13,7 +13,7 @@ import { minuteToClock } from "~/domain/alerts/quiet";
 import { FieldError, FormErrors } from "~/components/field";
 import { alertEmailsSchema, siteAlertsSchema } from "~/forms/alert-emails";
 import { ALERT_KINDS, KINDS, type AlertKind } from "~/domain/alerts/rules";
-import { formatInZone, timeAgo } from "~/lib/time";
+import { formatInZone, timeAgo } from "~/lib/date-words";
 import { WatchMark } from "~/components/watch-state";
 import type { Route } from "./+types/site.alerts";
 import { SpotKindIcon } from "~/components/icons";

@@ -8,7 +8,8 @@ import { CsvLimitError, isCsvFileError, readCsvHead, type CsvHead } from "~/.ser
 import type { Preview } from "~/components/csv-import";
 import { guessMapping, type CsvMapping } from "~/domain/ingest/csv";
 import type { CSV_COLUMNS, csvImportSchema } from "~/forms/csv-import";
-import { describeDstChange, formatInZone } from "~/lib/time";
+import { describeDstChange } from "~/lib/time";
+import { formatInZone } from "~/lib/date-words";
 
 /** `form`: the import form as its schema parsed it; `actorId`: the grower posting it. */
 export async function previewOrImportCsv(

@@ -11,7 +11,7 @@
 import { composeMail, type Composed, type MailContext } from "~/domain/alerts/mail";
 import type { ForecastNight } from "~/domain/projection/forecast";
 import { formatDelta, formatTemp } from "~/domain/units";
-import { MONTH_SHORT } from "~/lib/time";
+import { MONTH_SHORT } from "~/lib/date-words";
 
 export type Unit = "C" | "F";
 const HOUR = 3_600_000;

@@ -3,7 +3,7 @@
 // from north).
 import * as SunCalc from "suncalc";
 import { median } from "simple-statistics";
-import { MONTH_NAMES } from "~/lib/time";
+import { MONTH_NAMES } from "~/lib/date-words";
 import { FACING_WORDS, type SpotFacing, type WindowFacing } from "~/domain/vocabulary";
 
 const DEG = Math.PI / 180;

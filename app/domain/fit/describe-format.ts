@@ -2,7 +2,7 @@
 // grower's unit and locale, dates, counts and month runs.
 import { cyclicOrder } from "~/domain/fit/facts";
 import { deltaToUnit, toUnit, type TempUnit } from "~/domain/units";
-import { MONTH_NAMES } from "~/lib/time";
+import { MONTH_NAMES } from "~/lib/date-words";
 
 export type Format = { unit: TempUnit; locale?: string };
 export const DEFAULT_FORMAT: Format = { unit: "C", locale: "en-GB" };

@@ -1,6 +1,6 @@
 // A fit's verdict and a seasonal plant's months in words, with what they rest on.
 import { DEFAULT_FORMAT, describeMonths, pastYears, temp, type Format } from "~/domain/fit/describe-format";
-import { MONTH_NAMES } from "~/lib/time";
+import { MONTH_NAMES } from "~/lib/date-words";
 
 /** "17 May" from a local date key, with the year when it is not this one's. */
 function firmDate(key: string, f: Format, now: Date): string {

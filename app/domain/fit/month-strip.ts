@@ -3,7 +3,7 @@
 // state rests on the projection (fit/projected.ts) rather than on readings. Pure: the summary
 // (.server/profiles.ts) derives it from a rule's result and the fit's basis; the page draws it.
 import type { Fact, CheckResult } from "~/domain/fit/facts";
-import { MONTH_SHORT } from "~/lib/time";
+import { MONTH_SHORT } from "~/lib/date-words";
 
 export type MonthState = "pass" | "care" | "fail" | "unmeasured";
 export type StripCell = { month: number; state: MonthState; projected: boolean };

@@ -12,7 +12,8 @@ import {
 } from "~/domain/season/local-time";
 import { luxPerPpfdFor } from "~/domain/climate/light";
 import type { LightSource } from "~/domain/vocabulary";
-import { MONTH_NAMES, resolveWall } from "~/lib/time";
+import { resolveWall } from "~/lib/time";
+import { MONTH_NAMES } from "~/lib/date-words";
 import type {
   DaySummary,
   Hemisphere,
