@@ -8,17 +8,14 @@ import { ForecastWarnings, openForecastWarnings } from "~/.server/alerts/forecas
 import { alertBanner } from "~/.server/alerts/pages";
 import { pool } from "~/.server/db";
 import { projectedProfile } from "~/.server/projections";
-import { ReadingWriter } from "~/.server/ingest/writer";
 import { sunkMail, type SunkMail } from "~/.server/mail";
 import { WeatherJob } from "~/.server/weather/job";
 import { FORECAST_CAUTION, forecastHeadline } from "~/domain/alerts/forecast-warning";
-import type { Reading } from "~/domain/ingest/payload";
-import { DEMO_SCENARIO, DEMO_SITE, generate, type SimSpot } from "../../simulator/model";
+import { DEMO_SITE, type SimSpot } from "../../simulator/model";
 import { startWeatherFake, type WeatherFake } from "../../simulator/weather-fake";
-import { addMember, makeSensor, makeSite, makeSpot, makeUser, useMailSink } from "./helpers";
+import { addMember, makeSite, makeUser, simulatedSpot, useMailSink } from "./helpers";
 
 const HOUR = 3_600_000;
-const DAY = 86_400_000;
 // Tuesday 15 September 2026, 20:00 in London (BST): a mild time of year, so only the scripted front
 // brings a night near a Cymbidium's 2 °C damage line (library.ts, LIMITS: AOS sheet, memory).
 const NOW = Date.UTC(2026, 8, 15, 19, 0);
@@ -65,27 +62,7 @@ async function spotWithDays(
   at = NOW,
   where = site,
 ) {
-  const spot = await makeSpot(where, { indoor, name });
-  await pool().query(`UPDATE spots SET facing = $2 WHERE id = $1`, [spot.id, sim.facing]);
-  const from = new Date(at - 16 * DAY);
-  const sensor = await makeSensor(site, spot, new Date(from.getTime() - DAY));
-  const rows: Reading[] = [];
-  for (const r of generate(DEMO_SITE, sim, DEMO_SCENARIO, {
-    from,
-    to: new Date(at),
-    intervalMs: 600_000,
-    sensorSeed: seed,
-  })) {
-    rows.push({
-      sensorId: sensor.id,
-      measuredAt: r.measuredAt,
-      temperature: r.temperature,
-      humidity: r.humidity,
-      lux: null,
-      battery: r.battery,
-    });
-  }
-  await new ReadingWriter().write(rows);
+  const spot = await simulatedSpot(where, sim, { days: 16, seed, now: new Date(at), indoor, name });
   await pool().query(`INSERT INTO spot_plants (spot_id, plant_key) VALUES ($1, $2)`, [spot.id, plantKey]);
   return spot;
 }
