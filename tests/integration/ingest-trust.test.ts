@@ -5,7 +5,8 @@
 import { connectAsync, type MqttClient } from "mqtt";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { pool } from "~/.server/db";
-import { CONFLICT_REASON, startBroker, type RunningBroker } from "~/.server/ingest/broker";
+import { startBroker, type RunningBroker } from "~/.server/ingest/broker";
+import { CONFLICT_REASON } from "~/.server/ingest/message";
 import { handleHttpIngest } from "~/.server/ingest/http";
 import { recordRejections } from "~/.server/ingest/rejections";
 import { ReadingWriter } from "~/.server/ingest/writer";

@@ -14,7 +14,7 @@ import { validateReading, type Reading } from "~/domain/ingest/payload";
 import { decodePayload, MAX_BRIDGED_PAYLOAD_BYTES } from "~/domain/payloads/presets";
 import { recordRejectionsSoon, type Rejected } from "~/.server/ingest/rejections";
 import { lastTemperature, noteTemperature, sensorInfo } from "~/.server/ingest/sensor-cache";
-import { CONFLICT_REASON } from "~/.server/ingest/broker";
+import { CONFLICT_REASON } from "~/.server/ingest/message";
 import type { ReadingWriter } from "~/.server/ingest/writer";
 import { PacketSizeGuard } from "./packet-guard";
 import type { BridgeConfig, BridgeLink } from "./store";

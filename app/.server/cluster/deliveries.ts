@@ -1,19 +1,12 @@
 // What the ingest worker (worker.ts) does with one delivery of a shard it holds the lock of: the
-// embedded broker's checks (app/.server/ingest/broker.ts), then the product's one writer, and the
-// acknowledgement only after the commit. A bad payload, an unknown sensor or a conflicting value is
+// one path of a sensor's message (app/.server/ingest/message.ts, as the embedded broker takes it), and
+// the acknowledgement only after the commit. A bad payload, an unknown sensor or a conflicting value is
 // acknowledged and recorded with its reason; a failed write is handed back to the queue after a
 // pause, so a PostgreSQL outage delays readings and loses none.
 import type { Channel, ConsumeMessage } from "amqplib";
-import { decodeMessage, parseTopic, validateReading } from "~/domain/ingest/payload";
-import { CONFLICT_REASON } from "~/.server/ingest/broker";
+import { parseTopic } from "~/domain/ingest/payload";
+import { ingestMessage } from "~/.server/ingest/message";
 import { recordRejectionsSoon } from "~/.server/ingest/rejections";
-import {
-  cachedSensorInfo,
-  lastTemperature,
-  noteTemperature,
-  sensorInfo,
-  type SensorInfo,
-} from "~/.server/ingest/sensor-cache";
 import type { ReadingWriter } from "~/.server/ingest/writer";
 import { routingKeyToTopic } from "~/.server/cluster/config";
 
@@ -80,46 +73,18 @@ export function deliveryHandler(writer: ReadingWriter, stats: DeliveryStats) {
       // The engine let only the sensor itself publish here (see auth.ts); anything else is not a reading.
       if (!match) return reject(s, msg, null, "topic not allowed for this sensor");
       const id = match.sensorId;
-      const decoded = decodeMessage(match.channel, msg.content);
-      if (!decoded.ok) return reject(s, msg, id, decoded.reason);
-      const partial = match.channel !== "reading";
-      const info = cachedSensorInfo(id);
-      if (info !== undefined) return write(s, msg, id, info, decoded.payload, partial);
-      sensorInfo(id).then(
-        (fetched) => write(s, msg, id, fetched, decoded.payload, partial),
-        () => failed(s, msg),
-      );
+      ingestMessage(writer, id, match.channel, msg.content, {
+        stored: () => {
+          stats.accepted++;
+          ack(s, msg); // after COMMIT
+        },
+        refused: (reason) => reject(s, msg, id, reason),
+        failed: () => failed(s, msg),
+      });
     } catch (err) {
       console.error("[ingest-worker]", err);
       failed(s, msg);
     }
-  }
-
-  function write(
-    s: TakenFrom,
-    msg: ConsumeMessage,
-    sensorId: number,
-    info: SensorInfo | null,
-    payload: unknown,
-    partial: boolean,
-  ) {
-    if (!info) return reject(s, msg, sensorId, "unknown sensor (deleted?)");
-    const parsed = validateReading(sensorId, payload as never, {
-      now: new Date(),
-      kind: info.kind,
-      previous: lastTemperature(sensorId),
-    });
-    if (!parsed.ok) return reject(s, msg, sensorId, parsed.reason);
-    const reading = parsed.reading;
-    writer.store([partial ? { ...reading, partial } : reading]).then(
-      (r) => {
-        if (r.conflicts > 0) return reject(s, msg, sensorId, CONFLICT_REASON);
-        stats.accepted++;
-        if (reading.temperature !== null) noteTemperature(sensorId, reading.measuredAt.getTime(), reading.temperature);
-        ack(s, msg); // after COMMIT
-      },
-      () => failed(s, msg),
-    );
   }
 
   return handle;

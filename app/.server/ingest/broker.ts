@@ -10,19 +10,13 @@ import { Aedes, type AedesOptions, type Client } from "aedes";
 import { createServer, type Server, type Socket } from "node:net";
 import http from "node:http";
 import { WebSocketServer, createWebSocketStream } from "ws";
-import { decodeMessage, isSensorId, parseTopic, TOPIC_PREFIX, validateReading } from "~/domain/ingest/payload";
+import { isSensorId, parseTopic, TOPIC_PREFIX } from "~/domain/ingest/payload";
 import { env, publicUrl } from "~/.server/env";
 import { kept } from "~/.server/kept";
 import { recordRejectionsSoon } from "~/.server/ingest/rejections";
-import {
-  cachedSensorInfo,
-  lastTemperature,
-  noteTemperature,
-  sensorInfo,
-  verifySensorSecret,
-  type SensorInfo,
-} from "~/.server/ingest/sensor-cache";
-import type { ReadingWriter, WriteResult } from "~/.server/ingest/writer";
+import { ingestMessage } from "~/.server/ingest/message";
+import { verifySensorSecret } from "~/.server/ingest/sensor-cache";
+import type { ReadingWriter } from "~/.server/ingest/writer";
 
 export { CONNECT_TIMEOUT_MS, MAX_CONNECT_BYTES, MAX_PUBLISH_BYTES } from "~/.server/ingest/packet-limits";
 import { CONNECT_TIMEOUT_MS, limitPacketSizes, packetLimit } from "~/.server/ingest/packet-limits";
@@ -44,10 +38,6 @@ export type RunningBroker = {
   port: number;
   wsPort: number | null;
 };
-
-/** The reason recorded for a reading whose time already holds a different value. */
-export const CONFLICT_REASON =
-  "conflicting duplicate: a different value is already stored for this sensor and time (kept the stored one)";
 
 type Holder = { running?: RunningBroker };
 const holder = kept<Holder>("broker", () => ({}));
@@ -142,14 +132,14 @@ export async function startBroker(opts: {
           ]);
           return done(new Error("topic not allowed"));
         }
-        const decoded = decodeMessage(match.channel, packet.payload as Buffer);
-        if (!decoded.ok) return refuse(id, packet, decoded.reason, done);
-        const partial = match.channel !== "reading";
-        const info = cachedSensorInfo(id);
-        if (info !== undefined) return writeOrRefuse(id, info, packet, decoded.payload, partial, done);
-        sensorInfo(id)
-          .then((fetched) => writeOrRefuse(id, fetched, packet, decoded.payload, partial, done))
-          .catch((err: Error) => failed(err, done));
+        ingestMessage(opts.writer, id, match.channel, packet.payload as Buffer, {
+          stored: () => {
+            stats.accepted++;
+            done(null);
+          },
+          refused: (reason) => refuse(id, packet, reason, done),
+          failed: (err) => failed(err, done),
+        });
       } catch (err) {
         // Nothing here should throw; if it does, refuse rather than crash the broker.
         done(err instanceof Error ? err : new Error(String(err)));
@@ -178,48 +168,6 @@ export async function startBroker(opts: {
   function failed(err: Error, done: Done) {
     stats.writeFailures++;
     done(err);
-  }
-
-  /** Validates and stores one message; `done` (the PUBACK) comes after the commit. */
-  function writeOrRefuse(
-    sensorId: number,
-    info: SensorInfo | null,
-    packet: Publish,
-    payload: unknown,
-    partial: boolean,
-    done: Done,
-  ) {
-    if (!info) return refuse(sensorId, packet, "unknown sensor (deleted?)", done);
-    const parsed = validateReading(sensorId, payload as never, {
-      now: new Date(),
-      kind: info.kind,
-      previous: lastTemperature(sensorId),
-    });
-    if (!parsed.ok) return refuse(sensorId, packet, parsed.reason, done);
-    const reading = parsed.reading;
-    opts.writer.store([partial ? { ...reading, partial } : reading]).then(
-      (r: WriteResult) => {
-        // Acked all the same: the sensor can do nothing about it, and the stored value stays.
-        if (r.conflicts > 0) {
-          stats.rejected++;
-          recordRejectionsSoon([
-            {
-              sensorId,
-              source: "mqtt",
-              topic: packet.topic,
-              reason: CONFLICT_REASON,
-              payload: (packet.payload as Buffer).subarray(0, 500).toString("utf8"),
-            },
-          ]);
-        } else {
-          stats.accepted++;
-          if (reading.temperature !== null)
-            noteTemperature(sensorId, reading.measuredAt.getTime(), reading.temperature);
-        }
-        done(null);
-      },
-      (err: Error) => failed(err, done),
-    );
   }
 
   function tooBig(client: Client, cmd: string, length: number) {
